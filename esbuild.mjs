@@ -1,0 +1,45 @@
+// One build for every target: the extension (node, cjs, vscode external), its analysis worker,
+// the CLI (node, shebang), the benchmark script, and the webview (browser, iife).
+// `tsc --noEmit` runs first so a type error stops the build.
+import * as esbuild from 'esbuild';
+import { execFileSync } from 'node:child_process';
+
+const production = process.argv.includes('--production');
+const watch = process.argv.includes('--watch');
+
+if (!watch) {
+  const tsc = 'node_modules/typescript/bin/tsc';
+  execFileSync(process.execPath, [tsc, '--noEmit', '-p', 'tsconfig.json'], { stdio: 'inherit' });
+  execFileSync(process.execPath, [tsc, '--noEmit', '-p', 'src/core/tsconfig.json'], { stdio: 'inherit' });
+}
+
+const common = {
+  bundle: true,
+  minify: production,
+  sourcemap: production ? false : 'linked',
+  logLevel: 'warning',
+  legalComments: 'none',
+};
+
+const targets = [
+  { ...common, entryPoints: { extension: 'src/extension/extension.ts' }, platform: 'node', format: 'cjs',
+    target: 'node20', outdir: 'dist', external: ['vscode'] },
+  { ...common, entryPoints: { worker: 'src/extension/worker.ts' }, platform: 'node', format: 'cjs',
+    target: 'node20', outdir: 'dist' },
+  { ...common, entryPoints: { cli: 'src/cli/main.ts' }, platform: 'node', format: 'cjs', target: 'node20',
+    outdir: 'dist', banner: { js: '#!/usr/bin/env node' } },
+  { ...common, entryPoints: { bench: 'scripts/bench.ts' }, platform: 'node', format: 'cjs', target: 'node20',
+    outdir: 'dist' },
+  { ...common, entryPoints: { webview: 'webview/main.ts' }, platform: 'browser', format: 'iife',
+    target: 'es2022', outdir: 'dist', loader: { '.css': 'text' } },
+];
+
+import { existsSync } from 'node:fs';
+const present = targets.filter((t) => Object.values(t.entryPoints).every((p) => existsSync(p)));
+
+if (watch) {
+  for (const t of present) await (await esbuild.context(t)).watch();
+  console.log('qpoint: watching', present.map((t) => Object.keys(t.entryPoints)[0]).join(', '));
+} else {
+  await Promise.all(present.map((t) => esbuild.build(t)));
+}

@@ -1,0 +1,46 @@
+/**
+ * Every default and tolerance of qpoint in one place. Doc comments elsewhere refer here, so the
+ * documentation cannot drift from the code.
+ */
+export const DEFAULTS = {
+  /** K, nominal temperature when `process.tnom` is absent (27 °C). */
+  tnom: 300.15,
+  model: 'square-law' as const,
+  /** V, limits.margin. */
+  margin: 0.1,
+  /** relative, limits.error. */
+  error: 0.01,
+  /** V, limits.sourceHeadroom: what an input current source needs across it. */
+  sourceHeadroom: 0.2,
+  vss: 0,
+  /** Device parameters not given in the spec. */
+  device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5 },
+  /** m parallel count of a device. */
+  m: 1,
+} as const;
+
+export const SOLVER = {
+  /** S, conductance across every channel and from every node to the rails' midpoint. */
+  gmin: 1e-12,
+  /** Newton iterations per attempt. */
+  maxIterations: 200,
+  /** V, largest node-voltage step of one Newton iteration. */
+  maxStep: 0.3,
+  /** A, residual current tolerance (KCL). */
+  absTol: 1e-13,
+  /** relative tolerance on the voltage update. */
+  relTol: 1e-9,
+  /** V, absolute tolerance on the voltage update. */
+  vTol: 1e-9,
+  /** Source-stepping: number of ramp steps tried when plain Newton fails. */
+  sourceSteps: 20,
+  /** ms, wall-clock budget of one DC solve including every retry. */
+  timeBudgetMs: 50,
+  /** V, compliance search accuracy. */
+  complianceTol: 1e-4,
+} as const;
+
+/** Exact SI defining constants (SI Brochure, 9th ed., 2019). */
+export const BOLTZMANN = 1.380649e-23;      // J/K
+export const ELEMENTARY_CHARGE = 1.602176634e-19; // C
+export const ZERO_CELSIUS = 273.15;          // K

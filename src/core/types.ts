@@ -1,0 +1,320 @@
+/**
+ * Plain, JSON-serialisable types shared by every part of the core and the front ends.
+ * Units: SI base units throughout (A, V, m, Ω, S, K) unless a doc comment says otherwise.
+ * Positions are 0-based lines and UTF-16 characters, as in the Language Server Protocol.
+ */
+
+// ───────────────────────────── positions, findings, edits ─────────────────────────────
+
+export interface Position { line: number; character: number }
+export interface Range { start: Position; end: Position }
+
+/** Path into the spec document, e.g. ['mirrors', 0, 'devices', 'out', 'w']. */
+export type SpecPath = (string | number)[];
+
+export type Severity = 'error' | 'warning' | 'info';
+
+/** A minimal text replacement: `range` (in the original text) becomes `newText`. */
+export interface TextEdit { range: Range; newText: string }
+
+export interface Fix {
+  title: string;
+  edits: TextEdit[];
+  /** The one fix a "fix all" applies for this finding. */
+  preferred?: boolean;
+}
+
+export interface RelatedLocation { path: SpecPath; range: Range; message: string }
+
+export interface Finding {
+  severity: Severity;
+  /** Stable kebab-case code, documented in docs/findings.md. */
+  code: string;
+  /** One line: what is wrong, in numbers, and what would fix it. */
+  message: string;
+  path: SpecPath;
+  /** The narrowest range: the value that must change, else its key. */
+  range: Range;
+  related?: RelatedLocation[];
+  fixes?: Fix[];
+}
+
+// ───────────────────────────── resolved spec (after elaboration) ─────────────────────────────
+
+export type Polarity = 'nmos' | 'pmos';
+export type MirrorKind = 'simple' | 'cascode' | 'wide-swing' | 'wilson' | 'wilson-balanced' | 'netlist';
+export type TemplateKind = Exclude<MirrorKind, 'netlist'>;
+export type ModelKind = 'square-law' | 'ekv';
+
+/** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
+export interface DeviceParams {
+  kp: number;        // A/V², µ·Cox at tnom
+  vt0: number;       // V, at tnom (magnitude for PMOS)
+  lambda: number;    // 1/V, at lref when lref is given
+  lref?: number;     // m; λ(L) = lambda·lref/L when present
+  gamma: number;     // √V
+  phi: number;       // V (2φF)
+  n: number;         // EKV slope factor
+  tcv: number;       // V/K
+  bex: number;       // mobility temperature exponent
+  avt?: number;      // V·m, Pelgrom threshold coefficient (pair)
+  abeta?: number;    // m, Pelgrom current-factor coefficient (pair, relative)
+  lmin?: number;     // m
+  wmin?: number;     // m
+}
+
+export interface ProcessSpec {
+  model: ModelKind;
+  tnom: number;         // K
+  temperature: number;  // K
+  grid?: number;        // m
+  nmos: DeviceParams;
+  pmos: DeviceParams;
+}
+
+export interface Supplies { vdd: number; vss: number }
+
+export interface Limits {
+  margin: number;          // V, minimum VDS − VDSsat counted as safely saturated
+  error: number;           // relative, allowed systematic ratio error
+  sourceHeadroom: number;  // V, what an input current source needs across it
+}
+
+export type BulkTie = 'rail' | 'source';
+
+/** One device's size. `auto` marks a value qpoint computes (design targets); until the sizing
+ *  pass runs, an auto value holds a provisional number. */
+export interface DeviceSize {
+  w: number;
+  l: number;
+  m: number;
+  bulk: BulkTie;
+  auto?: { w?: boolean; l?: boolean };
+}
+
+export type InputSource =
+  | { kind: 'current'; i: number }            // A, ideal
+  | { kind: 'resistor'; r: number };          // Ω, to the opposite rail
+
+export interface OutputSpec {
+  v: number;                     // V, nominal output voltage (absolute)
+  range?: [number, number];      // V, must work across it
+}
+
+export interface Requirements {
+  ratio?: number;
+  rout?: number;        // Ω, minimum
+  compliance?: number;  // V, absolute: NMOS must work down to it, PMOS up to it
+  sigma?: number;       // relative, maximum
+}
+
+/** Design target for auto sizing. */
+export type DesignTarget =
+  | { kind: 'vov'; value: number }
+  | { kind: 'gmid'; value: number }
+  | { kind: 'ic'; value: number };
+
+/** Roles per kind (design §2). */
+export const ROLES: Record<TemplateKind, readonly string[]> = {
+  simple: ['ref', 'out'],
+  cascode: ['ref', 'refc', 'out', 'outc'],
+  'wide-swing': ['ref', 'refc', 'out', 'outc'],
+  wilson: ['in', 'diode', 'out'],
+  'wilson-balanced': ['in', 'diode', 'out', 'bal'],
+};
+
+/** Roles that belong to each output of a bias bank (the rest form the shared reference). */
+export const OUTPUT_ROLES: Record<TemplateKind, readonly string[]> = {
+  simple: ['out'],
+  cascode: ['out', 'outc'],
+  'wide-swing': ['out', 'outc'],
+  wilson: ['out'],
+  'wilson-balanced': ['out'],
+};
+
+/** One measured output of a mirror. A mirror without `outputs:` has exactly one, named like
+ *  the mirror, whose path is the mirror's path. */
+export interface MirrorOutput {
+  name: string;
+  /** Sizes of this output's roles (OUTPUT_ROLES of the kind), every default filled. */
+  devices: Record<string, DeviceSize>;
+  output: OutputSpec;
+  require: Requirements;
+  /** ['mirrors', i] or ['mirrors', i, 'outputs', j]. */
+  path: SpecPath;
+}
+
+export interface TemplateMirror {
+  kind: TemplateKind;
+  name: string;
+  type: Polarity;
+  input: InputSource;
+  /** Sizes of the reference roles (ROLES minus OUTPUT_ROLES), every default filled. */
+  devices: Record<string, DeviceSize>;
+  /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
+  vbias?: number;
+  design?: DesignTarget;
+  outputs: MirrorOutput[];
+  path: SpecPath;  // ['mirrors', i]
+}
+
+export interface NetlistDevice {
+  name: string;
+  type: Polarity;
+  d: string; g: string; s: string; b: string;
+  w: number; l: number; m: number;
+}
+export interface NetlistCurrentSource { name: string; from: string; to: string; i: number }
+export interface NetlistVoltageSource { name: string; node: string; v: number }
+export interface NetlistResistor { name: string; a: string; b: string; r: number }
+
+/** Node names `vdd`, `vss` (and `0`, `gnd` = vss) are the supply rails. */
+export interface NetlistMirror {
+  kind: 'netlist';
+  name: string;
+  type: Polarity;
+  devices: NetlistDevice[];
+  currents: NetlistCurrentSource[];
+  voltages: NetlistVoltageSource[];
+  resistors: NetlistResistor[];
+  /** The measured output: node held at v by an ideal source. */
+  output: { node: string; v: number; range?: [number, number] };
+  /** The current source whose current is iin. */
+  input: { source: string };
+  /** Optional mirror pair for ratioIdeal: names of the reference and output devices. */
+  pair?: { ref: string; out: string };
+  require: Requirements;
+  path: SpecPath;
+}
+
+export type ResolvedMirror = TemplateMirror | NetlistMirror;
+
+export type ParamDelta = { add: number } | { scale: number };  // scale: multiply by (1 + scale)
+
+export interface CornerSpec {
+  name: string;
+  nmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  pmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  temperature?: number;  // K
+  vdd?: number;
+  vss?: number;
+  path: SpecPath;
+}
+
+export interface ResolvedSpec {
+  format: 1;
+  title?: string;
+  process: ProcessSpec;
+  supplies: Supplies;
+  limits: Limits;
+  params: Record<string, number>;
+  mirrors: ResolvedMirror[];
+  corners: CornerSpec[];
+}
+
+// ───────────────────────────── reports ─────────────────────────────
+
+export type Region = 'cutoff' | 'triode' | 'saturation';
+export type Inversion = 'weak' | 'moderate' | 'strong';
+
+/** Operating point of one device. Voltages are magnitudes in the device's own polarity
+ *  (VSG, VSD, VSB for PMOS). */
+export interface DeviceReport {
+  name: string;
+  role: string;
+  type: Polarity;
+  w: number; l: number; m: number;
+  /** True when w or l was computed by qpoint (auto sizing). */
+  sized?: boolean;
+  id: number;
+  vgs: number; vds: number; vbs: number;
+  vth: number; vov: number; vdsat: number;
+  margin: number;          // vds − vdsat
+  region: Region;
+  inversion: Inversion;
+  ic: number;              // inversion coefficient
+  gm: number; gds: number; gmb: number;
+  ro: number;
+  gmId: number;            // gm/ID, 1/V
+}
+
+/** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
+export interface ErrorSplit { vds: number; body: number; geometry: number }
+
+export interface CornerResult {
+  name: string; converged: boolean;
+  iin: number; iout: number; ratio: number; error: number;
+  rout: number; compliance: number; sigma?: number;
+  /** Worst device margin at this corner (V) and which device. */
+  minMargin?: number; minMarginDevice?: string;
+}
+
+export interface MonteCarloResult {
+  samples: number; seed: number;
+  mean: number;     // A, mean of iout
+  sigma: number;    // relative 1σ of iout
+  min: number; max: number;   // A
+  yield: number;    // fraction meeting every requirement
+  /** Histogram of iout for plots: bin edges (A, length bins+1) and counts. */
+  histogram?: { edges: number[]; counts: number[] };
+}
+
+export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
+
+export interface MirrorReport {
+  /** Output name: the mirror's name, or `mirror.output` for an output of a bias bank. */
+  name: string;
+  mirror: string;
+  output?: string;
+  kind: MirrorKind;
+  type: Polarity;
+  converged: boolean;
+  iterations: number;
+  residual: number;
+  /** When not converged: what the solver tried, for the finding. */
+  solveNote?: string;
+  vout: number;        // V, nominal output voltage (absolute)
+  iin: number;
+  iout: number;
+  ratio: number;
+  ratioIdeal?: number;
+  error?: number;
+  errorSplit?: ErrorSplit;
+  rout: number;
+  routApprox?: number;
+  compliance: number;  // V, absolute
+  sigma?: number;
+  /** Wide-swing: the cascode gate voltage used (V, absolute) and whether qpoint picked it. */
+  vbias?: number;
+  vbiasPicked?: boolean;
+  /** Absolute node voltages of the nominal solve. */
+  nodes: Record<string, number>;
+  devices: DeviceReport[];
+  path: SpecPath;
+  corners?: CornerResult[];
+  mc?: MonteCarloResult;
+  /** Iout and Rout versus Vout across the supply (for plots), when requested. */
+  curve?: CurvePoint[];
+}
+
+/** Where a mirror, output or device sits in the source, for hover and the panel's reveal. */
+export interface Anchor {
+  kind: 'mirror' | 'output' | 'device';
+  path: SpecPath;
+  /** The key's range (the mirror's `name` value for a mirror). */
+  range: Range;
+  /** MirrorReport.name this anchor belongs to (the first output's name for a bank's mirror). */
+  report: string;
+  /** DeviceReport.name, for a device anchor. */
+  device?: string;
+}
+
+export interface FileReport {
+  file: string;
+  /** False when the text could not be parsed at all (YAML syntax error): CLI exit 2. */
+  parsed: boolean;
+  title?: string;
+  mirrors: MirrorReport[];
+  findings: Finding[];
+  anchors: Anchor[];
+}
