@@ -19,6 +19,26 @@ export const DEFAULTS = {
   m: 1,
 } as const;
 
+/** Limits that keep reading an untrusted spec fast and bounded (design §2, spec findings). */
+export const SPEC_LIMITS = {
+  /** characters; larger files get a `too-large` finding instead of a parse (YAML reads ~2–4 µs/char here). */
+  maxChars: 131_072,
+  /** aliases expanded when converting the YAML to data (guards against alias bombs). */
+  maxAliasCount: 1000,
+  /** characters in one expression. */
+  maxExpressionLength: 1000,
+  /** YAML syntax findings reported per file; the rest are counted in the last one. */
+  maxSyntaxFindings: 20,
+} as const;
+
+/** Provisional size of an `auto` dimension until the sizing pass runs (design §2 auto sizing). */
+export const PROVISIONAL_SIZE = {
+  /** m, when neither the process `lref` nor the spec gives a length. */
+  l: 1e-6,
+  /** w = wOverL·l, but at least the process `wmin`. */
+  wOverL: 10,
+} as const;
+
 export const SOLVER = {
   /** S, conductance across every channel and from every node to the rails' midpoint. */
   gmin: 1e-12,

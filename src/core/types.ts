@@ -257,6 +257,12 @@ export interface MonteCarloResult {
   yield: number;    // fraction meeting every requirement
   /** Histogram of iout for plots: bin edges (A, length bins+1) and counts. */
   histogram?: { edges: number[]; counts: number[] };
+  /** Samples whose solve did not converge (counted as failing the yield); absent when none. */
+  failed?: number;
+  /** Why samples failed the yield, each counted once at its first failing check: solve did not
+   *  converge, a device out of saturation at the nominal output, ratio outside limits.error,
+   *  not saturated at require.compliance. */
+  failures?: { convergence: number; saturation: number; ratio: number; compliance: number };
 }
 
 export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
@@ -295,6 +301,9 @@ export interface MirrorReport {
   mc?: MonteCarloResult;
   /** Iout and Rout versus Vout across the supply (for plots), when requested. */
   curve?: CurvePoint[];
+  /** The requirements this output is checked against (design §2 `require`), for the panel and
+   *  reports; whether each is met follows from the findings on this output. */
+  require?: Requirements;
 }
 
 /** Where a mirror, output or device sits in the source, for hover and the panel's reveal. */

@@ -1,0 +1,36 @@
+import { writeFileSync } from 'node:fs';
+import { createTwoFilesPatch } from 'diff';
+import type { Command } from './args';
+import { analyzeText } from '../core/analyze';
+import { fixAll } from '../core/rules/fix-all';
+import { findingLine } from '../core/report/text';
+import { displayName, readSpec } from './io';
+
+type FixCommand = Extract<Command, { cmd: 'fix' }>;
+
+/** Apply every preferred fix, re-checking between rounds; print a diff unless --apply. */
+export function runFix(c: FixCommand): number {
+  const read = readSpec(c.file);
+  const name = displayName(c.file);
+  if (!read.ok) {
+    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
+    return 2;
+  }
+  const before = analyzeText(read.text, name);
+  if (!before.parsed) {
+    for (const f of before.findings) process.stderr.write(findingLine(name, f) + '\n');
+    return 2;
+  }
+  const result = fixAll(read.text, name, (text) => analyzeText(text, name));
+  for (const a of result.applied) process.stdout.write(`fixed ${a.code}: ${a.title}\n`);
+  if (result.text === read.text) {
+    process.stdout.write('nothing to fix\n');
+  } else if (c.apply && c.file !== '-') {
+    writeFileSync(c.file, result.text);
+    process.stdout.write(`wrote ${name} (${result.applied.length} fixes in ${result.rounds} rounds)\n`);
+  } else {
+    process.stdout.write(createTwoFilesPatch(`a/${name}`, `b/${name}`, read.text, result.text));
+  }
+  for (const f of result.remaining) process.stdout.write(findingLine(name, f) + '\n');
+  return result.remaining.some((f) => f.severity === 'error') ? 1 : 0;
+}

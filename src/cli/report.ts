@@ -1,0 +1,32 @@
+import { readFileSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import type { Command } from './args';
+import { analyzeText } from '../core/analyze';
+import { renderHtmlReport } from '../core/report/html';
+import { displayName, readSpec } from './io';
+
+type ReportCommand = Extract<Command, { cmd: 'report' }>;
+
+/** The webview bundle sits beside the CLI bundle in dist/. */
+export function webviewAssets(): { script: string } {
+  return { script: readFileSync(join(__dirname, 'webview.js'), 'utf8') };
+}
+
+export function runReport(c: ReportCommand): number {
+  const read = readSpec(c.file);
+  const name = displayName(c.file);
+  if (!read.ok) {
+    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
+    return 2;
+  }
+  const report = analyzeText(read.text, name, { curve: true });
+  try {
+    writeFileSync(c.html, renderHtmlReport(report, webviewAssets()));
+  } catch (err) {
+    process.stderr.write(`qpoint: cannot write ${c.html}: ${(err as Error).message}\n`);
+    return 2;
+  }
+  process.stdout.write(`wrote ${c.html} (${report.mirrors.length} mirror outputs, ${report.findings.length} findings)\n`);
+  if (!report.parsed) return 2;
+  return report.findings.some((f) => f.severity === 'error') ? 1 : 0;
+}

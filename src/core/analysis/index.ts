@@ -1,0 +1,79 @@
+/**
+ * Public API of the circuit engine: solve one mirror's DC point, measure every figure of
+ * design §4, sweep the output voltage, analyse a whole spec. None of these throws: a circuit
+ * that cannot be solved comes back with converged: false and a note saying what was tried.
+ *
+ * Device names in reports: the role (`ref`, `out`, …) for a mirror without `outputs:`; in a
+ * bias bank the shared reference devices keep their role as name and each output's devices
+ * are `<output>.<role>` (role stays `out`, `outc`). A bank's report lists the reference devices
+ * and the measured output's devices only. Netlist devices keep their own names.
+ */
+import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
+import { failedReport, measure, vbiasFor } from './measure';
+import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, solveMirror } from './solve';
+import { sweepCircuit } from './sweep';
+
+export interface MirrorContext { spec: ResolvedSpec; mirror: ResolvedMirror; outputIndex: number }
+/** Per-device random deviations for Monte Carlo: keyed by DeviceReport.name. */
+export interface Perturbation { dvt: Record<string, number>; dbeta: Record<string, number> } // V, relative
+export interface OperatingPoint {
+  converged: boolean; iterations: number; residual: number; solveNote?: string;
+  iin: number; iout: number; nodes: Record<string, number>; devices: DeviceReport[];
+}
+
+function message(err: unknown): string { return err instanceof Error ? err.message : String(err); }
+
+/** Solve the DC point with the output node held at vout (absolute V). Never throws.
+ *  ΔVT (V) adds to a device's threshold magnitude, Δβ/β scales its β. A wide-swing mirror
+ *  without `vbias` uses the nominal (unperturbed) pick: the bias comes from elsewhere. */
+export function solveAt(ctx: MirrorContext, vout: number, perturb?: Perturbation): OperatingPoint {
+  try {
+    const mc = buildMirror(ctx, vout, vbiasFor(ctx)?.vbias, perturb);
+    const r = solveMirror(mc);
+    const op: OperatingPoint = {
+      converged: r.converged, iterations: r.iterations, residual: r.residual,
+      iin: mc.iin(), iout: outputCurrent(mc), nodes: nodeVoltages(mc), devices: deviceReports(mc),
+    };
+    if (r.note) op.solveNote = r.note;
+    return op;
+  } catch (err) {
+    return { converged: false, iterations: 0, residual: NaN, solveNote: `internal error: ${message(err)}`, iin: NaN, iout: NaN, nodes: {}, devices: [] };
+  }
+}
+
+/** Every figure of design §4 at the nominal output voltage; curve when opts.curve. Never throws. */
+export function measureMirror(ctx: MirrorContext, opts?: { curve?: boolean; curvePoints?: number }): MirrorReport {
+  try {
+    return measure(ctx, opts);
+  } catch (err) {
+    return failedReport(ctx, `internal error: ${message(err)}`);
+  }
+}
+
+/** Iout and Rout (linearized) at each vout; warm-starts neighbouring solves. */
+export function sweepVout(ctx: MirrorContext, vouts: number[]): CurvePoint[] {
+  try {
+    const vNom = nominalVout(ctx);
+    const mc = buildMirror(ctx, vNom, vbiasFor(ctx)?.vbias);
+    const r = solveMirror(mc);
+    return sweepCircuit(mc, vouts, vNom, r.converged ? mc.ws.v.slice() : undefined);
+  } catch {
+    return vouts.map((vout) => ({ vout, iout: NaN, rout: NaN, converged: false }));
+  }
+}
+
+/** All mirrors and all outputs of a spec, in order. */
+export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean }): MirrorReport[] {
+  const reports: MirrorReport[] = [];
+  for (const mirror of spec.mirrors) {
+    const n = mirror.kind === 'netlist' ? 1 : Math.max(1, mirror.outputs.length);
+    for (let j = 0; j < n; j++) reports.push(measureMirror({ spec, mirror, outputIndex: j }, opts));
+  }
+  return reports;
+}
+
+/** Temperature- and L-adjusted device parameters (design §3), shared with the sizing code. */
+export {
+  evalDevice, evalPrepared, gateDriveFor, prepareDevice, thermalVoltage, kpAt, lambdaAt, thresholdAt,
+  type DeviceEvaluation, type ModelDevice,
+} from '../models/index';

@@ -1,0 +1,112 @@
+/**
+ * Every figure of design §4 for one measured output, from one nominal solve, its linearization,
+ * the compliance search and (on request) the curve.
+ */
+import { outputAdjoint, outputConductance, outputSensitivities } from '../circuit/smallSignal';
+import { idealRatio, isBank } from '../circuit/templates';
+import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import type { MirrorReport } from '../types';
+import { findCompliance } from './compliance';
+import { splitError } from './errorSplit';
+import { outputSigma } from './mismatch';
+import { routApprox, type SmallSignal } from './routApprox';
+import {
+  buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, solveMirror,
+  type MirrorTarget,
+} from './solve';
+import { linspace, sweepCircuit } from './sweep';
+import { resolveVbias, type VbiasChoice } from './vbias';
+
+export interface MeasureOptions { curve?: boolean; curvePoints?: number }
+
+/** A report with the measured output's identity (name, output, path) and empty figures.
+ *  Built field by field: an object spread here costs more than the whole solve. */
+function blankReport(t: MirrorTarget, vout: number): MirrorReport {
+  const m = t.mirror;
+  let name = m.name, path = m.path;
+  let output: string | undefined;
+  if (m.kind !== 'netlist') {
+    const o = m.outputs[t.outputIndex];
+    if (o) path = o.path;
+    if (o && isBank(m)) { name = `${m.name}.${o.name}`; output = o.name; }
+  }
+  const r: MirrorReport = {
+    name, mirror: m.name, kind: m.kind, type: m.type, converged: false, iterations: 0, residual: NaN,
+    vout, iin: NaN, iout: NaN, ratio: NaN, rout: NaN, compliance: NaN, nodes: {}, devices: [], path,
+  };
+  if (output !== undefined) r.output = output;
+  return r;
+}
+
+export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
+  return t.mirror.kind === 'wide-swing' ? resolveVbias(t.spec, t.mirror) : undefined;
+}
+
+function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
+  if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
+  if (!mc.pair) return undefined;
+  const a = mc.circuit.mos[mc.pair.ref]!.size, b = mc.circuit.mos[mc.pair.out]!.size;
+  const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
+  return Number.isFinite(r) ? r : undefined;
+}
+
+export function failedReport(t: MirrorTarget, note: string): MirrorReport {
+  const r = blankReport(t, safeNominal(t));
+  r.solveNote = note;
+  return r;
+}
+
+function safeNominal(t: MirrorTarget): number {
+  try { return nominalVout(t); } catch { return NaN; }
+}
+
+export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorReport {
+  const vout = nominalVout(t);
+  const vb = vbiasFor(t);
+  const mc = buildMirror(t, vout, vb?.vbias);
+  const sol = solveMirror(mc);
+  const devices = deviceReports(mc);
+  const iin = mc.iin();
+  const iout = outputCurrent(mc);
+  const ratio = iin !== 0 ? iout / iin : NaN;
+  const base = blankReport(t, vout);
+  base.converged = sol.converged; base.iterations = sol.iterations; base.residual = sol.residual;
+  base.iin = iin; base.iout = iout; base.ratio = ratio;
+  base.nodes = nodeVoltages(mc); base.devices = devices;
+  if (sol.note) base.solveNote = sol.note;
+  if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
+  const ideal = ratioIdealOf(t, mc);
+  if (ideal !== undefined) base.ratioIdeal = ideal;
+  if (!sol.converged) return base;
+
+  if (ideal !== undefined && Number.isFinite(ratio)) {
+    base.error = ratio / ideal - 1;
+    if (mc.pair) {
+      base.errorSplit = splitError(mc.circuit.mos[mc.pair.ref]!, mc.circuit.mos[mc.pair.out]!, ideal, mc.ws.v);
+    }
+  }
+  const lam = outputAdjoint(mc.circuit, mc.ws);
+  if (lam) {
+    const g = outputConductance(mc.circuit, mc.ws, lam);
+    base.rout = g !== 0 ? 1 / g : Infinity;
+    const sigma = outputSigma(mc.circuit.mos, outputSensitivities(mc.circuit, mc.ws, lam), iout);
+    if (sigma !== undefined) base.sigma = sigma;
+  }
+  const byRole: Record<string, SmallSignal | undefined> = {};
+  for (const role in mc.byRole) {
+    const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.mos[k]!;
+    byRole[role] = { gm: d.gm, gds: d.gds, gmb: m.b === m.s ? 0 : d.gmb };
+  }
+  const approx = routApprox(t.mirror.kind, byRole);
+  if (approx !== undefined) base.routApprox = approx;
+
+  const xNom = mc.ws.v.slice();
+  const uNom = mc.sign * (vout - mc.rail);
+  base.compliance = findCompliance(mc, uNom, xNom).compliance;
+
+  if (opts.curve) {
+    const { vdd, vss } = t.spec.supplies;
+    base.curve = sweepCircuit(mc, linspace(vss, vdd, opts.curvePoints ?? 61), vout, xNom);
+  }
+  return base;
+}

@@ -1,0 +1,55 @@
+/**
+ * The whole analysis of one bias spec: text → parse → elaborate → solve → measure → rules →
+ * FileReport. Every front end (extension worker, CLI, tests) calls this one function, so what a
+ * designer sees in the editor, the panel and CI is computed once, the same way.
+ */
+import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec } from './types';
+import { parseSpec, type ParsedSpec } from './spec/index';
+import { analyzeSpec } from './analysis/index';
+import { runRules } from './rules/index';
+import { buildAnchors } from './anchors';
+import { sortFindings } from './findings';
+
+export interface AnalyzeOptions {
+  /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
+  curve?: boolean;
+  /** Solve every named process corner (design: `corners:`). */
+  corners?: boolean;
+  /** Monte Carlo mismatch: samples and seed. */
+  mc?: { samples: number; seed: number };
+  /** Fallbacks for limits the spec leaves unset (the editor's `qpoint.limits.margin`). */
+  limitsDefaults?: { margin?: number };
+}
+
+export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}): FileReport {
+  let parsed: ParsedSpec | undefined;
+  try {
+    parsed = parseSpec(text, file);
+    if (!parsed.spec) {
+      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(parsed.findings), anchors: [] };
+    }
+    const spec = withLimitDefaults(parsed.spec, text, opts);
+    const withSpec: ParsedSpec = { ...parsed, spec };
+    const mirrors: MirrorReport[] = analyzeSpec(spec, { curve: opts.curve });
+    const findings: Finding[] = [...parsed.findings, ...runRules(withSpec, mirrors)];
+    const anchors: Anchor[] = buildAnchors(withSpec, mirrors);
+    return { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
+  } catch (err) {
+    // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.
+    const message = err instanceof Error ? err.message : String(err);
+    const findings = parsed ? [...parsed.findings] : [];
+    findings.push({
+      severity: 'error', code: 'internal-error', path: [],
+      message: `qpoint could not analyse this file (${message}); please report it with the file attached`,
+      range: { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } },
+    });
+    return { file, parsed: parsed?.parsed ?? false, mirrors: [], findings: sortFindings(findings), anchors: [] };
+  }
+}
+
+/** The editor may supply a default margin; a margin written in the spec always wins. */
+function withLimitDefaults(spec: ResolvedSpec, text: string, opts: AnalyzeOptions): ResolvedSpec {
+  const margin = opts.limitsDefaults?.margin;
+  if (margin === undefined || /^\s*margin\s*:/m.test(text)) return spec;
+  return { ...spec, limits: { ...spec.limits, margin } };
+}

@@ -1,0 +1,47 @@
+/**
+ * Anchors tie source positions to reports: a mirror's name, each output of a bank, each device
+ * key written in the spec. Hover, CodeLens and the panel's "reveal" use them, so the front ends
+ * never need the YAML tree.
+ */
+import type { Anchor, MirrorReport, SpecPath } from './types';
+import type { ParsedSpec } from './spec/index';
+
+export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Anchor[] {
+  const spec = parsed.spec;
+  if (!spec) return [];
+  const anchors: Anchor[] = [];
+  const byPath = new Map(reports.map((r) => [pathKey(r.path), r]));
+  spec.mirrors.forEach((mirror, i) => {
+    const mirrorPath: SpecPath = ['mirrors', i];
+    const first = reports.find((r) => r.mirror === mirror.name);
+    if (!first) return;
+    const nameRange = parsed.source.value([...mirrorPath, 'name']);
+    anchors.push({ kind: 'mirror', path: mirrorPath, range: nameRange ?? parsed.source.rangeFor(mirrorPath), report: first.name });
+    addDeviceAnchors(parsed, anchors, [...mirrorPath, 'devices'], first, mirror.kind === 'netlist');
+    if (mirror.kind === 'netlist') return;
+    mirror.outputs.forEach((out) => {
+      const report = byPath.get(pathKey(out.path));
+      if (!report || out.path.length === 2) return;
+      const range = parsed.source.value([...out.path, 'name']) ?? parsed.source.rangeFor(out.path);
+      anchors.push({ kind: 'output', path: out.path, range, report: report.name });
+      addDeviceAnchors(parsed, anchors, [...out.path, 'devices'], report, false);
+    });
+  });
+  return anchors;
+}
+
+/** One anchor per device key written under `devices:` (inherited devices have no key). */
+function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], devicesPath: SpecPath, report: MirrorReport, byName: boolean): void {
+  for (const device of report.devices) {
+    const key = byName ? device.name : device.role;
+    const path = [...devicesPath, key];
+    const range = parsed.source.key(path);
+    if (range && !anchors.some((a) => a.kind === 'device' && pathKey(a.path) === pathKey(path))) {
+      anchors.push({ kind: 'device', path, range, report: report.name, device: device.name });
+    }
+  }
+}
+
+export function pathKey(path: SpecPath): string {
+  return path.join('/');
+}

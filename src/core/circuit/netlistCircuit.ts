@@ -1,0 +1,79 @@
+/**
+ * A `netlist` mirror elaborated into a circuit. Rails: `vdd`, and `vss` = `0` = `gnd`. Every
+ * device counts for compliance. Initial guess: a diode-connected device with its source on
+ * its own rail starts at the gate drive for the input current; every other node at mid-supply.
+ */
+import { gateDriveFor } from '../models/evaluate';
+import { deviceProblem, prepareDevice } from '../models/device';
+import type { NetlistMirror, ResolvedSpec } from '../types';
+import { CircuitBuilder } from './circuit';
+import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
+import type { PerturbationLike } from './templates';
+
+export function railName(node: string): string {
+  const n = node.trim();
+  const lower = n.toLowerCase();
+  if (lower === 'vss' || lower === 'gnd' || n === '0') return 'vss';
+  if (lower === 'vdd') return 'vdd';
+  return n;
+}
+
+export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number, perturb?: PerturbationLike): MirrorCircuit {
+  const { vdd, vss } = spec.supplies;
+  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  for (const src of m.voltages) {
+    const node = railName(src.node);
+    if (node === 'vdd' || node === 'vss') { b.problems.push(`voltage source ${src.name} drives the rail ${node}`); continue; }
+    b.hold(node, src.v);
+  }
+  const out = railName(m.output.node);
+  if (out === 'vdd' || out === 'vss') b.problems.push(`output node ${m.output.node} is a supply rail`);
+  else b.hold(out, vout);
+
+  for (const d of m.devices) {
+    const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
+    const problem = deviceProblem(params, size);
+    if (problem) b.problems.push(`device ${d.name}: ${problem}`);
+    const dev = prepareDevice(params, size, d.type, proc, perturb?.dvt[d.name] ?? 0, perturb?.dbeta[d.name] ?? 0);
+    b.mos({ name: d.name, role: d.name, type: d.type, size, params, dev, measured: true },
+      railName(d.d), railName(d.g), railName(d.s), railName(d.b));
+  }
+  for (const s of m.currents) {
+    if (!Number.isFinite(s.i)) b.problems.push(`current source ${s.name}: ${s.i} A is not a number`);
+    b.current(s.name, railName(s.from), railName(s.to), s.i);
+  }
+  for (const r of m.resistors) b.resistor(r.name, railName(r.a), railName(r.b), r.r);
+  const inputIndex = m.currents.findIndex((s) => s.name === m.input.source);
+  if (inputIndex < 0) b.problems.push(`input source ${m.input.source} is not a current source of this netlist`);
+
+  const c = b.build(out === 'vdd' || out === 'vss' ? `${out}` : out, sign, vss, vdd);
+  const ws = makeWorkspace(c);
+  const iin = inputIndex >= 0 ? m.currents[inputIndex]!.i : 0;
+  const railIndex = { vdd: c.nodeNames.indexOf('vdd'), vss: c.nodeNames.indexOf('vss') };
+
+  const guess = (): void => {
+    for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
+    for (const x of c.mos) {
+      if (x.d !== x.g || x.d >= c.nFree) continue;
+      const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;
+      if (x.s !== ownRail) continue;
+      const drive = gateDriveFor(x.dev, Math.abs(iin), 0);
+      if (Number.isFinite(drive)) ws.v[x.d] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
+    }
+  };
+
+  const find = (name: string): number => c.mos.findIndex((x) => x.name === name);
+  const pr = m.pair ? find(m.pair.ref) : -1;
+  const po = m.pair ? find(m.pair.out) : -1;
+  return {
+    circuit: c, ws, sign, rail: sign > 0 ? vss : vdd, span: vdd - vss, guess,
+    iin: () => iin,
+    pair: pr >= 0 && po >= 0 ? { ref: pr, out: po } : undefined,
+    byRole: {},
+  };
+}

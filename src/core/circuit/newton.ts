@@ -1,0 +1,159 @@
+/**
+ * DC operating point by Newton on the nodal equations: analytic Jacobian, step limiting, then
+ * source stepping and gmin stepping when plain Newton fails. Bounded by an iteration cap per
+ * attempt and a wall-clock budget; a failure is data (converged: false, with what was tried).
+ */
+import { SOLVER } from '../defaults';
+import { assemble, copyFreeBlock, type Workspace } from './assemble';
+import type { Circuit } from './circuit';
+import { luFactor, luSolve } from './lu';
+
+export interface DcOptions {
+  /** ms clock; injected so tests and hosts can control time (default Date.now). */
+  clock?: () => number;
+  /** ms budget for the whole solve including retries (default SOLVER.timeBudgetMs). */
+  budgetMs?: number;
+  /** Skip the retries (continuation steps inside the compliance search and sweeps use plain
+   *  Newton first and fall back to a full solve from the topology guess themselves). */
+  plainOnly?: boolean;
+}
+
+export interface DcResult {
+  converged: boolean;
+  /** Newton iterations over every attempt. */
+  iterations: number;
+  /** A, largest KCL residual over the free nodes at the returned point. */
+  residual: number;
+  /** What was tried, when it did not converge (or which fallback succeeded). */
+  note?: string;
+}
+
+/** Relative part of the KCL tolerance, against the sum of |currents| at the node. */
+const RESIDUAL_REL_TOL = 1e-9;
+
+interface Attempt { ok: boolean; iterations: number; residual: number; reason: string }
+
+/** Put the held nodes at vss + alpha·(v − vss). */
+function setHeld(c: Circuit, ws: Workspace, alpha: number): void {
+  for (let k = c.nFree; k < ws.nt; k++) ws.v[k] = c.vss + alpha * (c.fixedV[k]! - c.vss);
+}
+
+function maxResidual(ws: Workspace): number {
+  let r = 0;
+  for (let k = 0; k < ws.n; k++) { const a = Math.abs(ws.F[k]!); if (a > r || a !== a) r = a !== a ? Infinity : a; }
+  return r;
+}
+
+class Budget {
+  private readonly deadline: number;
+  constructor(private readonly clock: () => number, ms: number) { this.deadline = clock() + ms; }
+  expired(): boolean { return this.clock() > this.deadline; }
+}
+
+/** Newton at one (alpha, gmin). On success ws.G/F hold the equations at the solution. */
+function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: Budget, track: boolean,
+  bestRes: { value: number }): Attempt {
+  const { n, v, F, dx, lu, perm, tmp } = ws;
+  let small = false;
+  ws.factored = false;
+  for (let it = 0; it <= SOLVER.maxIterations; it++) {
+    assemble(c, ws, alpha, gmin);
+    let okRes = true;
+    let res = 0;
+    for (let k = 0; k < n; k++) {
+      const f = Math.abs(F[k]!);
+      if (!(f <= SOLVER.absTol + RESIDUAL_REL_TOL * ws.absI[k]!)) okRes = false;
+      if (f > res || f !== f) res = f !== f ? Infinity : f;
+    }
+    if (!Number.isFinite(res)) return { ok: false, iterations: it, residual: res, reason: 'non-finite currents' };
+    if (track && res < bestRes.value) { bestRes.value = res; ws.best.set(v); }
+    if (okRes && (small || n === 0)) return { ok: true, iterations: it, residual: res, reason: '' };
+    if (it === SOLVER.maxIterations) return { ok: false, iterations: it, residual: res, reason: `${it} iterations` };
+    copyFreeBlock(ws);
+    if (!luFactor(lu, n, perm)) return { ok: false, iterations: it, residual: res, reason: 'singular Jacobian' };
+    for (let k = 0; k < n; k++) dx[k] = -F[k]!;
+    luSolve(lu, n, perm, dx, tmp);
+    let maxd = 0;
+    for (let k = 0; k < n; k++) { const a = Math.abs(dx[k]!); if (a > maxd || a !== a) maxd = a !== a ? Infinity : a; }
+    if (!Number.isFinite(maxd)) return { ok: false, iterations: it, residual: res, reason: 'non-finite step' };
+    const scale = maxd > SOLVER.maxStep ? SOLVER.maxStep / maxd : 1;
+    small = scale === 1;
+    for (let k = 0; k < n; k++) {
+      const step = scale * dx[k]!;
+      if (Math.abs(step) > SOLVER.vTol + SOLVER.relTol * Math.abs(v[k]!)) small = false;
+      v[k] = v[k]! + step;
+    }
+    // The clock is read every 8th iteration: an iteration takes microseconds.
+    if ((it & 7) === 7 && budget.expired()) return { ok: false, iterations: it + 1, residual: res, reason: 'time budget' };
+  }
+  return { ok: false, iterations: SOLVER.maxIterations, residual: Infinity, reason: 'iteration cap' };
+}
+
+/** Solve from the free-node voltages already in ws.v (the initial guess). */
+export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResult {
+  const budget = new Budget(opts.clock ?? Date.now, opts.budgetMs ?? SOLVER.timeBudgetMs);
+  const gmin = SOLVER.gmin;
+  const bestRes = { value: Infinity };
+  ws.saved.set(ws.v);
+  setHeld(c, ws, 1);
+  const plain = newton(c, ws, 1, gmin, budget, true, bestRes);
+  let iterations = plain.iterations;
+  if (plain.ok) return { converged: true, iterations, residual: plain.residual };
+  const tried = [`Newton (${plain.reason})`];
+  if (opts.plainOnly) return finishFailed(c, ws, iterations, bestRes.value, tried);
+
+  // Source stepping: ramp every source (held voltages relative to vss, current sources) up from
+  // a small fraction, halving the step on a failure.
+  if (!budget.expired()) {
+    for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vss + (ws.saved[k]! - c.vss) / SOLVER.sourceSteps;
+    let alpha = 0;
+    let step = 1 / SOLVER.sourceSteps;
+    let ok = true;
+    const last = new Float64Array(ws.nt);
+    last.set(ws.v);
+    while (alpha < 1 && !budget.expired()) {
+      const next = Math.min(1, alpha + step);
+      setHeld(c, ws, next);
+      const a = newton(c, ws, next, gmin, budget, next === 1, bestRes);
+      iterations += a.iterations;
+      if (a.ok) {
+        alpha = next; last.set(ws.v); step = Math.min(step * 1.5, 0.25);
+      } else {
+        ws.v.set(last);
+        step /= 2;
+        if (step < 1e-4) { ok = false; tried.push(`source stepping (stalled at ${(100 * alpha).toFixed(1)} %: ${a.reason})`); break; }
+      }
+    }
+    if (ok && alpha >= 1) return { converged: true, iterations, residual: maxResidual(ws), note: 'converged by source stepping' };
+    if (ok) tried.push('source stepping (time budget)');
+  }
+
+  // gmin stepping: a large conductance to the midpoint everywhere makes the problem nearly
+  // linear; lower it a decade at a time, each solve starting from the previous one.
+  if (!budget.expired()) {
+    ws.v.set(ws.saved);
+    setHeld(c, ws, 1);
+    let g = 1e-2;
+    let ok = true;
+    while (g >= gmin * 0.999 && !budget.expired()) {
+      const a = newton(c, ws, 1, g, budget, g <= gmin * 1.001, bestRes);
+      iterations += a.iterations;
+      if (!a.ok) { ok = false; tried.push(`gmin stepping (failed at ${g.toExponential(0)} S: ${a.reason})`); break; }
+      if (g <= gmin * 1.001) return { converged: true, iterations, residual: a.residual, note: 'converged by gmin stepping' };
+      g = Math.max(g / 10, gmin);
+    }
+    if (ok) tried.push('gmin stepping (time budget)');
+  } else {
+    tried.push('no time left for gmin stepping');
+  }
+  return finishFailed(c, ws, iterations, bestRes.value, tried);
+}
+
+/** Leave the best iterate of the true equations in ws.v, with G/F assembled there. */
+function finishFailed(c: Circuit, ws: Workspace, iterations: number, best: number, tried: string[]): DcResult {
+  if (Number.isFinite(best)) ws.v.set(ws.best); else ws.v.set(ws.saved);
+  setHeld(c, ws, 1);
+  assemble(c, ws, 1, SOLVER.gmin);
+  ws.factored = false;
+  return { converged: false, iterations, residual: maxResidual(ws), note: `did not converge; tried ${tried.join(', then ')}` };
+}

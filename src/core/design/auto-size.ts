@@ -1,0 +1,325 @@
+/**
+ * Sizing from design targets: every `auto` W of a template mirror is computed so the device
+ * runs at the mirror's `design` target (overdrive, gm/ID or inversion coefficient) at its own
+ * current, and `l: auto` is the shortest length that meets every output's `require.rout`.
+ *
+ * Currents a device is sized for:
+ * - input-branch roles (ref, refc, in, bal): the input current, from the solve (so a resistor
+ *   input is handled like an ideal one);
+ * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin, or
+ *   without require.ratio the multiplier ratio m_out/m_ref (the unit device carries the ratio);
+ * - the other output-branch roles (outc; out of a Wilson): the output current of the solve.
+ * Length modulation is included: the closed forms of targets.ts take (1 + λ·VDS) from the
+ * solved operating point, iterated to a fixed point, so with require.ratio the computed sizes
+ * also cancel the VDS mismatch of the pair.
+ * One length for all `l: auto` devices of a mirror (matching): found by search on the full
+ * measurement (Rout ∝ L for a simple mirror, ∝ L² for cascodes at constant overdrive).
+ * Results snap to process.grid (W to nearest, L up), else to 4 significant digits; W below
+ * wmin is raised to wmin (lengthening L at the same W/L when L is auto too).
+ */
+import type {
+  DesignTarget, DeviceParams, DeviceSize, ResolvedSpec, SpecPath, TemplateKind, TemplateMirror,
+} from '../types';
+import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
+import { isBank } from '../circuit/templates';
+import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
+import { aspectForTarget } from './targets';
+import { snapLength } from './snap';
+
+export interface SizedDevice {
+  /** Index into spec.mirrors. */
+  mirror: number;
+  /** The device's own path: [...mirror path or output path, 'devices', role]. */
+  path: SpecPath;
+  role: string;
+  /** Computed width / length (m), present for the dimensions that were `auto`. */
+  w?: number;
+  l?: number;
+  /** Output index for a device of a bank output; absent for a reference device. */
+  output?: number;
+  /** DeviceReport.name of the device. */
+  device?: string;
+  target?: DesignTarget;
+  /** A, the current the width was computed for. */
+  id?: number;
+  /** Why the target is not met exactly (wmin clamp, unreachable target or Rout). */
+  note?: string;
+}
+
+/** The mirror pair of each kind: ratioIdeal is pair.out over pair.ref (design §4). */
+export const PAIR: Record<TemplateKind, { ref: string; out: string }> = {
+  simple: { ref: 'ref', out: 'out' },
+  cascode: { ref: 'ref', out: 'out' },
+  'wide-swing': { ref: 'ref', out: 'out' },
+  wilson: { ref: 'in', out: 'diode' },
+  'wilson-balanced': { ref: 'in', out: 'diode' },
+};
+
+/** Roles that carry the input current (design §2 connections). */
+export const INPUT_BRANCH: Record<TemplateKind, readonly string[]> = {
+  simple: ['ref'],
+  cascode: ['ref', 'refc'],
+  'wide-swing': ['ref', 'refc'],
+  wilson: ['in'],
+  'wilson-balanced': ['in', 'bal'],
+};
+
+const MAX_ROUNDS = 12;
+const W_TOL = 1e-6;
+const L_MAX = 1e-3;
+
+interface Slot {
+  role: string;
+  output?: number;
+  path: SpecPath;
+  size: DeviceSize;
+  /** A, the current this device is sized for. */
+  planned: number;
+  /** 1 + λ·VDS at the last solve. */
+  clm: number;
+  note?: string;
+}
+
+/** Fill every auto w/l from TemplateMirror.design (vov, gmid or ic) at the mirror's own
+ *  currents (square-law or EKV relations per process.model), snapped to process.grid;
+ *  `l: auto` from require.rout. Returns the sized spec and what it computed. */
+export function applyDesignTargets(spec: ResolvedSpec): { spec: ResolvedSpec; sized: SizedDevice[] } {
+  let current = spec;
+  const sized: SizedDevice[] = [];
+  for (let i = 0; i < spec.mirrors.length; i++) {
+    const m = current.mirrors[i];
+    if (m.kind === 'netlist' || m.design === undefined || !hasAuto(m)) continue;
+    const r = sizeMirror(current, i, m, m.design);
+    current = r.spec;
+    sized.push(...r.sized);
+  }
+  return { spec: current, sized };
+}
+
+function hasAuto(m: TemplateMirror): boolean {
+  const any = (d: Record<string, DeviceSize>): boolean => Object.values(d).some((s) => s.auto?.w === true || s.auto?.l === true);
+  return any(m.devices) || m.outputs.some((o) => any(o.devices));
+}
+
+function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, target: DesignTarget):
+  { spec: ResolvedSpec; sized: SizedDevice[] } {
+  const slots = collectSlots(mirror);
+  const params = spec.process[mirror.type];
+  const autoL = slots.filter((s) => s.size.auto?.l === true);
+  const routOutputs = mirror.outputs
+    .map((o, j) => ({ j, rout: o.require.rout ?? 0 }))
+    .filter((o) => o.rout > 0);
+  const lmin = params.lmin ?? 0;
+  for (const s of autoL) s.size.l = Math.max(s.size.l, lmin);
+
+  let trial: Trial = { g: NaN, spec: sizeWidths(spec, index, mirror, slots, target), slots };
+  let lNote: string | undefined;
+  if (autoL.length > 0 && routOutputs.length > 0) {
+    const found = searchLength(spec, index, mirror, slots, target, routOutputs, params, spec.process.grid);
+    trial = found.trial;
+    lNote = found.note;
+  }
+  const bank = isBank(mirror);
+  const sized: SizedDevice[] = trial.slots
+    .filter((s) => s.size.auto?.w === true || s.size.auto?.l === true)
+    .map((s) => {
+      const note = [s.note, s.size.auto?.l ? lNote : undefined].filter((x) => x !== undefined).join('; ');
+      return {
+        mirror: index, path: s.path, role: s.role,
+        ...(s.size.auto?.w ? { w: s.size.w } : {}),
+        ...(s.size.auto?.l ? { l: s.size.l } : {}),
+        ...(s.output !== undefined ? { output: s.output } : {}),
+        device: deviceName(mirror, bank, s),
+        target, id: s.planned,
+        ...(note ? { note } : {}),
+      };
+    });
+  return { spec: trial.spec, sized };
+}
+
+/** A sizing trial: how well it meets Rout (min over outputs of rout/require), its spec and the
+ *  slot states that produced it. */
+interface Trial { g: number; spec: ResolvedSpec; slots: Slot[] }
+
+/** DeviceReport.name of a slot's device (engine naming: role, or `<output>.<role>` in a bank). */
+function deviceName(m: TemplateMirror, bank: boolean, s: { role: string; output?: number }): string {
+  return s.output !== undefined && bank ? `${m.outputs[s.output]!.name}.${s.role}` : s.role;
+}
+
+function collectSlots(m: TemplateMirror): Slot[] {
+  const slots: Slot[] = [];
+  for (const [role, size] of Object.entries(m.devices)) {
+    slots.push({ role, path: [...m.path, 'devices', role], size: { ...size }, planned: 0, clm: 1 });
+  }
+  m.outputs.forEach((o, j) => {
+    for (const [role, size] of Object.entries(o.devices)) {
+      slots.push({ role, output: j, path: [...o.path, 'devices', role], size: { ...size }, planned: 0, clm: 1 });
+    }
+  });
+  return slots;
+}
+
+function copySlots(slots: Slot[]): Slot[] {
+  return slots.map((s) => ({ ...s, size: { ...s.size, ...(s.size.auto ? { auto: { ...s.size.auto } } : {}) } }));
+}
+
+/** The spec with the mirror's sizes taken from the slots. */
+function withSlots(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[]): ResolvedSpec {
+  const devices: Record<string, DeviceSize> = {};
+  const outputs = m.outputs.map((o) => ({ ...o, devices: {} as Record<string, DeviceSize> }));
+  for (const s of slots) {
+    if (s.output === undefined) devices[s.role] = { ...s.size };
+    else outputs[s.output]!.devices[s.role] = { ...s.size };
+  }
+  const mirrors = spec.mirrors.slice();
+  mirrors[index] = { ...m, devices, outputs };
+  return { ...spec, mirrors };
+}
+
+function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): number {
+  const required = m.outputs[outputIndex]?.require.ratio;
+  if (required !== undefined && required > 0) return required;
+  const pair = PAIR[m.kind];
+  const find = (role: string): Slot | undefined =>
+    slots.find((s) => s.role === role && (s.output === undefined || s.output === outputIndex));
+  const ref = find(pair.ref), out = find(pair.out);
+  if (!ref || !out) return 1;
+  const auto = (s: Slot): boolean => s.size.auto?.w === true || s.size.auto?.l === true;
+  if (auto(ref) || auto(out)) return out.size.m / ref.size.m;
+  return (out.size.m * out.size.w / out.size.l) / (ref.size.m * ref.size.w / ref.size.l);
+}
+
+/** Widths of every auto-W slot at the slots' current lengths, iterated with the solve until
+ *  currents and length-modulation factors settle. Mutates the slots; returns the sized spec. */
+function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
+  const proc = spec.process;
+  const params = proc[m.type];
+  const ctxT = { model: proc.model, kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
+  const inputBranch = INPUT_BRANCH[m.kind];
+  const pairOut = PAIR[m.kind].out;
+  const bank = isBank(m);
+
+  // Lengths first, so every width is computed for the length that will be written.
+  for (const s of slots) if (s.size.auto?.l === true) s.size.l = snapLength(s.size.l, proc.grid, 'up');
+  // First pass: ideal currents (the solve with provisional sizes gives iin for a resistor input).
+  let iin = m.input.kind === 'current' ? m.input.i : solveAt(ctxOf(spec, index, 0), m.outputs[0].output.v).iin;
+  const ratios = m.outputs.map((_, j) => pairRatio(m, j, slots));
+  for (const s of slots) {
+    const j = s.output ?? 0;
+    s.planned = inputBranch.includes(s.role) ? iin : ratios[j] * iin;
+    s.clm = 1;
+  }
+  let sized = spec;
+  for (let round = 0; round < MAX_ROUNDS; round++) {
+    let change = 0;
+    for (const s of slots) {
+      if (s.size.auto?.w !== true) continue;
+      const aspect = aspectForTarget(ctxT, s.planned, target, target.kind === 'ic' && proc.model === 'square-law' ? 1 : s.clm);
+      if (aspect === undefined) {
+        s.note = unreachableNote(target, ctxT.n, ctxT.ut, proc.model);
+        continue;
+      }
+      let w = (aspect * s.size.l) / s.size.m;
+      s.note = undefined;
+      const wmin = params.wmin;
+      if (wmin !== undefined && w < wmin) {
+        if (s.size.auto?.l === true) {
+          s.size.l = snapLength(s.size.l * (wmin / w), proc.grid, 'up');
+          s.note = `L lengthened to keep W/L at the target with W at wmin`;
+        } else {
+          s.note = `W raised to wmin ${wmin} m: the target needs ${w.toPrecision(3)} m`;
+        }
+        w = wmin;
+      }
+      change = Math.max(change, Math.abs(w - s.size.w) / w);
+      s.size.w = w;
+    }
+    sized = withSlots(spec, index, m, slots);
+    if (round > 0 && change < W_TOL) break;
+    // Re-solve: actual currents and (1 + λ·VDS) for the next round.
+    const ops = m.outputs.map((o, j) => solveAt(ctxOf(sized, index, j), o.output.v));
+    if (!ops.every((op) => op.converged)) break;
+    iin = ops[0].iin;
+    for (const s of slots) {
+      const j = s.output ?? 0;
+      const name = deviceName(m, bank, s);
+      const d = ops[j]!.devices.find((x) => x.name === name);
+      if (!d) continue;
+      s.clm = 1 + lambdaAt(params, s.size.l) * d.vds;
+      s.planned = inputBranch.includes(s.role) ? iin : s.role === pairOut ? ratios[j] * iin : d.id;
+    }
+  }
+  for (const s of slots) {
+    if (s.size.auto?.w === true) s.size.w = snapLength(s.size.w, proc.grid, 'nearest');
+  }
+  return withSlots(spec, index, m, slots);
+}
+
+function ctxOf(spec: ResolvedSpec, index: number, outputIndex: number): MirrorContext {
+  return { spec, mirror: spec.mirrors[index], outputIndex };
+}
+
+function unreachableNote(target: DesignTarget, n: number, ut: number, model: string): string {
+  if (target.kind === 'gmid' && model === 'ekv') {
+    return `gm/ID ${target.value} /V is above the weak-inversion limit 1/(n·U_T) = ${(1 / (n * ut)).toFixed(1)} /V; width left as given`;
+  }
+  return `design target ${target.kind} = ${target.value} cannot be reached; width left as given`;
+}
+
+/** The shortest common L of the auto-L slots that meets every output's require.rout. */
+function searchLength(
+  spec: ResolvedSpec, index: number, m: TemplateMirror, start: Slot[], target: DesignTarget,
+  routOutputs: { j: number; rout: number }[], params: DeviceParams, grid: number | undefined,
+): { trial: Trial; note?: string } {
+  const lo = Math.max(params.lmin ?? 0, grid ?? 0, 1e-9);
+  const evaluate = (l: number): Trial => {
+    const slots = copySlots(start);
+    for (const s of slots) if (s.size.auto?.l === true) s.size.l = l;
+    const sized = sizeWidths(spec, index, m, slots, target);
+    let g = Infinity;
+    for (const { j, rout } of routOutputs) {
+      const r = measureMirror(ctxOf(sized, index, j));
+      g = Math.min(g, r.converged && Number.isFinite(r.rout) ? r.rout / rout : 0);
+    }
+    return { g, spec: sized, slots };
+  };
+  const l0 = Math.max(start.find((s) => s.size.auto?.l === true)!.size.l, lo);
+  if (params.lref === undefined) {
+    const t = evaluate(l0);
+    return t.g >= 1 ? { trial: t } : { trial: t, note: `L kept at ${t.slots.find((s) => s.size.auto?.l)!.size.l} m: without process lref, λ does not fall with L, so length cannot raise Rout` };
+  }
+  // Bracket in log L: [a, b] with g(a) < 1 ≤ g(b).
+  let b = l0;
+  let tb = evaluate(b);
+  let a = b;
+  if (tb.g >= 1) {
+    while (a > lo) {
+      a = Math.max(lo, a / 2);
+      const ta = evaluate(a);
+      if (ta.g < 1) break;
+      b = a; tb = ta;
+    }
+    if (b <= lo) return { trial: tb };
+  } else {
+    while (tb.g < 1) {
+      if (b >= L_MAX) return { trial: tb, note: `require.rout not reached even at L = ${L_MAX} m` };
+      a = b;
+      b = Math.min(L_MAX, b * 2);
+      tb = evaluate(b);
+    }
+  }
+  for (let k = 0; k < 40 && b / a > 1.0005 && !(grid !== undefined && b - a < grid / 2); k++) {
+    const mid = Math.sqrt(a * b);
+    const t = evaluate(mid);
+    if (t.g >= 1) { b = mid; tb = t; } else a = mid;
+  }
+  // Lengths snap up inside sizeWidths: the grid step below may still meet Rout, and a hair
+  // short after snapping steps up.
+  const step = grid ?? b * 1e-3;
+  if (b - step >= lo) {
+    const t = evaluate(b - step);
+    if (t.g >= 1) return { trial: t };
+  }
+  for (let k = 0; k < 20 && tb.g < 1; k++) { b += step; tb = evaluate(b); }
+  return { trial: tb };
+}

@@ -1,0 +1,64 @@
+/**
+ * One MOSFET prepared for evaluation: process parameters adjusted to temperature and length,
+ * size folded into β, plus the random deviations of a Monte Carlo sample. Voltages handed to
+ * the evaluators are in the device's own polarity (VSG, VSD, VSB for PMOS).
+ */
+import type { DeviceParams, ModelKind, Polarity } from '../types';
+import { kpAt, lambdaAt, thermalVoltage, thresholdAt } from './thermal';
+
+export interface ModelDevice {
+  model: ModelKind;
+  /** +1 NMOS, −1 PMOS: terminal voltages are multiplied by it to reach the device frame. */
+  sign: 1 | -1;
+  /** A/V², kp(T)·m·W/L·(1 + Δβ/β). */
+  beta: number;
+  /** V, VT0(T) + ΔVT (device frame, positive for an enhancement device). */
+  vt0: number;
+  gamma: number;
+  phi: number;
+  /** 1/V, after λ(L). */
+  lambda: number;
+  /** EKV slope factor; also used for the square-law inversion coefficient. */
+  n: number;
+  /** V, thermal voltage k·T/q. */
+  ut: number;
+}
+
+export interface DeviceSizeLike { w: number; l: number; m: number }
+
+export interface ProcessConditions { model: ModelKind; temperature: number; tnom: number }
+
+/** Why a device cannot be evaluated (non-positive or non-finite size or parameter), if so. */
+export function deviceProblem(p: DeviceParams, size: DeviceSizeLike): string | undefined {
+  if (!(size.w > 0) || !Number.isFinite(size.w)) return `W = ${size.w} m is not a positive length`;
+  if (!(size.l > 0) || !Number.isFinite(size.l)) return `L = ${size.l} m is not a positive length`;
+  if (!(size.m > 0) || !Number.isFinite(size.m)) return `m = ${size.m} is not a positive count`;
+  if (!(p.kp > 0) || !Number.isFinite(p.kp)) return `kp = ${p.kp} A/V² is not positive`;
+  for (const key of ['vt0', 'lambda', 'gamma', 'phi', 'n', 'tcv', 'bex'] as const) {
+    if (!Number.isFinite(p[key])) return `${key} = ${p[key]} is not a finite number`;
+  }
+  if (p.phi <= 0) return `phi = ${p.phi} V must be positive`;
+  if (p.n <= 0) return `n = ${p.n} must be positive`;
+  return undefined;
+}
+
+/** Adjusted parameters of one device. An invalid size yields β = 0 (no channel) rather than
+ *  NaN, so a report can still be built; callers check deviceProblem first. */
+export function prepareDevice(
+  p: DeviceParams, size: DeviceSizeLike, type: Polarity, proc: ProcessConditions,
+  dvt = 0, dbeta = 0,
+): ModelDevice {
+  const valid = size.w > 0 && size.l > 0 && size.m > 0 && Number.isFinite(size.w * size.l * size.m);
+  const beta = valid ? (kpAt(p, proc.temperature, proc.tnom) * size.m * size.w) / size.l * (1 + dbeta) : 0;
+  return {
+    model: proc.model,
+    sign: type === 'pmos' ? -1 : 1,
+    beta: Number.isFinite(beta) && beta > 0 ? beta : 0,
+    vt0: thresholdAt(p, proc.temperature, proc.tnom) + dvt,
+    gamma: p.gamma,
+    phi: p.phi > 0 ? p.phi : 0,
+    lambda: valid ? lambdaAt(p, size.l) : p.lambda,
+    n: p.n > 0 ? p.n : 1,
+    ut: thermalVoltage(proc.temperature),
+  };
+}

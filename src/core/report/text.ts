@@ -1,0 +1,65 @@
+/**
+ * The terminal report: per mirror a summary and a device table that fits 100 columns, then the
+ * findings as `file:line:col: severity code: message` (1-based, the form editors and CI
+ * annotators link to).
+ */
+import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
+import { formatSI } from '../units/format';
+
+export const CAUTION =
+  'First-order hand-analysis models: confirm with transistor-level simulation on the foundry\'s models and corners before committing a design.';
+
+export function findingLine(file: string, f: Finding): string {
+  return `${file}:${f.range.start.line + 1}:${f.range.start.character + 1}: ${f.severity} ${f.code}: ${f.message}`;
+}
+
+export function renderText(report: FileReport, opts: { tables?: boolean } = {}): string {
+  const out: string[] = [];
+  if (opts.tables !== false && report.mirrors.length > 0) {
+    out.push(`${report.file}${report.title ? ` — ${report.title}` : ''}`);
+    for (const m of report.mirrors) out.push(...mirrorBlock(m), '');
+  }
+  for (const f of report.findings) out.push(findingLine(report.file, f));
+  return out.join('\n');
+}
+
+function mirrorBlock(m: MirrorReport): string[] {
+  const head = `${m.name}  ${m.kind} ${m.type}${m.converged ? '' : '  (did not converge)'}`;
+  const ratio = m.ratioIdeal !== undefined
+    ? `ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
+    : `ratio ${m.ratio.toPrecision(5)}`;
+  const err = m.error !== undefined ? `  error ${signedPercent(m.error)}` : '';
+  const line1 = `  Iin ${si(m.iin, 'A')}  Iout ${si(m.iout, 'A')}  ${ratio}${err}`;
+  const approx = m.routApprox !== undefined ? ` (textbook ${si(m.routApprox, 'Ω')})` : '';
+  const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
+  const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
+  const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  compliance ${si(m.compliance, 'V')} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
+  return [head, line1, line2, ...deviceTable(m.devices)];
+}
+
+const COLUMNS: [string, number][] = [
+  ['device', 10], ['W/L·m', 17], ['ID', 9], ['VGS', 9], ['VDS', 9], ['VDSsat', 9],
+  ['margin', 10], ['region', 7], ['gm/ID', 6], ['ro', 9],
+];
+
+function deviceTable(devices: DeviceReport[]): string[] {
+  const rows = devices.map((d) => [
+    d.name,
+    `${si(d.w, '')}/${si(d.l, '')}·${d.m}${d.sized ? '*' : ''}`,
+    si(d.id, 'A'), si(d.vgs, 'V'), si(d.vds, 'V'), si(d.vdsat, 'V'),
+    (d.margin >= 0 ? '+' : '') + si(d.margin, 'V'),
+    d.region === 'saturation' ? 'sat' : d.region,
+    d.gmId.toFixed(1),
+    si(d.ro, 'Ω'),
+  ]);
+  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => c.padEnd(COLUMNS[i][1])).join('').trimEnd();
+  return [fmt(COLUMNS.map((c) => c[0])), ...rows.map(fmt)];
+}
+
+function si(v: number, unit: string): string {
+  return Number.isFinite(v) ? formatSI(v, unit, 3).replace(/ /g, '') : String(v);
+}
+
+function signedPercent(x: number): string {
+  return `${x >= 0 ? '+' : ''}${(x * 100).toFixed(3)} %`;
+}

@@ -1,0 +1,100 @@
+/**
+ * The design checks qpoint runs after solving, one entry per stable code. The same words go into
+ * docs/findings.md (one `## code` section each) and into SARIF's rule metadata, so the editor,
+ * CI and the docs describe a finding the same way.
+ */
+import type { Severity } from '../types';
+
+export interface RuleInfo {
+  code: string;
+  severity: Severity;
+  /** One line: what the check looks for. */
+  summary: string;
+  /** Why it matters to the circuit. */
+  why: string;
+  /** The usual fix (and whether qpoint offers it as a quick fix). */
+  fix: string;
+}
+
+export const DESIGN_RULES: readonly RuleInfo[] = [
+  {
+    code: 'not-saturated', severity: 'error',
+    summary: 'A device of the mirror is not in saturation (triode or cut off) at the nominal output voltage, or leaves saturation inside output.range.',
+    why: 'A mirror copies its current only while every device is saturated; in triode the output current follows the output voltage and the ratio is lost.',
+    fix: 'Lower the overdrive by widening the mirror (every device by the same factor, so the ratios hold), or move the output voltage away from the rail. The quick fix widens to restore limits.margin.',
+  },
+  {
+    code: 'low-margin', severity: 'warning',
+    summary: 'A device is saturated but its margin VDS − VDSsat is below limits.margin.',
+    why: 'A small margin is eaten by process, temperature and supply variation; the device slips into triode at a corner.',
+    fix: 'Widen the mirror (lower overdrive) or, for a wide-swing cascode with a written vbias, use the bias qpoint picks. Both are offered as quick fixes.',
+  },
+  {
+    code: 'ratio-error', severity: 'error',
+    summary: 'The current ratio iout/iin misses require.ratio (or the geometric ratio when none is required) by more than limits.error.',
+    why: 'The copied current is off target; the message splits the error into VDS mismatch (length modulation), body effect and geometry.',
+    fix: 'Size the output device (W, or the parallel count m) for the target ratio including length modulation; for a Wilson, the balanced form cancels the VDS mismatch.',
+  },
+  {
+    code: 'vds-mismatch', severity: 'warning',
+    summary: 'The VDS of the mirror pair differs enough to move the ratio by half the error budget or more.',
+    why: 'Length modulation turns a VDS difference into a current error that changes with the output voltage.',
+    fix: 'Wilson: switch to the balanced Wilson (quick fix). Simple mirror: a cascode holds the output device at the reference VDS.',
+  },
+  {
+    code: 'low-rout', severity: 'error',
+    summary: 'The output resistance is below require.rout.',
+    why: 'The output current changes with the output voltage by ΔV/Rout; too little Rout costs gain or supply rejection downstream.',
+    fix: 'Lengthen the devices at constant W/L (ro grows with L, a cascode as L²); the quick fix computes the length.',
+  },
+  {
+    code: 'compliance', severity: 'error',
+    summary: 'The output voltage limit (lowest for NMOS, highest for PMOS, where every device is still saturated) is worse than require.compliance or than the far end of output.range.',
+    why: 'Below the compliance voltage the mirror stops being a current source, so the circuit it feeds loses its bias.',
+    fix: 'Widen the mirror to lower the overdrives (the quick fix computes the factor), or use a wide-swing cascode.',
+  },
+  {
+    code: 'high-sigma', severity: 'error',
+    summary: 'The 1σ random error of the output current (Pelgrom) is above require.sigma.',
+    why: 'Random mismatch sets how far two nominally equal copies differ on silicon; it shrinks only with area.',
+    fix: 'Scale the gate area at constant W/L: σ ∝ 1/√(W·L) (Pelgrom 1989); the quick fix computes the area and verifies it.',
+  },
+  {
+    code: 'input-headroom', severity: 'error',
+    summary: 'The input branch needs more voltage than the supply leaves: the input node is within limits.sourceHeadroom of the opposite rail, or a resistor input is left with less than that across it.',
+    why: 'The current source feeding the mirror needs voltage across it to stay a current source; a resistor with little voltage across it sets a current that follows the threshold voltage, not the resistor.',
+    fix: 'Widen the input devices (lower VGS) or use a stack with fewer gate-source drops; the quick fix widens the mirror.',
+  },
+  {
+    code: 'square-law-weak-inversion', severity: 'info',
+    summary: 'A square-law device runs at an inversion coefficient below 1 (moderate or weak inversion).',
+    why: 'The square law overestimates gm/ID and misplaces VDSsat there; the numbers are less trustworthy.',
+    fix: 'Use `model: ekv` in process (offered as a quick fix when the whole file still checks clean with it).',
+  },
+  {
+    code: 'below-lmin', severity: 'error',
+    summary: 'A drawn length is below the process lmin.',
+    why: 'The process cannot draw it, and the models are not valid there.',
+    fix: 'Raise L to lmin at constant W/L (quick fix).',
+  },
+  {
+    code: 'below-wmin', severity: 'error',
+    summary: 'A drawn width is below the process wmin.',
+    why: 'The process cannot draw it, and narrow-width effects are outside the models.',
+    fix: 'Raise W to wmin at constant W/L (quick fix).',
+  },
+  {
+    code: 'vbias-triode', severity: 'error',
+    summary: 'The written vbias of a wide-swing cascode leaves a device in triode.',
+    why: 'Too low a cascode bias starves the mirror devices of VDS; too high a bias starves the cascodes.',
+    fix: 'Use the value qpoint picks (ref at VDS = VDSsat + limits.margin), offered as a quick fix, or remove vbias to let qpoint pick it.',
+  },
+  {
+    code: 'no-convergence', severity: 'error',
+    summary: 'The DC solve of the mirror did not converge; the message says what was tried.',
+    why: 'No operating point, no checks: the other figures of this mirror are not reported.',
+    fix: 'Check supplies, currents and sizes for something the circuit cannot carry (a current larger than the devices pass at the supply, a floating node in a netlist).',
+  },
+];
+
+export const RULES_BY_CODE: ReadonlyMap<string, RuleInfo> = new Map(DESIGN_RULES.map((r) => [r.code, r]));

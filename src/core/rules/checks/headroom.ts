@@ -1,0 +1,64 @@
+/**
+ * input-headroom: the input branch's voltage. The input node sits Σ VDS of the input stack above
+ * the source rail (NMOS; below it for PMOS): the ideal current source feeding it needs
+ * limits.sourceHeadroom across it, and a resistor input left with less than that sets a current
+ * that follows the threshold voltage rather than the resistor.
+ */
+import type { ResolvedSpec, SpecPath, TemplateKind } from '../../types';
+import type { Draft, RuleContext } from '../model';
+import { draftKey } from '../model';
+import { valueRange, type Site } from '../sites';
+import { solve } from '../../sizing/devices';
+import type { OperatingPoint } from '../../analysis/index';
+import { widenPlans } from '../plans';
+import { amps, code, volts } from '../words';
+
+/** Devices between the source rail and the input node, per kind (design §2 connections). */
+const INPUT_STACK: Record<TemplateKind, string[]> = {
+  simple: ['ref'],
+  cascode: ['ref', 'refc'],
+  'wide-swing': ['ref', 'refc'],
+  wilson: ['in'],
+  'wilson-balanced': ['in', 'bal'],
+};
+
+/** Voltage left between the input node and the opposite rail, and the stack height. */
+export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: { role: string; name: string; vds: number }[]): { room: number; stack: number } | undefined {
+  let stack = 0;
+  for (const role of INPUT_STACK[kind]) {
+    const d = devices.find((x) => x.role === role && !x.name.includes('.'));
+    if (!d) return undefined;
+    stack += d.vds;
+  }
+  return { room: spec.supplies.vdd - spec.supplies.vss - stack, stack };
+}
+
+export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
+  const m = site.mirror;
+  if (m.kind === 'netlist') return [];
+  // The input belongs to the mirror: check it once, on its first output.
+  if (site.outputIndex !== 0) return [];
+  const need = rc.spec.limits.sourceHeadroom;
+  const got = inputRoom(rc.spec, m.kind, site.report.devices);
+  if (!got || got.room >= need) return [];
+  const resistor = m.input.kind === 'resistor';
+  const path: SpecPath = resistor ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'];
+  const at = valueRange(rc.parsed, path);
+  const stackNames = INPUT_STACK[m.kind].map(code).join(' + ');
+  const message = resistor
+    ? `the input resistor has only ${volts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
+      `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
+    : `the input node sits ${volts(got.stack)} from the rail (stack ${stackNames}), leaving ${volts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+  const goal = (s: ResolvedSpec): number => {
+    const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
+    const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
+    return g ? g.room - need : NaN;
+  };
+  return [{
+    key: draftKey('input-headroom', ['mirrors', site.mirrorIndex]),
+    mirrorIndex: site.mirrorIndex,
+    finding: { severity: 'error', code: 'input-headroom', path: at.path, range: at.range, message },
+    plan: () => widenPlans(rc, site.mirrorIndex, goal, `for ${volts(need)} of input headroom`),
+    hint: 'lower VGS (wider devices) or use a stack with fewer gate-source drops',
+  }];
+}

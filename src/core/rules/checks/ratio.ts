@@ -1,0 +1,103 @@
+/**
+ * ratio-error (against require.ratio, else the geometric ratio) with its cause split, and
+ * vds-mismatch (the pair's VDS difference alone moves the ratio by half the budget or more).
+ */
+import type { DeviceReport, RelatedLocation } from '../../types';
+import type { Draft, RuleContext } from '../model';
+import { draftKey } from '../model';
+import { deviceRange, kindRange, refOf, valueRange, type DeviceRef, type Site } from '../sites';
+import { balancedPlans, ratioPlans } from '../plans';
+import { code, percent, ratioText, signedPercent, volts } from '../words';
+
+/** The ratio-setting device and its partner (design §4 ratioIdeal): out/ref, or diode/in for Wilsons. */
+export function ratioPair(site: Site): { setter: string; partner: string } | undefined {
+  const m = site.mirror;
+  if (m.kind === 'netlist') return m.pair ? { setter: m.pair.out, partner: m.pair.ref } : undefined;
+  if (m.kind === 'wilson' || m.kind === 'wilson-balanced') return { setter: 'diode', partner: 'in' };
+  return { setter: 'out', partner: 'ref' };
+}
+
+function findRole(site: Site, role: string): DeviceReport | undefined {
+  const m = site.mirror;
+  if (m.kind === 'netlist') return site.report.devices.find((d) => d.name === role);
+  return site.report.devices.find((d) => {
+    if (d.role !== role) return false;
+    const r = refOf(site, d);
+    return r.output === undefined || r.output === site.outputIndex;
+  });
+}
+
+function related(rc: RuleContext, site: Site, d: DeviceReport | undefined, message: string): RelatedLocation[] {
+  if (!d) return [];
+  const at = deviceRange(rc.parsed, rc.spec, refOf(site, d), ['w']);
+  return [{ path: at.path, range: at.range, message }];
+}
+
+export function checkRatio(rc: RuleContext, site: Site): Draft[] {
+  const drafts: Draft[] = [];
+  const r = site.report;
+  const pair = ratioPair(site);
+  const limit = rc.spec.limits.error;
+  const required = site.require.ratio;
+  const target = required ?? r.ratioIdeal;
+  const setter = pair ? findRole(site, pair.setter) : undefined;
+  const partner = pair ? findRole(site, pair.partner) : undefined;
+
+  if (target !== undefined && target > 0 && Number.isFinite(r.ratio)) {
+    const err = r.ratio / target - 1;
+    if (Math.abs(err) > limit) {
+      const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
+      const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
+      const against = required !== undefined ? `the required ${ratioText(required)}` : `the geometric ${ratioText(target)}`;
+      const rel = related(rc, site, partner, `mirrored from ${code(partner?.name ?? '')}`);
+      if (required !== undefined) {
+        const req = valueRange(rc.parsed, [...site.path, 'require', 'ratio']);
+        rel.push({ path: req.path, range: req.range, message: `required ratio ${ratioText(required)}` });
+      }
+      drafts.push({
+        key: draftKey('ratio-error', site.path),
+        mirrorIndex: site.mirrorIndex,
+        finding: {
+          severity: 'error', code: 'ratio-error', path: at.path, range: at.range, related: rel,
+          message: `ratio ${ratioText(r.ratio)} is ${signedPercent(err)} off ${against} (limit ±${percent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
+        },
+        plan: function* () {
+          yield* balancedPlans(rc, site);
+          if (setterRef) yield* ratioPlans(rc, site, setterRef, target, required === undefined);
+        },
+      });
+    }
+  }
+
+  const split = r.errorSplit;
+  if (split && Math.abs(split.vds) >= limit / 2 && setter && partner) {
+    const at = kindRange(rc.parsed, site.mirrorIndex);
+    const kind = site.mirror.kind;
+    const hint = kind === 'simple'
+      ? `a cascode would hold ${code(setter.name)} at the VDS of ${code(partner.name)}`
+      : kind === 'wilson' ? 'the balanced Wilson equalises the two'
+        : 'match the VDS of the pair (cascode sizes and bias)';
+    drafts.push({
+      key: draftKey('vds-mismatch', site.path),
+      mirrorIndex: site.mirrorIndex,
+      finding: {
+        severity: 'warning', code: 'vds-mismatch', path: at.path, range: at.range,
+        related: [...related(rc, site, setter, `VDS ${volts(setter.vds)}`), ...related(rc, site, partner, `VDS ${volts(partner.vds)}`)],
+        message: `VDS of ${code(setter.name)} (${volts(setter.vds)}) and ${code(partner.name)} (${volts(partner.vds)}) differ by ${volts(Math.abs(setter.vds - partner.vds))}: ` +
+          `length modulation moves the ratio by ${signedPercent(split.vds)} (half the ±${percent(limit)} budget is ${percent(limit / 2)})`,
+      },
+      plan: () => balancedPlans(rc, site),
+      hint,
+    });
+  }
+  return drafts;
+}
+
+function causes(split: { vds: number; body: number; geometry: number } | undefined, ideal: number | undefined, required: number | undefined): string {
+  const parts: string[] = [];
+  if (split) parts.push(`VDS mismatch ${signedPercent(split.vds)}`, `body effect ${signedPercent(split.body)}`, `geometry ${signedPercent(split.geometry)}`);
+  if (required !== undefined && ideal !== undefined && Math.abs(ideal / required - 1) > 1e-9) {
+    parts.push(`sizing ${signedPercent(ideal / required - 1)} (geometric ratio ${ratioText(ideal)})`);
+  }
+  return parts.length > 0 ? `: ${parts.join(', ')}` : '';
+}

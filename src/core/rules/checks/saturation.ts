@@ -1,0 +1,157 @@
+/**
+ * Saturation: not-saturated (nominal, and the supply side of output.range — the rail side is the
+ * compliance check's), low-margin, and vbias-triode for a wide-swing cascode whose written
+ * vbias is what puts a device in triode.
+ */
+import type { DeviceReport, SpecPath } from '../../types';
+import type { Draft, RuleContext } from '../model';
+import { draftKey } from '../model';
+import { deviceRange, refOf, type Site } from '../sites';
+import { solve } from '../../sizing/devices';
+import { pickedVbias, withVbias } from '../../sizing/vbias';
+import { vbiasPlans, widenPlans } from '../plans';
+import { code, signedVolts, volts } from '../words';
+import { formatSI } from '../../units/format';
+import { awayFromRail, crossing, deviceIn, isSaturated, marginGoal, siteDevices } from './common';
+
+/** Reference devices belong to the mirror, not to one output: one finding for all outputs. */
+function subjectPath(site: Site, d: DeviceReport): SpecPath {
+  return refOf(site, d).output === undefined ? ['mirrors', site.mirrorIndex] : site.path;
+}
+
+function state(d: DeviceReport): string {
+  if (d.region === 'cutoff') return `is cut off (VGS ${volts(d.vgs)} below VT ${volts(d.vth)})`;
+  return `is in triode: VDS ${volts(d.vds)} < VDSsat ${volts(d.vdsat)} (margin ${signedVolts(d.margin)})`;
+}
+
+export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
+  const drafts: Draft[] = [];
+  const limits = rc.spec.limits;
+  const devices = siteDevices(site);
+  let unsat = devices.filter((d) => !isSaturated(d));
+
+  // A written wide-swing vbias that the picked one would cure is the thing to change.
+  const m = site.mirror;
+  if (m.kind === 'wide-swing' && m.vbias !== undefined && unsat.length > 0) {
+    const picked = pickedVbias(rc.spec, site.mirrorIndex, site.outputIndex);
+    const cured = picked !== undefined && (() => {
+      const op = solve(withVbias(rc.spec, site.mirrorIndex, picked), site.mirrorIndex, site.outputIndex);
+      return op !== undefined && unsat.every((d) => { const x = deviceIn(op, d.name); return x !== undefined && isSaturated(x); });
+    })();
+    if (cured && picked !== undefined) {
+      const path: SpecPath = ['mirrors', site.mirrorIndex, 'vbias'];
+      const worst = [...unsat].sort((a, b) => a.margin - b.margin)[0];
+      drafts.push({
+        key: draftKey('vbias-triode', ['mirrors', site.mirrorIndex]),
+        mirrorIndex: site.mirrorIndex,
+        finding: {
+          severity: 'error', code: 'vbias-triode', path, range: rc.parsed.source.rangeFor(path),
+          message: `vbias ${volts(m.vbias)} leaves ${unsat.map((d) => code(d.name)).join(', ')} out of saturation: ${code(worst.name)} ${state(worst)}; ` +
+            `qpoint's pick is ${volts(picked)} (\`ref\` at VDSsat + ${volts(limits.margin)})`,
+        },
+        plan: () => vbiasPlans(rc, site, volts(limits.margin)),
+      });
+      unsat = [];
+    }
+  }
+
+  for (const d of unsat) {
+    const ref = refOf(site, d);
+    const at = deviceRange(rc.parsed, rc.spec, ref, ['w']);
+    let where = '';
+    if (!rc.quick) {
+      const side = awayFromRail(site, rc.spec);
+      const leaves = saturatesFrom(rc, site, d.name, side.from, side.to);
+      const rel = site.mirror.type === 'nmos' ? '≥' : '≤';
+      where = leaves !== undefined ? `; it needs Vout ${rel} ${formatSI(leaves, 'V', 4)}` : '; no output voltage within the supply saturates it';
+    }
+    drafts.push({
+      key: draftKey('not-saturated', subjectPath(site, d), d.name),
+      mirrorIndex: site.mirrorIndex,
+      finding: {
+        severity: 'error', code: 'not-saturated', path: at.path, range: at.range,
+        message: `${code(d.name)} ${state(d)} at Vout = ${volts(site.vout)}${where}`,
+      },
+      plan: function* () {
+        // Full margin if the mirror can get it, else just saturation (the warning stays).
+        let any = false;
+        for (const c of widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`)) { any = true; yield c; }
+        if (!any) yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0.005, site.vout), `to saturate ${code(d.name)}`);
+      },
+      hint: 'lower its overdrive (wider devices) or move Vout away from the rail',
+    });
+  }
+
+  for (const d of devices) {
+    if (!isSaturated(d) || d.margin >= limits.margin) continue;
+    const ref = refOf(site, d);
+    const at = deviceRange(rc.parsed, rc.spec, ref, ['w']);
+    drafts.push({
+      key: draftKey('low-margin', subjectPath(site, d), d.name),
+      mirrorIndex: site.mirrorIndex,
+      finding: {
+        severity: 'warning', code: 'low-margin', path: at.path, range: at.range,
+        message: `${code(d.name)} has ${volts(d.margin)} of saturation margin at Vout = ${volts(site.vout)} (VDS ${volts(d.vds)}, VDSsat ${volts(d.vdsat)}); limits.margin asks for ${volts(limits.margin)}`,
+      },
+      plan: function* () {
+        if (m.kind === 'wide-swing' && m.vbias !== undefined) yield* vbiasPlans(rc, site, volts(limits.margin));
+        yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`);
+      },
+    });
+  }
+
+  // The supply side of output.range (the rail side is `compliance`).
+  if (site.range && unsat.length === 0) drafts.push(...rangeSide(rc, site));
+  return drafts;
+}
+
+/** Where device `name` enters saturation when Vout moves from `from` toward `to`. */
+function saturatesFrom(rc: RuleContext, site: Site, name: string, from: number, to: number): number | undefined {
+  let last = from;
+  for (const t of [0.1, 0.25, 0.5, 0.75, 1]) {
+    const v = from + (to - from) * t;
+    const d = deviceIn(solve(rc.spec, site.mirrorIndex, site.outputIndex, v), name);
+    if (d && isSaturated(d)) {
+      return crossing(site, rc.spec, v, last, (op) => { const x = deviceIn(op, name); return x ? isSaturated(x) : undefined; });
+    }
+    last = v;
+  }
+  return undefined;
+}
+
+function rangeSide(rc: RuleContext, site: Site): Draft[] {
+  const [lo, hi] = site.range!;
+  const nmos = site.mirror.type === 'nmos';
+  const end = nmos ? hi : lo;
+  if (nmos ? end <= site.vout : end >= site.vout) return [];
+  const points = [0.25, 0.5, 0.75, 1].map((t) => site.vout + (end - site.vout) * t);
+  const drafts: Draft[] = [];
+  const reported = new Set<string>();
+  let prev = site.vout;
+  for (const v of points) {
+    const op = solve(rc.spec, site.mirrorIndex, site.outputIndex, v);
+    if (!op) { prev = v; continue; }
+    for (const d of op.devices) {
+      if (isSaturated(d) || reported.has(d.name)) continue;
+      const own = site.report.devices.find((x) => x.name === d.name);
+      if (!own) continue;
+      const ref = refOf(site, own);
+      if (ref.output !== undefined && ref.output !== site.outputIndex) continue;
+      reported.add(d.name);
+      const at = deviceRange(rc.parsed, rc.spec, ref, ['w']);
+      const leaves = rc.quick ? undefined : crossing(site, rc.spec, prev, v, (o) => { const x = deviceIn(o, d.name); return x ? isSaturated(x) : undefined; });
+      drafts.push({
+        key: draftKey('not-saturated', subjectPath(site, own), `${d.name}@range`),
+        mirrorIndex: site.mirrorIndex,
+        finding: {
+          severity: 'error', code: 'not-saturated', path: at.path, range: at.range,
+          message: `${code(d.name)} leaves saturation ${leaves !== undefined ? `at Vout = ${formatSI(leaves, 'V', 4)}` : `before Vout = ${volts(v)}`}, inside output.range ${volts(lo)} … ${volts(hi)} ` +
+            `(margin ${signedVolts(d.margin)} at ${volts(v)})`,
+        },
+        plan: () => widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0, end), `to keep ${code(d.name)} saturated up to ${volts(end)}`),
+      });
+    }
+    prev = v;
+  }
+  return drafts;
+}

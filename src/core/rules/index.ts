@@ -1,0 +1,104 @@
+/**
+ * Design findings for a parsed, solved spec (design §6): each check turns report numbers into
+ * findings at the narrowest source range; each finding's candidate fixes are verified by
+ * re-solving the edited text, and only verified fixes are offered, the first one preferred.
+ */
+import type { Finding, Fix, MirrorReport } from '../types';
+import type { ParsedSpec } from '../spec/index';
+import type { Draft, RuleContext } from './model';
+import { siteOf } from './sites';
+import { accepts, recheck, type Baseline } from './verify';
+import { checkConvergence } from './checks/convergence';
+import { checkSaturation } from './checks/saturation';
+import { checkRatio } from './checks/ratio';
+import { checkCompliance, checkRout, checkSigma } from './checks/requirements';
+import { checkHeadroom } from './checks/headroom';
+import { checkInversion } from './checks/inversion';
+import { checkGeometry } from './checks/geometry';
+
+export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
+export { fixAll } from './fix-all';
+
+/** Upper bound on verified candidates per finding (each costs a parse and a solve). */
+const MAX_VERIFICATIONS = 6;
+
+/** Every check over every report, without fixes. Never throws: a failing check yields nothing. */
+export function detect(rc: RuleContext): Draft[] {
+  const drafts: Draft[] = [];
+  const keys = new Set<string>();
+  const inversionSeen = new Set<string>();
+  for (const report of rc.reports) {
+    const site = siteOf(rc.spec, report);
+    if (!site) continue;
+    const run = (f: () => Draft[]) => {
+      try {
+        for (const d of f()) {
+          if (keys.has(d.key)) continue; // a reference device shared by a bank's outputs
+          keys.add(d.key);
+          drafts.push(d);
+        }
+      } catch {
+        // A check that fails on odd numbers must not cost the other findings.
+      }
+    };
+    const conv = checkConvergence(rc, site);
+    if (conv.length > 0) { run(() => conv); continue; }
+    run(() => checkSaturation(rc, site));
+    run(() => checkRatio(rc, site));
+    run(() => checkRout(rc, site));
+    run(() => checkCompliance(rc, site));
+    run(() => checkSigma(rc, site));
+    run(() => checkHeadroom(rc, site));
+    run(() => checkGeometry(rc, site));
+    run(() => checkInversion(rc, site, inversionSeen));
+  }
+  return drafts;
+}
+
+/** Design findings (with verified fixes) for a parsed spec and its reports. Pure, never throws. */
+export function runRules(parsed: ParsedSpec, reports: MirrorReport[]): Finding[] {
+  const spec = parsed.spec;
+  if (!spec) return [];
+  try {
+    const json = parsed.json ?? /^\s*[{[]/.test(parsed.text);
+    const rc: RuleContext = { parsed, spec, reports, quick: false, json, file: json ? 'spec.bias.json' : 'spec.bias.yaml' };
+    const drafts = detect(rc);
+    const baseline: Baseline = {
+      specErrors: parsed.findings.filter((f) => f.severity === 'error').length,
+      errors: new Set(drafts.filter((d) => d.finding.severity === 'error').map((d) => d.key)),
+    };
+    const memo = new Map<string, Draft[] | undefined>();
+    return drafts.map((d) => finish(rc, d, baseline, memo));
+  } catch {
+    return [];
+  }
+}
+
+function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string, Draft[] | undefined>): Finding {
+  const fixes: Fix[] = [];
+  if (d.plan) {
+    const families = new Set<string>();
+    let tried = 0;
+    try {
+      for (const c of d.plan()) {
+        if (families.has(c.family)) continue;
+        if (tried >= MAX_VERIFICATIONS) break;
+        const p = c.build();
+        if (!p) continue;
+        tried++;
+        // The same edit answers several findings (the balanced Wilson, the EKV model): re-check once.
+        const id = `${p.scope}:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
+        if (!memo.has(id)) memo.set(id, recheck(rc, p, baseline, detect));
+        if (!accepts(memo.get(id), d, p, baseline)) continue;
+        families.add(p.family);
+        fixes.push({ title: p.title, edits: p.edits, ...(fixes.length === 0 ? { preferred: true } : {}) });
+      }
+    } catch {
+      // A solver that fails leaves the fixes found so far.
+    }
+  }
+  const f: Finding = { ...d.finding };
+  if (fixes.length > 0) f.fixes = fixes;
+  else if (d.hint) f.message = `${f.message}; ${d.hint}`;
+  return f;
+}

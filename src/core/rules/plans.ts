@@ -1,0 +1,213 @@
+/**
+ * Candidate fixes, computed by the sizing solvers on modified copies of the resolved spec and
+ * written as minimal edits. Each function returns candidates best first; the caller verifies
+ * them by re-parsing and re-solving the edited text and offers the first that holds.
+ */
+import type { ResolvedSpec, TextEdit } from '../types';
+import type { RuleContext, FixPlan } from './model';
+import { allDevices, sizeOf, type DeviceRef } from '../sizing/devices';
+import { quantizeSize, type RoundDirection } from '../sizing/quantize';
+import { scaleForGoal, areaScaleForSigma } from '../sizing/scale';
+import { widthForRatio, countForRatio } from '../sizing/ratio';
+import { pickedVbias } from '../sizing/vbias';
+import { balancedBalSize } from '../sizing/balance';
+import { shortDecimal } from '../sizing/token-style';
+import { replaceValueEdit } from '../spec/edit';
+import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
+import { buildEdits, type KeyInsert } from './build-edits';
+import { isAutoSized, textAt, type Site } from './sites';
+import { factor, volts } from './words';
+
+/** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
+function fixable(rc: RuleContext, mirrorIndex: number): boolean {
+  return !isAutoSized(rc.spec, mirrorIndex);
+}
+
+function scaleChanges(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number; l?: number }, dir: RoundDirection): SizeChange[] {
+  const grid = spec.process.grid;
+  const out: SizeChange[] = [];
+  for (const ref of allDevices(spec, mirrorIndex)) {
+    const s = sizeOf(spec, ref);
+    if (!s) continue;
+    if (k.w !== undefined) out.push({ ref, key: 'w', value: quantizeSize(s.w * k.w, grid, dir) });
+    if (k.l !== undefined) out.push({ ref, key: 'l', value: quantizeSize(s.l * k.l, grid, dir) });
+  }
+  return out;
+}
+
+function plan(rc: RuleContext, mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
+  return edits && edits.length > 0 ? { title, edits, scope: 'mirror', mirrorIndex, family } : undefined;
+}
+
+/** A lazily built fix: solvers run when the generator advances, edits when `build` is called. */
+export interface Candidate { family: string; build: () => FixPlan | undefined }
+
+function candidate(family: string, build: () => FixPlan | undefined): Candidate {
+  return { family, build };
+}
+
+/** Widen every device by one factor (lower VOV), smallest factor that meets `goal` (≥ 0). */
+export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string): Generator<Candidate> {
+  if (!fixable(rc, mirrorIndex)) return;
+  const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: false }, goal);
+  if (k === undefined) return;
+  for (const kk of [k, k * 1.03, k * 1.1]) {
+    yield candidate('widen', () => {
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file);
+      return p && plan(rc, mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
+    });
+  }
+}
+
+/** Lengthen every device at constant W/L, smallest factor that meets `goal`. */
+export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string): Generator<Candidate> {
+  if (!fixable(rc, mirrorIndex)) return;
+  const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: true }, goal);
+  if (k === undefined) return;
+  for (const kk of [k, k * 1.03, k * 1.1]) {
+    yield candidate('lengthen', () => {
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file);
+      return p && plan(rc, mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
+    });
+  }
+}
+
+/** Scale the gate area at constant W/L for a required sigma (Pelgrom closed form, verified). */
+export function* areaPlans(rc: RuleContext, site: Site, target: number): Generator<Candidate> {
+  if (!fixable(rc, site.mirrorIndex)) return;
+  const s = areaScaleForSigma(rc.spec, site.mirrorIndex, site.outputIndex, target);
+  if (s === undefined) return;
+  for (const ss of [s, s * 1.03, s * 1.1]) {
+    yield candidate('area', () => {
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file);
+      return p && plan(rc, site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
+    });
+  }
+}
+
+/** Resize one device so a mirror output meets scale-free set values (w, l, m). */
+function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: KeyInsert[], title: (notes: string) => string, family: string): FixPlan | undefined {
+  const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file);
+  if (!p) return undefined;
+  let edits = p.edits;
+  if (extra.length > 0) {
+    // Compose with the extra insertions: apply the size edits, then insert on the result.
+    const merged = buildEditsAfter(rc, edits, extra);
+    if (!merged) return undefined;
+    edits = merged;
+  }
+  return plan(rc, site.mirrorIndex, title(notesText(p.notes)), edits, family);
+}
+
+function buildEditsAfter(rc: RuleContext, first: TextEdit[], extra: KeyInsert[]): TextEdit[] | undefined {
+  return buildEdits(rc.parsed, first, extra, rc.file);
+}
+
+/**
+ * W of the ratio device for the target ratio (length modulation included), then m when an
+ * integer count hits the target. `stateRatio`: also write `require.ratio` (the intent was
+ * the geometric ratio, which the new width no longer shows).
+ */
+export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, target: number, stateRatio: boolean): Generator<Candidate> {
+  if (!fixable(rc, site.mirrorIndex)) return;
+  const size = sizeOf(rc.spec, device);
+  if (!size) return;
+  const extra: KeyInsert[] = stateRatio ? [{ parent: [...site.path, 'require'], key: 'ratio', text: shortDecimal(target, 6) }] : [];
+  const stated = stateRatio ? ` and state require.ratio ${shortDecimal(target, 6)}` : '';
+  const w = widthForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
+  if (w !== undefined) {
+    const grid = rc.spec.process.grid;
+    const seen = new Set<number>();
+    for (const dir of ['nearest', 'up', 'down'] as const) {
+      const value = quantizeSize(w, grid, dir);
+      if (seen.has(value)) continue;
+      seen.add(value);
+      yield candidate('ratio-w', () => devicePlan(rc, site, [{ ref: device, key: 'w', value }], extra,
+        (notes) => `Size \`${device.role}\` for ratio ${shortDecimal(target, 6)} including length modulation${stated}: ${notes}`, 'ratio-w'));
+    }
+  }
+  if (!stateRatio) {
+    const m = countForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
+    if (m !== undefined) {
+      yield candidate('ratio-m', () => devicePlan(rc, site, [{ ref: device, key: 'm', value: m }], [], (notes) => `Use ${m} parallel \`${device.role}\` devices: ${notes}`, 'ratio-m'));
+    }
+  }
+}
+
+/** Set one device's size keys (e.g. raise L to lmin at constant W/L). */
+export function* setSizePlans(rc: RuleContext, site: Site, changes: () => SizeChange[], title: (notes: string) => string, family: string): Generator<Candidate> {
+  if (!fixable(rc, site.mirrorIndex)) return;
+  yield candidate(family, () => devicePlan(rc, site, changes(), [], title, family));
+}
+
+/** Write qpoint's own vbias pick in place of the written one (rounded to 1 mV). */
+export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Generator<Candidate> {
+  const picked = pickedVbias(rc.spec, site.mirrorIndex, site.outputIndex);
+  if (picked === undefined) return;
+  const path = ['mirrors', site.mirrorIndex, 'vbias'];
+  const range = rc.parsed.source.value(path);
+  if (!range) return;
+  const token = textAt(rc.parsed.text, range);
+  const seen = new Set<number>();
+  for (const dir of ['up', 'nearest', 'down'] as const) {
+    const mv = dir === 'up' ? Math.ceil(picked * 1000 - 1e-9) : dir === 'down' ? Math.floor(picked * 1000 + 1e-9) : Math.round(picked * 1000);
+    const v = mv / 1000;
+    if (seen.has(v)) continue;
+    seen.add(v);
+    yield candidate('vbias', () => {
+      const edit = replaceValueEdit(rc.parsed, path, formatValue('v', v, token, rc.json));
+      return edit && plan(rc, site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
+    });
+  }
+}
+
+/** `kind: wilson` → `wilson-balanced`; `bal` is the unit device unless out's current density needs another width. */
+export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate> {
+  const m = site.mirror;
+  if (m.kind !== 'wilson') return;
+  const path = ['mirrors', site.mirrorIndex, 'kind'];
+  const range = rc.parsed.source.value(path);
+  if (!range) return;
+  const token = textAt(rc.parsed.text, range);
+  const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(token, 'wilson-balanced'));
+  if (!kindEdit) return;
+  const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
+  yield candidate('balanced', () => plan(rc, site.mirrorIndex, title, [kindEdit], 'balanced'));
+  const ratio = site.report.ratioIdeal ?? site.report.ratio;
+  const bal = balancedBalSize(m, ratio);
+  if (bal && fixable(rc, site.mirrorIndex)) {
+    const w = quantizeSize(bal.w, rc.spec.process.grid, 'nearest');
+    const unit = sizeOf(rc.spec, { mirror: site.mirrorIndex, role: 'in' });
+    const extra: KeyInsert[] = [{ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'w', text: formatValue('w', w, undefined, rc.json) }];
+    if (bal.l !== unit?.l) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'l', text: formatValue('l', bal.l, undefined, rc.json) });
+    if (bal.m !== 1) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'm', text: formatValue('m', bal.m, undefined, rc.json) });
+    yield candidate('balanced', () => plan(rc, site.mirrorIndex, `${title}, \`bal\` W ${formatValue('w', w, undefined, false)} for out's current density`,
+      buildEdits(rc.parsed, [kindEdit], extra, rc.file), 'balanced'));
+  }
+}
+
+/** `process.model: ekv` (whole-file scope). */
+export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Candidate> {
+  yield candidate('model', () => modelPlan(rc, mirrorIndex));
+}
+
+function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
+  const path = ['process', 'model'];
+  const range = rc.parsed.source.value(path);
+  let edits: TextEdit[] | undefined;
+  if (range) {
+    const token = textAt(rc.parsed.text, range);
+    const e = replaceValueEdit(rc.parsed, path, quotedLike(token, 'ekv'));
+    edits = e ? [e] : undefined;
+  } else {
+    edits = buildEdits(rc.parsed, [], [{ parent: ['process'], key: 'model', text: rc.json ? '"ekv"' : 'ekv' }], rc.file);
+  }
+  if (!edits) return undefined;
+  return { title: 'Use the EKV model (`model: ekv`), valid from weak to strong inversion', edits, scope: 'spec', mirrorIndex, family: 'model' };
+}
+
+/** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
+function quotedLike(token: string, word: string): string {
+  const q = token.trim()[0];
+  return q === '"' || q === "'" ? `${q}${word}${q}` : word;
+}

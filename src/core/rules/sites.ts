@@ -1,0 +1,165 @@
+/**
+ * Where a report and its devices live: in the resolved spec (mirror, output, sizes) and in the
+ * source (which token a size comes from). A size can be written at three levels — an output's
+ * own `devices:` in a bias bank, the mirror's `devices:` per role, and the mirror's `size:` unit
+ * device — and the nearest one wins, exactly as the spec elaborates it.
+ */
+import type {
+  DeviceReport, DeviceSize, MirrorOutput, MirrorReport, Range, Requirements, ResolvedMirror,
+  ResolvedSpec, SpecPath, TemplateMirror,
+} from '../types';
+import { OUTPUT_ROLES } from '../types';
+import type { ParsedSpec } from '../spec/index';
+import type { DeviceRef, SizeKey } from '../sizing/devices';
+
+export type { DeviceRef, SizeKey };
+
+/** One report in its context. */
+export interface Site {
+  report: MirrorReport;
+  mirrorIndex: number;
+  outputIndex: number;
+  mirror: ResolvedMirror;
+  output?: MirrorOutput;
+  vout: number;
+  range?: [number, number];
+  require: Requirements;
+  /** The report's path: ['mirrors', i] or ['mirrors', i, 'outputs', j]. */
+  path: SpecPath;
+}
+
+export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefined {
+  const p = report.path;
+  const mirrorIndex = typeof p[1] === 'number' ? p[1] : -1;
+  const mirror = spec.mirrors[mirrorIndex];
+  if (!mirror) return undefined;
+  const outputIndex = p.length >= 4 && typeof p[3] === 'number' ? p[3] : 0;
+  if (mirror.kind === 'netlist') {
+    return { report, mirrorIndex, outputIndex: 0, mirror, vout: mirror.output.v, range: mirror.output.range, require: mirror.require, path: p };
+  }
+  const output = mirror.outputs[outputIndex];
+  if (!output) return undefined;
+  return { report, mirrorIndex, outputIndex, mirror, output, vout: output.output.v, range: output.output.range, require: output.require, path: p };
+}
+
+export function isBank(mirror: ResolvedMirror): boolean {
+  return mirror.kind !== 'netlist' && mirror.outputs.some((o) => o.path.length > 2);
+}
+
+/** The device a DeviceReport describes. Bank output devices are named `<output>.<role>`. */
+export function refOf(site: Site, d: DeviceReport): DeviceRef {
+  const m = site.mirror;
+  if (m.kind === 'netlist') return { mirror: site.mirrorIndex, role: d.name };
+  if (!OUTPUT_ROLES[m.kind].includes(d.role)) return { mirror: site.mirrorIndex, role: d.role };
+  const dot = d.name.lastIndexOf('.');
+  if (dot > 0) {
+    const j = m.outputs.findIndex((o) => o.name === d.name.slice(0, dot));
+    if (j >= 0) return { mirror: site.mirrorIndex, role: d.role, output: j };
+  }
+  return { mirror: site.mirrorIndex, role: d.role, output: site.outputIndex };
+}
+
+/** Where a device-only value goes: the output's `devices.<role>` in a bank, else the mirror's. */
+export function overridePath(spec: ResolvedSpec, ref: DeviceRef): SpecPath {
+  const m = spec.mirrors[ref.mirror];
+  if (m && m.kind !== 'netlist' && ref.output !== undefined) {
+    const out = m.outputs[ref.output];
+    if (out && out.path.length > 2) return [...out.path, 'devices', ref.role];
+  }
+  return ['mirrors', ref.mirror, 'devices', ref.role];
+}
+
+/** Candidate source paths of a size value, nearest first. */
+function sourceCandidates(spec: ResolvedSpec, ref: DeviceRef, key: SizeKey): SpecPath[] {
+  const m = spec.mirrors[ref.mirror];
+  if (!m) return [];
+  if (m.kind === 'netlist') return [['mirrors', ref.mirror, 'devices', ref.role, key]];
+  const own = overridePath(spec, ref);
+  const paths: SpecPath[] = [[...own, key]];
+  const mirrorLevel: SpecPath = ['mirrors', ref.mirror, 'devices', ref.role, key];
+  if (own.length !== 4) paths.push(mirrorLevel);
+  paths.push(['mirrors', ref.mirror, 'size', key]);
+  return paths;
+}
+
+export interface SizeToken { path: SpecPath; range: Range; text: string }
+
+/** The token a device's size value is written in, or undefined (a default, or `auto`). */
+export function sizeToken(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef, key: SizeKey): SizeToken | undefined {
+  for (const path of sourceCandidates(spec, ref, key)) {
+    const range = parsed.source.value(path);
+    if (range) return { path, range, text: textAt(parsed.text, range) };
+  }
+  return undefined;
+}
+
+/** True when a token belongs to this device alone (not the shared `size:`). */
+export function isDeviceLevel(token: SizeToken): boolean {
+  return token.path[2] === 'devices' || token.path[2] === 'outputs';
+}
+
+export function isAutoSized(spec: ResolvedSpec, mirrorIndex: number): boolean {
+  const m = spec.mirrors[mirrorIndex];
+  if (!m || m.kind === 'netlist') return false;
+  const auto = (d: DeviceSize) => !!(d.auto && (d.auto.w || d.auto.l));
+  return Object.values(m.devices).some(auto) || m.outputs.some((o) => Object.values(o.devices).some(auto));
+}
+
+/**
+ * The narrowest range for a finding about a device: its own size token (first of `keys` that is
+ * written at device level), else its key under `devices:`, else the mirror's name.
+ */
+export function deviceRange(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef, keys: SizeKey[]): { path: SpecPath; range: Range } {
+  for (const key of keys) {
+    const tok = sizeToken(parsed, spec, ref, key);
+    if (tok && isDeviceLevel(tok)) return { path: tok.path, range: tok.range };
+  }
+  const own = overridePath(spec, ref);
+  const keyRange = parsed.source.key(own);
+  if (keyRange) return { path: own, range: keyRange };
+  if (own.length !== 4) {
+    const mirrorLevel: SpecPath = ['mirrors', ref.mirror, 'devices', ref.role];
+    const r = parsed.source.key(mirrorLevel);
+    if (r) return { path: mirrorLevel, range: r };
+  }
+  return mirrorRange(parsed, ref.mirror);
+}
+
+/** The mirror's `name` value (else its item). */
+export function mirrorRange(parsed: ParsedSpec, mirrorIndex: number): { path: SpecPath; range: Range } {
+  const path: SpecPath = ['mirrors', mirrorIndex, 'name'];
+  const r = parsed.source.value(path);
+  if (r) return { path, range: r };
+  return { path: ['mirrors', mirrorIndex], range: parsed.source.rangeFor(['mirrors', mirrorIndex]) };
+}
+
+/** A value's range, else its key's, else the nearest ancestor's. */
+export function valueRange(parsed: ParsedSpec, path: SpecPath): { path: SpecPath; range: Range } {
+  return { path, range: parsed.source.rangeFor(path) };
+}
+
+/** The mirror's `kind` value (else its name). */
+export function kindRange(parsed: ParsedSpec, mirrorIndex: number): { path: SpecPath; range: Range } {
+  const path: SpecPath = ['mirrors', mirrorIndex, 'kind'];
+  const r = parsed.source.value(path);
+  return r ? { path, range: r } : mirrorRange(parsed, mirrorIndex);
+}
+
+/** The source text of a range (LSP positions). */
+export function textAt(text: string, r: Range): string {
+  const offset = (p: { line: number; character: number }): number => {
+    let at = 0;
+    for (let line = 0; line < p.line; line++) {
+      const nl = text.indexOf('\n', at);
+      if (nl < 0) return text.length;
+      at = nl + 1;
+    }
+    return Math.min(at + p.character, text.length);
+  };
+  return text.slice(offset(r.start), offset(r.end));
+}
+
+/** Reference roles of a template mirror (the shared part of a bank). */
+export function templateOf(mirror: ResolvedMirror): TemplateMirror | undefined {
+  return mirror.kind === 'netlist' ? undefined : mirror;
+}

@@ -1,0 +1,45 @@
+/**
+ * Snapping computed sizes to what a layout can draw: `process.grid` when given, else a short
+ * decimal (three significant digits) so the file stays readable. The direction is chosen by the
+ * caller so that rounding keeps the requirement (a width that must grow rounds up).
+ */
+
+export type RoundDirection = 'up' | 'down' | 'nearest';
+
+/** Round `value` to a multiple of `grid` (m), never below one grid step. */
+export function snapToGrid(value: number, grid: number, direction: RoundDirection): number {
+  const steps = value / grid;
+  // Tolerate floating-point noise so an on-grid value stays put (3.4u / 10n = 339.99999…).
+  const near = Math.round(steps);
+  let n: number;
+  if (Math.abs(steps - near) < 1e-6) n = near;
+  else if (direction === 'up') n = Math.ceil(steps);
+  else if (direction === 'down') n = Math.floor(steps);
+  else n = near;
+  return cleanDecimal(Math.max(n, 1) * grid);
+}
+
+/** Round to `digits` significant decimal digits in the given direction. */
+export function roundSignificant(value: number, digits: number, direction: RoundDirection): number {
+  if (value === 0 || !Number.isFinite(value)) return value;
+  const exponent = Math.floor(Math.log10(Math.abs(value))) - digits + 1;
+  const scale = Math.pow(10, exponent);
+  const steps = value / scale;
+  const near = Math.round(steps);
+  let n: number;
+  if (Math.abs(steps - near) < 1e-9 * Math.abs(steps)) n = near;
+  else if (direction === 'up') n = Math.ceil(steps);
+  else if (direction === 'down') n = Math.floor(steps);
+  else n = near;
+  return cleanDecimal(n * scale);
+}
+
+/** A size the fix will write: on the grid if there is one, else to `digits` significant digits. */
+export function quantizeSize(value: number, grid: number | undefined, direction: RoundDirection, digits = 3): number {
+  return grid !== undefined && grid > 0 ? snapToGrid(value, grid, direction) : roundSignificant(value, digits, direction);
+}
+
+/** Drop binary noise (3.4000000000000003e-6 → 3.4e-6) without moving the value by more than 1e-12 relative. */
+export function cleanDecimal(value: number): number {
+  return Number(value.toPrecision(12));
+}

@@ -1,0 +1,114 @@
+/**
+ * Text → YAML document (positions kept) → plain data. YAML 1.2; JSON goes through the same
+ * parser. Never throws: unreadable input, syntax errors, alias bombs and runaway nesting become
+ * findings, and `parsed` is false when there is no data to check.
+ */
+import { isMap, isScalar, isSeq, parseDocument } from 'yaml';
+import type { Document, Node } from 'yaml';
+import type { Finding } from '../types';
+import { SPEC_LIMITS } from '../defaults';
+import { LineIndex } from './positions';
+
+export interface ReadDocument {
+  doc?: Document;
+  data?: unknown;
+  parsed: boolean;
+  findings: Finding[];
+}
+
+// C0 controls other than tab, LF, CR; DEL; U+FFFD (what a decoder leaves for invalid UTF-8).
+const BINARY = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F\uFFFD]/;
+
+function at(lines: LineIndex, start: number, end: number, code: string, message: string, severity: Finding['severity'] = 'error'): Finding {
+  return { severity, code, message, path: [], range: lines.range(start, end) };
+}
+
+/** The parser's message without its position suffix and code excerpt. */
+function firstLine(message: string): string {
+  return message.split('\n')[0].replace(/ at line \d+, column \d+:?$/, '').trim();
+}
+
+function sizeText(n: number): string {
+  return n >= 1 << 20 ? `${(n / (1 << 20)).toFixed(1)} MB` : `${Math.ceil(n / 1024)} KB`;
+}
+
+/** Duplicate keys: the later one wins in the data, so it is the one flagged. */
+function duplicateKeys(doc: Document, lines: LineIndex, out: Finding[]): void {
+  const stack: { node: unknown; depth: number }[] = [{ node: doc.contents, depth: 0 }];
+  while (stack.length) {
+    const { node, depth } = stack.pop()!;
+    if (depth > 10_000) continue;
+    if (isMap(node)) {
+      const first = new Map<string, Node>();
+      for (const pair of node.items) {
+        const k = pair.key;
+        if (isScalar(k)) {
+          const name = String(k.value);
+          const earlier = first.get(name);
+          if (earlier && name !== '<<' && k.range && earlier.range) {
+            const line = lines.position(earlier.range[0]).line + 1;
+            out.push(at(lines, k.range[0], k.range[1], 'duplicate-key',
+              `\`${name}\` is given twice in this mapping (first on line ${line}); the later one is used — remove one`));
+          } else if (!earlier) {
+            first.set(name, k);
+          }
+        }
+        stack.push({ node: pair.value, depth: depth + 1 });
+      }
+    } else if (isSeq(node)) {
+      for (const item of node.items) stack.push({ node: item, depth: depth + 1 });
+    }
+  }
+}
+
+export function readDocument(text: string, lines: LineIndex): ReadDocument {
+  if (text.length > SPEC_LIMITS.maxChars) {
+    return { parsed: false, findings: [at(lines, 0, 0, 'too-large',
+      `the file is ${sizeText(text.length)}; qpoint reads bias specs up to ${sizeText(SPEC_LIMITS.maxChars)} — split it into several files`)] };
+  }
+  const bin = BINARY.exec(text);
+  if (bin) {
+    const code = bin[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, '0');
+    return { parsed: false, findings: [at(lines, bin.index, bin.index + 1, 'binary-input',
+      `the file holds a control or invalid byte (U+${code}); a bias spec is UTF-8 text`)] };
+  }
+  const findings: Finding[] = [];
+  let doc: Document;
+  try {
+    doc = parseDocument(text, { uniqueKeys: false, merge: true, prettyErrors: false, strict: true, version: '1.2', resolveKnownTags: false });
+  } catch (e) {
+    return { parsed: false, findings: [at(lines, 0, 0, 'yaml-syntax', `the file cannot be read as YAML: ${e instanceof Error ? e.message : String(e)}`)] };
+  }
+  if (doc.errors.length) {
+    const deep = doc.errors.find((e) => e.code === 'RESOURCE_EXHAUSTION');
+    if (deep) {
+      findings.push(at(lines, deep.pos[0], deep.pos[1], 'too-deep',
+        'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it'));
+    } else {
+      const max = SPEC_LIMITS.maxSyntaxFindings;
+      for (const e of doc.errors.slice(0, max)) findings.push(at(lines, e.pos[0], e.pos[1], 'yaml-syntax', firstLine(e.message)));
+      if (doc.errors.length > max) findings[findings.length - 1].message += ` (and ${doc.errors.length - max} more syntax errors)`;
+    }
+    return { doc, parsed: false, findings };
+  }
+  if (doc.contents === null || (isScalar(doc.contents) && doc.contents.value === null)) {
+    return { doc, parsed: true, findings: [at(lines, 0, 0, 'empty-spec', 'the file is empty; a bias spec starts with `format: 1`, then `process`, `supplies` and `mirrors`')] };
+  }
+  for (const w of doc.warnings) findings.push(at(lines, w.pos[0], w.pos[1], 'yaml-warning', firstLine(w.message), 'warning'));
+  duplicateKeys(doc, lines, findings);
+  let data: unknown;
+  try {
+    data = doc.toJS({ maxAliasCount: SPEC_LIMITS.maxAliasCount });
+  } catch (e) {
+    const msg = e instanceof Error ? e.message : String(e);
+    if (/alias/i.test(msg)) {
+      findings.push(at(lines, 0, 0, 'too-many-aliases', `the file expands more than ${SPEC_LIMITS.maxAliasCount} aliases; qpoint stops there (an alias bomb?)`));
+    } else if (e instanceof RangeError) {
+      findings.push(at(lines, 0, 0, 'too-deep', 'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it'));
+    } else {
+      findings.push(at(lines, 0, 0, 'yaml-syntax', `the file cannot be converted to data: ${msg}`));
+    }
+    return { doc, parsed: false, findings };
+  }
+  return { doc, data, parsed: true, findings };
+}

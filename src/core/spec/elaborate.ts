@@ -1,0 +1,99 @@
+/**
+ * The one pass that turns checked data into a ResolvedSpec with every default filled
+ * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
+ * value becomes a finding at that value, never an exception.
+ */
+import { ROLES } from '../types';
+import type { DeviceParams, MirrorKind, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, TemplateKind } from '../types';
+import { readCorners } from './corners';
+import type { FindingSink } from './findings';
+import { readTemplateMirror } from './mirror';
+import { readNetlistMirror } from './netlist';
+import { isRecord, resolveParams } from './params';
+import { readLimits, readProcess, readSupplies } from './process';
+import { missing, readEnum, readMap, readString } from './read';
+import { typeName } from './values';
+
+const KINDS: readonly MirrorKind[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist'];
+
+/** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
+export function elaborate(data: unknown, sink: FindingSink): ResolvedSpec | undefined {
+  if (!isRecord(data)) {
+    sink.error('wrong-type', `a bias spec is a mapping (\`format: 1\`, \`process\`, \`supplies\`, \`mirrors\`); got ${typeName(data)}`, [], undefined, 'type');
+    return undefined;
+  }
+  let formatOk = true;
+  if (data.format === undefined) {
+    missing(sink, [], 'format', ' (write `format: 1` first)');
+  } else if (data.format !== 1) {
+    sink.error('bad-value', `this qpoint reads \`format: 1\`; got ${typeName(data.format)}`, ['format'], undefined, 'enum');
+    formatOk = false;
+  }
+  const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
+  const scope = resolveParams(data.params, sink);
+  const proc = readProcess(scope, data.process);
+  const supplies = readSupplies(scope, data.supplies);
+  const limits = readLimits(scope, data.limits);
+
+  const mirrors: ResolvedMirror[] = [];
+  const used = new Map<Polarity, string>();  // polarity → first mirror using it
+  if (data.mirrors === undefined) missing(sink, [], 'mirrors', ' (the list of current mirrors)');
+  const list = data.mirrors === undefined ? [] : Array.isArray(data.mirrors) ? data.mirrors : undefined;
+  if (!list) sink.error('wrong-type', `\`mirrors\` must be a list; got ${typeName(data.mirrors)}`, ['mirrors'], undefined, 'type');
+  const names = new Map<string, number>();
+  (list ?? []).forEach((item: unknown, i: number) => {
+    const path = ['mirrors', i];
+    const m = readMap(sink, item, path, 'a mapping { name, kind, type, … }');
+    if (!m) return;
+    if (m.name === undefined) missing(sink, path, 'name', ' (mirror name)');
+    if (m.kind === undefined) missing(sink, path, 'kind', ` (one of ${KINDS.join(', ')})`);
+    const name = m.name === undefined ? undefined : readString(sink, m.name, [...path, 'name']);
+    const kind = m.kind === undefined ? undefined : readEnum<MirrorKind>(sink, m.kind, [...path, 'kind'], KINDS);
+    if (m.type === undefined && kind !== 'netlist') missing(sink, path, 'type', ' (nmos or pmos)');
+    const type = m.type === undefined ? undefined : readEnum<Polarity>(sink, m.type, [...path, 'type'], ['nmos', 'pmos']);
+    if (name !== undefined) {
+      const first = names.get(name);
+      if (first !== undefined) sink.error('duplicate-name', `mirror name \`${name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
+      else names.set(name, i);
+    }
+    if (!name || !kind) return;
+    if (kind === 'netlist') {
+      const nm = readNetlistMirror(scope, m, i, name, type, supplies);
+      if (nm) {
+        for (const d of nm.devices) if (!used.has(d.type)) used.set(d.type, name);
+        mirrors.push(nm);
+      }
+      return;
+    }
+    if (!type) return;
+    if (!used.has(type)) used.set(type, name);
+    const tm = readTemplateMirror(scope, m, i, { name, kind: kind as TemplateKind, type }, proc?.[type], supplies);
+    if (tm) mirrors.push(tm);
+  });
+
+  // Each polarity a mirror uses must have parameters; an unused one borrows the other's so the
+  // resolved process is complete (nothing reads it).
+  let process: ProcessSpec | undefined;
+  if (proc) {
+    for (const [type, mirror] of used) {
+      if (!proc.written.has(type)) missing(sink, ['process'], type, ` (mirror \`${mirror}\` uses ${type} devices)`);
+    }
+    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos);
+    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos);
+    if (!proc.written.has('nmos') && !proc.written.has('pmos')) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
+    if (nmos && pmos && proc.ok) {
+      process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
+      if (proc.grid !== undefined) process.grid = proc.grid;
+    }
+  }
+  const corners = data.corners === undefined ? [] : readCorners(scope, data.corners, process, supplies);
+  if (!formatOk || !process || !supplies || !limits) return undefined;
+  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors, corners };
+  if (title !== undefined) spec.title = title;
+  return spec;
+}
+
+/** Roles a template kind has (re-exported for front ends that list them). */
+export function rolesOf(kind: TemplateKind): readonly string[] {
+  return ROLES[kind];
+}

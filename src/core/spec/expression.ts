@@ -1,0 +1,223 @@
+/**
+ * Expressions over params (design §2): `2*wu`, `wu/2 + 0.1u`, `sqrt(2)*1.5u`.
+ *
+ * A spec is untrusted text. Expressions are parsed by a mathjs instance made with create(all) in
+ * which the functions that parse, compile or change the instance are replaced by refusals (the
+ * list of mathjs.org/docs/expressions/security.html, plus compile, reviver and resolve). Before
+ * anything is evaluated the node tree is walked and only numbers, param names, pi and e, the
+ * arithmetic operators + − × ÷ ^ and the functions of EXPRESSION_FUNCTIONS pass. mathjs runs at
+ * parse time only; the resolved spec holds numbers.
+ *
+ * SI prefixes directly after a number are expanded first (`1.5u` → `1.5e-6`); a param named
+ * `wu` or `u` is untouched because identifiers are read whole. A number directly followed by any
+ * other letters (`2wu`, `10uA`) is refused: write `2*wu`, and leave units out of expressions.
+ */
+import { all, create } from 'mathjs';
+import { prefixExponent, PREFIX_SYMBOLS } from '../units/prefixes';
+import { SPEC_LIMITS } from '../defaults';
+
+export const EXPRESSION_FUNCTIONS: readonly string[] = ['sqrt', 'min', 'max', 'abs', 'exp', 'log', 'log10', 'pow', 'round', 'ceil', 'floor'];
+export const EXPRESSION_CONSTANTS: readonly string[] = ['pi', 'e'];
+const OPERATORS = new Set(['add', 'subtract', 'multiply', 'divide', 'pow', 'unaryMinus', 'unaryPlus']);
+
+export type ExpressionCode = 'bad-expression' | 'refused-expression' | 'unknown-param';
+
+export type ExpressionResult =
+  | { ok: true; value: number }
+  /** start/end: character span in the expression text that the message is about. */
+  | { ok: false; code: ExpressionCode; message: string; start?: number; end?: number; name?: string };
+
+/** The slice of a mathjs node that the checker reads. */
+interface ExprNode {
+  type: string;
+  value?: unknown;
+  name?: string;
+  op?: string;
+  fn?: unknown;
+  implicit?: boolean;
+  args?: ExprNode[];
+  content?: ExprNode;
+  compile(): { evaluate(scope?: Map<string, number>): unknown };
+}
+
+interface LockedMath { parse(text: string): ExprNode }
+
+let locked: LockedMath | undefined;
+
+/** The locked-down instance, made once on first use (creating it costs ~20 ms). */
+function lockedMath(): LockedMath {
+  if (locked) return locked;
+  const math = create(all, { predictable: true });
+  const parse = math.parse.bind(math) as unknown as (text: string) => ExprNode;
+  const refuse = (name: string) => () => {
+    throw new Error(`${name} is disabled in qpoint expressions`);
+  };
+  const disabled: Record<string, () => never> = {};
+  for (const name of ['import', 'createUnit', 'evaluate', 'parse', 'simplify', 'simplifyConstant', 'simplifyCore',
+    'derivative', 'compile', 'reviver', 'replacer', 'resolve', 'rationalize', 'leafCount', 'symbolicEqual', 'parser', 'chain', 'help']) {
+    disabled[name] = refuse(name);
+  }
+  math.import(disabled, { override: true });
+  locked = { parse };
+  return locked;
+}
+
+interface Token { name: string; start: number; end: number }
+
+type Prepared = { ok: true; text: string; identifiers: Token[] } | Extract<ExpressionResult, { ok: false }>;
+
+const IDENT_START = /[A-Za-z_]/;
+const IDENT = /[A-Za-z0-9_]/;
+const NUMBER = /^(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?/;
+
+/** Expand SI prefixes after numbers and collect identifiers with their offsets. */
+function prepare(src: string): Prepared {
+  let out = '';
+  const identifiers: Token[] = [];
+  let i = 0;
+  while (i < src.length) {
+    const ch = src[i];
+    if (IDENT_START.test(ch)) {
+      let j = i + 1;
+      while (j < src.length && IDENT.test(src[j])) j++;
+      identifiers.push({ name: src.slice(i, j), start: i, end: j });
+      out += src.slice(i, j);
+      i = j;
+      continue;
+    }
+    const num = /[0-9.]/.test(ch) ? NUMBER.exec(src.slice(i)) : null;
+    if (num) {
+      const j = i + num[0].length;
+      let rest = j;
+      while (rest < src.length && (IDENT.test(src[rest]) || src[rest] === '\u00B5' || src[rest] === '\u03BC')) rest++;
+      const suffix = src.slice(j, rest);
+      let exponent = 0;
+      if (suffix) {
+        const p = prefixExponent(suffix);
+        if (p === undefined) {
+          const pre = PREFIX_SYMBOLS.find((s) => suffix.startsWith(s));
+          const hint = pre && /^[A-Za-z]/.test(suffix.slice(pre.length))
+            ? 'inside an expression a number may carry an SI prefix but no unit'
+            : `write \`${num[0]}*${suffix}\` to multiply`;
+          return { ok: false, code: 'bad-expression', message: `\`${src.slice(i, rest)}\`: ${hint}`, start: i, end: rest };
+        }
+        exponent = p;
+      }
+      const eAt = num[0].search(/[eE]/);
+      const mant = eAt < 0 ? num[0] : num[0].slice(0, eAt);
+      const e10 = (eAt < 0 ? 0 : Number(num[0].slice(eAt + 1))) + exponent;
+      out += e10 === 0 ? mant : `${mant}e${e10}`;
+      i = rest;
+      continue;
+    }
+    out += ch;
+    i++;
+  }
+  return { ok: true, text: out, identifiers };
+}
+
+/** Names a text refers to (for the params dependency order); undefined when it does not scan. */
+export function referencedNames(text: string): string[] | undefined {
+  const p = prepare(text);
+  if (!p.ok) return undefined;
+  const fns = new Set([...EXPRESSION_FUNCTIONS, ...EXPRESSION_CONSTANTS]);
+  return [...new Set(p.identifiers.map((t) => t.name).filter((n) => !fns.has(n)))];
+}
+
+const REFUSED: Record<string, string> = {
+  AssignmentNode: 'assignment (`=`) is not allowed',
+  FunctionAssignmentNode: 'defining a function is not allowed',
+  AccessorNode: 'property and index access is not allowed',
+  IndexNode: 'property and index access is not allowed',
+  ObjectNode: 'objects are not allowed',
+  BlockNode: 'several statements (`;` or a new line) are not allowed',
+  ArrayNode: 'matrices and lists are not allowed',
+  RangeNode: 'ranges (`a:b`) are not allowed',
+  ConditionalNode: 'conditionals (`? :`) are not allowed',
+  RelationalNode: 'comparisons are not allowed',
+};
+
+type Refusal = { code: ExpressionCode; message: string; name?: string };
+
+function check(node: ExprNode, symbols: Set<string>, depth: number): Refusal | undefined {
+  if (depth > 64) return { code: 'bad-expression', message: 'the expression nests too deeply' };
+  switch (node.type) {
+    case 'ConstantNode':
+      return typeof node.value === 'number' ? undefined
+        : { code: 'refused-expression', message: `only numbers may appear; \`${String(node.value)}\` is ${typeof node.value === 'string' ? 'a string' : 'not a number'}` };
+    case 'SymbolNode':
+      symbols.add(node.name ?? '');
+      return undefined;
+    case 'ParenthesisNode':
+      return node.content ? check(node.content, symbols, depth + 1) : undefined;
+    case 'OperatorNode': {
+      if (node.implicit) return { code: 'bad-expression', message: 'write `*` to multiply (implicit multiplication is not allowed)' };
+      const fn = String(node.fn);
+      if (!OPERATORS.has(fn)) return { code: 'refused-expression', message: `operator \`${node.op ?? fn}\` is not allowed; use + - * / ^` };
+      for (const a of node.args ?? []) {
+        const r = check(a, symbols, depth + 1);
+        if (r) return r;
+      }
+      return undefined;
+    }
+    case 'FunctionNode': {
+      const fn = node.fn as ExprNode | undefined;
+      const name = fn?.type === 'SymbolNode' ? fn.name ?? '' : '';
+      if (!EXPRESSION_FUNCTIONS.includes(name)) {
+        return { code: 'refused-expression', name,
+          message: `function \`${name || '(computed)'}\` is not allowed; allowed: ${EXPRESSION_FUNCTIONS.join(', ')}` };
+      }
+      for (const a of node.args ?? []) {
+        const r = check(a, symbols, depth + 1);
+        if (r) return r;
+      }
+      return undefined;
+    }
+    default:
+      return { code: 'refused-expression', message: REFUSED[node.type] ?? `\`${node.type}\` is not allowed in an expression` };
+  }
+}
+
+/**
+ * Evaluate an expression over `scope` (param name → value). Never throws. `start`/`end` on a
+ * failure point into `text` where possible.
+ */
+export function evaluateExpression(text: string, scope: ReadonlyMap<string, number>): ExpressionResult {
+  if (text.length > SPEC_LIMITS.maxExpressionLength) {
+    return { ok: false, code: 'bad-expression', message: `the expression is ${text.length} characters long; the limit is ${SPEC_LIMITS.maxExpressionLength}` };
+  }
+  const prep = prepare(text);
+  if (!prep.ok) return prep;
+  let node: ExprNode;
+  try {
+    node = lockedMath().parse(prep.text);
+  } catch (e) {
+    const msg = e instanceof Error ? e.message.replace(/\s*\(char \d+\)$/, '') : 'cannot be read';
+    return { ok: false, code: 'bad-expression', message: `\`${text.trim()}\` is not a valid expression: ${msg}` };
+  }
+  const symbols = new Set<string>();
+  const refusal = check(node, symbols, 0);
+  const at = (name: string | undefined) => prep.identifiers.find((t) => t.name === name);
+  if (refusal) {
+    const t = at(refusal.name);
+    return { ok: false, ...refusal, start: t?.start, end: t?.end };
+  }
+  for (const s of symbols) {
+    if (!scope.has(s) && !EXPRESSION_CONSTANTS.includes(s)) {
+      const t = at(s);
+      return { ok: false, code: 'unknown-param', name: s, message: `\`${s}\` is not a param`, start: t?.start, end: t?.end };
+    }
+  }
+  let value: unknown;
+  try {
+    const vars = new Map<string, number>();
+    for (const s of symbols) if (scope.has(s)) vars.set(s, scope.get(s)!);
+    value = node.compile().evaluate(vars);
+  } catch (e) {
+    return { ok: false, code: 'bad-expression', message: `\`${text.trim()}\` cannot be evaluated: ${e instanceof Error ? e.message : String(e)}` };
+  }
+  if (typeof value !== 'number' || !Number.isFinite(value)) {
+    return { ok: false, code: 'bad-expression', message: `\`${text.trim()}\` evaluates to ${typeof value === 'number' ? String(value) : 'something that is not a number'}` };
+  }
+  return { ok: true, value };
+}

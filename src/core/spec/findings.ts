@@ -1,0 +1,50 @@
+/** Collects spec findings at the narrowest range, once each. Codes: docs/findings.md. */
+import type { Finding, Range, Severity, SpecPath } from '../types';
+import type { YamlSourceMap } from './source-map';
+
+/** `mirrors[0].devices.out.w` */
+export function formatPath(path: SpecPath): string {
+  let s = '';
+  for (const seg of path) s += typeof seg === 'number' ? `[${seg}]` : s ? `.${seg}` : seg;
+  return s || '(root)';
+}
+
+export class FindingSink {
+  readonly list: Finding[] = [];
+  private readonly seen = new Set<string>();
+  private errors = 0;
+
+  constructor(readonly src: YamlSourceMap) {}
+
+  /**
+   * Add a finding. `once` names the fact (e.g. 'missing-key:size'); a second finding with the same
+   * fact at the same path is dropped, so the schema and the elaborator never report one thing twice.
+   */
+  add(severity: Severity, code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
+    const key = `${once ?? code}@${JSON.stringify(path)}`;
+    if (this.seen.has(key)) return;
+    this.seen.add(key);
+    if (severity === 'error') this.errors++;
+    this.list.push({ severity, code, message, path, range: range ?? this.src.narrow(path) });
+  }
+
+  error(code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
+    this.add('error', code, message, path, range, once);
+  }
+
+  warning(code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
+    this.add('warning', code, message, path, range, once);
+  }
+
+  /** True when a finding with this fact was already made at path (or, with `below`, under it). */
+  has(path: SpecPath, once?: string): boolean {
+    const p = JSON.stringify(path);
+    if (once) return this.seen.has(`${once}@${p}`);
+    for (const k of this.seen) if (k.endsWith(`@${p}`)) return true;
+    return false;
+  }
+
+  get errorCount(): number {
+    return this.errors;
+  }
+}

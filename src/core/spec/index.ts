@@ -1,0 +1,69 @@
+/**
+ * The bias-spec language: text → ParsedSpec (data with positions, findings, resolved spec).
+ *
+ * Pipeline: readDocument (YAML 1.2, limits, duplicate keys) → validateSchema (structure, the
+ * shipped JSON Schema) → elaborate (values with units, expressions, defaults, roles, references).
+ * `spec` is present when the file reads and no spec finding is an error; warnings do not block.
+ */
+import type { Finding, ResolvedSpec } from '../types';
+import { readDocument } from './document';
+import { elaborate } from './elaborate';
+import { FindingSink } from './findings';
+import { LineIndex, ZERO_RANGE } from './positions';
+import { validateSchema } from './schema';
+import { YamlSourceMap } from './source-map';
+import type { SourceMap } from './source-map';
+
+export type { SourceMap } from './source-map';
+
+export interface ParsedSpec {
+  text: string;
+  parsed: boolean;              // false only for YAML syntax errors / unreadable input
+  spec?: ResolvedSpec;          // present when there is no error-severity finding that makes it unusable
+  findings: Finding[];          // spec findings (severity, code, message, path, narrowest range)
+  source: SourceMap;
+  /** The file is JSON (by its name, else by its text): edits keep it JSON. */
+  json?: boolean;
+}
+
+const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
+
+export function sortSpecFindings(list: Finding[]): Finding[] {
+  return [...list].sort((a, b) => a.range.start.line - b.range.start.line
+    || a.range.start.character - b.range.start.character
+    || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
+}
+
+function looksJson(text: string, file?: string): boolean {
+  if (file) return /\.json$/i.test(file);
+  return /^\s*\{/.test(text) && /\}\s*$/.test(text);
+}
+
+export function parseSpec(text: string, file?: string): ParsedSpec {
+  const src = typeof text === 'string' ? text : '';
+  const lines = new LineIndex(src);
+  let source = new YamlSourceMap(undefined, lines);
+  const json = looksJson(src, file);
+  try {
+    const read = readDocument(src, lines);
+    source = new YamlSourceMap(read.doc, lines);
+    if (!read.parsed) return { text: src, parsed: false, findings: sortSpecFindings(read.findings), source, json };
+    const sink = new FindingSink(source);
+    for (const f of read.findings) sink.add(f.severity, f.code, f.message, f.path, f.range, `${f.code}:${f.range.start.line}:${f.range.start.character}`);
+    if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
+    validateSchema(read.data, sink);
+    const spec = elaborate(read.data, sink);
+    const usable = spec !== undefined && sink.errorCount === 0;
+    const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
+    if (usable) out.spec = spec;
+    return out;
+  } catch (e) {
+    // A defect in qpoint must not take the designer's diagnostics with it.
+    const message = e instanceof Error ? e.message : String(e);
+    return {
+      text: src, parsed: false, source, json,
+      findings: [{ severity: 'error', code: 'internal-error', path: [], range: ZERO_RANGE,
+        message: `qpoint could not read this spec (${message}); please report it with the file attached` }],
+    };
+  }
+}

@@ -1,0 +1,206 @@
+/** One template mirror (simple, cascode, wide-swing, wilson, wilson-balanced) → TemplateMirror. */
+import { OUTPUT_ROLES, ROLES } from '../types';
+import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
+  Requirements, SpecPath, Supplies, TemplateKind, TemplateMirror } from '../types';
+import { formatSI } from '../units/format';
+import { isRecord } from './params';
+import { misplaced, missing, readMap, readString } from './read';
+import type { Data } from './read';
+import { buildSize, readSizeLayer } from './sizes';
+import type { SizeContext, SizeLayer } from './sizes';
+import { didYouMean } from './suggest';
+import { resolveNumber, typeName } from './values';
+import type { ValueScope } from './values';
+
+const BANK_KINDS: readonly TemplateKind[] = ['simple', 'cascode', 'wide-swing'];
+const NETLIST_KEYS = ['currents', 'voltages', 'resistors', 'pair'];
+
+export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
+  if (raw === undefined) {
+    missing(scope.sink, path.slice(0, -1), 'input', ' (input current, A, or { resistor: R })');
+    return undefined;
+  }
+  if (isRecord(raw)) {
+    if (raw.resistor === undefined) {
+      missing(scope.sink, path, 'resistor');
+      return undefined;
+    }
+    const r = resolveNumber(scope, raw.resistor, [...path, 'resistor'], 'resistance', { positive: true });
+    return r === undefined ? undefined : { kind: 'resistor', r };
+  }
+  const i = resolveNumber(scope, raw, path, 'current', { positive: true });
+  return i === undefined ? undefined : { kind: 'current', i };
+}
+
+export function readOutput(scope: ValueScope, raw: unknown, path: SpecPath, supplies?: Supplies): Partial<OutputSpec> | undefined {
+  const o = readMap(scope.sink, raw, path, 'a mapping { v, range }');
+  if (!o) return undefined;
+  const out: Partial<OutputSpec> = {};
+  if (o.v !== undefined) {
+    const v = resolveNumber(scope, o.v, [...path, 'v'], 'voltage');
+    if (v !== undefined) {
+      out.v = v;
+      if (supplies && (v < supplies.vss || v > supplies.vdd)) {
+        scope.sink.warning('outside-supplies', `output \`v\` = ${formatSI(v, 'V')} lies outside the supplies (${formatSI(supplies.vss, 'V')} … ${formatSI(supplies.vdd, 'V')})`, [...path, 'v']);
+      }
+    }
+  }
+  if (o.range !== undefined) {
+    const rp = [...path, 'range'];
+    if (!Array.isArray(o.range) || o.range.length !== 2) {
+      scope.sink.error('bad-value', `\`range\` must be a list of two voltages [low, high]; got ${typeName(o.range)}`, rp, undefined, 'items');
+    } else {
+      const lo = resolveNumber(scope, o.range[0], [...rp, 0], 'voltage');
+      const hi = resolveNumber(scope, o.range[1], [...rp, 1], 'voltage');
+      if (lo !== undefined && hi !== undefined) {
+        if (lo < hi) out.range = [lo, hi];
+        else scope.sink.error('bad-value', `\`range\` must be [low, high] with low < high; got [${lo}, ${hi}]`, rp);
+      }
+    }
+  }
+  return out;
+}
+
+export function readRequire(scope: ValueScope, raw: unknown, path: SpecPath): Requirements | undefined {
+  const r = readMap(scope.sink, raw, path, 'a mapping { ratio, rout, compliance, sigma }');
+  if (!r) return undefined;
+  const out: Requirements = {};
+  const read = (key: keyof Requirements, q: Parameters<typeof resolveNumber>[3], positive: boolean) => {
+    if (r[key] === undefined) return;
+    const v = resolveNumber(scope, r[key], [...path, key], q, positive ? { positive: true } : {});
+    if (v !== undefined) out[key] = v;
+  };
+  read('ratio', 'ratio', true);
+  read('rout', 'resistance', true);
+  read('compliance', 'voltage', false);
+  read('sigma', 'ratio', true);
+  return out;
+}
+
+function readDesign(scope: ValueScope, raw: unknown, path: SpecPath): DesignTarget | undefined {
+  const d = readMap(scope.sink, raw, path, 'a mapping with one of vov, gmid, ic');
+  if (!d) return undefined;
+  const keys = Object.keys(d).filter((k) => ['vov', 'gmid', 'ic'].includes(k));
+  if (keys.length !== 1) {
+    scope.sink.error('bad-value', '`design` takes exactly one of vov (V), gmid (1/V), ic', path, scope.sink.src.keyOf(path), 'props');
+    return undefined;
+  }
+  const kind = keys[0] as DesignTarget['kind'];
+  const q = kind === 'vov' ? 'voltage' : kind === 'gmid' ? 'inverseVoltage' : 'plain';
+  const value = resolveNumber(scope, d[kind], [...path, kind], q, { positive: true });
+  return value === undefined ? undefined : { kind, value };
+}
+
+/** Per-role override layers of a `devices` mapping; unknown roles are findings. */
+function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: TemplateKind, allowed: readonly string[], bank: boolean): Map<string, SizeLayer> {
+  const layers = new Map<string, SizeLayer>();
+  const d = readMap(scope.sink, raw, path, 'a mapping of roles to sizes');
+  if (!d) return layers;
+  for (const role of Object.keys(d)) {
+    const at = [...path, role];
+    if (!allowed.includes(role)) {
+      const shared = bank && ROLES[kind].includes(role);
+      const msg = shared
+        ? `\`${role}\` belongs to the shared reference of the bank; set it in the mirror's \`devices\``
+        : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${didYouMean(role, allowed)}`;
+      scope.sink.error('unknown-role', msg, at, scope.sink.src.keyOf(at));
+      continue;
+    }
+    const layer = readSizeLayer(scope, d[role], at);
+    if (layer) layers.set(role, layer);
+  }
+  return layers;
+}
+
+function completeOutput(scope: ValueScope, own: Partial<OutputSpec> | undefined, inherited: Partial<OutputSpec> | undefined, path: SpecPath, ownWritten: boolean): OutputSpec | undefined {
+  const v = own?.v ?? inherited?.v;
+  if (v === undefined) {
+    if (ownWritten) missing(scope.sink, [...path, 'output'], 'v', ' (nominal output voltage, V)');
+    else missing(scope.sink, path, 'output', ' ({ v: nominal output voltage })');
+    return undefined;
+  }
+  const out: OutputSpec = { v };
+  const range = own?.range ?? inherited?.range;
+  if (range) out.range = range;
+  return out;
+}
+
+export interface MirrorHeader { name: string; kind: TemplateKind; type: Polarity }
+
+export function readTemplateMirror(scope: ValueScope, m: Data, index: number, head: MirrorHeader, params: DeviceParams | undefined, supplies: Supplies | undefined): TemplateMirror | undefined {
+  const path: SpecPath = ['mirrors', index];
+  const { kind } = head;
+  const sink = scope.sink;
+  const before = sink.errorCount;
+  for (const k of NETLIST_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` belongs to netlist mirrors (kind: netlist)`);
+  if (m.vbias !== undefined && kind !== 'wide-swing') misplaced(sink, [...path, 'vbias'], '`vbias` applies only to wide-swing mirrors (the cascode gate voltage)');
+  if (m.outputs !== undefined && !BANK_KINDS.includes(kind)) misplaced(sink, [...path, 'outputs'], `\`outputs\` (bias banks) applies to ${BANK_KINDS.join(', ')} mirrors`);
+
+  const input = readInput(scope, m.input, [...path, 'input']);
+  const design = m.design === undefined ? undefined : readDesign(scope, m.design, [...path, 'design']);
+  const vbias = m.vbias === undefined || kind !== 'wide-swing' ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
+  if (m.size === undefined) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
+  const unit = m.size === undefined ? undefined : readSizeLayer(scope, m.size, [...path, 'size']);
+  const roles = ROLES[kind];
+  const outRoles = OUTPUT_ROLES[kind];
+  const mirrorLayers = readRoleLayers(scope, m.devices, [...path, 'devices'], kind, roles, false);
+  const ctx: SizeContext = { scope, params, hasDesign: design !== undefined, sizePath: [...path, 'size'] };
+  // Without a readable unit size the finding is already made; no role can be sized.
+  const size = (role: string, extra?: SizeLayer) => (unit ? buildSize(ctx, [unit, mirrorLayers.get(role), extra]) : undefined);
+
+  const devices: Record<string, DeviceSize> = {};
+  for (const role of roles) {
+    if (outRoles.includes(role)) continue;
+    const s = size(role);
+    if (s) devices[role] = s;
+  }
+  const mirrorOutput = m.output === undefined ? undefined : readOutput(scope, m.output, [...path, 'output'], supplies);
+  const mirrorRequire = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
+
+  const outputs: MirrorOutput[] = [];
+  if (m.outputs !== undefined && BANK_KINDS.includes(kind)) {
+    const op = [...path, 'outputs'];
+    if (!Array.isArray(m.outputs) || m.outputs.length === 0) {
+      sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, sink.src.keyOf(op), 'type');
+    } else {
+      const names = new Map<string, number>();
+      m.outputs.forEach((item: unknown, j: number) => {
+        const ip = [...op, j];
+        const o = readMap(sink, item, ip, 'a mapping { name, devices, output, require }');
+        if (!o) return;
+        const name = o.name === undefined ? undefined : readString(sink, o.name, [...ip, 'name']);
+        if (o.name === undefined) missing(sink, ip, 'name', ' (output name)');
+        if (name !== undefined) {
+          if (names.has(name)) sink.error('duplicate-name', `output \`${name}\` is named twice in bank \`${head.name}\` (also output ${names.get(name)! + 1})`, [...ip, 'name']);
+          else names.set(name, j);
+        }
+        const layers = readRoleLayers(scope, o.devices, [...ip, 'devices'], kind, outRoles, true);
+        const own = o.output === undefined ? undefined : readOutput(scope, o.output, [...ip, 'output'], supplies);
+        const output = completeOutput(scope, own, mirrorOutput, ip, o.output !== undefined);
+        const req = o.require === undefined ? {} : readRequire(scope, o.require, [...ip, 'require']) ?? {};
+        const devs: Record<string, DeviceSize> = {};
+        for (const role of outRoles) {
+          const s = size(role, layers.get(role));
+          if (s) devs[role] = s;
+        }
+        if (name !== undefined && output) outputs.push({ name, devices: devs, output, require: { ...mirrorRequire, ...req }, path: ip });
+      });
+    }
+  } else {
+    const output = completeOutput(scope, mirrorOutput, undefined, path, m.output !== undefined);
+    const devs: Record<string, DeviceSize> = {};
+    for (const role of outRoles) {
+      const s = size(role);
+      if (s) devs[role] = s;
+    }
+    if (output) outputs.push({ name: head.name, devices: devs, output, require: mirrorRequire, path });
+  }
+  if (design && ![...Object.values(devices), ...outputs.flatMap((o) => Object.values(o.devices))].some((d) => d.auto)) {
+    sink.warning('unused-design', '`design` is set but no size is `auto`; it has no effect', [...path, 'design'], sink.src.keyOf([...path, 'design']));
+  }
+  if (sink.errorCount > before || !input) return undefined;
+  const mirror: TemplateMirror = { kind, name: head.name, type: head.type, input, devices, outputs, path };
+  if (vbias !== undefined) mirror.vbias = vbias;
+  if (design) mirror.design = design;
+  return mirror;
+}

@@ -1,0 +1,224 @@
+/**
+ * `kind: netlist` → NetlistMirror. Node names are identifiers; `vdd`, `vss`, `gnd` and `0` are the
+ * rails (any letter case), resolved to `vdd` / `vss`. A device's bulk defaults to its type's rail.
+ */
+import type { NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
+  Polarity, SpecPath, Supplies } from '../types';
+import { misplaced, missing, readEnum, readMap, readString } from './read';
+import type { Data } from './read';
+import { readOutput, readRequire } from './mirror';
+import { didYouMean } from './suggest';
+import { resolveNumber, typeName } from './values';
+import type { ValueScope } from './values';
+
+const NODE = /^[A-Za-z_][A-Za-z0-9_]*$/;
+const TEMPLATE_KEYS = ['size', 'vbias', 'outputs', 'design'];
+
+/** Rail name for a node, or undefined for a free node. */
+export function railOf(node: string): 'vdd' | 'vss' | undefined {
+  const n = node.toLowerCase();
+  if (n === 'vdd') return 'vdd';
+  if (n === 'vss' || n === 'gnd' || n === '0') return 'vss';
+  return undefined;
+}
+
+function readNode(scope: ValueScope, raw: unknown, path: SpecPath): string | undefined {
+  if (raw === undefined) return undefined;
+  const text = typeof raw === 'number' ? String(raw) : typeof raw === 'string' ? raw.trim() : undefined;
+  if (text === undefined) {
+    scope.sink.error('wrong-type', `\`${String(path[path.length - 1])}\` must be a node name; got ${typeName(raw)}`, path, undefined, 'type');
+    return undefined;
+  }
+  const rail = railOf(text);
+  if (rail) return rail;
+  if (!NODE.test(text)) {
+    scope.sink.error('bad-name', `node name \`${text}\` must start with a letter or _ and hold only letters, digits and _`, path);
+    return undefined;
+  }
+  return text;
+}
+
+/** Terminal uses of each free node, for the floating-node check. */
+type Uses = Map<string, { path: SpecPath; drives: boolean }[]>;
+
+function use(uses: Uses, node: string | undefined, path: SpecPath, drives: boolean): void {
+  if (!node || railOf(node)) return;
+  const list = uses.get(node) ?? [];
+  list.push({ path, drives });
+  uses.set(node, list);
+}
+
+export function readNetlistMirror(scope: ValueScope, m: Data, index: number, name: string, type: Polarity | undefined, supplies: Supplies | undefined): NetlistMirror | undefined {
+  const path: SpecPath = ['mirrors', index];
+  const sink = scope.sink;
+  const before = sink.errorCount;
+  for (const k of TEMPLATE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to template kinds; a netlist gives w, l and m per device`);
+  const seen = new Map<string, string>();  // element name → its group, for duplicate-name
+  const claim = (group: string, elem: string, at: SpecPath) => {
+    const g = seen.get(elem);
+    if (g) sink.error('duplicate-name', `\`${elem}\` is already the name of an entry in \`${g}\`; element names must be unique in a netlist`, at, sink.src.keyOf(at));
+    else seen.set(elem, group);
+  };
+  const uses: Uses = new Map();
+
+  const devices: NetlistDevice[] = [];
+  const dp = [...path, 'devices'];
+  if (m.devices === undefined) missing(sink, path, 'devices', ' (the MOSFETs by name)');
+  const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, d, g, s, b, w, l, m }') ?? {};
+  if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, sink.src.keyOf(dp));
+  for (const dn of Object.keys(dmap)) {
+    const at = [...dp, dn];
+    claim('devices', dn, at);
+    const d = readMap(sink, dmap[dn], at, 'a mapping { type, d, g, s, b, w, l, m }');
+    if (!d) continue;
+    const dtype = d.type === undefined ? type : readEnum<Polarity>(sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
+    if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos or pmos; or give the mirror a `type`)');
+    const t: Record<'d' | 'g' | 's' | 'b', string | undefined> = { d: undefined, g: undefined, s: undefined, b: undefined };
+    for (const k of ['d', 'g', 's', 'b'] as const) {
+      if (d[k] === undefined) {
+        if (k !== 'b') missing(sink, at, k, k === 'd' ? ' (drain node)' : k === 'g' ? ' (gate node)' : ' (source node)');
+        continue;
+      }
+      t[k] = readNode(scope, d[k], [...at, k]);
+      use(uses, t[k], [...at, k], k !== 'g');
+    }
+    const w = d.w === undefined ? undefined : resolveNumber(scope, d.w, [...at, 'w'], 'length', { positive: true });
+    const l = d.l === undefined ? undefined : resolveNumber(scope, d.l, [...at, 'l'], 'length', { positive: true });
+    if (d.w === undefined) missing(sink, at, 'w', ' (width, m)');
+    if (d.l === undefined) missing(sink, at, 'l', ' (length, m)');
+    const mm = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
+    if (dtype && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
+      devices.push({ name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm });
+    }
+  }
+
+  const currents: NetlistCurrentSource[] = [];
+  const cp = [...path, 'currents'];
+  const cmap = readMap(sink, m.currents, cp, 'a mapping of names to { from, to, i }') ?? {};
+  for (const cn of Object.keys(cmap)) {
+    const at = [...cp, cn];
+    claim('currents', cn, at);
+    const c = readMap(sink, cmap[cn], at, 'a mapping { from, to, i }');
+    if (!c) continue;
+    for (const k of ['from', 'to', 'i']) if (c[k] === undefined) missing(sink, at, k);
+    const from = readNode(scope, c.from, [...at, 'from']);
+    const to = readNode(scope, c.to, [...at, 'to']);
+    const i = c.i === undefined ? undefined : resolveNumber(scope, c.i, [...at, 'i'], 'current', { positive: true });
+    use(uses, from, [...at, 'from'], true);
+    use(uses, to, [...at, 'to'], true);
+    if (from && to && from === to) sink.error('bad-value', `current source \`${cn}\` has both ends on \`${from}\``, [...at, 'to']);
+    else if (from && to && i !== undefined) currents.push({ name: cn, from, to, i });
+  }
+
+  const voltages: NetlistVoltageSource[] = [];
+  const vp = [...path, 'voltages'];
+  const vmap = readMap(sink, m.voltages, vp, 'a mapping of names to { node, v }') ?? {};
+  const held = new Map<string, string>();
+  for (const vn of Object.keys(vmap)) {
+    const at = [...vp, vn];
+    claim('voltages', vn, at);
+    const s = readMap(sink, vmap[vn], at, 'a mapping { node, v }');
+    if (!s) continue;
+    for (const k of ['node', 'v']) if (s[k] === undefined) missing(sink, at, k);
+    const node = readNode(scope, s.node, [...at, 'node']);
+    const v = s.v === undefined ? undefined : resolveNumber(scope, s.v, [...at, 'v'], 'voltage');
+    if (node && railOf(node)) {
+      sink.error('bad-value', `\`${node}\` is a rail, set by \`supplies\`; a voltage source holds a free node`, [...at, 'node']);
+    } else if (node && held.has(node)) {
+      sink.error('bad-value', `node \`${node}\` is already held by voltage source \`${held.get(node)}\``, [...at, 'node']);
+    } else if (node && v !== undefined) {
+      held.set(node, vn);
+      use(uses, node, [...at, 'node'], true);
+      voltages.push({ name: vn, node, v });
+    }
+  }
+
+  const resistors: NetlistResistor[] = [];
+  const rp = [...path, 'resistors'];
+  const rmap = readMap(sink, m.resistors, rp, 'a mapping of names to { a, b, r }') ?? {};
+  for (const rn of Object.keys(rmap)) {
+    const at = [...rp, rn];
+    claim('resistors', rn, at);
+    const r = readMap(sink, rmap[rn], at, 'a mapping { a, b, r }');
+    if (!r) continue;
+    for (const k of ['a', 'b', 'r']) if (r[k] === undefined) missing(sink, at, k);
+    const a = readNode(scope, r.a, [...at, 'a']);
+    const b = readNode(scope, r.b, [...at, 'b']);
+    const ohms = r.r === undefined ? undefined : resolveNumber(scope, r.r, [...at, 'r'], 'resistance', { positive: true });
+    use(uses, a, [...at, 'a'], true);
+    use(uses, b, [...at, 'b'], true);
+    if (a && b && a === b) sink.error('bad-value', `resistor \`${rn}\` has both ends on \`${a}\``, [...at, 'b']);
+    else if (a && b && ohms !== undefined) resistors.push({ name: rn, a, b, r: ohms });
+  }
+
+  // Output: a free node that something connects to, not held by a voltage source.
+  const op = [...path, 'output'];
+  let output: NetlistMirror['output'] | undefined;
+  if (m.output === undefined) missing(sink, path, 'output', ' ({ node, v })');
+  const o = readMap(sink, m.output, op, 'a mapping { node, v, range }');
+  if (o) {
+    if (o.node === undefined) missing(sink, op, 'node', ' (the output node)');
+    const node = readNode(scope, o.node, [...op, 'node']);
+    const spec = readOutput(scope, { v: o.v, range: o.range }, op, supplies);
+    if (o.v === undefined) missing(sink, op, 'v', ' (nominal output voltage, V)');
+    if (node && railOf(node)) sink.error('bad-value', `the output node cannot be the rail \`${node}\``, [...op, 'node']);
+    else if (node && held.has(node)) sink.error('bad-value', `the output node \`${node}\` is already held by voltage source \`${held.get(node)}\``, [...op, 'node']);
+    else if (node && !uses.has(node)) sink.error('bad-value', `the output node \`${node}\` connects to nothing in this netlist`, [...op, 'node']);
+    else if (node && spec?.v !== undefined) {
+      output = { node, v: spec.v };
+      if (spec.range) output.range = spec.range;
+      use(uses, node, [...op, 'node'], true);
+    }
+  }
+
+  const ip = [...path, 'input'];
+  let input: NetlistMirror['input'] | undefined;
+  if (m.input === undefined) missing(sink, path, 'input', ' ({ source: NAME } of a `currents` entry)');
+  const im = readMap(sink, m.input, ip, 'a mapping { source }');
+  if (im) {
+    if (im.source === undefined) missing(sink, ip, 'source');
+    const src = readString(sink, im.source, [...ip, 'source']);
+    if (src !== undefined) {
+      if (cmap[src] === undefined) sink.error('unknown-name', `\`${src}\` is not a current source of this netlist${didYouMean(src, Object.keys(cmap))}`, [...ip, 'source']);
+      else input = { source: src };
+    }
+  }
+
+  let pair: NetlistMirror['pair'];
+  if (m.pair !== undefined) {
+    const pp = [...path, 'pair'];
+    const pm = readMap(sink, m.pair, pp, 'a mapping { ref, out }');
+    if (pm) {
+      const names: Partial<Record<'ref' | 'out', string>> = {};
+      for (const k of ['ref', 'out'] as const) {
+        if (pm[k] === undefined) { missing(sink, pp, k); continue; }
+        const n = readString(sink, pm[k], [...pp, k]);
+        if (n === undefined) continue;
+        if (dmap[n] === undefined) sink.error('unknown-name', `\`${n}\` is not a device of this netlist${didYouMean(n, Object.keys(dmap))}`, [...pp, k]);
+        else names[k] = n;
+      }
+      if (names.ref && names.out) pair = { ref: names.ref, out: names.out };
+    }
+  }
+
+  // Nodes that no drain, source, bulk, source or resistor drives float (gates only) or dangle.
+  for (const [node, list] of uses) {
+    if (list.length === 1 || !list.some((u) => u.drives)) {
+      const why = list.length === 1 ? 'connects to only one terminal' : 'connects only to gates, so nothing sets its voltage';
+      sink.warning('floating-node', `node \`${node}\` ${why}`, list[0].path);
+    }
+  }
+
+  let mtype = type;
+  if (!mtype) {
+    const byPair = pair && devices.find((d) => d.name === pair!.out)?.type;
+    const types = new Set(devices.map((d) => d.type));
+    mtype = byPair ?? (types.size === 1 ? [...types][0] : undefined);
+    if (!mtype && devices.length) missing(sink, path, 'type', ' (nmos or pmos: the devices are of both types and no `pair` says which)');
+  }
+  const require = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
+  if (sink.errorCount > before || !mtype || !output || !input) return undefined;
+  const mirror: NetlistMirror = { kind: 'netlist', name, type: mtype, devices, currents, voltages, resistors, output, input, require, path };
+  if (pair) mirror.pair = pair;
+  return mirror;
+}

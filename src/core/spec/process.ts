@@ -1,0 +1,148 @@
+/** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
+import { DEFAULTS } from '../defaults';
+import type { DeviceParams, Limits, ModelKind, Polarity, Supplies } from '../types';
+import type { SpecPath } from '../types';
+import type { Quantity } from '../units/si';
+import { ZERO_CELSIUS } from '../defaults';
+import { missing, readEnum, readMap } from './read';
+import type { Data } from './read';
+import { resolveNumber } from './values';
+import type { ValueOptions, ValueScope } from './values';
+
+interface ParamRule { q: Quantity; opts?: ValueOptions }
+
+/** Quantity and sign rule of each device parameter. */
+export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
+  kp: { q: 'transconductanceParam', opts: { positive: true } },
+  vt0: { q: 'voltage' },
+  lambda: { q: 'inverseVoltage', opts: { nonNegative: true } },
+  lref: { q: 'length', opts: { positive: true } },
+  gamma: { q: 'sqrtVoltage', opts: { nonNegative: true } },
+  phi: { q: 'voltage', opts: { positive: true } },
+  n: { q: 'plain', opts: { positive: true } },
+  tcv: { q: 'voltagePerKelvin' },
+  bex: { q: 'plain' },
+  avt: { q: 'voltageLength', opts: { nonNegative: true } },
+  abeta: { q: 'lengthUnit', opts: { nonNegative: true } },
+  lmin: { q: 'length', opts: { positive: true } },
+  wmin: { q: 'length', opts: { positive: true } },
+};
+
+export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as (keyof DeviceParams)[];
+
+/** A temperature in kelvin; a bare number is °C, and one that looks like kelvin gets a warning. */
+export function readTemperature(scope: ValueScope, raw: unknown, path: SpecPath): number | undefined {
+  const t = resolveNumber(scope, raw, path, 'temperature');
+  if (t === undefined) return undefined;
+  if (typeof raw === 'number' && raw >= 200) {
+    scope.sink.warning('ambiguous-temperature', `\`${String(path[path.length - 1])}: ${raw}\` is read as ${raw} °C; write \`${raw} K\` if kelvin was meant, or \`${raw} C\` to confirm`, path);
+  }
+  if (!(t > 0)) {
+    scope.sink.error('bad-value', `\`${String(path[path.length - 1])}\` is ${(t - ZERO_CELSIUS).toFixed(2)} °C, at or below absolute zero`, path);
+    return undefined;
+  }
+  return t;
+}
+
+function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polarity): DeviceParams | undefined {
+  const d = readMap(scope.sink, raw, path);
+  if (!d) return undefined;
+  const before = scope.sink.errorCount;
+  const got: Partial<Record<keyof DeviceParams, number>> = {};
+  for (const key of DEVICE_PARAM_KEYS) {
+    if (d[key] === undefined) continue;
+    const rule = DEVICE_PARAM_RULES[key];
+    const v = resolveNumber(scope, d[key], [...path, key], rule.q, rule.opts);
+    if (v !== undefined) got[key] = v;
+  }
+  if (d.kp === undefined) missing(scope.sink, path, 'kp', ' (µ·Cox, A/V²)');
+  if (d.vt0 === undefined) missing(scope.sink, path, 'vt0', ' (threshold voltage, V)');
+  if (got.n !== undefined && got.n < 1) {
+    scope.sink.error('bad-value', `slope factor \`n\` is at least 1; got ${got.n}`, [...path, 'n']);
+    delete got.n;
+  }
+  if (type === 'pmos' && got.vt0 !== undefined && got.vt0 < 0) {
+    scope.sink.warning('negative-pmos-vt0', `pmos \`vt0\` is the threshold magnitude; ${got.vt0} is taken as ${-got.vt0}`, [...path, 'vt0']);
+    got.vt0 = -got.vt0;
+  }
+  if (scope.sink.errorCount > before || got.kp === undefined || got.vt0 === undefined) return undefined;
+  const dd = DEFAULTS.device;
+  const out: DeviceParams = {
+    kp: got.kp, vt0: got.vt0,
+    lambda: got.lambda ?? dd.lambda, gamma: got.gamma ?? dd.gamma, phi: got.phi ?? dd.phi,
+    n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex,
+  };
+  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
+  return out;
+}
+
+export interface ProcessRead {
+  model: ModelKind;
+  tnom: number;
+  temperature: number;
+  grid?: number;
+  nmos?: DeviceParams;
+  pmos?: DeviceParams;
+  /** Polarities written in the spec (possibly with errors). */
+  written: Set<Polarity>;
+  ok: boolean;
+}
+
+export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | undefined {
+  const path = ['process'];
+  if (raw === undefined) {
+    missing(scope.sink, [], 'process', ' (device parameters)');
+    return undefined;
+  }
+  const p = readMap(scope.sink, raw, path);
+  if (!p) return undefined;
+  const before = scope.sink.errorCount;
+  const model = p.model === undefined ? DEFAULTS.model : readEnum<ModelKind>(scope.sink, p.model, [...path, 'model'], ['square-law', 'ekv']);
+  const tnom = p.tnom === undefined ? DEFAULTS.tnom : readTemperature(scope, p.tnom, [...path, 'tnom']);
+  const temperature = p.temperature === undefined ? tnom : readTemperature(scope, p.temperature, [...path, 'temperature']);
+  const grid = p.grid === undefined ? undefined : resolveNumber(scope, p.grid, [...path, 'grid'], 'length', { positive: true });
+  const written = new Set<Polarity>();
+  const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, ok: true };
+  if (grid !== undefined) out.grid = grid;
+  for (const type of ['nmos', 'pmos'] as const) {
+    if (p[type] === undefined) continue;
+    written.add(type);
+    const d = readDevice(scope, p[type], [...path, type], type);
+    if (d) out[type] = d;
+  }
+  out.ok = scope.sink.errorCount === before;
+  return out;
+}
+
+export function readSupplies(scope: ValueScope, raw: unknown): Supplies | undefined {
+  const path = ['supplies'];
+  if (raw === undefined) {
+    missing(scope.sink, [], 'supplies', ' (vdd, vss)');
+    return undefined;
+  }
+  const s = readMap(scope.sink, raw, path);
+  if (!s) return undefined;
+  if (s.vdd === undefined) {
+    missing(scope.sink, path, 'vdd', ' (positive supply, V)');
+    return undefined;
+  }
+  const vdd = resolveNumber(scope, s.vdd, [...path, 'vdd'], 'voltage');
+  const vss = s.vss === undefined ? DEFAULTS.vss : resolveNumber(scope, s.vss, [...path, 'vss'], 'voltage');
+  if (vdd === undefined || vss === undefined) return undefined;
+  if (!(vdd > vss)) {
+    scope.sink.error('bad-value', `\`vdd\` (${vdd} V) must be above \`vss\` (${vss} V)`, [...path, 'vdd']);
+    return undefined;
+  }
+  return { vdd, vss };
+}
+
+export function readLimits(scope: ValueScope, raw: unknown): Limits | undefined {
+  const path = ['limits'];
+  const l: Data = raw === undefined ? {} : readMap(scope.sink, raw, path) ?? {};
+  const margin = l.margin === undefined ? DEFAULTS.margin : resolveNumber(scope, l.margin, [...path, 'margin'], 'voltage', { nonNegative: true });
+  const error = l.error === undefined ? DEFAULTS.error : resolveNumber(scope, l.error, [...path, 'error'], 'ratio', { positive: true });
+  const sourceHeadroom = l.sourceHeadroom === undefined ? DEFAULTS.sourceHeadroom
+    : resolveNumber(scope, l.sourceHeadroom, [...path, 'sourceHeadroom'], 'voltage', { nonNegative: true });
+  if (margin === undefined || error === undefined || sourceHeadroom === undefined) return undefined;
+  return { margin, error, sourceHeadroom };
+}

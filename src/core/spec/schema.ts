@@ -1,0 +1,143 @@
+/**
+ * Structural validation with the shipped JSON Schema (schema/qpoint-bias.schema.json, draft-07,
+ * the same file the editor uses for completion), ajv errors mapped to our findings and wording.
+ * Values with units, expressions, roles per kind and cross references are checked later by the
+ * elaborator.
+ */
+import Ajv from 'ajv';
+import type { ErrorObject, ValidateFunction } from 'ajv';
+import schemaJson from '../../../schema/qpoint-bias.schema.json';
+import type { SpecPath } from '../types';
+import type { FindingSink } from './findings';
+import { formatPath } from './findings';
+import { didYouMean } from './suggest';
+import { typeName } from './values';
+
+let compiled: ValidateFunction | undefined;
+
+/** The compiled validator, built once on first use. */
+function validator(): ValidateFunction {
+  if (!compiled) {
+    const ajv = new Ajv({ allErrors: true, verbose: true, allowUnionTypes: true, strictTypes: false, strictRequired: false });
+    ajv.addVocabulary(['defaultSnippets', 'markdownDescription']);
+    compiled = ajv.compile(schemaJson);
+  }
+  return compiled;
+}
+
+export const SPEC_SCHEMA: unknown = schemaJson;
+
+function toPath(pointer: string, data: unknown): SpecPath {
+  const path: SpecPath = [];
+  let cur: unknown = data;
+  for (const raw of pointer.split('/').slice(1)) {
+    const seg = raw.replace(/~1/g, '/').replace(/~0/g, '~');
+    if (Array.isArray(cur)) {
+      const i = Number(seg);
+      path.push(i);
+      cur = cur[i];
+    } else {
+      path.push(seg);
+      cur = (cur as Record<string, unknown> | undefined)?.[seg];
+    }
+  }
+  return path;
+}
+
+function valueAt(data: unknown, path: SpecPath): unknown {
+  let cur = data;
+  for (const seg of path) cur = (cur as Record<string | number, unknown> | undefined)?.[seg];
+  return cur;
+}
+
+interface SchemaNode { properties?: Record<string, { description?: string }>; description?: string }
+
+function shortHint(d: string | undefined): string {
+  if (!d) return '';
+  const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
+  return s.length <= 70 ? ` (${s})` : '';
+}
+
+function where(path: SpecPath): string {
+  return path.length ? `\`${formatPath(path)}\`` : 'the spec';
+}
+
+const TYPE_WORDS: Record<string, string> = {
+  number: 'a number', string: 'a string', object: 'a mapping', array: 'a list', integer: 'a whole number', boolean: 'true or false',
+};
+
+function typeWords(t: unknown): string {
+  const list = (Array.isArray(t) ? t : String(t).split(',')).map((x) => TYPE_WORDS[String(x)] ?? String(x));
+  if (list.includes('a number') && list.includes('a string') && list.length === 2) return 'a number or a string with a unit';
+  return list.length > 1 ? `${list.slice(0, -1).join(', ')} or ${list[list.length - 1]}` : list[0];
+}
+
+const ORDER: Record<string, number> = { type: 0, required: 1, additionalProperties: 2 };
+
+/** Validate data against the schema; findings go to sink. Returns true when valid. */
+export function validateSchema(data: unknown, sink: FindingSink): boolean {
+  const validate = validator();
+  if (validate(data)) return true;
+  const errors = [...(validate.errors ?? [])].sort((a, b) => (ORDER[a.keyword] ?? 9) - (ORDER[b.keyword] ?? 9));
+  for (const e of errors) mapError(e, data, sink);
+  return false;
+}
+
+function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
+  const path = toPath(e.instancePath, data);
+  const parent = e.parentSchema as SchemaNode | undefined;
+  const value = valueAt(data, path);
+  const name = path.length ? `\`${String(path[path.length - 1])}\`` : 'the spec';
+  const p = e.params as Record<string, unknown>;
+  switch (e.keyword) {
+    case 'if':
+    case 'const':
+      return;  // the branch's own errors say what is wrong
+    case 'additionalProperties': {
+      const key = String(p.additionalProperty);
+      const known = Object.keys(parent?.properties ?? {});
+      const hint = didYouMean(key, known) || (known.length && known.length <= 16 ? `; expected one of ${known.join(', ')}` : '');
+      const at = [...path, key];
+      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, sink.src.keyOf(at), 'unknown');
+      return;
+    }
+    case 'required': {
+      const missing = String(p.missingProperty);
+      const hint = shortHint(parent?.properties?.[missing]?.description);
+      sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, sink.src.keyOf(path), `missing:${missing}`);
+      return;
+    }
+    case 'type':
+      sink.error('wrong-type', `${name} must be ${typeWords(p.type)}; got ${typeName(value)}`, path, undefined, 'type');
+      return;
+    case 'false schema':
+      sink.error('unknown-key', `${name} does not belong here`, path, sink.src.keyOf(path), 'unknown');
+      return;
+  }
+  if (sink.has(path, 'type')) return;
+  switch (e.keyword) {
+    case 'enum': {
+      const allowed = (p.allowedValues as unknown[]).map(String);
+      const got = typeName(value);
+      const dym = typeof value === 'string' ? didYouMean(value, allowed) : '';
+      sink.error('bad-value', `${name} must be one of ${allowed.join(', ')}; got ${got}${dym}`, path, undefined, 'enum');
+      return;
+    }
+    case 'pattern':
+      sink.error('bad-value', `${name} must be \`auto\` or a mapping { w, l }; got ${typeName(value)}`, path, undefined, 'pattern');
+      return;
+    case 'minItems':
+    case 'maxItems':
+      sink.error('bad-value', `${name} must be a list of two values [low, high]; got ${Array.isArray(value) ? value.length : 0}`, path, undefined, 'items');
+      return;
+    case 'minProperties':
+    case 'maxProperties': {
+      const keys = Object.keys(parent?.properties ?? {});
+      const msg = keys.length ? `${name} takes exactly one of ${keys.join(', ')}` : `${name} must not be empty`;
+      sink.error('bad-value', msg, path, undefined, 'props');
+      return;
+    }
+    default:
+      sink.error('bad-value', `${name} ${e.message ?? 'is not valid'}`, path, undefined, e.keyword);
+  }
+}

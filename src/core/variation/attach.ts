@@ -1,0 +1,28 @@
+/**
+ * Convenience for the analyze step: attach corner results and Monte Carlo results to every
+ * report of a spec, in the order analyzeSpec produced them (mirrors, then outputs).
+ */
+import type { MirrorReport, ResolvedSpec } from '../types';
+import { runCorners } from './corners';
+import { runMonteCarlo } from './montecarlo';
+
+export interface VariationOptions {
+  corners?: boolean;
+  mc?: { samples: number; seed: number };
+}
+
+/** Reports with `corners` and/or `mc` filled (new objects; the inputs are not changed). A
+ *  report whose path does not lead back to a mirror output is passed through. */
+export function attachVariation(spec: ResolvedSpec, reports: MirrorReport[], opts: VariationOptions): MirrorReport[] {
+  if (!opts.corners && !opts.mc) return reports;
+  return reports.map((r) => {
+    const i = typeof r.path[1] === 'number' ? r.path[1] : -1;
+    const mirror = spec.mirrors[i];
+    if (!mirror) return r;
+    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
+    const out: MirrorReport = { ...r };
+    if (opts.corners && spec.corners.length > 0) out.corners = runCorners(spec, i, j);
+    if (opts.mc && opts.mc.samples > 0) out.mc = runMonteCarlo({ spec, mirror, outputIndex: j }, opts.mc.samples, opts.mc.seed);
+    return out;
+  });
+}

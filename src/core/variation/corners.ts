@@ -1,0 +1,70 @@
+/**
+ * Process corners: a named set of parameter shifts, a temperature and supplies (spec `corners:`),
+ * applied to the resolved spec and solved by the same engine as the nominal point.
+ *
+ * Conventions (spec format, `corners:`):
+ * - `{ add }` adds a signed value to the parameter (`vt0: +50m`); PMOS vt0 is stored as the
+ *   threshold magnitude, so +50 mV raises |VT| of either type — a slow corner is `+` for both.
+ * - `{ scale }` multiplies by (1 + scale) (`kp: -10%` → kp·0.9).
+ * - `temperature`, `vdd`, `vss` replace the nominal values; `tnom` never changes, so kp(T) and
+ *   VT0(T) move from the corner's parameters as at the nominal point.
+ * - Output voltages, requirements and a given wide-swing `vbias` are absolute and stay put. A
+ *   `vbias` that qpoint picks is picked again at each corner by the same rule (the reference at
+ *   VDSsat + limits.margin): it models a bias generator that tracks the process.
+ */
+import type { CornerResult, CornerSpec, DeviceParams, ParamDelta, ResolvedSpec } from '../types';
+import { measureMirror } from '../analysis/index';
+
+type NumericKey = { [K in keyof DeviceParams]-?: DeviceParams[K] extends number | undefined ? K : never }[keyof DeviceParams];
+
+export function applyDelta(value: number, delta: ParamDelta): number {
+  return 'add' in delta ? value + delta.add : value * (1 + delta.scale);
+}
+
+function shiftParams(p: DeviceParams, deltas: CornerSpec['nmos']): DeviceParams {
+  const out: DeviceParams = { ...p };
+  for (const key of Object.keys(deltas) as NumericKey[]) {
+    const delta = deltas[key];
+    const value = out[key];
+    // A parameter the process leaves unset (e.g. lref, avt) has nothing to shift.
+    if (delta === undefined || value === undefined) continue;
+    out[key] = applyDelta(value, delta);
+  }
+  return out;
+}
+
+/** Apply one corner to a spec: signed deltas add, percentages scale (kp·(1 + scale)); PMOS vt0 is
+ *  the magnitude (+50m raises |VT|); temperature, vdd, vss replace; T_nom unchanged. */
+export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpec {
+  return {
+    ...spec,
+    process: {
+      ...spec.process,
+      temperature: corner.temperature ?? spec.process.temperature,
+      nmos: shiftParams(spec.process.nmos, corner.nmos),
+      pmos: shiftParams(spec.process.pmos, corner.pmos),
+    },
+    supplies: { vdd: corner.vdd ?? spec.supplies.vdd, vss: corner.vss ?? spec.supplies.vss },
+  };
+}
+
+/** Every corner of the spec solved for one output of one mirror, in the order of `corners:`. */
+export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): CornerResult[] {
+  const results: CornerResult[] = [];
+  for (const corner of spec.corners) {
+    const cs = applyCorner(spec, corner);
+    const r = measureMirror({ spec: cs, mirror: cs.mirrors[mirrorIndex], outputIndex });
+    let minMargin: number | undefined;
+    let minMarginDevice: string | undefined;
+    for (const d of r.devices) {
+      if (minMargin === undefined || d.margin < minMargin) { minMargin = d.margin; minMarginDevice = d.name; }
+    }
+    results.push({
+      name: corner.name, converged: r.converged,
+      iin: r.iin, iout: r.iout, ratio: r.ratio, error: r.error ?? Number.NaN,
+      rout: r.rout, compliance: r.compliance, sigma: r.sigma,
+      minMargin, minMarginDevice,
+    });
+  }
+  return results;
+}

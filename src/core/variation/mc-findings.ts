@@ -1,0 +1,55 @@
+/**
+ * Findings from Monte Carlo: `mc-nonlinear` (info) when the sampled sigma and the linearized
+ * Pelgrom sigma disagree by more than 15 % — and by more than three standard errors of a sampled
+ * sigma (σ/√(2N)), so a short run's noise does not raise it; `mc-yield` (warning) when some
+ * samples miss a requirement the output states.
+ */
+import type { Finding, MirrorReport, ResolvedSpec } from '../types';
+import type { ParsedSpec } from '../spec/index';
+import { formatSI } from '../units/format';
+import { nameRange, requireRange, siteOf } from './site';
+
+/** Relative disagreement between Monte Carlo and linearized sigma that counts as nonlinear. */
+export const MC_NONLINEAR = 0.15;
+
+const pct = (x: number, digits = 3): string => `${Number((100 * x).toPrecision(digits))} %`;
+
+export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, reports: MirrorReport[]): Finding[] {
+  const out: Finding[] = [];
+  for (const report of reports) {
+    const mc = report.mc;
+    if (!mc) continue;
+    const site = siteOf(spec, report);
+    if (!site) continue;
+    const lin = report.sigma;
+    const valid = mc.samples - (mc.failed ?? 0);
+    if (lin !== undefined && lin > 0 && valid > 1) {
+      const diff = mc.sigma / lin - 1;
+      const noise = 3 / Math.sqrt(2 * valid);
+      if (Math.abs(diff) > MC_NONLINEAR && Math.abs(diff) > noise) {
+        out.push({
+          severity: 'info', code: 'mc-nonlinear', path: [...site.path, 'require', 'sigma'],
+          range: site.require.sigma !== undefined ? requireRange(parsed, site, 'sigma') : nameRange(parsed, site),
+          message: `Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
+        });
+      }
+    }
+    const req = site.require;
+    const hasReq = req.ratio !== undefined || req.rout !== undefined || req.compliance !== undefined || req.sigma !== undefined;
+    if (hasReq && mc.yield < 1) {
+      const f = mc.failures;
+      const parts: string[] = [];
+      if (f?.ratio) parts.push(`${f.ratio} with the ratio outside ±${pct(spec.limits.error)}`);
+      if (f?.saturation) parts.push(`${f.saturation} with a device out of saturation`);
+      if (f?.compliance) parts.push(`${f.compliance} not saturated at ${formatSI(req.compliance ?? NaN, 'V')}`);
+      if (f?.convergence) parts.push(`${f.convergence} without a solution`);
+      const failing = Math.round((1 - mc.yield) * mc.samples);
+      out.push({
+        severity: 'warning', code: 'mc-yield', path: [...site.path, 'require'],
+        range: parsed.source.key([...site.path, 'require']) ?? nameRange(parsed, site),
+        message: `Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
+      });
+    }
+  }
+  return out;
+}

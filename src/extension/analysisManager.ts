@@ -1,0 +1,173 @@
+/**
+ * Keeps every open bias spec analysed: at once on open, debounced on change (a newer edit
+ * supersedes an older request), diagnostics cleared on close. The active spec is analysed with
+ * its Iout/Vout curve for the panel. Other parts (panel, status bar, CodeLens) listen to
+ * `onDidUpdate`.
+ */
+import * as vscode from 'vscode';
+import type { AnalyzeOptions } from '../core/analyze';
+import type { FileReport } from '../core/types';
+import type { Analyzer } from './analyzer';
+import { toDiagnostics } from './convert';
+import { readSettings } from './settings';
+import { isSpecDocument } from './specDocuments';
+
+export interface ReportUpdate { uri: vscode.Uri; report: FileReport; version: number }
+
+interface Entry {
+  uri: vscode.Uri;
+  timer?: NodeJS.Timeout;
+  report?: FileReport;
+  /** Document version the report belongs to. */
+  reportVersion?: number;
+  hasCurve: boolean;
+}
+
+export class AnalysisManager implements vscode.Disposable {
+  private readonly entries = new Map<string, Entry>();
+  private readonly emitter = new vscode.EventEmitter<ReportUpdate>();
+  private readonly disposables: vscode.Disposable[] = [];
+  private lastActive: string | undefined;
+  /** Analyses whose report reached the editor. */
+  count = 0;
+  readonly onDidUpdate = this.emitter.event;
+
+  constructor(
+    private readonly analyzer: Analyzer,
+    private readonly diagnostics: vscode.DiagnosticCollection,
+    private readonly log: vscode.LogOutputChannel,
+  ) {
+    this.disposables.push(
+      this.emitter,
+      vscode.workspace.onDidOpenTextDocument((d) => this.open(d)),
+      vscode.workspace.onDidChangeTextDocument((e) => {
+        if (e.contentChanges.length > 0) this.changed(e.document);
+      }),
+      vscode.workspace.onDidCloseTextDocument((d) => this.close(d)),
+      vscode.window.onDidChangeActiveTextEditor((e) => this.activeChanged(e)),
+      vscode.workspace.onDidChangeConfiguration((e) => {
+        if (e.affectsConfiguration('qpoint')) this.reanalyzeAll();
+      }),
+    );
+    for (const d of vscode.workspace.textDocuments) this.open(d);
+    this.activeChanged(vscode.window.activeTextEditor);
+  }
+
+  /** The active spec (or the last one that was active, while the panel has focus). */
+  current(): { uri: vscode.Uri; report: FileReport } | undefined {
+    const active = vscode.window.activeTextEditor?.document;
+    const key = active && isSpecDocument(active) ? active.uri.toString() : this.lastActive;
+    const e = key ? this.entries.get(key) : undefined;
+    return e?.report ? { uri: e.uri, report: e.report } : undefined;
+  }
+
+  /** The report of the document's current text, if it is finished. */
+  reportFor(uri: vscode.Uri): FileReport | undefined {
+    return this.entries.get(uri.toString())?.report;
+  }
+
+  /** The report of exactly this version of the document, analysing now if needed. */
+  async upToDate(doc: vscode.TextDocument, opts: { curve?: boolean } = {}): Promise<FileReport | undefined> {
+    // A live re-analysis may supersede ours; then its report (of the same text) serves too.
+    for (let attempt = 0; attempt < 3; attempt++) {
+      const e = this.entries.get(doc.uri.toString()) ?? this.track(doc);
+      if (e.report && e.reportVersion === doc.version && (!opts.curve || e.hasCurve)) return e.report;
+      if (e.timer) clearTimeout(e.timer);
+      e.timer = undefined;
+      const report = await this.run(doc, e, opts.curve === true || this.isActive(doc));
+      if (report) return report;
+      if (doc.isClosed) return undefined;
+    }
+    return undefined;
+  }
+
+  /** The finished report, only when it belongs to the document's current version. */
+  reportAt(doc: vscode.TextDocument): FileReport | undefined {
+    const e = this.entries.get(doc.uri.toString());
+    return e?.report && e.reportVersion === doc.version ? e.report : undefined;
+  }
+
+  /** Options for the core from the settings (the fallback margin). */
+  optionsFor(uri: vscode.Uri, curve: boolean): AnalyzeOptions {
+    return { curve, limitsDefaults: { margin: readSettings(uri).margin } };
+  }
+
+  private track(doc: vscode.TextDocument): Entry {
+    const e: Entry = { uri: doc.uri, hasCurve: false };
+    this.entries.set(doc.uri.toString(), e);
+    return e;
+  }
+
+  private isActive(doc: vscode.TextDocument): boolean {
+    return vscode.window.activeTextEditor?.document.uri.toString() === doc.uri.toString()
+      || this.lastActive === doc.uri.toString();
+  }
+
+  private open(doc: vscode.TextDocument): void {
+    if (!isSpecDocument(doc) || this.entries.has(doc.uri.toString())) return;
+    void this.run(doc, this.track(doc), this.isActive(doc));
+  }
+
+  private changed(doc: vscode.TextDocument): void {
+    if (!isSpecDocument(doc)) return;
+    const e = this.entries.get(doc.uri.toString()) ?? this.track(doc);
+    if (e.timer) clearTimeout(e.timer);
+    e.timer = setTimeout(() => {
+      e.timer = undefined;
+      void this.run(doc, e, this.isActive(doc));
+    }, readSettings(doc.uri).debounceMs);
+  }
+
+  private close(doc: vscode.TextDocument): void {
+    const key = doc.uri.toString();
+    const e = this.entries.get(key);
+    if (e?.timer) clearTimeout(e.timer);
+    this.entries.delete(key);
+    this.diagnostics.delete(doc.uri);
+    if (this.lastActive === key) this.lastActive = undefined;
+  }
+
+  private activeChanged(editor: vscode.TextEditor | undefined): void {
+    const doc = editor?.document;
+    if (!doc || !isSpecDocument(doc)) return;
+    this.lastActive = doc.uri.toString();
+    const e = this.entries.get(this.lastActive);
+    if (!e) this.open(doc);
+    else if (!e.hasCurve && !e.timer) void this.run(doc, e, true);
+    else if (e.report) this.emitter.fire({ uri: e.uri, report: e.report, version: e.reportVersion ?? doc.version });
+  }
+
+  private reanalyzeAll(): void {
+    for (const doc of vscode.workspace.textDocuments) {
+      const e = this.entries.get(doc.uri.toString());
+      if (e) void this.run(doc, e, this.isActive(doc));
+    }
+  }
+
+  private async run(doc: vscode.TextDocument, e: Entry, curve: boolean): Promise<FileReport | undefined> {
+    const version = doc.version;
+    let report: FileReport | undefined;
+    try {
+      report = await this.analyzer.analyze(doc.uri.toString(), doc.getText(),
+        vscode.workspace.asRelativePath(doc.uri, false), this.optionsFor(doc.uri, curve));
+    } catch (err) {
+      this.log.error(`analysis of ${doc.uri.toString()} failed: ${String(err)}`);
+      return undefined;
+    }
+    // Superseded by a newer request, or the document was closed meanwhile.
+    if (!report || this.entries.get(doc.uri.toString()) !== e) return undefined;
+    e.report = report;
+    e.reportVersion = version;
+    e.hasCurve = curve;
+    this.diagnostics.set(doc.uri, toDiagnostics(report, doc.uri));
+    this.count++;
+    this.emitter.fire({ uri: doc.uri, report, version });
+    return report;
+  }
+
+  dispose(): void {
+    for (const e of this.entries.values()) if (e.timer) clearTimeout(e.timer);
+    this.entries.clear();
+    for (const d of this.disposables.splice(0)) d.dispose();
+  }
+}

@@ -1,0 +1,17 @@
+/** What `activate()` returns: a small typed API for the extension-host tests. */
+import type * as vscode from 'vscode';
+import type { FileReport } from '../core/types';
+import type { ReportUpdate } from './analysisManager';
+
+export interface QpointApi {
+  /** Analyses whose report reached the editor since activation. */
+  analysisCount(): number;
+  /** The latest report of an open spec (undefined when not analysed or closed). */
+  lastReport(uri: vscode.Uri): FileReport | undefined;
+  /** Milliseconds spent in activate(). */
+  readonly activationMs: number;
+  /** Time the last job took inside the worker (ms). */
+  lastAnalysisMs(): number;
+  /** Fires when a report reaches the editor. */
+  readonly onDidUpdate: vscode.Event<ReportUpdate>;
+}

@@ -1,0 +1,284 @@
+/**
+ * What the editor shows, as plain text: hover markdown, CodeLens titles, the status summary.
+ * Pure (no `vscode`), so it is tested without an editor; convert.ts wraps the results in vscode
+ * objects. No physics here: every number comes from the core's report.
+ */
+import type { Anchor, DeviceReport, FileReport, MirrorReport, Position, Range, SpecPath } from '../core/types';
+import { formatSI } from '../core/units/format';
+import { CAUTION_TEXT } from '../core/report/html';
+
+// ───────────────────────────── number formatting ─────────────────────────────
+
+/** Plain number with `digits` significant digits, no SI prefix (ratios, IC). */
+export function formatPlain(x: number, digits = 3): string {
+  if (!Number.isFinite(x)) return Number.isNaN(x) ? 'NaN' : x < 0 ? '−∞' : '∞';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e-3 && a < 1e6) return String(Number(x.toPrecision(digits)));
+  return x.toExponential(digits - 1).replace(/\.?0+e/, 'e');
+}
+
+/** Relative value as percent with a sign when asked: 0.0025 → "+0.25 %". */
+export function formatPercent(x: number, signed = false, digits = 3): string {
+  if (!Number.isFinite(x)) return `${formatPlain(x)} %`;
+  const p = x * 100;
+  const sign = signed && p > 0 ? '+' : '';
+  return `${sign}${formatPlain(p, digits)} %`;
+}
+
+/** Output resistance, where an ideal source gives ∞. */
+export function formatOhm(r: number): string {
+  return formatSI(r, 'Ω', 3);
+}
+
+// ───────────────────────────── hover: what is under the cursor ─────────────────────────────
+
+export type HoverTarget =
+  | { kind: 'device'; report: MirrorReport; device: DeviceReport }
+  /** A `size:` or `devices:` block: every device it sizes. */
+  | { kind: 'devices'; title: string; devices: DeviceReport[] }
+  /** A mirror's name: all its outputs (one for a plain mirror, several for a bias bank). */
+  | { kind: 'mirror'; mirror: string; reports: MirrorReport[] }
+  | { kind: 'output'; report: MirrorReport };
+
+export function contains(range: Range, pos: Position): boolean {
+  const afterStart = pos.line > range.start.line || (pos.line === range.start.line && pos.character >= range.start.character);
+  const beforeEnd = pos.line < range.end.line || (pos.line === range.end.line && pos.character <= range.end.character);
+  return afterStart && beforeEnd;
+}
+
+function isPrefix(prefix: SpecPath, path: SpecPath): boolean {
+  return prefix.length <= path.length && prefix.every((seg, i) => seg === path[i]);
+}
+
+const KIND_ORDER: Record<Anchor['kind'], number> = { device: 0, output: 1, mirror: 2 };
+
+/**
+ * The report part under the cursor. `cursorPath` is the spec path at the position (from
+ * specPath.ts), when the text parses; without it only anchor ranges are used.
+ */
+export function hoverTarget(file: FileReport, pos: Position, cursorPath?: SpecPath): HoverTarget | undefined {
+  const byName = (name: string) => file.mirrors.find((m) => m.name === name);
+  const fromAnchor = (a: Anchor): HoverTarget | undefined => {
+    const report = byName(a.report);
+    if (!report) return undefined;
+    if (a.kind === 'device') {
+      const device = report.devices.find((d) => d.name === a.device);
+      return device ? { kind: 'device', report, device } : undefined;
+    }
+    if (a.kind === 'output') return { kind: 'output', report };
+    return { kind: 'mirror', mirror: report.mirror, reports: file.mirrors.filter((m) => m.mirror === report.mirror) };
+  };
+
+  // 1. The cursor on an anchor's own range (a device key, a mirror or output name).
+  const hit = file.anchors.filter((a) => contains(a.range, pos)).sort((a, b) => KIND_ORDER[a.kind] - KIND_ORDER[b.kind])[0];
+  if (hit) return fromAnchor(hit);
+  if (!cursorPath) return undefined;
+
+  // 2. Inside a device's mapping (a size value such as `w: 8u`): the device anchor whose path is
+  //    the longest prefix of the cursor's path.
+  const device = file.anchors
+    .filter((a) => a.kind === 'device' && isPrefix(a.path, cursorPath))
+    .sort((a, b) => b.path.length - a.path.length)[0];
+  if (device) return fromAnchor(device);
+
+  // 3. A `size:` or `devices:` block of a mirror or of a bank output: every device it sizes.
+  const blockAt = ['size', 'devices'].map((k) => cursorPath.indexOf(k)).filter((i) => i >= 2).sort((a, b) => a - b)[0];
+  if (blockAt !== undefined) {
+    const owner = cursorPath.slice(0, blockAt);
+    const reports = file.mirrors.filter((m) => isPrefix(owner, m.path) || isPrefix(m.path, owner));
+    const devices: DeviceReport[] = [];
+    for (const r of reports) for (const d of r.devices) if (!devices.some((x) => x.name === d.name)) devices.push(d);
+    if (devices.length > 0) return { kind: 'devices', title: reports.length === 1 ? reports[0].name : reports[0].mirror, devices };
+  }
+
+  // 4. The mirror's or output's `name` key.
+  if (cursorPath[cursorPath.length - 1] === 'name') {
+    const owner = cursorPath.slice(0, -1);
+    const a = file.anchors.find((x) => x.kind !== 'device' && x.path.length === owner.length && isPrefix(x.path, owner));
+    if (a) return fromAnchor(a);
+  }
+  return undefined;
+}
+
+// ───────────────────────────── hover: markdown ─────────────────────────────
+
+const CAUTION = `*${CAUTION_TEXT}*`;
+
+function escapeMd(s: string): string {
+  return s.replace(/[\\`*_{}[\]()#+\-.!|<>]/g, (c) => `\\${c}`);
+}
+
+function polarity(type: 'nmos' | 'pmos'): string {
+  return type === 'nmos' ? 'NMOS' : 'PMOS';
+}
+
+function sizeLine(d: DeviceReport): string {
+  const m = d.m !== 1 ? ` · m = ${formatPlain(d.m, 4)}` : '';
+  const sized = d.sized ? ' · sized by qpoint' : '';
+  return `W/L = ${formatSI(d.w, 'm')} / ${formatSI(d.l, 'm')}${m}${sized}`;
+}
+
+function regionText(d: DeviceReport): string {
+  return d.region === 'saturation' ? 'saturation' : `**${d.region}**`;
+}
+
+/** The ten operating-point figures of one device, in the device's own polarity. */
+export function deviceFigures(d: DeviceReport): [label: string, value: string][] {
+  const p = d.type === 'pmos';
+  return [
+    ['region', regionText(d)],
+    ['ID', formatSI(d.id, 'A')],
+    [p ? 'VSG' : 'VGS', formatSI(d.vgs, 'V')],
+    [p ? 'VSD' : 'VDS', formatSI(d.vds, 'V')],
+    ['VDSsat', formatSI(d.vdsat, 'V')],
+    ['margin', formatSI(d.margin, 'V')],
+    ['gm', formatSI(d.gm, 'S')],
+    ['ro', formatOhm(d.ro)],
+    ['gm/ID', `${formatPlain(d.gmId)} /V`],
+    ['IC', `${formatPlain(d.ic)} (${d.inversion})`],
+  ];
+}
+
+/** Pairs of figures side by side: a compact four-column table. */
+function pairTable(rows: [string, string][], header: string): string {
+  const lines = [`| ${header} | | | |`, '|:--|--:|:--|--:|'];
+  for (let i = 0; i < rows.length; i += 2) {
+    const a = rows[i];
+    const b = rows[i + 1] ?? ['', ''];
+    lines.push(`| ${a[0]} | ${a[1]} | ${b[0]} | ${b[1]} |`);
+  }
+  return lines.join('\n');
+}
+
+export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
+  const head = `**${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)}  \n${sizeLine(d)}`;
+  const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
+  return `${head}${note}\n\n${pairTable(deviceFigures(d), 'Operating point')}\n\n${CAUTION}`;
+}
+
+export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): string {
+  const lines = [
+    `**${escapeMd(title)}** · devices`,
+    '',
+    '| device | region | ID | VDS | margin | gm/ID | IC |',
+    '|:--|:--|--:|--:|--:|--:|--:|',
+  ];
+  for (const d of devices) {
+    lines.push(`| ${escapeMd(d.name)} | ${regionText(d)} | ${formatSI(d.id, 'A')} | ${formatSI(d.vds, 'V')} | ${formatSI(d.margin, 'V')} | ${formatPlain(d.gmId)} /V | ${formatPlain(d.ic)} |`);
+  }
+  return `${lines.join('\n')}\n\n${CAUTION}`;
+}
+
+/** The measured figures of one output, textbook Rout beside the exact one. */
+export function mirrorFigures(r: MirrorReport): [label: string, value: string][] {
+  const rows: [string, string][] = [
+    ['Iin', formatSI(r.iin, 'A')],
+    ['Iout', formatSI(r.iout, 'A')],
+    ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio, 4)],
+  ];
+  if (r.error !== undefined) rows.push(['error', formatPercent(r.error, true)]);
+  rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
+  rows.push(['compliance', `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
+  if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
+  if (r.vbias !== undefined) rows.push(['vbias', `${formatSI(r.vbias, 'V')}${r.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
+  return rows;
+}
+
+function kindLine(r: MirrorReport): string {
+  return `${r.kind} ${polarity(r.type)} mirror`;
+}
+
+function convergenceNote(reports: MirrorReport[]): string {
+  const bad = reports.filter((r) => !r.converged);
+  if (bad.length === 0) return '';
+  return '\n\n' + bad.map((r) => `**${escapeMd(r.name)} did not converge**${r.solveNote ? `: ${escapeMd(r.solveNote)}` : ''}`).join('  \n');
+}
+
+export function outputHoverMarkdown(r: MirrorReport): string {
+  const rows = mirrorFigures(r);
+  const table = ['| | |', '|:--|--:|', ...rows.map(([k, v]) => `| ${k} | ${v} |`)].join('\n');
+  return `**${escapeMd(r.name)}** · ${kindLine(r)} · Vout ${formatSI(r.vout, 'V')}${convergenceNote([r])}\n\n${table}\n\n${CAUTION}`;
+}
+
+export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): string {
+  if (reports.length === 1) return outputHoverMarkdown(reports[0]);
+  const first = reports[0];
+  const lines = [
+    `**${escapeMd(mirror)}** · ${first ? kindLine(first) : 'mirror'} · bias bank of ${reports.length} outputs${convergenceNote(reports)}`,
+    '',
+    '| output | Iout | ratio | error | Rout (textbook) | compliance | sigma |',
+    '|:--|--:|--:|--:|--:|--:|--:|',
+  ];
+  for (const r of reports) {
+    const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${formatSI(r.compliance, 'V')} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+  }
+  return `${lines.join('\n')}\n\n${CAUTION}`;
+}
+
+export function hoverMarkdown(t: HoverTarget): string {
+  switch (t.kind) {
+    case 'device': return deviceHoverMarkdown(t.report, t.device);
+    case 'devices': return devicesHoverMarkdown(t.title, t.devices);
+    case 'output': return outputHoverMarkdown(t.report);
+    case 'mirror': return mirrorHoverMarkdown(t.mirror, t.reports);
+  }
+}
+
+// ───────────────────────────── CodeLens and status bar ─────────────────────────────
+
+/** One line above a mirror (or bank output): Iout, error, Rout, compliance. */
+export function lensTitle(r: MirrorReport): string {
+  if (!r.converged) return `${r.name}: did not converge`;
+  const parts = [`Iout ${formatSI(r.iout, 'A')}`];
+  if (r.error !== undefined) parts.push(`error ${formatPercent(r.error, true)}`);
+  parts.push(`Rout ${formatOhm(r.rout)}`, `compliance ${formatSI(r.compliance, 'V')}`);
+  return parts.join(' · ');
+}
+
+/** Lenses: one per anchor of kind mirror (single output) or output (bank). */
+export function lensPlacements(file: FileReport): { range: Range; report: MirrorReport; title: string }[] {
+  const out: { range: Range; report: MirrorReport; title: string }[] = [];
+  for (const a of file.anchors) {
+    if (a.kind === 'device') continue;
+    const report = file.mirrors.find((m) => m.name === a.report);
+    if (!report) continue;
+    if (a.kind === 'mirror') {
+      const outputs = file.mirrors.filter((m) => m.mirror === report.mirror);
+      // A bank's outputs carry their own lenses; the mirror line names how many.
+      const title = outputs.length > 1 ? `${report.mirror}: bias bank of ${outputs.length} outputs` : lensTitle(report);
+      out.push({ range: a.range, report, title });
+    } else {
+      out.push({ range: a.range, report, title: lensTitle(report) });
+    }
+  }
+  return out;
+}
+
+export interface Counts { mirrors: number; errors: number; warnings: number; infos: number }
+
+export function countFindings(file: FileReport): Counts {
+  const c: Counts = { mirrors: new Set(file.mirrors.map((m) => m.mirror)).size, errors: 0, warnings: 0, infos: 0 };
+  for (const f of file.findings) {
+    if (f.severity === 'error') c.errors++;
+    else if (f.severity === 'warning') c.warnings++;
+    else c.infos++;
+  }
+  return c;
+}
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : 's'}`;
+}
+
+/** Status bar text (with a codicon) and tooltip. */
+export function statusSummary(file: FileReport): { text: string; tooltip: string; hasErrors: boolean } {
+  const c = countFindings(file);
+  const icon = !file.parsed || c.errors > 0 ? '$(error)' : c.warnings > 0 ? '$(warning)' : '$(pass)';
+  const text = file.parsed
+    ? `${icon} qpoint: ${plural(c.mirrors, 'mirror')}, ${plural(c.errors, 'error')}`
+    : `${icon} qpoint: spec does not parse`;
+  const tooltip = `${file.title ?? file.file}\n${plural(c.mirrors, 'mirror')} · ${plural(c.errors, 'error')} · ${plural(c.warnings, 'warning')} · ${c.infos} info\nClick to open the bias panel`;
+  return { text, tooltip, hasErrors: !file.parsed || c.errors > 0 };
+}

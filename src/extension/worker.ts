@@ -1,0 +1,59 @@
+/**
+ * The analysis worker thread (bundled to dist/worker.js): runs the core off the extension host's
+ * main thread so typing never stutters. Requests that arrive while an analysis runs are queued by
+ * key; only the newest per key is analysed, the older ones are answered `superseded`.
+ */
+import { parentPort } from 'node:worker_threads';
+import { analyzeText } from '../core/analyze';
+import { fixAll } from '../core/rules/fix-all';
+import { isWorkerRequest, type WorkerRequest, type WorkerResponse } from './workerProtocol';
+
+const port = parentPort;
+if (!port) throw new Error('qpoint worker: must run in a worker thread');
+
+const pending = new Map<string, WorkerRequest>();
+let scheduled = false;
+
+function send(m: WorkerResponse): void {
+  port!.postMessage(m);
+}
+
+function run(req: WorkerRequest): WorkerResponse {
+  const t0 = performance.now();
+  try {
+    if (req.job === 'fixAll') {
+      const result = fixAll(req.text, req.file, (text) => analyzeText(text, req.file, req.opts));
+      return { type: 'fixed', seq: req.seq, key: req.key, result, ms: performance.now() - t0 };
+    }
+    const report = analyzeText(req.text, req.file, req.opts);
+    return { type: 'report', seq: req.seq, key: req.key, report, ms: performance.now() - t0 };
+  } catch (err) {
+    return { type: 'failed', seq: req.seq, key: req.key, message: err instanceof Error ? err.message : String(err) };
+  }
+}
+
+/** One job per turn of the event loop, so messages that arrived meanwhile are seen first. */
+function drain(): void {
+  scheduled = false;
+  const next = pending.entries().next();
+  if (next.done) return;
+  const [key, req] = next.value;
+  pending.delete(key);
+  send(run(req));
+  schedule();
+}
+
+function schedule(): void {
+  if (!scheduled && pending.size > 0) {
+    scheduled = true;
+    setImmediate(drain);
+  }
+}
+
+port.on('message', (m: unknown) => {
+  if (!isWorkerRequest(m)) return;
+  const older = pending.get(m.key);
+  if (older) send({ type: 'superseded', seq: older.seq, key: older.key });
+  pending.set(m.key, m);
+  schedule();
+});

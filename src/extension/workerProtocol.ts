@@ -1,0 +1,47 @@
+/**
+ * Messages between the extension host and its analysis worker thread. Requests carry a sequence
+ * number; a newer request for the same key supersedes an older one that has not started, so the
+ * worker never spends time on text the designer has already changed.
+ * Pure: no `vscode`, no Node.
+ */
+import type { AnalyzeOptions } from '../core/analyze';
+import type { FileReport } from '../core/types';
+import type { FixAllResult } from '../core/rules/fix-all';
+
+export type Job = 'analyze' | 'fixAll';
+
+export interface WorkerRequest {
+  job: Job;
+  seq: number;
+  /** Requests with one key supersede each other (the document URI and the job). */
+  key: string;
+  text: string;
+  file: string;
+  opts: AnalyzeOptions;
+}
+
+export type WorkerResponse =
+  | { type: 'report'; seq: number; key: string; report: FileReport; ms: number }
+  | { type: 'fixed'; seq: number; key: string; result: FixAllResult; ms: number }
+  | { type: 'superseded'; seq: number; key: string }
+  | { type: 'failed'; seq: number; key: string; message: string };
+
+function isRecord(x: unknown): x is Record<string, unknown> {
+  return typeof x === 'object' && x !== null && !Array.isArray(x);
+}
+
+export function isWorkerRequest(m: unknown): m is WorkerRequest {
+  return isRecord(m) && (m.job === 'analyze' || m.job === 'fixAll') && typeof m.seq === 'number'
+    && typeof m.key === 'string' && typeof m.text === 'string' && typeof m.file === 'string' && isRecord(m.opts);
+}
+
+export function isWorkerResponse(m: unknown): m is WorkerResponse {
+  if (!isRecord(m) || typeof m.seq !== 'number' || typeof m.key !== 'string') return false;
+  switch (m.type) {
+    case 'report': return isRecord(m.report) && typeof m.ms === 'number';
+    case 'fixed': return isRecord(m.result) && typeof m.ms === 'number';
+    case 'superseded': return true;
+    case 'failed': return typeof m.message === 'string';
+    default: return false;
+  }
+}

@@ -1,0 +1,349 @@
+// The panel page and the HTML report in real headless Chromium, with the real bundle
+// (dist/webview.js) and the real shell (its CSP included). Screenshots go to test-output/webview/.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import type { Browser, Page } from 'playwright-core';
+import type { FileReport, MirrorReport } from '../../src/core/types';
+import type { HostMessage } from '../../src/protocol/messages';
+import { renderHtmlReport } from '../../src/core/report/html';
+import {
+  OUT, ROOT, THEMES, applyTheme, canvasInk, ensureBundle, ensureDir, hexToRgb, instrument, launch,
+  readSI, until, writePanelPage, type PageProbe, type ThemeKind,
+} from './browser-harness';
+import { fixtureReport } from './fixtures';
+import { analyzeText } from '../../src/core/analyze';
+
+const EXAMPLE = join(ROOT, 'examples', 'sensor-afe.bias.yaml');
+const URI = pathToFileURL(EXAMPLE).toString();
+const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
+
+/** Real core reports of the example spec, before and after an edit a designer makes (the lna
+ *  output of the tail bank goes from 4 to 5 parallel devices). */
+function reports(): { main: FileReport; updated: FileReport } {
+  const text = readFileSync(EXAMPLE, 'utf8');
+  const edited = text.replace('out:  { m: 4 }', 'out:  { m: 5 }');
+  expect(edited).not.toBe(text);
+  const main = analyzeText(text, EXAMPLE, OPTIONS);
+  const updated = analyzeText(edited, EXAMPLE, OPTIONS);
+  expect(main.mirrors.length).toBeGreaterThan(3);
+  expect(updated.mirrors[0].iout).not.toBeCloseTo(main.mirrors[0].iout, 7);
+  return { main, updated };
+}
+
+let cached: ReturnType<typeof reports> | undefined;
+const core = () => (cached ??= reports());
+
+let browser: Browser;
+let panelUrl: string;
+
+beforeAll(async () => {
+  await ensureBundle();
+  panelUrl = writePanelPage();
+  browser = await launch();
+});
+
+afterAll(async () => {
+  await browser?.close();
+});
+
+async function openPanel(initialState?: unknown): Promise<{ page: Page; probe: PageProbe }> {
+  const page = await browser.newPage({ viewport: { width: 1100, height: 900 } });
+  const probe = await instrument(page, initialState);
+  await page.goto(panelUrl);
+  await until('the page to announce ready', async () => page.evaluate(() =>
+    ((window as unknown as { __posted: { type: string }[] }).__posted).some((m) => m.type === 'ready')));
+  return { page, probe };
+}
+
+async function post(page: Page, message: HostMessage | unknown): Promise<void> {
+  await page.evaluate((m) => window.postMessage(m, '*'), message);
+}
+
+async function posted(page: Page): Promise<{ type: string; [k: string]: unknown }[]> {
+  return page.evaluate(() => (window as unknown as { __posted: { type: string }[] }).__posted);
+}
+
+async function cleanPage(page: Page, probe: PageProbe): Promise<void> {
+  const violations = await page.evaluate(() => (window as unknown as { __violations: string[] }).__violations);
+  expect(violations).toEqual([]);
+  expect(probe.errors).toEqual([]);
+}
+
+/** Numbers in the detail of the shown mirror, read back as SI values. */
+async function figure(page: Page, key: string): Promise<string> {
+  return page.locator(`article.mirror [data-figures="summary"] [data-figure="${key}"] .value`).innerText();
+}
+
+describe('the bias panel page', () => {
+  it('shows the report: mirrors, figures and devices carry the core\'s numbers', async () => {
+    const { main } = core();
+    const { page, probe } = await openPanel();
+    await expect.poll(() => page.locator('#notice').innerText()).toContain('Open a bias spec');
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    await page.locator('article.mirror').waitFor();
+
+    // Overview: one row per output, Iout as the core computed it (4 significant digits).
+    const rows = page.locator('#mirror-list tbody tr');
+    await expect.poll(() => rows.count()).toBe(main.mirrors.length);
+    for (const [i, m] of main.mirrors.entries()) {
+      const cells = rows.nth(i).locator('th, td');
+      expect(await cells.nth(0).innerText()).toBe(m.name);
+      expect(Math.abs(readSI(await cells.nth(3).innerText(), 'A') / m.iout - 1)).toBeLessThan(5e-4);
+    }
+
+    const m = main.mirrors[0];
+    await checkDetail(page, m);
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
+  it('draws both plots with the theme colours, in light, dark and high contrast', async () => {
+    const { main } = core();
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    await page.locator('.plot canvas').first().waitFor();
+    for (const kind of ['light', 'dark', 'high-contrast'] as ThemeKind[]) {
+      await applyTheme(page, kind);
+      const fg = THEMES[kind].vars['--vscode-foreground'];
+      await expect.poll(() => page.evaluate(() => getComputedStyle(document.body).color)).toBe(rgbText(fg));
+      const blue = hexToRgb(THEMES[kind].vars['--vscode-charts-blue']);
+      // The redraw after a theme switch paints the Iout line in the theme's chart blue.
+      const ink = await until(`plots in ${kind}`, async () => {
+        const r = await canvasInk(page, '.plot[id^="plot-iout"]', blue);
+        return r.length > 0 && r.every((c) => c.inked > 1000 && c.colour > 50) ? r : undefined;
+      });
+      expect(ink.length).toBeGreaterThan(0);
+      const rout = await canvasInk(page, '.plot[id^="plot-rout"]');
+      expect(rout.every((c) => c.inked > 1000)).toBe(true);
+      await page.screenshot({ path: ensureDir(join(OUT, `panel-${kind}.png`)), fullPage: true });
+    }
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
+  it('reveals a device or finding on click and on Enter; rows are in the tab order', async () => {
+    const { main } = core();
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    const m = main.mirrors[0];
+    await page.locator('article.mirror').waitFor();
+    const anchor = main.anchors.find((a) => a.kind === 'device' && a.report === m.name)!;
+    await page.locator(`table.devices tr[data-key="dev:${m.name}:${anchor.device}"]`).click();
+    await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
+      .toEqual({ type: 'reveal', uri: URI, range: anchor.range });
+
+    // Show an output that has findings, then keyboard only: Tab from the top until a finding row
+    // has focus, then Enter. The row shows
+    // its code and 1-based line:col; the reveal must carry that finding's range.
+    const owner = main.mirrors.find((o) => main.findings.some((f) => f.path[1] === o.path[1]))!;
+    await page.locator(`#mirror-list tr[data-key="mirror:${owner.name}"]`).click();
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(owner.name);
+    await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur());
+    let key: string | undefined;
+    for (let i = 0; i < 80 && !key?.startsWith('finding:'); i++) {
+      await page.keyboard.press('Tab');
+      key = await page.evaluate(() => (document.activeElement as HTMLElement | null)?.dataset.key);
+    }
+    expect(key).toMatch(/^finding:/);
+    const [, , code, line, col] = key!.split(':');  // finding:<index>:<code>:<line>:<col>
+    const finding = main.findings.find((f) => f.code === code && f.range.start.line === Number(line) - 1 && f.range.start.character === Number(col) - 1);
+    expect(finding).toBeDefined();
+    await page.keyboard.press('Enter');
+    await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
+      .toEqual({ type: 'reveal', uri: URI, range: finding!.range });
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
+  it('selects another output, keeps the choice across updates and reloads', async () => {
+    const { main, updated } = core();
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    const second = main.mirrors[1];
+    await page.locator(`#mirror-list tr[data-key="mirror:${second.name}"]`).press('Enter');
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(second.name);
+    await post(page, { type: 'report', uri: URI, report: updated, version: 2 });
+    await expect.poll(() => page.evaluate(() => document.body.dataset.qpointVersion)).toBe('2');
+    expect(await page.locator('article.mirror').getAttribute('data-mirror')).toBe(second.name);
+    const saved = await page.evaluate(() => (window as unknown as { __saved: unknown }).__saved);
+    await cleanPage(page, probe);
+    await page.close();
+
+    // A reloaded page (VS Code restores it from getState) shows the same view before any message.
+    const again = await openPanel(saved);
+    await expect.poll(() => again.page.locator('article.mirror').getAttribute('data-mirror')).toBe(second.name);
+    expect(await again.page.locator('#mirror-list tbody tr').count()).toBe(updated.mirrors.length);
+    await cleanPage(again.page, again.probe);
+    await again.page.close();
+  });
+
+  it('updates within 200 ms, drops stale and malformed messages', async () => {
+    const { main, updated } = core();
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: main, version: 5 });
+    await page.locator('article.mirror').waitFor();
+    // Post and wait for the new Iout inside the page: the latency the designer sees.
+    const latency = await page.evaluate(async (msg) => {
+      const start = performance.now();
+      const cell = () => document.querySelector('#mirror-list tbody tr th')?.parentElement?.children[3]?.textContent;
+      const before = cell();
+      window.postMessage(msg, '*');
+      return new Promise<number>((resolve, reject) => {
+        const deadline = start + 2000;
+        const tick = () => {
+          if (cell() !== before) resolve(performance.now() - start);
+          else if (performance.now() > deadline) reject(new Error('no update'));
+          else requestAnimationFrame(tick);
+        };
+        tick();
+      });
+    }, { type: 'report', uri: URI, report: updated, version: 6 });
+    console.log(`panel update latency: ${latency.toFixed(1)} ms`);
+    expect(latency).toBeLessThan(200);
+    expect(readSI(await figure(page, 'iout'), 'A') / updated.mirrors[0].iout - 1).toBeCloseTo(0, 3);
+
+    // An older version for the same file changes nothing.
+    await post(page, { type: 'report', uri: URI, report: main, version: 4 });
+    // Malformed: the page logs it to the host and keeps its view.
+    await post(page, { type: 'report', uri: URI, report: { file: 'x', mirrors: 'many' }, version: 9 });
+    await post(page, { command: 'refresh' });
+    await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'log').length).toBe(2);
+    expect(await page.evaluate(() => document.body.dataset.qpointVersion)).toBe('6');
+    expect(readSI(await figure(page, 'iout'), 'A') / updated.mirrors[0].iout - 1).toBeCloseTo(0, 3);
+
+    await post(page, { type: 'clear', message: 'The bias spec shown here was closed.' });
+    await expect.poll(() => page.locator('#notice').innerText()).toBe('The bias spec shown here was closed.');
+    expect(await page.locator('#qpoint-caution').innerText()).toContain('confirm with transistor-level simulation');
+    await cleanPage(page, probe);
+    await page.close();
+  });
+});
+
+describe('sections that render when present', () => {
+  it('Monte Carlo histogram and corner table (hand-made report until the core attaches them)', async () => {
+    const report = fixtureReport();
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report, version: 1 });
+    const m = report.mirrors[0];
+    const ink = await until('the histogram', async () => {
+      const r = await canvasInk(page, '.plot[id^="plot-mc"]');
+      return r.length === 1 && r[0].inked > 1000 ? r : undefined;
+    });
+    expect(ink).toHaveLength(1);
+    const mc = page.locator('[data-figures="mc"]');
+    expect(readSI(await mc.locator('[data-figure="mean"] .value').innerText(), 'A') / m.mc!.mean - 1).toBeCloseTo(0, 3);
+    const corners = page.locator('table.corners tbody tr');
+    expect(await corners.count()).toBe(m.corners!.length);
+    // slow-cold has the largest error, lowest Rout, highest compliance and smallest margin.
+    expect(await corners.nth(0).locator('td.bad').count()).toBe(5);
+    expect(await corners.nth(1).locator('td.bad').count()).toBe(0);
+    await cleanPage(page, probe);
+    await page.close();
+  });
+});
+
+describe('README screenshot', () => {
+  it('saves the panel on the example as media/panel.png', async () => {
+    const { main } = core();
+    const page = await browser.newPage({ viewport: { width: 1000, height: 1250 }, deviceScaleFactor: 1 });
+    const probe = await instrument(page);
+    await page.goto(panelUrl);
+    await applyTheme(page, 'dark');
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    await until('plots drawn', async () => {
+      const r = await canvasInk(page, '.plot');
+      return r.length >= 2 && r.every((c) => c.inked > 1000) ? r : undefined;
+    });
+    const file = ensureDir(join(ROOT, 'media', 'panel.png'));
+    await page.screenshot({ path: file });
+    expect(readFileSync(file).subarray(1, 4).toString()).toBe('PNG');
+    await cleanPage(page, probe);
+    await page.close();
+  });
+});
+
+describe('the HTML report', () => {
+  it('opens with no network request, shows every mirror and draws its plots', async () => {
+    const { main } = core();
+    const html = renderHtmlReport(main, { script: readFileSync(join(ROOT, 'dist', 'webview.js'), 'utf8') });
+    mkdirSync(OUT, { recursive: true });
+    const file = join(OUT, 'report.html');
+    writeFileSync(file, html);
+
+    const context = await browser.newContext({ viewport: { width: 1200, height: 900 } });
+    const requests: string[] = [];
+    await context.route('**/*', (route) => {
+      const url = route.request().url();
+      if (url.startsWith('file:') || url.startsWith('data:')) return route.continue();
+      requests.push(url);
+      return route.abort();
+    });
+    const page = await context.newPage();
+    const errors: string[] = [];
+    page.on('console', (m) => { if (m.type() === 'error') errors.push(m.text()); });
+    page.on('pageerror', (e) => errors.push(e.message));
+    page.on('request', (r) => { if (!r.url().startsWith('file:') && !r.url().startsWith('data:')) requests.push(r.url()); });
+    await page.goto(pathToFileURL(file).toString());
+    await page.locator('body[data-qpoint-ready="true"]').waitFor();
+
+    await expect.poll(() => page.locator('article.mirror').count()).toBe(main.mirrors.length);
+    for (const m of main.mirrors) await checkDetail(page, m, `article.mirror[data-mirror="${m.name}"]`);
+    const withCurve = main.mirrors.filter((m) => (m.curve?.length ?? 0) > 1).length;
+    const ink = await until('report plots', async () => {
+      const r = await canvasInk(page, '.plot');
+      return r.length >= 2 * withCurve && r.every((c) => c.inked > 1000) ? r : undefined;
+    });
+    expect(ink.length).toBeGreaterThanOrEqual(2 * withCurve);
+    expect(await page.locator('#qpoint-caution').innerText()).toContain("foundry's models and corners");
+    await page.screenshot({ path: join(OUT, 'report.png'), fullPage: true });
+    expect(requests).toEqual([]);
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
+
+/** The detail of one mirror output: summary and device table read back against the report. */
+async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'): Promise<void> {
+  const article = page.locator(scope);
+  await article.waitFor();
+  const val = (key: string) => article.locator(`[data-figures="summary"] [data-figure="${key}"] .value`).innerText();
+  const close = (text: string, unit: string, want: number, digits: number) => {
+    const got = readSI(text, unit);
+    expect(Math.abs(got - want)).toBeLessThanOrEqual(Math.abs(want) * 0.5 * 10 ** (1 - digits) + 1e-30);
+  };
+  close(await val('iin'), 'A', m.iin, 4);
+  close(await val('iout'), 'A', m.iout, 4);
+  close(await val('rout'), 'Ω', m.rout, 3);
+  close(await val('compliance'), 'V', m.compliance, 4);
+  if (m.error !== undefined) close(await val('error'), '%', m.error, 3);
+  if (m.sigma !== undefined) close(await val('sigma'), '%', m.sigma, 3);
+  expect(Number(await val('ratio'))).toBeCloseTo(m.ratio, 4);
+  if (m.routApprox !== undefined) {
+    const detail = await article.locator('[data-figure="rout"] .detail').innerText();
+    close(detail.replace(/^textbook /, ''), 'Ω', m.routApprox, 3);
+  }
+  // A bank output lists its own devices (`<output>.<role>`) and the shared reference.
+  const listed = m.output === undefined ? m.devices : m.devices.filter((d) => d.name.startsWith(`${m.output}.`) || !d.name.includes('.'));
+  const rows = article.locator('table.devices tbody tr');
+  expect(await rows.count()).toBe(listed.length);
+  for (const [i, d] of listed.entries()) {
+    const cells = rows.nth(i).locator('th, td');
+    expect(await cells.nth(0).innerText()).toBe(d.name);
+    close(await cells.nth(1).innerText(), 'm', d.w, 3);
+    close(await cells.nth(2).innerText(), 'm', d.l, 3);
+    close(await cells.nth(4).innerText(), 'A', d.id, 4);
+    close(await cells.nth(5).innerText(), 'V', d.vgs, 4);
+    close(await cells.nth(6).innerText(), 'V', d.vds, 4);
+    close(await cells.nth(7).innerText(), 'V', d.vdsat, 4);
+    close(await cells.nth(8).innerText(), 'V', d.margin, 3);
+    expect(await cells.nth(9).innerText()).toBe(d.region);
+    close(await cells.nth(12).innerText(), 'Ω', d.ro, 3);
+  }
+}
+
+function rgbText(hex: string): string {
+  const [r, g, b] = hexToRgb(hex);
+  return `rgb(${r}, ${g}, ${b})`;
+}

@@ -1,0 +1,95 @@
+// The panel's state logic: ordering of reports, selection across updates, reload state.
+import { describe, expect, it } from 'vitest';
+import {
+  DEFAULT_NOTICE, applyHostMessage, fromPersisted, initialState, selectMirror, toPersisted,
+} from '../../webview/state';
+import { fixtureReport, tailMirror } from './fixtures';
+
+const A = 'file:///a.bias.yaml';
+const B = 'file:///b.bias.yaml';
+
+describe('applyHostMessage', () => {
+  it('shows the first report and selects its first mirror', () => {
+    const s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    expect(s.uri).toBe(A);
+    expect(s.version).toBe(1);
+    expect(s.selected).toBe('tail');
+    expect(s.notice).toBeUndefined();
+  });
+
+  it('drops a report older than the one shown for the same file', () => {
+    const newer = fixtureReport();
+    newer.mirrors[0].iout = 5e-5;
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: newer, version: 5 });
+    s = applyHostMessage(s, { type: 'report', uri: A, report: fixtureReport(), version: 4 });
+    expect(s.report?.mirrors[0].iout).toBe(5e-5);
+    expect(s.version).toBe(5);
+  });
+
+  it('takes a report of another file whatever its version', () => {
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 5 });
+    s = applyHostMessage(s, { type: 'report', uri: B, report: fixtureReport(), version: 2 });
+    expect(s.uri).toBe(B);
+  });
+
+  it('keeps the selection while the mirror exists, else falls back to the first', () => {
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    s = selectMirror(s, 'load.b');
+    s = applyHostMessage(s, { type: 'report', uri: A, report: fixtureReport(), version: 2 });
+    expect(s.selected).toBe('load.b');
+    const renamed = fixtureReport();
+    renamed.mirrors = [tailMirror({ name: 'bias' })];
+    s = applyHostMessage(s, { type: 'report', uri: A, report: renamed, version: 3 });
+    expect(s.selected).toBe('bias');
+  });
+
+  it('clears to a notice and keeps the version for ordering', () => {
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 4 });
+    s = applyHostMessage(s, { type: 'clear', message: 'closed' });
+    expect(s.report).toBeUndefined();
+    expect(s.notice).toBe('closed');
+    expect(s.version).toBe(4);
+    expect(applyHostMessage(s, { type: 'clear' }).notice).toBe(DEFAULT_NOTICE);
+  });
+});
+
+describe('selectMirror', () => {
+  it('ignores unknown names and a missing report', () => {
+    const s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    expect(selectMirror(s, 'nope')).toBe(s);
+    expect(selectMirror(initialState, 'tail')).toBe(initialState);
+  });
+});
+
+describe('persisted state', () => {
+  it('round-trips through getState/setState as JSON, keeping Infinity and NaN', () => {
+    const report = fixtureReport();
+    report.mirrors[0].rout = Infinity;
+    report.mirrors[0].sigma = Number.NaN;
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report, version: 9 });
+    s = selectMirror(s, 'load.a');
+    const restored = fromPersisted(JSON.parse(JSON.stringify(toPersisted(s))));  // VS Code stores state as JSON
+    expect(restored.uri).toBe(A);
+    expect(restored.selected).toBe('load.a');
+    expect(restored.report?.mirrors[0].rout).toBe(Infinity);
+    expect(restored.report?.mirrors[0].sigma).toBeNaN();
+    // Versions belong to one page lifetime: a restored page takes the host's next report.
+    expect(restored.version).toBe(-1);
+    expect(applyHostMessage(restored, { type: 'report', uri: A, report: fixtureReport(), version: 1 }).version).toBe(1);
+  });
+
+  it.each([
+    ['undefined', undefined],
+    ['a number', 3],
+    ['no uri', { reportJson: JSON.stringify(fixtureReport()) }],
+    ['a report object instead of its JSON', { uri: A, report: fixtureReport() }],
+    ['JSON that does not parse', { uri: A, reportJson: '{"file":' }],
+    ['a malformed report', { uri: A, reportJson: JSON.stringify({ file: 'x', mirrors: 'none' }) }],
+  ])('ignores %s', (_name, v) => {
+    expect(fromPersisted(v)).toEqual(initialState);
+  });
+
+  it('drops a stale selection on restore', () => {
+    expect(fromPersisted({ uri: A, reportJson: JSON.stringify(fixtureReport()), selected: 'gone' }).selected).toBe('tail');
+  });
+});

@@ -1,0 +1,301 @@
+/**
+ * Extension-host suite: runs inside a real VS Code (code-server here, VS Code desktop through
+ * @vscode/test-electron elsewhere) with the real `vscode` API, on copies of the fixture specs in
+ * the workspace folder. The host calls `run()`; a rejected promise is exit code 1.
+ *
+ * External checks: the Razavi level-1 device D of references.md (set from memory, values
+ * computed there from the square law): diode VGS = 1.067 234 V, IOUT at VOUT = 1.5 V =
+ * 103.9103 µA, so the ratio error is +3.91 % (§9); VDSsat = VOV = 0.367 V, so VOUT = 0.3 V puts
+ * the output device in triode (design §3). Expected finding positions come from the fixtures'
+ * FAULT markers: the range is the value that must change (design §6).
+ *
+ * Results and measurements go to $QPOINT_SUITE_RESULT as JSON; the harness prints them.
+ */
+import * as vscode from 'vscode';
+import { writeFileSync } from 'node:fs';
+import type { QpointApi } from '../../../src/extension/api';
+import { CAUTION_TEXT } from '../../../src/core/report/html';
+import { formatSI } from '../../../src/core/units/format';
+
+const EXTENSION_ID = 'qpoint-dev.qpoint';
+const FINDINGS_DOC = 'https://github.com/qpoint-dev/qpoint/blob/main/docs/findings.md';
+
+interface CheckResult { name: string; ok: boolean; ms: number; detail?: string }
+const results: CheckResult[] = [];
+const metrics: Record<string, number | number[] | string> = {};
+
+class CheckFailed extends Error {}
+
+function assert(cond: unknown, message: string): asserts cond {
+  if (!cond) throw new CheckFailed(message);
+}
+
+function near(actual: number, expected: number, relTol: number, what: string): void {
+  assert(Math.abs(actual - expected) <= relTol * Math.abs(expected), `${what}: ${actual} is not within ${relTol * 100} % of ${expected}`);
+}
+
+async function check(name: string, body: () => Promise<void>): Promise<void> {
+  const t0 = Date.now();
+  try {
+    await body();
+    results.push({ name, ok: true, ms: Date.now() - t0 });
+  } catch (err) {
+    results.push({ name, ok: false, ms: Date.now() - t0, detail: err instanceof Error ? (err.stack ?? err.message) : String(err) });
+  }
+}
+
+/** Resolve with probe()'s value once it is truthy; re-probe on the given events and every 25 ms. */
+function waitFor<T>(what: string, probe: () => T | undefined | false | null, timeoutMs = 20_000,
+  events: vscode.Event<unknown>[] = [vscode.languages.onDidChangeDiagnostics]): Promise<T> {
+  return new Promise<T>((resolve, reject) => {
+    const subs: vscode.Disposable[] = [];
+    let done = false;
+    const finish = (fn: () => void) => {
+      if (done) return;
+      done = true;
+      clearInterval(poll);
+      clearTimeout(deadline);
+      for (const s of subs) s.dispose();
+      fn();
+    };
+    const tryProbe = () => {
+      try {
+        const v = probe();
+        if (v) finish(() => resolve(v));
+      } catch (e) { finish(() => reject(e)); }
+    };
+    const poll = setInterval(tryProbe, 25);
+    const deadline = setTimeout(() => finish(() => reject(new CheckFailed(`timed out after ${timeoutMs} ms waiting for ${what}`))), timeoutMs);
+    for (const ev of events) subs.push(ev(tryProbe));
+    tryProbe();
+  });
+}
+
+function qpointDiagnostics(uri: vscode.Uri): vscode.Diagnostic[] {
+  return vscode.languages.getDiagnostics(uri).filter((d) => d.source === 'qpoint');
+}
+
+function codeOf(d: vscode.Diagnostic): string | undefined {
+  return typeof d.code === 'object' && d.code !== null ? String(d.code.value) : d.code === undefined ? undefined : String(d.code);
+}
+
+function hoverText(hovers: vscode.Hover[]): string {
+  return hovers.flatMap((h) => h.contents.map((c) => (typeof c === 'string' ? c : 'value' in c ? c.value : ''))).join('\n');
+}
+
+/** Position of `needle` on the first line matching `line`, at `offset` characters into it. */
+function positionOf(doc: vscode.TextDocument, line: RegExp, needle: string, offset = 0): vscode.Position {
+  for (let i = 0; i < doc.lineCount; i++) {
+    const text = doc.lineAt(i).text;
+    if (line.test(text)) {
+      const c = text.indexOf(needle);
+      assert(c >= 0, `"${needle}" not on line ${i + 1}: ${text}`);
+      return new vscode.Position(i, c + offset);
+    }
+  }
+  throw new CheckFailed(`no line matches ${line}`);
+}
+
+function commentsOf(text: string): string[] {
+  return text.split('\n').map((l) => l.indexOf('#')).map((c, i) => (c >= 0 ? text.split('\n')[i].slice(c) : '')).filter(Boolean);
+}
+
+async function setText(editor: vscode.TextEditor, range: vscode.Range, text: string): Promise<void> {
+  const ok = await editor.edit((b) => b.replace(range, text));
+  assert(ok, 'editor edit was not applied');
+}
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  return s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+}
+
+export async function run(): Promise<void> {
+  const folder = vscode.workspace.workspaceFolders?.[0]?.uri;
+  const resultFile = process.env.QPOINT_SUITE_RESULT;
+  try {
+    assert(folder, 'no workspace folder open');
+    await suite(folder);
+  } catch (err) {
+    results.push({ name: 'suite', ok: false, ms: 0, detail: err instanceof Error ? (err.stack ?? err.message) : String(err) });
+  }
+  if (resultFile) writeFileSync(resultFile, JSON.stringify({ results, metrics }, null, 2));
+  for (const r of results) console.log(`${r.ok ? 'ok  ' : 'FAIL'} ${r.name} (${r.ms} ms)${r.detail ? `\n${r.detail}` : ''}`);
+  console.log(`qpoint workbench metrics: ${JSON.stringify(metrics)}`);
+  const failed = results.filter((r) => !r.ok);
+  if (failed.length > 0) throw new Error(`${failed.length} of ${results.length} workbench checks failed: ${failed.map((f) => f.name).join(', ')}`);
+}
+
+async function suite(folder: vscode.Uri): Promise<void> {
+  const ext = vscode.extensions.getExtension<QpointApi>(EXTENSION_ID);
+  assert(ext, `${EXTENSION_ID} is not loaded`);
+  const faultyUri = vscode.Uri.joinPath(folder, 'faulty.bias.yaml');
+  const dUri = vscode.Uri.joinPath(folder, 'd-check.bias.yaml');
+  const jsonUri = vscode.Uri.joinPath(folder, 'unopened.bias.json');
+  let api: QpointApi | undefined;
+  let faulty: vscode.TextDocument | undefined;
+
+  await check('activation waits for a bias spec (language and commands only)', async () => {
+    assert(!ext.isActive, 'qpoint was active before any bias spec was opened');
+  });
+
+  await check('opening a spec activates qpoint and shows its diagnostics', async () => {
+    const t0 = Date.now();
+    faulty = await vscode.workspace.openTextDocument(faultyUri);
+    await vscode.window.showTextDocument(faulty);
+    await waitFor('diagnostics of faulty.bias.yaml', () => qpointDiagnostics(faultyUri).length > 0);
+    metrics.openToFirstDiagnosticsMs = Date.now() - t0;
+    assert(faulty.languageId === 'qpoint-bias', `language is ${faulty.languageId}`);
+    api = ext.exports;
+    assert(api && typeof api.analysisCount === 'function', 'activate() did not return the qpoint API');
+    metrics.activationMs = Math.round(api.activationMs * 10) / 10;
+    metrics.firstAnalysisInWorkerMs = Math.round(api.lastAnalysisMs());
+  });
+  if (!api || !faulty) return;
+  const qp = api;
+  const doc = faulty;
+
+  await check('diagnostic at the FAULT marker: code, narrow range, link, related locations', async () => {
+    const marker = positionOf(doc, /# FAULT ratio-error/, '{ m: 3 }', '{ m: '.length);
+    const d = qpointDiagnostics(faultyUri).find((x) => codeOf(x) === 'ratio-error');
+    assert(d, `no ratio-error diagnostic; got ${qpointDiagnostics(faultyUri).map(codeOf).join(', ')}`);
+    assert(d.severity === vscode.DiagnosticSeverity.Error, `severity ${d.severity}`);
+    assert(d.range.start.isEqual(marker), `range starts at ${d.range.start.line}:${d.range.start.character}, expected ${marker.line}:${marker.character}`);
+    assert(doc.getText(d.range) === '3', `range covers "${doc.getText(d.range)}", expected the value "3"`);
+    const target = typeof d.code === 'object' ? d.code.target.toString(true) : '';
+    assert(target === `${FINDINGS_DOC}#ratio-error`, `code target ${target}`);
+    assert((d.relatedInformation?.length ?? 0) > 0, 'no related information');
+    const requireLine = positionOf(doc, /require: \{ ratio: 4, rout: 20M/, 'ratio: 4').line;
+    assert(d.relatedInformation!.some((r) => r.location.uri.toString() === faultyUri.toString() && r.location.range.start.line === requireLine),
+      'related information does not point at require.ratio');
+    // The clean example's other findings are warnings only (no second error).
+    assert(qpointDiagnostics(faultyUri).filter((x) => x.severity === vscode.DiagnosticSeverity.Error).length === 1, 'more than the one deliberate error');
+  });
+
+  await check('quick fix through WorkspaceEdit clears its diagnostic and keeps comments', async () => {
+    const d = qpointDiagnostics(faultyUri).find((x) => codeOf(x) === 'ratio-error');
+    assert(d, 'no ratio-error diagnostic');
+    const actions = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', faultyUri, d.range, vscode.CodeActionKind.QuickFix.value);
+    const mine = actions.filter((a) => a.diagnostics?.some((x) => codeOf(x) === 'ratio-error' && x.range.isEqual(d.range)));
+    assert(mine.length > 0, `no quick fix bound to the diagnostic (got ${actions.map((a) => a.title).join(' | ')})`);
+    const preferred = mine.filter((a) => a.isPreferred);
+    assert(preferred.length === 1, `${preferred.length} preferred fixes`);
+    assert(preferred[0].edit, 'preferred fix has no edit');
+    const before = doc.getText();
+    const version = doc.version;
+    assert(await vscode.workspace.applyEdit(preferred[0].edit), 'applyEdit failed');
+    await waitFor('ratio-error to clear after the fix', () => doc.version > version && qp.lastReport(faultyUri) !== undefined
+      && !qpointDiagnostics(faultyUri).some((x) => codeOf(x) === 'ratio-error'), 20_000, [vscode.languages.onDidChangeDiagnostics, qp.onDidUpdate]);
+    const lost = commentsOf(before).filter((c) => !doc.getText().includes(c));
+    assert(lost.length === 0, `comments lost: ${lost.join(' / ')}`);
+    metrics.quickFix = preferred[0].title;
+  });
+
+  await check('fix-all source action and command apply the preferred fixes', async () => {
+    const before = qpointDiagnostics(faultyUri).length;
+    const all = new vscode.Range(0, 0, doc.lineCount, 0);
+    const src = await vscode.commands.executeCommand<vscode.CodeAction[]>('vscode.executeCodeActionProvider', faultyUri, all, 'source.fixAll.qpoint');
+    const fixAll = src.find((a) => a.kind?.value === 'source.fixAll.qpoint');
+    assert(fixAll, `no source.fixAll.qpoint action (got ${src.map((a) => a.kind?.value).join(', ')})`);
+    const summary = await vscode.commands.executeCommand<{ applied: number; changed: boolean } | undefined>('qpoint.fixAll');
+    assert(summary, 'qpoint.fixAll returned nothing');
+    if (summary.applied > 0) {
+      assert(summary.changed, 'fixes applied but the text did not change');
+      await waitFor('fewer findings after fix-all', () => qpointDiagnostics(faultyUri).length < before, 20_000,
+        [vscode.languages.onDidChangeDiagnostics, qp.onDidUpdate]);
+    }
+    metrics.fixAllApplied = summary.applied;
+  });
+
+  let dDoc: vscode.TextDocument | undefined;
+  await check('hover shows the operating point of the D device (references.md §9)', async () => {
+    dDoc = await vscode.workspace.openTextDocument(dUri);
+    await vscode.window.showTextDocument(dDoc);
+    const report = await waitFor('report of d-check', () => qp.lastReport(dUri), 20_000, [qp.onDidUpdate]);
+    const d = dDoc;
+    const out = report.mirrors[0]?.devices.find((x) => x.name === 'out');
+    assert(out, 'no device out in the report');
+    near(out.id, 103.9103e-6, 1e-5, 'IOUT at 1.5 V');
+    const onKey = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', dUri, positionOf(d, /^\s+out:\s*$/, 'out', 1)));
+    for (const s of ['Operating point', '| ID | 104 µA |', '| VGS | 1.07 V |', '| VDS | 1.5 V |', '| VDSsat | 367 mV |', `| gm | ${formatSI(out.gm, 'S')} |`, 'gm/ID', 'IC', CAUTION_TEXT]) {
+      assert(onKey.includes(s), `hover on the device key lacks "${s}":\n${onKey}`);
+    }
+    const onSize = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', dUri, positionOf(d, /^\s+w: 10u/, '10u', 1)));
+    assert(onSize.includes('| ID | 104 µA |'), `hover on the size value inside the device lacks the table:\n${onSize}`);
+    const onName = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', dUri, positionOf(d, /- name: copy/, 'copy', 1)));
+    for (const s of ['| Iout | 104 µA |', '| error | +3.91 % |', 'textbook', 'compliance', CAUTION_TEXT]) {
+      assert(onName.includes(s), `hover on the mirror name lacks "${s}":\n${onName}`);
+    }
+  });
+
+  await check('CodeLens above each mirror: Iout, error, Rout, compliance', async () => {
+    assert(dDoc, 'd-check not open');
+    const lenses = await vscode.commands.executeCommand<vscode.CodeLens[]>('vscode.executeCodeLensProvider', dUri);
+    const titles = lenses.map((l) => l.command?.title ?? '');
+    assert(lenses.length === 1, `${lenses.length} lenses: ${titles.join(' | ')}`);
+    assert(titles[0].startsWith('Iout 104 µA · error +3.91 % · Rout '), `lens title: ${titles[0]}`);
+    assert(lenses[0].range.start.line === positionOf(dDoc, /- name: copy/, 'copy').line, 'lens not at the mirror');
+    const bank = await vscode.commands.executeCommand<vscode.CodeLens[]>('vscode.executeCodeLensProvider', faultyUri);
+    const bankTitles = bank.map((l) => l.command?.title ?? '');
+    assert(bankTitles.includes('tail: bias bank of 3 outputs'), `bank lens missing: ${bankTitles.join(' | ')}`);
+    // 7 mirrors, the bank adds its 3 outputs.
+    assert(bank.length === 10, `${bank.length} lenses in the example`);
+  });
+
+  await check('live re-check after edits; keystroke → diagnostics latency', async () => {
+    assert(dDoc, 'd-check not open');
+    const d = dDoc;
+    const editor = await vscode.window.showTextDocument(d);
+    const lat: number[] = [];
+    const vLine = positionOf(d, /output: \{ v: 1\.5 \}/, '1.5').line;
+    for (let i = 0; i < 6; i++) {
+      const low = i % 2 === 0;
+      const line = d.lineAt(vLine).text;
+      const c = line.indexOf('v: ') + 3;
+      const end = line.indexOf(' }', c);
+      const t0 = Date.now();
+      await setText(editor, new vscode.Range(vLine, c, vLine, end), low ? '0.3' : '1.5');
+      // VOUT = 0.3 V < VDSsat = 0.367 V: the output device leaves saturation (design §3).
+      await waitFor(`not-saturated to ${low ? 'appear' : 'clear'}`, () =>
+        qpointDiagnostics(dUri).some((x) => codeOf(x) === 'not-saturated') === low, 10_000);
+      lat.push(Date.now() - t0);
+    }
+    metrics.keystrokeToDiagnosticsMs = lat;
+    metrics.keystrokeToDiagnosticsMedianMs = median(lat);
+    const count = qp.analysisCount();
+    assert(count >= 6, `analysisCount ${count}`);
+  });
+
+  await check('the bias panel opens from qpoint.openPanel', async () => {
+    await vscode.commands.executeCommand('qpoint.openPanel');
+    await waitFor('a qpoint panel tab', () => vscode.window.tabGroups.all.flatMap((g) => g.tabs)
+      .some((t) => t.input instanceof vscode.TabInputWebview && t.input.viewType.includes('qpoint.biasPanel')), 10_000,
+    [vscode.window.tabGroups.onDidChangeTabs]);
+  });
+
+  await check('workspace check finds every spec, also unopened ones (JSON too)', async () => {
+    const summary = await vscode.commands.executeCommand<{ files: number; checked: number; errors: number; cancelled: boolean }>('qpoint.checkWorkspace');
+    const expected = Number(process.env.QPOINT_EXPECT_SPECS ?? NaN);
+    assert(summary && summary.files === expected && summary.checked === expected, `summary ${JSON.stringify(summary)}, expected ${expected} files`);
+    assert(!vscode.workspace.textDocuments.some((t) => t.uri.toString() === jsonUri.toString()), 'the JSON spec was opened');
+    const diags = qpointDiagnostics(jsonUri);
+    assert(diags.some((x) => codeOf(x) === 'not-saturated'), `unopened JSON spec: ${diags.map(codeOf).join(', ')}`);
+  });
+
+  await check('export writes the self-contained HTML report', async () => {
+    await vscode.window.showTextDocument(doc);
+    const target = vscode.Uri.joinPath(folder, 'out', 'faulty.report.html');
+    const written = await vscode.commands.executeCommand<vscode.Uri | undefined>('qpoint.exportReport', { target });
+    assert(written?.toString() === target.toString(), `export returned ${written?.toString()}`);
+    const html = new TextDecoder().decode(await vscode.workspace.fs.readFile(target));
+    assert(html.startsWith('<!DOCTYPE html>'), 'not an HTML document');
+    for (const s of ['tail.lna', 'load_p', 'wilson_ref', '"curve"']) assert(html.includes(s), `report lacks ${s}`);
+  });
+
+  await check('closing a spec clears its diagnostics', async () => {
+    assert(dDoc, 'd-check not open');
+    await vscode.window.showTextDocument(dDoc);
+    await vscode.commands.executeCommand('workbench.action.revertAndCloseActiveEditor');
+    await waitFor('diagnostics of d-check to clear', () => qpointDiagnostics(dUri).length === 0, 15_000);
+  });
+}

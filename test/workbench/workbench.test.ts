@@ -1,0 +1,177 @@
+/**
+ * qpoint in the real VS Code workbench: code-server 4.100.3 (workbench 1.100.3) installed on
+ * demand into .cache/code-server/, driven by Debian's Chromium through playwright-core.
+ *
+ * 1. The extension-host suite (test/workbench/suite) runs with the real `vscode` API and reports
+ *    its exit code through window.codeAutomationExit.
+ * 2. A UI pass on a second, untouched copy of the fixtures: the squiggle is drawn, the Problems
+ *    panel lists the finding, the hover shows the operating-point table, the panel's webview
+ *    shows the mirrors and follows an edit. Screenshots go to test-output/workbench/.
+ *
+ * Expected values: the FAULT marker of the faulty fixture (the range is the value that must
+ * change, design §6); the ideal input source sets the reference branch current (KCL, no gate
+ * current), so after `input: 10u` → `15u` the panel must show Iin = 15 µA.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type { BrowserContext, Page } from 'playwright-core';
+import { ensureCodeServer } from '../../scripts/workbench/install';
+import { startCodeServer, type WorkbenchServer } from '../../scripts/workbench/server';
+import { launchBrowser } from '../../scripts/workbench/browser';
+import { freshWorkspace, prepareRun, type PreparedRun } from '../../scripts/workbench/prepare';
+
+const ROOT = resolve(__dirname, '../..');
+const OUT = join(ROOT, 'test-output', 'workbench');
+const CACHE = join(ROOT, '.cache', 'code-server');
+
+let server: WorkbenchServer | undefined;
+let browser: BrowserContext | undefined;
+let run: PreparedRun;
+const timings: Record<string, number> = {};
+
+function shot(page: Page, name: string): Promise<Buffer> {
+  return page.screenshot({ path: join(OUT, `${name}.png`) });
+}
+
+/** Wait for the workbench shell, then dismiss nothing: the quiet settings keep it clean. */
+async function openWorkbench(page: Page, url: string): Promise<void> {
+  await page.goto(url);
+  await page.locator('.monaco-workbench').waitFor({ state: 'visible', timeout: 60_000 });
+}
+
+async function runCommand(page: Page, title: string): Promise<void> {
+  await page.keyboard.press('F1');
+  const input = page.locator('.quick-input-widget input');
+  await input.waitFor({ state: 'visible', timeout: 10_000 });
+  await input.fill(`>${title}`);
+  await page.locator('.quick-input-list .monaco-list-row', { hasText: title }).first().waitFor({ timeout: 10_000 });
+  await page.keyboard.press('Enter');
+}
+
+beforeAll(async () => {
+  rmSync(OUT, { recursive: true, force: true });
+  mkdirSync(OUT, { recursive: true });
+  const t0 = Date.now();
+  const install = await ensureCodeServer(CACHE, join(OUT, 'install.log'));
+  timings.installMs = install.ms;
+  timings.installed = install.installed ? 1 : 0;
+  run = await prepareRun(ROOT, OUT);
+  server = await startCodeServer({
+    entry: install.entry,
+    stateDir: join(OUT, 'state'),
+    logFile: join(OUT, 'code-server.log'),
+    env: { QPOINT_SUITE_RESULT: run.resultFile, QPOINT_EXPECT_SPECS: String(run.specs.length) },
+  });
+  timings.startMs = Date.now() - t0 - install.ms;
+  browser = await launchBrowser(OUT);
+}, 600_000);
+
+afterAll(async () => {
+  // Stop what we started, even when a test failed.
+  await browser?.close().catch(() => undefined);
+  await server?.stop();
+  console.log(`workbench timings: ${JSON.stringify(timings)}`);
+}, 60_000);
+
+describe('qpoint in a real VS Code workbench (code-server + Chromium)', () => {
+  it('passes the extension-host suite', async () => {
+    expect(server && browser).toBeTruthy();
+    const page = await browser!.newPage();
+    const errors: string[] = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    let exitCode: (code: number) => void = () => undefined;
+    const exited = new Promise<number>((r) => { exitCode = r; });
+    await page.exposeFunction('codeAutomationExit', (code: number) => exitCode(code));
+    const t0 = Date.now();
+    await page.goto(server!.url({ folder: run.workspace, extensionDevelopmentPath: ROOT, extensionTestsPath: run.suiteDir }));
+    let timer: NodeJS.Timeout | undefined;
+    const code = await Promise.race([exited, new Promise<'timeout'>((r) => { timer = setTimeout(() => r('timeout'), 150_000); })]);
+    clearTimeout(timer);
+    timings.suiteMs = Date.now() - t0;
+    await shot(page, '1-suite-end').catch(() => undefined);
+    let result: { results: { name: string; ok: boolean; ms: number; detail?: string }[]; metrics: Record<string, unknown> } | undefined;
+    try { result = JSON.parse(readFileSync(run.resultFile, 'utf8')); } catch { /* reported below */ }
+    for (const r of result?.results ?? []) console.log(`${r.ok ? 'ok  ' : 'FAIL'} ${r.name} (${r.ms} ms)${r.detail ? `\n     ${r.detail}` : ''}`);
+    console.log(`extension-host metrics: ${JSON.stringify(result?.metrics ?? {})}`);
+    await page.close();
+    expect(code, `suite did not finish: see ${OUT}/code-server.log`).not.toBe('timeout');
+    expect(result, 'suite wrote no result file').toBeDefined();
+    expect(result!.results.filter((r) => !r.ok).map((r) => r.name)).toEqual([]);
+    expect(result!.results.length).toBeGreaterThanOrEqual(10);
+    expect(code).toBe(0);
+  }, 200_000);
+
+  it('draws the squiggle, lists the finding in Problems, and shows the hover table', async () => {
+    const ws = freshWorkspace(ROOT, OUT, 'ui-workspace');
+    const page = await browser!.newPage();
+    const t0 = Date.now();
+    await openWorkbench(page, server!.url({ folder: ws.dir, extensionDevelopmentPath: ROOT }));
+    // Click the file in the explorer.
+    const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: 'faulty.bias.yaml' });
+    await row.waitFor({ state: 'visible', timeout: 30_000 });
+    await row.click();
+    await page.locator('.monaco-editor .squiggly-error').first().waitFor({ state: 'attached', timeout: 30_000 });
+    timings.uiOpenToSquiggleMs = Date.now() - t0;
+    // The squiggle sits on the FAULT line: reveal it and screenshot.
+    await runCommand(page, 'Go to Next Problem in Files (Error, Warning, Info)').catch(() => undefined);
+    await page.keyboard.press('Escape');
+    await shot(page, '2-squiggle');
+
+    // Problems panel lists the finding with its code.
+    await runCommand(page, 'View: Focus Problems');
+    const problems = page.locator('.markers-panel .monaco-list-row', { hasText: 'ratio-error' });
+    await problems.first().waitFor({ state: 'visible', timeout: 15_000 });
+    expect(await problems.first().innerText()).toContain('off the required 4');
+    await shot(page, '3-problems');
+
+    // Hover on the `out:` key of the lna output (the FAULT line): the operating-point table.
+    const line = page.locator('.monaco-editor .view-line', { hasText: 'FAULT ratio-error' });
+    await line.waitFor({ state: 'visible', timeout: 10_000 });
+    const key = line.locator('span span', { hasText: /^out$/ }).first();
+    await key.hover();
+    const hover = page.locator('.monaco-hover', { hasText: 'Operating point' });
+    await hover.first().waitFor({ state: 'visible', timeout: 15_000 });
+    const hoverText = await hover.first().innerText();
+    expect(hoverText).toContain('VDSsat');
+    expect(hoverText).toContain('confirm with transistor-level simulation');
+    await shot(page, '4-hover');
+    await page.close();
+  }, 120_000);
+
+  it('opens the bias panel, which shows the mirrors and follows an edit', async () => {
+    const ws = freshWorkspace(ROOT, OUT, 'panel-workspace');
+    const page = await browser!.newPage();
+    await openWorkbench(page, server!.url({ folder: ws.dir, extensionDevelopmentPath: ROOT }));
+    const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: 'faulty.bias.yaml' });
+    await row.waitFor({ state: 'visible', timeout: 30_000 });
+    await row.click();
+    await page.locator('.monaco-editor .squiggly-error').first().waitFor({ state: 'attached', timeout: 30_000 });
+    await runCommand(page, 'qpoint: Open Bias Panel');
+    const frame = page.frameLocator('iframe.webview.ready').frameLocator('#active-frame');
+    const body = frame.locator('body');
+    for (const name of ['lna', 'load_p', 'ws_bias', 'wilson_ref', 'aux_net']) {
+      await body.filter({ hasText: name }).waitFor({ state: 'visible', timeout: 30_000 });
+    }
+    expect(await body.innerText()).not.toContain('15 µA');
+    await shot(page, '5-panel');
+
+    // Edit the tail bank's input current in the editor, as a designer types it: go to the
+    // value `10u` of `input:` and overtype `10` with `15`.
+    const lines = readFileSync(join(ws.dir, 'faulty.bias.yaml'), 'utf8').split('\n');
+    const lineIndex = lines.findIndex((l) => /^\s+input: 10u\s+# ideal input current/.test(l));
+    expect(lineIndex).toBeGreaterThan(0);
+    const column = lines[lineIndex].indexOf('10u') + 1;
+    const t0 = Date.now();
+    await runCommand(page, 'Go to Line/Column...');
+    await page.keyboard.type(`${lineIndex + 1}:${column}`);
+    await page.keyboard.press('Enter');
+    await page.keyboard.press('Delete');
+    await page.keyboard.press('Delete');
+    await page.keyboard.type('15');
+    await body.filter({ hasText: '15 µA' }).waitFor({ state: 'visible', timeout: 20_000 });
+    timings.uiEditToPanelMs = Date.now() - t0;
+    await shot(page, '6-panel-after-edit');
+    await page.close();
+  }, 120_000);
+});

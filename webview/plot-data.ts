@@ -1,0 +1,85 @@
+/**
+ * Plot series from a mirror report, scaled to readable SI units. Pure (tested in vitest): the
+ * curve itself is computed by the core; this picks points, drops the ones a plot cannot show
+ * (unconverged solves, Rout ≤ 0 or infinite on a log axis) and chooses axis prefixes.
+ */
+import type { MirrorReport } from '../src/core/types';
+import { axisScale } from './format';
+
+export interface Scaled { factor: number; unit: string }
+
+export interface CurvePlotData {
+  /** Vout (V), ascending. */
+  x: number[];
+  /** Iout in `iScale` units; null where the solve did not converge. */
+  iout: (number | null)[];
+  iScale: Scaled;
+  /** Rout in `rScale` units; null where it cannot sit on a log axis. */
+  rout: (number | null)[];
+  rScale: Scaled;
+  /** The nominal operating point (Vout, Iout and Rout in the scaled units). */
+  nominal: { x: number; iout: number; rout: number | null };
+  /** The compliance edge (V) when it is a finite number. */
+  compliance?: number;
+  /** Which side of the edge is out of compliance: below it for NMOS, above it for PMOS. */
+  outside: 'below' | 'above';
+}
+
+export function curvePlotData(m: MirrorReport): CurvePlotData | undefined {
+  const points = (m.curve ?? []).filter((p) => Number.isFinite(p.vout)).sort((a, b) => a.vout - b.vout);
+  if (points.length < 2) return undefined;
+  const iScale = axisScale([...points.map((p) => p.iout), m.iout], 'A');
+  const routs = points.map((p) => (p.converged && p.rout > 0 && Number.isFinite(p.rout) ? p.rout : NaN));
+  const rScale = axisScale([...routs, m.rout > 0 && Number.isFinite(m.rout) ? m.rout : NaN], 'Ω');
+  return {
+    x: points.map((p) => p.vout),
+    iout: points.map((p) => (p.converged && Number.isFinite(p.iout) ? p.iout / iScale.factor : null)),
+    iScale,
+    rout: routs.map((r) => (Number.isNaN(r) ? null : r / rScale.factor)),
+    rScale,
+    nominal: {
+      x: m.vout,
+      iout: m.iout / iScale.factor,
+      rout: m.rout > 0 && Number.isFinite(m.rout) ? m.rout / rScale.factor : null,
+    },
+    compliance: Number.isFinite(m.compliance) ? m.compliance : undefined,
+    outside: m.type === 'nmos' ? 'below' : 'above',
+  };
+}
+
+export interface Mark { x: number; label: string; kind: 'mean' | 'sigma' | 'limit' }
+
+export interface HistogramPlotData {
+  /** Bin centres in `scale` units. */
+  x: number[];
+  counts: number[];
+  /** Bin width in `scale` units. */
+  width: number;
+  scale: Scaled;
+  marks: Mark[];
+}
+
+/** The Monte Carlo histogram with the mean, mean ± 3σ (measured) and the requirement limits:
+ *  mean ± 3·require.sigma (the spread the spec allows) and the target Iout = ratio·Iin. */
+export function histogramPlotData(m: MirrorReport): HistogramPlotData | undefined {
+  const h = m.mc?.histogram;
+  const mc = m.mc;
+  if (!mc || !h || h.counts.length === 0 || h.edges.length !== h.counts.length + 1) return undefined;
+  const scale = axisScale([...h.edges, mc.mean], 'A');
+  const x = h.counts.map((_, i) => (h.edges[i] + h.edges[i + 1]) / 2 / scale.factor);
+  const width = (h.edges[h.edges.length - 1] - h.edges[0]) / h.counts.length / scale.factor;
+  const mean = mc.mean / scale.factor;
+  const spread = 3 * mc.sigma * mean;
+  const marks: Mark[] = [
+    { x: mean, label: 'mean', kind: 'mean' },
+    { x: mean - spread, label: '−3σ', kind: 'sigma' },
+    { x: mean + spread, label: '+3σ', kind: 'sigma' },
+  ];
+  const allowed = m.require?.sigma;
+  if (allowed !== undefined) {
+    marks.push({ x: mean * (1 - 3 * allowed), label: '−3σ max', kind: 'limit' },
+      { x: mean * (1 + 3 * allowed), label: '+3σ max', kind: 'limit' });
+  }
+  if (m.require?.ratio !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });
+  return { x, counts: [...h.counts], width, scale, marks };
+}

@@ -1,0 +1,200 @@
+/**
+ * Lays the view model out as DOM. Two modes: `panel` (the live webview: a mirror list, the
+ * selected mirror's detail, rows reveal their source) and `report` (the self-contained HTML
+ * file: every mirror in turn, nothing to reveal).
+ */
+import type { FileReport, MirrorReport, Range } from '../src/core/types';
+import { badge, button, divider, figures, h, section, severityLabel, table, tag, type TableRow } from './components';
+import { cssId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
+import type { PanelState } from './state';
+import {
+  CORNER_COLUMNS, cornerRows, deviceColumns, deviceRow, fileFindings, findingRows, findingsFor,
+  mirrorAnchor, mirrorList, monteCarloFigures, requirementViews, shownDevices, summaryFigures, type FindingRowView,
+} from './view-model';
+
+export interface RenderContext {
+  mode: 'panel' | 'report';
+  onSelect(name: string): void;
+  onReveal(range: Range): void;
+}
+
+/** Replace `root`'s content. `previous` are the plots of the last render: a plot of the same
+ *  mirror is fed the new data in place instead of being rebuilt (the costly part of a render);
+ *  the ones not reused are destroyed. Returns the plots now shown. */
+export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderContext, previous: readonly PlotHandle[] = []): PlotHandle[] {
+  const focusKey = (document.activeElement as HTMLElement | null)?.dataset?.key;
+  const plots = new PlotSet(previous);
+  const content = h('div', { class: 'page' });
+  const report = state.report;
+  if (!report) {
+    content.append(h('p', { class: 'notice', id: 'notice' }, state.notice ?? ''));
+  } else {
+    content.append(header(report, state.notice));
+    const general = fileFindings(report);
+    if (general.length > 0) content.append(section('file-findings', 'File', findingsTable(general, ctx)));
+    if (report.mirrors.length === 0) {
+      content.append(h('p', { class: 'notice', id: 'notice' }, report.parsed ? 'This spec has no mirrors yet.' : 'The spec could not be read; see the findings above.'));
+    } else {
+      content.append(section('mirrors', 'Mirrors', overview(report, state.selected, ctx)));
+      const shown = ctx.mode === 'report' ? report.mirrors : report.mirrors.filter((m) => m.name === state.selected);
+      for (const m of shown) content.append(mirrorDetail(report, m, ctx, plots));
+    }
+  }
+  root.replaceChildren(content);
+  plots.finish();
+  if (focusKey) root.querySelector<HTMLElement>(`[data-key="${CSS.escape(focusKey)}"]`)?.focus();
+  return plots.shown;
+}
+
+const MAKERS: Record<PlotKind, (m: MirrorReport) => PlotHandle | undefined> = { iout: ioutPlot, rout: routPlot, mc: histogramPlot };
+
+class PlotSet {
+  readonly shown: PlotHandle[] = [];
+  private readonly old: Map<string, PlotHandle>;
+  constructor(previous: readonly PlotHandle[]) {
+    this.old = new Map(previous.map((p) => [p.id, p]));
+  }
+  get(kind: PlotKind, m: MirrorReport): PlotHandle | undefined {
+    const id = plotId(kind, m);
+    const old = this.old.get(id);
+    this.old.delete(id);
+    if (old?.update(m)) {
+      this.shown.push(old);
+      return old;
+    }
+    old?.destroy();
+    const fresh = MAKERS[kind](m);
+    if (fresh) this.shown.push(fresh);
+    return fresh;
+  }
+  /** Mount the new plots (now in the DOM) and drop the ones no longer shown. */
+  finish(): void {
+    for (const p of this.shown) p.mount();
+    for (const p of this.old.values()) p.destroy();
+    this.old.clear();
+  }
+}
+
+function header(report: FileReport, notice: string | undefined): HTMLElement {
+  const counts = { error: 0, warning: 0, info: 0 };
+  for (const f of report.findings) counts[f.severity]++;
+  return h('header', { class: 'file-header' },
+    h('h2', { id: 'file-title' }, report.title ?? baseName(report.file)),
+    h('div', { class: 'file-meta' },
+      h('span', { class: 'file-name', title: report.file }, baseName(report.file)),
+      ...(['error', 'warning', 'info'] as const).map((s) =>
+        h('span', { class: `count count-${s}`, title: `${counts[s]} ${s}${counts[s] === 1 ? '' : 's'}` }, badge(String(counts[s])), ` ${s}`))),
+    notice ? h('p', { class: 'notice stale' }, notice) : undefined);
+}
+
+function baseName(file: string): string {
+  return file.split(/[\\/]/).pop() ?? file;
+}
+
+function overview(report: FileReport, selected: string | undefined, ctx: RenderContext): HTMLElement {
+  const items = mirrorList(report);
+  const rows: TableRow[] = items.map((it) => ({
+    key: `mirror:${it.name}`,
+    className: it.worst ? `has-${it.worst}` : undefined,
+    selected: ctx.mode === 'panel' ? it.name === selected : undefined,
+    actionLabel: ctx.mode === 'panel' ? `Show mirror ${it.name}` : undefined,
+    onActivate: ctx.mode === 'panel' ? () => ctx.onSelect(it.name) : undefined,
+    cells: [
+      { text: ctx.mode === 'report' ? h('a', { href: `#mirror-${cssId(it.name)}` }, it.name) : it.name },
+      { text: it.kind }, { text: it.type },
+      { text: it.iout }, { text: it.error }, { text: it.compliance },
+      { text: findingCounts(it.counts, it.converged) },
+    ],
+  }));
+  return table('Mirrors of this spec', [
+    { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false }, { label: 'Type', numeric: false },
+    { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
+    { label: 'Findings', numeric: false },
+  ], rows, { id: 'mirror-list' });
+}
+
+function findingCounts(counts: Record<'error' | 'warning' | 'info', number>, converged: boolean): HTMLElement {
+  const parts: (HTMLElement | string)[] = [];
+  if (!converged) parts.push(h('span', { class: 'severity severity-error' }, 'not converged'));
+  for (const s of ['error', 'warning', 'info'] as const) {
+    if (counts[s] > 0) parts.push(h('span', { class: `severity severity-${s}` }, `${counts[s]} ${s}${counts[s] === 1 ? '' : 's'}`));
+  }
+  if (parts.length === 0) parts.push(h('span', { class: 'ok' }, 'none'));
+  return h('span', { class: 'finding-counts' }, ...parts);
+}
+
+function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, plots: PlotSet): HTMLElement {
+  const id = cssId(m.name);
+  const own = findingsFor(report, m);
+  const anchor = mirrorAnchor(report, m);
+  const title = h('div', { class: 'mirror-title' },
+    h('h2', { id: `mirror-${id}-name` }, m.name),
+    tag(m.kind), tag(m.type.toUpperCase()),
+    m.converged ? undefined : tag('not converged', { class: 'tag-error' }),
+    ctx.mode === 'panel' && anchor ? button('Show in editor', () => ctx.onReveal(anchor.range), { appearance: 'secondary', 'data-key': `reveal:${m.name}` }) : undefined);
+  const body: (HTMLElement | undefined)[] = [
+    m.converged ? undefined : h('p', { class: 'solve-note severity-error' }, `The DC solve did not converge${m.solveNote ? `: ${m.solveNote}` : ''}.`),
+    figures(summaryFigures(m), { 'data-figures': 'summary' }),
+  ];
+  const reqs = requirementViews(m, own);
+  if (reqs.length > 0) {
+    body.push(section(`req-${id}`, 'Requirements', table(`Requirements of ${m.name}`, [
+      { label: 'Requirement', numeric: false }, { label: 'Target', numeric: true }, { label: 'Actual', numeric: true }, { label: 'Met', numeric: false },
+    ], reqs.map((r) => {
+      const fnd = r.finding;
+      return {
+        key: `req:${m.name}:${r.key}`,
+        className: r.met ? 'met' : 'unmet',
+        actionLabel: fnd && ctx.mode === 'panel' ? `Reveal why ${r.label} is not met` : undefined,
+        onActivate: fnd && ctx.mode === 'panel' ? () => ctx.onReveal(fnd.range) : undefined,
+        cells: [{ text: r.label }, { text: r.target }, { text: r.actual },
+          { text: r.met ? h('span', { class: 'ok' }, '✓ met') : h('span', { class: 'severity severity-error' }, '✗ not met'), title: fnd?.message }],
+      };
+    }), { class: 'grid requirements' })));
+  }
+  const columns = deviceColumns(m.type);
+  const { devices, hidden } = shownDevices(m);
+  body.push(section(`dev-${id}`, 'Devices', h('div', { class: 'scroll-x' }, table(`Devices of ${m.name}`, columns,
+    devices.map((d) => {
+      const row = deviceRow(report, m, d, own);
+      const reveal = row.reveal;
+      return {
+        key: `dev:${m.name}:${d.name}`,
+        className: row.severity ? `has-${row.severity}` : undefined,
+        actionLabel: reveal && ctx.mode === 'panel' ? `Reveal device ${d.name}` : undefined,
+        onActivate: reveal && ctx.mode === 'panel' ? () => ctx.onReveal(reveal) : undefined,
+        cells: row.cells.map((c) => ({ text: c.text, title: c.title, className: c.flag })),
+      };
+    }), { class: 'grid devices', 'data-mirror': m.name })),
+    devices.some((d) => d.sized) ? h('p', { class: 'note' }, h('span', { class: 'sized' }, 'Italic'), ' sizes are computed by qpoint.') : undefined,
+    hidden > 0 ? h('p', { class: 'note' }, `The ${hidden} devices of the bank's other outputs are listed under those outputs.`) : undefined));
+  body.push(section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'ok' }, 'No findings: every check passes.')));
+  const plotList = [plots.get('iout', m), plots.get('rout', m)].filter((p): p is PlotHandle => p !== undefined);
+  body.push(section(`plots-${id}`, 'Plots', plotList.length > 0
+    ? h('div', { class: 'plots' }, ...plotList.map((p) => p.element))
+    : h('p', { class: 'note' }, 'No Iout/Rout sweep in this report.')));
+  if (m.mc) {
+    const hist = plots.get('mc', m);
+    body.push(section(`mc-${id}`, 'Monte Carlo', figures(monteCarloFigures(m), { 'data-figures': 'mc' }), hist ? h('div', { class: 'plots' }, hist.element) : undefined));
+  }
+  if (m.corners && m.corners.length > 0) {
+    body.push(section(`corners-${id}`, 'Corners', h('div', { class: 'scroll-x' }, table(`Corners of ${m.name}`, CORNER_COLUMNS,
+      cornerRows(m).map((r) => ({ key: `corner:${m.name}:${r.name}`, cells: r.cells.map((c) => ({ text: c.text, title: c.title, className: c.flag })) })),
+      { class: 'grid corners' })), h('p', { class: 'note' }, 'The worst value of each column is marked.')));
+  }
+  return h('article', { class: 'mirror', id: `mirror-${id}`, 'data-mirror': m.name, 'aria-labelledby': `mirror-${id}-name` },
+    divider(), title, ...body);
+}
+
+function findingsTable(findings: Parameters<typeof findingRows>[0], ctx: RenderContext): HTMLElement {
+  const rows = findingRows(findings);
+  return table('Findings', [
+    { label: 'Severity', numeric: false }, { label: 'Code', numeric: false }, { label: 'Message', numeric: false }, { label: 'Line', numeric: true },
+  ], rows.map((f: FindingRowView, i) => ({
+    key: `finding:${i}:${f.code}:${f.location}`,
+    className: `has-${f.severity}`,
+    actionLabel: ctx.mode === 'panel' ? `Reveal ${f.severity} ${f.code} at line ${f.location}` : undefined,
+    onActivate: ctx.mode === 'panel' ? () => ctx.onReveal(f.reveal) : undefined,
+    cells: [{ text: severityLabel(f.severity) }, { text: h('code', {}, f.code) }, { text: f.message, className: 'message' }, { text: f.location }],
+  })), { class: 'grid findings' });
+}

@@ -1,0 +1,85 @@
+/**
+ * The panel's state and how messages change it. Pure: no DOM, no vscode — tested in vitest.
+ *
+ * The page keeps the last report it was sent, which mirror the designer selected, and the
+ * version of the report it shows. Reports for the same file can arrive out of order (a slow
+ * analysis finishing after a newer one): the older is dropped. A report for another file
+ * replaces the view, keeping the selection when that file has a mirror of the same name.
+ */
+import type { FileReport } from '../src/core/types';
+import { embedReportJson, parseEmbeddedReport } from '../src/core/report/html';
+import { isFileReport, type HostMessage } from '../src/protocol/messages';
+
+export interface PanelState {
+  uri?: string;
+  /** Version of the shown report; -1 before the first one of this page lifetime. */
+  version: number;
+  report?: FileReport;
+  /** MirrorReport.name of the selected mirror output. */
+  selected?: string;
+  /** Shown instead of a report (e.g. "Open a bias spec …"). */
+  notice?: string;
+}
+
+/** What survives a reload (`setState`/`getState`, and the panel serializer). VS Code keeps it as
+ *  JSON, which turns Infinity (an ideal Rout) into null: the report travels as the same tagged
+ *  JSON the HTML report embeds. */
+export interface PersistedState {
+  uri?: string;
+  reportJson?: string;
+  selected?: string;
+}
+
+export const DEFAULT_NOTICE = 'Open a bias spec (*.bias.yaml, *.bias.yml, *.bias.json) to see its mirrors.';
+
+export const initialState: PanelState = { version: -1, notice: DEFAULT_NOTICE };
+
+export function applyHostMessage(state: PanelState, message: HostMessage): PanelState {
+  switch (message.type) {
+    case 'report': {
+      if (message.uri === state.uri && message.version < state.version) return state;  // stale
+      return {
+        uri: message.uri,
+        version: message.version,
+        report: message.report,
+        selected: keepSelection(message.report, state.selected),
+      };
+    }
+    case 'clear':
+      return { version: state.version, notice: message.message ?? DEFAULT_NOTICE, selected: state.selected };
+  }
+}
+
+/** Select a mirror output by name; an unknown name leaves the state unchanged. */
+export function selectMirror(state: PanelState, name: string): PanelState {
+  if (!state.report?.mirrors.some((m) => m.name === name)) return state;
+  return { ...state, selected: name };
+}
+
+/** The selection after a new report: the same name if it is still there, else the first. */
+export function keepSelection(report: FileReport, selected: string | undefined): string | undefined {
+  if (selected !== undefined && report.mirrors.some((m) => m.name === selected)) return selected;
+  return report.mirrors[0]?.name;
+}
+
+export function toPersisted(state: PanelState): PersistedState {
+  return { uri: state.uri, reportJson: state.report ? embedReportJson(state.report) : undefined, selected: state.selected };
+}
+
+/** State from what `getState()` returned; anything malformed (an older page's state, a
+ *  tampered blob) is ignored rather than trusted. Ordering starts afresh: versions belong to
+ *  one page lifetime. */
+export function fromPersisted(value: unknown): PanelState {
+  if (typeof value !== 'object' || value === null) return initialState;
+  const v = value as Record<string, unknown>;
+  if (typeof v.uri !== 'string' || typeof v.reportJson !== 'string') return initialState;
+  let report: unknown;
+  try {
+    report = parseEmbeddedReport(v.reportJson);
+  } catch {
+    return initialState;
+  }
+  if (!isFileReport(report)) return initialState;
+  const selected = typeof v.selected === 'string' ? v.selected : undefined;
+  return { uri: v.uri, version: -1, report, selected: keepSelection(report, selected) };
+}

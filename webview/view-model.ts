@@ -1,0 +1,359 @@
+/**
+ * From a finished report to what the panel shows: formatted figures, table rows, which
+ * requirement holds, which finding or anchor a row reveals. Pure (no DOM) so vitest covers it;
+ * the DOM code in render.ts only lays these out. Nothing here is physics: every number comes
+ * from the core's report, this module only picks, formats and cross-references.
+ */
+import type {
+  Anchor, CornerResult, DeviceReport, FileReport, Finding, MirrorReport, Range, Requirements,
+  Severity, SpecPath,
+} from '../src/core/types';
+import { CAUTION_TEXT } from '../src/core/report/html';
+import { formatNumber, formatPercent, formatSI, formatSignedPercent } from './format';
+
+/** The caution line every view carries (design §7); one text for the panel and the report. */
+export const CAUTION = CAUTION_TEXT;
+
+const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
+
+// ───────────────────────────── which findings belong where ─────────────────────────────
+
+function startsWith(path: SpecPath, prefix: SpecPath): boolean {
+  return prefix.length <= path.length && prefix.every((s, i) => path[i] === s);
+}
+
+/** ['mirrors', i] of a mirror report's path (an output of a bank sits below it). */
+export function mirrorRoot(path: SpecPath): SpecPath {
+  return path.slice(0, 2);
+}
+
+/** Does a finding concern this output? Findings under its own path do; for an output of a bias
+ *  bank, so do findings on the shared reference (the mirror's path, outside `outputs`). */
+export function concerns(mirror: MirrorReport, finding: Finding): boolean {
+  if (startsWith(finding.path, mirror.path)) return true;
+  const root = mirrorRoot(mirror.path);
+  if (mirror.path.length <= root.length || !startsWith(finding.path, root)) return false;
+  return finding.path[root.length] !== 'outputs';
+}
+
+export function findingsFor(report: FileReport, mirror: MirrorReport): Finding[] {
+  return report.findings.filter((f) => concerns(mirror, f));
+}
+
+/** Findings that belong to no mirror output (process, supplies, parse errors). */
+export function fileFindings(report: FileReport): Finding[] {
+  return report.findings.filter((f) => !report.mirrors.some((m) => concerns(m, f)));
+}
+
+export function worstSeverity(findings: readonly Finding[]): Severity | undefined {
+  let worst: Severity | undefined;
+  for (const f of findings) if (!worst || SEVERITY_RANK[f.severity] < SEVERITY_RANK[worst]) worst = f.severity;
+  return worst;
+}
+
+export function countSeverities(findings: readonly Finding[]): Record<Severity, number> {
+  const n: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
+  for (const f of findings) n[f.severity]++;
+  return n;
+}
+
+// ───────────────────────────── requirements ─────────────────────────────
+
+export type RequirementKey = keyof Requirements;
+export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma'];
+
+/** Words in a finding code that name a requirement (codes are kebab-case, e.g. `rout-low`). */
+const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
+  ratio: ['ratio'],
+  rout: ['rout'],
+  compliance: ['compliance'],
+  sigma: ['sigma', 'mismatch'],
+};
+
+/** A finding speaks about requirement `key` when it (or a related location) points at
+ *  `require.<key>`, or its code names the requirement. Info findings never fail one. */
+export function failsRequirement(finding: Finding, key: RequirementKey): boolean {
+  if (finding.severity === 'info') return false;
+  const atKey = (p: SpecPath) => p.some((s, i) => s === 'require' && p[i + 1] === key);
+  if (atKey(finding.path) || (finding.related ?? []).some((r) => atKey(r.path))) return true;
+  const words = finding.code.split('-');
+  return CODE_WORDS[key].some((w) => words.includes(w));
+}
+
+export interface RequirementView {
+  key: RequirementKey;
+  label: string;
+  /** "≥ 20 MΩ" */
+  target: string;
+  actual: string;
+  met: boolean;
+  /** The finding that says why it is not met, to reveal. */
+  finding?: Finding;
+}
+
+export function requirementViews(mirror: MirrorReport, findings: readonly Finding[]): RequirementView[] {
+  const req = mirror.require;
+  if (!req) return [];
+  const views: RequirementView[] = [];
+  for (const key of REQUIREMENT_KEYS) {
+    const target = req[key];
+    if (target === undefined) continue;
+    const failing = findings.find((f) => failsRequirement(f, key));
+    views.push({ key, label: FIGURE_LABEL[key], target: requirementText(mirror, key, target),
+      actual: actualText(mirror, key), met: !failing, finding: failing });
+  }
+  return views;
+}
+
+const FIGURE_LABEL: Record<RequirementKey, string> = {
+  ratio: 'Ratio', rout: 'Output resistance', compliance: 'Compliance', sigma: 'Mismatch σ',
+};
+
+function requirementText(mirror: MirrorReport, key: RequirementKey, target: number): string {
+  switch (key) {
+    case 'ratio': return `= ${formatNumber(target, 4)}`;
+    case 'rout': return `≥ ${formatSI(target, 'Ω')}`;
+    case 'compliance': return `${mirror.type === 'nmos' ? '≤' : '≥'} ${formatSI(target, 'V')}`;
+    case 'sigma': return `≤ ${formatPercent(target)}`;
+  }
+}
+
+function actualText(mirror: MirrorReport, key: RequirementKey): string {
+  switch (key) {
+    case 'ratio': return formatNumber(mirror.ratio, 4);
+    case 'rout': return formatSI(mirror.rout, 'Ω');
+    case 'compliance': return formatSI(mirror.compliance, 'V', 4);
+    case 'sigma': return mirror.sigma === undefined ? '—' : formatPercent(mirror.sigma);
+  }
+}
+
+// ───────────────────────────── summary figures ─────────────────────────────
+
+export interface FigureView {
+  key: string;
+  label: string;
+  value: string;
+  /** Second line: the textbook formula, the ideal ratio, what the figure means. */
+  detail?: string;
+}
+
+export function summaryFigures(m: MirrorReport): FigureView[] {
+  const figures: FigureView[] = [
+    { key: 'iin', label: 'Iin', value: formatSI(m.iin, 'A', 4), detail: 'input branch' },
+    { key: 'iout', label: 'Iout', value: formatSI(m.iout, 'A', 4), detail: `at Vout = ${formatSI(m.vout, 'V')}` },
+    { key: 'ratio', label: 'Ratio', value: formatNumber(m.ratio, 5),
+      detail: m.ratioIdeal === undefined ? undefined : `ideal ${formatNumber(m.ratioIdeal, 5)}` },
+  ];
+  if (m.error !== undefined) {
+    const split = m.errorSplit;
+    figures.push({ key: 'error', label: 'Error', value: formatSignedPercent(m.error),
+      detail: split ? `VDS ${formatSignedPercent(split.vds, 2)} · body ${formatSignedPercent(split.body, 2)} · geometry ${formatSignedPercent(split.geometry, 2)}` : 'systematic' });
+  }
+  figures.push({ key: 'rout', label: 'Rout', value: formatSI(m.rout, 'Ω'),
+    detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });
+  figures.push({ key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4),
+    detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
+  if (m.sigma !== undefined) figures.push({ key: 'sigma', label: 'σ(Iout)', value: formatPercent(m.sigma), detail: 'Pelgrom, 1σ' });
+  if (m.vbias !== undefined) {
+    figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
+      detail: m.vbiasPicked ? 'picked by qpoint' : 'from the spec' });
+  }
+  return figures;
+}
+
+// ───────────────────────────── devices ─────────────────────────────
+
+export interface Column { key: string; label: string; unit?: string; numeric: boolean; title?: string }
+
+export interface CellView { text: string; title?: string; flag?: 'bad' | 'sized' }
+
+export interface DeviceRowView {
+  name: string;
+  cells: CellView[];
+  /** Worst severity of the findings on this device. */
+  severity?: Severity;
+  reveal?: Range;
+}
+
+export function deviceColumns(type: MirrorReport['type']): Column[] {
+  const p = type === 'pmos';
+  return [
+    { key: 'name', label: 'Device', numeric: false },
+    { key: 'w', label: 'W', numeric: true },
+    { key: 'l', label: 'L', numeric: true },
+    { key: 'm', label: 'm', numeric: true, title: 'parallel count' },
+    { key: 'id', label: 'ID', numeric: true },
+    { key: 'vgs', label: p ? 'VSG' : 'VGS', numeric: true },
+    { key: 'vds', label: p ? 'VSD' : 'VDS', numeric: true },
+    { key: 'vdsat', label: p ? 'VSDsat' : 'VDSsat', numeric: true },
+    { key: 'margin', label: 'Margin', numeric: true, title: 'VDS − VDSsat' },
+    { key: 'region', label: 'Region', numeric: false },
+    { key: 'gmId', label: 'gm/ID', numeric: true, title: '1/V' },
+    { key: 'ic', label: 'IC', numeric: true, title: 'inversion coefficient' },
+    { key: 'ro', label: 'ro', numeric: true },
+  ];
+}
+
+const SIZED_TITLE = 'computed by qpoint';
+
+/** The devices to list for an output: a bank output's report carries the whole bank's circuit,
+ *  but the designer looks at this output's devices (named `<output>.<role>`) and the shared
+ *  reference; the other outputs' devices are listed under their own outputs. */
+export function shownDevices(m: MirrorReport): { devices: DeviceReport[]; hidden: number } {
+  if (m.output === undefined) return { devices: m.devices, hidden: 0 };
+  const own = `${m.output}.`;
+  const devices = m.devices.filter((d) => d.name.startsWith(own) || !d.name.includes('.'));
+  return { devices, hidden: m.devices.length - devices.length };
+}
+
+export function deviceRow(report: FileReport, mirror: MirrorReport, d: DeviceReport, findings: readonly Finding[]): DeviceRowView {
+  const anchor = deviceAnchor(report, mirror, d);
+  const own = anchor?.kind === 'device' ? findings.filter((f) => startsWith(f.path, anchor.path)) : [];
+  const size = (text: string): CellView => (d.sized ? { text, title: SIZED_TITLE, flag: 'sized' } : { text });
+  return {
+    name: d.name,
+    cells: [
+      { text: d.name, title: d.role === d.name ? undefined : `role ${d.role}` },
+      size(formatSI(d.w, 'm')),
+      size(formatSI(d.l, 'm')),
+      { text: formatNumber(d.m, 4) },
+      { text: formatSI(d.id, 'A', 4) },
+      { text: formatSI(d.vgs, 'V', 4) },
+      { text: formatSI(d.vds, 'V', 4) },
+      { text: formatSI(d.vdsat, 'V', 4) },
+      { text: formatSI(d.margin, 'V', 3), flag: d.margin < 0 ? 'bad' : undefined },
+      { text: d.region, flag: d.region === 'saturation' ? undefined : 'bad' },
+      { text: formatNumber(d.gmId, 3) },
+      { text: formatNumber(d.ic, 3), title: `${d.inversion} inversion` },
+      { text: formatSI(d.ro, 'Ω') },
+    ],
+    severity: worstSeverity(own),
+    reveal: anchor?.range,
+  };
+}
+
+/** Where a device is written: its own key if the spec has one, else the output or mirror it
+ *  inherits its size from. */
+export function deviceAnchor(report: FileReport, mirror: MirrorReport, d: DeviceReport): Anchor | undefined {
+  const root = mirrorRoot(mirror.path);
+  return report.anchors.find((a) => a.kind === 'device' && a.device === d.name && a.report === mirror.name) ??
+    report.anchors.find((a) => a.kind === 'device' && a.device === d.name && startsWith(a.path, root)) ??
+    mirrorAnchor(report, mirror);
+}
+
+export function mirrorAnchor(report: FileReport, mirror: MirrorReport): Anchor | undefined {
+  const root = mirrorRoot(mirror.path);
+  return report.anchors.find((a) => a.kind === 'output' && a.report === mirror.name) ??
+    report.anchors.find((a) => a.kind === 'mirror' && startsWith(a.path, root) && a.path.length === root.length);
+}
+
+// ───────────────────────────── findings ─────────────────────────────
+
+export interface FindingRowView {
+  severity: Severity;
+  code: string;
+  message: string;
+  /** 1-based "line:col", as the CLI prints it. */
+  location: string;
+  reveal: Range;
+}
+
+export function findingRows(findings: readonly Finding[]): FindingRowView[] {
+  return findings.map((f) => ({
+    severity: f.severity, code: f.code, message: f.message,
+    location: `${f.range.start.line + 1}:${f.range.start.character + 1}`, reveal: f.range,
+  }));
+}
+
+// ───────────────────────────── mirror list ─────────────────────────────
+
+export interface MirrorListItem {
+  name: string;
+  kind: string;
+  type: string;
+  iout: string;
+  error: string;
+  compliance: string;
+  converged: boolean;
+  counts: Record<Severity, number>;
+  worst?: Severity;
+}
+
+export function mirrorList(report: FileReport): MirrorListItem[] {
+  return report.mirrors.map((m) => {
+    const own = findingsFor(report, m);
+    return {
+      name: m.name, kind: m.kind, type: m.type,
+      iout: formatSI(m.iout, 'A', 4),
+      error: m.error === undefined ? '—' : formatSignedPercent(m.error),
+      compliance: formatSI(m.compliance, 'V', 4),
+      converged: m.converged, counts: countSeverities(own), worst: worstSeverity(own),
+    };
+  });
+}
+
+// ───────────────────────────── corners ─────────────────────────────
+
+export interface CornerRowView { name: string; cells: CellView[] }
+
+export const CORNER_COLUMNS: readonly Column[] = [
+  { key: 'name', label: 'Corner', numeric: false },
+  { key: 'iout', label: 'Iout', numeric: true },
+  { key: 'ratio', label: 'Ratio', numeric: true },
+  { key: 'error', label: 'Error', numeric: true },
+  { key: 'rout', label: 'Rout', numeric: true },
+  { key: 'compliance', label: 'Compliance', numeric: true },
+  { key: 'sigma', label: 'σ', numeric: true },
+  { key: 'minMargin', label: 'Min margin', numeric: true },
+];
+
+/** Corner rows with the worst value of each column flagged: largest |error|, lowest Rout,
+ *  compliance nearest the supply it must stay away from, largest σ, smallest margin. */
+export function cornerRows(mirror: MirrorReport): CornerRowView[] {
+  const corners = mirror.corners ?? [];
+  const ok = corners.filter((c) => c.converged);
+  const worst = (pick: (c: CornerResult) => number | undefined, better: (a: number, b: number) => boolean): CornerResult | undefined => {
+    let w: CornerResult | undefined;
+    for (const c of ok) {
+      const v = pick(c);
+      if (v === undefined || Number.isNaN(v)) continue;
+      const wv = w ? pick(w) : undefined;
+      if (wv === undefined || better(wv, v)) w = c;
+    }
+    return w;
+  };
+  const worstError = worst((c) => Math.abs(c.error), (a, b) => b > a);
+  const worstRout = worst((c) => c.rout, (a, b) => b < a);
+  const worstCompliance = worst((c) => c.compliance, (a, b) => (mirror.type === 'nmos' ? b > a : b < a));
+  const worstSigma = worst((c) => c.sigma, (a, b) => b > a);
+  const worstMargin = worst((c) => c.minMargin, (a, b) => b < a);
+  const flag = (c: CornerResult, w: CornerResult | undefined): CellView['flag'] => (c === w ? 'bad' : undefined);
+  return corners.map((c) => ({
+    name: c.name,
+    cells: [
+      { text: c.name, title: c.converged ? undefined : 'did not converge', flag: c.converged ? undefined : 'bad' },
+      { text: formatSI(c.iout, 'A', 4) },
+      { text: formatNumber(c.ratio, 5) },
+      { text: formatSignedPercent(c.error), flag: flag(c, worstError) },
+      { text: formatSI(c.rout, 'Ω'), flag: flag(c, worstRout) },
+      { text: formatSI(c.compliance, 'V', 4), flag: flag(c, worstCompliance) },
+      { text: c.sigma === undefined ? '—' : formatPercent(c.sigma), flag: flag(c, worstSigma) },
+      { text: c.minMargin === undefined ? '—' : `${formatSI(c.minMargin, 'V')}${c.minMarginDevice ? ` (${c.minMarginDevice})` : ''}`,
+        flag: flag(c, worstMargin) },
+    ],
+  }));
+}
+
+// ───────────────────────────── Monte Carlo ─────────────────────────────
+
+export function monteCarloFigures(mirror: MirrorReport): FigureView[] {
+  const mc = mirror.mc;
+  if (!mc) return [];
+  return [
+    { key: 'samples', label: 'Samples', value: formatNumber(mc.samples, 6), detail: `seed ${mc.seed}` },
+    { key: 'mean', label: 'Mean Iout', value: formatSI(mc.mean, 'A', 4) },
+    { key: 'sigma', label: 'σ(Iout)', value: formatPercent(mc.sigma), detail: mirror.sigma === undefined ? undefined : `Pelgrom ${formatPercent(mirror.sigma)}` },
+    { key: 'range', label: 'Range', value: `${formatSI(mc.min, 'A', 4)} … ${formatSI(mc.max, 'A', 4)}` },
+    { key: 'yield', label: 'Yield', value: formatPercent(mc.yield, 4), detail: 'meets every requirement' },
+  ];
+}
