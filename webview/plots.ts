@@ -113,8 +113,9 @@ const decades: uPlot.Axis.Filter = (_u, splits) =>
 function axis(p: Palette, label: string, format: (v: number) => string, log = false): uPlot.Axis {
   return {
     label, stroke: p.fg, font: p.font, labelFont: p.labelFont,
-    grid: { stroke: p.grid, width: 1, filter: log ? decades : undefined },
-    ticks: { stroke: p.grid, width: 1, filter: log ? decades : undefined },
+    // uPlot merges options key by key: an explicit `filter: undefined` would replace its default.
+    grid: { stroke: p.grid, width: 1, ...(log ? { filter: decades } : {}) },
+    ticks: { stroke: p.grid, width: 1, ...(log ? { filter: decades } : {}) },
     values: (_u, splits) => splits.map((v) => (v === null || v === undefined ? '' : format(v))),
   };
 }

@@ -24,7 +24,7 @@ export interface RenderContext {
 export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderContext, previous: readonly PlotHandle[] = []): PlotHandle[] {
   const focusKey = (document.activeElement as HTMLElement | null)?.dataset?.key;
   const plots = new PlotSet(previous);
-  const content = h('div', { class: 'page' });
+  const content = h('div', { class: state.stale ? 'page stale' : 'page' });
   const report = state.report;
   if (!report) {
     content.append(h('p', { class: 'notice', id: 'notice' }, state.notice ?? ''));
@@ -35,7 +35,7 @@ export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderCont
     if (report.mirrors.length === 0) {
       content.append(h('p', { class: 'notice', id: 'notice' }, report.parsed ? 'This spec has no mirrors yet.' : 'The spec could not be read; see the findings above.'));
     } else {
-      content.append(section('mirrors', 'Mirrors', overview(report, state.selected, ctx)));
+      content.append(section('mirrors', 'Mirrors', h('div', { class: 'scroll-x' }, overview(report, state.selected, ctx))));
       const shown = ctx.mode === 'report' ? report.mirrors : report.mirrors.filter((m) => m.name === state.selected);
       for (const m of shown) content.append(mirrorDetail(report, m, ctx, plots));
     }

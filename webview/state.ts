@@ -17,9 +17,14 @@ export interface PanelState {
   report?: FileReport;
   /** MirrorReport.name of the selected mirror output. */
   selected?: string;
-  /** Shown instead of a report (e.g. "Open a bias spec …"). */
+  /** Shown instead of a report (e.g. "Open a bias spec …"), or above a stale one. */
   notice?: string;
+  /** The mirrors shown are from an earlier version of the file: the current text has errors
+   *  that stop the analysis (a value half typed), and a blank panel would help nobody. */
+  stale?: boolean;
 }
+
+export const STALE_NOTICE = 'The spec has errors that stop the analysis: the mirrors below are from the last version that solved.';
 
 /** What survives a reload (`setState`/`getState`, and the panel serializer). VS Code keeps it as
  *  JSON, which turns Infinity (an ideal Rout) into null: the report travels as the same tagged
@@ -28,6 +33,7 @@ export interface PersistedState {
   uri?: string;
   reportJson?: string;
   selected?: string;
+  stale?: boolean;
 }
 
 export const DEFAULT_NOTICE = 'Open a bias spec (*.bias.yaml, *.bias.yml, *.bias.json) to see its mirrors.';
@@ -37,7 +43,14 @@ export const initialState: PanelState = { version: -1, notice: DEFAULT_NOTICE };
 export function applyHostMessage(state: PanelState, message: HostMessage): PanelState {
   switch (message.type) {
     case 'report': {
-      if (message.uri === state.uri && message.version < state.version) return state;  // stale
+      if (message.uri === state.uri && message.version < state.version) return state;  // out of order
+      const last = state.report;
+      if (message.uri === state.uri && last && last.mirrors.length > 0 && message.report.mirrors.length === 0 &&
+        message.report.findings.some((f) => f.severity === 'error')) {
+        // Keep the last numbers (and where they sit) beside the new findings until it solves again.
+        const report: FileReport = { ...message.report, mirrors: last.mirrors, anchors: last.anchors, title: message.report.title ?? last.title };
+        return { uri: message.uri, version: message.version, report, selected: keepSelection(report, state.selected), notice: STALE_NOTICE, stale: true };
+      }
       return {
         uri: message.uri,
         version: message.version,
@@ -63,7 +76,8 @@ export function keepSelection(report: FileReport, selected: string | undefined):
 }
 
 export function toPersisted(state: PanelState): PersistedState {
-  return { uri: state.uri, reportJson: state.report ? embedReportJson(state.report) : undefined, selected: state.selected };
+  return { uri: state.uri, reportJson: state.report ? embedReportJson(state.report) : undefined, selected: state.selected,
+    stale: state.stale };
 }
 
 /** State from what `getState()` returned; anything malformed (an older page's state, a
@@ -81,5 +95,6 @@ export function fromPersisted(value: unknown): PanelState {
   }
   if (!isFileReport(report)) return initialState;
   const selected = typeof v.selected === 'string' ? v.selected : undefined;
-  return { uri: v.uri, version: -1, report, selected: keepSelection(report, selected) };
+  const restored: PanelState = { uri: v.uri, version: -1, report, selected: keepSelection(report, selected) };
+  return v.stale === true ? { ...restored, stale: true, notice: STALE_NOTICE } : restored;
 }

@@ -27,6 +27,12 @@ function main(argv: string[]): number {
   }
 }
 
+// `qpoint check … | head` closes the pipe early: that is not an error worth a stack trace.
+process.stdout.on('error', (err: NodeJS.ErrnoException) => {
+  if (err.code === 'EPIPE') process.exit(process.exitCode ?? 0);
+  throw err;
+});
+
 try {
   process.exitCode = main(process.argv.slice(2));
 } catch (err) {

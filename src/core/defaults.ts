@@ -22,7 +22,7 @@ export const DEFAULTS = {
 /** Limits that keep reading an untrusted spec fast and bounded (design §2, spec findings). */
 export const SPEC_LIMITS = {
   /** characters; larger files get a `too-large` finding instead of a parse (YAML reads ~2–4 µs/char here). */
-  maxChars: 131_072,
+  maxChars: 65_536,
   /** aliases expanded when converting the YAML to data (guards against alias bombs). */
   maxAliasCount: 1000,
   /** characters in one expression. */

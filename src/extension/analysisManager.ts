@@ -1,8 +1,9 @@
 /**
  * Keeps every open bias spec analysed: at once on open, debounced on change (a newer edit
- * supersedes an older request), diagnostics cleared on close. The active spec is analysed with
- * its Iout/Vout curve for the panel. Other parts (panel, status bar, CodeLens) listen to
- * `onDidUpdate`.
+ * supersedes an older request), diagnostics cleared on close. While the bias panel is open, the
+ * active spec is analysed with its Iout/Vout curve for the plots (a sweep costs about as much
+ * as the rest of the analysis, so it is skipped when nobody looks). Other parts (panel, status
+ * bar, CodeLens) listen to `onDidUpdate`.
  */
 import * as vscode from 'vscode';
 import type { AnalyzeOptions } from '../core/analyze';
@@ -11,6 +12,7 @@ import type { Analyzer } from './analyzer';
 import { toDiagnostics } from './convert';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
+import { PANEL_VIEW_TYPE } from './panel';
 
 export interface ReportUpdate { uri: vscode.Uri; report: FileReport; version: number }
 
@@ -48,6 +50,7 @@ export class AnalysisManager implements vscode.Disposable {
       vscode.workspace.onDidChangeConfiguration((e) => {
         if (e.affectsConfiguration('qpoint')) this.reanalyzeAll();
       }),
+      vscode.window.tabGroups.onDidChangeTabs(() => this.panelMayHaveOpened()),
     );
     for (const d of vscode.workspace.textDocuments) this.open(d);
     this.activeChanged(vscode.window.activeTextEditor);
@@ -55,10 +58,19 @@ export class AnalysisManager implements vscode.Disposable {
 
   /** The active spec (or the last one that was active, while the panel has focus). */
   current(): { uri: vscode.Uri; report: FileReport } | undefined {
+    // Focus may sit in the panel or a quick input (no active editor): then the last active spec,
+    // else a visible one.
     const active = vscode.window.activeTextEditor?.document;
-    const key = active && isSpecDocument(active) ? active.uri.toString() : this.lastActive;
-    const e = key ? this.entries.get(key) : undefined;
-    return e?.report ? { uri: e.uri, report: e.report } : undefined;
+    const keys = [
+      active && isSpecDocument(active) ? active.uri.toString() : undefined,
+      this.lastActive,
+      ...vscode.window.visibleTextEditors.filter((ed) => isSpecDocument(ed.document)).map((ed) => ed.document.uri.toString()),
+    ];
+    for (const key of keys) {
+      const e = key ? this.entries.get(key) : undefined;
+      if (e?.report) return { uri: e.uri, report: e.report };
+    }
+    return undefined;
   }
 
   /** The report of the document's current text, if it is finished. */
@@ -74,7 +86,7 @@ export class AnalysisManager implements vscode.Disposable {
       if (e.report && e.reportVersion === doc.version && (!opts.curve || e.hasCurve)) return e.report;
       if (e.timer) clearTimeout(e.timer);
       e.timer = undefined;
-      const report = await this.run(doc, e, opts.curve === true || this.isActive(doc));
+      const report = await this.run(doc, e, opts.curve === true || this.wantsCurve(doc));
       if (report) return report;
       if (doc.isClosed) return undefined;
     }
@@ -103,9 +115,21 @@ export class AnalysisManager implements vscode.Disposable {
       || this.lastActive === doc.uri.toString();
   }
 
+  /** The active spec gets its curve while the bias panel is open. */
+  private wantsCurve(doc: vscode.TextDocument): boolean {
+    return this.isActive(doc) && panelIsOpen();
+  }
+
+  private panelMayHaveOpened(): void {
+    if (!this.lastActive || !panelIsOpen()) return;
+    const e = this.entries.get(this.lastActive);
+    const doc = vscode.workspace.textDocuments.find((d) => d.uri.toString() === this.lastActive);
+    if (e && doc && !e.hasCurve && !e.timer) void this.run(doc, e, true);
+  }
+
   private open(doc: vscode.TextDocument): void {
     if (!isSpecDocument(doc) || this.entries.has(doc.uri.toString())) return;
-    void this.run(doc, this.track(doc), this.isActive(doc));
+    void this.run(doc, this.track(doc), this.wantsCurve(doc));
   }
 
   private changed(doc: vscode.TextDocument): void {
@@ -114,7 +138,7 @@ export class AnalysisManager implements vscode.Disposable {
     if (e.timer) clearTimeout(e.timer);
     e.timer = setTimeout(() => {
       e.timer = undefined;
-      void this.run(doc, e, this.isActive(doc));
+      void this.run(doc, e, this.wantsCurve(doc));
     }, readSettings(doc.uri).debounceMs);
   }
 
@@ -133,14 +157,14 @@ export class AnalysisManager implements vscode.Disposable {
     this.lastActive = doc.uri.toString();
     const e = this.entries.get(this.lastActive);
     if (!e) this.open(doc);
-    else if (!e.hasCurve && !e.timer) void this.run(doc, e, true);
+    else if (!e.hasCurve && !e.timer && panelIsOpen()) void this.run(doc, e, true);
     else if (e.report) this.emitter.fire({ uri: e.uri, report: e.report, version: e.reportVersion ?? doc.version });
   }
 
   private reanalyzeAll(): void {
     for (const doc of vscode.workspace.textDocuments) {
       const e = this.entries.get(doc.uri.toString());
-      if (e) void this.run(doc, e, this.isActive(doc));
+      if (e) void this.run(doc, e, this.wantsCurve(doc));
     }
   }
 
@@ -170,4 +194,9 @@ export class AnalysisManager implements vscode.Disposable {
     this.entries.clear();
     for (const d of this.disposables.splice(0)) d.dispose();
   }
+}
+
+function panelIsOpen(): boolean {
+  return vscode.window.tabGroups.all.some((g) => g.tabs.some((t) =>
+    t.input instanceof vscode.TabInputWebview && t.input.viewType.endsWith(PANEL_VIEW_TYPE)));
 }

@@ -26,8 +26,9 @@ export function registerPanel(context: vscode.ExtensionContext, source: PanelSou
 
   const adopt = (panel: vscode.WebviewPanel) => {
     controller?.dispose();
-    controller = new PanelController(panel, context.extensionUri, source, log);
-    controller.onDispose(() => { controller = undefined; });
+    const c = new PanelController(panel, context.extensionUri, source, log);
+    c.onDispose(() => { if (controller === c) controller = undefined; });
+    controller = c;
   };
 
   context.subscriptions.push(
@@ -47,19 +48,20 @@ export function registerPanel(context: vscode.ExtensionContext, source: PanelSou
         return;
       }
       const panel = vscode.window.createWebviewPanel(PANEL_VIEW_TYPE, TITLE,
-        { viewColumn: vscode.ViewColumn.Beside, preserveFocus: true }, webviewOptions(context.extensionUri));
+        { viewColumn: vscode.ViewColumn.Beside, preserveFocus: true }, panelOptions(context.extensionUri));
       adopt(panel);
     },
   };
 }
 
-function webviewOptions(extensionUri: vscode.Uri): vscode.WebviewPanelOptions & vscode.WebviewOptions {
-  return {
-    enableScripts: true,
-    localResourceRoots: [vscode.Uri.joinPath(extensionUri, 'dist')],
-    // The page restores from getState() when shown again: no need to keep it alive while hidden.
-    retainContextWhenHidden: false,
-  };
+/** Scripts on; the page may load files from the extension's dist/ folder and nothing else. */
+function webviewOptions(extensionUri: vscode.Uri): vscode.WebviewOptions {
+  return { enableScripts: true, localResourceRoots: [vscode.Uri.joinPath(extensionUri, 'dist')] };
+}
+
+function panelOptions(extensionUri: vscode.Uri): vscode.WebviewPanelOptions & vscode.WebviewOptions {
+  // The page restores from getState() when shown again: no need to keep it alive while hidden.
+  return { ...webviewOptions(extensionUri), retainContextWhenHidden: false };
 }
 
 class PanelController {

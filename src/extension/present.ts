@@ -146,7 +146,7 @@ function pairTable(rows: [string, string][], header: string): string {
   for (let i = 0; i < rows.length; i += 2) {
     const a = rows[i];
     const b = rows[i + 1] ?? ['', ''];
-    lines.push(`| ${a[0]} | ${a[1]} | ${b[0]} | ${b[1]} |`);
+    lines.push(`| **${a[0]}** | ${a[1]} | ${b[0] ? `**${b[0]}**` : ''} | ${b[1]} |`);
   }
   return lines.join('\n');
 }
@@ -197,7 +197,7 @@ function convergenceNote(reports: MirrorReport[]): string {
 
 export function outputHoverMarkdown(r: MirrorReport): string {
   const rows = mirrorFigures(r);
-  const table = ['| | |', '|:--|--:|', ...rows.map(([k, v]) => `| ${k} | ${v} |`)].join('\n');
+  const table = ['| | |', '|:--|--:|', ...rows.map(([k, v]) => `| **${k}** | ${v} |`)].join('\n');
   return `**${escapeMd(r.name)}** · ${kindLine(r)} · Vout ${formatSI(r.vout, 'V')}${convergenceNote([r])}\n\n${table}\n\n${CAUTION}`;
 }
 

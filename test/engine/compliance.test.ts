@@ -124,3 +124,4 @@ describe('PMOS compliance mirrors NMOS: vdd − compliance', () => {
     checkEdge(p, { type: 'pmos', vout: 0.8 }, kind, s);
   });
 });
+

@@ -12,7 +12,7 @@ import { buildNetlist } from '../../src/core/circuit/netlistCircuit';
 import { newChannelEval } from '../../src/core/models/core';
 import { prepareDevice } from '../../src/core/models/device';
 import { evalTerminal } from '../../src/core/models/terminal';
-import type { ModelKind, Polarity } from '../../src/core/types';
+import type { ModelKind, NetlistMirror, Polarity, TemplateMirror } from '../../src/core/types';
 import { makeSpec, netlist, RAZAVI_N, template } from './builders';
 
 const H = 1e-6;
@@ -92,7 +92,7 @@ describe('assembled nodal Jacobian vs finite differences of the residuals', () =
   it.each(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'] as const)('%s, NMOS and PMOS, odd node voltages', (kind) => {
     for (const type of ['nmos', 'pmos'] as const) {
       const spec = makeSpec([template(kind, { type, vout: 1.7, vbias: type === 'nmos' ? 1.5 : 1.8, input: { resistor: 20e3 } })]);
-      const mc = buildTemplate(spec, spec.mirrors[0] as never, 0, 1.7, type === 'nmos' ? 1.5 : 1.8);
+      const mc = buildTemplate(spec, spec.mirrors[0] as TemplateMirror, 0, 1.7, type === 'nmos' ? 1.5 : 1.8);
       // Arbitrary voltages: some devices saturated, some in triode, some off.
       for (let k = 0; k < mc.circuit.nFree; k++) mc.ws.v[k] = 0.3 + 0.7 * k;
       for (let k = mc.circuit.nFree; k < mc.ws.nt; k++) mc.ws.v[k] = mc.circuit.fixedV[k]!;
@@ -111,7 +111,7 @@ describe('assembled nodal Jacobian vs finite differences of the residuals', () =
       resistors: [{ name: 'R1', a: 'p', b: 'vss', r: 1e5 }],
       output: { node: 'out', v: 2 }, input: { source: 'I1' },
     })]);
-    const mc = buildNetlist(spec, spec.mirrors[0] as never, 2);
+    const mc = buildNetlist(spec, spec.mirrors[0] as NetlistMirror, 2);
     for (let k = 0; k < mc.circuit.nFree; k++) mc.ws.v[k] = 0.9 + 0.4 * k;
     for (let k = mc.circuit.nFree; k < mc.ws.nt; k++) mc.ws.v[k] = mc.circuit.fixedV[k]!;
     jacobianCheck(mc.ws, () => assemble(mc.circuit, mc.ws, 1, 1e-12));
@@ -120,7 +120,7 @@ describe('assembled nodal Jacobian vs finite differences of the residuals', () =
 
 it('workspace buffers do not overlap', () => {
   const spec = makeSpec([template('cascode', { vout: 2 })]);
-  const mc = buildTemplate(spec, spec.mirrors[0] as never, 0, 2, undefined);
+  const mc = buildTemplate(spec, spec.mirrors[0] as TemplateMirror, 0, 2, undefined);
   const ws = new Workspace(mc.circuit);
   const bufs = [ws.v, ws.F, ws.absI, ws.dx, ws.tmp, ws.saved, ws.best, ws.G, ws.lu];
   bufs.forEach((b, i) => b.fill(i + 1));

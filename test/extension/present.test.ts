@@ -56,7 +56,7 @@ describe('device hover', () => {
 
   it('marks a device out of saturation in bold and carries the caution line', () => {
     const md = hoverMarkdown({ kind: 'device', report: MIRROR, device: { ...REF, region: 'triode' } });
-    expect(md).toContain('| region | **triode** |');
+    expect(md).toContain('| **region** | **triode** |');
     expect(md).toContain(CAUTION_TEXT);
     expect(md).toContain('W/L = 10 µm / 1 µm');
   });
@@ -65,11 +65,11 @@ describe('device hover', () => {
 describe('mirror hover', () => {
   it('puts Rout beside the textbook formula and names the compliance side', () => {
     const md = hoverMarkdown({ kind: 'mirror', mirror: 'copy', reports: [{ ...MIRROR, routApprox: 100e3 }] });
-    expect(md).toContain('| Rout | 111 kΩ (textbook 100 kΩ) |');
-    expect(md).toContain('| Iout | 104 µA |');
-    expect(md).toContain('| compliance | 367 mV (lowest Vout) |');
+    expect(md).toContain('| **Rout** | 111 kΩ (textbook 100 kΩ) |');
+    expect(md).toContain('| **Iout** | 104 µA |');
+    expect(md).toContain('| **compliance** | 367 mV (lowest Vout) |');
     // error = 103.9103/100 − 1 = +3.91 % (references.md §9 constructed check)
-    expect(md).toContain('| error | +3.91 % |');
+    expect(md).toContain('| **error** | +3.91 % |');
     expect(md).toContain(CAUTION_TEXT);
   });
 

@@ -12,6 +12,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import type { Finding } from '../../src/core/types';
+import { RULES_BY_CODE } from '../../src/core/rules/catalog';
 import { apply, check, owner, preferred, spec, textOf } from './helpers';
 
 interface Row {
@@ -23,6 +24,9 @@ interface Row {
   /** A verified preferred fix is expected. */
   fix: boolean;
   message?: RegExp;
+  /** The preferred fix's title and the text it writes. */
+  fixTitle?: RegExp;
+  writes?: string;
 }
 
 const mirror = (name: string, kind: string, type: string, rest: string[]): string[] =>
@@ -54,6 +58,12 @@ const rows: Row[] = [
     code: 'ratio-error', at: [13, 16, 17, '4'], fix: true, message: /ratio 4\.23\d is \+5\.8\d % off the required 4 \(limit ±1 %\): VDS mismatch \+5\.8\d %/,
   },
   {
+    // m = 4 for a required 3: the error is the count (+33 %), not length modulation (VDS ≈ VGS).
+    name: 'ratio-error: a wrong parallel count is fixed in m, not W',
+    text: spec(mirror('m3', 'simple', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    devices:', '      out: { m: 4 }', '    output: { v: 0.64 }', '    require: { ratio: 3 }'])),
+    code: 'ratio-error', at: [13, 16, 17, '4'], fix: true, message: /sizing \+33\.3 % \(geometric ratio 4\)/, fixTitle: /^Use 3 parallel `out` devices/, writes: '3',
+  },
+  {
     // Geometric 3 vs required 3.1: −3.2 % from sizing; the cascode keeps VDS error tiny.
     name: 'ratio-error: in a bias bank output, at that output\'s m token',
     text: spec(mirror('bank', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    outputs:', '      - name: a', '        devices: { out: { m: 2 }, outc: { m: 2 } }',
@@ -61,10 +71,17 @@ const rows: Row[] = [
     code: 'ratio-error', at: [17, 29, 30, '3'], fix: true, message: /sizing −3\.2\d % \(geometric ratio 3\)/,
   },
   {
+    // Cascode output b at 0.75 V, below VGS_ref + VOV_outc ≈ 0.82 V: b's outc is in triode; a is fine.
+    name: 'not-saturated: one output of a bias bank, at that output\'s name',
+    text: spec(mirror('bank', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    outputs:', '      - name: a',
+      '        output: { v: 1.2 }', '      - name: b', '        output: { v: 0.75 }'])),
+    code: 'not-saturated', at: [15, 14, 15, 'b'], fix: true, message: /^`b\.outc` is in triode/,
+  },
+  {
     // Wilson: (1+λ·VGS_d)/(1+λ·(VGS_d+VGS_out)) − 1 ≈ −5.5 % at λ = 0.08 (references §5 form).
     name: 'vds-mismatch: Wilson, at the kind value, fixed by the balanced form',
     text: spec(mirror('wil', 'wilson', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 1.2 }'])),
-    code: 'vds-mismatch', at: [8, 10, 16, 'wilson'], fix: true, message: /moves the ratio by −5\.\d+ %/,
+    code: 'vds-mismatch', at: [8, 10, 16, 'wilson'], fix: true, writes: 'wilson-balanced', message: /moves the ratio by −5\.\d+ %/,
   },
   {
     // ro = 1/(λ·I) with λ = 0.08·1µ/1µ at 10 µA → 1.25 MΩ (plus VDS term) < 3 MΩ.
@@ -109,7 +126,7 @@ const rows: Row[] = [
   {
     name: 'below-lmin: shared size.l, at that token',
     text: spec(mirror('short', 'simple', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 0.15u }', '    output: { v: 0.6 }', '    require: { ratio: 1.04 }'])),
-    code: 'below-lmin', at: [11, 22, 27, '0.15u'], fix: true, message: /L 150 nm of `ref`, `out` is below the nmos lmin 180 nm/,
+    code: 'below-lmin', at: [11, 22, 27, '0.15u'], fix: true, fixTitle: /l 0\.15u → 0\.18u, w 2u → 2\.4u/, message: /L 150 nm of `ref`, `out` is below the nmos lmin 180 nm/,
   },
   {
     name: 'below-wmin: a device override, at that token',
@@ -120,7 +137,7 @@ const rows: Row[] = [
     // vbias 0.8 V: VDS_ref = 0.8 − VGS_refc ≈ 0.13 V < VDSsat ≈ 0.2 V (wide-swing, J&M ch. 3, from memory).
     name: 'vbias-triode: written vbias too low, at the vbias value',
     text: spec(mirror('ws', 'wide-swing', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    vbias: 0.8', '    output: { v: 1.0 }'])),
-    code: 'vbias-triode', at: [12, 11, 14, '0.8'], fix: true, message: /vbias 800 mV leaves `ref`, `out` out of saturation/,
+    code: 'vbias-triode', at: [12, 11, 14, '0.8'], fix: true, fixTitle: /^Set vbias to 9\d\d mV/, message: /vbias 800 mV leaves `ref`, `out` out of saturation/,
   },
   {
     // 1 A through a 0.22 µm / 10 µm device: no node voltage within reach carries it.
@@ -141,16 +158,18 @@ describe('design findings: present at the exact range, gone after the preferred 
       const f = find(findings, row.code);
       expect(f, `${row.code} in ${findings.map((x) => x.code).join(', ')}`).toBeDefined();
       const [line, c0, c1, token] = row.at;
-      if (process.env.DUMP) console.log(row.name, JSON.stringify(f!.range), JSON.stringify(textOf(row.text, f!.range)), f!.message, JSON.stringify(f!.fixes?.map((x) => x.title)));
       expect(f!.range).toEqual({ start: { line, character: c0 }, end: { line, character: c1 } });
       expect(textOf(row.text, f!.range)).toBe(token);
       if (row.message) expect(f!.message).toMatch(row.message);
+      expect(f!.severity).toBe(RULES_BY_CODE.get(row.code)!.severity);
       const fix = preferred(f!);
       if (!row.fix) {
         expect(fix).toBeUndefined();
         return;
       }
       expect(fix, 'a verified preferred fix').toBeDefined();
+      if (row.fixTitle) expect(fix!.title).toMatch(row.fixTitle);
+      if (row.writes !== undefined) expect(fix!.edits.map((e) => e.newText)).toEqual([row.writes]);
       const fixed = apply(row.text, fix!);
       const after = check(fixed);
       expect(after.parsed).toBe(true);
@@ -160,4 +179,115 @@ describe('design findings: present at the exact range, gone after the preferred 
       for (const e of after.findings.filter((x) => x.severity === 'error')) expect(before.has(`${e.code}@${owner(e)}`), e.message).toBe(true);
     });
   }
+});
+
+describe('other shapes: JSON files, netlist mirrors, PMOS compliance', () => {
+  const json = JSON.stringify({
+    format: 1,
+    process: { grid: '10n', nmos: { kp: '280u', vt0: 0.45, lambda: 0.08, lref: '1u', gamma: 0.45, phi: 0.85 }, pmos: { kp: '70u', vt0: 0.48, lambda: 0.1, lref: '1u', gamma: 0.4, phi: 0.8 } },
+    supplies: { vdd: 1.8 },
+    mirrors: [
+      { name: 'sink4', kind: 'simple', type: 'nmos', input: '10u', size: { w: '2u', l: '1u' }, devices: { out: { m: 4 } }, output: { v: 1.4 }, require: { ratio: 4 } },
+      { name: 'w', kind: 'wilson', type: 'nmos', input: '10u', size: { w: 2e-6, l: 1e-6 }, output: { v: 1.2 } },
+    ],
+  }, null, 2);
+
+  it('JSON: the fixes keep the file valid JSON and remove their findings', () => {
+    const { findings } = check(json, 'case.bias.json');
+    const ratio = findings.filter((f) => f.code === 'ratio-error');
+    expect(ratio.map(owner)).toEqual(['0', '1']);
+    for (const f of ratio) {
+      const fixed = apply(json, preferred(f)!);
+      expect(() => JSON.parse(fixed)).not.toThrow();
+      expect(check(fixed, 'case.bias.json').findings.filter((x) => x.code === 'ratio-error' && owner(x) === owner(f))).toEqual([]);
+    }
+    // The width is inserted as a JSON string in the device's flow object.
+    const sinkFixed = JSON.parse(apply(json, preferred(ratio[0])!));
+    expect(sinkFixed.mirrors[0].devices.out).toEqual({ m: 4, w: expect.stringMatching(/^1\.\d+u$/) });
+    expect(JSON.parse(apply(json, preferred(ratio[1])!)).mirrors[1].kind).toBe('wilson-balanced');
+  });
+
+  const netlist = [
+    'format: 1',
+    'process:',
+    '  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85 }',
+    '  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8 }',
+    'supplies: { vdd: 1.8 }',
+    'mirrors:',
+    '  - name: nl',
+    '    kind: netlist',
+    '    type: nmos',
+    '    devices:',
+    '      M1: { type: nmos, d: a, g: a, s: vss, b: vss, w: 2u, l: 1u }',
+    '      M2: { type: nmos, d: out, g: a, s: vss, b: vss, w: 2u, l: 1u }',
+    '    currents:',
+    '      I1: { from: vdd, to: a, i: 10u }',
+    '    output: { node: out, v: 1.5 }',
+    '    input: { source: I1 }',
+    '    pair: { ref: M1, out: M2 }',
+    '    require: { ratio: 1, rout: 3M }',
+    '',
+  ].join('\n');
+
+  it('netlist: ratio-error at the pair output device\'s w, low-rout at its l; both fixed', () => {
+    const { findings } = check(netlist);
+    const ratio = findings.find((f) => f.code === 'ratio-error')!;
+    // (1 + 0.08·1.5)/(1 + 0.08·0.634) − 1 = +6.6 % (length modulation).
+    expect(ratio.message).toMatch(/ratio 1\.06\d is \+6\.\d+ % off the required 1/);
+    expect(ratio.range).toEqual({ start: { line: 11, character: 57 }, end: { line: 11, character: 59 } });
+    expect(ratio.related?.[0].message).toBe('mirrored from `M1`');
+    const rout = findings.find((f) => f.code === 'low-rout')!;
+    expect(textOf(netlist, rout.range)).toBe('1u');
+    expect(rout.range.start).toEqual({ line: 11, character: 64 });
+    for (const f of [ratio, rout]) {
+      const after = check(apply(netlist, preferred(f)!));
+      expect(after.findings.filter((x) => x.code === f.code)).toEqual([]);
+    }
+  });
+
+  it('PMOS: compliance against the high end of output.range', () => {
+    const text = spec(['  - name: pc', '    kind: cascode', '    type: pmos', '    input: 10u', '    size: { w: 8u, l: 1u }', '    output: { v: 0.6, range: [0.2, 1.1] }']);
+    const f = check(text).findings.find((x) => x.code === 'compliance')!;
+    expect(f.message).toMatch(/leaves saturation above Vout = 9\d\d mV, but output\.range needs the mirror to work up to 1\.1 V/);
+    expect(textOf(text, f.related![0].range)).toBe('1.1');
+    const after = check(apply(text, preferred(f)!));
+    expect(after.findings.filter((x) => x.code === 'compliance')).toEqual([]);
+  });
+
+  it('never throws: no spec, no reports, reports of another spec', async () => {
+    const { runRules } = await import('../../src/core/rules/index');
+    const { parseSpec } = await import('../../src/core/spec/index');
+    const broken = parseSpec('format: 1\nmirrors: [ {', 'x.bias.yaml');
+    expect(runRules(broken, [])).toEqual([]);
+    const p = parseSpec(netlist, 'x.bias.yaml');
+    expect(runRules(p, [])).toEqual([]);
+  });
+});
+
+describe('bounded fix verification', () => {
+  const many = spec(Array.from({ length: 40 }, (_, i) => mirror(`s${i}`, 'simple', 'nmos',
+    ['    input: 10u', '    size: { w: 2u, l: 1u }', '    devices:', '      out: { m: 4 }', '    output: { v: 1.4 }', '    require: { ratio: 4 }'])).flat());
+
+  it('a zero budget gives findings without fixes, with the hint instead', async () => {
+    const { runRules } = await import('../../src/core/rules/index');
+    const { parseSpec } = await import('../../src/core/spec/index');
+    const { analyzeSpec } = await import('../../src/core/analysis/index');
+    const p = parseSpec(spec(mirror('wil', 'wilson', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 1.2 }'])), 'a.bias.yaml');
+    const f = runRules(p, analyzeSpec(p.spec!), { maxRechecks: 0 });
+    const vds = f.find((x) => x.code === 'vds-mismatch')!;
+    expect(vds.fixes).toBeUndefined();
+    expect(vds.message).toMatch(/the balanced Wilson equalises the two$/);
+  });
+
+  it('40 faulty mirrors: every one is reported, fixes stop at the recheck budget', async () => {
+    const { runRules } = await import('../../src/core/rules/index');
+    const { parseSpec } = await import('../../src/core/spec/index');
+    const { analyzeSpec } = await import('../../src/core/analysis/index');
+    const p = parseSpec(many, 'many.bias.yaml');
+    const ratio = runRules(p, analyzeSpec(p.spec!), { maxRechecks: 10 }).filter((x) => x.code === 'ratio-error');
+    expect(ratio).toHaveLength(40);
+    const fixed = ratio.filter((x) => x.fixes?.length);
+    expect(fixed.length).toBeGreaterThan(0);
+    expect(fixed.length).toBeLessThanOrEqual(10);
+  });
 });

@@ -50,7 +50,7 @@ function checkFix(text: string, f: Finding, fix: Fix): void {
 }
 
 const arbMirror = fc.record({
-  kind: fc.constantFrom('simple', 'cascode', 'wide-swing', 'wilson'),
+  kind: fc.constantFrom('simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'),
   type: fc.constantFrom('nmos', 'pmos'),
   iin: fc.constantFrom('5u', '10u', '20u'),
   w: fc.constantFrom('1u', '2u', '4u', '8u'),
@@ -61,6 +61,9 @@ const arbMirror = fc.record({
   rout: fc.option(fc.constantFrom('1M', '5M', '50M'), { nil: undefined }),
   sigma: fc.option(fc.constantFrom('0.5%', '1%', '2%'), { nil: undefined }),
   flow: fc.boolean(),
+  /** A second output (bias bank) for the kinds that take `outputs:`. */
+  bank: fc.boolean(),
+  vbias: fc.option(fc.constantFrom('0.7', '0.9', '1.1'), { nil: undefined }),
 });
 
 type ArbMirror = typeof arbMirror extends fc.Arbitrary<infer T> ? T : never;
@@ -69,6 +72,25 @@ function mirrorText(m: ArbMirror, i: number): string[] {
   const vout = (1.8 * m.voutFrac / 100).toFixed(2);
   const req = [m.ratio ? `ratio: ${m.kind.startsWith('wilson') ? 1 : m.m}` : '', m.rout ? `rout: ${m.rout}` : '', m.sigma ? `sigma: ${m.sigma}` : ''].filter(Boolean);
   const out = m.kind.startsWith('wilson') ? [] : m.flow ? [`    devices: { out: { m: ${m.m} } }   # parallel copies`] : ['    devices:', '      out:', `        m: ${m.m}      # parallel copies`];
+  const vbias = m.kind === 'wide-swing' && m.vbias && m.type === 'nmos' ? [`    vbias: ${m.vbias}   # written cascode bias`] : [];
+  if (m.bank && !m.kind.startsWith('wilson')) {
+    return [
+      `  # bank ${i}: generated`,
+      `  - name: g${i}`,
+      `    kind: ${m.kind}`,
+      `    type: ${m.type}`,
+      `    input: ${m.iin}`,
+      `    size: { w: ${m.w}, l: ${m.l} }`,
+      ...vbias,
+      '    outputs:',
+      '      - name: a        # first tap',
+      `        devices: { out: { m: ${m.m} } }`,
+      `        output: { v: ${vout} }`,
+      ...(req.length ? [`        require: { ${req.join(', ')} }`] : []),
+      '      - name: b',
+      `        output: { v: ${(1.8 - Number(vout)).toFixed(2)} }`,
+    ];
+  }
   return [
     `  # mirror ${i}: generated`,
     `  - name: g${i}`,
@@ -77,6 +99,7 @@ function mirrorText(m: ArbMirror, i: number): string[] {
     `    input: ${m.iin}        # ideal input current`,
     m.flow ? `    size: { w: ${m.w}, l: ${m.l} }` : `    size:\n      w: ${m.w}   # unit width\n      l: ${m.l}`,
     ...out,
+    ...vbias,
     `    output: { v: ${vout} }`,
     ...(req.length ? [`    require: { ${req.join(', ')} }`] : []),
   ];
@@ -85,6 +108,7 @@ function mirrorText(m: ArbMirror, i: number): string[] {
 describe('offered fixes (property)', () => {
   it('random specs: every offered fix is minimal, keeps comments, re-parses and removes its finding', () => {
     let fixesSeen = 0;
+    const fixedCodes = new Set<string>();
     fc.assert(fc.property(fc.array(arbMirror, { minLength: 1, maxLength: 2 }), (ms) => {
       const text = `# generated spec\n${header()}\n${ms.flatMap(mirrorText).join('\n')}\n`;
       const { findings, parsed } = check(text);
@@ -93,6 +117,7 @@ describe('offered fixes (property)', () => {
       for (const f of findings) {
         for (const fix of f.fixes ?? []) {
           fixesSeen++;
+          fixedCodes.add(f.code);
           checkFix(text, f, fix);
         }
         if (f.fixes?.length) expect(f.fixes.filter((x) => x.preferred)).toHaveLength(1);
@@ -100,6 +125,8 @@ describe('offered fixes (property)', () => {
     }), { numRuns: Number(process.env.QPOINT_PROP_RUNS ?? 16), seed: Number(process.env.QPOINT_PROP_SEED ?? 20240611) });
     // The generator must actually exercise fixes, or this property says nothing.
     expect(fixesSeen).toBeGreaterThan(10);
+    if (process.env.QPOINT_PROP_SHOW) console.log(fixesSeen, [...fixedCodes]);
+    expect(fixedCodes.size).toBeGreaterThanOrEqual(4);
   });
 
   it('faulty fixture: every offered fix holds', () => {

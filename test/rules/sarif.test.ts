@@ -113,3 +113,28 @@ describe('toSarif', () => {
     expect(validate(toSarif([], { version: '0.1.0', rulesDoc: 'https://example.invalid/f.md' }))).toBe(true);
   });
 });
+
+describe('toSarif on real findings', () => {
+  it('the faulty fixture\'s findings and fixes form a valid SARIF 2.1.0 log', async () => {
+    const { check } = await import('./helpers');
+    const text = readFileSync(new URL('./fixtures/faulty.bias.yaml', import.meta.url), 'utf8');
+    const { findings } = check(text, 'faulty.bias.yaml');
+    expect(findings.some((f) => (f.fixes?.length ?? 0) > 0)).toBe(true);
+    const log = toSarif([{ file: 'test/rules/fixtures/faulty.bias.yaml', findings }], { version: '0.1.0', rulesDoc: 'https://example.invalid/docs/findings.md' }) as Record<string, any>;
+    const validate = validator();
+    expect(validate(log), JSON.stringify(validate.errors)).toBe(true);
+    const results = log.runs[0].results;
+    expect(results).toHaveLength(findings.length);
+    // Every fix's replacement deletes exactly the source text of its edit (1-based region back to 0-based).
+    const lines = text.split('\n');
+    for (const r of results) {
+      for (const fix of r.fixes ?? []) {
+        for (const rep of fix.artifactChanges[0].replacements) {
+          const d = rep.deletedRegion;
+          expect(d.startLine).toBeGreaterThanOrEqual(1);
+          if (d.startLine === d.endLine) expect(lines[d.startLine - 1].length).toBeGreaterThanOrEqual(d.endColumn - 1);
+        }
+      }
+    }
+  });
+});

@@ -30,6 +30,8 @@ const rows: Row[] = [
   { name: 'refused expression', text: withText('w: 2u', 'w: "⟦import⟧({}, {})"'), code: 'refused-expression', line: 10, message: 'function `import` is not allowed' },
   { name: 'bad expression', text: withText('w: 2u', 'w: ⟦2*(1u⟧'), code: 'bad-expression', line: 10 },
   { name: 'param cycle at the value', text: withText('format: 1\n', 'format: 1\nparams:\n  a: b*2\n  b: ⟦a + 1u⟧\n'), code: 'param-cycle', line: 3, message: 'b → a → b' },
+  { name: 'unknown name inside a param', text: withText('format: 1\n', 'format: 1\nparams:\n  a: "2*⟦bb⟧"\n'), code: 'unknown-param', line: 2, message: '`bb` is not a param' },
+  { name: 'a param with a unit used for another quantity', text: withText('format: 1\n', 'format: 1\nparams: { ib: 10uA }\n', withText('w: 2u', 'w: ⟦ib⟧')), code: 'bad-unit', line: 11, message: 'param `ib` is a current (A)' },
   { name: 'duplicate mirror name at the second name', text: BASE + '  - name: ⟦m1⟧\n    kind: simple\n    type: nmos\n    input: 10u\n    size: { w: 2u, l: 1u }\n    output: { v: 0.9 }\n', code: 'duplicate-name', line: 12, message: 'already used by mirror 1' },
   { name: 'duplicate YAML key', text: withText('    type: nmos\n', '    type: nmos\n    ⟦type⟧: pmos\n'), code: 'duplicate-key', line: 9, message: 'given twice' },
   { name: 'unknown role for the kind', text: withText('    output:', '    devices: { ⟦refc⟧: { m: 2 } }\n    output:'), code: 'unknown-role', line: 11, message: 'not a role of a simple mirror (roles: ref, out)' },

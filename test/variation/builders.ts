@@ -121,3 +121,19 @@ export function heldDevice(vgs: number, vds: number, w = 10e-6, l = 1e-6): Netli
     input: { source: 'I1' },
   };
 }
+
+/** A simple NMOS mirror written as a netlist (M1 diode, M2 output at twice the width). */
+export function netlistMirror(vout = 1.2): NetlistMirror {
+  return {
+    kind: 'netlist', name: 'net', type: 'nmos', path: ['mirrors', 0], require: {},
+    devices: [
+      { name: 'M1', type: 'nmos', d: 'nin', g: 'nin', s: 'vss', b: 'vss', w: 20e-6, l: 2e-6, m: 1 },
+      { name: 'M2', type: 'nmos', d: 'nout', g: 'nin', s: 'vss', b: 'vss', w: 40e-6, l: 2e-6, m: 1 },
+    ],
+    currents: [{ name: 'IREF', from: 'vdd', to: 'nin', i: 20e-6 }],
+    voltages: [], resistors: [],
+    output: { node: 'nout', v: vout },
+    input: { source: 'IREF' },
+    pair: { ref: 'M1', out: 'M2' },
+  };
+}

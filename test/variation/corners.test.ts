@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
 import { applyCorner, runCorners } from '../../src/core/variation/corners';
 import type { CornerSpec, ResolvedSpec } from '../../src/core/types';
-import { everyKind, heldDevice, makeSpec, mirror, NMOS_D, PMOS_D, sz } from './builders';
+import { everyKind, heldDevice, makeSpec, mirror, netlistMirror, NMOS_D, PMOS_D, sz } from './builders';
 
 const SS: CornerSpec = {
   name: 'ss', path: ['corners', 'ss'], temperature: 398.15, vdd: 3.0,
@@ -35,8 +35,9 @@ describe('runCorners against hand-applied parameter sets', () => {
   for (const type of ['nmos', 'pmos'] as const) {
     it(`matches the engine on a hand-built corner spec for every ${type} kind`, () => {
       // PMOS outputs are absolute voltages below vdd: keep them where both supplies allow.
-      const spec = makeSpec(everyKind(type).map((m) => type === 'pmos'
-        ? { ...m, outputs: m.outputs.map((o) => ({ ...o, output: { v: o.output.v - 0.3 } })) } : m), { corners: [SS, FF] });
+      const kinds = everyKind(type).map((m) => type === 'pmos'
+        ? { ...m, outputs: m.outputs.map((o) => ({ ...o, output: { v: o.output.v - 0.3 } })) } : m);
+      const spec = makeSpec(type === 'nmos' ? [...kinds, netlistMirror()] : kinds, { corners: [SS, FF] });
       spec.mirrors.forEach((m, i) => {
         const results = runCorners(spec, i, 0);
         expect(results.map((r) => r.name)).toEqual(['ss', 'ff']);

@@ -140,32 +140,94 @@ describe('corner findings', () => {
   });
 });
 
+const LIMITS = `# Corner limits fixture (invented process "Halden 180").
+format: 1
+process:
+  tnom: 27 C
+  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85, tcv: -1m, avt: 4 mV·µm, abeta: 1 %·µm }
+  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8, tcv: -1.2m }
+supplies: { vdd: 1.8 }
+mirrors:
+  - name: tail
+    kind: cascode
+    type: nmos
+    input: 10u
+    size: { w: 4u, l: 1u }
+    output: { v: 1.0 }
+    require: { rout: 250M, compliance: 0.73, sigma: 3.5% }
+  - name: src
+    kind: cascode
+    type: pmos
+    input: 10u
+    size: { w: 16u, l: 1u }
+    output: { v: 0.8, range: [0.5, 1.0] }
+corners:
+  ss: { nmos: { vt0: +50m, kp: -10% }, pmos: { vt0: +50m, kp: -10% }, temperature: 125 C, vdd: 1.62 }
+  ff: { nmos: { vt0: -50m, kp: +10% }, pmos: { vt0: -50m, kp: +10% }, temperature: -40 C, vdd: 1.98 }
+`;
+
+describe('corner findings against requirements', () => {
+  const r = run(LIMITS, 'l.bias.yaml', { corners: true });
+  const [tail, src] = r.reports;
+
+  it('the nominal point meets every requirement (so the corners are what fails)', () => {
+    expect(tail!.rout).toBeGreaterThan(250e6);
+    expect(tail!.compliance).toBeLessThan(0.73);
+    expect(tail!.sigma!).toBeLessThan(0.035);
+    expect(src!.compliance).toBeGreaterThan(1.0);   // PMOS: must work up to the range's 1.0 V
+  });
+
+  it('each failing check points at its requirement and names the worst corner', () => {
+    const one = (code: string): Finding => { const f = byCode(r.findings, code).filter((x) => x.path[1] === 0); expect(f.length).toBe(1); return f[0]!; };
+    const rout = one('corner-low-rout');
+    expect(at(rout)).toBe('14:21-14:25');          // `250M`
+    expect(rout.message).toMatch(/^Rout 2\d\d MΩ at corner ss \(125 °C, vdd 1\.62 V\) is below require\.rout 250 MΩ/);
+    const comp = one('corner-compliance');
+    expect(at(comp)).toBe('14:39-14:43');          // `0.73`
+    expect(comp.message).toMatch(/at corner ss .*must work down to 730 mV \(require\.compliance\)/);
+    const sig = one('corner-high-sigma');
+    expect(at(sig)).toBe('14:52-14:56');           // `3.5%`
+    // Cold and fast: lower overdrive, higher gm/ID, larger ΔVT sensitivity (Kinget 2005, from memory).
+    expect(sig.message).toMatch(/at corner ff \(−40 °C, vdd 1\.98 V\)/);
+  });
+
+  it('PMOS compliance uses the top of output.range', () => {
+    const f = byCode(r.findings, 'corner-compliance').filter((x) => x.path[1] === 1);
+    expect(f.length).toBe(1);
+    expect(at(f[0]!)).toBe('20:35-20:38');         // `1.0`, the top of `range: [0.5, 1.0]`
+    expect(f[0]!.message).toMatch(/must work up to 1 V \(output\.range\)/);
+  });
+});
+
 describe('Monte Carlo findings', () => {
-  // Weak inversion (EKV, IC ≈ 0.02): iout ∝ exp(−ΔVT/(n·U_T)), so ln(iout) is normal and iout
+  // Deep weak inversion (EKV, IC ≈ 0.002): iout ∝ exp(−ΔVT/(n·U_T)), so ln(iout) is normal and iout
   // lognormal: relative σ = sqrt(exp(s²) − 1) for a normal s of ln(iout) — larger than the
   // linearized s (lognormal moments, e.g. Aitchison & Brown 1957, from memory).
   const WEAK = `format: 1
 process:
   model: ekv
-  nmos: { kp: 134u, vt0: 0.5, n: 1.3, avt: 40 mV·µm }
+  nmos: { kp: 134u, vt0: 0.5, n: 1.3, avt: 46 mV·µm }
   pmos: { kp: 40u, vt0: 0.5 }
 supplies: { vdd: 1.8 }
 mirrors:
   - name: weak
     kind: simple
     type: nmos
-    input: 1u
+    input: 100n
     size: { w: 20u, l: 0.1u }
     output: { v: 0.6 }
     require: { ratio: 1 }
 `;
   it('mc-nonlinear when the sampled sigma leaves the linearized one by more than 15 %', () => {
-    const r = run(WEAK, 'w.bias.yaml', { mc: { samples: 8000, seed: 5 } });
+    const r = run(WEAK, 'w.bias.yaml', { mc: { samples: 20_000, seed: 5 } });
     const rep = r.reports[0]!;
     const s = rep.sigma!;
-    expect(s).toBeGreaterThan(0.6);
+    expect(s).toBeGreaterThan(0.85);
     const lognormal = Math.sqrt(Math.expm1(s * s));
-    expect(Math.abs(rep.mc!.sigma / lognormal - 1)).toBeLessThan(0.06);
+    // The sampled σ of a lognormal this wide is noisy (kurtosis ≈ 57: standard error ≈ 2.7 % at
+    // N = 20 000); 10 % is more than three of them.
+    expect(Math.abs(rep.mc!.sigma / lognormal - 1)).toBeLessThan(0.1);
+    expect(rep.mc!.sigma / s - 1).toBeGreaterThan(0.15);
     const f = byCode(r.findings, 'mc-nonlinear');
     expect(f.length).toBe(1);
     expect(f[0]!.severity).toBe('info');

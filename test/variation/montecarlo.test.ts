@@ -1,13 +1,13 @@
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
 import { histogram, runMonteCarlo } from '../../src/core/variation/montecarlo';
-import { everyKind, makeSpec, mirror, sz } from './builders';
+import { everyKind, makeSpec, mirror, netlistMirror, sz } from './builders';
 
 const N = 20_000;
 
 describe('Monte Carlo against the linearized Pelgrom sigma', () => {
-  for (const type of ['nmos', 'pmos'] as const) {
-    const spec = makeSpec(everyKind(type));
+  for (const type of ['nmos', 'pmos', 'netlist'] as const) {
+    const spec = makeSpec(type === 'netlist' ? [netlistMirror()] : everyKind(type));
     spec.mirrors.forEach((m) => {
       it(`${type} ${m.kind}: sigma within 5 %, mean within 0.5 % at N = ${N}`, () => {
         // Design §4: sigma = sqrt(Σ S_VT²σ_VT² + S_β²σ_β²), σ per device = A/√(2·m·W·L)
@@ -31,6 +31,27 @@ describe('Monte Carlo against the linearized Pelgrom sigma', () => {
       });
     });
   }
+});
+
+describe('bias banks', () => {
+  it('each output of a bank is sampled on its own and matches its linearized sigma', () => {
+    // Outputs with m = 1 and m = 4: Pelgrom σ ∝ 1/√(m·W·L) for the output's own devices, so the
+    // two outputs' spreads differ, and each must still match its own linearization.
+    const bank = mirror('cascode', {
+      name: 'bank', vout: 0, size: sz(10e-6, 1e-6),
+      outputs: [{ name: 'a', v: 2.0 }, { name: 'b', v: 2.4, devices: { out: { m: 4 }, outc: { m: 4 } } }],
+    });
+    const spec = makeSpec([bank]);
+    const sig: number[] = [];
+    for (const j of [0, 1]) {
+      const ctx = { spec, mirror: spec.mirrors[0]!, outputIndex: j };
+      const lin = measureMirror(ctx).sigma!;
+      const mc = runMonteCarlo(ctx, N, 21 + j);
+      expect(Math.abs(mc.sigma / lin - 1)).toBeLessThan(0.05);
+      sig.push(lin);
+    }
+    expect(sig[1]!).toBeLessThan(sig[0]!);
+  });
 });
 
 describe('reproducibility', () => {

@@ -120,6 +120,18 @@ describe('auto sizing, square law', () => {
     expect(rep.ratioIdeal!).toBeLessThan(2.96);
   });
 
+  it('without require.ratio the output copies the reference W/L per finger (m carries the ratio)', () => {
+    const spec = makeSpec([mirror('cascode', { vout: 2.2, size: AUTO_W, design: { kind: 'vov', value: 0.2 }, devices: { out: { m: 4 }, outc: { m: 4 } } })], { grid: 10e-9 });
+    const { devices, sized } = sizedReport(spec);
+    const w = (role: string): number => sized.find((s) => s.role === role)!.w!;
+    expect(w('out')).toBe(w('ref'));
+    // The shared gate puts out at the reference's overdrive; the current follows m (×4) to
+    // within the length-modulation error of the pair.
+    const out = devices.find((d) => d.role === 'out')!;
+    expect(Math.abs(out.vov / 0.2 - 1)).toBeLessThan(0.01);
+    expect(Math.abs(out.id / (4 * 20e-6) - 1)).toBeLessThan(0.01);
+  });
+
   it('a bias bank sizes each output for its own ratio; a resistor input is sized at its solved current', () => {
     const bank = mirror('cascode', {
       name: 'bank', vout: 0, size: AUTO_W, input: { resistor: 120e3 }, design: { kind: 'vov', value: 0.2 },
@@ -196,17 +208,19 @@ describe('l: auto from require.rout', () => {
   it('simple mirror: the shortest grid L with 1/gds ≥ require.rout, as ro = (1/λ + VDS)/ID', () => {
     // Simple mirror Rout = ro (references §3, from memory); with λ = lambda·lref/L the exact
     // small-signal ro = (1 + λ·VDS)/(λ·ID) (the (1/λ + VDS)/ID convention of references §10).
-    const spec = makeSpec([mirror('simple', { vout: 1.2, size: sz(10e-6, 1e-6, 1, 'rail', { w: true, l: true }), design: { kind: 'vov', value: 0.2 }, require: { rout: 2e6 } })],
+    const spec = makeSpec([mirror('simple', { vout: 1.2, size: sz(10e-6, 1e-6, 1, 'rail', { w: true, l: true }), design: { kind: 'vov', value: 0.2 }, require: { ratio: 1, rout: 2e6 } })],
       { grid: 10e-9, nmos: { lref: 1e-6 } });
     const r = applyDesignTargets(spec);
     const rep = measureMirror({ spec: r.spec, mirror: r.spec.mirrors[0]!, outputIndex: 0 });
     expect(rep.rout).toBeGreaterThanOrEqual(2e6);
     const l = r.sized[0]!.l!;
-    // Hand solution: λ = 1/(rout·ID − VDS), L = lambda·lref/λ, rounded up to the 10 nm grid.
+    // Hand solution (require.ratio 1 makes the output carry exactly 20 µA):
+    // λ = 1/(rout·ID − VDS), L = lambda·lref/λ, rounded up to the 10 nm grid.
     const lHand = (0.1 * 1e-6) * (2e6 * 20e-6 - 1.2);
     expect(Math.abs(l - lHand)).toBeLessThanOrEqual(10e-9 + 1e-15);
     // The common length holds for both devices, and the widths follow at the target.
     expect(r.sized.every((s) => s.l === l)).toBe(true);
+    expect(Math.abs(rep.iout / 20e-6 - 1)).toBeLessThan(1e-3);  // up to W snapping
     for (const d of rep.devices) expect(Math.abs(d.vov / 0.2 - 1)).toBeLessThan(0.01);
   });
 

@@ -21,15 +21,20 @@ const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
 
 /** Real core reports of the example spec, before and after an edit a designer makes (the lna
  *  output of the tail bank goes from 4 to 5 parallel devices). */
-function reports(): { main: FileReport; updated: FileReport } {
+function reports(): { main: FileReport; updated: FileReport; faulty: FileReport } {
   const text = readFileSync(EXAMPLE, 'utf8');
   const edited = text.replace('out:  { m: 4 }', 'out:  { m: 5 }');
+  // A deliberate fault: the lna output cannot reach 2 GΩ, so the core reports low-rout there.
+  const wrong = text.replace('rout: 20M', 'rout: 2G');
   expect(edited).not.toBe(text);
+  expect(wrong).not.toBe(text);
   const main = analyzeText(text, EXAMPLE, OPTIONS);
   const updated = analyzeText(edited, EXAMPLE, OPTIONS);
+  const faulty = analyzeText(wrong, EXAMPLE, OPTIONS);
   expect(main.mirrors.length).toBeGreaterThan(3);
   expect(updated.mirrors[0].iout).not.toBeCloseTo(main.mirrors[0].iout, 7);
-  return { main, updated };
+  expect(faulty.findings.some((f) => f.code === 'low-rout')).toBe(true);
+  return { main, updated, faulty };
 }
 
 let cached: ReturnType<typeof reports> | undefined;
@@ -137,7 +142,11 @@ describe('the bias panel page', () => {
     // Show an output that has findings, then keyboard only: Tab from the top until a finding row
     // has focus, then Enter. The row shows
     // its code and 1-based line:col; the reveal must carry that finding's range.
-    const owner = main.mirrors.find((o) => main.findings.some((f) => f.path[1] === o.path[1]))!;
+    const { faulty } = core();
+    await post(page, { type: 'report', uri: URI, report: faulty, version: 2 });
+    const low = faulty.findings.find((f) => f.code === 'low-rout')!;
+    const owner = faulty.mirrors.find((o) => low.path[1] === o.path[1] && (o.path.length === 2 || low.path[3] === o.path[3]))!;
+    expect(owner).toBeDefined();
     await page.locator(`#mirror-list tr[data-key="mirror:${owner.name}"]`).click();
     await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(owner.name);
     await page.evaluate(() => (document.activeElement as HTMLElement | null)?.blur());
@@ -148,7 +157,7 @@ describe('the bias panel page', () => {
     }
     expect(key).toMatch(/^finding:/);
     const [, , code, line, col] = key!.split(':');  // finding:<index>:<code>:<line>:<col>
-    const finding = main.findings.find((f) => f.code === code && f.range.start.line === Number(line) - 1 && f.range.start.character === Number(col) - 1);
+    const finding = faulty.findings.find((f) => f.code === code && f.range.start.line === Number(line) - 1 && f.range.start.character === Number(col) - 1);
     expect(finding).toBeDefined();
     await page.keyboard.press('Enter');
     await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
@@ -247,7 +256,7 @@ describe('sections that render when present', () => {
 describe('README screenshot', () => {
   it('saves the panel on the example as media/panel.png', async () => {
     const { main } = core();
-    const page = await browser.newPage({ viewport: { width: 1000, height: 1250 }, deviceScaleFactor: 1 });
+    const page = await browser.newPage({ viewport: { width: 1000, height: 1080 }, deviceScaleFactor: 1 });
     const probe = await instrument(page);
     await page.goto(panelUrl);
     await applyTheme(page, 'dark');
@@ -298,48 +307,67 @@ describe('the HTML report', () => {
     expect(ink.length).toBeGreaterThanOrEqual(2 * withCurve);
     expect(await page.locator('#qpoint-caution').innerText()).toContain("foundry's models and corners");
     await page.screenshot({ path: join(OUT, 'report.png'), fullPage: true });
+
+    // A reader whose system prefers dark gets VS Code's dark colours, plots redrawn in them.
+    await page.emulateMedia({ colorScheme: 'dark' });
+    await expect.poll(() => page.evaluate(() => document.body.className)).toContain('vscode-dark');
+    expect(await page.evaluate(() => getComputedStyle(document.body).backgroundColor)).toBe(rgbText(THEMES.dark.vars['--vscode-editor-background']));
+    const darkBlue = hexToRgb(THEMES.dark.vars['--vscode-charts-blue']);
+    await until('report plots in dark colours', async () => {
+      const r = await canvasInk(page, '.plot[id^="plot-iout"]', darkBlue);
+      return r.length === withCurve && r.every((c) => c.colour > 50) ? r : undefined;
+    });
     expect(requests).toEqual([]);
     expect(errors).toEqual([]);
     await context.close();
   });
 });
 
-/** The detail of one mirror output: summary and device table read back against the report. */
+/** The detail of one mirror output: summary and device table read back against the report.
+ *  The page's text is read in one evaluate (hundreds of locator calls are slow). */
 async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'): Promise<void> {
-  const article = page.locator(scope);
-  await article.waitFor();
-  const val = (key: string) => article.locator(`[data-figures="summary"] [data-figure="${key}"] .value`).innerText();
-  const close = (text: string, unit: string, want: number, digits: number) => {
-    const got = readSI(text, unit);
-    expect(Math.abs(got - want)).toBeLessThanOrEqual(Math.abs(want) * 0.5 * 10 ** (1 - digits) + 1e-30);
+  await page.locator(scope).waitFor();
+  const shown = await page.$eval(scope, (article) => {
+    const figures: Record<string, { value: string; detail: string }> = {};
+    for (const f of article.querySelectorAll('[data-figures="summary"] [data-figure]')) {
+      figures[(f as HTMLElement).dataset.figure!] = {
+        value: f.querySelector('.value')?.textContent ?? '', detail: f.querySelector('.detail')?.textContent ?? '',
+      };
+    }
+    const rows = [...article.querySelectorAll('table.devices tbody tr')].map((tr) => [...tr.children].map((c) => c.textContent ?? ''));
+    return { figures, rows };
+  });
+  // Half a unit in the last shown digit; percentages show at most 0.0001 % (half of it: 5e-7).
+  const close = (text: string | undefined, unit: string, want: number, digits: number) => {
+    expect(text).toBeDefined();
+    const got = readSI(text!, unit);
+    const floor = unit === '%' ? 5e-7 : 1e-30;
+    expect(Math.abs(got - want)).toBeLessThanOrEqual(Math.abs(want) * 0.5 * 10 ** (1 - digits) + floor);
   };
-  close(await val('iin'), 'A', m.iin, 4);
-  close(await val('iout'), 'A', m.iout, 4);
-  close(await val('rout'), 'Ω', m.rout, 3);
-  close(await val('compliance'), 'V', m.compliance, 4);
-  if (m.error !== undefined) close(await val('error'), '%', m.error, 3);
-  if (m.sigma !== undefined) close(await val('sigma'), '%', m.sigma, 3);
-  expect(Number(await val('ratio'))).toBeCloseTo(m.ratio, 4);
-  if (m.routApprox !== undefined) {
-    const detail = await article.locator('[data-figure="rout"] .detail').innerText();
-    close(detail.replace(/^textbook /, ''), 'Ω', m.routApprox, 3);
-  }
+  const val = (key: string) => shown.figures[key]?.value;
+  close(val('iin'), 'A', m.iin, 4);
+  close(val('iout'), 'A', m.iout, 4);
+  close(val('rout'), 'Ω', m.rout, 3);
+  close(val('compliance'), 'V', m.compliance, 4);
+  if (m.error !== undefined) close(val('error'), '%', m.error, 3);
+  if (m.sigma !== undefined) close(val('sigma'), '%', m.sigma, 3);
+  expect(Number(val('ratio'))).toBeCloseTo(m.ratio, 4);
+  if (m.routApprox !== undefined) close(shown.figures.rout.detail.replace(/^textbook /, ''), 'Ω', m.routApprox, 3);
   // A bank output lists its own devices (`<output>.<role>`) and the shared reference.
   const listed = m.output === undefined ? m.devices : m.devices.filter((d) => d.name.startsWith(`${m.output}.`) || !d.name.includes('.'));
-  const rows = article.locator('table.devices tbody tr');
-  expect(await rows.count()).toBe(listed.length);
+  expect(shown.rows).toHaveLength(listed.length);
   for (const [i, d] of listed.entries()) {
-    const cells = rows.nth(i).locator('th, td');
-    expect(await cells.nth(0).innerText()).toBe(d.name);
-    close(await cells.nth(1).innerText(), 'm', d.w, 3);
-    close(await cells.nth(2).innerText(), 'm', d.l, 3);
-    close(await cells.nth(4).innerText(), 'A', d.id, 4);
-    close(await cells.nth(5).innerText(), 'V', d.vgs, 4);
-    close(await cells.nth(6).innerText(), 'V', d.vds, 4);
-    close(await cells.nth(7).innerText(), 'V', d.vdsat, 4);
-    close(await cells.nth(8).innerText(), 'V', d.margin, 3);
-    expect(await cells.nth(9).innerText()).toBe(d.region);
-    close(await cells.nth(12).innerText(), 'Ω', d.ro, 3);
+    const cells = shown.rows[i];
+    expect(cells[0]).toBe(d.name);
+    close(cells[1], 'm', d.w, 3);
+    close(cells[2], 'm', d.l, 3);
+    close(cells[4], 'A', d.id, 4);
+    close(cells[5], 'V', d.vgs, 4);
+    close(cells[6], 'V', d.vds, 4);
+    close(cells[7], 'V', d.vdsat, 4);
+    close(cells[8], 'V', d.margin, 3);
+    expect(cells[9]).toBe(d.region);
+    close(cells[12], 'Ω', d.ro, 3);
   }
 }
 

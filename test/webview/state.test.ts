@@ -1,7 +1,8 @@
 // The panel's state logic: ordering of reports, selection across updates, reload state.
 import { describe, expect, it } from 'vitest';
+import type { FileReport } from '../../src/core/types';
 import {
-  DEFAULT_NOTICE, applyHostMessage, fromPersisted, initialState, selectMirror, toPersisted,
+  DEFAULT_NOTICE, STALE_NOTICE, applyHostMessage, fromPersisted, initialState, selectMirror, toPersisted,
 } from '../../webview/state';
 import { fixtureReport, tailMirror } from './fixtures';
 
@@ -50,6 +51,40 @@ describe('applyHostMessage', () => {
     expect(s.notice).toBe('closed');
     expect(s.version).toBe(4);
     expect(applyHostMessage(s, { type: 'clear' }).notice).toBe(DEFAULT_NOTICE);
+  });
+});
+
+describe('a spec that stops solving while it is typed', () => {
+  const broken = (): FileReport => ({
+    file: 'a', parsed: true, mirrors: [], anchors: [],
+    findings: [{ severity: 'error', code: 'non-positive', message: '`input` must be greater than 0; got 0', path: ['mirrors', 0, 'input'],
+      range: { start: { line: 68, character: 11 }, end: { line: 68, character: 12 } } }],
+  });
+
+  it('keeps the last mirrors, marked stale, beside the new findings', () => {
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    s = selectMirror(s, 'load.a');
+    s = applyHostMessage(s, { type: 'report', uri: A, report: broken(), version: 2 });
+    expect(s.stale).toBe(true);
+    expect(s.notice).toBe(STALE_NOTICE);
+    expect(s.report?.mirrors.map((m) => m.name)).toEqual(['tail', 'load.a', 'load.b']);
+    expect(s.report?.findings.map((f) => f.code)).toEqual(['non-positive']);
+    expect(s.selected).toBe('load.a');
+    expect(fromPersisted(JSON.parse(JSON.stringify(toPersisted(s))))).toMatchObject({ stale: true, notice: STALE_NOTICE });
+    // Solving again clears the mark.
+    s = applyHostMessage(s, { type: 'report', uri: A, report: fixtureReport(), version: 3 });
+    expect(s.stale).toBeUndefined();
+    expect(s.notice).toBeUndefined();
+  });
+
+  it('shows a broken file as it is when nothing solved before, or for another file', () => {
+    const first = applyHostMessage(initialState, { type: 'report', uri: A, report: broken(), version: 1 });
+    expect(first.stale).toBeUndefined();
+    expect(first.report?.mirrors).toEqual([]);
+    const other = applyHostMessage(applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 }),
+      { type: 'report', uri: B, report: broken(), version: 2 });
+    expect(other.stale).toBeUndefined();
+    expect(other.report?.mirrors).toEqual([]);
   });
 });
 

@@ -16,7 +16,7 @@
  */
 import { SOLVER } from '../defaults';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
-import { setVout, solveMirror, worstMargin } from './solve';
+import { setVout, solveMirror, TRIAL, worstMargin } from './solve';
 
 export interface ComplianceResult {
   /** V, absolute. */
@@ -43,7 +43,7 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
   let solves = 0;
   const evalAt = (u: number, warm: Float64Array | undefined): Point => {
     setVout(mc, toV(u));
-    const r = solveMirror(mc, warm);
+    const r = solveMirror(mc, warm, TRIAL);
     solves++;
     const each = new Float64Array(nDev);
     // A trial that does not converge counts as not saturated.

@@ -3,14 +3,27 @@
  * design §4, sweep the output voltage, analyse a whole spec. None of these throws: a circuit
  * that cannot be solved comes back with converged: false and a note saying what was tried.
  *
- * Device names in reports: the role (`ref`, `out`, …) for a mirror without `outputs:`; in a
- * bias bank the shared reference devices keep their role as name and each output's devices
- * are `<output>.<role>` (role stays `out`, `outc`). A bank's report lists the reference devices
- * and the measured output's devices only. Netlist devices keep their own names.
+ * Conventions (the choices design §4 leaves open):
+ * - Device names: the role (`ref`, `out`, …) for a mirror without `outputs:`; in a bias bank
+ *   the shared reference devices keep their role as name and each output's devices are
+ *   `<output>.<role>` (role stays `out`, `outc`). A bank's report lists the reference devices
+ *   and the measured output's devices; the other outputs sit in the circuit, held at their own
+ *   nominal voltages. Netlist devices keep their own names. Perturbations use these names.
+ * - Not converged: iin, iout, ratio, nodes and devices describe the best iterate (for the
+ *   finding's message only); rout and compliance are NaN, error, errorSplit, sigma absent.
+ * - compliance: when no output voltage within the supplies saturates every device (a reference
+ *   device in triode), the far rail (NMOS vdd, PMOS vss): "nothing works". A device within
+ *   1 µV of the edge counts as saturated (compliance.ts).
+ * - sigma: present when any device's type has avt or abeta; a missing coefficient counts 0.
+ * - errorSplit: see errorSplit.ts (geometry, body, vds as successive model evaluations).
+ * - routApprox: gmb counts 0 for a device whose bulk is tied to its source.
+ * - curve points that do not converge carry NaN iout/rout and converged: false.
+ * - Wide-swing without `vbias`: the pick (vbias.ts) is cached per (spec, mirror object), and
+ *   solveAt with a perturbation keeps the nominal pick (the bias comes from elsewhere).
  */
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { failedReport, measure, vbiasFor } from './measure';
-import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, solveMirror } from './solve';
+import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
 import { sweepCircuit } from './sweep';
 
 export interface MirrorContext { spec: ResolvedSpec; mirror: ResolvedMirror; outputIndex: number }
@@ -32,7 +45,7 @@ export function solveAt(ctx: MirrorContext, vout: number, perturb?: Perturbation
     const r = solveMirror(mc);
     const op: OperatingPoint = {
       converged: r.converged, iterations: r.iterations, residual: r.residual,
-      iin: mc.iin(), iout: outputCurrent(mc), nodes: nodeVoltages(mc), devices: deviceReports(mc),
+      iin: mc.iin(), iout: outputCurrent(mc), nodes: nodeVoltages(mc), devices: shownDevices(mc, deviceReports(mc)),
     };
     if (r.note) op.solveNote = r.note;
     return op;
@@ -65,8 +78,9 @@ export function sweepVout(ctx: MirrorContext, vouts: number[]): CurvePoint[] {
 /** All mirrors and all outputs of a spec, in order. */
 export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean }): MirrorReport[] {
   const reports: MirrorReport[] = [];
-  for (const mirror of spec.mirrors) {
-    const n = mirror.kind === 'netlist' ? 1 : Math.max(1, mirror.outputs.length);
+  for (const mirror of spec.mirrors ?? []) {
+    const outputs = mirror.kind === 'netlist' ? undefined : mirror.outputs;
+    const n = Array.isArray(outputs) ? Math.max(1, outputs.length) : 1;
     for (let j = 0; j < n; j++) reports.push(measureMirror({ spec, mirror, outputIndex: j }, opts));
   }
   return reports;

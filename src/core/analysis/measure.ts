@@ -11,11 +11,11 @@ import { splitError } from './errorSplit';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
-  buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, solveMirror,
+  buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror,
   type MirrorTarget,
 } from './solve';
 import { linspace, sweepCircuit } from './sweep';
-import { resolveVbias, type VbiasChoice } from './vbias';
+import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias';
 
 export interface MeasureOptions { curve?: boolean; curvePoints?: number }
 
@@ -26,7 +26,8 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
   let name = m.name, path = m.path;
   let output: string | undefined;
   if (m.kind !== 'netlist') {
-    const o = m.outputs[t.outputIndex];
+    // Defensive: this also labels the report of a malformed mirror that made the solve throw.
+    const o = Array.isArray(m.outputs) ? m.outputs[t.outputIndex] : undefined;
     if (o) path = o.path;
     if (o && isBank(m)) { name = `${m.name}.${o.name}`; output = o.name; }
   }
@@ -62,9 +63,17 @@ function safeNominal(t: MirrorTarget): number {
 
 export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorReport {
   const vout = nominalVout(t);
-  const vb = vbiasFor(t);
+  // A wide-swing pick still due is made on this very circuit; its last solve is the nominal
+  // point, so the nominal solve below starts there.
+  const m = t.mirror;
+  let vb = m.kind === 'wide-swing' ? knownVbias(t.spec, m) : undefined;
   const mc = buildMirror(t, vout, vb?.vbias);
-  const sol = solveMirror(mc);
+  let warm: Float64Array | undefined;
+  if (m.kind === 'wide-swing' && !vb) {
+    vb = pickVbiasOn(t.spec, m, mc);
+    warm = mc.ws.v.slice();
+  }
+  const sol = solveMirror(mc, warm);
   const devices = deviceReports(mc);
   const iin = mc.iin();
   const iout = outputCurrent(mc);
@@ -72,7 +81,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const base = blankReport(t, vout);
   base.converged = sol.converged; base.iterations = sol.iterations; base.residual = sol.residual;
   base.iin = iin; base.iout = iout; base.ratio = ratio;
-  base.nodes = nodeVoltages(mc); base.devices = devices;
+  base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
   if (sol.note) base.solveNote = sol.note;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
   const ideal = ratioIdealOf(t, mc);

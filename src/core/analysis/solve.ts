@@ -27,6 +27,10 @@ export function buildMirror(t: MirrorTarget, vout: number, vbias: number | undef
     : buildTemplate(t.spec, t.mirror, t.outputIndex, vout, vbias, perturb);
 }
 
+/** Solver limits for the many solves of a search or sweep: a point that does not converge
+ *  quickly is reported as such instead of holding up the others. */
+export const TRIAL: DcOptions = { budgetMs: 5, maxIterations: 100 };
+
 /** Set the held output voltage (V, absolute). */
 export function setVout(mc: MirrorCircuit, vout: number): void {
   mc.circuit.fixedV[mc.circuit.outNode] = vout;
@@ -45,7 +49,7 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
   let iterations = 0;
   if (warm) {
     mc.ws.v.set(warm);
-    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, plainOnly: true });
+    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, plainOnly: true });
     iterations = r.iterations;
   }
   if (!r || !r.converged) {
@@ -81,6 +85,7 @@ export function nodeVoltages(mc: MirrorCircuit): Record<string, number> {
   return out;
 }
 
+/** Reports of every device in circuit order (index k is circuit.mos[k]). */
 export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
   const v = mc.ws.v;
   return mc.circuit.mos.map((m) => {
@@ -99,6 +104,12 @@ export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
     if (m.size.auto?.w || m.size.auto?.l) r.sized = true;
     return r;
   });
+}
+
+/** The devices a report shows: the shared reference and the measured output's devices (a
+ *  bank's other outputs are in the circuit but belong to their own reports). */
+export function shownDevices(mc: MirrorCircuit, all: DeviceReport[]): DeviceReport[] {
+  return all.filter((_, k) => mc.circuit.mos[k]!.measured);
 }
 
 const scratch = newChannelEval();

@@ -6,7 +6,7 @@
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import { outputAdjoint, outputConductance } from '../circuit/smallSignal';
 import type { CurvePoint } from '../types';
-import { outputCurrent, setVout, solveMirror } from './solve';
+import { outputCurrent, setVout, solveMirror, TRIAL } from './solve';
 
 export function sweepCircuit(mc: MirrorCircuit, vouts: number[], vNom: number, xNom?: Float64Array): CurvePoint[] {
   const out: CurvePoint[] = vouts.map((vout) => ({ vout, iout: NaN, rout: NaN, converged: false }));
@@ -17,7 +17,7 @@ export function sweepCircuit(mc: MirrorCircuit, vouts: number[], vNom: number, x
     let warm = xNom;
     for (const { v, i } of branch) {
       setVout(mc, v);
-      const r = solveMirror(mc, warm);
+      const r = solveMirror(mc, warm, TRIAL);
       if (!r.converged || !Number.isFinite(v)) continue;
       warm = mc.ws.v.slice();
       const lam = outputAdjoint(mc.circuit, mc.ws);

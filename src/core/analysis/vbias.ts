@@ -1,7 +1,7 @@
 /**
  * Wide-swing cascode gate voltage. When the spec leaves `vbias` out, qpoint picks the value
- * that puts `ref` at VDS = VDSsat + limits.margin: a secant root-find on vbias, each step a
- * full solve warm-started from the previous one. The pick depends only on the reference
+ * that puts `ref` at VDS = VDSsat + limits.margin: Newton on vbias with the slope from the
+ * linearized circuit, each step a full solve warm-started from the previous one. The pick depends only on the reference
  * branch, so one value serves every output of a bank; it is cached per (spec, mirror).
  */
 import { gateDriveFor } from '../models/evaluate';
@@ -9,6 +9,7 @@ import type { ResolvedSpec, TemplateMirror } from '../types';
 import { newChannelEval } from '../models/core';
 import { evalFrame } from '../models/terminal';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import { heldNodeResponse } from '../circuit/smallSignal';
 import { buildMirror, nominalVout, solveMirror } from './solve';
 
 export interface VbiasChoice {
@@ -33,20 +34,33 @@ function refExcess(mc: MirrorCircuit, margin: number): number {
   return vds - scratch.vdsat - margin;
 }
 
-export function resolveVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
+/** The explicit vbias, or a pick cached for this (spec, mirror); undefined when a pick is due. */
+export function knownVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice | undefined {
   if (mirror.vbias !== undefined) return { vbias: mirror.vbias, picked: false, met: true };
   const hit = cache.get(mirror);
-  if (hit && hit.spec === spec) return hit.choice;
-  const choice = pickVbias(spec, mirror);
+  return hit && hit.spec === spec ? hit.choice : undefined;
+}
+
+export function resolveVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
+  const known = knownVbias(spec, mirror);
+  if (known) return known;
+  const target = { spec, mirror, outputIndex: 0 };
+  const mc = buildMirror(target, nominalVout(target), 0.5 * (spec.supplies.vdd + spec.supplies.vss));
+  return pickVbiasOn(spec, mirror, mc);
+}
+
+/** Pick vbias on a built circuit of any output of the mirror (the pick depends on the
+ *  reference branch only) and cache it. Leaves mc held at the pick and solved there when the
+ *  pick converged, so the caller's nominal solve can start from ws.v. */
+export function pickVbiasOn(spec: ResolvedSpec, mirror: TemplateMirror, mc: MirrorCircuit): VbiasChoice {
+  const choice = pick(spec, mc);
   cache.set(mirror, { spec, choice });
   return choice;
 }
 
-function pickVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
-  const target = { spec, mirror, outputIndex: 0 };
+function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   const margin = spec.limits.margin;
   const mid = 0.5 * (spec.supplies.vdd + spec.supplies.vss);
-  const mc = buildMirror(target, nominalVout(target), mid);
   const node = mc.vbiasNode;
   const kRef = mc.byRole.ref, kRefc = mc.byRole.refc;
   if (node === undefined || kRef === undefined || kRefc === undefined || mc.circuit.problems.length > 0) {
@@ -67,31 +81,44 @@ function pickVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
   u0 = clamp(u0, 0, span);
 
   const fixed = mc.circuit.fixedV;
+  const a = ref.d, b = ref.g;
   let warm: Float64Array | undefined;
-  const evalAt = (u: number): number => {
+  let bestX: Float64Array | undefined;
+  /** g(u) and its slope dg/du from the linearized circuit: d(VDS_ref)/du − d(VDSsat_ref)/du,
+   *  where VDSsat follows the gate (square law: VOV; EKV: about VOV/n). */
+  const evalAt = (u: number): { g: number; slope: number } => {
     fixed[node] = rail + sign * u;
     const r = solveMirror(mc, warm);
-    if (!r.converged) return NaN;
+    if (!r.converged) return { g: NaN, slope: NaN };
     warm = mc.ws.v.slice();
-    return refExcess(mc, margin);
+    const dx = heldNodeResponse(mc.ws, node);
+    const dA = dx && a < mc.circuit.nFree ? dx[a]! : NaN;
+    const dB = dx && b < mc.circuit.nFree ? dx[b]! : NaN;
+    return { g: refExcess(mc, margin), slope: dA - (ref.dev.model === 'ekv' ? dB / ref.dev.n : dB) };
   };
 
-  let best = { u: u0, g: evalAt(u0) };
+  let u = u0;
+  let e = evalAt(u);
+  let best = { u, g: e.g };
+  bestX = warm;
   if (!Number.isFinite(best.g)) return { vbias: rail + sign * u0, picked: true, met: false };
-  let prev = best;
-  // The ref's VDS follows vbias with slope ≈ 1/(1 + η): take 1 for the first step.
-  let u = clamp(u0 - best.g, 0, span);
+  let prev: { u: number; g: number } | undefined;
   for (let k = 0; k < 30; k++) {
-    const g = evalAt(u);
-    if (!Number.isFinite(g)) break;
-    if (Math.abs(g) < Math.abs(best.g)) best = { u, g };
-    if (Math.abs(g) < 1e-7) break;
-    const slope = (g - prev.g) / (u - prev.u);
-    prev = { u, g };
-    const next = clamp(Number.isFinite(slope) && slope > 1e-3 ? u - g / slope : u - g, 0, span);
+    if (Math.abs(e.g) < 1e-7) break;
+    // Newton with the linearized slope; the secant when the slope is unusable.
+    let slope = e.slope;
+    if (!(slope > 1e-3) && prev) slope = (e.g - prev.g) / (u - prev.u);
+    if (!(slope > 1e-3)) slope = 1;
+    const next = clamp(u - e.g / slope, 0, span);
     if (Math.abs(next - u) < 1e-12) break;
+    prev = { u, g: e.g };
     u = next;
+    e = evalAt(u);
+    if (!Number.isFinite(e.g)) break;
+    if (Math.abs(e.g) < Math.abs(best.g)) { best = { u, g: e.g }; bestX = warm; }
   }
+  fixed[node] = rail + sign * best.u;
+  if (bestX) mc.ws.v.set(bestX);
   return { vbias: rail + sign * best.u, picked: true, met: Math.abs(best.g) < 1e-6 };
 }
 

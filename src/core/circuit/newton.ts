@@ -16,6 +16,8 @@ export interface DcOptions {
   /** Skip the retries (continuation steps inside the compliance search and sweeps use plain
    *  Newton first and fall back to a full solve from the topology guess themselves). */
   plainOnly?: boolean;
+  /** Newton iterations per attempt (default SOLVER.maxIterations). */
+  maxIterations?: number;
 }
 
 export interface DcResult {
@@ -44,19 +46,31 @@ function maxResidual(ws: Workspace): number {
   return r;
 }
 
+/** Work limits of one solve: a wall-clock deadline, which only ends a solve once it has done
+ *  one attempt's worth of iterations (so a host that stalls the thread for a moment does not
+ *  turn an easy solve into a failure), and a hard cap on the iterations of all attempts. */
 class Budget {
   private readonly deadline: number;
-  constructor(private readonly clock: () => number, ms: number) { this.deadline = clock() + ms; }
-  expired(): boolean { return this.clock() > this.deadline; }
+  iterations = 0;
+  constructor(private readonly clock: () => number, ms: number, readonly maxIterations: number) { this.deadline = clock() + ms; }
+  expired(): boolean {
+    if (this.iterations >= TOTAL_ITERATIONS_FACTOR * this.maxIterations) return true;
+    return this.iterations >= this.maxIterations && this.clock() > this.deadline;
+  }
 }
+
+/** Every attempt of one solve together: at most this many times SOLVER.maxIterations. */
+const TOTAL_ITERATIONS_FACTOR = 25;
 
 /** Newton at one (alpha, gmin). On success ws.G/F hold the equations at the solution. */
 function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: Budget, track: boolean,
   bestRes: { value: number }): Attempt {
+  const maxIterations = budget.maxIterations;
   const { n, v, F, dx, lu, perm, tmp } = ws;
+  const halfSpan = c.vmid - c.vss;
   let small = false;
   ws.factored = false;
-  for (let it = 0; it <= SOLVER.maxIterations; it++) {
+  for (let it = 0; it <= maxIterations; it++) {
     assemble(c, ws, alpha, gmin);
     let okRes = true;
     let res = 0;
@@ -68,15 +82,21 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
     if (!Number.isFinite(res)) return { ok: false, iterations: it, residual: res, reason: 'non-finite currents' };
     if (track && res < bestRes.value) { bestRes.value = res; ws.best.set(v); }
     if (okRes && (small || n === 0)) return { ok: true, iterations: it, residual: res, reason: '' };
-    if (it === SOLVER.maxIterations) return { ok: false, iterations: it, residual: res, reason: `${it} iterations` };
+    if (it === maxIterations) return { ok: false, iterations: it, residual: res, reason: `${it} iterations` };
     copyFreeBlock(ws);
     if (!luFactor(lu, n, perm)) return { ok: false, iterations: it, residual: res, reason: 'singular Jacobian' };
     for (let k = 0; k < n; k++) dx[k] = -F[k]!;
     luSolve(lu, n, perm, dx, tmp);
-    let maxd = 0;
-    for (let k = 0; k < n; k++) { const a = Math.abs(dx[k]!); if (a > maxd || a !== a) maxd = a !== a ? Infinity : a; }
-    if (!Number.isFinite(maxd)) return { ok: false, iterations: it, residual: res, reason: 'non-finite step' };
-    const scale = maxd > SOLVER.maxStep ? SOLVER.maxStep / maxd : 1;
+    // Step limiting: no node moves more than SOLVER.maxStep, plus half of how far it already
+    // sits outside the supplies, so a runaway node (a current with no path) still gets far
+    // enough in a few dozen iterations to be recognised, while normal nodes creep.
+    let scale = 1;
+    for (let k = 0; k < n; k++) {
+      const a = Math.abs(dx[k]!);
+      if (!Number.isFinite(a)) return { ok: false, iterations: it, residual: res, reason: 'non-finite step' };
+      const limit = SOLVER.maxStep + 0.5 * Math.max(0, Math.abs(v[k]! - c.vmid) - halfSpan);
+      if (a * scale > limit) scale = limit / a;
+    }
     small = scale === 1;
     for (let k = 0; k < n; k++) {
       const step = scale * dx[k]!;
@@ -84,14 +104,15 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
       v[k] = v[k]! + step;
     }
     // The clock is read every 8th iteration: an iteration takes microseconds.
+    budget.iterations++;
     if ((it & 7) === 7 && budget.expired()) return { ok: false, iterations: it + 1, residual: res, reason: 'time budget' };
   }
-  return { ok: false, iterations: SOLVER.maxIterations, residual: Infinity, reason: 'iteration cap' };
+  return { ok: false, iterations: maxIterations, residual: Infinity, reason: 'iteration cap' };
 }
 
 /** Solve from the free-node voltages already in ws.v (the initial guess). */
 export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResult {
-  const budget = new Budget(opts.clock ?? Date.now, opts.budgetMs ?? SOLVER.timeBudgetMs);
+  const budget = new Budget(opts.clock ?? Date.now, opts.budgetMs ?? SOLVER.timeBudgetMs, opts.maxIterations ?? SOLVER.maxIterations);
   const gmin = SOLVER.gmin;
   const bestRes = { value: Infinity };
   ws.saved.set(ws.v);
@@ -102,10 +123,13 @@ export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResu
   const tried = [`Newton (${plain.reason})`];
   if (opts.plainOnly) return finishFailed(c, ws, iterations, bestRes.value, tried);
 
-  // Source stepping: ramp every source (held voltages relative to vss, current sources) up from
-  // a small fraction, halving the step on a failure.
+  // Source stepping: ramp the current sources up from a small fraction, halving the step on a
+  // failure. Held voltages stay put (a mirror is driven by its currents: at a small current
+  // every device sits just above threshold, an easy start); a circuit without current sources
+  // (resistor input) ramps its held voltages from vss instead.
+  const rampVoltages = c.isrc.length === 0;
   if (!budget.expired()) {
-    for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vss + (ws.saved[k]! - c.vss) / SOLVER.sourceSteps;
+    for (let k = 0; k < c.nFree; k++) ws.v[k] = rampVoltages ? c.vss + (ws.saved[k]! - c.vss) / SOLVER.sourceSteps : c.vmid;
     let alpha = 0;
     let step = 1 / SOLVER.sourceSteps;
     let ok = true;
@@ -113,7 +137,7 @@ export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResu
     last.set(ws.v);
     while (alpha < 1 && !budget.expired()) {
       const next = Math.min(1, alpha + step);
-      setHeld(c, ws, next);
+      setHeld(c, ws, rampVoltages ? next : 1);
       const a = newton(c, ws, next, gmin, budget, next === 1, bestRes);
       iterations += a.iterations;
       if (a.ok) {
@@ -126,12 +150,15 @@ export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResu
     }
     if (ok && alpha >= 1) return { converged: true, iterations, residual: maxResidual(ws), note: 'converged by source stepping' };
     if (ok) tried.push('source stepping (time budget)');
+  } else {
+    tried.push('no time left for source stepping');
   }
 
   // gmin stepping: a large conductance to the midpoint everywhere makes the problem nearly
   // linear; lower it a decade at a time, each solve starting from the previous one.
   if (!budget.expired()) {
-    ws.v.set(ws.saved);
+    // Start at mid-supply, where a large gmin puts the solution anyway.
+    for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
     setHeld(c, ws, 1);
     let g = 1e-2;
     let ok = true;

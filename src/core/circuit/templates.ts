@@ -6,10 +6,10 @@
  * other than the measured one is held at its own nominal voltage.
  */
 import { gateDriveFor } from '../models/evaluate';
-import { deviceProblem, prepareDevice, type ModelDevice } from '../models/device';
+import { deviceProblem, prepareDevice } from '../models/device';
 import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateKind, TemplateMirror } from '../types';
 import { OUTPUT_ROLES } from '../types';
-import { CircuitBuilder } from './circuit';
+import { CircuitBuilder, type MosInstance } from './circuit';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
 export interface PerturbationLike { dvt: Record<string, number>; dbeta: Record<string, number> }
@@ -79,7 +79,7 @@ export function buildTemplate(
   const R = sign > 0 ? 'vss' : 'vdd';
   if (m.kind === 'wide-swing') b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
 
-  const devs: ModelDevice[] = [];
+  let count = 0;
   const byRole: Record<string, number> = {};
   const add = (name: string, role: string, size: DeviceSize, conn: Conn, map: (n: string) => string, measured: boolean): number => {
     const problem = deviceProblem(params, size);
@@ -87,8 +87,7 @@ export function buildTemplate(
     const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
     b.mos({ name, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
-    devs.push(dev);
-    return devs.length - 1;
+    return count++;   // index into circuit.mos
   };
 
   const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
@@ -137,17 +136,20 @@ export function buildTemplate(
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const [pa, pb] = PAIR[m.kind];
 
+  // Everything the guess needs that does not change between solves, gathered once.
+  const devByName = new Map(c.mos.map((x) => [x.name, x] as const));
+  const outIdx = outNodes.map((n) => index(n));
+  const vbIdx = m.kind === 'wide-swing' ? index('vbias') : -1;
+  const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
+  const freeNames = c.nodeNames.slice(0, c.nFree);
+  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {} };
+  const span = Math.abs(other - rail);
+
   const guess = (): void => {
     // Node voltages in the polarity frame u = sign·(v − rail), then mapped back.
-    const span = Math.abs(other - rail);
-    const uOuts = outNodes.map((n) => sign * (c.fixedV[index(n)]! - rail));
-    const uVb = m.kind === 'wide-swing' ? sign * (c.fixedV[index('vbias')]! - rail) : 0;
-    const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
-    const u: Record<string, number> = {};
-    const solveFor = (i: number): number => {
-      guessNodes(m, c.mos.map((x) => x.dev), c.mos.map((x) => x.name), bank, i, ratios, uOuts, uVb, cNodes, u);
-      return u[input] ?? 0;
-    };
+    for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
+    g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
+    const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
     if (m.input.kind === 'current') {
       solveFor(m.input.i);
     } else {
@@ -161,8 +163,7 @@ export function buildTemplate(
       solveFor(0.5 * (lo + hi));
     }
     for (let k = 0; k < c.nFree; k++) {
-      const name = c.nodeNames[k]!;
-      const uk = u[name];
+      const uk = g.u[freeNames[k]!];
       ws.v[k] = rail + sign * (uk !== undefined && Number.isFinite(uk) ? uk : 0.5 * span);
     }
   };
@@ -177,61 +178,81 @@ export function buildTemplate(
   };
 }
 
-/** Solve x = uGate − VGS(I, VSB(x)) for a cascode's source node by a few fixed-point steps. */
-function sourceBelow(dev: ModelDevice, i: number, uGate: number, bodyToRail: boolean, lo: number, hi: number): number {
-  let x = uGate - gateDriveFor(dev, i, 0);
-  for (let k = 0; k < 4 && bodyToRail; k++) x = uGate - gateDriveFor(dev, i, Math.max(x, 0));
-  return Math.min(Math.max(x, lo), Math.max(hi, lo));
+interface GuessContext {
+  m: TemplateMirror;
+  devByName: Map<string, MosInstance>;
+  bank: boolean;
+  ratios: number[];
+  /** Polarity-frame voltages of every output node and of vbias. */
+  uOuts: number[];
+  uVb: number;
+  cNodes: (string | undefined)[];
+  /** Result: polarity-frame voltage per node name. */
+  u: Record<string, number>;
 }
 
-/** Polarity-frame node voltages assuming every device saturated and λ = 0. */
-function guessNodes(
-  m: TemplateMirror, devs: ModelDevice[], names: string[], bank: boolean, i: number, ratios: number[],
-  uOuts: number[], uVb: number, cNodes: (string | undefined)[], u: Record<string, number>,
-): void {
-  const dev = (name: string): ModelDevice | undefined => { const k = names.indexOf(name); return k >= 0 ? devs[k] : undefined; };
-  const vgs = (name: string, id: number, vsb: number): number => { const d = dev(name); return d ? gateDriveFor(d, id, vsb) : 0; };
-  const railBulk = (role: string, j?: number): boolean => {
-    const o = j !== undefined ? m.outputs[j] : undefined;
-    return ((o?.devices[role] ?? m.devices[role])?.bulk ?? 'rail') === 'rail';
-  };
-  const prefix = (j: number): string => (bank ? `${m.outputs[j]!.name}.` : '');
-  const totalOut = ratios.reduce((s, r) => s + r, 0) * i;
+/** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it. */
+function drive(x: MosInstance | undefined, i: number, vsb: number, vds: number): number {
+  if (!x) return 0;
+  return gateDriveFor(x.dev, i / (1 + x.dev.lambda * Math.max(vds, 0)), vsb);
+}
+
+/** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
+function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
+  let v = drive(x, i, vsb, 0);
+  v = drive(x, i, vsb, v);
+  return drive(x, i, vsb, v);
+}
+
+/** Solve x = uGate − VGS(I, VSB(x)) for a cascode's source node by a few fixed-point steps. */
+function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrain: number, lo: number, hi: number): number {
+  if (!x) return lo;
+  const bodyToRail = x.size.bulk === 'rail';
+  let v = uGate - drive(x, i, 0, uDrain - uGate);
+  for (let k = 0; k < 4; k++) v = uGate - drive(x, i, bodyToRail ? Math.max(v, 0) : 0, uDrain - v);
+  return Math.min(Math.max(v, lo), Math.max(hi, lo));
+}
+
+/** Polarity-frame node voltages assuming every device saturated. */
+function guessNodes(g: GuessContext, i: number): void {
+  const { m, devByName, ratios, uOuts, uVb, cNodes, u } = g;
+  const dev = (name: string): MosInstance | undefined => devByName.get(name);
+  const prefix = (j: number): string => (g.bank ? `${m.outputs[j]!.name}.` : '');
+  const vsbOf = (x: MosInstance | undefined, us: number): number => (x && x.size.bulk === 'rail' ? us : 0);
   switch (m.kind) {
     case 'simple':
-      u.a = vgs('ref', i, 0);
+      u.a = diodeDrive(dev('ref'), i, 0);
       break;
     case 'cascode': {
-      u.a = vgs('ref', i, 0);
-      u.b = u.a + vgs('refc', i, railBulk('refc') ? u.a : 0);
-      m.outputs.forEach((_, j) => {
-        const io = i * ratios[j]!;
-        const d = dev(`${prefix(j)}outc`);
+      u.a = diodeDrive(dev('ref'), i, 0);
+      const refc = dev('refc');
+      u.b = u.a + diodeDrive(refc, i, vsbOf(refc, u.a));
+      for (let j = 0; j < m.outputs.length; j++) {
         const cn = cNodes[j];
-        if (d && cn) u[cn] = sourceBelow(d, io, u.b!, railBulk('outc', j), 0, uOuts[j]!);
-      });
+        if (cn) u[cn] = sourceBelow(dev(`${prefix(j)}outc`), i * ratios[j]!, u.b, uOuts[j]!, 0, uOuts[j]!);
+      }
       break;
     }
     case 'wide-swing': {
-      u.b = vgs('ref', i, 0);
-      const rc = dev('refc');
-      u.a = rc ? sourceBelow(rc, i, uVb, railBulk('refc'), 0, u.b) : 0;
-      m.outputs.forEach((_, j) => {
-        const io = i * ratios[j]!;
-        const d = dev(`${prefix(j)}outc`);
+      u.b = drive(dev('ref'), i, 0, 0);
+      u.a = sourceBelow(dev('refc'), i, uVb, u.b, 0, u.b);
+      u.b = drive(dev('ref'), i, 0, u.a);
+      for (let j = 0; j < m.outputs.length; j++) {
         const cn = cNodes[j];
-        if (d && cn) u[cn] = sourceBelow(d, io, uVb, railBulk('outc', j), 0, uOuts[j]!);
-      });
+        if (cn) u[cn] = sourceBelow(dev(`${prefix(j)}outc`), i * ratios[j]!, uVb, uOuts[j]!, 0, uOuts[j]!);
+      }
       break;
     }
     case 'wilson':
     case 'wilson-balanced': {
-      u.y = vgs('diode', totalOut, 0);
+      let total = 0;
+      for (const r of ratios) total += r * i;
+      u.y = diodeDrive(dev('diode'), total, 0);
+      const out = dev(`${prefix(0)}out`);
       const io = i * (ratios[0] ?? 1);
-      u.x = u.y + vgs(`${prefix(0)}out`, io, railBulk('out', 0) ? u.y : 0);
+      u.x = u.y + drive(out, io, vsbOf(out, u.y), (uOuts[0] ?? 0) - u.y);
       if (m.kind === 'wilson-balanced') {
-        const bal = dev('bal');
-        u.z = bal ? sourceBelow(bal, i, u.x, railBulk('bal'), 0, u.x) : 0;
+        u.z = sourceBelow(dev('bal'), i, u.x, u.x, 0, u.x);
       }
       break;
     }

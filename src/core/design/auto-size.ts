@@ -6,8 +6,9 @@
  * Currents a device is sized for:
  * - input-branch roles (ref, refc, in, bal): the input current, from the solve (so a resistor
  *   input is handled like an ideal one);
- * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin, or
- *   without require.ratio the multiplier ratio m_out/m_ref (the unit device carries the ratio);
+ * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin; without
+ *   require.ratio it copies the reference's W/L per finger instead (the multiplier m carries
+ *   the ratio, as with unit devices in a layout);
  * - the other output-branch roles (outc; out of a Wilson): the output current of the solve.
  * Length modulation is included: the closed forms of targets.ts take (1 + λ·VDS) from the
  * solved operating point, iterated to a fixed point, so with require.ratio the computed sizes
@@ -25,6 +26,7 @@ import { isBank } from '../circuit/templates';
 import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
 import { aspectForTarget } from './targets';
 import { snapLength } from './snap';
+import { formatSI } from '../units/format';
 
 export interface SizedDevice {
   /** Index into spec.mirrors. */
@@ -112,12 +114,14 @@ function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, t
   const lmin = params.lmin ?? 0;
   for (const s of autoL) s.size.l = Math.max(s.size.l, lmin);
 
-  let trial: Trial = { g: NaN, spec: sizeWidths(spec, index, mirror, slots, target), slots };
+  let trial: Trial;
   let lNote: string | undefined;
   if (autoL.length > 0 && routOutputs.length > 0) {
     const found = searchLength(spec, index, mirror, slots, target, routOutputs, params, spec.process.grid);
     trial = found.trial;
     lNote = found.note;
+  } else {
+    trial = { g: NaN, spec: sizeWidths(spec, index, mirror, slots, target), slots };
   }
   const bank = isBank(mirror);
   const sized: SizedDevice[] = trial.slots
@@ -137,9 +141,9 @@ function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, t
   return { spec: trial.spec, sized };
 }
 
-/** A sizing trial: how well it meets Rout (min over outputs of rout/require), its spec and the
- *  slot states that produced it. */
-interface Trial { g: number; spec: ResolvedSpec; slots: Slot[] }
+/** A sizing trial: how well it meets Rout (min over outputs of rout/require), its spec, the
+ *  slot states that produced it, and whether every output solved. */
+interface Trial { g: number; spec: ResolvedSpec; slots: Slot[]; solved?: boolean }
 
 /** DeviceReport.name of a slot's device (engine naming: role, or `<output>.<role>` in a bank). */
 function deviceName(m: TemplateMirror, bank: boolean, s: { role: string; output?: number }): string {
@@ -209,11 +213,28 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     s.planned = inputBranch.includes(s.role) ? iin : ratios[j] * iin;
     s.clm = 1;
   }
+  // Without require.ratio the output device of the pair copies the reference's W/L per finger
+  // (the multiplier m carries the ratio, as with unit devices in a layout).
+  const pairRef = PAIR[m.kind].ref;
+  const copiesRef = (s: Slot): Slot | undefined => {
+    if (s.role !== pairOut || (m.outputs[s.output ?? 0]?.require.ratio ?? 0) > 0) return undefined;
+    return slots.find((x) => x.role === pairRef && (x.output === undefined || x.output === s.output));
+  };
+  // Pair outputs last, so a copy sees this round's reference width.
+  const order = [...slots.filter((s) => s.role !== pairOut), ...slots.filter((s) => s.role === pairOut)];
   let sized = spec;
   for (let round = 0; round < MAX_ROUNDS; round++) {
     let change = 0;
-    for (const s of slots) {
+    for (const s of order) {
       if (s.size.auto?.w !== true) continue;
+      const ref = copiesRef(s);
+      if (ref) {
+        const w = ref.size.w * (s.size.l / ref.size.l);
+        change = Math.max(change, Math.abs(w - s.size.w) / w);
+        s.size.w = w;
+        s.note = ref.note;
+        continue;
+      }
       const aspect = aspectForTarget(ctxT, s.planned, target, target.kind === 'ic' && proc.model === 'square-law' ? 1 : s.clm);
       if (aspect === undefined) {
         s.note = unreachableNote(target, ctxT.n, ctxT.ut, proc.model);
@@ -227,7 +248,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
           s.size.l = snapLength(s.size.l * (wmin / w), proc.grid, 'up');
           s.note = `L lengthened to keep W/L at the target with W at wmin`;
         } else {
-          s.note = `W raised to wmin ${wmin} m: the target needs ${w.toPrecision(3)} m`;
+          s.note = `W raised to wmin ${formatSI(wmin, 'm')}: the target needs ${formatSI(w, 'm')}`;
         }
         w = wmin;
       }
@@ -246,7 +267,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
       const d = ops[j]!.devices.find((x) => x.name === name);
       if (!d) continue;
       s.clm = 1 + lambdaAt(params, s.size.l) * d.vds;
-      s.planned = inputBranch.includes(s.role) ? iin : s.role === pairOut ? ratios[j] * iin : d.id;
+      s.planned = inputBranch.includes(s.role) ? iin : s.role === pairOut && !copiesRef(s) ? ratios[j] * iin : d.id;
     }
   }
   for (const s of slots) {
@@ -261,9 +282,9 @@ function ctxOf(spec: ResolvedSpec, index: number, outputIndex: number): MirrorCo
 
 function unreachableNote(target: DesignTarget, n: number, ut: number, model: string): string {
   if (target.kind === 'gmid' && model === 'ekv') {
-    return `gm/ID ${target.value} /V is above the weak-inversion limit 1/(n·U_T) = ${(1 / (n * ut)).toFixed(1)} /V; width left as given`;
+    return `gm/ID ${target.value} /V is above the weak-inversion limit 1/(n·U_T) = ${(1 / (n * ut)).toFixed(1)} /V, so no width reaches it (width left as given)`;
   }
-  return `design target ${target.kind} = ${target.value} cannot be reached; width left as given`;
+  return `design target ${target.kind} = ${target.value} cannot be reached (width left as given)`;
 }
 
 /** The shortest common L of the auto-L slots that meets every output's require.rout. */
@@ -277,20 +298,25 @@ function searchLength(
     for (const s of slots) if (s.size.auto?.l === true) s.size.l = l;
     const sized = sizeWidths(spec, index, m, slots, target);
     let g = Infinity;
+    let solved = true;
     for (const { j, rout } of routOutputs) {
       const r = measureMirror(ctxOf(sized, index, j));
+      solved &&= r.converged;
       g = Math.min(g, r.converged && Number.isFinite(r.rout) ? r.rout / rout : 0);
     }
-    return { g, spec: sized, slots };
+    return { g, spec: sized, slots, solved };
   };
   const l0 = Math.max(start.find((s) => s.size.auto?.l === true)!.size.l, lo);
+  const first = evaluate(l0);
+  // No working point to measure: searching lengths would only repeat failing solves.
+  if (!first.solved) return { trial: first, note: 'L kept as given: the mirror has no solved operating point to measure Rout on' };
   if (params.lref === undefined) {
-    const t = evaluate(l0);
-    return t.g >= 1 ? { trial: t } : { trial: t, note: `L kept at ${t.slots.find((s) => s.size.auto?.l)!.size.l} m: without process lref, λ does not fall with L, so length cannot raise Rout` };
+    const l = first.slots.find((s) => s.size.auto?.l)!.size.l;
+    return first.g >= 1 ? { trial: first } : { trial: first, note: `L kept at ${formatSI(l, 'm')}: without process lref, λ does not fall with L, so length cannot raise Rout` };
   }
   // Bracket in log L: [a, b] with g(a) < 1 ≤ g(b).
   let b = l0;
-  let tb = evaluate(b);
+  let tb = first;
   let a = b;
   if (tb.g >= 1) {
     while (a > lo) {
@@ -302,7 +328,7 @@ function searchLength(
     if (b <= lo) return { trial: tb };
   } else {
     while (tb.g < 1) {
-      if (b >= L_MAX) return { trial: tb, note: `require.rout not reached even at L = ${L_MAX} m` };
+      if (b >= L_MAX) return { trial: tb, note: `require.rout not reached even at L = ${formatSI(L_MAX, 'm')}` };
       a = b;
       b = Math.min(L_MAX, b * 2);
       tb = evaluate(b);

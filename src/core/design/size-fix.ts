@@ -149,7 +149,12 @@ function freezeFix(parsed: ParsedSpec, t: Token, file?: string): TextEdit[] | un
     replacement = lengthText(v);
     for (const u of t.uses) if (!same(u.value, v)) inserts.push({ path: u.s.path, key: u.dim, text: lengthText(u.value) });
   }
-  const first = replaceValueEdit(parsed, t.path, replacement);
+  // A mapping written over a scalar must not inherit the scalar's quotes ("auto" in JSON), so
+  // the whole-size edit is built here; a length replaces its token like any value.
+  const tokenRange = parsed.source.value(t.path);
+  const first: TextEdit | undefined = t.whole
+    ? (tokenRange ? { range: tokenRange, newText: replacement } : undefined)
+    : replaceValueEdit(parsed, t.path, replacement);
   if (!first) return undefined;
   let text: string;
   try {

@@ -34,7 +34,13 @@ function mirrorBlock(m: MirrorReport): string[] {
   const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  compliance ${si(m.compliance, 'V')} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
-  return [head, line1, line2, ...deviceTable(m.devices)];
+  return [head, line1, line2, ...deviceTable(ownDevices(m))];
+}
+
+/** A bank output's table shows the shared reference and that output's own devices only. */
+export function ownDevices(m: MirrorReport): DeviceReport[] {
+  if (!m.output) return m.devices;
+  return m.devices.filter((d) => !d.name.includes('.') || d.name.startsWith(`${m.output}.`));
 }
 
 const COLUMNS: [string, number][] = [
@@ -52,7 +58,8 @@ function deviceTable(devices: DeviceReport[]): string[] {
     d.gmId.toFixed(1),
     si(d.ro, 'Ω'),
   ]);
-  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => c.padEnd(COLUMNS[i][1])).join('').trimEnd();
+  const widths = COLUMNS.map(([title, w], i) => Math.max(w, title.length + 1, ...rows.map((r) => r[i].length + 1)));
+  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => c.padEnd(widths[i])).join('').trimEnd();
   return [fmt(COLUMNS.map((c) => c[0])), ...rows.map(fmt)];
 }
 

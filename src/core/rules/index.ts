@@ -22,6 +22,19 @@ export { fixAll } from './fix-all';
 /** Upper bound on verified candidates per finding (each costs a parse and a solve). */
 const MAX_VERIFICATIONS = 6;
 
+export interface RulesOptions {
+  /** Re-checks (parse + solve of an edited text) allowed for the whole file; later findings get no fixes. */
+  maxRechecks?: number;
+  /** ms for fix verification of the whole file (default 4000); the clock is `now`. */
+  budgetMs?: number;
+  now?: () => number;
+}
+
+const DEFAULT_RECHECKS = 120;
+const DEFAULT_BUDGET_MS = 4000;
+
+interface Budget { left: number; deadline: number; now: () => number }
+
 /** Every check over every report, without fixes. Never throws: a failing check yields nothing. */
 export function detect(rc: RuleContext): Draft[] {
   const drafts: Draft[] = [];
@@ -55,8 +68,12 @@ export function detect(rc: RuleContext): Draft[] {
   return drafts;
 }
 
-/** Design findings (with verified fixes) for a parsed spec and its reports. Pure, never throws. */
-export function runRules(parsed: ParsedSpec, reports: MirrorReport[]): Finding[] {
+/**
+ * Design findings (with verified fixes) for a parsed spec and its reports. Pure, never throws.
+ * Fix verification is bounded (RulesOptions) so a huge faulty file still answers promptly: past
+ * the budget, findings come without fixes (and with their hint).
+ */
+export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: RulesOptions = {}): Finding[] {
   const spec = parsed.spec;
   if (!spec) return [];
   try {
@@ -68,27 +85,29 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[]): Finding[]
       errors: new Set(drafts.filter((d) => d.finding.severity === 'error').map((d) => d.key)),
     };
     const memo = new Map<string, Draft[] | undefined>();
-    return drafts.map((d) => finish(rc, d, baseline, memo));
+    const now = opts.now ?? Date.now;
+    const budget: Budget = { left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now };
+    return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {
     return [];
   }
 }
 
-function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string, Draft[] | undefined>): Finding {
+function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string, Draft[] | undefined>, budget: Budget): Finding {
   const fixes: Fix[] = [];
-  if (d.plan) {
+  if (d.plan && budget.left > 0 && budget.now() < budget.deadline) {
     const families = new Set<string>();
     let tried = 0;
     try {
       for (const c of d.plan()) {
         if (families.has(c.family)) continue;
-        if (tried >= MAX_VERIFICATIONS) break;
+        if (tried >= MAX_VERIFICATIONS || budget.left <= 0 || budget.now() >= budget.deadline) break;
         const p = c.build();
         if (!p) continue;
         tried++;
         // The same edit answers several findings (the balanced Wilson, the EKV model): re-check once.
         const id = `${p.scope}:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
-        if (!memo.has(id)) memo.set(id, recheck(rc, p, baseline, detect));
+        if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect)); }
         if (!accepts(memo.get(id), d, p, baseline)) continue;
         families.add(p.family);
         fixes.push({ title: p.title, edits: p.edits, ...(fixes.length === 0 ? { preferred: true } : {}) });

@@ -1,7 +1,6 @@
 /** Internal shapes of the rules pass: a check yields drafts; fixes are planned lazily, then verified. */
 import type { Finding, MirrorReport, ResolvedSpec, TextEdit } from '../types';
 import type { ParsedSpec } from '../spec/index';
-import type { Site } from './sites';
 
 export interface RuleContext {
   parsed: ParsedSpec;

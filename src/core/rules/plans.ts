@@ -1,7 +1,8 @@
 /**
  * Candidate fixes, computed by the sizing solvers on modified copies of the resolved spec and
- * written as minimal edits. Each function returns candidates best first; the caller verifies
- * them by re-parsing and re-solving the edited text and offers the first that holds.
+ * written as minimal edits. Each generator yields candidates best first, lazily (a solver runs
+ * only when its candidates are wanted); the caller verifies each by re-parsing and re-solving the
+ * edited text and offers the first of each family that holds.
  */
 import type { ResolvedSpec, TextEdit } from '../types';
 import type { RuleContext, FixPlan } from './model';
@@ -35,7 +36,7 @@ function scaleChanges(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number; 
   return out;
 }
 
-function plan(rc: RuleContext, mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
+function plan(mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
   return edits && edits.length > 0 ? { title, edits, scope: 'mirror', mirrorIndex, family } : undefined;
 }
 
@@ -54,7 +55,7 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('widen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file);
-      return p && plan(rc, mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
+      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
     });
   }
 }
@@ -67,7 +68,7 @@ export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: R
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('lengthen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file);
-      return p && plan(rc, mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
+      return p && plan(mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
     });
   }
 }
@@ -80,27 +81,23 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   for (const ss of [s, s * 1.03, s * 1.1]) {
     yield candidate('area', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file);
-      return p && plan(rc, site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
+      return p && plan(site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
     });
   }
 }
 
-/** Resize one device so a mirror output meets scale-free set values (w, l, m). */
+/** Set sizes of some devices (overrides where a shared token cannot change), plus extra keys. */
 function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: KeyInsert[], title: (notes: string) => string, family: string): FixPlan | undefined {
   const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file);
   if (!p) return undefined;
   let edits = p.edits;
   if (extra.length > 0) {
     // Compose with the extra insertions: apply the size edits, then insert on the result.
-    const merged = buildEditsAfter(rc, edits, extra);
+    const merged = buildEdits(rc.parsed, edits, extra, rc.file);
     if (!merged) return undefined;
     edits = merged;
   }
-  return plan(rc, site.mirrorIndex, title(notesText(p.notes)), edits, family);
-}
-
-function buildEditsAfter(rc: RuleContext, first: TextEdit[], extra: KeyInsert[]): TextEdit[] | undefined {
-  return buildEdits(rc.parsed, first, extra, rc.file);
+  return plan(site.mirrorIndex, title(notesText(p.notes)), edits, family);
 }
 
 /**
@@ -114,6 +111,17 @@ export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, targ
   if (!size) return;
   const extra: KeyInsert[] = stateRatio ? [{ parent: [...site.path, 'require'], key: 'ratio', text: shortDecimal(target, 6) }] : [];
   const stated = stateRatio ? ` and state require.ratio ${shortDecimal(target, 6)}` : '';
+  const byCount = function* (): Generator<Candidate> {
+    if (stateRatio) return;
+    const m = countForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
+    if (m !== undefined) {
+      yield candidate('ratio-m', () => devicePlan(rc, site, [{ ref: device, key: 'm', value: m }], [], (notes) => `Use ${m} parallel \`${device.role}\` devices: ${notes}`, 'ratio-m'));
+    }
+  };
+  // A wrong parallel count (geometric 4 for a required 3) is fixed where it was made: m first.
+  const ideal = site.report.ratioIdeal;
+  const sizingError = !stateRatio && ideal !== undefined && Math.abs(ideal / target - 1) > rc.spec.limits.error;
+  if (sizingError) yield* byCount();
   const w = widthForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
   if (w !== undefined) {
     const grid = rc.spec.process.grid;
@@ -126,12 +134,7 @@ export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, targ
         (notes) => `Size \`${device.role}\` for ratio ${shortDecimal(target, 6)} including length modulation${stated}: ${notes}`, 'ratio-w'));
     }
   }
-  if (!stateRatio) {
-    const m = countForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
-    if (m !== undefined) {
-      yield candidate('ratio-m', () => devicePlan(rc, site, [{ ref: device, key: 'm', value: m }], [], (notes) => `Use ${m} parallel \`${device.role}\` devices: ${notes}`, 'ratio-m'));
-    }
-  }
+  if (!sizingError) yield* byCount();
 }
 
 /** Set one device's size keys (e.g. raise L to lmin at constant W/L). */
@@ -156,7 +159,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
     seen.add(v);
     yield candidate('vbias', () => {
       const edit = replaceValueEdit(rc.parsed, path, formatValue('v', v, token, rc.json));
-      return edit && plan(rc, site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
+      return edit && plan(site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
     });
   }
 }
@@ -172,7 +175,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(token, 'wilson-balanced'));
   if (!kindEdit) return;
   const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
-  yield candidate('balanced', () => plan(rc, site.mirrorIndex, title, [kindEdit], 'balanced'));
+  yield candidate('balanced', () => plan(site.mirrorIndex, title, [kindEdit], 'balanced'));
   const ratio = site.report.ratioIdeal ?? site.report.ratio;
   const bal = balancedBalSize(m, ratio);
   if (bal && fixable(rc, site.mirrorIndex)) {
@@ -181,13 +184,15 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
     const extra: KeyInsert[] = [{ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'w', text: formatValue('w', w, undefined, rc.json) }];
     if (bal.l !== unit?.l) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'l', text: formatValue('l', bal.l, undefined, rc.json) });
     if (bal.m !== 1) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'm', text: formatValue('m', bal.m, undefined, rc.json) });
-    yield candidate('balanced', () => plan(rc, site.mirrorIndex, `${title}, \`bal\` W ${formatValue('w', w, undefined, false)} for out's current density`,
+    yield candidate('balanced', () => plan(site.mirrorIndex, `${title}, \`bal\` W ${formatValue('w', w, undefined, false)} for out's current density`,
       buildEdits(rc.parsed, [kindEdit], extra, rc.file), 'balanced'));
   }
 }
 
 /** `process.model: ekv` (whole-file scope). */
 export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Candidate> {
+  // The re-check re-solves the whole file; auto-sized mirrors are sized by another pass first.
+  if (rc.spec.mirrors.some((_, i) => isAutoSized(rc.spec, i))) return;
   yield candidate('model', () => modelPlan(rc, mirrorIndex));
 }
 

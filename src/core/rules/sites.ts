@@ -6,7 +6,7 @@
  */
 import type {
   DeviceReport, DeviceSize, MirrorOutput, MirrorReport, Range, Requirements, ResolvedMirror,
-  ResolvedSpec, SpecPath, TemplateMirror,
+  ResolvedSpec, SpecPath,
 } from '../types';
 import { OUTPUT_ROLES } from '../types';
 import type { ParsedSpec } from '../spec/index';
@@ -40,10 +40,6 @@ export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefin
   const output = mirror.outputs[outputIndex];
   if (!output) return undefined;
   return { report, mirrorIndex, outputIndex, mirror, output, vout: output.output.v, range: output.output.range, require: output.require, path: p };
-}
-
-export function isBank(mirror: ResolvedMirror): boolean {
-  return mirror.kind !== 'netlist' && mirror.outputs.some((o) => o.path.length > 2);
 }
 
 /** The device a DeviceReport describes. Bank output devices are named `<output>.<role>`. */
@@ -121,6 +117,10 @@ export function deviceRange(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceR
     const mirrorLevel: SpecPath = ['mirrors', ref.mirror, 'devices', ref.role];
     const r = parsed.source.key(mirrorLevel);
     if (r) return { path: mirrorLevel, range: r };
+    // A bank output's device with nothing of its own: the output's name.
+    const outputName: SpecPath = [...own.slice(0, 4), 'name'];
+    const n = parsed.source.value(outputName);
+    if (n) return { path: outputName, range: n };
   }
   return mirrorRange(parsed, ref.mirror);
 }
@@ -157,9 +157,4 @@ export function textAt(text: string, r: Range): string {
     return Math.min(at + p.character, text.length);
   };
   return text.slice(offset(r.start), offset(r.end));
-}
-
-/** Reference roles of a template mirror (the shared part of a bank). */
-export function templateOf(mirror: ResolvedMirror): TemplateMirror | undefined {
-  return mirror.kind === 'netlist' ? undefined : mirror;
 }

@@ -5,20 +5,11 @@
  * out carries iout, so bal's β should be out's β divided by the ratio (Gray et al. ch. 4, from
  * memory; the 4-transistor Wilson).
  */
-import type { DeviceSize, ResolvedSpec, TemplateMirror } from '../types';
-import { withMirror } from './devices';
+import type { DeviceSize, TemplateMirror } from '../types';
 
 /** The size `bal` needs for equal current density with `out` (W scaled; L and m as out's). */
 export function balancedBalSize(mirror: TemplateMirror, ratio: number): DeviceSize | undefined {
   const out = mirror.outputs[0]?.devices.out;
   if (!out || !(ratio > 0)) return undefined;
   return { ...out, w: out.w / ratio };
-}
-
-/** The spec with mirror `mirrorIndex` switched to `wilson-balanced`, bal sized as given (default: like the unit device). */
-export function asBalanced(spec: ResolvedSpec, mirrorIndex: number, bal: DeviceSize): ResolvedSpec {
-  const m = spec.mirrors[mirrorIndex];
-  if (!m || m.kind !== 'wilson') return spec;
-  const next: TemplateMirror = { ...m, kind: 'wilson-balanced', devices: { ...m.devices, bal } };
-  return withMirror(spec, mirrorIndex, next);
 }

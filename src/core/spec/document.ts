@@ -3,7 +3,7 @@
  * parser. Never throws: unreadable input, syntax errors, alias bombs and runaway nesting become
  * findings, and `parsed` is false when there is no data to check.
  */
-import { isMap, isScalar, isSeq, parseDocument } from 'yaml';
+import { isAlias, isMap, isScalar, isSeq, parseDocument, visit } from 'yaml';
 import type { Document, Node } from 'yaml';
 import type { Finding } from '../types';
 import { SPEC_LIMITS } from '../defaults';
@@ -61,6 +61,21 @@ function duplicateKeys(doc: Document, lines: LineIndex, out: Finding[]): void {
   }
 }
 
+/** Span of the first alias in the document (where an alias bomb starts), else 0:0. */
+function firstAlias(doc: Document): [number, number] {
+  let span: [number, number] = [0, 0];
+  visit(doc, {
+    Alias(_key, node) {
+      if (isAlias(node) && node.range) {
+        span = [node.range[0], node.range[1]];
+        return visit.BREAK;
+      }
+      return undefined;
+    },
+  });
+  return span;
+}
+
 export function readDocument(text: string, lines: LineIndex): ReadDocument {
   if (text.length > SPEC_LIMITS.maxChars) {
     return { parsed: false, findings: [at(lines, 0, 0, 'too-large',
@@ -102,7 +117,8 @@ export function readDocument(text: string, lines: LineIndex): ReadDocument {
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
     if (/alias/i.test(msg)) {
-      findings.push(at(lines, 0, 0, 'too-many-aliases', `the file expands more than ${SPEC_LIMITS.maxAliasCount} aliases; qpoint stops there (an alias bomb?)`));
+      const first = firstAlias(doc);
+      findings.push(at(lines, first[0], first[1], 'too-many-aliases', `the file expands more than ${SPEC_LIMITS.maxAliasCount} aliases; qpoint stops there (an alias bomb?)`));
     } else if (e instanceof RangeError) {
       findings.push(at(lines, 0, 0, 'too-deep', 'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it'));
     } else {

@@ -3,7 +3,6 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import { ROLES } from '../types';
 import type { DeviceParams, MirrorKind, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, TemplateKind } from '../types';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
@@ -91,9 +90,4 @@ export function elaborate(data: unknown, sink: FindingSink): ResolvedSpec | unde
   const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors, corners };
   if (title !== undefined) spec.title = title;
   return spec;
-}
-
-/** Roles a template kind has (re-exported for front ends that list them). */
-export function rolesOf(kind: TemplateKind): readonly string[] {
-  return ROLES[kind];
 }

@@ -36,7 +36,7 @@ export class FindingSink {
     this.add('warning', code, message, path, range, once);
   }
 
-  /** True when a finding with this fact was already made at path (or, with `below`, under it). */
+  /** True when a finding with this fact (or, without `once`, any finding) was made at path. */
   has(path: SpecPath, once?: string): boolean {
     const p = JSON.stringify(path);
     if (once) return this.seen.has(`${once}@${p}`);

@@ -1,9 +1,7 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
-import { DEFAULTS } from '../defaults';
-import type { DeviceParams, Limits, ModelKind, Polarity, Supplies } from '../types';
-import type { SpecPath } from '../types';
+import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
+import type { DeviceParams, Limits, ModelKind, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
-import { ZERO_CELSIUS } from '../defaults';
 import { missing, readEnum, readMap } from './read';
 import type { Data } from './read';
 import { resolveNumber } from './values';

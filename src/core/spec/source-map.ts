@@ -38,8 +38,9 @@ function span(n: unknown): Span | undefined {
 }
 
 function keyText(k: unknown): string | undefined {
-  if (isScalar(k)) return String(k.value);
-  return undefined;
+  if (!isScalar(k)) return undefined;
+  // A `<<` merge key is a symbol in the tree.
+  return typeof k.value === 'symbol' ? k.value.description : String(k.value);
 }
 
 export class YamlSourceMap implements SourceMap {

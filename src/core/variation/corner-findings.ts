@@ -104,9 +104,12 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     const bad = solved.filter((r) => complianceFails(site, r.compliance, limit))
       .map((r) => ({ r, badness: Math.abs(r.compliance - limit) }));
     const which = site.require.compliance !== undefined ? 'require.compliance' : 'output.range';
+    // The far end of output.range is the element that must change (NMOS the low, PMOS the high).
+    const end = site.type === 'nmos' ? 0 : 1;
+    const rangePath = [...site.path, 'output', 'range', end];
     const range = site.require.compliance !== undefined ? requireRange(parsed, site, 'compliance')
-      : parsed.source.value([...site.path, 'output', 'range']) ?? nameRange(parsed, site);
-    emit('corner-compliance', 'error', bad, range, [...site.path, ...(which === 'require.compliance' ? ['require', 'compliance'] : ['output', 'range'])],
+      : parsed.source.value(rangePath) ?? parsed.source.value([...site.path, 'output', 'range']) ?? nameRange(parsed, site);
+    emit('corner-compliance', 'error', bad, range, which === 'require.compliance' ? [...site.path, 'require', 'compliance'] : rangePath,
       (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
   }
 

@@ -11,7 +11,7 @@ import { valueRange, type Site } from '../sites';
 import { solve } from '../../sizing/devices';
 import type { OperatingPoint } from '../../analysis/index';
 import { widenPlans } from '../plans';
-import { amps, code, volts } from '../words';
+import { amps, code, signedVolts, volts } from '../words';
 
 /** Devices between the source rail and the input node, per kind (design §2 connections). */
 const INPUT_STACK: Record<TemplateKind, string[]> = {
@@ -46,9 +46,9 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const at = valueRange(rc.parsed, path);
   const stackNames = INPUT_STACK[m.kind].map(code).join(' + ');
   const message = resistor
-    ? `the input resistor has only ${volts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
+    ? `the input resistor has only ${signedVolts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
       `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${volts(got.stack)} from the rail (stack ${stackNames}), leaving ${volts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+    : `the input node sits ${volts(got.stack)} from the rail (stack ${stackNames}), leaving ${signedVolts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
