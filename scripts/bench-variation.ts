@@ -43,7 +43,7 @@ function specOf(m: TemplateMirror): ResolvedSpec {
     format: 1,
     process: { model: 'square-law', tnom: 300.15, temperature: 300.15, grid: 10e-9, nmos: NMOS, pmos: PMOS },
     supplies: { vdd: 1.8, vss: 0 },
-    limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2 },
+    limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 },
     params: {}, mirrors: [m], corners: CORNERS,
   };
 }

@@ -98,7 +98,8 @@ export async function ensureCodeServer(cacheDir: string, logFile: string): Promi
       description: 'code-server for qpoint\'s workbench tests (installed on demand, not a project dependency)',
       allowScripts: Object.fromEntries(ALLOW_SCRIPTS.map((n) => [n, true])),
     }, null, 2));
-    const env = { ...process.env, npm_config_yes: 'true', npm_config_unsafe_perm: 'true',
+    // JOBS: node-gyp builds the native modules (kerberos, node-pty, argon2 …) on every core.
+    const env = { ...process.env, npm_config_yes: 'true', npm_config_unsafe_perm: 'true', JOBS: 'max',
       npm_config_audit: 'false', npm_config_fund: 'false', npm_config_update_notifier: 'false' };
     await run('npm', ['install', '--unsafe-perm', '--no-audit', '--no-fund', `code-server@${CODE_SERVER_VERSION}`],
       cacheDir, logFile, env);

@@ -8,6 +8,9 @@ import { parseSpec, type ParsedSpec } from './spec/index';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
 import { buildAnchors } from './anchors';
+import { applyDesignTargets } from './design/auto-size';
+import { attachVariation } from './variation/attach';
+import { variationFindings } from './variation/findings';
 import { sortFindings } from './findings';
 
 export interface AnalyzeOptions {
@@ -28,10 +31,17 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     if (!parsed.spec) {
       return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(parsed.findings), anchors: [] };
     }
-    const spec = withLimitDefaults(parsed.spec, text, opts);
+    // Design targets (`size: auto`) are sized before anything is solved, so every later step
+    // sees concrete devices; DeviceReport.sized marks what qpoint computed.
+    const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed.spec, text, opts));
     const withSpec: ParsedSpec = { ...parsed, spec };
-    const mirrors: MirrorReport[] = analyzeSpec(spec, { curve: opts.curve });
-    const findings: Finding[] = [...parsed.findings, ...runRules(withSpec, mirrors)];
+    const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
+    const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc });
+    const findings: Finding[] = [
+      ...parsed.findings,
+      ...runRules(withSpec, mirrors),
+      ...variationFindings(withSpec, spec, mirrors, sized, file),
+    ];
     const anchors: Anchor[] = buildAnchors(withSpec, mirrors);
     return { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
   } catch (err) {
@@ -45,6 +55,18 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     });
     return { file, parsed: parsed?.parsed ?? false, mirrors: [], findings: sortFindings(findings), anchors: [] };
   }
+}
+
+/** Each report carries the requirements it is checked against, for the panel's "met" column. */
+function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
+  return reports.map((r) => {
+    const mirror = spec.mirrors[typeof r.path[1] === 'number' ? r.path[1] : -1];
+    if (!mirror) return r;
+    if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
+    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
+    const out = mirror.outputs[j];
+    return out ? { ...r, require: out.require } : r;
+  });
 }
 
 /** The editor may supply a default margin; a margin written in the spec always wins. */

@@ -30,9 +30,13 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
   return anchors;
 }
 
-/** One anchor per device key written under `devices:` (inherited devices have no key). */
+/** One anchor per device key written under `devices:` (inherited devices have no key). A bank
+ *  output's report lists the shared reference and its own devices (`<output>.<role>`). */
 function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], devicesPath: SpecPath, report: MirrorReport, byName: boolean): void {
-  for (const device of report.devices) {
+  const own = report.output
+    ? report.devices.filter((d) => !d.name.includes('.') || d.name.startsWith(`${report.output}.`))
+    : report.devices;
+  for (const device of own) {
     const key = byName ? device.name : device.role;
     const path = [...devicesPath, key];
     const range = parsed.source.key(path);

@@ -12,6 +12,8 @@ export const DEFAULTS = {
   error: 0.01,
   /** V, limits.sourceHeadroom: what an input current source needs across it. */
   sourceHeadroom: 0.2,
+  /** relative, limits.tolerance: total ratio deviation one Monte Carlo sample may show. */
+  tolerance: 0.05,
   vss: 0,
   /** Device parameters not given in the spec. */
   device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5 },

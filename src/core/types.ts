@@ -78,6 +78,9 @@ export interface Limits {
   margin: number;          // V, minimum VDS − VDSsat counted as safely saturated
   error: number;           // relative, allowed systematic ratio error
   sourceHeadroom: number;  // V, what an input current source needs across it
+  /** relative: allowed total (systematic + random) ratio deviation of one Monte Carlo sample;
+   *  the Monte Carlo yield counts the samples within it. */
+  tolerance: number;
 }
 
 export type BulkTie = 'rail' | 'source';

@@ -51,6 +51,9 @@ export class AnalysisManager implements vscode.Disposable {
         if (e.affectsConfiguration('qpoint')) this.reanalyzeAll();
       }),
       vscode.window.tabGroups.onDidChangeTabs(() => this.panelMayHaveOpened()),
+      // A workspace check leaves diagnostics on files that are not open: drop them with the file.
+      vscode.workspace.onDidDeleteFiles((e) => { for (const u of e.files) this.forgetUnder(u); }),
+      vscode.workspace.onDidRenameFiles((e) => { for (const f of e.files) this.forgetUnder(f.oldUri); }),
     );
     for (const d of vscode.workspace.textDocuments) this.open(d);
     this.activeChanged(vscode.window.activeTextEditor);
@@ -149,6 +152,17 @@ export class AnalysisManager implements vscode.Disposable {
     this.entries.delete(key);
     this.diagnostics.delete(doc.uri);
     if (this.lastActive === key) this.lastActive = undefined;
+  }
+
+  /** Diagnostics of `uri` and, for a folder, of every file below it. */
+  private forgetUnder(uri: vscode.Uri): void {
+    const prefix = uri.toString().replace(/\/?$/, '/');
+    const gone: vscode.Uri[] = [];
+    this.diagnostics.forEach((u) => {
+      const k = u.toString();
+      if (k === uri.toString() || k.startsWith(prefix)) gone.push(u);
+    });
+    for (const u of gone) this.diagnostics.delete(u);
   }
 
   private activeChanged(editor: vscode.TextEditor | undefined): void {

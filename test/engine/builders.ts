@@ -28,7 +28,7 @@ export function makeSpec(mirrors: ResolvedMirror[], o: SpecOptions = {}): Resolv
       nmos: { ...RAZAVI_N, ...o.nmos }, pmos: { ...RAZAVI_P, ...o.pmos },
     },
     supplies: { vdd: o.vdd ?? 3.3, vss: o.vss ?? 0 },
-    limits: { margin: o.margin ?? 0.1, error: 0.01, sourceHeadroom: 0.2 },
+    limits: { margin: o.margin ?? 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 },
     params: {},
     mirrors,
     corners: [],

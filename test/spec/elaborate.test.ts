@@ -30,7 +30,7 @@ describe('defaults', () => {
     expect(s.process.tnom).toBe(300.15);           // 27 °C, design §3
     expect(s.process.temperature).toBe(300.15);    // default tnom
     expect(s.supplies).toEqual({ vdd: 1.8, vss: 0 });
-    expect(s.limits).toEqual({ margin: 0.1, error: 0.01, sourceHeadroom: 0.2 });
+    expect(s.limits).toEqual({ margin: 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 });
     expect(s.process.nmos).toEqual({ kp: 280e-6, vt0: 0.45, ...DEFAULTS.device });
     expect(s.process.pmos.vt0).toBe(0.48);
     expect(s.corners).toEqual([]);

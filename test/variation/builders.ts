@@ -36,7 +36,7 @@ export function makeSpec(mirrors: ResolvedMirror[], o: SpecOptions = {}): Resolv
       nmos: { ...NMOS_D, ...o.nmos }, pmos: { ...PMOS_D, ...o.pmos },
     },
     supplies: { vdd: o.vdd ?? 3.3, vss: o.vss ?? 0 },
-    limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2 },
+    limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 },
     params: {},
     mirrors: mirrors.map((m, i) => reindex(m, i)),
     corners: o.corners ?? [],

@@ -49,37 +49,36 @@ async function runCommand(page: Page, title: string): Promise<void> {
   await page.keyboard.press('Enter');
 }
 
-beforeAll(async () => {
-  rmSync(OUT, { recursive: true, force: true });
-  mkdirSync(OUT, { recursive: true });
-  const t0 = Date.now();
-  const install = await ensureCodeServer(CACHE, join(OUT, 'install.log'));
-  timings.installMs = install.ms;
-  timings.installed = install.installed ? 1 : 0;
-  run = await prepareRun(ROOT, OUT);
-  server = await startCodeServer({
-    entry: install.entry,
-    stateDir: join(OUT, 'state'),
-    logFile: join(OUT, 'code-server.log'),
-    env: { QPOINT_SUITE_RESULT: run.resultFile, QPOINT_EXPECT_SPECS: String(run.specs.length) },
-  });
-  timings.startMs = Date.now() - t0 - install.ms;
-  browser = await launchBrowser(OUT);
-}, 600_000);
+// QPOINT_SKIP_WORKBENCH=1 skips this file on a machine without Chromium (see test/workbench/README.md).
+describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS Code workbench (code-server + Chromium)', () => {
+  beforeAll(async () => {
+    rmSync(OUT, { recursive: true, force: true });
+    mkdirSync(OUT, { recursive: true });
+    const t0 = Date.now();
+    const install = await ensureCodeServer(CACHE, join(OUT, 'install.log'));
+    timings.installMs = install.ms;
+    timings.installed = install.installed ? 1 : 0;
+    run = await prepareRun(ROOT, OUT);
+    server = await startCodeServer({
+      entry: install.entry,
+      stateDir: join(OUT, 'state'),
+      logFile: join(OUT, 'code-server.log'),
+      env: { QPOINT_SUITE_RESULT: run.resultFile, QPOINT_EXPECT_SPECS: String(run.specs.length) },
+    });
+    timings.startMs = Date.now() - t0 - install.ms;
+    browser = await launchBrowser(OUT);
+  }, 600_000);
 
-afterAll(async () => {
-  // Stop what we started, even when a test failed.
-  await browser?.close().catch(() => undefined);
-  await server?.stop();
-  console.log(`workbench timings: ${JSON.stringify(timings)}`);
-}, 60_000);
+  afterAll(async () => {
+    // Stop what we started, even when a test failed.
+    await browser?.close().catch(() => undefined);
+    await server?.stop();
+    console.log(`workbench timings: ${JSON.stringify(timings)}`);
+  }, 60_000);
 
-describe('qpoint in a real VS Code workbench (code-server + Chromium)', () => {
   it('passes the extension-host suite', async () => {
     expect(server && browser).toBeTruthy();
     const page = await browser!.newPage();
-    const errors: string[] = [];
-    page.on('pageerror', (e) => errors.push(e.message));
     let exitCode: (code: number) => void = () => undefined;
     const exited = new Promise<number>((r) => { exitCode = r; });
     await page.exposeFunction('codeAutomationExit', (code: number) => exitCode(code));

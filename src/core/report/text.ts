@@ -34,7 +34,26 @@ function mirrorBlock(m: MirrorReport): string[] {
   const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  compliance ${si(m.compliance, 'V')} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
-  return [head, line1, line2, ...deviceTable(ownDevices(m))];
+  return [head, line1, line2, ...deviceTable(ownDevices(m)), ...cornerLines(m), ...monteCarloLines(m)];
+}
+
+function cornerLines(m: MirrorReport): string[] {
+  if (!m.corners?.length) return [];
+  return m.corners.map((c) => {
+    if (!c.converged) return `  corner ${c.name}: did not converge`;
+    const err = Number.isFinite(c.error) ? `  error ${signedPercent(c.error)}` : '';
+    const margin = c.minMargin !== undefined ? `  min margin ${si(c.minMargin, 'V')}${c.minMarginDevice ? ` (${c.minMarginDevice})` : ''}` : '';
+    const sigma = c.sigma !== undefined ? `  σ ${(c.sigma * 100).toFixed(2)} %` : '';
+    return `  corner ${c.name}: Iout ${si(c.iout, 'A')}  ratio ${c.ratio.toPrecision(5)}${err}  Rout ${si(c.rout, 'Ω')}  compliance ${si(c.compliance, 'V')}${sigma}${margin}`;
+  });
+}
+
+function monteCarloLines(m: MirrorReport): string[] {
+  const mc = m.mc;
+  if (!mc) return [];
+  const lin = m.sigma !== undefined ? ` (linearized ${(m.sigma * 100).toFixed(2)} %)` : '';
+  return [`  Monte Carlo N=${mc.samples} seed ${mc.seed}: mean ${si(mc.mean, 'A')}  σ ${(mc.sigma * 100).toFixed(2)} %${lin}` +
+    `  range ${si(mc.min, 'A')}…${si(mc.max, 'A')}  yield ${(mc.yield * 100).toFixed(2)} %`];
 }
 
 /** A bank output's table shows the shared reference and that output's own devices only. */

@@ -141,6 +141,8 @@ export function readLimits(scope: ValueScope, raw: unknown): Limits | undefined 
   const error = l.error === undefined ? DEFAULTS.error : resolveNumber(scope, l.error, [...path, 'error'], 'ratio', { positive: true });
   const sourceHeadroom = l.sourceHeadroom === undefined ? DEFAULTS.sourceHeadroom
     : resolveNumber(scope, l.sourceHeadroom, [...path, 'sourceHeadroom'], 'voltage', { nonNegative: true });
-  if (margin === undefined || error === undefined || sourceHeadroom === undefined) return undefined;
-  return { margin, error, sourceHeadroom };
+  const tolerance = l.tolerance === undefined ? DEFAULTS.tolerance
+    : resolveNumber(scope, l.tolerance, [...path, 'tolerance'], 'ratio', { positive: true });
+  if (margin === undefined || error === undefined || sourceHeadroom === undefined || tolerance === undefined) return undefined;
+  return { margin, error, sourceHeadroom, tolerance };
 }

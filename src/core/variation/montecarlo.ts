@@ -12,7 +12,8 @@
  * without a linearization:
  *   - the solve converges;
  *   - every counted device is saturated (VDS ≥ VDSsat) at the nominal output voltage;
- *   - the ratio iout/iin is within limits.error of require.ratio (else of the geometric ratio);
+ *   - the ratio iout/iin is within limits.tolerance (systematic + random) of require.ratio
+ *     (else of the geometric ratio); limits.error is the systematic budget alone;
  *   - with require.compliance: every device is still saturated with the output held there
  *     (one more warm-started solve per sample).
  * Not per sample: rout (mismatch moves it far less than its own tolerance; it is a systematic
@@ -54,7 +55,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
 
   const req = requirementsOf(ctx);
   const target = req.ratio ?? ratioIdealOf(ctx, mc);
-  const errLimit = ctx.spec.limits.error;
+  const errLimit = ctx.spec.limits.tolerance;
   const vComp = req.compliance;
   let xComp: Float64Array | undefined;
   if (vComp !== undefined) {
