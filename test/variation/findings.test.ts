@@ -232,10 +232,10 @@ mirrors:
     expect(f.length).toBe(1);
     expect(f[0]!.severity).toBe('info');
     expect(at(f[0]!)).toBe('7:10-7:14');   // the mirror's name: no require.sigma to point at
-    // The ratio is spread far beyond ±1 %: yield is low and says why.
+    // The ratio is spread far beyond the ±5 % default tolerance: yield is low and says why.
     const y = byCode(r.findings, 'mc-yield');
     expect(y.length).toBe(1);
-    expect(y[0]!.message).toMatch(/with the ratio outside ±1 %/);
+    expect(y[0]!.message).toMatch(/with the ratio outside ±5 % \(limits\.tolerance\)/);
     expect(at(y[0]!)).toBe('13:4-13:11');  // the `require` key
   });
 

@@ -305,6 +305,15 @@ async function suite(folder: vscode.Uri): Promise<void> {
     assert(diags.some((x) => codeOf(x) === 'not-saturated'), `unopened JSON spec: ${diags.map(codeOf).join(', ')}`);
   });
 
+  await check('a *.bias.json spec opens in the qpoint-bias language with hovers', async () => {
+    const json = await vscode.workspace.openTextDocument(jsonUri);
+    assert(json.languageId === 'qpoint-bias', `language of the JSON spec is ${json.languageId}`);
+    await waitFor('report of the JSON spec', () => qp.lastReport(jsonUri), 20_000, [qp.onDidUpdate]);
+    const text = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', jsonUri,
+      positionOf(json, /"name": "low"/, 'low', 1)));
+    assert(text.includes('**Iout**') && text.includes(CAUTION_TEXT), `hover on the JSON mirror name:\n${text}`);
+  });
+
   await check('export writes the self-contained HTML report', async () => {
     await vscode.window.showTextDocument(doc);
     const target = vscode.Uri.joinPath(folder, 'out', 'faulty.report.html');
