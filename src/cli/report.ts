@@ -1,5 +1,5 @@
-import { readFileSync, writeFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
@@ -21,6 +21,7 @@ export function runReport(c: ReportCommand): number {
   }
   const report = analyzeText(read.text, name, { curve: true });
   try {
+    mkdirSync(dirname(c.html), { recursive: true });
     writeFileSync(c.html, renderHtmlReport(report, webviewAssets()));
   } catch (err) {
     process.stderr.write(`qpoint: cannot write ${c.html}: ${(err as Error).message}\n`);

@@ -30,6 +30,8 @@ export class AnalysisManager implements vscode.Disposable {
   private readonly emitter = new vscode.EventEmitter<ReportUpdate>();
   private readonly disposables: vscode.Disposable[] = [];
   private lastActive: string | undefined;
+  /** One error message per session is enough; the log has every failure. */
+  private failureShown = false;
   /** Analyses whose report reached the editor. */
   count = 0;
   readonly onDidUpdate = this.emitter.event;
@@ -190,6 +192,10 @@ export class AnalysisManager implements vscode.Disposable {
         vscode.workspace.asRelativePath(doc.uri, false), this.optionsFor(doc.uri, curve));
     } catch (err) {
       this.log.error(`analysis of ${doc.uri.toString()} failed: ${String(err)}`);
+      if (!this.failureShown) {
+        this.failureShown = true;
+        void vscode.window.showErrorMessage(`qpoint could not analyse ${vscode.workspace.asRelativePath(doc.uri, false)}: ${err instanceof Error ? err.message : String(err)}. See the qpoint output channel.`);
+      }
       return undefined;
     }
     // Superseded by a newer request, or the document was closed meanwhile.

@@ -13,7 +13,7 @@
  * current), so after `input: 10u` → `15u` the panel must show Iin = 15 µA.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { mkdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { ensureCodeServer } from '../../scripts/workbench/install';
@@ -32,6 +32,20 @@ const timings: Record<string, number> = {};
 
 function shot(page: Page, name: string): Promise<Buffer> {
   return page.screenshot({ path: join(OUT, `${name}.png`) });
+}
+
+/** Warnings the panel wrote to its output channel (e.g. a report the page rejected). */
+function panelWarnings(): string {
+  const logs = join(OUT, 'state', 'data', 'logs');
+  if (!existsSync(logs)) return '';
+  const lines: string[] = [];
+  for (const session of readdirSync(logs)) {
+    for (const host of readdirSync(join(logs, session)).filter((d) => d.startsWith('exthost'))) {
+      const f = join(logs, session, host, 'qpoint-dev.qpoint', 'qpoint panel.log');
+      if (existsSync(f)) lines.push(...readFileSync(f, 'utf8').split('\n').filter((l) => /\[(warning|error)\]/.test(l)).map((l) => l.slice(0, 300)));
+    }
+  }
+  return lines.length ? `\npanel log:\n${lines.join('\n')}` : '';
 }
 
 /** Wait for the workbench shell, then dismiss nothing: the quiet settings keep it clean. */
@@ -161,7 +175,7 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
       }
     } catch (e) {
       await shot(page, 'fail-panel');
-      throw e;
+      throw new Error(`the panel did not show the mirrors: ${(e as Error).message}${panelWarnings()}`);
     }
     expect(await body.innerText()).not.toContain('15 µA');
     await shot(page, '5-panel');
@@ -186,7 +200,7 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
       await body.filter({ hasText: '15 µA' }).waitFor({ state: 'visible', timeout: 20_000 });
     } catch (e) {
       await shot(page, 'fail-panel-edit');
-      throw e;
+      throw new Error(`the panel did not follow the edit: ${(e as Error).message}${panelWarnings()}`);
     }
     timings.uiEditToPanelMs = Date.now() - t0;
     await shot(page, '6-panel-after-edit');
