@@ -8,7 +8,7 @@ import css from './styles.css';
 import uplotCss from 'uplot/dist/uPlot.min.css';
 import type { Range } from '../src/core/types';
 import { REPORT_DATA_ID, parseEmbeddedReport } from '../src/core/report/html';
-import { describeMessage, isFileReport, isHostMessage, type PageMessage } from '../src/protocol/messages';
+import { describeMessage, fromWire, isFileReport, isHostMessage, type PageMessage } from '../src/protocol/messages';
 import { registerComponents } from './components';
 import type { PlotHandle } from './plots';
 import { renderPage, type RenderContext } from './render';
@@ -121,7 +121,7 @@ function bootPanel(root: HTMLElement, status: HTMLElement): void {
   }
 
   globalThis.addEventListener('message', (event: MessageEvent) => {
-    const message: unknown = event.data;
+    const message: unknown = fromWire(event.data);
     if (!isHostMessage(message)) {
       log('warning', `panel ignored a malformed message: ${describeMessage(message)}`);
       return;

@@ -6,7 +6,7 @@
 import * as vscode from 'vscode';
 import { randomBytes } from 'node:crypto';
 import type { FileReport } from '../core/types';
-import { describeMessage, isPageMessage, type HostMessage, type PageMessage } from '../protocol/messages';
+import { describeMessage, isPageMessage, toWire, type HostMessage, type PageMessage } from '../protocol/messages';
 import { panelShellHtml } from '../../webview/shell';
 
 export interface PanelSource {
@@ -136,7 +136,7 @@ class PanelController {
 
   private post(message: HostMessage): void {
     if (this.disposed || !this.ready) return;  // the page asks with `ready` and gets the latest then
-    void this.panel.webview.postMessage(message).then(undefined, (err: unknown) =>
+    void this.panel.webview.postMessage(toWire(message)).then(undefined, (err: unknown) =>
       this.log.warn(`could not post ${message.type} to the panel: ${String(err)}`));
   }
 

@@ -177,3 +177,35 @@ function isCount(v: unknown): v is number { return typeof v === 'number' && Numb
 function oneOf(v: unknown, allowed: readonly string[]): boolean { return isString(v) && allowed.includes(v); }
 function optional(v: unknown, guard: (x: unknown) => boolean): boolean { return v === undefined || guard(v); }
 function arrayOf(v: unknown, guard: (x: unknown) => boolean): boolean { return Array.isArray(v) && v.every(guard); }
+
+// ───────────────────────────── transport ─────────────────────────────
+
+/** Tag for numbers JSON cannot carry (an ideal Rout is Infinity, an unmeasured figure NaN). */
+const WIRE_NUMBER = '$qpointNumber';
+
+/** VS Code sends webview messages as JSON, which turns NaN and ±Infinity into null and would make
+ *  a report fail its guard. The host tags them before posting; the page restores them with
+ *  `fromWire` before the guard runs. Plain values pass through both unchanged. */
+export function toWire(value: unknown): unknown {
+  if (typeof value === 'number') return Number.isFinite(value) ? value : { [WIRE_NUMBER]: String(value) };
+  if (Array.isArray(value)) return value.map(toWire);
+  if (isRecord(value)) {
+    const out: Record<string, unknown> = {};
+    for (const [k, v] of Object.entries(value)) out[k] = toWire(v);
+    return out;
+  }
+  return value;
+}
+
+export function fromWire(value: unknown): unknown {
+  if (Array.isArray(value)) return value.map(fromWire);
+  if (isRecord(value)) {
+    const keys = Object.keys(value);
+    const tag = value[WIRE_NUMBER];
+    if (keys.length === 1 && typeof tag === 'string' && ['NaN', 'Infinity', '-Infinity'].includes(tag)) return Number(tag);
+    const out: Record<string, unknown> = {};
+    for (const [k, v] of Object.entries(value)) out[k] = fromWire(v);
+    return out;
+  }
+  return value;
+}

@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import {
   describeMessage, isClearMessage, isFileReport, isHostMessage, isLogMessage, isPageMessage,
-  isReadyMessage, isReportMessage, isRevealMessage,
+  isReadyMessage, isReportMessage, isRevealMessage, fromWire, toWire,
 } from '../../src/protocol/messages';
 import { fixtureReport } from './fixtures';
 
@@ -118,5 +118,28 @@ describe('describeMessage', () => {
     cyclic.self = cyclic;
     expect(describeMessage(cyclic)).toBe('[object Object]');
     expect(describeMessage(undefined)).toBe('undefined');
+  });
+});
+
+describe('transport through JSON (VS Code posts webview messages as JSON)', () => {
+  it('keeps NaN and ±Infinity of a report, so the page guard still accepts it', () => {
+    const report = fixtureReport();
+    const first = report.mirrors[0]!;
+    report.mirrors[0] = { ...first, rout: Infinity, compliance: NaN, curve: [{ vout: 0, iout: -Infinity, rout: NaN, converged: false }] };
+    const message = { type: 'report' as const, uri: 'file:///a.bias.yaml', report, version: 2 };
+    const plain = JSON.parse(JSON.stringify(message)) as unknown;
+    expect(isHostMessage(plain)).toBe(false);            // what the page saw before tagging
+    const received = fromWire(JSON.parse(JSON.stringify(toWire(message))));
+    expect(isHostMessage(received)).toBe(true);
+    const m = (received as typeof message).report.mirrors[0]!;
+    expect(m.rout).toBe(Infinity);
+    expect(m.compliance).toBeNaN();
+    expect(m.curve![0]!.iout).toBe(-Infinity);
+    expect(received).toEqual(message);
+  });
+
+  it('leaves ordinary values and look-alike objects alone', () => {
+    const v = { a: 1, b: [2, 'x', null], c: { $qpointNumber: 'hello' } };
+    expect(fromWire(toWire(v))).toEqual(v);
   });
 });
