@@ -153,6 +153,12 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     const hoverText = await hover.first().innerText();
     expect(hoverText).toContain('VDSsat');
     expect(hoverText).toContain('confirm with transistor-level simulation');
+    // The hover fades in: wait until it is fully opaque so the screenshot is readable.
+    await page.waitForFunction(() => {
+      const el = document.querySelector('.monaco-hover');
+      return !!el && el.getAnimations({ subtree: true }).every((a) => a.playState !== 'running') &&
+        getComputedStyle(el).opacity === '1';
+    }, undefined, { timeout: 5_000 }).catch(() => undefined);
     await shot(page, '4-hover');
     await page.close();
   }, 120_000);

@@ -93,11 +93,19 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   return drafts;
 }
 
+/** The causes of a ratio error, largest first, so the one that matters leads the message;
+ *  causes that contribute nothing are left out (all three are shown when none stands out). */
 function causes(split: { vds: number; body: number; geometry: number } | undefined, ideal: number | undefined, required: number | undefined): string {
-  const parts: string[] = [];
-  if (split) parts.push(`VDS mismatch ${signedPercent(split.vds)}`, `body effect ${signedPercent(split.body)}`, `geometry ${signedPercent(split.geometry)}`);
+  const parts: { text: string; size: number }[] = [];
   if (required !== undefined && ideal !== undefined && Math.abs(ideal / required - 1) > 1e-9) {
-    parts.push(`sizing ${signedPercent(ideal / required - 1)} (geometric ratio ${ratioText(ideal)})`);
+    const e = ideal / required - 1;
+    parts.push({ text: `sizing ${signedPercent(e)} (geometric ratio ${ratioText(ideal)})`, size: Math.abs(e) });
   }
-  return parts.length > 0 ? `: ${parts.join(', ')}` : '';
+  if (split) {
+    const named: [string, number][] = [['VDS mismatch', split.vds], ['body effect', split.body], ['geometry', split.geometry]];
+    const shown = named.filter(([, v]) => Math.abs(v) >= 5e-5);
+    for (const [label, v] of shown.length > 0 ? shown : named) parts.push({ text: `${label} ${signedPercent(v)}`, size: Math.abs(v) });
+  }
+  parts.sort((a, b) => b.size - a.size);
+  return parts.length > 0 ? `: ${parts.map((p) => p.text).join(', ')}` : '';
 }
