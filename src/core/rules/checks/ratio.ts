@@ -69,8 +69,11 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
     }
   }
 
+  // A VDS mismatch already compensated by sizing (the required ratio is met within half the
+  // budget, e.g. an auto-sized or fixed output W) needs no warning: the designer has dealt with it.
+  const compensated = required !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
   const split = r.errorSplit;
-  if (split && Math.abs(split.vds) >= limit / 2 && setter && partner) {
+  if (split && !compensated && Math.abs(split.vds) >= limit / 2 && setter && partner) {
     const at = kindRange(rc.parsed, site.mirrorIndex);
     const kind = site.mirror.kind;
     const hint = kind === 'simple'
