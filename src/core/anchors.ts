@@ -10,21 +10,25 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
   const spec = parsed.spec;
   if (!spec) return [];
   const anchors: Anchor[] = [];
+  // Maps and sets, not searches: a 3 000-mirror file has ~12 000 anchors.
   const byPath = new Map(reports.map((r) => [pathKey(r.path), r]));
+  const firstByMirror = new Map<string, MirrorReport>();
+  for (const r of reports) if (!firstByMirror.has(r.mirror)) firstByMirror.set(r.mirror, r);
+  const devicePaths = new Set<string>();
   spec.mirrors.forEach((mirror, i) => {
     const mirrorPath: SpecPath = ['mirrors', i];
-    const first = reports.find((r) => r.mirror === mirror.name);
+    const first = firstByMirror.get(mirror.name);
     if (!first) return;
     const nameRange = parsed.source.value([...mirrorPath, 'name']);
     anchors.push({ kind: 'mirror', path: mirrorPath, range: nameRange ?? parsed.source.rangeFor(mirrorPath), report: first.name });
-    addDeviceAnchors(parsed, anchors, [...mirrorPath, 'devices'], first, mirror.kind === 'netlist');
+    addDeviceAnchors(parsed, anchors, devicePaths, [...mirrorPath, 'devices'], first, mirror.kind === 'netlist');
     if (mirror.kind === 'netlist') return;
     mirror.outputs.forEach((out) => {
       const report = byPath.get(pathKey(out.path));
       if (!report || out.path.length === 2) return;
       const range = parsed.source.value([...out.path, 'name']) ?? parsed.source.rangeFor(out.path);
       anchors.push({ kind: 'output', path: out.path, range, report: report.name });
-      addDeviceAnchors(parsed, anchors, [...out.path, 'devices'], report, false);
+      addDeviceAnchors(parsed, anchors, devicePaths, [...out.path, 'devices'], report, false);
     });
   });
   return anchors;
@@ -32,15 +36,18 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
 
 /** One anchor per device key written under `devices:` (inherited devices have no key). A bank
  *  output's report lists the shared reference and its own devices (`<output>.<role>`). */
-function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], devicesPath: SpecPath, report: MirrorReport, byName: boolean): void {
+function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], seen: Set<string>, devicesPath: SpecPath, report: MirrorReport, byName: boolean): void {
   const own = report.output
     ? report.devices.filter((d) => !d.name.includes('.') || d.name.startsWith(`${report.output}.`))
     : report.devices;
   for (const device of own) {
     const key = byName ? device.name : device.role;
     const path = [...devicesPath, key];
+    const id = pathKey(path);
+    if (seen.has(id)) continue;
     const range = parsed.source.key(path);
-    if (range && !anchors.some((a) => a.kind === 'device' && pathKey(a.path) === pathKey(path))) {
+    if (range) {
+      seen.add(id);
       anchors.push({ kind: 'device', path, range, report: report.name, device: device.name });
     }
   }

@@ -90,7 +90,9 @@ export function readDocument(text: string, lines: LineIndex): ReadDocument {
   const findings: Finding[] = [];
   let doc: Document;
   try {
-    doc = parseDocument(text, { uniqueKeys: false, merge: true, prettyErrors: false, strict: true, version: '1.2', resolveKnownTags: false });
+    // logLevel 'error': the core prints nothing (the yaml package would warn on stderr, e.g.
+    // about collection keys); what matters comes back as findings.
+    doc = parseDocument(text, { uniqueKeys: false, merge: true, prettyErrors: false, strict: true, version: '1.2', resolveKnownTags: false, logLevel: 'error' });
   } catch (e) {
     return { parsed: false, findings: [at(lines, 0, 0, 'yaml-syntax', `the file cannot be read as YAML: ${e instanceof Error ? e.message : String(e)}`)] };
   }

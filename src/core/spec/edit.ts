@@ -14,7 +14,7 @@ import { YamlSourceMap } from './source-map';
 /** The source map with its YAML tree: the parsed one, or a fresh parse of p.text. */
 function mapOf(p: ParsedSpec): YamlSourceMap | undefined {
   if (p.source instanceof YamlSourceMap && p.source.doc && p.source.lines.text === p.text) return p.source;
-  const doc = parseDocument(p.text, { uniqueKeys: false, merge: true });
+  const doc = parseDocument(p.text, { uniqueKeys: false, merge: true, logLevel: 'error' });
   return doc.errors.length ? undefined : new YamlSourceMap(doc, new LineIndex(p.text));
 }
 

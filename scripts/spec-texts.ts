@@ -1,0 +1,71 @@
+/**
+ * Spec texts for the benchmark and the fuzzer, on the invented "Halden 180" process: a clean
+ * bias distribution of any size, and the shipped example with classic faults written in.
+ */
+
+/** The process, supplies and limits of the example spec, ending with `mirrors:`. */
+export const HALDEN_HEADER = [
+  'format: 1',
+  'title: Kestrel bias benchmark (Halden 180)',
+  'process:',
+  '  model: square-law',
+  '  grid: 10n',
+  '  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85, n: 1.3, tcv: -1m, bex: -1.5, avt: 4e-9, abeta: 1e-8, lmin: 0.18u, wmin: 0.22u }',
+  '  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8, n: 1.35, tcv: -1.2m, bex: -1.3, avt: 5e-9, abeta: 1.2e-8, lmin: 0.18u, wmin: 0.22u }',
+  'supplies: { vdd: 1.8, vss: 0 }',
+  'limits: { margin: 100m, error: 1% }',
+  'params:',
+  '  wn: 4u',
+  '  wp: 16u',
+  '  lu: 1u',
+  'mirrors:',
+].join('\n');
+
+/**
+ * `n` mirrors that check clean (no error or warning): NMOS and PMOS cascodes, wide-swing
+ * cascodes and balanced Wilsons with their outputs where every device keeps its margin, in block
+ * and flow style, some through params. About 190 characters a mirror.
+ */
+export function cleanSpecText(n: number): string {
+  const lines: string[] = [HALDEN_HEADER];
+  for (let i = 0; i < n; i++) {
+    const iin = 8 + (i % 5) * 2;            // µA
+    const m = 1 + (i % 3);
+    switch (i % 4) {
+      case 0:
+        lines.push(`  - name: casn_${i}`, '    kind: cascode', '    type: nmos', `    input: ${iin}u`,
+          '    size: { w: wn, l: lu }', `    devices: { out: { m: ${m} }, outc: { m: ${m} } }`,
+          `    output: { v: ${(1.1 + 0.05 * (i % 5)).toFixed(2)} }`, `    require: { ratio: ${m} }`);
+        break;
+      case 1:
+        lines.push(`  - name: casp_${i}`, '    kind: cascode', '    type: pmos', `    input: ${iin}u`,
+          '    size:', '      w: wp', '      l: 1u', `    output: { v: ${(0.5 + 0.05 * (i % 4)).toFixed(2)} }   # to the load`);
+        break;
+      case 2:
+        lines.push(`  - { name: ws_${i}, kind: wide-swing, type: nmos, input: ${iin}u, size: { w: 2*wn, l: lu }, output: { v: ${(0.7 + 0.05 * (i % 3)).toFixed(2)} } }`);
+        break;
+      default:
+        lines.push(`  - name: wb_${i}`, '    kind: wilson-balanced', '    type: nmos', `    input: ${iin}u`,
+          '    size: { w: 8u, l: 2u }', `    output: { v: ${(1.1 + 0.1 * (i % 3)).toFixed(1)} }`);
+    }
+  }
+  return lines.join('\n') + '\n';
+}
+
+/**
+ * The example spec with four classic faults written in: a PMOS load whose output sits too near
+ * vdd, a Wilson left plain, a cascode tap asked for more Rout than it gives, a vbias too low.
+ * Each one gets findings with verified fixes.
+ */
+export function faultyExampleText(example: string): string {
+  const swap = (text: string, from: string, to: string): string => {
+    if (!text.includes(from)) throw new Error(`faultyExampleText: the example no longer holds ${JSON.stringify(from)}`);
+    return text.replace(from, to);
+  };
+  let t = example;
+  t = swap(t, 'output: { v: 1.05, range: [0.7, 1.4] }', 'output: { v: 1.62 }');
+  t = swap(t, 'kind: wilson-balanced', 'kind: wilson');
+  t = swap(t, 'require: { ratio: 4, rout: 20M, compliance: 0.8 }', 'require: { ratio: 4, rout: 200M, compliance: 0.8 }');
+  t = swap(t, 'vbias: 0.9', 'vbias: 0.62');
+  return t;
+}
