@@ -30,6 +30,17 @@ let browser: BrowserContext | undefined;
 let run: PreparedRun;
 const timings: Record<string, number> = {};
 
+/** Wait (with a deadline) until the page stops changing between two screenshots. */
+async function stableScreenshot(page: Page, deadlineMs: number): Promise<void> {
+  const end = Date.now() + deadlineMs;
+  let last = await page.screenshot();
+  while (Date.now() < end) {
+    const next = await page.screenshot();
+    if (next.equals(last)) return;
+    last = next;
+  }
+}
+
 function shot(page: Page, name: string): Promise<Buffer> {
   return page.screenshot({ path: join(OUT, `${name}.png`) });
 }
@@ -153,12 +164,8 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     const hoverText = await hover.first().innerText();
     expect(hoverText).toContain('VDSsat');
     expect(hoverText).toContain('confirm with transistor-level simulation');
-    // The hover fades in: wait until it is fully opaque so the screenshot is readable.
-    await page.waitForFunction(() => {
-      const el = document.querySelector('.monaco-hover');
-      return !!el && el.getAnimations({ subtree: true }).every((a) => a.playState !== 'running') &&
-        getComputedStyle(el).opacity === '1';
-    }, undefined, { timeout: 5_000 }).catch(() => undefined);
+    // The hover fades in: take the screenshot once two frames in a row are identical.
+    await stableScreenshot(page, 5_000);
     await shot(page, '4-hover');
     await page.close();
   }, 120_000);
