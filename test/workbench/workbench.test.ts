@@ -13,6 +13,7 @@
  * current), so after `input: 10u` → `15u` the panel must show Iin = 15 µA.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
@@ -28,6 +29,7 @@ const CACHE = join(ROOT, '.cache', 'code-server');
 let server: WorkbenchServer | undefined;
 let browser: BrowserContext | undefined;
 let run: PreparedRun;
+let codeServerEntry = '';
 const timings: Record<string, number> = {};
 
 /** Wait (with a deadline) until the page stops changing between two screenshots. */
@@ -83,6 +85,7 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     const install = await ensureCodeServer(CACHE, join(OUT, 'install.log'));
     timings.installMs = install.ms;
     timings.installed = install.installed ? 1 : 0;
+    codeServerEntry = install.entry;
     run = await prepareRun(ROOT, OUT);
     server = await startCodeServer({
       entry: install.entry,
@@ -219,4 +222,41 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     await shot(page, '6-panel-after-edit');
     await page.close();
   }, 120_000);
+
+  it('installs the packed vsix into a fresh workbench, where it works on the example', async () => {
+    // `npm run package` in small: vsce packs the built dist/ (allow-list .vscodeignore), then
+    // code-server installs the file exactly as a user's `--install-extension` would.
+    const vsix = join(OUT, 'qpoint.vsix');
+    const vsce = join(ROOT, 'node_modules', '@vscode', 'vsce', 'vsce');
+    const pack = spawnSync(process.execPath, [vsce, 'package', '--no-dependencies', '--out', vsix], { cwd: ROOT, encoding: 'utf8', input: '', timeout: 120_000 });
+    expect(pack.status, pack.stderr + pack.stdout).toBe(0);
+    const stateDir = join(OUT, 'vsix-state');
+    rmSync(stateDir, { recursive: true, force: true });
+    const xdg = (n: string) => { const d = join(stateDir, n); mkdirSync(d, { recursive: true }); return d; };
+    const install = spawnSync(process.execPath, [codeServerEntry, '--install-extension', vsix,
+      '--extensions-dir', xdg('extensions'), '--user-data-dir', xdg('data'), '--config', join(xdg('config'), 'config.yaml')],
+    { encoding: 'utf8', timeout: 180_000, env: { ...process.env, XDG_CONFIG_HOME: xdg('xdg-config'), XDG_DATA_HOME: xdg('xdg-data'), XDG_CACHE_HOME: xdg('xdg-cache') } });
+    expect(install.status, install.stderr + install.stdout).toBe(0);
+    expect(readdirSync(join(stateDir, 'extensions')).some((d) => d.startsWith('qpoint-dev.qpoint-'))).toBe(true);
+
+    const second = await startCodeServer({ entry: codeServerEntry, stateDir, logFile: join(OUT, 'code-server-vsix.log') });
+    const page = await browser!.newPage();
+    try {
+      const ws = freshWorkspace(ROOT, OUT, 'vsix-workspace');
+      await openWorkbench(page, second.url({ folder: ws.dir }));   // no development path: the installed copy
+      const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: 'faulty.bias.yaml' });
+      await row.waitFor({ state: 'visible', timeout: 30_000 });
+      await row.click();
+      const status = page.locator('.statusbar-item', { hasText: 'qpoint:' }).first();
+      await status.waitFor({ state: 'visible', timeout: 60_000 });
+      // The example's bank, with its one deliberate fault (3 parallel devices for ratio 4).
+      expect(await status.innerText()).toMatch(/1 error/);
+      await runCommand(page, 'View: Focus Problems');
+      await page.locator('.markers-panel .monaco-list-row', { hasText: 'ratio-error' }).first().waitFor({ state: 'visible', timeout: 15_000 });
+      await shot(page, '7-vsix-installed');
+    } finally {
+      await page.close();
+      await second.stop();
+    }
+  }, 300_000);
 });
