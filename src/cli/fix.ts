@@ -4,18 +4,15 @@ import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
 import { findingLine } from '../core/report/text';
-import { displayName, readSpec } from './io';
+import { readOne } from './io';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
 
 /** Apply every preferred fix, re-checking between rounds; print a diff unless --apply. */
 export function runFix(c: FixCommand): number {
-  const read = readSpec(c.file);
-  const name = displayName(c.file);
-  if (!read.ok) {
-    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
-    return 2;
-  }
+  const read = readOne(c.file);
+  if (!read) return 2;
+  const name = read.name;
   const before = analyzeText(read.text, name);
   if (!before.parsed) {
     for (const f of before.findings) process.stderr.write(findingLine(name, f) + '\n');

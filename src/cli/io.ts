@@ -17,3 +17,14 @@ export function readSpec(file: string): Read {
 export function displayName(file: string): string {
   return file === '-' ? '<stdin>' : file;
 }
+
+/** Read one spec for a single-file command; on failure say why on stderr (exit 2 follows). */
+export function readOne(file: string): { name: string; text: string } | undefined {
+  const read = readSpec(file);
+  const name = displayName(file);
+  if (!read.ok) {
+    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
+    return undefined;
+  }
+  return { name, text: read.text };
+}

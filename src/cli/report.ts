@@ -3,7 +3,7 @@ import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
-import { displayName, readSpec } from './io';
+import { readOne } from './io';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -13,12 +13,9 @@ export function webviewAssets(): { script: string } {
 }
 
 export function runReport(c: ReportCommand): number {
-  const read = readSpec(c.file);
-  const name = displayName(c.file);
-  if (!read.ok) {
-    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
-    return 2;
-  }
+  const read = readOne(c.file);
+  if (!read) return 2;
+  const name = read.name;
   const report = analyzeText(read.text, name, { curve: true });
   try {
     mkdirSync(dirname(c.html), { recursive: true });

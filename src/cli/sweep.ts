@@ -4,18 +4,15 @@ import { parseSpec } from '../core/spec/index';
 import { sweepVout } from '../core/analysis/index';
 import { formatSI } from '../core/units/format';
 import { findingLine } from '../core/report/text';
-import { displayName, readSpec } from './io';
+import { readOne } from './io';
 
 type SweepCommand = Extract<Command, { cmd: 'sweep' }>;
 
 /** Iout and Rout of one mirror output versus Vout. NAME is a mirror, or `bank.output`. */
 export function runSweep(c: SweepCommand): number {
-  const read = readSpec(c.file);
-  const name = displayName(c.file);
-  if (!read.ok) {
-    process.stderr.write(`qpoint: cannot read ${name}: ${read.reason}\n`);
-    return 2;
-  }
+  const read = readOne(c.file);
+  if (!read) return 2;
+  const name = read.name;
   const parsed = parseSpec(read.text, name);
   if (!parsed.spec) {
     for (const f of parsed.findings) process.stderr.write(findingLine(name, f) + '\n');
