@@ -102,6 +102,9 @@ function bootPanel(root: HTMLElement, status: HTMLElement): void {
     onReveal(range: Range) {
       if (state.uri) api?.postMessage({ type: 'reveal', uri: state.uri, range });
     },
+    onRunMonteCarlo() {
+      if (state.uri) api?.postMessage({ type: 'runMonteCarlo', uri: state.uri });
+    },
   };
 
   /** `rebuild` after a theme switch: canvas colours are fixed when a plot is built. */

@@ -16,6 +16,8 @@ export interface RenderContext {
   mode: 'panel' | 'report';
   onSelect(name: string): void;
   onReveal(range: Range): void;
+  /** Panel only: ask the host for a Monte Carlo run of the shown spec. */
+  onRunMonteCarlo?(): void;
 }
 
 /** Replace `root`'s content. `previous` are the plots of the last render: a plot of the same
@@ -173,9 +175,14 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
   body.push(section(`plots-${id}`, 'Plots', plotList.length > 0
     ? h('div', { class: 'plots' }, ...plotList.map((p) => p.element))
     : h('p', { class: 'note' }, 'No Iout/Rout sweep in this report.')));
+  const runMc = ctx.mode === 'panel' && ctx.onRunMonteCarlo && m.sigma !== undefined
+    ? button(m.mc ? 'Run Monte Carlo again' : 'Run Monte Carlo', () => ctx.onRunMonteCarlo?.(), { appearance: 'secondary', 'data-key': `mc-run:${m.name}` })
+    : undefined;
   if (m.mc) {
     const hist = plots.get('mc', m);
-    body.push(section(`mc-${id}`, 'Monte Carlo', figures(monteCarloFigures(m), { 'data-figures': 'mc' }), hist ? h('div', { class: 'plots' }, hist.element) : undefined));
+    body.push(section(`mc-${id}`, 'Monte Carlo', figures(monteCarloFigures(m), { 'data-figures': 'mc' }), hist ? h('div', { class: 'plots' }, hist.element) : undefined, runMc));
+  } else if (runMc) {
+    body.push(section(`mc-${id}`, 'Monte Carlo', h('p', { class: 'note' }, 'Not run yet: samples every output\'s mismatch with the full nonlinear solve (samples and seed from the settings).'), runMc));
   }
   if (m.corners && m.corners.length > 0) {
     body.push(section(`corners-${id}`, 'Corners', h('div', { class: 'scroll-x' }, table(`Corners of ${m.name}`, CORNER_COLUMNS,

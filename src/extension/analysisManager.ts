@@ -2,8 +2,10 @@
  * Keeps every open bias spec analysed: at once on open, debounced on change (a newer edit
  * supersedes an older request), diagnostics cleared on close. While the bias panel is open, the
  * active spec is analysed with its Iout/Vout curve for the plots (a sweep costs about as much
- * as the rest of the analysis, so it is skipped when nobody looks). Other parts (panel, status
- * bar, CodeLens) listen to `onDidUpdate`.
+ * as the rest of the analysis, so it is skipped when nobody looks). Every analysis solves the
+ * spec's `corners:` unless `qpoint.corners.enabled` is off. A Monte Carlo report (`adopt`) stays
+ * the document's report until the next edit or an analysis setting changes. Other parts (panel,
+ * status bar, CodeLens) listen to `onDidUpdate`.
  */
 import * as vscode from 'vscode';
 import type { AnalyzeOptions } from '../core/analyze';
@@ -23,7 +25,13 @@ interface Entry {
   /** Document version the report belongs to. */
   reportVersion?: number;
   hasCurve: boolean;
+  /** Version whose report came from a Monte Carlo run: a plain analysis of the same version
+   *  (a race, a panel opening) must not replace it. */
+  pinnedVersion?: number;
 }
+
+/** Settings that change what the core computes: a change re-analyses every open spec. */
+const ANALYSIS_SETTINGS = ['qpoint.limits', 'qpoint.corners'];
 
 export class AnalysisManager implements vscode.Disposable {
   private readonly entries = new Map<string, Entry>();
@@ -50,7 +58,7 @@ export class AnalysisManager implements vscode.Disposable {
       vscode.workspace.onDidCloseTextDocument((d) => this.close(d)),
       vscode.window.onDidChangeActiveTextEditor((e) => this.activeChanged(e)),
       vscode.workspace.onDidChangeConfiguration((e) => {
-        if (e.affectsConfiguration('qpoint')) this.reanalyzeAll();
+        if (ANALYSIS_SETTINGS.some((k) => e.affectsConfiguration(k))) this.reanalyzeAll();
       }),
       vscode.window.tabGroups.onDidChangeTabs(() => this.panelMayHaveOpened()),
       // A workspace check leaves diagnostics on files that are not open: drop them with the file.
@@ -104,9 +112,21 @@ export class AnalysisManager implements vscode.Disposable {
     return e?.report && e.reportVersion === doc.version ? e.report : undefined;
   }
 
-  /** Options for the core from the settings (the fallback margin). */
+  /** Options for the core from the settings (the fallback margin, corners on or off). */
   optionsFor(uri: vscode.Uri, curve: boolean): AnalyzeOptions {
-    return { curve, limitsDefaults: { margin: readSettings(uri).margin } };
+    const s = readSettings(uri);
+    return { curve, corners: s.corners, limitsDefaults: { margin: s.margin } };
+  }
+
+  /** A report computed on purpose for exactly `version` of `doc` (Monte Carlo): it becomes the
+   *  document's report — diagnostics, panel, hover — until the next edit. False when the
+   *  document changed or closed meanwhile. */
+  adopt(doc: vscode.TextDocument, version: number, report: FileReport): boolean {
+    const e = this.entries.get(doc.uri.toString());
+    if (!e || doc.isClosed || doc.version !== version) return false;
+    e.pinnedVersion = version;
+    this.publish(doc.uri, e, report, version, report.mirrors.some((m) => m.curve !== undefined));
+    return true;
   }
 
   private track(doc: vscode.TextDocument): Entry {
@@ -180,7 +200,9 @@ export class AnalysisManager implements vscode.Disposable {
   private reanalyzeAll(): void {
     for (const doc of vscode.workspace.textDocuments) {
       const e = this.entries.get(doc.uri.toString());
-      if (e) void this.run(doc, e, this.wantsCurve(doc));
+      if (!e) continue;
+      e.pinnedVersion = undefined;  // the settings changed what a report means
+      void this.run(doc, e, this.wantsCurve(doc));
     }
   }
 
@@ -200,13 +222,20 @@ export class AnalysisManager implements vscode.Disposable {
     }
     // Superseded by a newer request, or the document was closed meanwhile.
     if (!report || this.entries.get(doc.uri.toString()) !== e) return undefined;
+    // A Monte Carlo report of this text (or newer) stays: it holds everything this one does.
+    if (e.pinnedVersion !== undefined && e.pinnedVersion >= version) return e.report;
+    e.pinnedVersion = undefined;
+    this.publish(doc.uri, e, report, version, curve);
+    return report;
+  }
+
+  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean): void {
     e.report = report;
     e.reportVersion = version;
     e.hasCurve = curve;
-    this.diagnostics.set(doc.uri, toDiagnostics(report, doc.uri));
+    this.diagnostics.set(uri, toDiagnostics(report, uri));
     this.count++;
-    this.emitter.fire({ uri: doc.uri, report, version });
-    return report;
+    this.emitter.fire({ uri, report, version });
   }
 
   dispose(): void {

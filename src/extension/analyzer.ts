@@ -23,11 +23,12 @@ interface Inflight {
   job: Job;
   resolve(r: WorkerResponse | undefined): void;
   reject(e: Error): void;
-  timer: NodeJS.Timeout;
+  timer: NodeJS.Timeout | undefined;
 }
 
 export interface WorkerAnalyzerOptions {
-  /** A job running longer than this is treated as a hung worker (ms). */
+  /** A job running longer than this is treated as a hung worker (ms); 0: no limit (a job the
+   *  user started and can cancel, such as Monte Carlo). */
   jobTimeoutMs?: number;
   log?: (message: string) => void;
 }
@@ -66,7 +67,7 @@ export class WorkerAnalyzer implements Analyzer {
     this.latest.set(key, seq);
     const worker = this.ensureWorker();
     return new Promise<WorkerResponse | undefined>((resolve, reject) => {
-      const timer = setTimeout(() => this.hung(seq), this.jobTimeoutMs);
+      const timer = this.jobTimeoutMs > 0 ? setTimeout(() => this.hung(seq), this.jobTimeoutMs) : undefined;
       this.inflight.set(seq, { key, job, resolve, reject, timer });
       const req: WorkerRequest = { job, seq, key, text, file, opts };
       worker.postMessage(req);
@@ -129,6 +130,24 @@ export class WorkerAnalyzer implements Analyzer {
       this.forget(seq, f);
       f.reject(new Error(message));
     }
+  }
+
+  /** True while a job of `key` (any key when omitted) is waiting for its answer. */
+  busy(key?: string): boolean {
+    return [...this.inflight.values()].some((f) => key === undefined || f.key === key);
+  }
+
+  /** Stops the job of `key` at once by terminating the worker thread: a job inside the worker
+   *  cannot be interrupted otherwise. Every job in that thread resolves `undefined`; the next
+   *  request starts a fresh thread. Resolves, once the thread has exited, to whether a job was
+   *  stopped. */
+  async cancel(key: string): Promise<boolean> {
+    const w = this.worker;
+    if (!w || !this.busy(key)) return false;
+    this.worker = undefined;
+    for (const [seq, f] of [...this.inflight]) { this.forget(seq, f); f.resolve(undefined); }
+    await w.terminate();
+    return true;
   }
 
   dispose(): void {

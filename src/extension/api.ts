@@ -14,4 +14,6 @@ export interface QpointApi {
   lastAnalysisMs(): number;
   /** Fires when a report reaches the editor. */
   readonly onDidUpdate: vscode.Event<ReportUpdate>;
+  /** True while a Monte Carlo thread computes; false again once a cancelled one has exited. */
+  monteCarloBusy(): boolean;
 }

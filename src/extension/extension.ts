@@ -7,6 +7,7 @@ import { AnalysisManager } from './analysisManager';
 import { WorkerAnalyzer } from './analyzer';
 import type { QpointApi } from './api';
 import { checkWorkspace, exportReport, fixAllInEditor, type CommandContext } from './commands';
+import { MonteCarloCommand, RUN_MONTE_CARLO_COMMAND } from './monteCarlo';
 import { registerPanel } from './panel';
 import { OPEN_PANEL_COMMAND, registerProviders } from './providers';
 import { registerStatusBar } from './statusBar';
@@ -18,7 +19,13 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
   const analyzer = new WorkerAnalyzer(vscode.Uri.joinPath(context.extensionUri, 'dist', 'worker.js').fsPath,
     { log: (m) => log.warn(m) });
   const manager = new AnalysisManager(analyzer, diagnostics, log);
-  context.subscriptions.push(log, diagnostics, { dispose: () => analyzer.dispose() }, manager);
+  // Monte Carlo gets a thread of its own: no job time limit, and cancelling it (terminating
+  // the thread) leaves the live analysis untouched.
+  const mcAnalyzer = new WorkerAnalyzer(vscode.Uri.joinPath(context.extensionUri, 'dist', 'worker.js').fsPath,
+    { jobTimeoutMs: 0, log: (m) => log.warn(m) });
+  const monteCarlo = new MonteCarloCommand({ manager, analyzer: mcAnalyzer, log });
+  context.subscriptions.push(log, diagnostics, { dispose: () => analyzer.dispose() }, manager,
+    monteCarlo, { dispose: () => mcAnalyzer.dispose() });
 
   const panel = registerPanel(context, manager);
   const c: CommandContext = { extensionUri: context.extensionUri, manager, analyzer, diagnostics, log };
@@ -26,6 +33,7 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
     ...registerProviders(manager, analyzer),
     ...registerStatusBar(manager),
     vscode.commands.registerCommand(OPEN_PANEL_COMMAND, () => panel.show()),
+    vscode.commands.registerCommand(RUN_MONTE_CARLO_COMMAND, (arg?: unknown) => monteCarlo.run(arg)),
     vscode.commands.registerCommand('qpoint.checkWorkspace', () => checkWorkspace(c)),
     vscode.commands.registerCommand('qpoint.fixAll', () => fixAllInEditor(c)),
     // Menus pass the editor's resource Uri as first argument: only `{ target: Uri }` (scripts,
@@ -42,6 +50,7 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
     activationMs,
     lastAnalysisMs: () => analyzer.lastJobMs,
     onDidUpdate: manager.onDidUpdate,
+    monteCarloBusy: () => monteCarlo.busy(),
   };
 }
 

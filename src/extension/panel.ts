@@ -8,6 +8,7 @@ import { randomBytes } from 'node:crypto';
 import type { FileReport } from '../core/types';
 import { describeMessage, isPageMessage, toWire, type HostMessage, type PageMessage } from '../protocol/messages';
 import { panelShellHtml } from '../../webview/shell';
+import { RUN_MONTE_CARLO_COMMAND } from './monteCarlo';
 
 export interface PanelSource {
   current(): { uri: vscode.Uri; report: FileReport } | undefined;
@@ -162,6 +163,14 @@ class PanelController {
         return;
       case 'log':
         this.log[message.level === 'warning' ? 'warn' : message.level](message.message);
+        return;
+      case 'runMonteCarlo':
+        // Only the spec this panel shows, as for reveal.
+        if (message.uri !== this.shownUri) {
+          this.log.warn(`ignored a Monte Carlo request for ${message.uri}: the panel shows ${this.shownUri ?? 'nothing'}`);
+          return;
+        }
+        void vscode.commands.executeCommand(RUN_MONTE_CARLO_COMMAND, { uri: vscode.Uri.parse(message.uri, true) });
         return;
     }
   }

@@ -30,7 +30,10 @@ export interface RevealMessage { type: 'reveal'; uri: string; range: Range }
 /** Something went wrong inside the page; the host writes it to its log. */
 export interface LogMessage { type: 'log'; level: 'error' | 'warning' | 'info'; message: string }
 
-export type PageMessage = ReadyMessage | RevealMessage | LogMessage;
+/** The designer asked for a Monte Carlo run of `uri` (the spec the panel shows). */
+export interface RunMonteCarloMessage { type: 'runMonteCarlo'; uri: string }
+
+export type PageMessage = ReadyMessage | RevealMessage | LogMessage | RunMonteCarloMessage;
 
 // ───────────────────────────── guards: messages ─────────────────────────────
 
@@ -61,8 +64,12 @@ export function isLogMessage(m: unknown): m is LogMessage {
     isString(m.message);
 }
 
+export function isRunMonteCarloMessage(m: unknown): m is RunMonteCarloMessage {
+  return isRecord(m) && m.type === 'runMonteCarlo' && isString(m.uri);
+}
+
 export function isPageMessage(m: unknown): m is PageMessage {
-  return isReadyMessage(m) || isRevealMessage(m) || isLogMessage(m);
+  return isReadyMessage(m) || isRevealMessage(m) || isLogMessage(m) || isRunMonteCarloMessage(m);
 }
 
 /** A short, bounded description of a rejected message for the host's log. */

@@ -21,6 +21,7 @@ import { ensureCodeServer } from '../../scripts/workbench/install';
 import { startCodeServer, type WorkbenchServer } from '../../scripts/workbench/server';
 import { launchBrowser } from '../../scripts/workbench/browser';
 import { freshWorkspace, prepareRun, type PreparedRun } from '../../scripts/workbench/prepare';
+import { analyzeText } from '../../src/core/analyze';
 
 const ROOT = resolve(__dirname, '../..');
 const OUT = join(ROOT, 'test-output', 'workbench');
@@ -220,8 +221,40 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     }
     timings.uiEditToPanelMs = Date.now() - t0;
     await shot(page, '6-panel-after-edit');
+
+    // Variation: the live report carries the spec's corners (qpoint.corners.enabled is on by
+    // default), so the selected output shows its corner table, one row per corner of the spec.
+    const cornerRows = frame.locator('section[id^="corners-"] table.corners tbody tr');
+    try {
+      await cornerRows.first().waitFor({ state: 'visible', timeout: 20_000 });
+    } catch (e) {
+      await shot(page, 'fail-panel-corners');
+      throw new Error(`the panel shows no corner table: ${(e as Error).message}${panelWarnings()}`);
+    }
+    expect((await cornerRows.allInnerTexts()).map((r) => r.trim().split(/\s+/)[0])).toEqual(['ss', 'ff']);
+    // Monte Carlo from the palette (samples and seed from the settings), with the spec's editor
+    // still focused from the edit: the histogram appears.
+    await runCommand(page, 'qpoint: Run Monte Carlo Mismatch');
+    const histogram = frame.locator('section[id^="mc-"] canvas');
+    const t1 = Date.now();
+    try {
+      await histogram.first().waitFor({ state: 'visible', timeout: 90_000 });
+    } catch (e) {
+      await shot(page, 'fail-panel-mc');
+      throw new Error(`the panel shows no Monte Carlo histogram: ${(e as Error).message}${panelWarnings()}`);
+    }
+    timings.uiMonteCarloMs = Date.now() - t1;
+    expect(await frame.locator('[data-figures="mc"] [data-figure="samples"] .value').innerText()).toMatch(/^10\s?000$/);
+    await frame.locator('section[id^="mc-"]').first().scrollIntoViewIfNeeded();
+    await stableScreenshot(page, 5_000);
+    await shot(page, '8-panel-variation');
+    // The panel's own button asks the host for the same run (a page → host message).
+    const version = Number(await body.getAttribute('data-qpoint-version'));
+    await frame.locator('vscode-button', { hasText: 'Run Monte Carlo again' }).first().click();
+    await expect.poll(async () => Number(await body.getAttribute('data-qpoint-version')), { timeout: 90_000 }).toBeGreaterThan(version);
+    await histogram.first().waitFor({ state: 'visible', timeout: 10_000 });
     await page.close();
-  }, 120_000);
+  }, 240_000);
 
   it('installs the packed vsix into a fresh workbench, where it works on the example', async () => {
     // `npm run package` in small: vsce packs the built dist/ (allow-list .vscodeignore), then
@@ -249,8 +282,12 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
       await row.click();
       const status = page.locator('.statusbar-item', { hasText: 'qpoint:' }).first();
       await status.waitFor({ state: 'visible', timeout: 60_000 });
-      // The example's bank, with its one deliberate fault (3 parallel devices for ratio 4).
-      expect(await status.innerText()).toMatch(/1 error/);
+      // The example's bank, with its one deliberate fault (3 parallel devices for ratio 4), and
+      // the errors of its corners: as many as the engine finds on the same text.
+      const text = readFileSync(join(ws.dir, 'faulty.bias.yaml'), 'utf8');
+      const errors = analyzeText(text, 'faulty.bias.yaml', { corners: true }).findings.filter((f) => f.severity === 'error');
+      expect(errors.filter((f) => !f.code.startsWith('corner-')).map((f) => f.code)).toEqual(['ratio-error']);
+      await expect.poll(() => status.innerText(), { timeout: 30_000 }).toMatch(new RegExp(`\\b${errors.length} errors?\\b`));
       await runCommand(page, 'View: Focus Problems');
       await page.locator('.markers-panel .monaco-list-row', { hasText: 'ratio-error' }).first().waitFor({ state: 'visible', timeout: 15_000 });
       await shot(page, '7-vsix-installed');

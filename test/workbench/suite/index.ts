@@ -16,6 +16,8 @@ import { writeFileSync } from 'node:fs';
 import type { QpointApi } from '../../../src/extension/api';
 import { CAUTION_TEXT } from '../../../src/core/report/html';
 import { formatSI } from '../../../src/core/units/format';
+import { analyzeText } from '../../../src/core/analyze';
+import type { MonteCarloSummary } from '../../../src/extension/monteCarlo';
 
 const EXTENSION_ID = 'qpoint-dev.qpoint';
 const FINDINGS_DOC = 'https://github.com/qpoint-dev/qpoint/blob/main/docs/findings.md';
@@ -168,8 +170,10 @@ async function suite(folder: vscode.Uri): Promise<void> {
     const requireLine = positionOf(doc, /require: \{ ratio: 4, rout: 20M/, 'ratio: 4').line;
     assert(d.relatedInformation!.some((r) => r.location.uri.toString() === faultyUri.toString() && r.location.range.start.line === requireLine),
       'related information does not point at require.ratio');
-    // The clean example's other findings are warnings only (no second error).
-    assert(qpointDiagnostics(faultyUri).filter((x) => x.severity === vscode.DiagnosticSeverity.Error).length === 1, 'more than the one deliberate error');
+    // The clean example's other nominal findings are warnings only (no second error). Its
+    // corners (ss, ff) fail some checks of their own: those are the engine's, tested below.
+    const nominalErrors = qpointDiagnostics(faultyUri).filter((x) => x.severity === vscode.DiagnosticSeverity.Error && !codeOf(x)?.startsWith('corner-'));
+    assert(nominalErrors.length === 1, `more than the one deliberate nominal error: ${nominalErrors.map(codeOf).join(', ')}`);
   });
 
   await check('quick fix through WorkspaceEdit clears its diagnostic and keeps comments', async () => {
@@ -296,6 +300,8 @@ async function suite(folder: vscode.Uri): Promise<void> {
     [vscode.window.tabGroups.onDidChangeTabs]);
   });
 
+  await variationChecks(folder, qp, doc);
+
   await check('workspace check finds every spec, also unopened ones (JSON too)', async () => {
     const summary = await vscode.commands.executeCommand<{ files: number; checked: number; errors: number; cancelled: boolean }>('qpoint.checkWorkspace');
     const expected = Number(process.env.QPOINT_EXPECT_SPECS ?? NaN);
@@ -335,5 +341,119 @@ async function suite(folder: vscode.Uri): Promise<void> {
     await waitFor('close-me to close', () => vscode.workspace.textDocuments.every((d) => d.uri.toString() !== uri.toString()), 15_000,
       [vscode.workspace.onDidCloseTextDocument]);
     assert(qpointDiagnostics(uri).length === 0, `diagnostics left after close: ${qpointDiagnostics(uri).map(codeOf).join(', ')}`);
+  });
+}
+
+/** VOV of the D diode (square law with length modulation, design §3) at kp·scale, carrying
+ *  100 µA: solves 100 µA = β/2·VOV²·(1 + λ·(VT0 + VOV)) by bisection (the diode has VDS = VGS). */
+function dDiodeVov(kpScale: number): number {
+  const beta = 134e-6 * kpScale * 10;
+  const id = (vov: number) => beta / 2 * vov * vov * (1 + 0.1 * (0.7 + vov));
+  let lo = 0, hi = 2;
+  for (let i = 0; i < 60; i++) {
+    const mid = (lo + hi) / 2;
+    if (id(mid) < 100e-6) lo = mid; else hi = mid;
+  }
+  return (lo + hi) / 2;
+}
+
+/** Corners in the live analysis and the Monte Carlo command (corner-check.bias.yaml). */
+async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode.TextDocument): Promise<void> {
+  const uri = vscode.Uri.joinPath(folder, 'corner-check.bias.yaml');
+  const isCornerDiag = (x: vscode.Diagnostic) => codeOf(x) === 'corner-not-saturated';
+  let doc: vscode.TextDocument | undefined;
+
+  await check('a failing corner shows as a diagnostic while typing (qpoint.corners.enabled)', async () => {
+    doc = await vscode.workspace.openTextDocument(uri);
+    await vscode.window.showTextDocument(doc);
+    const d = await waitFor('corner-not-saturated on corner-check', () => qpointDiagnostics(uri).find(isCornerDiag));
+    // The engine on the same text and options gives the message the editor must show.
+    const expected = analyzeText(doc.getText(), vscode.workspace.asRelativePath(uri, false), { corners: true, limitsDefaults: { margin: 0.1 } })
+      .findings.find((f) => f.code === 'corner-not-saturated');
+    assert(expected, 'the engine finds no corner-not-saturated on the fixture');
+    assert(d.message === expected.message, `message "${d.message}", engine "${expected.message}"`);
+    assert(d.severity === vscode.DiagnosticSeverity.Error, `severity ${d.severity}`);
+    // Its range is the device key that must change: `out` on the devices line.
+    assert(doc.getText(d.range) === 'out', `range covers "${doc.getText(d.range)}"`);
+    assert(d.range.start.line === positionOf(doc, /^\s+out: \{ m: 1 \}/, 'out').line, 'not on the out device');
+    // Derivation: at the slow corner kp is ×0.6, so VOV = dDiodeVov(0.6) ≈ 0.474 V and `out`
+    // held at 0.45 V has margin 0.45 V − VOV (square law; ref is a diode, no gate current).
+    const margin = 0.45 - dDiodeVov(0.6);
+    const shown = /margin −([\d.]+) mV/.exec(d.message);
+    assert(shown, `no margin in "${d.message}"`);
+    near(-Number(shown[1]) * 1e-3, margin, 0.02, 'corner margin (square law)');
+    const report = qp.lastReport(uri);
+    assert(report?.mirrors[0]?.corners?.length === 1 && report.mirrors[0].corners[0].name === 'slow', 'no corner results in the report');
+    metrics.cornerMarginMv = Math.round(margin * 1e4) / 10;
+  });
+
+  await check('turning qpoint.corners.enabled off drops the corner findings, on brings them back', async () => {
+    const config = vscode.workspace.getConfiguration('qpoint', uri);
+    try {
+      await config.update('corners.enabled', false, vscode.ConfigurationTarget.Workspace);
+      await waitFor('corner findings to clear', () => qpointDiagnostics(uri).length > 0 && !qpointDiagnostics(uri).some(isCornerDiag)
+        && qp.lastReport(uri)?.mirrors[0]?.corners === undefined, 20_000, [vscode.languages.onDidChangeDiagnostics, qp.onDidUpdate]);
+    } finally {
+      await config.update('corners.enabled', undefined, vscode.ConfigurationTarget.Workspace);
+    }
+    await waitFor('corner findings to return', () => qpointDiagnostics(uri).some(isCornerDiag), 20_000);
+  });
+
+  await check('qpoint.runMonteCarlo: mc per output, sigma within 15 % of Pelgrom, same seed same mean, dropped on edit', async () => {
+    assert(doc, 'corner-check not open');
+    const d = doc;
+    await vscode.window.showTextDocument(d);
+    const run = async () => {
+      const summary = await vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri, samples: 4000, seed: 5 });
+      assert(summary && !summary.cancelled && summary.adopted, `summary ${JSON.stringify(summary)}`);
+      const m = qp.lastReport(uri)?.mirrors[0];
+      assert(m?.mc && m.sigma !== undefined, 'the report has no mc after the command');
+      return { m, mc: m.mc, ms: summary.ms };
+    };
+    const first = await run();
+    assert(first.mc.samples === 4000 && first.mc.seed === 5, `samples ${first.mc.samples}, seed ${first.mc.seed}`);
+    // Pelgrom/Kinget linearized sigma against the sampled one (mc-nonlinear threshold, 15 %).
+    near(first.mc.sigma, first.m.sigma!, 0.15, 'Monte Carlo sigma against the linearized sigma');
+    const binned = first.mc.histogram?.counts.reduce((a, b) => a + b, 0) ?? 0;
+    assert(binned > 0.9 * 4000 && binned <= 4000, `histogram holds ${binned} of 4000 samples`);
+    // The Monte Carlo report still carries the corners and their diagnostic.
+    assert(first.m.corners?.length === 1 && qpointDiagnostics(uri).some(isCornerDiag), 'corners lost in the Monte Carlo report');
+    const second = await run();
+    assert(second.mc.mean === first.mc.mean, `same seed, different mean: ${second.mc.mean} vs ${first.mc.mean}`);
+    metrics.monteCarlo4000Ms = second.ms;
+    // The next edit hands over to the plain live analysis.
+    const editor = await vscode.window.showTextDocument(d);
+    const line = positionOf(d, /^title: Corner check/, 'check').line;
+    const version = d.version;
+    await setText(editor, new vscode.Range(line, d.lineAt(line).text.length, line, d.lineAt(line).text.length), ' ');
+    await waitFor('the live report without mc after an edit', () => {
+      const r = qp.lastReport(uri);
+      return d.version > version && r && r.mirrors[0] && r.mirrors[0].mc === undefined && r.mirrors[0].corners?.length === 1;
+    }, 20_000, [qp.onDidUpdate]);
+  });
+
+  await check('cancelling a 10⁶-sample run stops its thread within seconds; a newer run supersedes an older one', async () => {
+    await vscode.window.showTextDocument(faulty);
+    const cts = new vscode.CancellationTokenSource();
+    // 10⁶ samples × 9 outputs of the example: many seconds of work.
+    const long = vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri: faulty.uri, samples: 1_000_000, seed: 1, token: cts.token });
+    await waitFor('the Monte Carlo thread to start', () => qp.monteCarloBusy(), 10_000, []);
+    const t0 = Date.now();
+    cts.cancel();
+    const summary = await long;
+    const stopMs = Date.now() - t0;
+    assert(summary?.cancelled === true && !summary.adopted, `summary ${JSON.stringify(summary)}`);
+    assert(!qp.monteCarloBusy(), 'the Monte Carlo thread still computes');
+    assert(stopMs < 3_000, `stopping took ${stopMs} ms`);
+    assert(qp.lastReport(faulty.uri)?.mirrors.every((m) => m.mc === undefined), 'a cancelled run left mc in the report');
+    metrics.monteCarloCancelMs = stopMs;
+    cts.dispose();
+
+    const older = vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri: faulty.uri, samples: 1_000_000, seed: 1 });
+    await waitFor('the older run to start', () => qp.monteCarloBusy(), 10_000, []);
+    const newer = await vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri, samples: 500, seed: 2 });
+    const old = await older;
+    assert(old?.cancelled === true, `older run ${JSON.stringify(old)}`);
+    assert(newer?.adopted === true && qp.lastReport(uri)?.mirrors[0]?.mc?.samples === 500, `newer run ${JSON.stringify(newer)}`);
   });
 }
