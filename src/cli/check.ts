@@ -11,7 +11,7 @@ type CheckCommand = Extract<Command, { cmd: 'check' }>;
 
 /** Check every file; one unreadable file never stops the rest. */
 export function runCheck(c: CheckCommand): number {
-  const opts: AnalyzeOptions = { ...(c.corners ? { corners: true } : {}), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) };
+  const opts: AnalyzeOptions = { anchors: false, ...(c.corners ? { corners: true } : {}), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) };
   const reports: FileReport[] = [];
   let unreadable = false;
   for (const file of c.files) {

@@ -22,6 +22,8 @@ export interface AnalyzeOptions {
   mc?: { samples: number; seed: number };
   /** Fallbacks for limits the spec leaves unset (the editor's `qpoint.limits.margin`). */
   limitsDefaults?: { margin?: number };
+  /** Source anchors for hover, CodeLens and the panel (default true; the CLI's check needs none). */
+  anchors?: boolean;
 }
 
 export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}): FileReport {
@@ -42,7 +44,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...runRules(withSpec, mirrors),
       ...variationFindings(withSpec, spec, mirrors, sized, file),
     ];
-    const anchors: Anchor[] = buildAnchors(withSpec, mirrors);
+    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
     return { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.

@@ -24,10 +24,13 @@ export const DEFAULTS = {
 /** Limits that keep reading an untrusted spec fast and bounded (design §2, spec findings). */
 export const SPEC_LIMITS = {
   /**
-   * characters (512 KiB, ~3 500 mirrors); larger files get a `too-large` finding instead of a
-   * parse. The whole analysis of a clean file this size takes ~1 s here (YAML reads ~0.3 µs/char).
+   * characters (512 KiB, ~3 500 block-style or ~5 000 one-line mirrors); larger files get a
+   * `too-large` finding instead of a parse. Reading a file this size takes ~0.15–0.35 s here and
+   * its whole analysis ~0.4–0.6 s (scripts/bench.ts prints both).
    */
   maxChars: 524_288,
+  /** `[` / `{` nesting refused before parsing (a spec needs ~4; the YAML parser gives up near 900, slowly). */
+  maxFlowDepth: 500,
   /** aliases expanded when converting the YAML to data (guards against alias bombs). */
   maxAliasCount: 1000,
   /** characters in one expression. */

@@ -1,23 +1,62 @@
 /** Replacements on the original text plus key insertions, composed into edits on the original. */
+import { parseDocument } from 'yaml';
 import type { SpecPath, TextEdit } from '../types';
-import { parseSpec, type ParsedSpec } from '../spec/index';
-import { insertKeyEdits } from '../spec/edit';
+import type { ParsedSpec } from '../spec/index';
+import { YAML_OPTIONS } from '../spec/document';
+import { insertKeyEdits, insertStyle, type InsertStyle } from '../spec/edit';
+import type { MirrorFragments } from '../spec/fragment';
+import { LineIndex } from '../spec/positions';
+import { YamlSourceMap } from '../spec/source-map';
 import { EditLog } from './compose';
 
 export interface KeyInsert { parent: SpecPath; key: string; text: string }
 
-export function buildEdits(parsed: ParsedSpec, replacements: TextEdit[], inserts: KeyInsert[], file?: string): TextEdit[] | undefined {
+/**
+ * `frags`: insert into a mirror by re-reading that mirror's lines alone (spec/fragment.ts) rather
+ * than the whole text after each step; the same edits, without a whole-file parse per step.
+ */
+export function buildEdits(parsed: ParsedSpec, replacements: TextEdit[], inserts: KeyInsert[], _file?: string, frags?: MirrorFragments): TextEdit[] | undefined {
   const log = new EditLog(parsed.text);
   log.apply(replacements);
-  let current: ParsedSpec = parsed;
   for (let i = 0; i < inserts.length; i++) {
-    // Re-parse after each step so an insertion sees the mapping the previous one created.
-    if (i > 0 || replacements.length > 0) current = parseSpec(log.text, file);
     const ins = inserts[i];
-    const edits = insertKeyEdits(current, ins.parent, ins.key, ins.text);
+    // The first insertion with nothing before it reads the original; later ones read the text
+    // so far, so an insertion sees the mapping the previous one created.
+    let edits: TextEdit[] | undefined;
+    if (i === 0 && replacements.length === 0) edits = insertKeyEdits(parsed, ins.parent, ins.key, ins.text);
+    else edits = (frags && insertLocally(frags, parsed, log, ins)) ?? insertKeyEdits(reread(log.text, parsed.json), ins.parent, ins.key, ins.text);
     if (edits.length === 0) return undefined;
     log.apply(edits);
   }
   const edits = log.edits();
   return edits.length > 0 ? edits : undefined;
+}
+
+/** The insertion computed on the mirror's own lines of the text so far, moved to full-text lines; undefined when that cannot be done exactly. */
+function insertLocally(frags: MirrorFragments, parsed: ParsedSpec, log: EditLog, ins: KeyInsert): TextEdit[] | undefined {
+  const [root, index] = ins.parent;
+  if (root !== 'mirrors' || typeof index !== 'number') return undefined;
+  if (!frags.holds(index, log.edits())) return undefined;
+  const frag = frags.read(log.text, index);
+  const style = styleOf(parsed);
+  if (!frag || !style) return undefined;
+  const d = frag.line;
+  return insertKeyEdits(frag.parsed, ins.parent.slice(2), ins.key, ins.text, style).map((e) => ({
+    newText: e.newText,
+    range: { start: { line: e.range.start.line + d, character: e.range.start.character }, end: { line: e.range.end.line + d, character: e.range.end.character } },
+  }));
+}
+
+const styles = new WeakMap<ParsedSpec, InsertStyle | undefined>();
+
+/** The whole original document's insert style, once per parse. */
+function styleOf(parsed: ParsedSpec): InsertStyle | undefined {
+  if (!styles.has(parsed)) styles.set(parsed, insertStyle(parsed));
+  return styles.get(parsed);
+}
+
+/** The YAML tree of an edited text (all an insertion needs: no schema, no elaboration). */
+function reread(text: string, json: boolean | undefined): ParsedSpec {
+  const doc = parseDocument(text, YAML_OPTIONS);
+  return { text, parsed: doc.errors.length === 0, findings: [], source: new YamlSourceMap(doc, new LineIndex(text)), json };
 }

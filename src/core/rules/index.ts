@@ -1,12 +1,14 @@
 /**
  * Design findings for a parsed, solved spec (design §6): each check turns report numbers into
  * findings at the narrowest source range; each finding's candidate fixes are verified by
- * re-solving the edited text, and only verified fixes are offered, the first one preferred.
+ * re-reading and re-solving the edited text (locally where exact: verify.ts), and only verified
+ * fixes are offered, the first one preferred.
  */
 import type { Finding, Fix, MirrorReport } from '../types';
 import type { ParsedSpec } from '../spec/index';
-import type { Draft, RuleContext } from './model';
-import { siteOf } from './sites';
+import type { Draft, FixPlan, RuleContext } from './model';
+import { isAutoSized, siteOf } from './sites';
+import { MirrorFragments, sharesValues } from '../spec/fragment';
 import { accepts, recheck, type Baseline } from './verify';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
@@ -28,12 +30,28 @@ export interface RulesOptions {
   /** ms for fix verification of the whole file (default 4000); the clock is `now`. */
   budgetMs?: number;
   now?: () => number;
+  /**
+   * How edited text is re-read to compose and verify fixes: 'local' (default) re-reads only the
+   * edited mirror where that is exact (spec/fragment.ts), 'whole-file' always the whole text. Both
+   * offer the same fixes (test/fuzz/verify-local.test.ts); 'whole-file' is the reference.
+   */
+  reread?: 'local' | 'whole-file';
 }
 
 const DEFAULT_RECHECKS = 120;
 const DEFAULT_BUDGET_MS = 4000;
 
-interface Budget { left: number; deadline: number; now: () => number }
+interface Budget {
+  left: number;
+  deadline: number;
+  now: () => number;
+  /**
+   * The spec shares values through aliases: an edit in one mirror's text can change another
+   * mirror, so every fix is verified on the whole file (not with auto-sized mirrors, which only
+   * the design-target pass sizes).
+   */
+  widen: () => boolean;
+}
 
 /** Every check over every report, without fixes. Never throws: a failing check yields nothing. */
 export function detect(rc: RuleContext): Draft[] {
@@ -79,6 +97,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
   try {
     const json = parsed.json ?? /^\s*[{[]/.test(parsed.text);
     const rc: RuleContext = { parsed, spec, reports, quick: false, json, file: json ? 'spec.bias.json' : 'spec.bias.yaml' };
+    if (opts.reread !== 'whole-file') rc.fragments = MirrorFragments.of(parsed);
     const drafts = detect(rc);
     const baseline: Baseline = {
       specErrors: parsed.findings.filter((f) => f.severity === 'error').length,
@@ -86,7 +105,11 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
     };
     const memo = new Map<string, Draft[] | undefined>();
     const now = opts.now ?? Date.now;
-    const budget: Budget = { left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now };
+    let widen: boolean | undefined;  // found on the first fix built: a clean file never pays for the walk
+    const budget: Budget = {
+      left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
+      widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((_, i) => isAutoSized(spec, i))),
+    };
     return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {
     return [];
@@ -102,11 +125,13 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
       for (const c of d.plan()) {
         if (families.has(c.family)) continue;
         if (tried >= MAX_VERIFICATIONS || budget.left <= 0 || budget.now() >= budget.deadline) break;
-        const p = c.build();
-        if (!p) continue;
+        const built = c.build();
+        if (!built) continue;
+        const p: FixPlan = built.scope === 'mirror' && budget.widen() ? { ...built, scope: 'spec' } : built;
         tried++;
         // The same edit answers several findings (the balanced Wilson, the EKV model): re-check once.
-        const id = `${p.scope}:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
+        // A whole-file re-check does not depend on the mirror the plan came from.
+        const id = p.scope === 'spec' ? `spec:${JSON.stringify(p.edits)}` : `mirror:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
         if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect)); }
         if (!accepts(memo.get(id), d, p, baseline)) continue;
         families.add(p.family);

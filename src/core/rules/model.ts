@@ -1,6 +1,7 @@
 /** Internal shapes of the rules pass: a check yields drafts; fixes are planned lazily, then verified. */
 import type { Finding, MirrorReport, ResolvedSpec, TextEdit } from '../types';
 import type { ParsedSpec } from '../spec/index';
+import type { MirrorFragments } from '../spec/fragment';
 
 export interface RuleContext {
   parsed: ParsedSpec;
@@ -12,6 +13,11 @@ export interface RuleContext {
   json: boolean;
   /** A file name with the right extension for re-parsing edited text. */
   file: string;
+  /**
+   * Mirror-by-mirror reading of edited text (spec/fragment.ts): fixes are composed and verified on
+   * the edited mirror's lines alone. Absent: every step re-reads the whole text.
+   */
+  fragments?: MirrorFragments;
 }
 
 /** A candidate fix: edits on the original text, and how far its effect reaches. */

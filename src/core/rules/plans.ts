@@ -54,7 +54,7 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('widen', () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file);
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file, rc.fragments);
       return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
     });
   }
@@ -67,7 +67,7 @@ export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: R
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('lengthen', () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file);
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file, rc.fragments);
       return p && plan(mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
     });
   }
@@ -80,7 +80,7 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   if (s === undefined) return;
   for (const ss of [s, s * 1.03, s * 1.1]) {
     yield candidate('area', () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file);
+      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file, rc.fragments);
       return p && plan(site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
     });
   }
@@ -88,12 +88,12 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
 
 /** Set sizes of some devices (overrides where a shared token cannot change), plus extra keys. */
 function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: KeyInsert[], title: (notes: string) => string, family: string): FixPlan | undefined {
-  const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file);
+  const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file, rc.fragments);
   if (!p) return undefined;
   let edits = p.edits;
   if (extra.length > 0) {
     // Compose with the extra insertions: apply the size edits, then insert on the result.
-    const merged = buildEdits(rc.parsed, edits, extra, rc.file);
+    const merged = buildEdits(rc.parsed, edits, extra, rc.file, rc.fragments);
     if (!merged) return undefined;
     edits = merged;
   }
@@ -185,7 +185,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
     if (bal.l !== unit?.l) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'l', text: formatValue('l', bal.l, undefined, rc.json) });
     if (bal.m !== 1) extra.push({ parent: ['mirrors', site.mirrorIndex, 'devices', 'bal'], key: 'm', text: formatValue('m', bal.m, undefined, rc.json) });
     yield candidate('balanced', () => plan(site.mirrorIndex, `${title}, \`bal\` W ${formatValue('w', w, undefined, false)} for out's current density`,
-      buildEdits(rc.parsed, [kindEdit], extra, rc.file), 'balanced'));
+      buildEdits(rc.parsed, [kindEdit], extra, rc.file, rc.fragments), 'balanced'));
   }
 }
 

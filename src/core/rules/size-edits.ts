@@ -11,6 +11,7 @@ import { allDevices, sameRef, sizeOf, type DeviceRef, type SizeKey } from '../si
 import { insertedStyle, readStyle, writeLike } from '../sizing/token-style';
 import { overridePath, sizeToken } from './sites';
 import { buildEdits, type KeyInsert } from './build-edits';
+import type { MirrorFragments } from '../spec/fragment';
 
 export interface SizeChange { ref: DeviceRef; key: SizeKey; value: number }
 
@@ -29,7 +30,7 @@ export function formatValue(key: SizeKey | 'v', value: number, token: string | u
 }
 
 /** Plain-value edits for a set of size changes, or undefined when an edit cannot be placed. */
-export function planSizeEdits(parsed: ParsedSpec, spec: ResolvedSpec, changes: SizeChange[], json: boolean, file?: string): SizePlan | undefined {
+export function planSizeEdits(parsed: ParsedSpec, spec: ResolvedSpec, changes: SizeChange[], json: boolean, file?: string, frags?: MirrorFragments): SizePlan | undefined {
   const replacements: TextEdit[] = [];
   const notes: ChangeNote[] = [];
   const inserts: KeyInsert[] = [];
@@ -73,7 +74,7 @@ export function planSizeEdits(parsed: ParsedSpec, spec: ResolvedSpec, changes: S
     notes.push({ key: noteKey([...own, c.key]), to: text });
   }
 
-  const edits = buildEdits(parsed, replacements, inserts, file);
+  const edits = buildEdits(parsed, replacements, inserts, file, frags);
   return edits ? { edits, notes } : undefined;
 }
 

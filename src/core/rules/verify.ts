@@ -1,10 +1,21 @@
 /**
- * A fix is offered only if it works: apply its edits to the text, re-parse, re-solve the mirror
+ * A fix is offered only if it works: apply its edits to the text, re-read it, re-solve the mirror
  * it touches (or the whole file, for a process edit), and check that its finding is gone and no
  * error appeared that was not there before.
+ *
+ * Re-reading is local when it can be (spec/fragment.ts): a fix inside one mirror of a plain spec
+ * re-reads that mirror's lines alone, validates and elaborates the data with that mirror
+ * replaced, and re-solves it — the same elaborator and solver on the same data as a whole-file
+ * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
  */
 import type { MirrorReport, ResolvedSpec } from '../types';
 import { parseSpec, type ParsedSpec } from '../spec/index';
+import { elaborate } from '../spec/elaborate';
+import { FindingSink } from '../spec/findings';
+import { SplicedSourceMap } from '../spec/fragment';
+import { isRecord } from '../spec/params';
+import { validateSchema } from '../spec/schema';
+import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
 import { measure } from '../sizing/devices';
 import { applyTextEdits } from './compose';
@@ -37,18 +48,63 @@ export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): Mirror
 export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Draft[] | undefined {
   try {
     const text = applyTextEdits(rc.parsed.text, plan.edits);
-    const parsed: ParsedSpec = parseSpec(text, rc.file);
-    if (!parsed.parsed || !parsed.spec) return undefined;
-    if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
-    if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
-    // Limits may carry front-end defaults (the editor's margin); a fix never edits them.
-    const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
-    const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
-    if (!reports) return undefined;
-    return detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+    const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
+    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
   } catch {
     return undefined;
   }
+}
+
+function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Draft[] | undefined {
+  const parsed: ParsedSpec = parseSpec(text, rc.file);
+  if (!parsed.parsed || !parsed.spec) return undefined;
+  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
+  if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
+  // Limits may carry front-end defaults (the editor's margin); a fix never edits them.
+  const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
+  const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
+  if (!reports) return undefined;
+  return detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+}
+
+const WHOLE = Symbol('re-read the whole text');
+
+/**
+ * The local re-check of a mirror-scoped plan, or WHOLE when it cannot be done locally. The original
+ * spec had no error (it has a resolved spec), so the edited one is usable exactly when reading
+ * the edited mirror adds none.
+ */
+function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect): Draft[] | undefined | typeof WHOLE {
+  const frags = rc.fragments;
+  const i = plan.mirrorIndex;
+  const data = rc.parsed.data;
+  const base = rc.parsed.source;
+  if (!frags || !isRecord(data) || !Array.isArray(data.mirrors) || !(base instanceof YamlSourceMap)) return WHOLE;
+  if (rc.parsed.findings.some((f) => f.severity === 'error') || data.mirrors.length !== rc.spec.mirrors.length) return WHOLE;
+  if (!frags.holds(i, plan.edits)) return WHOLE;
+  const frag = frags.read(text, i);
+  const span = frags.lineSpan(i);
+  if (!frag || !span) return WHOLE;
+  const sink = new FindingSink(base);
+  // Structure: the root as it was, with this mirror as its only one (only "any error?" matters).
+  validateSchema({ ...data, mirrors: [frag.data] }, sink);
+  if (sink.errorCount > 0) return undefined;
+  const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
+  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
+  if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
+  const spec: ResolvedSpec = { ...read, limits: rc.spec.limits };
+  const reports = reportsOfMirror(spec, i);
+  if (!reports) return undefined;
+  const lineDelta = countLines(text) - countLines(rc.parsed.text);
+  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta);
+  const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
+  return detect({ ...rc, parsed, spec, reports, quick: true });
+}
+
+function countLines(text: string): number {
+  let n = 1;
+  for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) n++;
+  return n;
 }
 
 /** The finding is gone and no error appeared that the original did not have (in the plan's scope). */

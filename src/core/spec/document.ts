@@ -8,6 +8,9 @@ import type { Document, Node } from 'yaml';
 import type { Finding } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import { LineIndex } from './positions';
+import { YAML_OPTIONS } from './yaml-options';
+
+export { YAML_OPTIONS } from './yaml-options';
 
 export interface ReadDocument {
   doc?: Document;
@@ -33,7 +36,7 @@ function sizeText(n: number): string {
 }
 
 /** Duplicate keys: the later one wins in the data, so it is the one flagged. */
-function duplicateKeys(doc: Document, lines: LineIndex, out: Finding[]): void {
+export function duplicateKeys(doc: Document, lines: LineIndex, out: Finding[]): void {
   const stack: { node: unknown; depth: number }[] = [{ node: doc.contents, depth: 0 }];
   while (stack.length) {
     const { node, depth } = stack.pop()!;
@@ -76,23 +79,66 @@ function firstAlias(doc: Document): [number, number] {
   return span;
 }
 
+/**
+ * Offset of the first `[` or `{` that opens more than `max` nested flow collections, else -1.
+ * Quoted strings and comments are skipped; a bracket inside a plain scalar counts, which can only
+ * over-count, and only a text with hundreds of them would notice.
+ */
+function flowTooDeep(text: string, max: number): number {
+  let depth = 0;
+  for (let i = 0; i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 123 || c === 91) { // { [
+      if (++depth > max) return i;
+    } else if (c === 125 || c === 93) { // } ]
+      if (depth > 0) depth--;
+    } else if (c === 34) { // "…" with \ escapes
+      for (i++; i < text.length && text.charCodeAt(i) !== 34; i++) if (text.charCodeAt(i) === 92) i++;
+    } else if (c === 39) { // '…' ('' is a quote inside)
+      for (i++; i < text.length; i++) {
+        if (text.charCodeAt(i) === 39) {
+          if (text.charCodeAt(i + 1) === 39) i++;
+          else break;
+        }
+      }
+    } else if (c === 35 && (i === 0 || text.charCodeAt(i - 1) === 32 || text.charCodeAt(i - 1) === 9 || text.charCodeAt(i - 1) === 10)) { // # comment
+      const nl = text.indexOf('\n', i);
+      i = nl < 0 ? text.length : nl;
+    }
+  }
+  return -1;
+}
+
 export function readDocument(text: string, lines: LineIndex): ReadDocument {
   if (text.length > SPEC_LIMITS.maxChars) {
     return { parsed: false, findings: [at(lines, 0, 0, 'too-large',
       `the file is ${sizeText(text.length)}; qpoint reads bias specs up to ${sizeText(SPEC_LIMITS.maxChars)} — split it into several files`)] };
   }
+  // A carriage return alone ends a line for YAML and for editors (LSP), but not for the line
+  // arithmetic of every tool that reads the positions back; such files come from old editors or
+  // broken conversions, so say so instead of reporting positions some reader would misplace.
+  // Whichever comes first is reported: positions before a bare CR are the same for everyone.
   const bin = BINARY.exec(text);
+  const cr = /\r(?!\n)/.exec(text);
+  if (cr && (!bin || cr.index < bin.index)) {
+    const start = lines.lineStart(cr.index);
+    return { parsed: false, findings: [at(lines, start, cr.index, 'bare-cr',
+      `line ${lines.position(cr.index).line + 1} ends with a bare carriage return (CR without LF); save the file with LF or CRLF line breaks`)] };
+  }
   if (bin) {
     const code = bin[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, '0');
     return { parsed: false, findings: [at(lines, bin.index, bin.index + 1, 'binary-input',
       `the file holds a control or invalid byte (U+${code}); a bias spec is UTF-8 text`)] };
   }
+  const deepAt = flowTooDeep(text, SPEC_LIMITS.maxFlowDepth);
+  if (deepAt >= 0) {
+    return { parsed: false, findings: [at(lines, deepAt, deepAt + 1, 'too-deep',
+      'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it')] };
+  }
   const findings: Finding[] = [];
   let doc: Document;
   try {
-    // logLevel 'error': the core prints nothing (the yaml package would warn on stderr, e.g.
-    // about collection keys); what matters comes back as findings.
-    doc = parseDocument(text, { uniqueKeys: false, merge: true, prettyErrors: false, strict: true, version: '1.2', resolveKnownTags: false, logLevel: 'error' });
+    doc = parseDocument(text, YAML_OPTIONS);
   } catch (e) {
     return { parsed: false, findings: [at(lines, 0, 0, 'yaml-syntax', `the file cannot be read as YAML: ${e instanceof Error ? e.message : String(e)}`)] };
   }

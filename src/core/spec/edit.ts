@@ -105,13 +105,22 @@ function indentStep(src: YamlSourceMap, doc: Document): number {
   return step || 2;
 }
 
+/** How inserted lines are written: the document's indent step and line break. */
+export interface InsertStyle { step: number; eol: string }
+
+/** The insert style of a whole document (pass it when inserting into a part of it read alone). */
+export function insertStyle(p: ParsedSpec): InsertStyle | undefined {
+  const src = mapOf(p);
+  return src?.doc ? { step: indentStep(src, src.doc), eol: eolOf(p.text) } : undefined;
+}
+
 /**
  * Insert `key: valueText` into the mapping at parentPath, creating missing parent mappings
  * (e.g. `devices:` then `out:`) as needed; works for block and flow mappings. An existing key
  * gets its value replaced. Empty when the place cannot be reached (a list item that does not
- * exist, a scalar in the way).
+ * exist, a scalar in the way). `style` defaults to the one of `p`'s own text.
  */
-export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string, valueText: string): TextEdit[] {
+export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string, valueText: string, style?: InsertStyle): TextEdit[] {
   const src = mapOf(p);
   if (!src?.doc) return [];
   const json = isJsonText(p);
@@ -176,7 +185,7 @@ export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string,
     if (multiLine) {
       const col = src.lines.position(lastKeyStart).character;
       const at = trailingComma ? i + 1 : endAt;
-      return [{ range: src.lines.range(at, at), newText: `${trailingComma ? '' : ','}${eolOf(text)}${' '.repeat(col)}${entry}${trailingComma ? ',' : ''}` }];
+      return [{ range: src.lines.range(at, at), newText: `${trailingComma ? '' : ','}${style?.eol ?? eolOf(text)}${' '.repeat(col)}${entry}${trailingComma ? ',' : ''}` }];
     }
     const at = trailingComma ? i + 1 : endAt;
     return [{ range: src.lines.range(at, at), newText: trailingComma ? ` ${entry},` : `, ${entry}` }];
@@ -186,7 +195,7 @@ export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string,
   if (!firstKey?.range) return [];
   const col = src.lines.position(firstKey.range[0]).character;
   const at = src.lines.lineEnd(Math.max(0, trimBack(text, lastEnd) - 1));
-  return [{ range: src.lines.range(at, at), newText: blockEntry(keys, value, col, indentStep(src, src.doc), eolOf(text)) }];
+  return [{ range: src.lines.range(at, at), newText: blockEntry(keys, value, col, style?.step ?? indentStep(src, src.doc), style?.eol ?? eolOf(text)) }];
 }
 
 /** Apply non-overlapping edits (LSP ranges in `text`). Throws on overlapping edits. */

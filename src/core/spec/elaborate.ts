@@ -15,8 +15,18 @@ import { typeName } from './values';
 
 const KINDS: readonly MirrorKind[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist'];
 
+/**
+ * Mirrors already elaborated from the same items: a re-check after a fix to mirror `except` reads
+ * only that mirror again. `items[i]` must be the very object `mirrors[i]` was elaborated from.
+ */
+export interface ElaborateReuse {
+  items: readonly unknown[];
+  mirrors: readonly ResolvedMirror[];
+  except: number;
+}
+
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
-export function elaborate(data: unknown, sink: FindingSink): ResolvedSpec | undefined {
+export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse): ResolvedSpec | undefined {
   if (!isRecord(data)) {
     sink.error('wrong-type', `a bias spec is a mapping (\`format: 1\`, \`process\`, \`supplies\`, \`mirrors\`); got ${typeName(data)}`, [], undefined, 'type');
     return undefined;
@@ -42,6 +52,16 @@ export function elaborate(data: unknown, sink: FindingSink): ResolvedSpec | unde
   const names = new Map<string, number>();
   (list ?? []).forEach((item: unknown, i: number) => {
     const path = ['mirrors', i];
+    const known = reuse && i !== reuse.except && reuse.items[i] === item ? reuse.mirrors[i] : undefined;
+    if (known) {
+      const first = names.get(known.name);
+      if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
+      else names.set(known.name, i);
+      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [known.type];
+      for (const t of types) if (!used.has(t)) used.set(t, known.name);
+      mirrors.push(known);
+      return;
+    }
     const m = readMap(sink, item, path, 'a mapping { name, kind, type, … }');
     if (!m) return;
     if (m.name === undefined) missing(sink, path, 'name', ' (mirror name)');

@@ -12,9 +12,8 @@
  * `wu` or `u` is untouched because identifiers are read whole. A number directly followed by any
  * other letters (`2wu`, `10uA`) is refused: write `2*wu`, and leave units out of expressions.
  *
- * Speed: plain arithmetic (numbers, names, + − × ÷, parentheses) is evaluated by `plainArithmetic`
- * with the same number operations, so the mathjs instance (~150 ms to create) is made only when
- * an expression needs more; and each distinct text is parsed and checked by mathjs once.
+ * Speed: the mathjs instance (~150 ms to create) is made on the first expression only, and each
+ * distinct text is parsed and checked by mathjs once.
  */
 import {
   absDependencies, addDependencies, ceilDependencies, create, divideDependencies, eDependencies, expDependencies,
@@ -24,7 +23,6 @@ import {
 } from 'mathjs';
 import { prefixExponent, PREFIX_SYMBOLS } from '../units/prefixes';
 import { SPEC_LIMITS } from '../defaults';
-import { plainArithmetic } from './arithmetic';
 
 export const EXPRESSION_FUNCTIONS: readonly string[] = ['sqrt', 'min', 'max', 'abs', 'exp', 'log', 'log10', 'pow', 'round', 'ceil', 'floor'];
 export const EXPRESSION_CONSTANTS: readonly string[] = ['pi', 'e'];
@@ -242,8 +240,6 @@ export function evaluateExpression(text: string, scope: ReadonlyMap<string, numb
   }
   const prep = prepare(text);
   if (!prep.ok) return prep;
-  const fast = plainArithmetic(prep.text, scope);
-  if (fast !== undefined) return { ok: true, value: fast };
   const reading = read(prep.text);
   if (!reading.ok && reading.parseError !== undefined) {
     return { ok: false, code: 'bad-expression', message: `\`${text.trim()}\` is not a valid expression: ${reading.parseError}` };

@@ -24,6 +24,8 @@ export interface ParsedSpec {
   source: SourceMap;
   /** The file is JSON (by its name, else by its text): edits keep it JSON. */
   json?: boolean;
+  /** The plain data the spec was elaborated from (present when the text reads). */
+  data?: unknown;
 }
 
 const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
@@ -54,7 +56,7 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     validateSchema(read.data, sink);
     const spec = elaborate(read.data, sink);
     const usable = spec !== undefined && sink.errorCount === 0;
-    const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
+    const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
     if (usable) out.spec = spec;
     return out;
   } catch (e) {

@@ -1,0 +1,226 @@
+/**
+ * One mirror's text read as a document of its own. A fix edits the tokens of one mirror; to learn
+ * what the edited text means, qpoint re-reads only that mirror's lines (a few hundred characters)
+ * instead of the whole file, and splices the result into the data it already has.
+ *
+ * This is exact only where YAML's meaning of those lines cannot depend on the rest of the file, so
+ * a spec qualifies only when it is plain: no anchor, alias or tag anywhere (an anchor in one mirror
+ * can be read by another), no duplicate key or YAML warning, `mirrors` a block sequence whose items
+ * are mappings. An item qualifies when every line after its first is blank or indented at least
+ * to its first key: then those lines are the item in the file and the same mapping standing alone
+ * (the `- ` before the first key is blanked to spaces, so columns and offsets stay). Anything else
+ * answers undefined and the caller re-reads the whole text.
+ */
+import { isAlias, isMap, isSeq, parseDocument, visit } from 'yaml';
+import type { Document } from 'yaml';
+import type { Finding, Range, SpecPath, TextEdit } from '../types';
+import { SPEC_LIMITS } from '../defaults';
+import type { ParsedSpec } from './index';
+import { duplicateKeys, YAML_OPTIONS } from './document';
+import { LineIndex } from './positions';
+import type { SourceMap } from './source-map';
+import { YamlSourceMap } from './source-map';
+
+/** Where one mirror item sits in the original text (offsets). */
+interface ItemSpan {
+  /** Start of the line holding the item's first key. */
+  lineStart: number;
+  /** The item's first character. */
+  content: number;
+  /** End of the item's last line, before its line break. */
+  end: number;
+  /** 0-based line of `lineStart`. */
+  line: number;
+}
+
+/** One mirror item of an edited text, read alone. */
+export interface Fragment {
+  /** The item's lines (first-line prefix blanked); its offsets are the full text's minus `start`. */
+  parsed: ParsedSpec;
+  data: unknown;
+  /** Offset and 0-based line in the full text where the fragment starts. */
+  start: number;
+  line: number;
+  /** Offset in the full text where it ends. */
+  end: number;
+}
+
+/** True when nothing in the document is shared or retyped: no anchor, alias or explicit tag. */
+function plain(doc: Document): boolean {
+  let ok = true;
+  visit(doc, {
+    Alias() { ok = false; return visit.BREAK; },
+    Node(_key, node) {
+      if ((node as { anchor?: string }).anchor || (node as { tag?: string }).tag) { ok = false; return visit.BREAK; }
+      return undefined;
+    },
+  });
+  return ok;
+}
+
+/** True when the spec's YAML reuses a node through an alias (`*name`, also under a `<<` merge key). */
+export function sharesValues(parsed: ParsedSpec): boolean {
+  const doc = parsed.source instanceof YamlSourceMap ? parsed.source.doc : undefined;
+  if (!doc) return false;
+  let found = false;
+  visit(doc, { Alias() { found = true; return visit.BREAK; } });
+  return found;
+}
+
+const FIRST_LINE_PREFIX = /^ *(?:- +)?$/;
+
+export class MirrorFragments {
+  /** Item spans, found on first use (a clean file never needs them); null: the spec is not plain. */
+  private found: (ItemSpan | undefined)[] | null | undefined;
+
+  private constructor(private readonly parsed: ParsedSpec, private readonly src: YamlSourceMap) {}
+
+  /** The fragments of a parsed spec, or undefined when it has no YAML tree of its own text. */
+  static of(parsed: ParsedSpec): MirrorFragments | undefined {
+    const src = parsed.source;
+    if (!(src instanceof YamlSourceMap) || !src.doc || src.lines.text !== parsed.text) return undefined;
+    return new MirrorFragments(parsed, src);
+  }
+
+  private get original(): string {
+    return this.parsed.text;
+  }
+
+  private get lines(): LineIndex {
+    return this.src.lines;
+  }
+
+  private get spans(): (ItemSpan | undefined)[] {
+    if (this.found === undefined) this.found = this.find();
+    return this.found ?? [];
+  }
+
+  private find(): (ItemSpan | undefined)[] | null {
+    const doc = this.src.doc!;
+    if (doc.errors.length > 0 || doc.warnings.length > 0) return null;
+    if (this.parsed.findings.some((f) => f.code === 'duplicate-key' || f.code === 'yaml-warning')) return null;
+    if (!isMap(doc.contents) || !plain(doc)) return null;
+    const mirrors = doc.contents.items.filter((p) => keyName(p.key) === 'mirrors');
+    if (mirrors.length !== 1 || doc.contents.items.some((p) => keyName(p.key) === '<<')) return null;
+    const seq = mirrors[0].value;
+    if (!isSeq(seq) || seq.flow) return null;
+    const text = this.original;
+    const lines = this.lines;
+    return seq.items.map((item): ItemSpan | undefined => {
+      if (!isMap(item) || !item.range) return undefined;
+      const content = item.range[0];
+      const lineStart = lines.lineStart(content);
+      if (!FIRST_LINE_PREFIX.test(text.slice(lineStart, content))) return undefined;
+      const end = lines.lineEnd(Math.max(content, item.range[1] - 1));
+      return { lineStart, content, end, line: lines.position(lineStart).line };
+    });
+  }
+
+  /** True when every edit lies inside mirror `index`'s item (from its first key to its last line's end). */
+  holds(index: number, edits: TextEdit[]): boolean {
+    const sp = this.spans[index];
+    if (!sp) return false;
+    return edits.every((e) => this.lines.offset(e.range.start) >= sp.content && this.lines.offset(e.range.end) <= sp.end &&
+      // LineIndex clamps: a position past its line is not inside.
+      positionExists(this.lines, e.range.start) && positionExists(this.lines, e.range.end));
+  }
+
+  /**
+   * Mirror `index` of `text`, an edit of the original that changed nothing outside that item
+   * (checked). Undefined when the item does not read cleanly alone.
+   */
+  read(text: string, index: number): Fragment | undefined {
+    const sp = this.spans[index];
+    if (!sp) return undefined;
+    const end = sp.end + (text.length - this.original.length);
+    if (end < sp.content || text.slice(0, sp.content) !== this.original.slice(0, sp.content) || text.slice(end) !== this.original.slice(sp.end)) {
+      return undefined;
+    }
+    const indent = sp.content - sp.lineStart;
+    const body = ' '.repeat(indent) + text.slice(sp.content, end);
+    for (let at = body.indexOf('\n'); at >= 0; at = body.indexOf('\n', at + 1)) {
+      let i = at + 1;
+      while (i < body.length && body.charCodeAt(i) === 32) i++;
+      const c = body.charCodeAt(i);
+      const blank = i >= body.length || c === 10 || (c === 13 && body.charCodeAt(i + 1) === 10);
+      if (!blank && i - at - 1 < indent) return undefined;
+    }
+    const doc = parseDocument(body, YAML_OPTIONS);
+    if (doc.errors.length > 0 || doc.warnings.length > 0 || !isMap(doc.contents) || !plain(doc)) return undefined;
+    const lines = new LineIndex(body);
+    const dup: Finding[] = [];
+    duplicateKeys(doc, lines, dup);
+    if (dup.length > 0) return undefined;
+    let data: unknown;
+    try {
+      data = doc.toJS({ maxAliasCount: SPEC_LIMITS.maxAliasCount });
+    } catch {
+      return undefined;
+    }
+    return {
+      parsed: { text: body, parsed: true, findings: [], source: new YamlSourceMap(doc, lines), json: this.parsed.json, data },
+      data, start: sp.lineStart, line: sp.line, end,
+    };
+  }
+
+  /** The line of the original text where mirror `index`'s fragment starts, and where it ends. */
+  lineSpan(index: number): { first: number; last: number } | undefined {
+    const sp = this.spans[index];
+    return sp ? { first: sp.line, last: this.lines.position(sp.end).line } : undefined;
+  }
+}
+
+function keyName(k: unknown): string | undefined {
+  const v = (k as { value?: unknown } | null)?.value;
+  return typeof v === 'string' ? v : undefined;
+}
+
+function positionExists(lines: LineIndex, p: { line: number; character: number }): boolean {
+  const o = lines.offset(p);
+  const back = lines.position(o);
+  return back.line === p.line && back.character === p.character;
+}
+
+/**
+ * The source map of the edited text: mirror `index` from its fragment, everything else from the
+ * original map, moved down by the lines the edit added.
+ */
+export class SplicedSourceMap implements SourceMap {
+  constructor(
+    private readonly base: SourceMap,
+    private readonly index: number,
+    private readonly fragment: Fragment,
+    /** Last line of the item in the original text, and the lines the edit added. */
+    private readonly originalLast: number,
+    private readonly lineDelta: number,
+  ) {}
+
+  private inItem(path: SpecPath): boolean {
+    return path.length > 2 && path[0] === 'mirrors' && path[1] === this.index;
+  }
+
+  private fromFragment(r: Range | undefined): Range | undefined {
+    if (!r) return undefined;
+    const l = this.fragment.line;
+    return { start: { line: r.start.line + l, character: r.start.character }, end: { line: r.end.line + l, character: r.end.character } };
+  }
+
+  private fromBase(r: Range | undefined): Range | undefined {
+    if (!r || r.start.line <= this.originalLast) return r;
+    const d = this.lineDelta;
+    return { start: { line: r.start.line + d, character: r.start.character }, end: { line: r.end.line + d, character: r.end.character } };
+  }
+
+  value(path: SpecPath): Range | undefined {
+    return this.inItem(path) ? this.fromFragment(this.fragment.parsed.source.value(path.slice(2))) : this.fromBase(this.base.value(path));
+  }
+
+  key(path: SpecPath): Range | undefined {
+    return this.inItem(path) ? this.fromFragment(this.fragment.parsed.source.key(path.slice(2))) : this.fromBase(this.base.key(path));
+  }
+
+  rangeFor(path: SpecPath): Range {
+    if (this.inItem(path)) return this.fromFragment(this.fragment.parsed.source.rangeFor(path.slice(2)))!;
+    return this.fromBase(this.base.rangeFor(path))!;
+  }
+}

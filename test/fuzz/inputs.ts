@@ -1,0 +1,234 @@
+/**
+ * Fuzz inputs (fast-check arbitraries) for the whole analysis: real specs mutated token by token,
+ * generated specs, random bytes, deep nesting, extreme numbers, odd Unicode, YAML anchors, aliases,
+ * tags and merge keys, alias bombs and oversized files. Shared by test/fuzz/*.test.ts (a few
+ * thousand cases in `npm test`) and scripts/fuzz.ts (`npm run fuzz`, 100 000 cases).
+ */
+import { existsSync, readdirSync, readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import fc from 'fast-check';
+import { cleanSpecText, faultyExampleText } from '../../scripts/spec-texts';
+
+export interface FuzzInput {
+  /** Which generator made it (for the summary). */
+  kind: string;
+  text: string;
+  file: string;
+}
+
+/** The project's own specs: the example, the fixtures, and generated ones. */
+export function seedSpecs(root = process.cwd()): { name: string; text: string }[] {
+  const read = (p: string) => readFileSync(join(root, p), 'utf8');
+  const example = read('examples/sensor-afe.bias.yaml');
+  const seeds = [
+    { name: 'sensor-afe.bias.yaml', text: example },
+    { name: 'faulty-example.bias.yaml', text: faultyExampleText(example) },
+    { name: 'rules-faulty.bias.yaml', text: read('test/rules/fixtures/faulty.bias.yaml') },
+    { name: 'auto.bias.yaml', text: read('test/variation/fixtures/auto.bias.yaml') },
+    { name: 'clean-12.bias.yaml', text: cleanSpecText(12) },
+  ];
+  // The editor tests' fixtures, whichever exist (another suite owns them).
+  const dir = join(root, 'test/workbench/fixtures');
+  const extra = existsSync(dir) ? readdirSync(dir).filter((f) => /\.bias\.(ya?ml|json)$/.test(f)).sort() : [];
+  for (const f of extra) seeds.push({ name: `workbench-${f}`, text: read(join('test/workbench/fixtures', f)) });
+  return seeds;
+}
+
+/** Tokens a mutation works on: words, numbers, runs of spaces, single punctuation, line breaks. */
+export function tokens(text: string): string[] {
+  return text.match(/\r?\n|[ \t]+|[A-Za-z_][A-Za-z0-9_-]*|[0-9.]+(?:[eE][+-]?[0-9]+)?[A-Za-zµ%]*|[^\sA-Za-z0-9_]/gu) ?? [];
+}
+
+/** Numbers that have broken numeric code before. */
+export const EXTREME_NUMBERS = [
+  '0', '-0', '1e308', '1e309', '-1e309', '1e-320', '5e-324', '1e-400', '.nan', '.NaN', '.inf', '-.inf', '+.inf', 'NaN',
+  'Infinity', '-Infinity', '0x7fffffff', '0o17', '1_000', '9007199254740993', '-1', '1e-30', '1e30', '123456789012345678901234567890',
+  '0.0000001p', '1000000T', '1 µA', '1e3m', '-0.0', '1.', '.5', '+5', '2**3', '1/0', '0/0', 'sqrt(-1)', '1e2e3',
+];
+
+/** Strings that have broken text handling before. */
+export const ODD_UNICODE = [
+  '\u202E', '\u202Bשלום', '\u0301', 'e\u0301', '\uD800', '\uDC00', '\uD83D\uDE00', '\u0000', '\uFEFF', '\u200D', '\u00A0',
+  '\u2028', '\u2029', '\u0085', '\r', '\t', 'µ', 'μ', 'Ω', '\uFFFD', '\u001B[31m', '\\', '"', "'", '\u3000', 'ﬃ', '𝟙',
+];
+
+/** YAML constructs a bias spec never needs but a file may hold. */
+export const YAML_FEATURES = [
+  '&a ', '*a', '<<: *a', '<<: { w: 1u }', '!!str ', '!!int ', '!!float ', '!!binary ', '!!timestamp ', '!!set ', '!!omap ', '!local ',
+  '!!map ', '!!seq ', '? ', '- ', ': ', '{', '}', '[', ']', ',', '#', '|', '>', '|-', '>+', '---', '...', '%YAML 1.2', '%TAG ! tag:x,2000:',
+  '"', "'", '~', 'null', 'true', 'false', 'yes', '<<', '@', '`', '&b [1, *b]', '*undefined_anchor',
+];
+
+const arbToken = fc.oneof(
+  fc.constantFrom(...EXTREME_NUMBERS),
+  fc.constantFrom(...ODD_UNICODE),
+  fc.constantFrom(...YAML_FEATURES),
+  fc.constantFrom('\n', ' ', '  ', '    ', 'mirrors', 'kind', 'cascode', 'wilson', 'netlist', 'size', 'devices', 'outputs', 'w', 'l', 'm',
+    'auto', 'design', 'corners', 'vbias', 'require', 'input', 'resistor', 'params', 'wu', '2*wu', 'pow(10, 400)', 'import("fs")'),
+  fc.string({ maxLength: 4 }),
+);
+
+type Mutation =
+  | { op: 'delete' | 'duplicate'; at: number }
+  | { op: 'swap'; at: number; with: number }
+  | { op: 'insert' | 'replace'; at: number; token: string }
+  | { op: 'number'; at: number; token: string }
+  | { op: 'line-delete' | 'line-duplicate' | 'indent' | 'dedent'; at: number }
+  | { op: 'truncate'; at: number };
+
+const arbMutation: fc.Arbitrary<Mutation> = fc.oneof(
+  fc.record({ op: fc.constantFrom('delete' as const, 'duplicate' as const), at: fc.nat() }),
+  fc.record({ op: fc.constant('swap' as const), at: fc.nat(), with: fc.nat() }),
+  fc.record({ op: fc.constantFrom('insert' as const, 'replace' as const), at: fc.nat(), token: arbToken }),
+  fc.record({ op: fc.constant('number' as const), at: fc.nat(), token: fc.constantFrom(...EXTREME_NUMBERS) }),
+  fc.record({ op: fc.constantFrom('line-delete' as const, 'line-duplicate' as const, 'indent' as const, 'dedent' as const), at: fc.nat() }),
+  fc.record({ op: fc.constant('truncate' as const), at: fc.nat() }),
+);
+
+/** Apply mutations to a text; deterministic for given mutations. */
+export function mutate(text: string, ms: Mutation[]): string {
+  let toks = tokens(text);
+  for (const m of ms) {
+    if (toks.length === 0) toks = [''];
+    const i = m.at % toks.length;
+    switch (m.op) {
+      case 'delete': toks.splice(i, 1); break;
+      case 'duplicate': toks.splice(i, 0, toks[i]); break;
+      case 'swap': { const j = m.with % toks.length; [toks[i], toks[j]] = [toks[j], toks[i]]; break; }
+      case 'insert': toks.splice(i, 0, m.token); break;
+      case 'replace': toks[i] = m.token; break;
+      case 'number': {
+        const nums = toks.map((t, k) => (/^[0-9.]/.test(t) ? k : -1)).filter((k) => k >= 0);
+        if (nums.length) toks[nums[m.at % nums.length]] = m.token;
+        break;
+      }
+      case 'truncate': toks = toks.slice(0, i); break;
+      default: {
+        const lines = toks.join('').split('\n');
+        const k = m.at % lines.length;
+        if (m.op === 'line-delete') lines.splice(k, 1);
+        else if (m.op === 'line-duplicate') lines.splice(k, 0, lines[k]);
+        else if (m.op === 'indent') lines[k] = ' ' + lines[k];
+        else lines[k] = lines[k].replace(/^ /, '');
+        toks = tokens(lines.join('\n'));
+      }
+    }
+  }
+  return toks.join('');
+}
+
+/** A seed spec with one to four mutations. */
+export function arbMutatedSpec(seeds: { name: string; text: string }[]): fc.Arbitrary<FuzzInput> {
+  return fc.tuple(fc.nat({ max: seeds.length - 1 }), fc.array(arbMutation, { minLength: 1, maxLength: 4 }))
+    .map(([k, ms]) => ({ kind: 'mutated', text: mutate(seeds[k].text, ms), file: seeds[k].name }));
+}
+
+/** Random bytes decoded as UTF-8 (what reading a binary file as text gives), or random characters. */
+export const arbBytes: fc.Arbitrary<FuzzInput> = fc.oneof(
+  fc.uint8Array({ maxLength: 400 }).map((b) => new TextDecoder().decode(b)),
+  fc.string({ unit: 'binary', maxLength: 300 }),
+  fc.string({ unit: fc.constantFrom('{', '}', '[', ']', ':', ',', '-', ' ', '\n', '#', '&', '*', '!', '|', '>', "'", '"', 'a', '1', '?'), maxLength: 200 }),
+).map((text) => ({ kind: 'bytes', text, file: 'random.bias.yaml' }));
+
+/** Deep nesting: flow and block, lists and maps, inside and outside `mirrors`. */
+export const arbDeep: fc.Arbitrary<FuzzInput> = fc.record({
+  depth: fc.integer({ min: 10, max: 20_000 }),
+  style: fc.constantFrom('flow-seq', 'flow-map', 'block-map', 'block-seq', 'mixed'),
+  where: fc.constantFrom('root', 'mirror', 'params'),
+}).map(({ depth, style, where }) => {
+  const d = style.startsWith('block') ? Math.min(depth, 3000) : depth;
+  let inner: string;
+  if (style === 'flow-seq') inner = '['.repeat(d) + ']'.repeat(d);
+  else if (style === 'flow-map') inner = '{a: '.repeat(d) + '1' + '}'.repeat(d);
+  else if (style === 'mixed') inner = '[{a: '.repeat(d >> 1) + '1' + '}]'.repeat(d >> 1);
+  else {
+    let s = '';
+    for (let i = 0; i < d; i++) s += '\n' + ' '.repeat(i + 4) + (style === 'block-seq' ? '- ' : `k${i}:`);
+    inner = s + ' 1';
+  }
+  const head = 'format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\nsupplies: { vdd: 1.8 }\n';
+  const text = where === 'root' ? `${head}x: ${inner}\nmirrors: []\n`
+    : where === 'params' ? `${head}params:\n  wu: ${inner}\nmirrors: []\n`
+      : `${head}mirrors:\n  - name: a\n    kind: simple\n    type: nmos\n    input: 10u\n    size: ${inner}\n    output: { v: 0.9 }\n`;
+  return { kind: 'deep', text, file: 'deep.bias.yaml' };
+});
+
+/** One mirror with one value replaced by an extreme number or odd string. */
+export const arbValues: fc.Arbitrary<FuzzInput> = fc.record({
+  key: fc.constantFrom('input', 'w', 'l', 'm', 'v', 'vdd', 'kp', 'vt0', 'lambda', 'gamma', 'phi', 'tnom', 'margin', 'ratio', 'rout', 'sigma', 'vbias', 'grid'),
+  value: fc.oneof(fc.constantFrom(...EXTREME_NUMBERS), fc.constantFrom(...ODD_UNICODE), fc.double().map(String), fc.integer().map(String)),
+  quote: fc.boolean(),
+}).map(({ key, value, quote }) => {
+  const v = quote ? JSON.stringify(value) : value;
+  const vals: Record<string, string> = { input: '10u', w: '2u', l: '1u', m: '1', v: '0.9', vdd: '1.8', kp: '280u', vt0: '0.45', lambda: '0.08', gamma: '0.45', phi: '0.85', tnom: '27 C', margin: '100m', ratio: '1', rout: '1M', sigma: '1%', vbias: '0.9', grid: '10n' };
+  vals[key] = v;
+  const text = [
+    'format: 1', 'process:', `  tnom: ${vals.tnom}`, `  grid: ${vals.grid}`,
+    `  nmos: { kp: ${vals.kp}, vt0: ${vals.vt0}, lambda: ${vals.lambda}, gamma: ${vals.gamma}, phi: ${vals.phi}, avt: 4e-9, abeta: 1e-8 }`,
+    `supplies: { vdd: ${vals.vdd} }`, `limits: { margin: ${vals.margin} }`, 'mirrors:',
+    '  - name: a', '    kind: wide-swing', '    type: nmos', `    input: ${vals.input}`, `    size: { w: ${vals.w}, l: ${vals.l} }`,
+    `    devices: { out: { m: ${vals.m} } }`, `    vbias: ${vals.vbias}`, `    output: { v: ${vals.v} }`,
+    `    require: { ratio: ${vals.ratio}, rout: ${vals.rout}, sigma: ${vals.sigma} }`, '',
+  ].join('\n');
+  return { kind: 'values', text, file: 'values.bias.yaml' };
+});
+
+/** Anchors, aliases, tags, merge keys and alias bombs in an otherwise valid spec. */
+export const arbYamlFeatures: fc.Arbitrary<FuzzInput> = fc.oneof(
+  fc.constantFrom(
+    // merge keys and anchors sharing a unit size between mirrors
+    'format: 1\nprocess:\n  nmos: &n { kp: 280u, vt0: 0.45, lambda: 0.08 }\n  pmos: *n\nsupplies: { vdd: 1.8 }\nunit: &u { w: 2u, l: 1u }\nmirrors:\n  - { name: a, kind: simple, type: nmos, input: 10u, size: *u, output: { v: 1.4 } }\n  - { name: b, kind: simple, type: pmos, input: 10u, size: { <<: *u, l: 2u }, output: { v: 0.3 } }\n',
+    'format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08 }\nsupplies: { vdd: 1.8 }\nmirrors:\n  - &m\n    name: a\n    kind: simple\n    type: nmos\n    input: 10u\n    size: { w: 2u, l: 1u }\n    output: { v: 1.4 }\n  - <<: *m\n    name: b\n',
+    'format: 1\nprocess:\n  nmos: { kp: !!str 280u, vt0: !!float 0.45, lambda: !!int 0 }\nsupplies: { vdd: !!binary aGVsbG8= }\nmirrors: !!seq []\n',
+    'format: 1\na: &a ["x","x","x","x","x","x","x","x","x"]\nb: &b [*a,*a,*a,*a,*a,*a,*a,*a,*a]\nc: &c [*b,*b,*b,*b,*b,*b,*b,*b,*b]\nd: &d [*c,*c,*c,*c,*c,*c,*c,*c,*c]\ne: &e [*d,*d,*d,*d,*d,*d,*d,*d,*d]\nf: [*e,*e,*e,*e,*e,*e,*e,*e,*e]\n',
+    'format: 1\nself: &s [*s]\n',
+    '%YAML 1.1\n---\nformat: 1\nsupplies: { vdd: 1.8 }\n...\n---\nformat: 2\n',
+    'format: 1\n? [complex, key]\n: value\n? { a: 1 }\n: 2\nmirrors: []\n',
+    'format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\nsupplies: { vdd: 1.8 }\nmirrors:\n  - name: |\n      multi\n      line\n    kind: >-\n      simple\n    type: nmos\n    input: 10u\n    size: { w: 2u, l: 1u }\n    output: { v: 0.9 }\n',
+  ),
+  fc.tuple(fc.constantFrom(...YAML_FEATURES), fc.nat()).map(([feature, at]) => {
+    const base = cleanSpecText(2);
+    const lines = base.split('\n');
+    const k = at % lines.length;
+    lines[k] = lines[k].replace(/: /, `: ${feature}`);
+    return lines.join('\n');
+  }),
+).map((text) => ({ kind: 'yaml', text, file: 'features.bias.yaml' }));
+
+/** Generated specs of varied size and style (every kind, banks, netlists, params, comments, CRLF). */
+export const arbGenerated: fc.Arbitrary<FuzzInput> = fc.record({
+  n: fc.integer({ min: 0, max: 24 }),
+  crlf: fc.boolean(),
+  vdd: fc.constantFrom('1.8', '1.2', '0.9', '3.3', '0.3'),
+}).map(({ n, crlf, vdd }) => {
+  let text = cleanSpecText(n).replace('vdd: 1.8', `vdd: ${vdd}`);
+  if (crlf) text = text.replace(/\n/g, '\r\n');
+  return { kind: 'generated', text, file: 'generated.bias.yaml' };
+});
+
+/** Files far past the size limit (must be refused at once) and near-empty ones. */
+export const arbSize: fc.Arbitrary<FuzzInput> = fc.constantFrom(
+  { kind: 'size', text: '#'.repeat(1 << 20), file: 'big.bias.yaml' },
+  { kind: 'size', text: cleanSpecText(2) + '# filler\n'.repeat(120_000), file: 'big.bias.yaml' },
+  { kind: 'size', text: '', file: 'empty.bias.yaml' },
+  { kind: 'size', text: '\n', file: 'empty.bias.yaml' },
+  { kind: 'size', text: 'format: 1', file: 'tiny.bias.yaml' },
+  { kind: 'size', text: '{}', file: 'tiny.bias.json' },
+  { kind: 'size', text: 'null', file: 'tiny.bias.json' },
+  { kind: 'size', text: '[]', file: 'tiny.bias.yaml' },
+  { kind: 'size', text: '- 1\n- 2', file: 'tiny.bias.yaml' },
+  { kind: 'size', text: '"just a string"', file: 'tiny.bias.yaml' },
+);
+
+/** Everything, weighted toward the inputs most likely to reach deep code (mutated real specs). */
+export function arbFuzzInput(seeds: { name: string; text: string }[]): fc.Arbitrary<FuzzInput> {
+  return fc.oneof(
+    { weight: 10, arbitrary: arbMutatedSpec(seeds) },
+    { weight: 3, arbitrary: arbValues },
+    { weight: 2, arbitrary: arbGenerated },
+    { weight: 2, arbitrary: arbBytes },
+    { weight: 1, arbitrary: arbDeep },
+    { weight: 1, arbitrary: arbYamlFeatures },
+    { weight: 1, arbitrary: arbSize },
+  );
+}
