@@ -4,7 +4,7 @@ export type Command =
   | { cmd: 'help' } | { cmd: 'version' }
   | { cmd: 'check'; files: string[]; format: 'text' | 'json' | 'sarif'; corners: boolean; mc?: number; seed: number }
   | { cmd: 'fix'; file: string; apply: boolean }
-  | { cmd: 'report'; file: string; html: string }
+  | { cmd: 'report'; file: string; html: string; mc?: number; seed: number }
   | { cmd: 'sweep'; file: string; mirror: string; vout: { from: number; to: number; step: number }; csv: boolean };
 
 export type Parsed = { ok: true; command: Command } | { ok: false; error: string };
@@ -32,7 +32,7 @@ function parse(argv: string[]): Command {
   });
   if (values.help) return { cmd: 'help' };
   const allowed: Record<string, string[]> = {
-    check: ['format', 'corners', 'mc', 'seed'], fix: ['apply', 'dry-run'], report: ['html'],
+    check: ['format', 'corners', 'mc', 'seed'], fix: ['apply', 'dry-run'], report: ['html', 'mc', 'seed'],
     sweep: ['mirror', 'vout', 'csv'],
   };
   if (!(cmd in allowed)) throw new Error(`unknown command '${cmd}' (check, fix, report, sweep)`);
@@ -54,7 +54,8 @@ function parse(argv: string[]): Command {
       return { cmd, file, apply: (values.apply ?? false) && !(values['dry-run'] ?? false) };
     case 'report':
       if (!values.html) throw new Error(`'report' needs --html OUT.html`);
-      return { cmd, file, html: values.html };
+      return { cmd, file, html: values.html, mc: values.mc !== undefined ? positiveInt(values.mc, '--mc') : undefined,
+        seed: values.seed !== undefined ? positiveInt(values.seed, '--seed', true) : 1 };
     default: {
       if (!values.mirror) throw new Error(`'sweep' needs --mirror NAME`);
       if (!values.vout) throw new Error(`'sweep' needs --vout FROM:TO:STEP`);

@@ -16,7 +16,8 @@ export function runReport(c: ReportCommand): number {
   const read = readOne(c.file);
   if (!read) return 2;
   const name = read.name;
-  const report = analyzeText(read.text, name, { curve: true });
+  // The page carries what a review needs: curves, every named corner, and Monte Carlo on request.
+  const report = analyzeText(read.text, name, { curve: true, corners: true, ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
   try {
     mkdirSync(dirname(c.html), { recursive: true });
     writeFileSync(c.html, renderHtmlReport(report, webviewAssets()));

@@ -3,7 +3,7 @@ export const USAGE = `qpoint — bias checks for MOSFET current mirrors
 usage:
   qpoint check FILE... [--format text|json|sarif] [--corners] [--mc N] [--seed S]
   qpoint fix FILE [--apply] [--dry-run]
-  qpoint report FILE --html OUT.html
+  qpoint report FILE --html OUT.html [--mc N] [--seed S]
   qpoint sweep FILE --mirror NAME --vout FROM:TO:STEP [--csv]
   qpoint --help | --version
 
@@ -13,7 +13,8 @@ check    solve every mirror, print each mirror's figures and the findings
          (file:line:col: severity code: message), or JSON / SARIF 2.1.0
 fix      apply the preferred fix of every finding, re-check, repeat while errors drop;
          without --apply (or with --dry-run) print the change as a unified diff
-report   write one self-contained HTML page with the tables and plots
+report   write one self-contained HTML page with the tables, plots and corners
+         (and a Monte Carlo histogram per output with --mc)
 sweep    print Iout and Rout of one mirror output across a range of output voltages
 
 exit codes: 0 no errors (warnings allowed), 1 findings of severity error,

@@ -172,6 +172,7 @@ describe('fix, report, sweep', () => {
     expect(html).toMatch(/<html/);
     expect(html).not.toMatch(/<script[^>]+src=/);
     expect(html).toMatch(/tail\.lna/);
+    expect(html).toMatch(/"corners":\[\{"name":"ss"/);   // the example's corners are on the page
   });
 
   it('sweep agrees with check at the nominal output voltage', () => {
