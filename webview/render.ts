@@ -9,7 +9,7 @@ import { cssId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type
 import type { PanelState } from './state';
 import {
   CORNER_COLUMNS, cornerRows, deviceColumns, deviceRow, fileFindings, findingRows, findingsFor,
-  mirrorAnchor, mirrorList, monteCarloFigures, requirementViews, shownDevices, summaryFigures, type FindingRowView,
+  mirrorAnchor, mirrorList, monteCarloFigures, requirementViews, summaryFigures, type FindingRowView,
 } from './view-model';
 
 export interface RenderContext {
@@ -155,7 +155,7 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
     }), { class: 'grid requirements' })));
   }
   const columns = deviceColumns(m.type);
-  const { devices, hidden } = shownDevices(m);
+  const devices = m.devices;
   body.push(section(`dev-${id}`, 'Devices', h('div', { class: 'scroll-x' }, table(`Devices of ${m.name}`, columns,
     devices.map((d) => {
       const row = deviceRow(report, m, d, own);
@@ -168,8 +168,7 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
         cells: row.cells.map((c) => ({ text: c.text, title: c.title, className: c.flag })),
       };
     }), { class: 'grid devices', 'data-mirror': m.name })),
-    devices.some((d) => d.sized) ? h('p', { class: 'note' }, h('span', { class: 'sized' }, 'Italic'), ' sizes are computed by qpoint.') : undefined,
-    hidden > 0 ? h('p', { class: 'note' }, `The ${hidden} devices of the bank's other outputs are listed under those outputs.`) : undefined));
+    devices.some((d) => d.sized) ? h('p', { class: 'note' }, h('span', { class: 'sized' }, 'Italic'), ' sizes are computed by qpoint.') : undefined));
   body.push(section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'ok' }, 'No findings: every check passes.')));
   const plotList = [plots.get('iout', m), plots.get('rout', m)].filter((p): p is PlotHandle => p !== undefined);
   body.push(section(`plots-${id}`, 'Plots', plotList.length > 0

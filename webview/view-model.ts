@@ -196,16 +196,6 @@ export function deviceColumns(type: MirrorReport['type']): Column[] {
 
 const SIZED_TITLE = 'computed by qpoint';
 
-/** The devices to list for an output: a bank output's report carries the whole bank's circuit,
- *  but the designer looks at this output's devices (named `<output>.<role>`) and the shared
- *  reference; the other outputs' devices are listed under their own outputs. */
-export function shownDevices(m: MirrorReport): { devices: DeviceReport[]; hidden: number } {
-  if (m.output === undefined) return { devices: m.devices, hidden: 0 };
-  const own = `${m.output}.`;
-  const devices = m.devices.filter((d) => d.name.startsWith(own) || !d.name.includes('.'));
-  return { devices, hidden: m.devices.length - devices.length };
-}
-
 export function deviceRow(report: FileReport, mirror: MirrorReport, d: DeviceReport, findings: readonly Finding[]): DeviceRowView {
   const anchor = deviceAnchor(report, mirror, d);
   const own = anchor?.kind === 'device' ? findings.filter((f) => startsWith(f.path, anchor.path)) : [];

@@ -35,7 +35,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     }
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed.spec, text, opts));
+    const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed, parsed.spec, opts));
     const withSpec: ParsedSpec = { ...parsed, spec };
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc });
@@ -72,8 +72,8 @@ function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorRe
 }
 
 /** The editor may supply a default margin; a margin written in the spec always wins. */
-function withLimitDefaults(spec: ResolvedSpec, text: string, opts: AnalyzeOptions): ResolvedSpec {
+function withLimitDefaults(parsed: ParsedSpec, spec: ResolvedSpec, opts: AnalyzeOptions): ResolvedSpec {
   const margin = opts.limitsDefaults?.margin;
-  if (margin === undefined || /^\s*margin\s*:/m.test(text)) return spec;
+  if (margin === undefined || parsed.source.value(['limits', 'margin']) !== undefined) return spec;
   return { ...spec, limits: { ...spec.limits, margin } };
 }

@@ -37,10 +37,7 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
 /** One anchor per device key written under `devices:` (inherited devices have no key). A bank
  *  output's report lists the shared reference and its own devices (`<output>.<role>`). */
 function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], seen: Set<string>, devicesPath: SpecPath, report: MirrorReport, byName: boolean): void {
-  const own = report.output
-    ? report.devices.filter((d) => !d.name.includes('.') || d.name.startsWith(`${report.output}.`))
-    : report.devices;
-  for (const device of own) {
+  for (const device of report.devices) {
     const key = byName ? device.name : device.role;
     const path = [...devicesPath, key];
     const id = pathKey(path);

@@ -298,6 +298,8 @@ export interface MirrorReport {
   vbiasPicked?: boolean;
   /** Absolute node voltages of the nominal solve. */
   nodes: Record<string, number>;
+  /** The measured circuit's devices; a bank output lists the shared reference and its own
+   *  devices (`<output>.<role>`), not its siblings'. */
   devices: DeviceReport[];
   path: SpecPath;
   corners?: CornerResult[];

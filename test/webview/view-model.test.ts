@@ -3,7 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import {
   concerns, cornerRows, deviceAnchor, deviceColumns, deviceRow, failsRequirement, fileFindings,
-  findingRows, findingsFor, mirrorAnchor, mirrorList, requirementViews, shownDevices, summaryFigures,
+  findingRows, findingsFor, mirrorAnchor, mirrorList, requirementViews, summaryFigures,
 } from '../../webview/view-model';
 import { axisScale, formatNumber, formatPercent, formatSI, formatSignedPercent } from '../../webview/format';
 import { curvePlotData, histogramPlotData } from '../../webview/plot-data';
@@ -85,13 +85,6 @@ describe('devices and anchors', () => {
     expect(deviceAnchor(report, tail, tail.devices[0])?.kind).toBe('mirror');
     expect(deviceAnchor(report, a, a.devices[1])).toMatchObject({ kind: 'output', report: 'load.a' });
     expect(mirrorAnchor(report, tail)?.range.start.line).toBe(10);
-  });
-
-  it('a bank output lists its own devices and the shared reference, not its siblings\'', () => {
-    const m = bankOutput('a', 0);
-    m.devices.push({ ...m.devices[1], name: 'b.out' });
-    expect(shownDevices(m)).toEqual({ devices: [m.devices[0], m.devices[1]], hidden: 1 });
-    expect(shownDevices(tail).hidden).toBe(0);
   });
 
   it('formats a device row, flags triode and negative margin, marks computed sizes', () => {

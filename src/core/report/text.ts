@@ -34,7 +34,7 @@ function mirrorBlock(m: MirrorReport): string[] {
   const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  compliance ${si(m.compliance, 'V')} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
-  return [head, line1, line2, ...deviceTable(ownDevices(m)), ...cornerLines(m), ...monteCarloLines(m)];
+  return [head, line1, line2, ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
 }
 
 function cornerLines(m: MirrorReport): string[] {
@@ -54,12 +54,6 @@ function monteCarloLines(m: MirrorReport): string[] {
   const lin = m.sigma !== undefined ? ` (linearized ${(m.sigma * 100).toFixed(2)} %)` : '';
   return [`  Monte Carlo N=${mc.samples} seed ${mc.seed}: mean ${si(mc.mean, 'A')}  σ ${(mc.sigma * 100).toFixed(2)} %${lin}` +
     `  range ${si(mc.min, 'A')}…${si(mc.max, 'A')}  yield ${(mc.yield * 100).toFixed(2)} %`];
-}
-
-/** A bank output's table shows the shared reference and that output's own devices only. */
-export function ownDevices(m: MirrorReport): DeviceReport[] {
-  if (!m.output) return m.devices;
-  return m.devices.filter((d) => !d.name.includes('.') || d.name.startsWith(`${m.output}.`));
 }
 
 const COLUMNS: [string, number][] = [
