@@ -19,23 +19,31 @@ import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias
 
 export interface MeasureOptions { curve?: boolean; curvePoints?: number }
 
-/** A report with the measured output's identity (name, output, path) and empty figures.
- *  Built field by field: an object spread here costs more than the whole solve. */
-function blankReport(t: MirrorTarget, vout: number): MirrorReport {
+/** Which output a report is about: what differs between reports of identical mirrors. */
+export interface ReportIdentity { name: string; mirror: string; output?: string; path: MirrorReport['path'] }
+
+export function reportIdentity(t: MirrorTarget): ReportIdentity {
   const m = t.mirror;
-  let name = m.name, path = m.path;
-  let output: string | undefined;
+  const id: ReportIdentity = { name: m.name, mirror: m.name, path: m.path };
   if (m.kind !== 'netlist') {
     // Defensive: this also labels the report of a malformed mirror that made the solve throw.
     const o = Array.isArray(m.outputs) ? m.outputs[t.outputIndex] : undefined;
-    if (o) path = o.path;
-    if (o && isBank(m)) { name = `${m.name}.${o.name}`; output = o.name; }
+    if (o) id.path = o.path;
+    if (o && isBank(m)) { id.name = `${m.name}.${o.name}`; id.output = o.name; }
   }
+  return id;
+}
+
+/** A report with the measured output's identity (name, output, path) and empty figures.
+ *  Built field by field: an object spread here costs more than the whole solve. */
+function blankReport(t: MirrorTarget, vout: number): MirrorReport {
+  const id = reportIdentity(t);
+  const m = t.mirror;
   const r: MirrorReport = {
-    name, mirror: m.name, kind: m.kind, type: m.type, converged: false, iterations: 0, residual: NaN,
-    vout, iin: NaN, iout: NaN, ratio: NaN, rout: NaN, compliance: NaN, nodes: {}, devices: [], path,
+    name: id.name, mirror: id.mirror, kind: m.kind, type: m.type, converged: false, iterations: 0, residual: NaN,
+    vout, iin: NaN, iout: NaN, ratio: NaN, rout: NaN, compliance: NaN, nodes: {}, devices: [], path: id.path,
   };
-  if (output !== undefined) r.output = output;
+  if (id.output !== undefined) r.output = id.output;
   return r;
 }
 

@@ -61,7 +61,20 @@ const COLUMNS: [string, number][] = [
   ['margin', 10], ['region', 7], ['gm/ID', 6], ['ro', 9],
 ];
 
+/** Tables by devices array: identical mirrors share one (analysis/repeats.ts), so a network of
+ *  repeated channels formats each distinct table once. */
+const tables = new WeakMap<DeviceReport[], string[]>();
+
 function deviceTable(devices: DeviceReport[]): string[] {
+  let lines = tables.get(devices);
+  if (!lines) {
+    lines = formatTable(devices);
+    tables.set(devices, lines);
+  }
+  return lines;
+}
+
+function formatTable(devices: DeviceReport[]): string[] {
   const rows = devices.map((d) => [
     d.name,
     `${si(d.w, '')}/${si(d.l, '')}·${d.m}${d.sized ? '*' : ''}`,
