@@ -187,6 +187,19 @@ function spawnTiming(runs: number, argv: string[]): Timing & { status: number | 
   return { median: median(ms), p90: quantile(ms, 0.9), min: Math.min(...ms), cpuMedian: NaN, runs, status };
 }
 
+/** A script that only reads `file` with the yaml package, bundled like the CLI bundles yaml. */
+function yamlFloorScript(dir: string, file: string): string {
+  const esbuild = createRequire(join(process.cwd(), 'package.json'))('esbuild') as { buildSync(o: Record<string, unknown>): unknown };
+  const out = join(dir, 'yaml-floor.cjs');
+  esbuild.buildSync({
+    stdin: { contents: `import { parseDocument } from 'yaml'; import { readFileSync } from 'node:fs';\n` +
+      `parseDocument(readFileSync(${JSON.stringify(file)}, 'utf8'), { strict: true, version: '1.2', uniqueKeys: false });`, resolveDir: process.cwd() },
+    bundle: true, platform: 'node', format: 'cjs', target: 'node20', outfile: out, logLevel: 'silent',
+    alias: { yaml: './node_modules/yaml/browser/index.js' },
+  });
+  return out;
+}
+
 /** Bytes of an entry bundled like esbuild.mjs's --production build (minified), in a temp dir. */
 function productionSize(entry: string, external: string[]): number | undefined {
   try {
@@ -274,7 +287,9 @@ function main(): void {
   // ---- the CLI, spawned: Node start-up, module load, a clean 500-mirror check ----
   const cli = join(root, 'dist', 'cli.js');
   const cliRuns = quick ? 5 : 15;
-  let cliResult: { nodeStart: Timing; version: Timing; check500: Timing & { status: number | null }; checkExample: Timing; chars: number } | undefined;
+  let cliResult: {
+    nodeStart: Timing; yamlFloor: Timing; version: Timing; check500: Timing & { status: number | null }; checkExample: Timing; chars: number;
+  } | undefined;
   if (existsSync(cli)) {
     const dir = mkdtempSync(join(tmpdir(), 'qpoint-bench-'));
     try {
@@ -282,6 +297,9 @@ function main(): void {
       writeFileSync(file, big500Text);
       cliResult = {
         nodeStart: spawnTiming(cliRuns, ['-e', '0']),
+        // The floor under any check of this file: Node plus the yaml package (bundled as the CLI
+        // bundles it) reading it, nothing else.
+        yamlFloor: spawnTiming(cliRuns, [yamlFloorScript(dir, file)]),
         version: spawnTiming(cliRuns, [cli, '--version']),
         check500: spawnTiming(cliRuns, [cli, 'check', file]),
         checkExample: spawnTiming(cliRuns, [cli, 'check', join(root, 'examples/sensor-afe.bias.yaml')]),
@@ -365,6 +383,7 @@ function main(): void {
   if (cliResult) {
     console.log(`cli (spawned, wall clock, ${cliRuns} runs each)`);
     console.log(`       node -e 0 (Node start-up)        ${t(cliResult.nodeStart)}`);
+    console.log(`       node + yaml.parseDocument (500)  ${t(cliResult.yamlFloor)}   (the floor: Node reading the file with the yaml package, cold)`);
     console.log(`       qpoint --version (+ module load) ${t(cliResult.version)}`);
     console.log(`       qpoint check example             ${t(cliResult.checkExample)}`);
     console.log(`  ${ok(checks.cli500Ms)} qpoint check, clean 500 mirrors  ${t(cliResult.check500)}   (≤ 150 ms; exit ${cliResult.check500.status})`);
