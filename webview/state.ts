@@ -45,9 +45,15 @@ export function applyHostMessage(state: PanelState, message: HostMessage): Panel
     case 'report': {
       if (message.uri === state.uri && message.version < state.version) return state;  // out of order
       const last = state.report;
-      if (message.uri === state.uri && last && last.mirrors.length > 0 && message.report.mirrors.length === 0 &&
-        message.report.findings.some((f) => f.severity === 'error')) {
-        // Keep the last numbers (and where they sit) beside the new findings until it solves again.
+      // A spec error leaves no numbers, or none for the mirror on show when the error is in it
+      // (the mirror being edited): keep the last numbers (and where they sit) beside the new
+      // findings until it solves again.
+      const errors = message.report.findings.filter((f) => f.severity === 'error');
+      const shown = last?.mirrors.find((m) => m.name === state.selected);
+      const lost = message.report.mirrors.length === 0 || (shown !== undefined &&
+        !message.report.mirrors.some((m) => m.name === shown.name || m.path[1] === shown.path[1]) &&
+        errors.some((f) => f.path[0] === 'mirrors' && f.path[1] === shown.path[1]));
+      if (message.uri === state.uri && last && last.mirrors.length > 0 && lost && errors.length > 0) {
         const report: FileReport = { ...message.report, mirrors: last.mirrors, anchors: last.anchors, title: message.report.title ?? last.title };
         return { uri: message.uri, version: message.version, report, selected: keepSelection(report, state.selected), notice: STALE_NOTICE, stale: true };
       }

@@ -12,6 +12,7 @@ import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { sortFindings } from './findings';
+import { mirrorAt } from './mirror-at';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -41,7 +42,9 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc });
     const findings: Finding[] = [
       ...parsed.findings,
-      ...runRules(withSpec, mirrors),
+      // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
+      // verified against the whole file, which has errors until the designer fixes them.
+      ...runRules(withSpec, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
       ...variationFindings(withSpec, spec, mirrors, sized, file),
     ];
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
@@ -62,7 +65,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
-    const mirror = spec.mirrors[typeof r.path[1] === 'number' ? r.path[1] : -1];
+    const mirror = mirrorAt(spec, typeof r.path[1] === 'number' ? r.path[1] : -1);
     if (!mirror) return r;
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
     const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;

@@ -5,6 +5,7 @@
  */
 import type { Anchor, MirrorReport, SpecPath } from './types';
 import type { ParsedSpec } from './spec/index';
+import { indexOf } from './mirror-at';
 
 export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Anchor[] {
   const spec = parsed.spec;
@@ -15,8 +16,8 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
   const firstByMirror = new Map<string, MirrorReport>();
   for (const r of reports) if (!firstByMirror.has(r.mirror)) firstByMirror.set(r.mirror, r);
   const devicePaths = new Set<string>();
-  spec.mirrors.forEach((mirror, i) => {
-    const mirrorPath: SpecPath = ['mirrors', i];
+  spec.mirrors.forEach((mirror) => {
+    const mirrorPath: SpecPath = ['mirrors', indexOf(mirror)];
     const first = firstByMirror.get(mirror.name);
     if (!first) return;
     const nameRange = parsed.source.value([...mirrorPath, 'name']);

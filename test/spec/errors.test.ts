@@ -5,7 +5,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { parseSpec } from '../../src/core/spec/index';
-import { BASE, marked, withText } from './helpers';
+import { BASE, expectErrorsBlock, marked, withText } from './helpers';
 
 interface Row { name: string; text: string; code: string; line: number; message?: string; severity?: 'error' | 'warning' }
 
@@ -60,8 +60,12 @@ describe('spec findings at the narrowest range', () => {
     expect(hit!.range.start.line).toBe(row.line);
     expect(hit!.severity).toBe(row.severity ?? 'error');
     if (row.message) expect(hit!.message).toContain(row.message);
-    // An error leaves no resolved spec; a warning does not block it (except syntax errors).
-    if ((row.severity ?? 'error') === 'error') expect(p.spec).toBeUndefined();
+    // An error leaves no resolved spec, or one without its mirror; a warning does not block it
+    // (except syntax errors).
+    if ((row.severity ?? 'error') === 'error') {
+      expectErrorsBlock(p);
+      expect(p.spec?.mirrors.some((m) => m.path[1] === hit!.path[1] && hit!.path[0] === 'mirrors') ?? false).toBe(false);
+    }
     else if (row.code !== 'yaml-syntax') expect(p.spec, JSON.stringify(p.findings)).toBeDefined();
   });
 

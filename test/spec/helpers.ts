@@ -45,3 +45,22 @@ export function marked(text: string): { text: string; range: Range } {
 export function codes(findings: Finding[]): string[] {
   return findings.map((f) => f.code);
 }
+
+/**
+ * What an error leaves of the resolved spec (src/core/spec/index.ts): nothing when any error is
+ * outside mirrors; else at most a partial spec without the mirrors the errors are in.
+ */
+export function expectErrorsBlock(p: { spec?: { mirrors: { path: (string | number)[] }[] }; withheld?: number[]; findings: Finding[] }): void {
+  const errors = p.findings.filter((f) => f.severity === 'error');
+  if (errors.length === 0) return;
+  const inMirrors = errors.every((f) => f.path[0] === 'mirrors' && typeof f.path[1] === 'number');
+  if (!inMirrors) {
+    if (p.spec !== undefined) throw new Error('a spec error outside mirrors must leave no resolved spec');
+    return;
+  }
+  if (!p.spec) return;
+  for (const f of errors) {
+    if (!p.withheld?.includes(f.path[1] as number)) throw new Error(`mirror ${String(f.path[1])} has an error but is not withheld`);
+    if (p.spec.mirrors.some((m) => m.path[1] === f.path[1])) throw new Error(`mirror ${String(f.path[1])} has an error but is in the spec`);
+  }
+}

@@ -40,6 +40,7 @@ describe('applyHostMessage', () => {
     expect(s.selected).toBe('load.b');
     const renamed = fixtureReport();
     renamed.mirrors = [tailMirror({ name: 'bias' })];
+    renamed.findings = renamed.findings.filter((f) => f.path[1] !== 1);  // no mirror 1 left to have findings
     s = applyHostMessage(s, { type: 'report', uri: A, report: renamed, version: 3 });
     expect(s.selected).toBe('bias');
   });
@@ -75,6 +76,22 @@ describe('a spec that stops solving while it is typed', () => {
     s = applyHostMessage(s, { type: 'report', uri: A, report: fixtureReport(), version: 3 });
     expect(s.stale).toBeUndefined();
     expect(s.notice).toBeUndefined();
+  });
+
+  it('keeps the last numbers when the mirror on show is the one with the error', () => {
+    // The bank `load` (mirror 1) has a spec error and is left out; `tail` still solves.
+    const partial = (): FileReport => ({ ...fixtureReport(), mirrors: fixtureReport().mirrors.filter((m) => m.path[1] !== 1),
+      findings: [{ ...broken().findings[0]!, path: ['mirrors', 1, 'input'] }] });
+    let s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    s = applyHostMessage(selectMirror(s, 'load.a'), { type: 'report', uri: A, report: partial(), version: 2 });
+    expect(s.stale).toBe(true);
+    expect(s.selected).toBe('load.a');
+    expect(s.report?.mirrors.map((m) => m.name)).toEqual(['tail', 'load.a', 'load.b']);
+    // With another mirror on show, the partial report is shown as it is.
+    s = applyHostMessage(initialState, { type: 'report', uri: A, report: fixtureReport(), version: 1 });
+    s = applyHostMessage(selectMirror(s, 'tail'), { type: 'report', uri: A, report: partial(), version: 2 });
+    expect(s.stale).toBeUndefined();
+    expect(s.report?.mirrors.map((m) => m.name)).toEqual(['tail']);
   });
 
   it('shows a broken file as it is when nothing solved before, or for another file', () => {

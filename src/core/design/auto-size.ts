@@ -27,6 +27,7 @@ import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
 import { aspectForTarget } from './targets';
 import { snapLength } from './snap';
 import { formatSI } from '../units/format';
+import { indexOf, mirrorAt, withMirrorAt } from '../mirror-at';
 
 export interface SizedDevice {
   /** Index into spec.mirrors. */
@@ -88,9 +89,10 @@ interface Slot {
 export function applyDesignTargets(spec: ResolvedSpec): { spec: ResolvedSpec; sized: SizedDevice[] } {
   let current = spec;
   const sized: SizedDevice[] = [];
-  for (let i = 0; i < spec.mirrors.length; i++) {
-    const m = current.mirrors[i];
-    if (m.kind === 'netlist' || m.design === undefined || !hasAuto(m)) continue;
+  for (const at of spec.mirrors) {
+    const i = indexOf(at);
+    const m = mirrorAt(current, i);
+    if (!m || m.kind === 'netlist' || m.design === undefined || !hasAuto(m)) continue;
     const r = sizeMirror(current, i, m, m.design);
     current = r.spec;
     sized.push(...r.sized);
@@ -175,9 +177,7 @@ function withSlots(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: 
     if (s.output === undefined) devices[s.role] = { ...s.size };
     else outputs[s.output]!.devices[s.role] = { ...s.size };
   }
-  const mirrors = spec.mirrors.slice();
-  mirrors[index] = { ...m, devices, outputs };
-  return { ...spec, mirrors };
+  return withMirrorAt(spec, index, { ...m, devices, outputs });
 }
 
 function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): number {
@@ -277,7 +277,9 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
 }
 
 function ctxOf(spec: ResolvedSpec, index: number, outputIndex: number): MirrorContext {
-  return { spec, mirror: spec.mirrors[index], outputIndex };
+  const mirror = mirrorAt(spec, index);
+  if (!mirror) throw new Error(`no mirror at index ${index}`);  // sizeMirror is only called for one that exists
+  return { spec, mirror, outputIndex };
 }
 
 function unreachableNote(target: DesignTarget, n: number, ut: number, model: string): string {

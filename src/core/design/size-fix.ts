@@ -15,6 +15,7 @@ import { applyEdits, insertKeyEdits, replaceValueEdit } from '../spec/edit';
 import { formatSI } from '../units/format';
 import type { SizedDevice } from './auto-size';
 import { editsBetween } from './text-diff';
+import { mirrorAt } from '../mirror-at';
 
 type Dim = 'w' | 'l';
 interface Use { s: SizedDevice; dim: Dim; value: number }
@@ -74,7 +75,7 @@ function majority(values: number[]): number {
 }
 
 function sizeIn(spec: ResolvedSpec, s: SizedDevice): { w: number; l: number; auto?: { w?: boolean; l?: boolean } } | undefined {
-  const m = spec.mirrors[s.mirror];
+  const m = mirrorAt(spec, s.mirror);
   if (!m || m.kind === 'netlist') return undefined;
   return s.output !== undefined ? m.outputs[s.output]?.devices[s.role] : (m as TemplateMirror).devices[s.role];
 }

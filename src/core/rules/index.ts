@@ -17,6 +17,7 @@ import { checkCompliance, checkRout, checkSigma } from './checks/requirements';
 import { checkHeadroom } from './checks/headroom';
 import { checkInversion } from './checks/inversion';
 import { checkGeometry } from './checks/geometry';
+import { indexOf } from '../mirror-at';
 
 export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
 export { fixAll } from './fix-all';
@@ -108,7 +109,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
     let widen: boolean | undefined;  // found on the first fix built: a clean file never pays for the walk
     const budget: Budget = {
       left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
-      widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((_, i) => isAutoSized(spec, i))),
+      widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m)))),
     };
     return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {

@@ -18,6 +18,7 @@ import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-e
 import { buildEdits, type KeyInsert } from './build-edits';
 import { isAutoSized, textAt, type Site } from './sites';
 import { factor, volts } from './words';
+import { indexOf } from '../mirror-at';
 
 /** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
 function fixable(rc: RuleContext, mirrorIndex: number): boolean {
@@ -192,7 +193,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
 /** `process.model: ekv` (whole-file scope). */
 export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Candidate> {
   // The re-check re-solves the whole file; auto-sized mirrors are sized by another pass first.
-  if (rc.spec.mirrors.some((_, i) => isAutoSized(rc.spec, i))) return;
+  if (rc.spec.mirrors.some((m) => isAutoSized(rc.spec, indexOf(m)))) return;
   yield candidate('model', () => modelPlan(rc, mirrorIndex));
 }
 

@@ -11,6 +11,7 @@ import type {
 import { OUTPUT_ROLES } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import type { DeviceRef, SizeKey } from '../sizing/devices';
+import { mirrorAt } from '../mirror-at';
 
 export type { DeviceRef, SizeKey };
 
@@ -31,7 +32,7 @@ export interface Site {
 export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefined {
   const p = report.path;
   const mirrorIndex = typeof p[1] === 'number' ? p[1] : -1;
-  const mirror = spec.mirrors[mirrorIndex];
+  const mirror = mirrorAt(spec, mirrorIndex);
   if (!mirror) return undefined;
   const outputIndex = p.length >= 4 && typeof p[3] === 'number' ? p[3] : 0;
   if (mirror.kind === 'netlist') {
@@ -57,7 +58,7 @@ export function refOf(site: Site, d: DeviceReport): DeviceRef {
 
 /** Where a device-only value goes: the output's `devices.<role>` in a bank, else the mirror's. */
 export function overridePath(spec: ResolvedSpec, ref: DeviceRef): SpecPath {
-  const m = spec.mirrors[ref.mirror];
+  const m = mirrorAt(spec, ref.mirror);
   if (m && m.kind !== 'netlist' && ref.output !== undefined) {
     const out = m.outputs[ref.output];
     if (out && out.path.length > 2) return [...out.path, 'devices', ref.role];
@@ -67,7 +68,7 @@ export function overridePath(spec: ResolvedSpec, ref: DeviceRef): SpecPath {
 
 /** Candidate source paths of a size value, nearest first. */
 function sourceCandidates(spec: ResolvedSpec, ref: DeviceRef, key: SizeKey): SpecPath[] {
-  const m = spec.mirrors[ref.mirror];
+  const m = mirrorAt(spec, ref.mirror);
   if (!m) return [];
   if (m.kind === 'netlist') return [['mirrors', ref.mirror, 'devices', ref.role, key]];
   const own = overridePath(spec, ref);
@@ -95,7 +96,7 @@ export function isDeviceLevel(token: SizeToken): boolean {
 }
 
 export function isAutoSized(spec: ResolvedSpec, mirrorIndex: number): boolean {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m || m.kind === 'netlist') return false;
   const auto = (d: DeviceSize) => !!(d.auto && (d.auto.w || d.auto.l));
   return Object.values(m.devices).some(auto) || m.outputs.some((o) => Object.values(o.devices).some(auto));

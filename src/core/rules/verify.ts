@@ -20,6 +20,7 @@ import { analyzeSpec } from '../analysis/index';
 import { measure } from '../sizing/devices';
 import { applyTextEdits } from './compose';
 import type { Draft, FixPlan, RuleContext } from './model';
+import { mirrorAt } from '../mirror-at';
 
 export type Detect = (rc: RuleContext) => Draft[];
 
@@ -32,7 +33,7 @@ export interface Baseline {
 
 /** Every output of one mirror of a spec. */
 export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[] | undefined {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m) return undefined;
   const n = m.kind === 'netlist' ? 1 : m.outputs.length;
   const out: MirrorReport[] = [];

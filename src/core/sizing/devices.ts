@@ -4,6 +4,7 @@
  */
 import type { DeviceSize, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { measureMirror, solveAt, type MirrorContext, type OperatingPoint } from '../analysis/index';
+import { mirrorAt, withMirrorAt } from '../mirror-at';
 
 /** One device of a mirror: a role (of output `output` for output roles), or a netlist device name. */
 export interface DeviceRef { mirror: number; role: string; output?: number }
@@ -12,7 +13,7 @@ export type SizeKey = 'w' | 'l' | 'm';
 
 /** Every device of a mirror (all outputs of a bank). */
 export function allDevices(spec: ResolvedSpec, mirrorIndex: number): DeviceRef[] {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m) return [];
   if (m.kind === 'netlist') return m.devices.map((d) => ({ mirror: mirrorIndex, role: d.name }));
   const refs: DeviceRef[] = Object.keys(m.devices).map((role) => ({ mirror: mirrorIndex, role }));
@@ -26,7 +27,7 @@ export function sameRef(a: DeviceRef, b: DeviceRef): boolean {
 
 /** The resolved size of a device. */
 export function sizeOf(spec: ResolvedSpec, ref: DeviceRef): DeviceSize | undefined {
-  const m = spec.mirrors[ref.mirror];
+  const m = mirrorAt(spec, ref.mirror);
   if (!m) return undefined;
   if (m.kind === 'netlist') {
     const d = m.devices.find((x) => x.name === ref.role);
@@ -38,7 +39,7 @@ export function sizeOf(spec: ResolvedSpec, ref: DeviceRef): DeviceSize | undefin
 
 /** A copy of the spec whose mirror `mirrorIndex` has each device's size replaced by `change` (undefined: unchanged). */
 export function resized(spec: ResolvedSpec, mirrorIndex: number, change: (ref: DeviceRef, size: DeviceSize) => DeviceSize | undefined): ResolvedSpec {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m) return spec;
   let next: ResolvedMirror;
   if (m.kind === 'netlist') {
@@ -61,7 +62,7 @@ export function resized(spec: ResolvedSpec, mirrorIndex: number, change: (ref: D
 }
 
 export function withMirror(spec: ResolvedSpec, mirrorIndex: number, mirror: ResolvedMirror): ResolvedSpec {
-  return { ...spec, mirrors: spec.mirrors.map((x, i) => (i === mirrorIndex ? mirror : x)) };
+  return withMirrorAt(spec, mirrorIndex, mirror);
 }
 
 /** Scale w and/or l of the selected devices (all when `only` is absent). */
@@ -70,13 +71,13 @@ export function scaled(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number;
 }
 
 export function contextOf(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): MirrorContext | undefined {
-  const mirror = spec.mirrors[mirrorIndex];
+  const mirror = mirrorAt(spec, mirrorIndex);
   return mirror ? { spec, mirror, outputIndex } : undefined;
 }
 
 /** Nominal output voltage of an output. */
 export function nominalVout(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): number {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m) return NaN;
   return m.kind === 'netlist' ? m.output.v : m.outputs[outputIndex]?.output.v ?? NaN;
 }

@@ -5,10 +5,11 @@
  */
 import type { ResolvedSpec } from '../types';
 import { measure, withMirror } from './devices';
+import { mirrorAt } from '../mirror-at';
 
 /** The vbias qpoint would pick for this wide-swing mirror (absolute V), or undefined. */
 export function pickedVbias(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): number | undefined {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m || m.kind !== 'wide-swing') return undefined;
   const { vbias: _written, ...rest } = m;
   void _written;
@@ -18,7 +19,7 @@ export function pickedVbias(spec: ResolvedSpec, mirrorIndex: number, outputIndex
 
 /** The spec with a given vbias on a wide-swing mirror. */
 export function withVbias(spec: ResolvedSpec, mirrorIndex: number, vbias: number): ResolvedSpec {
-  const m = spec.mirrors[mirrorIndex];
+  const m = mirrorAt(spec, mirrorIndex);
   if (!m || m.kind !== 'wide-swing') return spec;
   return withMirror(spec, mirrorIndex, { ...m, vbias });
 }

@@ -4,6 +4,9 @@
  * Pipeline: readDocument (YAML 1.2, limits, duplicate keys) → validateSchema (structure, the
  * shipped JSON Schema) → elaborate (values with units, expressions, defaults, roles, references).
  * `spec` is present when the file reads and no spec finding is an error; warnings do not block.
+ * When every error sits inside mirrors (a typo in one mirror while the designer types), `spec`
+ * is partial: it holds the other mirrors, so their findings stay in view, and `withheld` lists
+ * the file indices of the mirrors left out until their errors are fixed.
  */
 import type { Finding, ResolvedSpec } from '../types';
 import { readDocument } from './document';
@@ -26,6 +29,8 @@ export interface ParsedSpec {
   json?: boolean;
   /** The plain data the spec was elaborated from (present when the text reads). */
   data?: unknown;
+  /** A partial spec: file indices of the mirrors left out because they have errors. */
+  withheld?: number[];
 }
 
 const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
@@ -34,6 +39,17 @@ export function sortSpecFindings(list: Finding[]): Finding[] {
   return [...list].sort((a, b) => a.range.start.line - b.range.start.line
     || a.range.start.character - b.range.start.character
     || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
+}
+
+/** File indices of the mirrors the errors are in, or undefined when any error is outside mirrors. */
+function mirrorsInError(findings: Finding[]): number[] | undefined {
+  const at = new Set<number>();
+  for (const f of findings) {
+    if (f.severity !== 'error') continue;
+    if (f.path[0] !== 'mirrors' || typeof f.path[1] !== 'number') return undefined;
+    at.add(f.path[1]);
+  }
+  return [...at].sort((a, b) => a - b);
 }
 
 function looksJson(text: string, file?: string): boolean {
@@ -55,9 +71,15 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
     validateSchema(read.data, sink);
     const spec = elaborate(read.data, sink);
-    const usable = spec !== undefined && sink.errorCount === 0;
     const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
-    if (usable) out.spec = spec;
+    if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
+    else if (spec !== undefined) {
+      const withheld = mirrorsInError(sink.list);
+      if (withheld) {
+        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !withheld.includes(m.path[1] as number)) };
+        out.withheld = withheld;
+      }
+    }
     return out;
   } catch (e) {
     // A defect in qpoint must not take the designer's diagnostics with it.

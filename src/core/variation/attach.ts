@@ -5,6 +5,7 @@
 import type { MirrorReport, ResolvedSpec } from '../types';
 import { runCorners } from './corners';
 import { runMonteCarlo } from './montecarlo';
+import { mirrorAt } from '../mirror-at';
 
 export interface VariationOptions {
   corners?: boolean;
@@ -17,7 +18,7 @@ export function attachVariation(spec: ResolvedSpec, reports: MirrorReport[], opt
   if (!opts.corners && !opts.mc) return reports;
   return reports.map((r) => {
     const i = typeof r.path[1] === 'number' ? r.path[1] : -1;
-    const mirror = spec.mirrors[i];
+    const mirror = mirrorAt(spec, i);
     if (!mirror) return r;
     const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
     const out: MirrorReport = { ...r };

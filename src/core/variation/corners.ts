@@ -14,6 +14,7 @@
  */
 import type { CornerResult, CornerSpec, DeviceParams, ParamDelta, ResolvedSpec } from '../types';
 import { measureMirror } from '../analysis/index';
+import { mirrorAt } from '../mirror-at';
 
 type NumericKey = { [K in keyof DeviceParams]-?: DeviceParams[K] extends number | undefined ? K : never }[keyof DeviceParams];
 
@@ -51,9 +52,11 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
 /** Every corner of the spec solved for one output of one mirror, in the order of `corners:`. */
 export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): CornerResult[] {
   const results: CornerResult[] = [];
+  const mirror = mirrorAt(spec, mirrorIndex);
+  if (!mirror) return results;
   for (const corner of spec.corners) {
     const cs = applyCorner(spec, corner);
-    const r = measureMirror({ spec: cs, mirror: cs.mirrors[mirrorIndex], outputIndex });
+    const r = measureMirror({ spec: cs, mirror, outputIndex });
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;
     for (const d of r.devices) {

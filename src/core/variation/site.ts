@@ -4,6 +4,7 @@
  */
 import type { CornerSpec, MirrorReport, Polarity, Range, Requirements, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
 import type { ParsedSpec } from '../spec/index';
+import { mirrorAt } from '../mirror-at';
 
 export interface Site {
   report: MirrorReport;
@@ -19,7 +20,7 @@ export interface Site {
 export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefined {
   const p = report.path;
   const mirrorIndex = typeof p[1] === 'number' ? p[1] : -1;
-  const mirror = spec.mirrors[mirrorIndex];
+  const mirror = mirrorAt(spec, mirrorIndex);
   if (!mirror) return undefined;
   if (mirror.kind === 'netlist') {
     return { report, mirrorIndex, mirror, path: p, require: mirror.require, type: mirror.type, range: mirror.output.range };
