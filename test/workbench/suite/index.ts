@@ -176,6 +176,34 @@ async function suite(folder: vscode.Uri): Promise<void> {
     assert(nominalErrors.length === 1, `more than the one deliberate nominal error: ${nominalErrors.map(codeOf).join(', ')}`);
   });
 
+  await check('a typo in one mirror keeps the other mirrors\' diagnostics', async () => {
+    const editor = await vscode.window.showTextDocument(doc);
+    // Before the fixes below: the ratio-error and the example's warnings are still there.
+    const kindAt = positionOf(doc, /^\s+kind: wide-swing\s*$/, 'wide-swing');
+    // The mirror's own lines: from its `- name:` to the next mirror's.
+    const first = positionOf(doc, /^\s+- name: ws_bias/, 'name').line;
+    const next = positionOf(doc, /^\s+- name: wilson_ref/, 'name').line;
+    const others = (list: vscode.Diagnostic[]) => list.filter((x) => x.range.start.line < first || x.range.start.line >= next)
+      .map((x) => `${codeOf(x)}@${x.range.start.line}`).sort();
+    const before = others(qpointDiagnostics(faultyUri));
+    assert(before.some((k) => k.startsWith('ratio-error@')), `no ratio-error to keep: ${before.join(', ')}`);
+    await setText(editor, new vscode.Range(kindAt, kindAt.translate(0, 'wide-swing'.length)), 'wide-swng');
+    try {
+      const err = await waitFor('the typo\'s error', () => qpointDiagnostics(faultyUri)
+        .find((x) => x.severity === vscode.DiagnosticSeverity.Error && x.range.start.line === kindAt.line));
+      assert(doc.getText(err.range) === 'wide-swng', `the error covers "${doc.getText(err.range)}"`);
+      const kept = others(qpointDiagnostics(faultyUri).filter((x) => x !== err));
+      const lost = before.filter((k) => !kept.includes(k));
+      assert(lost.length === 0, `warnings gone while one mirror has a typo: ${lost.join(', ')}`);
+      assert(!qp.lastReport(faultyUri)?.mirrors.some((m) => m.name === 'ws_bias'), 'the mirror with the typo was solved');
+      assert(qp.lastReport(faultyUri)?.mirrors.some((m) => m.name === 'wilson_ref'), 'the next mirror was not solved');
+    } finally {
+      await setText(editor, new vscode.Range(kindAt, kindAt.translate(0, 'wide-swng'.length)), 'wide-swing');
+      await waitFor('the typo\'s error to clear', () => !qpointDiagnostics(faultyUri)
+        .some((x) => x.severity === vscode.DiagnosticSeverity.Error && x.range.start.line === kindAt.line));
+    }
+  });
+
   await check('quick fix through WorkspaceEdit clears its diagnostic and keeps comments', async () => {
     const d = qpointDiagnostics(faultyUri).find((x) => codeOf(x) === 'ratio-error');
     assert(d, 'no ratio-error diagnostic');
