@@ -317,7 +317,7 @@ function main(): void {
   // ---- bundles ----
   const size = (f: string) => (existsSync(join(root, f)) ? statSync(join(root, f)).size : undefined);
   const bundles = {
-    extensionDev: size('dist/extension.js'), workerDev: size('dist/worker.js'), cliDev: size('dist/cli.js'),
+    extensionDev: size('dist/extension.js'), workerDev: size('dist/worker.js'), cliDev: size('dist/qpoint-cli.js'),
     extensionProduction: productionSize(join(root, 'src/extension/extension.ts'), ['vscode']),
     workerProduction: productionSize(join(root, 'src/extension/worker.ts'), []),
     cliProduction: productionSize(join(root, 'src/cli/main.ts'), []),
@@ -395,7 +395,7 @@ function main(): void {
   console.log('bundles (dev build as on disk; production = minified like esbuild.mjs --production)');
   console.log(`  ${ok(checks.extensionBundleBytes)} dist/extension.js  dev ${kb(bundles.extensionDev)}  production ${kb(bundles.extensionProduction)}   (≤ 1.5 MB)`);
   console.log(`       dist/worker.js     dev ${kb(bundles.workerDev)}  production ${kb(bundles.workerProduction)}`);
-  console.log(`       dist/cli.js        dev ${kb(bundles.cliDev)}  production ${kb(bundles.cliProduction)}`);
+  console.log(`       dist/qpoint-cli.js dev ${kb(bundles.cliDev)}  production ${kb(bundles.cliProduction)}`);
   const missed = Object.entries(checks).filter(([, v]) => !v).map(([k]) => k);
   console.log(result.pass ? 'PASS: every budget met (wall-clock medians)' : `MISS: ${missed.join(', ')} (wall-clock medians)`);
 }
