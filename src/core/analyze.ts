@@ -27,7 +27,13 @@ export interface AnalyzeOptions {
   anchors?: boolean;
 }
 
-export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}): FileReport {
+/** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
+export interface AnalyzeHooks {
+  /** Monte Carlo samples done over all outputs, and their total. */
+  mcProgress?: (done: number, total: number) => void;
+}
+
+export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}, hooks: AnalyzeHooks = {}): FileReport {
   let parsed: ParsedSpec | undefined;
   try {
     parsed = parseSpec(text, file);
@@ -39,7 +45,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed, parsed.spec, opts));
     const withSpec: ParsedSpec = { ...parsed, spec };
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
-    const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc });
+    const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     const findings: Finding[] = [
       ...parsed.findings,
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is

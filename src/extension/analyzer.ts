@@ -11,16 +11,20 @@ import type { FixAllResult } from '../core/rules/fix-all';
 import { isWorkerResponse, type Job, type WorkerRequest, type WorkerResponse } from './workerProtocol';
 
 export interface Analyzer {
-  /** Resolves undefined when a newer request for `key` superseded this one. */
-  analyze(key: string, text: string, file: string, opts: AnalyzeOptions): Promise<FileReport | undefined>;
+  /** Resolves undefined when a newer request for `key` superseded this one. `onProgress` hears a
+   *  Monte Carlo job's samples done of total while it runs. */
+  analyze(key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined>;
   /** The core's verified multi-round fix-all, off the main thread. */
   fixAll(key: string, text: string, file: string, opts: AnalyzeOptions): Promise<FixAllResult | undefined>;
   dispose(): void;
 }
 
+export type Progress = (done: number, total: number) => void;
+
 interface Inflight {
   key: string;
   job: Job;
+  onProgress?: Progress;
   resolve(r: WorkerResponse | undefined): void;
   reject(e: Error): void;
   timer: NodeJS.Timeout | undefined;
@@ -49,8 +53,8 @@ export class WorkerAnalyzer implements Analyzer {
     this.log = opts.log ?? (() => undefined);
   }
 
-  async analyze(key: string, text: string, file: string, opts: AnalyzeOptions): Promise<FileReport | undefined> {
-    const r = await this.request('analyze', key, text, file, opts);
+  async analyze(key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined> {
+    const r = await this.request('analyze', key, text, file, opts, onProgress);
     return r?.type === 'report' ? r.report : undefined;
   }
 
@@ -59,7 +63,7 @@ export class WorkerAnalyzer implements Analyzer {
     return r?.type === 'fixed' ? r.result : undefined;
   }
 
-  private request(job: Job, key: string, text: string, file: string, opts: AnalyzeOptions): Promise<WorkerResponse | undefined> {
+  private request(job: Job, key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<WorkerResponse | undefined> {
     if (this.disposed) return Promise.resolve(undefined);
     const seq = ++this.seq;
     const older = this.latest.get(key);
@@ -68,7 +72,7 @@ export class WorkerAnalyzer implements Analyzer {
     const worker = this.ensureWorker();
     return new Promise<WorkerResponse | undefined>((resolve, reject) => {
       const timer = this.jobTimeoutMs > 0 ? setTimeout(() => this.hung(seq), this.jobTimeoutMs) : undefined;
-      this.inflight.set(seq, { key, job, resolve, reject, timer });
+      this.inflight.set(seq, { key, job, resolve, reject, timer, onProgress });
       const req: WorkerRequest = { job, seq, key, text, file, opts };
       worker.postMessage(req);
     });
@@ -89,6 +93,10 @@ export class WorkerAnalyzer implements Analyzer {
   private receive(m: unknown): void {
     if (!isWorkerResponse(m)) {
       this.log(`ignored a malformed message from the analysis worker`);
+      return;
+    }
+    if (m.type === 'progress') {
+      this.inflight.get(m.seq)?.onProgress?.(m.done, m.total);
       return;
     }
     if (m.type === 'report' || m.type === 'fixed') this.lastJobMs = m.ms;

@@ -7,8 +7,8 @@
  */
 import * as vscode from 'vscode';
 import type { AnalysisManager } from './analysisManager';
-import type { WorkerAnalyzer } from './analyzer';
-import { monteCarloRun, progressMessage, sampledOutputs, summaryMessage } from './monteCarloText';
+import type { Progress, WorkerAnalyzer } from './analyzer';
+import { monteCarloRun, percentDone, progressMessage, sampledOutputs, summaryMessage, type SampleCount } from './monteCarloText';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
 
@@ -29,6 +29,8 @@ export interface MonteCarloSummary {
   ms: number;
   /** Why the run failed, when its thread crashed. */
   failed?: string;
+  /** Samples done of the total as last reported by the worker while it ran (the progress bar). */
+  progress?: SampleCount;
 }
 
 /** Arguments from scripts and tests; menus pass the editor's Uri instead. */
@@ -90,11 +92,21 @@ export class MonteCarloCommand {
         { location: vscode.ProgressLocation.Notification, title: `qpoint: Monte Carlo mismatch of ${rel}`, cancellable: true },
         async (progress, token) => {
           const stop = token.onCancellationRequested(() => mine.cancel());
-          // Indeterminate bar (no increments): the line tells what runs and for how long.
-          progress.report({ message: progressMessage(run, outputs, 0) });
-          const tick = setInterval(() => progress.report({ message: progressMessage(run, outputs, Date.now() - t0) }), 1000);
+          // The bar follows the samples the worker reports; the line also says for how long.
+          let shown = 0;  // percent already on the bar
+          const report = () => {
+            const pct = summary.progress ? percentDone(summary.progress) : 0;
+            progress.report({ message: progressMessage(run, outputs, Date.now() - t0, summary.progress), increment: pct - shown });
+            shown = pct;
+          };
+          report();
+          const tick = setInterval(report, 1000);
+          const onProgress = (done: number, total: number) => {
+            summary.progress = { done, total };
+            if (percentDone(summary.progress) > shown) report();
+          };
           try {
-            summary.cancelled = !(await this.compute(doc, key, run, version, summary, mine.token));
+            summary.cancelled = !(await this.compute(doc, key, run, version, summary, mine.token, onProgress));
           } finally {
             clearInterval(tick);
             stop.dispose();
@@ -112,7 +124,7 @@ export class MonteCarloCommand {
 
   /** False when cancelled or superseded (the thread has exited by then). */
   private async compute(doc: vscode.TextDocument, key: string, run: { samples: number; seed: number }, version: number,
-    summary: MonteCarloSummary, token: vscode.CancellationToken): Promise<boolean> {
+    summary: MonteCarloSummary, token: vscode.CancellationToken, onProgress: Progress): Promise<boolean> {
     // Wait for an older run's thread to be gone, so that stopping it cannot take this job along.
     while (this.c.analyzer.busy()) await this.stoppedOnce;
     if (token.isCancellationRequested) return false;
@@ -123,7 +135,7 @@ export class MonteCarloCommand {
     }).then(() => this.stopping(key));
     const opts = { ...this.c.manager.optionsFor(doc.uri, true), mc: run };
     const t0 = Date.now();
-    const job = this.c.analyzer.analyze(key, doc.getText(), vscode.workspace.asRelativePath(doc.uri, false), opts);
+    const job = this.c.analyzer.analyze(key, doc.getText(), vscode.workspace.asRelativePath(doc.uri, false), opts, onProgress);
     let report;
     try {
       report = await Promise.race([job, stopped.then(() => undefined)]);

@@ -30,12 +30,23 @@ export function sampledOutputs(report: FileReport | undefined): number | undefin
   return report ? report.mirrors.filter((m) => m.sigma !== undefined).length : undefined;
 }
 
-/** The progress line. The core samples every output inside one call and reports nothing until
- *  it returns, so the bar is indeterminate and the line says what runs and for how long. */
-export function progressMessage(run: MonteCarloRun, outputs: number | undefined, elapsedMs: number): string {
+/** Samples done over all outputs of a running job, as the worker reports them. */
+export interface SampleCount { done: number; total: number }
+
+/** The progress line: what runs, how far it is (once the worker has reported samples) and for
+ *  how long. */
+export function progressMessage(run: MonteCarloRun, outputs: number | undefined, elapsedMs: number, count?: SampleCount): string {
   const what = outputs === undefined ? `${groupDigits(run.samples)} samples per output`
     : `${outputs} output${outputs === 1 ? '' : 's'} × ${groupDigits(run.samples)} samples`;
-  return `${what}, seed ${run.seed} — ${Math.floor(elapsedMs / 1000)} s`;
+  const far = count && count.total > 0 ? ` ${percentDone(count)} % (${groupDigits(count.done)} of ${groupDigits(count.total)})` : '';
+  return `${what}, seed ${run.seed} —${far}${far ? ',' : ''} ${Math.floor(elapsedMs / 1000)} s`;
+}
+
+/** Whole percent done, 0…100 (100 only when every sample is done). */
+export function percentDone(count: SampleCount): number {
+  if (!(count.total > 0)) return 0;
+  const p = Math.floor((100 * Math.min(count.done, count.total)) / count.total);
+  return count.done >= count.total ? 100 : Math.min(p, 99);
 }
 
 /** One line after a run: what ran and the lowest yield, with its output. */

@@ -25,11 +25,24 @@ function run(req: WorkerRequest): WorkerResponse {
       const result = fixAll(req.text, req.file, (text) => analyzeText(text, req.file, req.opts));
       return { type: 'fixed', seq: req.seq, key: req.key, result, ms: performance.now() - t0 };
     }
-    const report = analyzeText(req.text, req.file, req.opts);
+    const report = analyzeText(req.text, req.file, req.opts, req.opts.mc ? { mcProgress: progressOf(req) } : {});
     return { type: 'report', seq: req.seq, key: req.key, report, ms: performance.now() - t0 };
   } catch (err) {
     return { type: 'failed', seq: req.seq, key: req.key, message: err instanceof Error ? err.message : String(err) };
   }
+}
+
+/** Progress messages of a Monte Carlo job, at most one per PROGRESS_MS, and the last one. They
+ *  reach the host while the job runs: posting does not wait for this thread to be idle. */
+const PROGRESS_MS = 150;
+function progressOf(req: WorkerRequest): (done: number, total: number) => void {
+  let last = 0;
+  return (done, total) => {
+    const now = performance.now();
+    if (done < total && now - last < PROGRESS_MS) return;
+    last = now;
+    send({ type: 'progress', seq: req.seq, key: req.key, done, total });
+  };
 }
 
 /** One job per turn of the event loop, so messages that arrived meanwhile are seen first. */

@@ -24,6 +24,8 @@ export type WorkerResponse =
   | { type: 'report'; seq: number; key: string; report: FileReport; ms: number }
   | { type: 'fixed'; seq: number; key: string; result: FixAllResult; ms: number }
   | { type: 'superseded'; seq: number; key: string }
+  /** While a Monte Carlo job runs: samples done over all outputs, of total. */
+  | { type: 'progress'; seq: number; key: string; done: number; total: number }
   | { type: 'failed'; seq: number; key: string; message: string };
 
 function isRecord(x: unknown): x is Record<string, unknown> {
@@ -41,6 +43,7 @@ export function isWorkerResponse(m: unknown): m is WorkerResponse {
     case 'report': return isRecord(m.report) && typeof m.ms === 'number';
     case 'fixed': return isRecord(m.result) && typeof m.ms === 'number';
     case 'superseded': return true;
+    case 'progress': return typeof m.done === 'number' && typeof m.total === 'number';
     case 'failed': return typeof m.message === 'string';
     default: return false;
   }

@@ -13,7 +13,7 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { resolve } from 'node:path';
 import { WorkerAnalyzer } from '../../src/extension/analyzer';
-import { groupDigits, MC_SAMPLES, monteCarloRun, progressMessage, sampledOutputs, summaryMessage } from '../../src/extension/monteCarloText';
+import { groupDigits, MC_SAMPLES, monteCarloRun, percentDone, progressMessage, sampledOutputs, summaryMessage } from '../../src/extension/monteCarloText';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { isPageMessage, isRunMonteCarloMessage } from '../../src/protocol/messages';
 
@@ -99,6 +99,24 @@ describe('Monte Carlo in the worker', () => {
     expect((await p)?.mirrors[0].mc?.samples).toBe(100);
   });
 
+  it('reports samples done while it runs, rising to the total, before the report arrives', async () => {
+    const a = make();
+    const heard: { done: number; total: number; at: number }[] = [];
+    const two = SPEC.replace('    output: { v: 1.5 }\n', '    output: { v: 1.5 }\n  - name: copy2\n    kind: simple\n    type: nmos\n' +
+      '    input: 50u\n    size: { w: 10u, l: 1u }\n    output: { v: 1.2 }\n');
+    const job = a.analyze('mc', two, 'd.bias.yaml', { mc: { samples: 400_000, seed: 2 } }, (done, total) => heard.push({ done, total, at: Date.now() }));
+    const r = await job;
+    const arrived = Date.now();
+    expect(r?.mirrors.map((m) => m.mc?.samples)).toEqual([400_000, 400_000]);
+    // Two outputs × 400 000 samples; the worker sends at most one message per 150 ms, and the last.
+    expect(heard.length).toBeGreaterThan(2);
+    expect(heard.every((h) => h.total === 800_000)).toBe(true);
+    for (let k = 1; k < heard.length; k++) expect(heard[k]!.done).toBeGreaterThan(heard[k - 1]!.done);
+    expect(heard.at(-1)!.done).toBe(800_000);
+    expect(heard.some((h) => h.done > 0 && h.done < 800_000)).toBe(true);
+    expect(heard[0]!.at).toBeLessThanOrEqual(arrived);
+  });
+
   it('with jobTimeoutMs 0 a long job is not taken for a hung worker', async () => {
     // A timer of 0 ms would fail the job at once; "no limit" must let it run to its end.
     const a = make(0);
@@ -135,8 +153,13 @@ describe('Monte Carlo command text and arguments', () => {
     expect(sampledOutputs(file([mirror('a', 0.01), mirror('b', undefined), mirror('c', 0.02)]))).toBe(2);
   });
 
-  it('writes the progress line (indeterminate bar: what runs, for how long)', () => {
+  it('writes the progress line: what runs, how far, for how long', () => {
     expect(groupDigits(1_000_000)).toBe('1\u2009000\u2009000');
+    expect(progressMessage({ samples: 10_000, seed: 1 }, 9, 3_100, { done: 41_000, total: 90_000 }))
+      .toBe('9 outputs × 10\u2009000 samples, seed 1 — 45 % (41\u2009000 of 90\u2009000), 3 s');
+    expect(percentDone({ done: 0, total: 0 })).toBe(0);
+    expect(percentDone({ done: 89_999, total: 90_000 })).toBe(99);   // 100 % only when done
+    expect(percentDone({ done: 90_000, total: 90_000 })).toBe(100);
     expect(progressMessage({ samples: 10_000, seed: 1 }, 9, 2_400)).toBe('9 outputs × 10\u2009000 samples, seed 1 — 2 s');
     expect(progressMessage({ samples: 500, seed: 3 }, 1, 0)).toBe('1 output × 500 samples, seed 3 — 0 s');
     expect(progressMessage({ samples: 500, seed: 3 }, undefined, 61_000)).toBe('500 samples per output, seed 3 — 61 s');

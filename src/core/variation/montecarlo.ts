@@ -30,7 +30,12 @@ import { Xoshiro128 } from './prng';
 export interface MonteCarloOptions {
   /** Histogram bins (default: √N clamped to 10…60). */
   bins?: number;
+  /** Called with the samples done so far, every PROGRESS_EVERY samples and at the end. */
+  onSamples?: (done: number) => void;
 }
+
+/** Samples between progress calls: rare enough to cost nothing next to 1 024 Newton solves. */
+export const PROGRESS_EVERY = 1024;
 
 interface Perturbed { k: number; vt0: number; beta: number; sVt: number; sBeta: number }
 
@@ -78,7 +83,9 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
   let count = 0, pass = 0, failed = 0;
   const failures = { convergence: 0, saturation: 0, ratio: 0, compliance: 0 };
   let mean = 0, m2 = 0, min = Infinity, max = -Infinity;
+  const onSamples = opts.onSamples;
   for (let i = 0; i < n; i++) {
+    if (onSamples && i > 0 && i % PROGRESS_EVERY === 0) onSamples(i);
     // Draw every deviation first, in device order, so a sample's numbers depend only on the seed.
     for (const p of perturbed) {
       const dev = c.mos[p.k]!.dev;
@@ -109,6 +116,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     pass++;
   }
   for (const p of perturbed) { const dev = c.mos[p.k]!.dev; dev.vt0 = p.vt0; dev.beta = p.beta; }
+  onSamples?.(n);
 
   if (count === 0) return fail;
   const std = count > 1 ? Math.sqrt(m2 / (count - 1)) : 0;

@@ -466,11 +466,17 @@ async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode
     // 10⁶ samples × 9 outputs of the example: many seconds of work.
     const long = vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri: faulty.uri, samples: 1_000_000, seed: 1, token: cts.token });
     await waitFor('the Monte Carlo thread to start', () => qp.monteCarloBusy(), 10_000, []);
+    await new Promise((r) => setTimeout(r, 1_000));  // long enough for the worker to report samples
     const t0 = Date.now();
     cts.cancel();
     const summary = await long;
     const stopMs = Date.now() - t0;
     assert(summary?.cancelled === true && !summary.adopted, `summary ${JSON.stringify(summary)}`);
+    // The bar was determinate: samples done of 10⁶ per output, heard while it ran.
+    const heard = summary.progress;
+    assert(heard && heard.total >= 1_000_000 && heard.total % 1_000_000 === 0 && heard.done > 0 && heard.done < heard.total,
+      `progress ${JSON.stringify(heard)}`);
+    metrics.monteCarloSamplesBeforeCancel = heard.done;
     assert(!qp.monteCarloBusy(), 'the Monte Carlo thread still computes');
     assert(stopMs < 3_000, `stopping took ${stopMs} ms`);
     assert(qp.lastReport(faulty.uri)?.mirrors.every((m) => m.mc === undefined), 'a cancelled run left mc in the report');
