@@ -1,12 +1,14 @@
 /**
- * SARIF output against the OASIS SARIF 2.1.0 JSON schema (the rtm.5 schema that
- * @microsoft/jest-sarif ships, draft-04 JSON Schema, hence ajv-draft-04), plus the position
+ * SARIF output against the SARIF 2.1.0 JSON schema (the copy the SARIF SDK's multitool ships,
+ * `sarif-2.1.0.json`, JSON Schema 2020-12, hence ajv's 2020 build), plus the position
  * convention: SARIF lines/columns are 1-based, endColumn is the column after the region
- * (SARIF 2.1.0 §3.30.5–3.30.8), LSP ranges are 0-based with an exclusive end.
+ * (SARIF 2.1.0 §3.30.5–3.30.8), LSP ranges are 0-based with an exclusive end. The multitool's
+ * own validator runs on real CLI output in sarif-validator.test.ts.
  */
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import Ajv from 'ajv-draft-04';
+import { dirname, join } from 'node:path';
+import Ajv from 'ajv/dist/2020';
 import addFormats from 'ajv-formats';
 import { describe, expect, it } from 'vitest';
 import type { Finding } from '../../src/core/types';
@@ -14,13 +16,11 @@ import { toSarif, toRegion, toUri } from '../../src/core/report/sarif';
 import { DESIGN_RULES } from '../../src/core/rules/catalog';
 
 const require = createRequire(import.meta.url);
-const schemaPath = require.resolve('@microsoft/jest-sarif/lib/schemas/sarif-2.1.0-rtm.5.json');
+const schemaPath = join(dirname(require.resolve('@microsoft/sarif-multitool-linux/package.json')), 'sarif-2.1.0.json');
 const schema = JSON.parse(readFileSync(schemaPath, 'utf8')) as object;
 
 function validator() {
-  // The 2.1.0 schema's `language` pattern has a stray `]` that is a syntax error under the `u`
-  // flag; without it the pattern means what the schema intends.
-  const ajv = new Ajv({ allErrors: true, strict: false, unicodeRegExp: false });
+  const ajv = new Ajv({ allErrors: true, strict: false });
   addFormats(ajv);
   return ajv.compile(schema);
 }
@@ -105,7 +105,8 @@ describe('toSarif', () => {
   it('converts ranges and file names', () => {
     expect(toRegion(r(0, 0, 0, 0))).toEqual({ startLine: 1, startColumn: 1, endLine: 1, endColumn: 1 });
     expect(toUri('C:\\chips\\kestrel.bias.yaml')).toBe('file:///C:/chips/kestrel.bias.yaml');
-    expect(toUri('/work/a b/x.bias.yaml')).toBe('/work/a%20b/x.bias.yaml');
+    // An absolute path is a file URI: a relative reference must not start with a slash.
+    expect(toUri('/work/a b/x.bias.yaml')).toBe('file:///work/a%20b/x.bias.yaml');
   });
 
   it('an empty log is valid too', () => {

@@ -31,7 +31,8 @@ export function toSarif(files: { file: string; findings: Finding[] }[], tool: Sa
   const ruleIndex = new Map(ruleCodes.map((c, i) => [c, i]));
   const rules = ruleCodes.map((code) => sarifRule(code, known.get(code), tool.rulesDoc));
 
-  const artifacts = files.map((f) => ({ location: { uri: toUri(f.file) } }));
+  // Every file checked, findings or not: the set of analysis targets (SARIF §3.24.6).
+  const artifacts = files.map((f) => ({ location: { uri: toUri(f.file) }, roles: ['analysisTarget'] }));
   const results = files.flatMap((f, fileIndex) =>
     f.findings.map((finding) => sarifResult(finding, toUri(f.file), fileIndex, ruleIndex.get(finding.code) ?? 0)));
 
@@ -102,17 +103,22 @@ function toReplacement(e: TextEdit): object {
   return { deletedRegion: toRegion(e.range), insertedContent: { text: e.newText } };
 }
 
-/** A file name as a URI reference: forward slashes, each segment percent-encoded; drive paths become file URIs. */
+/** A file name as a URI reference: forward slashes, each segment percent-encoded; absolute
+ *  paths (drive or root) become file URIs, since a relative reference must not start with a
+ *  slash (rule SARIF1004 of the SARIF multitool's validator). */
 export function toUri(file: string): string {
   const slashed = file.replace(/\\/g, '/');
   const drive = /^([A-Za-z]):\//.exec(slashed);
   const encode = (p: string) => p.split('/').map((s) => encodeURIComponent(s)).join('/');
   if (drive) return `file:///${drive[1]}:/${encode(slashed.slice(3))}`;
   if (/^[a-z][a-z0-9+.-]*:\/\//i.test(slashed)) return slashed;
+  if (slashed.startsWith('/')) return `file://${encode(slashed)}`;
   return encode(slashed);
 }
 
-/** `not-saturated` → `NotSaturated` (SARIF's `name` is an identifier-like label). */
+/** `not-saturated` → `NotSaturated` (SARIF's `name` is an identifier-like label, and must differ
+ *  from the id: a one-word code gets a second word). */
 function ruleName(code: string): string {
-  return code.split('-').map((w) => w.charAt(0).toUpperCase() + w.slice(1)).join('');
+  const name = code.split('-').map((w) => w.charAt(0).toUpperCase() + w.slice(1)).join('');
+  return name.toLowerCase() === code.toLowerCase() ? `${name}Check` : name;
 }
