@@ -47,17 +47,17 @@ describe('bad input', () => {
     expect(ms).toBeLessThan(1000);
   });
 
-  test('a file just under the size limit is read in under a second', () => {
+  // How fast is the benchmark's business (`npm run bench`: parse at the size limit < 1 s); here
+  // only that it is read whole, with a bound (the test timeout) far above it against a hang.
+  test('a file just under the size limit is read whole', () => {
     let text = 'format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\nsupplies: { vdd: 1.8 }\nmirrors:\n';
     let i = 0;
     const item = (k: number) => `  - { name: m${k}, kind: simple, type: nmos, input: 10u, size: { w: 2u, l: 1u }, output: { v: 0.9 } }\n`;
     while (text.length + item(i).length < SPEC_LIMITS.maxChars) text += item(i++);
-    timed(text);  // the first large parse also pays for the JIT
-    const { p, ms } = timed(text);
+    const { p } = timed(text);
     expect(p.findings).toEqual([]);
     expect(p.spec!.mirrors.length).toBe(i);
-    expect(ms).toBeLessThan(1000);
-  });
+  }, 20_000);
 
   test('3,000 levels of flow nesting', () => {
     const deep = 'format: 1\nx: ' + '['.repeat(3000) + ']'.repeat(3000) + '\n';
