@@ -12,7 +12,7 @@ import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { sortFindings } from './findings';
-import { mirrorAt } from './mirror-at';
+import { mirrorOfPath } from './mirror-at';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -71,7 +71,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
-    const mirror = mirrorAt(spec, typeof r.path[1] === 'number' ? r.path[1] : -1);
+    const mirror = mirrorOfPath(spec, r.path);
     if (!mirror) return r;
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
     const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;

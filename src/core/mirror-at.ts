@@ -12,6 +12,11 @@ export function mirrorAt(spec: ResolvedSpec, index: number): ResolvedMirror | un
   return spec.mirrors.find((x) => x.path[1] === index);
 }
 
+/** The mirror a report or finding path (['mirrors', i, …]) is in. */
+export function mirrorOfPath(spec: ResolvedSpec, path: readonly (string | number)[]): ResolvedMirror | undefined {
+  return path[0] === 'mirrors' && typeof path[1] === 'number' ? mirrorAt(spec, path[1]) : undefined;
+}
+
 /** The mirror's index in the file's list. */
 export function indexOf(mirror: ResolvedMirror): number {
   return typeof mirror.path[1] === 'number' ? mirror.path[1] : -1;

@@ -5,7 +5,7 @@
 import type { MirrorReport, ResolvedSpec } from '../types';
 import { runCorners } from './corners';
 import { runMonteCarlo } from './montecarlo';
-import { mirrorAt } from '../mirror-at';
+import { mirrorAt, mirrorOfPath } from '../mirror-at';
 
 export interface VariationOptions {
   corners?: boolean;
@@ -19,7 +19,7 @@ export interface VariationOptions {
 export function attachVariation(spec: ResolvedSpec, reports: MirrorReport[], opts: VariationOptions): MirrorReport[] {
   if (!opts.corners && !opts.mc) return reports;
   const perOutput = opts.mc && opts.mc.samples > 0 ? Math.max(0, Math.floor(opts.mc.samples)) : 0;
-  const total = perOutput * reports.filter((r) => mirrorAt(spec, typeof r.path[1] === 'number' ? r.path[1] : -1)).length;
+  const total = perOutput * reports.filter((r) => mirrorOfPath(spec, r.path)).length;
   let before = 0;  // samples of the outputs already finished
   return reports.map((r) => {
     const i = typeof r.path[1] === 'number' ? r.path[1] : -1;
