@@ -164,6 +164,21 @@ describe('fix, report, sweep', () => {
     expect(qpoint(['check', copy]).code).toBe(0);
   });
 
+  it('fix on a spec with an error in one mirror says why it fixes nothing and changes nothing', () => {
+    const copy = join(OUT, 'typo.bias.yaml');
+    const text = readFileSync(join(ROOT, FAULTY), 'utf8');
+    const typo = text.replace('    kind: wilson\n', '    kind: wilsn\n');
+    expect(typo).not.toBe(text);
+    writeFileSync(copy, typo);
+    const r = qpoint(['fix', copy, '--apply']);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/^nothing fixed: fixes are offered once the spec has no errors/);
+    expect(r.stdout).toMatch(/error bad-value: `kind` must be one of/);
+    // The other mirrors' findings are still listed (the faulty fixture's physics errors).
+    expect(r.stdout.split('\n').filter((l) => / (error|warning) /.test(l)).length).toBeGreaterThan(1);
+    expect(readFileSync(copy, 'utf8')).toBe(typo);
+  });
+
   it('report writes one self-contained page with the report data', () => {
     const out = join(OUT, 'report', 'example.html');
     const r = qpoint(['report', EXAMPLE, '--html', out]);
