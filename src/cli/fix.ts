@@ -2,7 +2,6 @@ import { writeFileSync } from 'node:fs';
 import { createTwoFilesPatch } from 'diff';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
-import { parseSpec } from '../core/spec/index';
 import { fixAll } from '../core/rules/fix-all';
 import { findingLine } from '../core/report/text';
 import { readOne } from './io';
@@ -23,8 +22,7 @@ export function runFix(c: FixCommand): number {
   for (const a of result.applied) process.stdout.write(`fixed ${a.code}: ${a.title}\n`);
   if (result.text === read.text) {
     // A spec with errors is solved for its other mirrors, but gets no fixes until it reads cleanly.
-    const withheld = parseSpec(result.text, name).withheld;
-    process.stdout.write(withheld ? 'nothing fixed: fixes are offered once the spec has no errors; fix the errors below first\n' : 'nothing to fix\n');
+    process.stdout.write(result.withheld ? 'nothing fixed: fixes are offered once the spec has no errors; fix the errors below first\n' : 'nothing to fix\n');
   } else if (c.apply && c.file !== '-') {
     writeFileSync(c.file, result.text);
     process.stdout.write(`wrote ${name} (${result.applied.length} fixes in ${result.rounds} rounds)\n`);

@@ -54,7 +54,9 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...variationFindings(withSpec, spec, mirrors, sized, file),
     ];
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
-    return { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
+    const report: FileReport = { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
+    if (parsed.withheld) report.withheld = parsed.withheld;
+    return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.
     const message = err instanceof Error ? err.message : String(err);

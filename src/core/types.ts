@@ -331,4 +331,7 @@ export interface FileReport {
   mirrors: MirrorReport[];
   findings: Finding[];
   anchors: Anchor[];
+  /** File indices of mirrors left unsolved because they have errors (the rest are solved);
+   *  fixes are offered once there are none. Not part of the CLI's JSON. */
+  withheld?: number[];
 }

@@ -96,7 +96,8 @@ export async function fixAllInEditor(c: CommandContext): Promise<FixAllSummary |
   const summary: FixAllSummary = { applied: result.applied.length, rounds: result.rounds, remaining: result.remaining.length, changed: !!edit };
   void vscode.window.showInformationMessage(summary.applied > 0
     ? `qpoint: applied ${summary.applied} fix${summary.applied === 1 ? '' : 'es'}; ${errors} error${errors === 1 ? '' : 's'} remain.`
-    : 'qpoint: no preferred fix improves this spec.');
+    : result.withheld ? 'qpoint: no fixes while the spec has errors; fix them first (the other mirrors are still checked).'
+      : 'qpoint: no preferred fix improves this spec.');
   return summary;
 }
 

@@ -6,6 +6,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
+import { fixAll } from '../../src/core/rules/fix-all';
 
 const example = readFileSync(join(__dirname, '../../examples/sensor-afe.bias.yaml'), 'utf8');
 
@@ -41,6 +42,8 @@ describe('a typo in one mirror', () => {
     const typo = analyzeText(replaceOnce(example, 'kind: wilson\n', 'kind: wilsn\n'), 'sensor-afe.bias.yaml');
     const err = typo.findings.find((f) => f.severity === 'error');
     expect(err?.path.slice(0, 2)).toEqual(['mirrors', 3]);
+    expect(typo.withheld).toEqual([3]);
+    expect(clean.withheld).toBeUndefined();
     expect(typo.mirrors.map((m) => m.name)).toEqual(clean.mirrors.map((m) => m.name).filter((n) => n !== 'wilson_ref'));
     for (const r of typo.mirrors) {
       const same = clean.mirrors.find((c) => c.name === r.name)!;
@@ -63,6 +66,13 @@ describe('a typo in one mirror', () => {
     expect(kept?.fixes).toBeUndefined();
     expect(typing.findings.some((f) => f.severity === 'error' && f.path[1] === 1)).toBe(true);
     expect(typing.mirrors.map((m) => m.name)).toEqual(['sink']);
+    // Fix-all says why it applies nothing, and changes nothing.
+    const text = replaceOnce(base, 'kind: cascode', 'kind: cascod');
+    const all = fixAll(text, 'p.bias.yaml', (t) => analyzeText(t, 'p.bias.yaml'));
+    expect(all.applied).toEqual([]);
+    expect(all.text).toBe(text);
+    expect(all.withheld).toBe(true);
+    expect(fixAll(base, 'p.bias.yaml', (t) => analyzeText(t, 'p.bias.yaml')).withheld).toBeUndefined();
   });
 
   it('an error outside mirrors still withholds every mirror', () => {

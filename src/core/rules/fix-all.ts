@@ -17,6 +17,8 @@ export interface FixAllResult {
   rounds: number;
   applied: { code: string; title: string }[];
   remaining: Finding[];
+  /** The spec has mirrors with errors (FileReport.withheld): no fix is offered until they are fixed. */
+  withheld?: boolean;
 }
 
 interface Candidate { code: string; fix: Fix; severity: Severity; group: string }
@@ -26,10 +28,11 @@ interface Candidate { code: string; fix: Fix; severity: Severity; group: string 
  *   front end can bind one `check` for many files)
  * @param check analyses a text and returns its findings (with fixes), e.g. `analyzeText(t, file)`
  */
-export function fixAll(text: string, file: string, check: (text: string) => { findings: Finding[] }): FixAllResult {
+export function fixAll(text: string, file: string, check: (text: string) => { findings: Finding[]; withheld?: number[] }): FixAllResult {
   void file;
   let current = text;
-  let findings = safeCheck(check, current) ?? [];
+  const first = safeCheck(check, current);
+  let findings = first?.findings ?? [];
   let rounds = 0;
   const applied: { code: string; title: string }[] = [];
 
@@ -62,12 +65,14 @@ export function fixAll(text: string, file: string, check: (text: string) => { fi
     }
     if (!accepted) break;
   }
-  return { text: current, rounds, applied, remaining: findings };
+  const result: FixAllResult = { text: current, rounds, applied, remaining: findings };
+  if (applied.length === 0 && (first?.withheld?.length ?? 0) > 0) result.withheld = true;
+  return result;
 }
 
-function safeCheck(check: (text: string) => { findings: Finding[] }, text: string): Finding[] | undefined {
+function safeCheck(check: (text: string) => { findings: Finding[]; withheld?: number[] }, text: string): { findings: Finding[]; withheld?: number[] } | undefined {
   try {
-    return check(text).findings;
+    return check(text);
   } catch {
     return undefined;
   }
@@ -95,8 +100,8 @@ function tryCandidates(text: string, cs: Candidate[], check: (text: string) => {
   } catch {
     return undefined;
   }
-  const findings = safeCheck(check, next);
-  return findings ? { text: next, findings } : undefined;
+  const checked = safeCheck(check, next);
+  return checked ? { text: next, findings: checked.findings } : undefined;
 }
 
 /** Fixes of one mirror interact (widening changes the ratio): one per mirror and round. */
