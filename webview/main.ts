@@ -113,7 +113,8 @@ function bootPanel(root: HTMLElement, status: HTMLElement): void {
     plots = renderPage(root, state, ctx, plots);
     document.body.dataset.qpointVersion = String(state.version);
     const r = state.report;
-    status.textContent = r ? `${r.mirrors.length} mirrors, ${r.findings.filter((f) => f.severity === 'error').length} errors` : (state.notice ?? '');
+    const aside = r?.withheld?.length ? `, ${r.withheld.length} set aside until their errors are fixed` : '';
+    status.textContent = r ? `${r.mirrors.length} mirrors${aside}, ${r.findings.filter((f) => f.severity === 'error').length} errors` : (state.notice ?? '');
   };
 
   function update(next: PanelState): void {

@@ -276,9 +276,13 @@ function plural(n: number, word: string): string {
 export function statusSummary(file: FileReport): { text: string; tooltip: string; hasErrors: boolean } {
   const c = countFindings(file);
   const icon = !file.parsed || c.errors > 0 ? '$(error)' : c.warnings > 0 ? '$(warning)' : '$(pass)';
+  // Mirrors set aside for their errors (the others are solved): "7 of 8 mirrors".
+  const aside = file.withheld?.length ?? 0;
+  const mirrors = aside > 0 ? `${c.mirrors} of ${plural(c.mirrors + aside, 'mirror')}` : plural(c.mirrors, 'mirror');
   const text = file.parsed
-    ? `${icon} qpoint: ${plural(c.mirrors, 'mirror')}, ${plural(c.errors, 'error')}`
+    ? `${icon} qpoint: ${mirrors}, ${plural(c.errors, 'error')}`
     : `${icon} qpoint: spec does not parse`;
-  const tooltip = `${file.title ?? file.file}\n${plural(c.mirrors, 'mirror')} · ${plural(c.errors, 'error')} · ${plural(c.warnings, 'warning')} · ${c.infos} info\nClick to open the bias panel`;
+  const asideLine = aside > 0 ? `\n${plural(aside, 'mirror')} with errors not solved until they are fixed` : '';
+  const tooltip = `${file.title ?? file.file}\n${mirrors} · ${plural(c.errors, 'error')} · ${plural(c.warnings, 'warning')} · ${c.infos} info${asideLine}\nClick to open the bias panel`;
   return { text, tooltip, hasErrors: !file.parsed || c.errors > 0 };
 }

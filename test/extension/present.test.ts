@@ -149,5 +149,10 @@ describe('CodeLens and status bar', () => {
     const broken = statusSummary({ ...FILE, parsed: false, mirrors: [], findings: [] });
     expect(broken.text).toContain('does not parse');
     expect(broken.hasErrors).toBe(true);
+    // A mirror with a spec error is set aside; the others are still solved.
+    const err = { severity: 'error' as const, code: 'bad-value', message: 'kind', path: ['mirrors', 1, 'kind'], range: FILE.findings[0]?.range ?? { start: { line: 0, character: 0 }, end: { line: 0, character: 1 } } };
+    const partial = statusSummary({ ...FILE, findings: [err], withheld: [1] });
+    expect(partial.text).toBe('$(error) qpoint: 1 of 2 mirrors, 1 error');
+    expect(partial.tooltip).toContain('1 mirror with errors not solved until they are fixed');
   });
 });
