@@ -3,7 +3,8 @@
  * FileReport. Every front end (extension worker, CLI, tests) calls this one function, so what a
  * designer sees in the editor, the panel and CI is computed once, the same way.
  */
-import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec } from './types';
+import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
+import { isRecord } from './spec/params';
 import { parseSpec, type ParsedSpec } from './spec/index';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
@@ -55,7 +56,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     ];
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
     const report: FileReport = { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
-    if (parsed.withheld) report.withheld = parsed.withheld;
+    if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
     return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.
@@ -68,6 +69,17 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     });
     return { file, parsed: parsed?.parsed ?? false, mirrors: [], findings: sortFindings(findings), anchors: [] };
   }
+}
+
+/** Where each mirror set aside for its errors is written, for the editor's lens on it. */
+function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[] {
+  const items = isRecord(parsed.data) && Array.isArray(parsed.data.mirrors) ? parsed.data.mirrors : [];
+  return indices.map((index) => {
+    const item: unknown = items[index];
+    const name = isRecord(item) && typeof item.name === 'string' ? item.name : undefined;
+    const range = parsed.source.value(['mirrors', index, 'name']) ?? parsed.source.rangeFor(['mirrors', index]);
+    return name === undefined ? { index, range } : { index, name, range };
+  });
 }
 
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */

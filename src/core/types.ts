@@ -331,7 +331,15 @@ export interface FileReport {
   mirrors: MirrorReport[];
   findings: Finding[];
   anchors: Anchor[];
-  /** File indices of mirrors left unsolved because they have errors (the rest are solved);
-   *  fixes are offered once there are none. Not part of the CLI's JSON. */
-  withheld?: number[];
+  /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
+   *  once there are none. Not part of the CLI's JSON. */
+  withheld?: WithheldMirror[];
+}
+
+/** A mirror set aside for its errors: its place in the file and where its name is written. */
+export interface WithheldMirror {
+  index: number;
+  name?: string;
+  /** The mirror's `name` value, else the mirror's item. */
+  range: Range;
 }

@@ -237,9 +237,11 @@ export function lensTitle(r: MirrorReport): string {
   return parts.join(' · ');
 }
 
-/** Lenses: one per anchor of kind mirror (single output) or output (bank). */
-export function lensPlacements(file: FileReport): { range: Range; report: MirrorReport; title: string }[] {
-  const out: { range: Range; report: MirrorReport; title: string }[] = [];
+/** Lenses: one per anchor of kind mirror (single output) or output (bank), and one on each
+ *  mirror set aside for its errors. */
+export function lensPlacements(file: FileReport): { range: Range; report?: MirrorReport; title: string }[] {
+  const out: { range: Range; report?: MirrorReport; title: string }[] = [];
+  for (const w of file.withheld ?? []) out.push({ range: w.range, title: 'not solved until this mirror\'s errors are fixed' });
   for (const a of file.anchors) {
     if (a.kind === 'device') continue;
     const report = file.mirrors.find((m) => m.name === a.report);

@@ -42,7 +42,9 @@ describe('a typo in one mirror', () => {
     const typo = analyzeText(replaceOnce(example, 'kind: wilson\n', 'kind: wilsn\n'), 'sensor-afe.bias.yaml');
     const err = typo.findings.find((f) => f.severity === 'error');
     expect(err?.path.slice(0, 2)).toEqual(['mirrors', 3]);
-    expect(typo.withheld).toEqual([3]);
+    // Set aside with where its `name` is written (the editor's CodeLens on it goes there).
+    expect(typo.withheld).toEqual([{ index: 3, name: 'wilson_ref', range: typo.withheld![0]!.range }]);
+    expect(typo.withheld![0]!.range.start.line).toBe(example.split('\n').findIndex((l) => l.includes('name: wilson_ref')));
     expect(clean.withheld).toBeUndefined();
     expect(typo.mirrors.map((m) => m.name)).toEqual(clean.mirrors.map((m) => m.name).filter((n) => n !== 'wilson_ref'));
     for (const r of typo.mirrors) {

@@ -151,8 +151,12 @@ describe('CodeLens and status bar', () => {
     expect(broken.hasErrors).toBe(true);
     // A mirror with a spec error is set aside; the others are still solved.
     const err = { severity: 'error' as const, code: 'bad-value', message: 'kind', path: ['mirrors', 1, 'kind'], range: FILE.findings[0]?.range ?? { start: { line: 0, character: 0 }, end: { line: 0, character: 1 } } };
-    const partial = statusSummary({ ...FILE, findings: [err], withheld: [1] });
+    const aside = { index: 1, name: 'load', range: err.range };
+    const partial = statusSummary({ ...FILE, findings: [err], withheld: [aside] });
     expect(partial.text).toBe('$(error) qpoint: 1 of 2 mirrors, 1 error');
     expect(partial.tooltip).toContain('1 mirror with errors not solved until they are fixed');
+    // … and a lens on it says so.
+    const lens = lensPlacements({ ...FILE, findings: [err], withheld: [aside] }).find((l) => l.report === undefined);
+    expect(lens).toEqual({ range: err.range, title: 'not solved until this mirror\'s errors are fixed' });
   });
 });

@@ -28,7 +28,7 @@ interface Candidate { code: string; fix: Fix; severity: Severity; group: string 
  *   front end can bind one `check` for many files)
  * @param check analyses a text and returns its findings (with fixes), e.g. `analyzeText(t, file)`
  */
-export function fixAll(text: string, file: string, check: (text: string) => { findings: Finding[]; withheld?: number[] }): FixAllResult {
+export function fixAll(text: string, file: string, check: (text: string) => { findings: Finding[]; withheld?: readonly unknown[] }): FixAllResult {
   void file;
   let current = text;
   const first = safeCheck(check, current);
@@ -70,7 +70,7 @@ export function fixAll(text: string, file: string, check: (text: string) => { fi
   return result;
 }
 
-function safeCheck(check: (text: string) => { findings: Finding[]; withheld?: number[] }, text: string): { findings: Finding[]; withheld?: number[] } | undefined {
+function safeCheck(check: (text: string) => { findings: Finding[]; withheld?: readonly unknown[] }, text: string): { findings: Finding[]; withheld?: readonly unknown[] } | undefined {
   try {
     return check(text);
   } catch {

@@ -197,6 +197,10 @@ async function suite(folder: vscode.Uri): Promise<void> {
       assert(lost.length === 0, `warnings gone while one mirror has a typo: ${lost.join(', ')}`);
       assert(!qp.lastReport(faultyUri)?.mirrors.some((m) => m.name === 'ws_bias'), 'the mirror with the typo was solved');
       assert(qp.lastReport(faultyUri)?.mirrors.some((m) => m.name === 'wilson_ref'), 'the next mirror was not solved');
+      // A lens on the mirror's name says why it shows no figures.
+      const lenses = await vscode.commands.executeCommand<vscode.CodeLens[]>('vscode.executeCodeLensProvider', faultyUri);
+      const aside = lenses.find((l) => l.range.start.line === first && /^not solved/.test(l.command?.title ?? ''));
+      assert(aside, `no "not solved" lens on line ${first + 1}: ${lenses.map((l) => `${l.range.start.line}:${l.command?.title}`).join(' | ')}`);
     } finally {
       await setText(editor, new vscode.Range(kindAt, kindAt.translate(0, 'wide-swng'.length)), 'wide-swing');
       await waitFor('the typo\'s error to clear', () => !qpointDiagnostics(faultyUri)
