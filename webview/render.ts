@@ -34,7 +34,7 @@ export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderCont
     content.append(header(report, state.notice));
     const general = fileFindings(report);
     if (general.length > 0) content.append(section('file-findings', 'File', findingsTable(general, ctx)));
-    if (report.mirrors.length === 0) {
+    if (report.mirrors.length === 0 && !report.withheld?.length) {
       content.append(h('p', { class: 'notice', id: 'notice' }, report.parsed ? 'This spec has no mirrors yet.' : 'The spec could not be read; see the findings above.'));
     } else {
       content.append(section('mirrors', 'Mirrors', h('div', { class: 'scroll-x' }, overview(report, state.selected, ctx))));
@@ -95,7 +95,8 @@ function baseName(file: string): string {
 
 function overview(report: FileReport, selected: string | undefined, ctx: RenderContext): HTMLElement {
   const items = mirrorList(report);
-  const rows: TableRow[] = items.map((it) => ({
+  // Each row with the mirror's place in the file, so a set-aside mirror sits where it is written.
+  const placed: { at: number; row: TableRow }[] = items.map((it, k) => ({ at: fileIndex(report.mirrors[k]?.path), row: {
     key: `mirror:${it.name}`,
     className: it.worst ? `has-${it.worst}` : undefined,
     selected: ctx.mode === 'panel' ? it.name === selected : undefined,
@@ -107,12 +108,31 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
       { text: it.iout }, { text: it.error }, { text: it.compliance },
       { text: findingCounts(it.counts, it.converged) },
     ],
-  }));
+  } }));
+  // Mirrors set aside for their errors: a row each, so the list still names every mirror.
+  for (const w of report.withheld ?? []) {
+    const name = w.name ?? `mirror ${w.index + 1}`;
+    placed.push({ at: w.index, row: {
+      key: `aside:${w.index}`,
+      className: 'has-error',
+      actionLabel: ctx.mode === 'panel' ? `Show mirror ${name} in the editor` : undefined,
+      onActivate: ctx.mode === 'panel' ? () => ctx.onReveal(w.range) : undefined,
+      cells: [
+        { text: name }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' },
+        { text: h('span', { class: 'finding-counts' }, h('span', { class: 'severity severity-error' }, 'not solved: fix its errors')) },
+      ],
+    } });
+  }
+  const rows = placed.sort((a, b) => a.at - b.at).map((p) => p.row);  // stable: a bank's outputs keep their order
   return table('Mirrors of this spec', [
     { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false }, { label: 'Type', numeric: false },
     { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
     { label: 'Findings', numeric: false },
   ], rows, { id: 'mirror-list' });
+}
+
+function fileIndex(path: readonly (string | number)[] | undefined): number {
+  return path && typeof path[1] === 'number' ? path[1] : Number.MAX_SAFE_INTEGER;
 }
 
 function findingCounts(counts: Record<'error' | 'warning' | 'info', number>, converged: boolean): HTMLElement {

@@ -54,7 +54,9 @@ export function applyHostMessage(state: PanelState, message: HostMessage): Panel
         !message.report.mirrors.some((m) => m.name === shown.name || m.path[1] === shown.path[1]) &&
         errors.some((f) => f.path[0] === 'mirrors' && f.path[1] === shown.path[1]));
       if (message.uri === state.uri && last && last.mirrors.length > 0 && lost && errors.length > 0) {
-        const report: FileReport = { ...message.report, mirrors: last.mirrors, anchors: last.anchors, title: message.report.title ?? last.title };
+        // The last numbers include the mirror being edited: it is not "set aside" in this view.
+        const { withheld: _aside, ...rest } = message.report;
+        const report: FileReport = { ...rest, mirrors: last.mirrors, anchors: last.anchors, title: message.report.title ?? last.title };
         return { uri: message.uri, version: message.version, report, selected: keepSelection(report, state.selected), notice: STALE_NOTICE, stale: true };
       }
       return {

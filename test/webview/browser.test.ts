@@ -166,6 +166,32 @@ describe('the bias panel page', () => {
     await page.close();
   });
 
+  it('lists a mirror set aside for a typo, and reveals it on click', async () => {
+    // The real core on the example with `kind: wilsn`: that mirror is not solved, the rest are.
+    const text = readFileSync(EXAMPLE, 'utf8');
+    const typo = text.replace('kind: wilson\n', 'kind: wilsn\n');
+    expect(typo).not.toBe(text);
+    const partial = analyzeText(typo, EXAMPLE, OPTIONS);
+    const aside = partial.withheld?.[0];
+    expect(aside?.name).toBe('wilson_ref');
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: partial, version: 1 });
+    const row = page.locator(`#mirror-list tr[data-key="aside:${aside!.index}"]`);
+    await expect.poll(() => row.innerText()).toMatch(/wilson_ref[\s\S]*not solved: fix its errors/);
+    expect(await page.locator('#mirror-list tr[data-key^="mirror:"]').count()).toBe(partial.mirrors.length);
+    // In file order: between the wide-swing mirror and the balanced Wilson, where it is written.
+    const keys = await page.locator('#mirror-list tr[data-key]').evaluateAll((rows) => rows.map((r) => (r as HTMLElement).dataset.key));
+    expect(keys.slice(keys.indexOf(`aside:${aside!.index}`) - 1, keys.indexOf(`aside:${aside!.index}`) + 2))
+      .toEqual(['mirror:ws_bias', `aside:${aside!.index}`, 'mirror:wilson_p']);
+    ensureDir(OUT);
+    await page.screenshot({ path: join(OUT, 'panel-typo.png') });
+    await row.click();
+    await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
+      .toEqual({ type: 'reveal', uri: URI, range: aside!.range });
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
   it('selects another output, keeps the choice across updates and reloads', async () => {
     const { main, updated } = core();
     const { page, probe } = await openPanel();
