@@ -288,13 +288,16 @@ function main(): void {
   const cli = join(root, 'dist', 'cli.js');
   const cliRuns = quick ? 5 : 15;
   let cliResult: {
-    nodeStart: Timing; yamlFloor: Timing; version: Timing; check500: Timing & { status: number | null }; checkExample: Timing; chars: number;
+    nodeStart: Timing; yamlFloor: Timing; version: Timing; check500: Timing & { status: number | null };
+    check500Distinct: Timing & { status: number | null }; checkExample: Timing; chars: number;
   } | undefined;
   if (existsSync(cli)) {
     const dir = mkdtempSync(join(tmpdir(), 'qpoint-bench-'));
     try {
       const file = join(dir, 'big.bias.yaml');
       writeFileSync(file, big500Text);
+      const distinct = join(dir, 'distinct.bias.yaml');
+      writeFileSync(distinct, cleanSpecText(500, { distinct: true }));
       cliResult = {
         nodeStart: spawnTiming(cliRuns, ['-e', '0']),
         // The floor under any check of this file: Node plus the yaml package (bundled as the CLI
@@ -302,6 +305,7 @@ function main(): void {
         yamlFloor: spawnTiming(cliRuns, [yamlFloorScript(dir, file)]),
         version: spawnTiming(cliRuns, [cli, '--version']),
         check500: spawnTiming(cliRuns, [cli, 'check', file]),
+        check500Distinct: spawnTiming(cliRuns, [cli, 'check', distinct]),
         checkExample: spawnTiming(cliRuns, [cli, 'check', join(root, 'examples/sensor-afe.bias.yaml')]),
         chars: big500Text.length,
       };
@@ -387,6 +391,7 @@ function main(): void {
     console.log(`       qpoint --version (+ module load) ${t(cliResult.version)}`);
     console.log(`       qpoint check example             ${t(cliResult.checkExample)}`);
     console.log(`  ${ok(checks.cli500Ms)} qpoint check, clean 500 mirrors  ${t(cliResult.check500)}   (≤ 150 ms; exit ${cliResult.check500.status})`);
+    console.log(`       … 500 distinct mirrors          ${t(cliResult.check500Distinct)}   (no two circuits alike; exit ${cliResult.check500Distinct.status})`);
   } else {
     console.log(`  MISS cli: ${cli} is missing (npm run build)`);
   }

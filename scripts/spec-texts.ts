@@ -26,10 +26,11 @@ export const HALDEN_HEADER = [
  * cascodes and balanced Wilsons with their outputs where every device keeps its margin, in block
  * and flow style, some through params. About 190 characters a mirror.
  */
-export function cleanSpecText(n: number): string {
+export function cleanSpecText(n: number, opts: { distinct?: boolean } = {}): string {
   const lines: string[] = [HALDEN_HEADER];
   for (let i = 0; i < n; i++) {
-    const iin = 8 + (i % 5) * 2;            // µA
+    // distinct: every mirror its own input current (no two circuits alike, analysis/repeats.ts)
+    const iin = opts.distinct ? +(8 + (i % 5) * 2 + i * 0.001).toFixed(3) : 8 + (i % 5) * 2;  // µA
     const m = 1 + (i % 3);
     switch (i % 4) {
       case 0:
