@@ -38,7 +38,9 @@ export function runCheck(c: CheckCommand): number {
       const text = renderText(r);
       if (text) process.stdout.write(text + '\n');
     }
-    process.stdout.write(`${plural(mirrors, 'mirror output')} checked in ${plural(reports.length, 'file')}: ` +
+    const aside = reports.reduce((n, r) => n + (r.withheld?.length ?? 0), 0);
+    const asideText = aside > 0 ? ` (${plural(aside, 'mirror')} not solved until ${aside === 1 ? 'its' : 'their'} errors are fixed)` : '';
+    process.stdout.write(`${plural(mirrors, 'mirror output')} checked in ${plural(reports.length, 'file')}${asideText}: ` +
       `${plural(counts.error, 'error')}, ${plural(counts.warning, 'warning')}, ${plural(counts.info, 'note')}\n`);
     if (mirrors > 0) process.stdout.write(`note: ${CAUTION}\n`);
   }

@@ -177,6 +177,10 @@ describe('fix, report, sweep', () => {
     // The other mirrors' findings are still listed (the faulty fixture's physics errors).
     expect(r.stdout.split('\n').filter((l) => / (error|warning) /.test(l)).length).toBeGreaterThan(1);
     expect(readFileSync(copy, 'utf8')).toBe(typo);
+    // check says which part was not solved
+    const checked = qpoint(['check', copy]);
+    expect(checked.code).toBe(1);
+    expect(checked.stdout).toMatch(/mirror outputs checked in 1 file \(1 mirror not solved until its errors are fixed\): /);
   });
 
   it('report writes one self-contained page with the report data', () => {
