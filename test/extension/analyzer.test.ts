@@ -5,41 +5,14 @@
  * computed there): a simple NMOS mirror, W/L = 10, IREF = 100 µA, VOUT = 1.5 V → IOUT =
  * 103.9103 µA (references.md §9 "Constructed check on D").
  */
-import { afterEach, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
-import { join, resolve } from 'node:path';
-import { WorkerAnalyzer } from '../../src/extension/analyzer';
+import { join } from 'node:path';
 import { isWorkerRequest, isWorkerResponse } from '../../src/extension/workerProtocol';
+import { D_SPEC, trackedAnalyzers, WORKER } from './worker-fixtures';
 
-const WORKER = resolve(__dirname, '../../dist/worker.js');
-
-export const D_SPEC = (iin: string) => `format: 1
-process:
-  tnom: 300 K
-  nmos: { kp: 134u, vt0: 0.7, lambda: 0.1, gamma: 0.45, phi: 0.9 }
-  pmos: { kp: 38u, vt0: 0.8, lambda: 0.2, gamma: 0.4, phi: 0.8 }
-supplies: { vdd: 3 }
-mirrors:
-  - name: copy
-    kind: simple
-    type: nmos
-    input: ${iin}
-    size: { w: 10u, l: 1u }
-    output: { v: 1.5 }
-`;
-
-let analyzers: WorkerAnalyzer[] = [];
-afterEach(() => {
-  for (const a of analyzers) a.dispose();
-  analyzers = [];
-});
-
-function make(path = WORKER, jobTimeoutMs?: number): WorkerAnalyzer {
-  const a = new WorkerAnalyzer(path, { jobTimeoutMs });
-  analyzers.push(a);
-  return a;
-}
+const make = trackedAnalyzers();
 
 describe('worker protocol guards', () => {
   it('rejects malformed messages', () => {

@@ -10,41 +10,15 @@
  * with gm/ID = 2/VOV = 2/0.3672 V (square law, references.md §9), each device contributes
  * (gm/ID·σVT)² + (σβ/β)², two devices: σ = √(2·(0.487² + 0.224²)) % = 0.758 %.
  */
-import { afterEach, describe, expect, it } from 'vitest';
-import { resolve } from 'node:path';
-import { WorkerAnalyzer } from '../../src/extension/analyzer';
+import { describe, expect, it } from 'vitest';
+import { D_SPEC, trackedAnalyzers, WORKER } from './worker-fixtures';
 import { groupDigits, MC_SAMPLES, monteCarloRun, percentDone, progressMessage, sampledOutputs, summaryMessage } from '../../src/extension/monteCarloText';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { isPageMessage, isRunMonteCarloMessage } from '../../src/protocol/messages';
 
-const WORKER = resolve(__dirname, '../../dist/worker.js');
-
-const SPEC = `format: 1
-process:
-  tnom: 300 K
-  nmos: { kp: 134u, vt0: 0.7, lambda: 0.1, gamma: 0.45, phi: 0.9, avt: 4 mV·µm, abeta: 1 %·µm }
-  pmos: { kp: 38u, vt0: 0.8, lambda: 0.2, gamma: 0.4, phi: 0.8 }
-supplies: { vdd: 3 }
-mirrors:
-  - name: copy
-    kind: simple
-    type: nmos
-    input: 100u
-    size: { w: 10u, l: 1u }
-    output: { v: 1.5 }
-`;
-
-let analyzers: WorkerAnalyzer[] = [];
-afterEach(() => {
-  for (const a of analyzers) a.dispose();
-  analyzers = [];
-});
-
-function make(jobTimeoutMs = 0): WorkerAnalyzer {
-  const a = new WorkerAnalyzer(WORKER, { jobTimeoutMs });
-  analyzers.push(a);
-  return a;
-}
+const SPEC = D_SPEC('100u', ', avt: 4 mV·µm, abeta: 1 %·µm');
+const makeAnalyzer = trackedAnalyzers(0);
+const make = (jobTimeoutMs = 0) => makeAnalyzer(WORKER, jobTimeoutMs);
 
 /** Resolve once `probe` is true, polling every 10 ms, or fail at the deadline. */
 async function until(what: string, probe: () => boolean, ms: number): Promise<void> {
