@@ -6,18 +6,9 @@
 import { runCorners } from '../src/core/variation/corners';
 import { runMonteCarlo } from '../src/core/variation/montecarlo';
 import { applyDesignTargets } from '../src/core/design/auto-size';
-import type { CornerSpec, DeviceParams, DeviceSize, ResolvedSpec, TemplateKind, TemplateMirror } from '../src/core/types';
+import type { CornerSpec, DeviceSize, ResolvedSpec, TemplateKind, TemplateMirror } from '../src/core/types';
 import { OUTPUT_ROLES, ROLES } from '../src/core/types';
-
-/** The invented "Halden 180" process of the example spec. */
-const NMOS: DeviceParams = {
-  kp: 280e-6, vt0: 0.45, lambda: 0.08, lref: 1e-6, gamma: 0.45, phi: 0.85, n: 1.3, tcv: -1e-3, bex: -1.5,
-  avt: 4e-9, abeta: 1e-8, lmin: 0.18e-6, wmin: 0.22e-6,
-};
-const PMOS: DeviceParams = {
-  kp: 70e-6, vt0: 0.48, lambda: 0.1, lref: 1e-6, gamma: 0.4, phi: 0.8, n: 1.35, tcv: -1.2e-3, bex: -1.3,
-  avt: 5e-9, abeta: 1.2e-8, lmin: 0.18e-6, wmin: 0.22e-6,
-};
+import { HALDEN_NMOS, HALDEN_PMOS } from './spec-texts';
 
 const CORNERS: CornerSpec[] = [
   { name: 'ss', path: ['corners', 'ss'], nmos: { vt0: { add: 0.05 }, kp: { scale: -0.1 } }, pmos: { vt0: { add: 0.05 }, kp: { scale: -0.1 } }, temperature: 398.15, vdd: 1.62 },
@@ -41,7 +32,7 @@ function templateMirror(kind: TemplateKind, size: DeviceSize, vout: number, extr
 function specOf(m: TemplateMirror): ResolvedSpec {
   return {
     format: 1,
-    process: { model: 'square-law', tnom: 300.15, temperature: 300.15, grid: 10e-9, nmos: NMOS, pmos: PMOS },
+    process: { model: 'square-law', tnom: 300.15, temperature: 300.15, grid: 10e-9, nmos: HALDEN_NMOS, pmos: HALDEN_PMOS },
     supplies: { vdd: 1.8, vss: 0 },
     limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 },
     params: {}, mirrors: [m], corners: CORNERS,

@@ -29,21 +29,13 @@ import { parseSpec } from '../src/core/spec/index';
 import { runRules } from '../src/core/rules/index';
 import { SPEC_LIMITS } from '../src/core/defaults';
 import { benchVariation } from './bench-variation';
-import { cleanSpecText, faultyExampleText } from './spec-texts';
+import { cleanSpecText, faultyExampleText, HALDEN_NMOS, HALDEN_PMOS } from './spec-texts';
 import type {
-  DeviceParams, DeviceSize, MirrorOutput, NetlistMirror, Polarity, ResolvedMirror, ResolvedSpec,
+  DeviceSize, MirrorOutput, NetlistMirror, Polarity, ResolvedMirror, ResolvedSpec,
   TemplateKind, TemplateMirror,
 } from '../src/core/types';
 import { OUTPUT_ROLES, ROLES } from '../src/core/types';
 
-const HALDEN_N: DeviceParams = {
-  kp: 280e-6, vt0: 0.45, lambda: 0.08, lref: 1e-6, gamma: 0.45, phi: 0.85, n: 1.3, tcv: -1e-3, bex: -1.5,
-  avt: 4e-9, abeta: 1e-8, lmin: 0.18e-6, wmin: 0.22e-6,
-};
-const HALDEN_P: DeviceParams = {
-  kp: 70e-6, vt0: 0.48, lambda: 0.1, lref: 1e-6, gamma: 0.4, phi: 0.8, n: 1.35, tcv: -1.2e-3, bex: -1.3,
-  avt: 5e-9, abeta: 1.2e-8, lmin: 0.18e-6, wmin: 0.22e-6,
-};
 const VDD = 1.8;
 const KINDS: TemplateKind[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'];
 
@@ -82,7 +74,7 @@ function netlistMirror(index: number, type: Polarity): NetlistMirror {
 function spec(mirrors: ResolvedMirror[]): ResolvedSpec {
   return {
     format: 1, title: 'Kestrel bias benchmark (Halden 180)',
-    process: { model: 'square-law', tnom: 300.15, temperature: 300.15, nmos: HALDEN_N, pmos: HALDEN_P },
+    process: { model: 'square-law', tnom: 300.15, temperature: 300.15, nmos: HALDEN_NMOS, pmos: HALDEN_PMOS },
     supplies: { vdd: VDD, vss: 0 }, limits: { margin: 0.1, error: 0.01, sourceHeadroom: 0.2, tolerance: 0.05 },
     params: {}, mirrors, corners: [],
   };

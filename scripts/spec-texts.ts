@@ -3,6 +3,19 @@
  * bias distribution of any size, and the shipped example with classic faults written in.
  */
 
+import type { DeviceParams } from '../src/core/types';
+
+/** The invented "Halden 180" process of the example spec, resolved (SI units), for the
+ *  benchmarks that build specs without parsing them. */
+export const HALDEN_NMOS: DeviceParams = {
+  kp: 280e-6, vt0: 0.45, lambda: 0.08, lref: 1e-6, gamma: 0.45, phi: 0.85, n: 1.3, tcv: -1e-3, bex: -1.5,
+  avt: 4e-9, abeta: 1e-8, lmin: 0.18e-6, wmin: 0.22e-6,
+};
+export const HALDEN_PMOS: DeviceParams = {
+  kp: 70e-6, vt0: 0.48, lambda: 0.1, lref: 1e-6, gamma: 0.4, phi: 0.8, n: 1.35, tcv: -1.2e-3, bex: -1.3,
+  avt: 5e-9, abeta: 1.2e-8, lmin: 0.18e-6, wmin: 0.22e-6,
+};
+
 /** The process, supplies and limits of the example spec, ending with `mirrors:`. */
 export const HALDEN_HEADER = [
   'format: 1',
