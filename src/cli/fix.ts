@@ -31,5 +31,9 @@ export function runFix(c: FixCommand): number {
     process.stdout.write(createTwoFilesPatch(`a/${name}`, `b/${name}`, read.text, result.text));
   }
   for (const f of result.remaining) process.stdout.write(findingLine(name, f) + '\n');
+  for (const u of result.unfixed) {
+    const at = u.finding.range.start;
+    process.stdout.write(`not fixed ${u.finding.code} at ${name}:${at.line + 1}:${at.character + 1}: ${u.text}\n`);
+  }
   return result.remaining.some((f) => f.severity === 'error') ? 1 : 0;
 }

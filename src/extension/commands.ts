@@ -10,6 +10,7 @@ import { toDiagnostics, toWorkspaceEdit } from './convert';
 import { minimalEdit } from './edits';
 import { countFindings } from './present';
 import { isSpecDocument, SPEC_GLOBS } from './specDocuments';
+import type { FixAllResult } from '../core/rules/fix-all';
 
 export interface CheckSummary { files: number; checked: number; errors: number; warnings: number; cancelled: boolean }
 export interface FixAllSummary { applied: number; rounds: number; remaining: number; changed: boolean }
@@ -95,10 +96,17 @@ export async function fixAllInEditor(c: CommandContext): Promise<FixAllSummary |
   const errors = result.remaining.filter((f) => f.severity === 'error').length;
   const summary: FixAllSummary = { applied: result.applied.length, rounds: result.rounds, remaining: result.remaining.length, changed: !!edit };
   void vscode.window.showInformationMessage(summary.applied > 0
-    ? `qpoint: applied ${summary.applied} fix${summary.applied === 1 ? '' : 'es'}; ${errors} error${errors === 1 ? '' : 's'} remain.`
+    ? `qpoint: applied ${summary.applied} fix${summary.applied === 1 ? '' : 'es'}; ${errors} error${errors === 1 ? '' : 's'} remain${notFixed(result.unfixed)}.`
     : result.withheld ? 'qpoint: no fixes while the spec has errors; fix them first (the other mirrors are still checked).'
       : 'qpoint: no preferred fix improves this spec.');
   return summary;
+}
+
+/** `; could not fix ratio-error (line 14): …` for the errors fix-all left, so a stop is never silent. */
+function notFixed(unfixed: FixAllResult['unfixed']): string {
+  const errors = unfixed.filter((u) => u.finding.severity === 'error');
+  if (errors.length === 0) return '';
+  return `; could not fix ${errors.map((u) => `${u.finding.code} (line ${u.finding.range.start.line + 1}): ${u.text}`).join('; ')}`;
 }
 
 /** Writes the self-contained HTML report; `target` skips the save dialog (tests, scripts). */

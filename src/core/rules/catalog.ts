@@ -14,6 +14,11 @@ export interface RuleInfo {
   why: string;
   /** The usual fix (and whether qpoint offers it as a quick fix). */
   fix: string;
+  /**
+   * Its fix changes the drawn geometry every other fix is computed on (a length below lmin):
+   * fix-all applies it before the others, so a ratio trim is not sized on a length that must change.
+   */
+  fixFirst?: true;
 }
 
 export const DESIGN_RULES: readonly RuleInfo[] = [
@@ -72,13 +77,13 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Use `model: ekv` in process (offered as a quick fix when the whole file still checks clean with it).',
   },
   {
-    code: 'below-lmin', severity: 'error',
+    code: 'below-lmin', severity: 'error', fixFirst: true,
     summary: 'A drawn length is below the process lmin.',
     why: 'The process cannot draw it, and the models are not valid there.',
     fix: 'Raise L to lmin at constant W/L (quick fix).',
   },
   {
-    code: 'below-wmin', severity: 'error',
+    code: 'below-wmin', severity: 'error', fixFirst: true,
     summary: 'A drawn width is below the process wmin.',
     why: 'The process cannot draw it, and narrow-width effects are outside the models.',
     fix: 'Raise W to wmin at constant W/L (quick fix).',

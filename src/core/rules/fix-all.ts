@@ -6,9 +6,15 @@
  * Progress is measured as (errors, warnings), compared in that order: a round is kept only if it
  * removes an error, or removes a warning without adding an error. Info findings are suggestions
  * and are never applied. At most MAX_ROUNDS rounds.
+ *
+ * Fixes of drawn geometry (RuleInfo.fixFirst: a length below lmin) go first: every other fix is
+ * sized on the geometry, so a ratio trim made before the length is raised is stale at once (and
+ * the length fix, re-verified against the trimmed ratio, may no longer hold). What is left at the
+ * end is listed in `unfixed` with the reason, so a run that stops never stops silently.
  */
 import type { Finding, Fix, Severity, TextEdit } from '../types';
 import { applyEdits } from '../spec/edit';
+import { RULES_BY_CODE } from './catalog';
 
 export const MAX_ROUNDS = 8;
 
@@ -17,8 +23,18 @@ export interface FixAllResult {
   rounds: number;
   applied: { code: string; title: string }[];
   remaining: Finding[];
+  /** Every remaining error and warning, with why fix-all left it (in `remaining`'s order). */
+  unfixed: Unfixed[];
   /** The spec has mirrors with errors (FileReport.withheld): no fix is offered until they are fixed. */
   withheld?: boolean;
+}
+
+/** A finding fix-all could not remove, and why. */
+export interface Unfixed {
+  finding: Finding;
+  reason: 'no-fix' | 'no-progress' | 'rounds';
+  /** One line for a person: `no verified fix`, … */
+  text: string;
 }
 
 interface Candidate { code: string; fix: Fix; severity: Severity; group: string }
@@ -35,10 +51,12 @@ export function fixAll(text: string, file: string, check: (text: string) => { fi
   let findings = first?.findings ?? [];
   let rounds = 0;
   const applied: { code: string; title: string }[] = [];
+  let stop: Unfixed['reason'] = 'rounds';
 
-  while (rounds < MAX_ROUNDS) {
+  while (true) {
     const candidates = preferredFixes(findings);
-    if (candidates.length === 0) break;
+    if (candidates.length === 0) { stop = 'no-fix'; break; }
+    if (rounds >= MAX_ROUNDS) break;
     rounds++;
     const before = score(findings);
     let accepted = false;
@@ -63,9 +81,9 @@ export function fixAll(text: string, file: string, check: (text: string) => { fi
         }
       }
     }
-    if (!accepted) break;
+    if (!accepted) { stop = 'no-progress'; break; }
   }
-  const result: FixAllResult = { text: current, rounds, applied, remaining: findings };
+  const result: FixAllResult = { text: current, rounds, applied, remaining: findings, unfixed: unfixedOf(findings, stop) };
   if (applied.length === 0 && (first?.withheld?.length ?? 0) > 0) result.withheld = true;
   return result;
 }
@@ -78,14 +96,28 @@ function safeCheck(check: (text: string) => { findings: Finding[]; withheld?: re
   }
 }
 
-/** Preferred fixes of error and warning findings, errors first, in reading order. */
+/** Why each remaining error and warning is still there, once the loop has stopped for `stop`. */
+function unfixedOf(findings: Finding[], stop: Unfixed['reason']): Unfixed[] {
+  const out: Unfixed[] = [];
+  for (const f of findings) {
+    if (f.severity === 'info') continue;
+    const fix = f.fixes?.find((x) => x.preferred);
+    if (!fix || fix.edits.length === 0) out.push({ finding: f, reason: 'no-fix', text: 'no verified fix' });
+    else if (stop === 'rounds') out.push({ finding: f, reason: 'rounds', text: `stopped after ${MAX_ROUNDS} rounds` });
+    else out.push({ finding: f, reason: 'no-progress', text: `its fix (${fix.title}) does not leave the file with fewer errors` });
+  }
+  return out;
+}
+
+/** Fixes of drawn geometry first, then errors, then warnings; each in reading order. */
 function preferredFixes(findings: Finding[]): Candidate[] {
   const out: Candidate[] = [];
-  for (const severity of ['error', 'warning'] as const) {
+  const rank = (f: Finding) => (RULES_BY_CODE.get(f.code)?.fixFirst ? 0 : f.severity === 'error' ? 1 : 2);
+  for (const stage of [0, 1, 2]) {
     for (const f of findings) {
-      if (f.severity !== severity) continue;
+      if (f.severity === 'info' || rank(f) !== stage) continue;
       const fix = f.fixes?.find((x) => x.preferred);
-      if (fix && fix.edits.length > 0) out.push({ code: f.code, fix, severity, group: groupOf(f) });
+      if (fix && fix.edits.length > 0) out.push({ code: f.code, fix, severity: f.severity, group: groupOf(f) });
     }
   }
   return out;
