@@ -8,6 +8,7 @@ import { isRecord } from './spec/params';
 import { parseSpec, type ParsedSpec } from './spec/index';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
+import { withSuggestionFixes } from './spec/suggestion-fixes';
 import { buildAnchors } from './anchors';
 import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
@@ -39,7 +40,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
   try {
     parsed = parseSpec(text, file);
     if (!parsed.spec) {
-      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(parsed.findings), anchors: [] };
+      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
     }
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
@@ -48,7 +49,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     const findings: Finding[] = [
-      ...parsed.findings,
+      ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
       ...runRules(withSpec, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),

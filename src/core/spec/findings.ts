@@ -9,8 +9,16 @@ export function formatPath(path: SpecPath): string {
   return s || '(root)';
 }
 
+/**
+ * A did-you-mean that can be applied: `word` replaces the token at `range` (quotes kept). The
+ * quick fix is made from it only once re-reading the edited text shows the finding gone
+ * (spec/suggestion-fixes.ts).
+ */
+export interface SpecSuggestion { finding: Finding; range: Range; word: string }
+
 export class FindingSink {
   readonly list: Finding[] = [];
+  readonly suggestions: SpecSuggestion[] = [];
   private readonly seen = new Set<string>();
   private errors = 0;
 
@@ -20,16 +28,20 @@ export class FindingSink {
    * Add a finding. `once` names the fact (e.g. 'missing-key:size'); a second finding with the same
    * fact at the same path is dropped, so the schema and the elaborator never report one thing twice.
    */
-  add(severity: Severity, code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
+  add(severity: Severity, code: string, message: string, path: SpecPath, range?: Range, once?: string): Finding | undefined {
     const key = `${once ?? code}@${JSON.stringify(path)}`;
-    if (this.seen.has(key)) return;
+    if (this.seen.has(key)) return undefined;
     this.seen.add(key);
     if (severity === 'error') this.errors++;
-    this.list.push({ severity, code, message, path, range: range ?? this.src.narrow(path) });
+    const f: Finding = { severity, code, message, path, range: range ?? this.src.narrow(path) };
+    this.list.push(f);
+    return f;
   }
 
-  error(code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
-    this.add('error', code, message, path, range, once);
+  /** An error whose fix is a replacement word for its own token (a did-you-mean), if `word` is given. */
+  error(code: string, message: string, path: SpecPath, range?: Range, once?: string, word?: string): void {
+    const f = this.add('error', code, message, path, range, once);
+    if (f && word !== undefined) this.suggestions.push({ finding: f, range: f.range, word });
   }
 
   warning(code: string, message: string, path: SpecPath, range?: Range, once?: string): void {

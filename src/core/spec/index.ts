@@ -11,7 +11,7 @@
 import type { Finding, ResolvedSpec } from '../types';
 import { readDocument } from './document';
 import { elaborate } from './elaborate';
-import { FindingSink } from './findings';
+import { FindingSink, type SpecSuggestion } from './findings';
 import { LineIndex, ZERO_RANGE } from './positions';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
@@ -31,6 +31,8 @@ export interface ParsedSpec {
   data?: unknown;
   /** A partial spec: file indices of the mirrors left out because they have errors. */
   withheld?: number[];
+  /** Did-you-means that can be applied to their token (not yet verified: spec/suggestion-fixes.ts). */
+  suggestions?: SpecSuggestion[];
 }
 
 const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
@@ -72,6 +74,7 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     validateSchema(read.data, sink);
     const spec = elaborate(read.data, sink);
     const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
+    if (sink.suggestions.length > 0) out.suggestions = sink.suggestions;
     if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
     else if (spec !== undefined) {
       const withheld = mirrorsInError(sink.list);

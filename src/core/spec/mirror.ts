@@ -8,7 +8,7 @@ import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';
 import { buildSize, readSizeLayer } from './sizes';
 import type { SizeContext, SizeLayer } from './sizes';
-import { didYouMean } from './suggest';
+import { didYouMean, suggestion } from './suggest';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
@@ -103,7 +103,7 @@ function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: T
       const msg = shared
         ? `\`${role}\` belongs to the shared reference of the bank; set it in the mirror's \`devices\``
         : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${didYouMean(role, allowed)}`;
-      scope.sink.error('unknown-role', msg, at, scope.sink.src.keyOf(at));
+      scope.sink.error('unknown-role', msg, at, scope.sink.src.keyOf(at), undefined, shared ? undefined : suggestion(role, allowed));
       continue;
     }
     const layer = readSizeLayer(scope, d[role], at);

@@ -7,7 +7,7 @@ import type { NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResisto
 import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
 import { readOutput, readRequire } from './mirror';
-import { didYouMean } from './suggest';
+import { didYouMean, suggestion } from './suggest';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
@@ -179,7 +179,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     if (im.source === undefined) missing(sink, ip, 'source');
     const src = readString(sink, im.source, [...ip, 'source']);
     if (src !== undefined) {
-      if (cmap[src] === undefined) sink.error('unknown-name', `\`${src}\` is not a current source of this netlist${didYouMean(src, Object.keys(cmap))}`, [...ip, 'source']);
+      if (cmap[src] === undefined) sink.error('unknown-name', `\`${src}\` is not a current source of this netlist${didYouMean(src, Object.keys(cmap))}`, [...ip, 'source'], undefined, undefined, suggestion(src, Object.keys(cmap)));
       else input = { source: src };
     }
   }
@@ -194,7 +194,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
         if (pm[k] === undefined) { missing(sink, pp, k); continue; }
         const n = readString(sink, pm[k], [...pp, k]);
         if (n === undefined) continue;
-        if (dmap[n] === undefined) sink.error('unknown-name', `\`${n}\` is not a device of this netlist${didYouMean(n, Object.keys(dmap))}`, [...pp, k]);
+        if (dmap[n] === undefined) sink.error('unknown-name', `\`${n}\` is not a device of this netlist${didYouMean(n, Object.keys(dmap))}`, [...pp, k], undefined, undefined, suggestion(n, Object.keys(dmap)));
         else names[k] = n;
       }
       if (names.ref && names.out) pair = { ref: names.ref, out: names.out };

@@ -3,7 +3,7 @@ import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import { formatPath } from './findings';
 import { isRecord } from './params';
-import { didYouMean } from './suggest';
+import { didYouMean, suggestion } from './suggest';
 import { typeName } from './values';
 
 export type Data = Record<string, unknown>;
@@ -27,7 +27,8 @@ export function readEnum<T extends string>(sink: FindingSink, raw: unknown, path
   if (raw === undefined) return undefined;
   if (typeof raw === 'string' && (allowed as readonly string[]).includes(raw)) return raw as T;
   const dym = typeof raw === 'string' ? didYouMean(raw, allowed) : '';
-  sink.error('bad-value', `\`${formatPath(path)}\` must be one of ${allowed.join(', ')}; got ${typeName(raw)}${dym}`, path, undefined, 'enum');
+  sink.error('bad-value', `\`${formatPath(path)}\` must be one of ${allowed.join(', ')}; got ${typeName(raw)}${dym}`, path, undefined, 'enum',
+    typeof raw === 'string' ? suggestion(raw, allowed) : undefined);
   return undefined;
 }
 

@@ -13,7 +13,7 @@ import generatedValidator from './schema-validator.generated';
 import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import { formatPath } from './findings';
-import { didYouMean } from './suggest';
+import { didYouMean, suggestion } from './suggest';
 import { typeName } from './values';
 
 const validator = generatedValidator as unknown as ValidateFunction;
@@ -91,7 +91,7 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
       const known = Object.keys(parent?.properties ?? {});
       const hint = didYouMean(key, known) || (known.length && known.length <= 16 ? `; expected one of ${known.join(', ')}` : '');
       const at = [...path, key];
-      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, sink.src.keyOf(at), 'unknown');
+      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, sink.src.keyOf(at), 'unknown', suggestion(key, known));
       return;
     }
     case 'required': {
@@ -113,7 +113,8 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
       const allowed = (p.allowedValues as unknown[]).map(String);
       const got = typeName(value);
       const dym = typeof value === 'string' ? didYouMean(value, allowed) : '';
-      sink.error('bad-value', `${name} must be one of ${allowed.join(', ')}; got ${got}${dym}`, path, undefined, 'enum');
+      sink.error('bad-value', `${name} must be one of ${allowed.join(', ')}; got ${got}${dym}`, path, undefined, 'enum',
+        typeof value === 'string' ? suggestion(value, allowed) : undefined);
       return;
     }
     case 'pattern':

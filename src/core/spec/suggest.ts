@@ -39,6 +39,12 @@ export function closest(word: string, candidates: Iterable<string>): string | un
 
 /** " — did you mean `x`?" or "". */
 export function didYouMean(word: string, candidates: Iterable<string>): string {
+  const c = suggestion(word, candidates);
+  return c !== undefined ? `; did you mean \`${c}\`?` : '';
+}
+
+/** The word a did-you-mean proposes (never the word itself), or undefined. */
+export function suggestion(word: string, candidates: Iterable<string>): string | undefined {
   const c = closest(word, candidates);
-  return c !== undefined && c !== word ? `; did you mean \`${c}\`?` : '';
+  return c !== undefined && c !== word ? c : undefined;
 }

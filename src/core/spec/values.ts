@@ -9,7 +9,7 @@ import type { Quantity } from '../units/si';
 import { prefixExponent } from '../units/prefixes';
 import { evaluateExpression } from './expression';
 import type { FindingSink } from './findings';
-import { didYouMean } from './suggest';
+import { didYouMean, suggestion } from './suggest';
 
 export interface ValueScope {
   sink: FindingSink;
@@ -73,7 +73,9 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
         const range = r.start !== undefined && r.end !== undefined ? sink.src.within(path, r.start + lead, r.end + lead) : undefined;
         const extra = r.code === 'unknown-param' && r.name ? didYouMean(r.name, scope.params.keys()) : '';
         const known = r.code === 'unknown-param' && scope.params.size === 0 ? ' (the spec defines no `params`)' : '';
-        sink.error(r.code, `\`${field}\`: ${r.message}${extra}${known}`, path, range);
+        // The name is replaced only where the source spells it verbatim (range found).
+        const word = r.code === 'unknown-param' && r.name && range ? suggestion(r.name, scope.params.keys()) : undefined;
+        sink.error(r.code, `\`${field}\`: ${r.message}${extra}${known}`, path, range, undefined, word);
         return undefined;
       }
       value = r.value;
@@ -88,7 +90,8 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
       return undefined;
     } else {
       const code = read.reason === 'empty' ? 'bad-value' : 'bad-unit';
-      sink.error(code, `\`${field}\` is ${describeRead(read, q, text).replace(/^expected /, '')}`, path);
+      const fix = read.reason === 'wrong-unit' || read.reason === 'unknown-unit' ? read.fix : undefined;
+      sink.error(code, `\`${field}\` is ${describeRead(read, q, text).replace(/^expected /, '')}`, path, undefined, undefined, fix);
       return undefined;
     }
   } else {

@@ -108,8 +108,8 @@ export type QuantityRead =
   | { ok: false; reason: 'not-literal' }
   | { ok: false; reason: 'empty' }
   /** The unit belongs to another quantity (`got`). */
-  | { ok: false; reason: 'wrong-unit'; unit: string; got: Quantity }
-  | { ok: false; reason: 'unknown-unit'; unit: string; hint?: string };
+  | { ok: false; reason: 'wrong-unit'; unit: string; got: Quantity; fix?: string }
+  | { ok: false; reason: 'unknown-unit'; unit: string; hint?: string; fix?: string };
 
 /** Sum of prefix exponents when `unit` spells `form`, else undefined. Backtracks over prefixes. */
 function matchForm(unit: string, form: UnitForm): number | undefined {
@@ -153,16 +153,24 @@ export function identifyUnit(unit: string): Quantity | undefined {
   return undefined;
 }
 
-function hintFor(unit: string, q: Quantity): string | undefined {
+/** A hint for a common slip in a unit, and the unit it suggests (for the quick fix). */
+function hintFor(unit: string, q: Quantity): { hint: string; alt?: string } | undefined {
   const tries: [string, string][] = [];
   if (unit.startsWith('K')) tries.push(['k' + unit.slice(1), 'kilo is a lowercase `k`']);
   if (unit.startsWith('U')) tries.push(['u' + unit.slice(1), 'micro is `u` or `µ`']);
   if (/^meg/i.test(unit)) tries.push(['M' + unit.slice(3), 'mega is `M` (and `m` is milli)']);
-  for (const [alt, why] of tries) if (fits(alt, q)) return `${why}: write \`${alt}\``;
-  if (q === 'temperature') return 'a temperature takes °C or K, without a prefix';
+  for (const [alt, why] of tries) if (fits(alt, q)) return { hint: `${why}: write \`${alt}\``, alt };
+  if (q === 'temperature') return { hint: 'a temperature takes °C or K, without a prefix' };
   for (const alt of [unit[0] + unit.slice(1).toUpperCase(), unit.toLowerCase(), unit.toUpperCase()]) {
-    if (alt !== unit && fits(alt, q)) return `unit symbols are case-sensitive: did you mean \`${alt}\`?`;
+    if (alt !== unit && fits(alt, q)) return { hint: `unit symbols are case-sensitive: did you mean \`${alt}\`?`, alt };
   }
+  return undefined;
+}
+
+/** The prefix of a unit of another quantity (`uA` → `u`), when it fits q alone. */
+function prefixOnly(unit: string, q: Quantity): string | undefined {
+  if (q === 'temperature') return undefined;
+  for (const pre of PREFIX_SYMBOLS) if (unit.length > pre.length && unit.startsWith(pre) && fits(pre, q)) return pre;
   return undefined;
 }
 
@@ -182,9 +190,19 @@ export function readQuantity(text: string, q: Quantity): QuantityRead {
     // °C → K: round the sum to 15 digits so that -40 C is 233.15 K, not 233.14999999999998.
     return { ok: true, value: fit.offset ? Number((v + fit.offset).toPrecision(15)) : v };
   }
+  // `fix`: the literal with its unit corrected (`10uA` in a length → `10u`), for a quick fix.
   const got = identifyUnit(unit);
-  if (got) return { ok: false, reason: 'wrong-unit', unit, got };
-  if (UNIT_LETTERS.test(unit)) return { ok: false, reason: 'unknown-unit', unit, hint: hintFor(unit, q) };
+  if (got) {
+    const pre = prefixOnly(unit, q);
+    return pre !== undefined ? { ok: false, reason: 'wrong-unit', unit, got, fix: num[0] + pre } : { ok: false, reason: 'wrong-unit', unit, got };
+  }
+  if (UNIT_LETTERS.test(unit)) {
+    const h = hintFor(unit, q);
+    const r: QuantityRead = { ok: false, reason: 'unknown-unit', unit };
+    if (h) r.hint = h.hint;
+    if (h?.alt !== undefined) r.fix = t.slice(0, num[0].length) + (t.slice(num[0].length).match(/^\s*/)?.[0] ?? '') + h.alt;
+    return r;
+  }
   return { ok: false, reason: 'not-literal' };
 }
 

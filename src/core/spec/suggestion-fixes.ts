@@ -1,0 +1,54 @@
+/**
+ * Quick fixes for did-you-means (`requre` → `require`, `kind: cascde` → `cascode`, `10uA` in a
+ * length → `10u`, `1mv` → `1mV`): the suggested word replaces only its token, and the fix is
+ * offered only when the edited text, read again, no longer has the finding and the edit made no
+ * error of its own: none at the edited key or value, no duplicate key. Errors elsewhere that the
+ * typo hid (the roles of a kind that could not be read) are the designer's, not the fix's.
+ * A suggestion is a guess at intent, so the fix is never preferred: fix-all does not
+ * apply it, the designer does.
+ */
+import type { Finding, Range, TextEdit } from '../types';
+import { parseSpec, type ParsedSpec } from './index';
+import { applyEdits } from './edit';
+import { LineIndex } from './positions';
+
+/** Re-reads per file (each parses the whole text; a hostile file may hold hundreds of typos). */
+const MAX_SUGGESTION_CHECKS = 20;
+
+function textAt(text: string, r: Range): string {
+  const lines = new LineIndex(text);
+  return text.slice(lines.offset(r.start), lines.offset(r.end));
+}
+
+/** `parsed.findings` with a verified fix on each finding whose suggestion holds. */
+export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[] {
+  const list = parsed.suggestions;
+  if (!list || list.length === 0) return parsed.findings;
+  const fixes = new Map<Finding, TextEdit>();
+  const before = new Set(parsed.findings.filter((f) => f.severity === 'error').map((f) => `${f.code}@${JSON.stringify(f.path)}`));
+  for (const s of list.slice(0, MAX_SUGGESTION_CHECKS)) {
+    try {
+      const token = textAt(parsed.text, s.range);
+      const q = token[0];
+      const quoted = token.length >= 2 && (q === '"' || q === "'") && token[token.length - 1] === q;
+      const edit: TextEdit = { range: s.range, newText: quoted ? `${q}${s.word}${q}` : s.word };
+      const after = parseSpec(applyEdits(parsed.text, [edit]), file);
+      const at = s.finding.path;
+      const same = JSON.stringify(at);
+      if (!after.parsed || after.findings.some((f) => f.code === s.finding.code && JSON.stringify(f.path) === same)) continue;
+      const made = after.findings.some((f) => f.severity === 'error' && !before.has(`${f.code}@${JSON.stringify(f.path)}`) &&
+        (f.code === 'duplicate-key' || (f.path.length >= at.length && at.every((p, i) => f.path[i] === p))));
+      if (made) continue;
+      fixes.set(s.finding, edit);
+    } catch {
+      // A suggestion that cannot be checked is not offered.
+    }
+  }
+  if (fixes.size === 0) return parsed.findings;
+  return parsed.findings.map((f) => {
+    const edit = fixes.get(f);
+    if (!edit) return f;
+    const token = textAt(parsed.text, edit.range).trim();
+    return { ...f, fixes: [{ title: `Change \`${token}\` to \`${edit.newText.trim()}\``, edits: [edit] }] };
+  });
+}
