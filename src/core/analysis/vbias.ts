@@ -1,8 +1,11 @@
 /**
  * Wide-swing cascode gate voltage. When the spec leaves `vbias` out, qpoint picks the value
  * that puts `ref` at VDS = VDSsat + limits.margin: Newton on vbias with the slope from the
- * linearized circuit, each step a full solve warm-started from the previous one. The pick depends only on the reference
- * branch, so one value serves every output of a bank; it is cached per (spec, mirror).
+ * linearized circuit, each step a full solve warm-started from the previous one. An `out` device
+ * sees a slightly different VDS (its cascode sits at its own Vout, so length modulation moves
+ * VGS_outc): when one falls short of the margin there, the pick aims at the worst of them instead,
+ * as long as no cascode device loses margin it had. One value serves every output of a bank
+ * (every output is in the circuit, at its nominal voltage); it is cached per (spec, mirror).
  */
 import { gateDriveFor } from '../models/evaluate';
 import type { ResolvedSpec, TemplateMirror } from '../types';
@@ -26,7 +29,11 @@ const scratch = newChannelEval();
 /** V, VDS − VDSsat − margin of `ref` at the present solution. */
 function refExcess(mc: MirrorCircuit, margin: number): number {
   const k = mc.byRole.ref;
-  if (k === undefined) return NaN;
+  return k === undefined ? NaN : excess(mc, k, margin);
+}
+
+/** V, VDS − VDSsat − margin of device k at the present solution. */
+function excess(mc: MirrorCircuit, k: number, margin: number): number {
   const m = mc.circuit.mos[k]!;
   const v = mc.ws.v, p = m.dev.sign;
   const vds = p * (v[m.d]! - v[m.s]!);
@@ -119,7 +126,53 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   }
   fixed[node] = rail + sign * best.u;
   if (bestX) mc.ws.v.set(bestX);
-  return { vbias: rail + sign * best.u, picked: true, met: Math.abs(best.g) < 1e-6 };
+  const met = Math.abs(best.g) < 1e-6;
+  if (met) {
+    const raised = raiseForOutputs(mc, node, best.u, margin, span);
+    if (raised !== undefined) return { vbias: rail + sign * raised, picked: true, met };
+  }
+  return { vbias: rail + sign * best.u, picked: true, met };
+}
+
+/**
+ * With vbias at u (ref at the margin, mc solved there): when an `out` device is short of the
+ * margin, the u (above) that puts the worst `out` at it — secant steps on full solves — if every
+ * `ref`/`out` then has the margin and no `refc`/`outc` falls below min(margin, what it had).
+ * Undefined when nothing is short or no such u exists (mc is left solved at u then).
+ */
+function raiseForOutputs(mc: MirrorCircuit, node: number, u0: number, margin: number, span: number): number | undefined {
+  const mos = mc.circuit.mos;
+  const outs = mos.flatMap((m, k) => (m.role === 'out' ? [k] : []));
+  const bottom = mos.flatMap((m, k) => (m.role === 'out' || m.role === 'ref' ? [k] : []));
+  const cascodes = mos.flatMap((m, k) => (m.role === 'outc' || m.role === 'refc' ? [k] : []));
+  const worstOut = () => Math.min(...outs.map((k) => excess(mc, k, margin)));
+  const g0 = worstOut();
+  if (!(g0 < -1e-7)) return undefined;
+  const x0 = mc.ws.v.slice();
+  const floor = cascodes.map((k) => Math.min(0, excess(mc, k, margin)));
+  const fixed = mc.circuit.fixedV;
+  const at = (u: number): number => {
+    fixed[node] = mc.rail + mc.sign * u;
+    return solveMirror(mc, mc.ws.v.slice()).converged ? worstOut() : NaN;
+  };
+  // VDS of `out` follows vbias about one to one (strong inversion): start there, then secant.
+  let u = u0, g = g0, ok = false;
+  let next = Math.min(u0 - g0, span);
+  for (let i = 0; i < 20; i++) {
+    const gn = at(next);
+    if (!Number.isFinite(gn)) break;
+    if (Math.abs(gn) < 1e-7) { u = next; ok = true; break; }
+    const slope = (gn - g) / (next - u);
+    u = next; g = gn;
+    if (!(slope > 1e-3)) break;
+    next = Math.min(Math.max(u - g / slope, 0), span);
+  }
+  const fine = ok && bottom.every((k) => excess(mc, k, margin) >= -1e-6) &&
+    cascodes.every((k, i) => excess(mc, k, margin) >= floor[i]! - 1e-6);
+  if (fine) return u;
+  fixed[node] = mc.rail + mc.sign * u0;
+  mc.ws.v.set(x0);
+  return undefined;
 }
 
 function clamp(x: number, lo: number, hi: number): number { return Math.min(Math.max(x, lo), hi); }

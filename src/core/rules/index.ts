@@ -9,7 +9,7 @@ import type { ParsedSpec } from '../spec/index';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { isAutoSized, siteOf } from './sites';
 import { MirrorFragments, sharesValues } from '../spec/fragment';
-import { accepts, recheck, type Baseline } from './verify';
+import { accepts, recheck, type Baseline, type Recheck } from './verify';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
@@ -104,7 +104,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
       specErrors: parsed.findings.filter((f) => f.severity === 'error').length,
       errors: new Set(drafts.filter((d) => d.finding.severity === 'error').map((d) => d.key)),
     };
-    const memo = new Map<string, Draft[] | undefined>();
+    const memo = new Map<string, Recheck>();
     const now = opts.now ?? Date.now;
     let widen: boolean | undefined;  // found on the first fix built: a clean file never pays for the walk
     const budget: Budget = {
@@ -117,14 +117,17 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
   }
 }
 
-function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string, Draft[] | undefined>, budget: Budget): Finding {
+function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string, Recheck>, budget: Budget): Finding {
   const fixes: Fix[] = [];
+  let untrusted: { untrusted: string; ic: number } | undefined;
   if (d.plan && budget.left > 0 && budget.now() < budget.deadline) {
     const families = new Set<string>();
+    // A family whose candidate left the square law's ground: its larger steps would too.
+    const untrustedFamilies = new Set<string>();
     let tried = 0;
     try {
-      for (const c of d.plan()) {
-        if (families.has(c.family)) continue;
+      for (const c of d.plan((family) => families.has(family))) {
+        if (families.has(c.family) || untrustedFamilies.has(c.family)) continue;
         if (tried >= MAX_VERIFICATIONS || budget.left <= 0 || budget.now() >= budget.deadline) break;
         const built = c.build();
         if (!built) continue;
@@ -134,7 +137,9 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
         // A whole-file re-check does not depend on the mirror the plan came from.
         const id = p.scope === 'spec' ? `spec:${JSON.stringify(p.edits)}` : `mirror:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
         if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect)); }
-        if (!accepts(memo.get(id), d, p, baseline)) continue;
+        const after = memo.get(id);
+        if (after && !Array.isArray(after)) { untrusted ??= after; untrustedFamilies.add(p.family); }
+        if (!accepts(after, d, p, baseline)) continue;
         families.add(p.family);
         fixes.push({ title: p.title, edits: p.edits, ...(fixes.length === 0 ? { preferred: true } : {}) });
       }
@@ -144,6 +149,13 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
   }
   const f: Finding = { ...d.finding };
   if (fixes.length > 0) f.fixes = fixes;
+  else if (untrusted) f.message = `${f.message}; ${untrustedHint(untrusted)}`;
   else if (d.hint) f.message = `${f.message}; ${d.hint}`;
   return f;
+}
+
+/** Why the sizing fix that would work is not offered, and what to do instead. */
+function untrustedHint(u: { untrusted: string; ic: number }): string {
+  return `the size that meets it puts \`${u.untrusted}\` at inversion coefficient ${u.ic.toPrecision(2)}, where the square law is not trusted: ` +
+    'size it with `model: ekv`, or take a smaller step';
 }

@@ -36,8 +36,11 @@ export interface Draft {
   key: string;
   finding: Finding;
   mirrorIndex: number;
-  /** Candidate fixes, best first, built lazily; only verified ones are offered. */
-  plan?: () => Iterable<{ family: string; build: () => FixPlan | undefined }>;
+  /**
+   * Candidate fixes, best first, built lazily; only verified ones are offered. `offered(family)`
+   * says whether a fix of that family is verified already, so a fallback is computed only when due.
+   */
+  plan?: (offered: (family: string) => boolean) => Iterable<{ family: string; build: () => FixPlan | undefined }>;
   /** Appended to the message when no verified fix exists ("a cascode would …"). */
   hint?: string;
 }

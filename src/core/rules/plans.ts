@@ -49,14 +49,14 @@ function candidate(family: string, build: () => FixPlan | undefined): Candidate 
 }
 
 /** Widen every device by one factor (lower VOV), smallest factor that meets `goal` (≥ 0). */
-export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string): Generator<Candidate> {
+export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string, family = 'widen'): Generator<Candidate> {
   if (!fixable(rc, mirrorIndex)) return;
   const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: false }, goal);
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
-    yield candidate('widen', () => {
+    yield candidate(family, () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
+      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, family);
     });
   }
 }

@@ -20,6 +20,7 @@ import { analyzeSpec } from '../analysis/index';
 import { measure } from '../sizing/devices';
 import { applyTextEdits } from './compose';
 import type { Draft, FixPlan, RuleContext } from './model';
+import { untrustedMove } from './trust';
 import { mirrorAt } from '../mirror-at';
 
 export type Detect = (rc: RuleContext) => Draft[];
@@ -45,8 +46,17 @@ export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): Mirror
   return out;
 }
 
-/** Re-check the text with the plan applied: the drafts found there, or undefined when it no longer parses cleanly. */
-export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Draft[] | undefined {
+/** A fix whose re-solve puts a square-law device below IC 1, where the numbers that verified it are not true. */
+export interface Untrusted { untrusted: string; ic: number }
+
+export type Recheck = Draft[] | Untrusted | undefined;
+
+/**
+ * Re-check the text with the plan applied: the drafts found there, Untrusted when the square
+ * law no longer holds for a device the fix moved (rules/trust.ts), or undefined when the text no
+ * longer parses cleanly.
+ */
+export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Recheck {
   try {
     const text = applyTextEdits(rc.parsed.text, plan.edits);
     const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
@@ -56,7 +66,14 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
   }
 }
 
-function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Draft[] | undefined {
+/** Untrusted when the edited spec is square law and a device moved below IC 1. */
+function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): Untrusted | undefined {
+  if (spec.process.model !== 'square-law') return undefined;
+  const d = untrustedMove(rc.reports, reports);
+  return d ? { untrusted: d.name, ic: d.ic } : undefined;
+}
+
+function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
   const parsed: ParsedSpec = parseSpec(text, rc.file);
   if (!parsed.parsed || !parsed.spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
@@ -65,7 +82,7 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
   const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+  return trusted(rc, spec, reports) ?? detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
 }
 
 const WHOLE = Symbol('re-read the whole text');
@@ -75,7 +92,7 @@ const WHOLE = Symbol('re-read the whole text');
  * spec had no error (it has a resolved spec), so the edited one is usable exactly when reading
  * the edited mirror adds none.
  */
-function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect): Draft[] | undefined | typeof WHOLE {
+function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect): Recheck | typeof WHOLE {
   const frags = rc.fragments;
   const i = plan.mirrorIndex;
   const data = rc.parsed.data;
@@ -96,6 +113,8 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const spec: ResolvedSpec = { ...read, limits: rc.spec.limits };
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
+  const untrusted = trusted(rc, spec, reports);
+  if (untrusted) return untrusted;
   const lineDelta = countLines(text) - countLines(rc.parsed.text);
   const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta);
   const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
@@ -109,8 +128,8 @@ function countLines(text: string): number {
 }
 
 /** The finding is gone and no error appeared that the original did not have (in the plan's scope). */
-export function accepts(after: Draft[] | undefined, draft: Draft, plan: FixPlan, baseline: Baseline): boolean {
-  if (!after) return false;
+export function accepts(after: Recheck, draft: Draft, plan: FixPlan, baseline: Baseline): boolean {
+  if (!after || !Array.isArray(after)) return false;
   if (after.some((d) => d.key === draft.key)) return false;
   return !after.some((d) => d.finding.severity === 'error' && !baseline.errors.has(d.key) &&
     (plan.scope === 'spec' || d.mirrorIndex === plan.mirrorIndex));

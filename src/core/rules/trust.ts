@@ -1,0 +1,30 @@
+/**
+ * Where a fix may move a device: not into a region where its model is not trusted. The square
+ * law holds in strong inversion; below an inversion coefficient of about 1 it overestimates
+ * gm/ID (it keeps 2/VOV growing past the weak-inversion limit 1/(n·UT)) and misplaces VDSsat
+ * (design §3; docs/references.md §6: gm·n·UT/ID = 2/(1 + √(1 + 4·IC))). A widening
+ * fix verified by the square law down there is verified by numbers that are not true, so it is
+ * not offered; the designer is pointed at `model: ekv` or a smaller step instead.
+ */
+import type { DeviceReport, MirrorReport } from '../types';
+
+/** IC below which the square law is not trusted (the square-law-weak-inversion finding's bound). */
+export const SQUARE_LAW_MIN_IC = 1;
+
+/**
+ * The first device of `after` that a square-law fix moved below SQUARE_LAW_MIN_IC — one that was
+ * at or above it in `before`, or already below and moved further down — else undefined. Devices
+ * are matched by report path and name; a device new to the circuit counts as moved.
+ */
+export function untrustedMove(before: readonly MirrorReport[], after: readonly MirrorReport[]): DeviceReport | undefined {
+  const was = new Map<string, number>();
+  for (const r of before) for (const d of r.devices) was.set(`${r.path.join('/')}|${d.name}`, d.ic);
+  for (const r of after) {
+    for (const d of r.devices) {
+      if (!(d.ic < SQUARE_LAW_MIN_IC)) continue;
+      const ic = was.get(`${r.path.join('/')}|${d.name}`);
+      if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
+    }
+  }
+  return undefined;
+}
