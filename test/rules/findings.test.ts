@@ -201,9 +201,17 @@ describe('other shapes: JSON files, netlist mirrors, PMOS compliance', () => {
       expect(() => JSON.parse(fixed)).not.toThrow();
       expect(check(fixed, 'case.bias.json').findings.filter((x) => x.code === 'ratio-error' && owner(x) === owner(f))).toEqual([]);
     }
-    // The width is inserted as a JSON string in the device's flow object.
+    // A VDS-mismatch error is fixed at its cause first (a longer channel keeps the unit cell:
+    // `out` stays four unit devices); the width trim is still offered, as a JSON string
+    // inserted in the device's flow object, and it removes the finding too.
     const sinkFixed = JSON.parse(apply(json, preferred(ratio[0])!));
-    expect(sinkFixed.mirrors[0].devices.out).toEqual({ m: 4, w: expect.stringMatching(/^1\.\d+u$/) });
+    expect(preferred(ratio[0])!.title).toMatch(/^Lengthen the mirror ×\d/);
+    expect(sinkFixed.mirrors[0].devices.out).toEqual({ m: 4 });
+    const trim = ratio[0].fixes!.find((x) => /^Size `out` for ratio 4/.test(x.title))!;
+    expect(trim.preferred).toBeUndefined();
+    const trimmed = apply(json, trim);
+    expect(JSON.parse(trimmed).mirrors[0].devices.out).toEqual({ m: 4, w: expect.stringMatching(/^1\.\d+u$/) });
+    expect(check(trimmed, 'case.bias.json').findings.filter((x) => x.code === 'ratio-error' && owner(x) === '0')).toEqual([]);
     expect(JSON.parse(apply(json, preferred(ratio[1])!)).mirrors[1].kind).toBe('wilson-balanced');
   });
 

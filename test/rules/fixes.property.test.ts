@@ -149,9 +149,13 @@ describe('fixAll', () => {
     for (const c of commentLines(FAULTY)) expect(r.text).toContain(c);
     // The result is what the check says it is.
     expect(check(r.text, 'faulty.bias.yaml').findings.filter((f) => f.severity === 'error')).toEqual([]);
-    // The Wilson became balanced, the CLM-off sink got its own width (1:4 kept by m).
+    // The Wilson became balanced; the CLM-off sink was fixed at the cause, keeping its unit cell:
+    // `out` is still four unit devices, and the width is still written through the param `wu`,
+    // which the fix edited (only sink4 reads it).
     expect(r.text).toMatch(/kind: wilson-balanced/);
-    expect(r.text).toMatch(/out: \{ m: 4, w: [0-9.]+u \}/);
+    expect(r.text).toMatch(/out: \{ m: 4 \} {12}# four unit devices in parallel/);
+    expect(r.text).toMatch(/size: \{ w: wu, l: [0-9.]+u \}/);
+    expect(r.text).not.toMatch(/wu: 2u /);
   });
 
   it('stops at once on a clean file and on one whose fixes do not help', () => {

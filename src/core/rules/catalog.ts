@@ -38,7 +38,7 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     code: 'ratio-error', severity: 'error',
     summary: 'The current ratio iout/iin misses require.ratio (or the geometric ratio when none is required) by more than limits.error.',
     why: 'The copied current is off target; the message splits the error into VDS mismatch (length modulation), body effect and geometry.',
-    fix: 'Size the output device (W, or the parallel count m) for the target ratio including length modulation; for a Wilson, the balanced form cancels the VDS mismatch.',
+    fix: 'For a VDS mismatch, remove the cause: the balanced Wilson, a longer channel at constant W/L, a cascode, or an integer m; a width trim of the output device (including length modulation) is the last option. For a sizing error, size the output device (m, or W).',
   },
   {
     code: 'vds-mismatch', severity: 'warning',

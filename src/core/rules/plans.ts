@@ -16,7 +16,8 @@ import { shortDecimal } from '../sizing/token-style';
 import { replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
-import { isAutoSized, textAt, type Site } from './sites';
+import { paramsOf, planParamEdits } from './param-edits';
+import { isAutoSized, overridePath, textAt, type Site } from './sites';
 import { factor, volts } from './words';
 import { indexOf } from '../mirror-at';
 
@@ -54,23 +55,42 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: false }, goal);
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
-    yield candidate(family, () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, family);
-    });
+    yield* scaleCandidates(rc, mirrorIndex, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), family,
+      (notes) => `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notes}`);
   }
 }
 
-/** Lengthen every device at constant W/L, smallest factor that meets `goal`. */
-export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string): Generator<Candidate> {
+/**
+ * One scaling as candidates: the local edit of the size tokens, and — where they are written
+ * through a param (`w: wu`) — the edit of the param, whole-file scope since every mirror reading
+ * it changes (rules/param-edits.ts). The param edit comes first when no other mirror reads it.
+ */
+function* scaleCandidates(rc: RuleContext, mirrorIndex: number, changes: SizeChange[], family: string, title: (notes: string) => string): Generator<Candidate> {
+  const local = candidate(family, () => {
+    const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file, rc.fragments);
+    return p && plan(mirrorIndex, title(notesText(p.notes)), p.edits, family);
+  });
+  const via = paramsOf(rc.parsed, rc.spec, changes);
+  if (!via) { yield local; return; }
+  const viaParam = candidate(`${family}-param`, () => {
+    const p = planParamEdits(rc.parsed, rc.spec, changes, rc.json, rc.file);
+    if (!p) return undefined;
+    const names = p.params.map((n) => `\`${n}\``).join(', ');
+    const what = p.params.length === 1 ? `param ${names}` : `params ${names}`;
+    const shared = p.sharedWith.length > 0 ? ` (${what}, also read by ${p.sharedWith.map((n) => `\`${n}\``).join(', ')})` : ` (${what})`;
+    return { title: `${title(notesText(p.notes))}${shared}`, edits: p.edits, scope: 'spec', mirrorIndex, family: `${family}-param` };
+  });
+  if (via.sharedWith.length === 0) { yield viaParam; yield local; } else { yield local; yield viaParam; }
+}
+
+/** Lengthen every device at constant W/L, smallest factor up to kMax that meets `goal`. */
+export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: ResolvedSpec) => number, purpose: string, kMax = 64): Generator<Candidate> {
   if (!fixable(rc, mirrorIndex)) return;
-  const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: true }, goal);
+  const k = scaleForGoal(rc.spec, mirrorIndex, { w: true, l: true }, goal, kMax);
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
-    yield candidate('lengthen', () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
-    });
+    yield* scaleCandidates(rc, mirrorIndex, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), 'lengthen',
+      (notes) => `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notes}`);
   }
 }
 
@@ -80,10 +100,8 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   const s = areaScaleForSigma(rc.spec, site.mirrorIndex, site.outputIndex, target);
   if (s === undefined) return;
   for (const ss of [s, s * 1.03, s * 1.1]) {
-    yield candidate('area', () => {
-      const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
-    });
+    yield* scaleCandidates(rc, site.mirrorIndex, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), 'area',
+      (notes) => `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notes}`);
   }
 }
 
@@ -106,7 +124,7 @@ function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: K
  * integer count hits the target. `stateRatio`: also write `require.ratio` (the intent was
  * the geometric ratio, which the new width no longer shows).
  */
-export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, target: number, stateRatio: boolean): Generator<Candidate> {
+export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, target: number, stateRatio: boolean, countFirst = false): Generator<Candidate> {
   if (!fixable(rc, site.mirrorIndex)) return;
   const size = sizeOf(rc.spec, device);
   if (!size) return;
@@ -122,7 +140,7 @@ export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, targ
   // A wrong parallel count (geometric 4 for a required 3) is fixed where it was made: m first.
   const ideal = site.report.ratioIdeal;
   const sizingError = !stateRatio && ideal !== undefined && Math.abs(ideal / target - 1) > rc.spec.limits.error;
-  if (sizingError) yield* byCount();
+  if (sizingError || countFirst) yield* byCount();
   const w = widthForRatio(rc.spec, site.mirrorIndex, site.outputIndex, device, target);
   if (w !== undefined) {
     const grid = rc.spec.process.grid;
@@ -135,7 +153,37 @@ export function* ratioPlans(rc: RuleContext, site: Site, device: DeviceRef, targ
         (notes) => `Size \`${device.role}\` for ratio ${shortDecimal(target, 6)} including length modulation${stated}: ${notes}`, 'ratio-w'));
     }
   }
-  if (!sizingError) yield* byCount();
+  if (!sizingError && !countFirst) yield* byCount();
+}
+
+/**
+ * A simple mirror becomes a cascode (`kind: cascode`): `outc` holds `out` at the VDS of `ref`,
+ * which removes a VDS-mismatch error at its cause. `outc` gets the sizes written for `out`
+ * (its m, W, L), `refc` those written for `ref`, so each cascode carries its partner's current
+ * density.
+ */
+export function* cascodePlans(rc: RuleContext, site: Site): Generator<Candidate> {
+  const m = site.mirror;
+  if (m.kind !== 'simple' || !fixable(rc, site.mirrorIndex)) return;
+  const path = ['mirrors', site.mirrorIndex, 'kind'];
+  const range = rc.parsed.source.value(path);
+  if (!range) return;
+  const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(textAt(rc.parsed.text, range), 'cascode'));
+  if (!kindEdit) return;
+  yield candidate('cascode', () => {
+    const extra: KeyInsert[] = [];
+    for (const [from, to] of [['ref', 'refc'], ['out', 'outc']] as const) {
+      for (const ref of allDevices(rc.spec, site.mirrorIndex).filter((r) => r.role === from)) {
+        const own = overridePath(rc.spec, ref);
+        for (const key of ['w', 'l', 'm'] as const) {
+          const tok = rc.parsed.source.value([...own, key]);
+          if (tok) extra.push({ parent: [...own.slice(0, -1), to], key, text: textAt(rc.parsed.text, tok) });
+        }
+      }
+    }
+    const edits = extra.length > 0 ? buildEdits(rc.parsed, [kindEdit], extra, rc.file, rc.fragments) : [kindEdit];
+    return plan(site.mirrorIndex, 'Make it a cascode (`kind: cascode`): `outc` holds `out` at the VDS of `ref`', edits, 'cascode');
+  });
 }
 
 /** Set one device's size keys (e.g. raise L to lmin at constant W/L). */

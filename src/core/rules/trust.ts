@@ -14,12 +14,14 @@ export const SQUARE_LAW_MIN_IC = 1;
 /**
  * The first device of `after` that a square-law fix moved below SQUARE_LAW_MIN_IC — one that was
  * at or above it in `before`, or already below and moved further down — else undefined. Devices
- * are matched by report path and name; a device new to the circuit counts as moved.
+ * are matched by report path and name; a device new to the circuit counts as moved. Only solved
+ * reports count (an unsolved one has no operating point, and its own finding).
  */
 export function untrustedMove(before: readonly MirrorReport[], after: readonly MirrorReport[]): DeviceReport | undefined {
   const was = new Map<string, number>();
-  for (const r of before) for (const d of r.devices) was.set(`${r.path.join('/')}|${d.name}`, d.ic);
+  for (const r of before) if (r.converged) for (const d of r.devices) was.set(`${r.path.join('/')}|${d.name}`, d.ic);
   for (const r of after) {
+    if (!r.converged) continue;
     for (const d of r.devices) {
       if (!(d.ic < SQUARE_LAW_MIN_IC)) continue;
       const ic = was.get(`${r.path.join('/')}|${d.name}`);

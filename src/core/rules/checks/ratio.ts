@@ -2,11 +2,12 @@
  * ratio-error (against require.ratio, else the geometric ratio) with its cause split, and
  * vds-mismatch (the pair's VDS difference alone moves the ratio by half the budget or more).
  */
-import type { DeviceReport, RelatedLocation } from '../../types';
+import type { DeviceReport, RelatedLocation, ResolvedSpec } from '../../types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, kindRange, refOf, valueRange, type DeviceRef, type Site } from '../sites';
-import { balancedPlans, ratioPlans } from '../plans';
+import { balancedPlans, cascodePlans, lengthenPlans, ratioPlans } from '../plans';
+import { ratioAt } from '../../sizing/ratio';
 import { code, percent, ratioText, signedPercent, volts } from '../words';
 
 /** The ratio-setting device and its partner (design §4 ratioIdeal): out/ref, or diode/in for Wilsons. */
@@ -62,8 +63,19 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
           message: `ratio ${ratioText(r.ratio)} is ${signedPercent(err)} off ${against} (limit ±${percent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
         },
         plan: function* () {
+          // A VDS mismatch is removed at its cause (the balanced Wilson, a longer channel, a
+          // cascode); an integer m keeps the unit cell. A W trim is right at one Vout, one corner
+          // and one λ only, and breaks the unit cell: it comes last.
           yield* balancedPlans(rc, site);
-          if (setterRef) yield* ratioPlans(rc, site, setterRef, target, required === undefined);
+          const vds = vdsCaused(r.errorSplit, r.ratioIdeal, target, limit);
+          if (vds) {
+            yield* lengthenPlans(rc, site.mirrorIndex, (s: ResolvedSpec) => {
+              const now = ratioAt(s, site.mirrorIndex, site.outputIndex);
+              return Number.isFinite(now) ? limit - Math.abs(now / target - 1) : NaN;
+            }, `for ratio ${ratioText(target)} within ±${percent(limit)}`, MAX_RATIO_LENGTHEN);
+            yield* cascodePlans(rc, site);
+          }
+          if (setterRef) yield* ratioPlans(rc, site, setterRef, target, required === undefined, vds);
         },
       });
     }
@@ -94,6 +106,15 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
     });
   }
   return drafts;
+}
+
+/** Longest lengthening offered for a ratio (area ×64): beyond it a cascode is the answer. */
+const MAX_RATIO_LENGTHEN = 8;
+
+/** The ratio misses mostly by length modulation (not by sizing, not by body effect). */
+function vdsCaused(split: { vds: number; body: number; geometry: number } | undefined, ideal: number | undefined, target: number, limit: number): boolean {
+  if (!split || (ideal !== undefined && Math.abs(ideal / target - 1) > limit)) return false;
+  return Math.abs(split.vds) > limit / 2 && Math.abs(split.vds) >= Math.abs(split.body) && Math.abs(split.vds) >= Math.abs(split.geometry);
 }
 
 /** The causes of a ratio error, largest first, so the one that matters leads the message;
