@@ -12,7 +12,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { D_SPEC, trackedAnalyzers, WORKER } from './worker-fixtures';
-import { groupDigits, MC_SAMPLES, monteCarloRun, percentDone, progressMessage, sampledOutputs, summaryMessage } from '../../src/extension/monteCarloText';
+import { MC_SAMPLES } from '../../src/core/defaults';
+import { groupDigits, monteCarloRun, percentDone, progressMessage, sampledOutputs, summaryMessage } from '../../src/extension/monteCarloText';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { isPageMessage, isRunMonteCarloMessage } from '../../src/protocol/messages';
 
