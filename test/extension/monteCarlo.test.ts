@@ -3,11 +3,11 @@
  * `npm test`): a cancelled run really stops (its thread exits), a job without time limit is not
  * treated as hung, and the command's pure text and argument handling.
  *
- * The spec is the Razavi level-1 device D (references.md; set from memory) as a simple NMOS
+ * The spec is the Razavi level-1 device D (docs/references.md; set from memory) as a simple NMOS
  * mirror, W/L = 10, IREF = 100 µA, VOUT = 1.5 V, with Pelgrom coefficients avt = 4 mV·µm and
  * abeta = 1 %·µm. Expected sigma by hand (Pelgrom 1989; design §4: one device carries 1/√2 of
  * the pair coefficient): σVT = 4e-9/√(2·10e-12) = 0.894 mV, σβ/β = 1e-8/√(2e-11) = 0.224 %;
- * with gm/ID = 2/VOV = 2/0.3672 V (square law, references.md §9), each device contributes
+ * with gm/ID = 2/VOV = 2/0.3672 V (square law, docs/references.md §9), each device contributes
  * (gm/ID·σVT)² + (σβ/β)², two devices: σ = √(2·(0.487² + 0.224²)) % = 0.758 %.
  */
 import { describe, expect, it } from 'vitest';

@@ -3,7 +3,7 @@
  * @vscode/test-electron elsewhere) with the real `vscode` API, on copies of the fixture specs in
  * the workspace folder. The host calls `run()`; a rejected promise is exit code 1.
  *
- * External checks: the Razavi level-1 device D of references.md (set from memory, values
+ * External checks: the Razavi level-1 device D of docs/references.md (set from memory, values
  * computed there from the square law): diode VGS = 1.067 234 V, IOUT at VOUT = 1.5 V =
  * 103.9103 µA, so the ratio error is +3.91 % (§9); VDSsat = VOV = 0.367 V, so VOUT = 0.3 V puts
  * the output device in triode (design §3). Expected finding positions come from the fixtures'
@@ -252,7 +252,7 @@ async function suite(folder: vscode.Uri): Promise<void> {
   });
 
   let dDoc: vscode.TextDocument | undefined;
-  await check('hover shows the operating point of the D device (references.md §9)', async () => {
+  await check('hover shows the operating point of the D device (docs/references.md §9)', async () => {
     dDoc = await vscode.workspace.openTextDocument(dUri);
     await vscode.window.showTextDocument(dDoc);
     const report = await waitFor('report of d-check', () => qp.lastReport(dUri), 20_000, [qp.onDidUpdate]);
