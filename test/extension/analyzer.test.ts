@@ -59,9 +59,8 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const hang = join(dir, 'hang.js');
     writeFileSync(hang, "require('node:worker_threads').parentPort.on('message', () => { for (;;) {} });\n");
     const a = make(hang, 300);
-    const t0 = Date.now();
+    // The rejection names the 300 ms job limit: the hang was cut by it, not by the test timeout.
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
-    expect(Date.now() - t0).toBeLessThan(5_000);
     // A fresh worker is started for the next request (it hangs too, by construction).
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
   });
