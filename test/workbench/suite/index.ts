@@ -470,7 +470,7 @@ async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode
     // 10⁶ samples × 9 outputs of the example: many seconds of work.
     const long = vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri: faulty.uri, samples: 1_000_000, seed: 1, token: cts.token });
     await waitFor('the Monte Carlo thread to start', () => qp.monteCarloBusy(), 10_000, []);
-    await new Promise((r) => setTimeout(r, 1_000));  // long enough for the worker to report samples
+    await waitFor('the worker to report samples', () => (qp.monteCarloProgress()?.done ?? 0) > 0, 10_000, []);
     const t0 = Date.now();
     cts.cancel();
     const summary = await long;
