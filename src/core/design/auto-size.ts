@@ -86,11 +86,12 @@ interface Slot {
 /** Fill every auto w/l from TemplateMirror.design (vov, gmid or ic) at the mirror's own
  *  currents (square-law or EKV relations per process.model), snapped to process.grid;
  *  `l: auto` from require.rout. Returns the sized spec and what it computed. */
-export function applyDesignTargets(spec: ResolvedSpec): { spec: ResolvedSpec; sized: SizedDevice[] } {
+export function applyDesignTargets(spec: ResolvedSpec, only?: number): { spec: ResolvedSpec; sized: SizedDevice[] } {
   let current = spec;
   const sized: SizedDevice[] = [];
   for (const at of spec.mirrors) {
     const i = indexOf(at);
+    if (only !== undefined && i !== only) continue;
     const m = mirrorAt(current, i);
     if (!m || m.kind === 'netlist' || m.design === undefined || !hasAuto(m)) continue;
     const r = sizeMirror(current, i, m, m.design);
@@ -126,6 +127,7 @@ function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, t
     trial = { g: NaN, spec: sizeWidths(spec, index, mirror, slots, target), slots };
   }
   const bank = isBank(mirror);
+  offTargetNotes(trial.spec, index, mirror, trial.slots, target, bank);
   const sized: SizedDevice[] = trial.slots
     .filter((s) => s.size.auto?.w === true || s.size.auto?.l === true)
     .map((s) => {
@@ -274,6 +276,24 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     if (s.size.auto?.w === true) s.size.w = snapLength(s.size.w, proc.grid, 'nearest');
   }
   return withSlots(spec, index, m, slots);
+}
+
+/**
+ * A sized device that ends out of saturation at its output's nominal voltage has not met the
+ * target (its gm/ID and VDSsat are those of triode): say so, so design-unreachable reports it.
+ */
+function offTargetNotes(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget, bank: boolean): void {
+  const ops = m.outputs.map((o, j) => solveAt(ctxOf(spec, index, j), o.output.v));
+  for (const s of slots) {
+    if (s.size.auto?.w !== true && s.size.auto?.l !== true) continue;
+    const op = ops[s.output ?? 0];
+    const d = op?.converged ? op.devices.find((x) => x.name === deviceName(m, bank, s)) : undefined;
+    if (!d || (d.region === 'saturation' && d.margin >= 0)) continue;
+    const got = target.kind === 'gmid' ? `gm/ID ${d.gmId.toFixed(1)} /V against the target ${target.value} /V`
+      : target.kind === 'ic' ? `IC ${d.ic.toPrecision(3)} against the target ${target.value}` : `VOV ${formatSI(d.vov, 'V')} against the target ${formatSI(target.value, 'V')}`;
+    const note = `ends in ${d.region} at Vout = ${formatSI(m.outputs[s.output ?? 0]!.output.v, 'V')} (${got}): no width gives it the VDS it needs`;
+    s.note = s.note ? `${s.note}; ${note}` : note;
+  }
 }
 
 function ctxOf(spec: ResolvedSpec, index: number, outputIndex: number): MirrorContext {

@@ -17,6 +17,7 @@ import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
+import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
 import { applyTextEdits } from './compose';
 import type { Draft, FixPlan, RuleContext } from './model';
@@ -78,8 +79,10 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   if (!parsed.parsed || !parsed.spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
   if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  // Limits may carry front-end defaults (the editor's margin); a fix never edits them.
-  const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
+  // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
+  // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
+  const read: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
+  const spec = plan.scope === 'spec' ? applyDesignTargets(read).spec : applyDesignTargets(read, plan.mirrorIndex).spec;
   const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
   return trusted(rc, spec, reports) ?? detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
@@ -110,7 +113,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const spec: ResolvedSpec = { ...read, limits: rc.spec.limits };
+  const spec = applyDesignTargets({ ...read, limits: rc.spec.limits }, i).spec;
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const untrusted = trusted(rc, spec, reports);
