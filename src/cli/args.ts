@@ -4,7 +4,7 @@ import { MC_SAMPLES } from '../core/defaults';
 export type Command =
   | { cmd: 'help' } | { cmd: 'version' }
   | { cmd: 'check'; files: string[]; format: 'text' | 'json' | 'sarif'; corners: boolean; mc?: number; seed: number }
-  | { cmd: 'fix'; file: string; apply: boolean }
+  | { cmd: 'fix'; file: string; apply: boolean; corners: boolean }
   | { cmd: 'report'; file: string; html: string; mc?: number; seed: number }
   | { cmd: 'sweep'; file: string; mirror: string; vout: { from: number; to: number; step: number }; csv: boolean };
 
@@ -33,7 +33,7 @@ function parse(argv: string[]): Command {
   });
   if (values.help) return { cmd: 'help' };
   const allowed: Record<string, string[]> = {
-    check: ['format', 'corners', 'mc', 'seed'], fix: ['apply', 'dry-run'], report: ['html', 'mc', 'seed'],
+    check: ['format', 'corners', 'mc', 'seed'], fix: ['apply', 'dry-run', 'corners'], report: ['html', 'mc', 'seed'],
     sweep: ['mirror', 'vout', 'csv'],
   };
   if (!(cmd in allowed)) throw new Error(`unknown command '${cmd}' (check, fix, report, sweep)`);
@@ -52,7 +52,7 @@ function parse(argv: string[]): Command {
       return { cmd, files: positionals, format, corners: values.corners ?? false, mc, seed };
     }
     case 'fix':
-      return { cmd, file, apply: (values.apply ?? false) && !(values['dry-run'] ?? false) };
+      return { cmd, file, apply: (values.apply ?? false) && !(values['dry-run'] ?? false), corners: values.corners ?? false };
     case 'report':
       if (!values.html) throw new Error(`'report' needs --html OUT.html`);
       return { cmd, file, html: values.html, mc: values.mc !== undefined ? samples(values.mc) : undefined,

@@ -12,13 +12,16 @@ export function runFix(c: FixCommand): number {
   const read = readOne(c.file);
   if (!read) return 2;
   const name = read.name;
-  const before = analyzeText(read.text, name);
+  // --corners: corner findings count (and get fixes verified at every corner), and a fix that
+  // breaks a corner does not count as progress.
+  const opts = c.corners ? { corners: true } : {};
+  const before = analyzeText(read.text, name, opts);
   if (!before.parsed) {
     for (const f of before.findings) process.stderr.write(findingLine(name, f) + '\n');
     return 2;
   }
   // The first round checks the text just analysed: reuse that report instead of solving it again.
-  const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name)));
+  const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name, opts)));
   const applied = result.applied.map((a) => `fixed ${a.code}: ${a.title}\n`).join('');
   if (result.text === read.text) {
     process.stdout.write(applied);

@@ -2,7 +2,7 @@ export const USAGE = `qpoint — bias checks for MOSFET current mirrors
 
 usage:
   qpoint check FILE... [--format text|json|sarif] [--corners] [--mc N] [--seed S]
-  qpoint fix FILE [--apply] [--dry-run]
+  qpoint fix FILE [--apply] [--dry-run] [--corners]
   qpoint report FILE --html OUT.html [--mc N] [--seed S]
   qpoint sweep FILE --mirror NAME --vout FROM:TO:STEP [--csv]
   qpoint --help | --version
@@ -15,6 +15,7 @@ check    solve every mirror, print each mirror's figures and the findings
          (file:line:col: severity code: message), or JSON / SARIF 2.1.0
 fix      apply the preferred fix of every finding, re-check, repeat while errors drop;
          without --apply (or with --dry-run) print the change as a unified diff;
+         --corners also fixes corner findings, each fix verified at every corner;
          --apply replaces FILE through a temporary file beside it, and only if FILE
          still holds what was read (an edit saved meanwhile is kept, nothing written)
 report   write one self-contained HTML page with the tables, plots and corners

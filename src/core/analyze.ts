@@ -13,6 +13,7 @@ import { buildAnchors } from './anchors';
 import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
+import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
 import { mirrorOfPath } from './mirror-at';
 
@@ -27,6 +28,8 @@ export interface AnalyzeOptions {
   limitsDefaults?: { margin?: number };
   /** Source anchors for hover, CodeLens and the panel (default true; the CLI's check needs none). */
   anchors?: boolean;
+  /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
+  cornerFixes?: boolean;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -48,13 +51,17 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     const withSpec: ParsedSpec = { ...parsed, spec };
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
-    const findings: Finding[] = [
+    let findings: Finding[] = [
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
       ...runRules(withSpec, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
       ...variationFindings(withSpec, spec, mirrors, sized, file),
     ];
+    if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
+      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      findings = withCornerFixes(withSpec, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
+    }
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
     const report: FileReport = { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);

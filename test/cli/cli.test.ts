@@ -164,6 +164,33 @@ describe('fix, report, sweep', () => {
     expect(qpoint(['check', copy]).code).toBe(0);
   });
 
+  it('fix --corners fixes a corner finding (verified at every corner) that plain fix does not see', () => {
+    // A 1:1 sink at 0.22 V: saturated nominally, in triode at the slow, hot corner (test/variation/corner-fixes.test.ts).
+    const spec = readFileSync(join(ROOT, FAULTY), 'utf8').split('mirrors:')[0] + [
+      'mirrors:', '  - name: sink', '    kind: simple', '    type: nmos', '    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 0.22 }',
+      'corners:', '  ss: { nmos: { vt0: +50m, kp: -10% }, pmos: { vt0: +50m, kp: -10% }, temperature: 125 C, vdd: 1.62 }', ''].join('\n');
+    const file = join(OUT, 'corner.bias.yaml');
+    writeFileSync(file, spec.replace('  error: 1%', '  error: 5%'));
+    const plain = qpoint(['fix', file]);
+    expect(plain.stdout).not.toMatch(/corner-/);
+    const r = qpoint(['fix', file, '--corners']);
+    expect(r.stdout).toMatch(/^fixed corner-not-saturated: Widen the mirror ×[\d.]+ .* \(verified at every corner\)$/m);
+    expect(r.code).toBe(0);
+    expect(qpoint(['fix', file, '--corners', '--apply']).code).toBe(0);
+    expect(qpoint(['check', file, '--corners']).stdout).not.toMatch(/error corner-/);
+  });
+
+  it('fix names what it could not fix', () => {
+    // A resistor input with 0.1 V across it: no size makes room (findings.test.ts row).
+    const spec = readFileSync(join(ROOT, FAULTY), 'utf8').split('mirrors:')[0].replace('vdd: 1.8', 'vdd: 1.2') + [
+      'mirrors:', '  - name: tail', '    kind: cascode', '    type: nmos', '    input: { resistor: 100k }', '    size: { w: 2u, l: 1u }', '    output: { v: 1.0 }', ''].join('\n');
+    const file = join(OUT, 'headroom.bias.yaml');
+    writeFileSync(file, spec);
+    const r = qpoint(['fix', file]);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/^not fixed input-headroom at .*headroom\.bias\.yaml:\d+:\d+: no verified fix$/m);
+  });
+
   it('fix on a spec with an error in one mirror says why it fixes nothing and changes nothing', () => {
     const copy = join(OUT, 'typo.bias.yaml');
     const text = readFileSync(join(ROOT, FAULTY), 'utf8');

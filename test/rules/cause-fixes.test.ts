@@ -29,7 +29,7 @@ describe('a VDS-mismatch ratio error is fixed at its cause', () => {
     const fix = preferred(f)!;
     expect(fix.title).toMatch(/^Lengthen the mirror ×\d+(\.\d+)? at constant W\/L for ratio 1 within ±1 %: w 2u → [\d.]+u, l 1u → [\d.]+u$/);
     const after = fixed(text, f, fix);
-    expect(after).toMatch(/size: \{ w: [\d.]+u, l: [\d.]+u \}\n    output/);
+    expect(after).toMatch(/size: \{ w: [\d.]+u, l: [\d.]+u \}\n {4}output/);
     expect(after).not.toMatch(/devices:/);
   });
 
