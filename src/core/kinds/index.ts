@@ -13,6 +13,9 @@ import { wilson } from './wilson';
 import { wilsonBalanced } from './wilson-balanced';
 import type { ResolvedMirror, TemplateMirror } from '../types';
 
+export { MIRROR_KINDS, TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
+export type { Connection, DeviceFamily, KindSpec, SmallSignal } from './kind';
+
 export const KINDS = {
   simple,
   cascode,
@@ -29,9 +32,6 @@ export function isTemplateKind(kind: MirrorKind): kind is TemplateKind {
 export const BANK_KINDS: readonly TemplateKind[] = TEMPLATE_KINDS.filter((k) => KINDS[k].bank);
 /** Kinds that take `vbias:`, in list order. */
 export const VBIAS_KINDS: readonly TemplateKind[] = TEMPLATE_KINDS.filter((k) => KINDS[k].vbias);
-
-export { MIRROR_KINDS, TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
-export type { Connection, DeviceFamily, KindSpec, SmallSignal } from './kind';
 
 /** Whether the mirror takes `vbias:` (its kind holds a cascode gate at a bias voltage). */
 export function takesVbias(m: ResolvedMirror): m is TemplateMirror {
