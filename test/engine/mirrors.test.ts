@@ -158,7 +158,7 @@ function balancedWilson(model: 'square-law' | 'ekv', bal: 'rail' | 'source'): Mi
   return r;
 }
 
-describe('balanced Wilson output resistance (derivation in src/core/kinds/wilson-balanced.ts)', () => {
+describe('balanced Wilson output resistance (references §3, computed; derivation in src/core/kinds/wilson-balanced.ts)', () => {
   it.each(['square-law', 'ekv'] as const)('%s: the exact small-signal expression, bal\'s body effect included, equals the linearized circuit', (model) => {
     const r = balancedWilson(model, 'rail');
     const d = dev(r, 'diode'), i = dev(r, 'in'), o = dev(r, 'out'), b = dev(r, 'bal');

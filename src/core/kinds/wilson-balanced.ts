@@ -10,7 +10,7 @@
  * as its VGS. So `out`'s gate swings (1 + gmb_bal/gm_bal) times more than in the three-device
  * Wilson, and the loop gain, Rout with it, grows by that factor: gmb/gm = γ/(2·√(2φF + VSB)) in
  * the square law (0.16 for `bal` of a 0.5 µm level-1 set at 100 µA), n − 1 under EKV (0.3).
- * Nodal analysis of the small-signal circuit gives the exact result
+ * Nodal analysis of the small-signal circuit gives the exact result (docs/references.md §3)
  *   Rout = ro_out·[1 + (gm_out·(A + 1) + gmb_out + gds_out)/(gm_diode + gds_diode)],
  *   A = gm_in·ro_in·(1 + gmb_bal/(gm_bal + gds_bal))
  * (with A = gm_in·ro_in it is the three-device Wilson's), which reduces to the formula below when
