@@ -12,8 +12,10 @@ import { parseSpec, type ParsedSpec } from './index';
 import { applyEdits } from './edit';
 import { LineIndex } from './positions';
 
-/** Re-reads per file (each parses the whole text; a hostile file may hold hundreds of typos). */
+/** Re-reads per file (each parses the whole text; a hostile file may hold hundreds of typos)… */
 const MAX_SUGGESTION_CHECKS = 20;
+/** …and characters re-read in all, so a large file gets fewer (a 512 KiB file: two). */
+const MAX_SUGGESTION_CHARS = 1_048_576;
 
 function textAt(text: string, r: Range): string {
   const lines = new LineIndex(text);
@@ -26,7 +28,8 @@ export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[
   if (!list || list.length === 0) return parsed.findings;
   const fixes = new Map<Finding, TextEdit>();
   const before = new Set(parsed.findings.filter((f) => f.severity === 'error').map((f) => `${f.code}@${JSON.stringify(f.path)}`));
-  for (const s of list.slice(0, MAX_SUGGESTION_CHECKS)) {
+  const checks = Math.min(MAX_SUGGESTION_CHECKS, Math.floor(MAX_SUGGESTION_CHARS / Math.max(1, parsed.text.length)));
+  for (const s of list.slice(0, checks)) {
     try {
       const token = textAt(parsed.text, s.range);
       const q = token[0];
