@@ -147,12 +147,13 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
   if (m.error !== undefined) {
     const split = m.errorSplit;
     figures.push({ key: 'error', label: 'Error', value: formatSignedPercent(m.error),
-      detail: split ? `VDS ${formatSignedPercent(split.vds, 2)} · body ${formatSignedPercent(split.body, 2)} · geometry ${formatSignedPercent(split.geometry, 2)}` : 'systematic' });
+      detail: split ? `VDS ${formatSignedPercent(split.vds, 2)} · body ${formatSignedPercent(split.body, 2)}${split.gate !== undefined ? ` · gate ${formatSignedPercent(split.gate, 2)}` : ''} · geometry ${formatSignedPercent(split.geometry, 2)}` : 'systematic' });
   }
   figures.push({ key: 'rout', label: 'Rout', value: formatSI(m.rout, 'Ω'),
     detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });
-  figures.push({ key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4),
-    detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
+  figures.push(m.noCompliance
+    ? { key: 'compliance', label: 'Compliance', value: 'none', detail: `${m.noCompliance.device} out of saturation at every Vout` }
+    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
   if (m.sigma !== undefined) figures.push({ key: 'sigma', label: 'σ(Iout)', value: formatPercent(m.sigma), detail: 'Pelgrom, 1σ' });
   if (m.vbias !== undefined) {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),

@@ -179,10 +179,15 @@ export function mirrorFigures(r: MirrorReport): [label: string, value: string][]
   ];
   if (r.error !== undefined) rows.push(['error', formatPercent(r.error, true)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
-  rows.push(['compliance', `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
+  rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
   if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
   if (r.vbias !== undefined) rows.push(['vbias', `${formatSI(r.vbias, 'V')}${r.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
   return rows;
+}
+
+/** The compliance figure, or why there is none (a device out of saturation at every Vout). */
+function complianceText(r: MirrorReport): string {
+  return r.noCompliance ? `none (${escapeMd(r.noCompliance.device)} out of saturation at every Vout)` : formatSI(r.compliance, 'V');
 }
 
 function kindLine(r: MirrorReport): string {
@@ -212,7 +217,7 @@ export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): st
   ];
   for (const r of reports) {
     const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
-    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${formatSI(r.compliance, 'V')} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
 }
@@ -230,10 +235,11 @@ export function hoverMarkdown(t: HoverTarget): string {
 
 /** One line above a mirror (or bank output): Iout, error, Rout, compliance. */
 export function lensTitle(r: MirrorReport): string {
+  if (r.beyondRails) return `${r.name}: no operating point within the supply`;
   if (!r.converged) return `${r.name}: did not converge`;
   const parts = [`Iout ${formatSI(r.iout, 'A')}`];
   if (r.error !== undefined) parts.push(`error ${formatPercent(r.error, true)}`);
-  parts.push(`Rout ${formatOhm(r.rout)}`, `compliance ${formatSI(r.compliance, 'V')}`);
+  parts.push(`Rout ${formatOhm(r.rout)}`, r.noCompliance ? `no compliance: ${r.noCompliance.device} out of saturation at every Vout` : `compliance ${formatSI(r.compliance, 'V')}`);
   return parts.join(' · ');
 }
 

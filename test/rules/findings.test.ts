@@ -75,7 +75,7 @@ const rows: Row[] = [
     name: 'not-saturated: one output of a bias bank, at that output\'s name',
     text: spec(mirror('bank', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    outputs:', '      - name: a',
       '        output: { v: 1.2 }', '      - name: b', '        output: { v: 0.75 }'])),
-    code: 'not-saturated', at: [15, 14, 15, 'b'], fix: true, message: /^`b\.outc` is in triode/,
+    code: 'not-saturated', at: [15, 14, 15, 'b'], fix: true, message: /^bank\.b: `b\.outc` is in triode/,
   },
   {
     // Wilson: (1+λ·VGS_d)/(1+λ·(VGS_d+VGS_out)) − 1 ≈ −5.5 % at λ = 0.08 (references §5 form).
@@ -140,16 +140,42 @@ const rows: Row[] = [
     code: 'vbias-triode', at: [12, 11, 14, '0.8'], fix: true, fixTitle: /^Set vbias to 9\d\d mV/, message: /vbias 800 mV leaves `ref`, `out` out of saturation/,
   },
   {
-    // 1 A through a 0.22 µm / 10 µm device: no node voltage within reach carries it.
-    name: 'no-convergence: a current the device cannot carry, at the mirror name',
+    // 1 A through a 0.22 µm / 10 µm device: VGS = VT + √(2·I/(β·(1 + λ·VGS))) with β = 6.16 µA/V²
+    // and λ = 0.008 /V (square law, design §3) solves to about 307 V on a 1.8 V supply — the diode
+    // node would sit far above vdd: no operating point.
+    name: 'stack-over-supply: a current the device cannot carry, at the input value',
     text: spec(mirror('huge', 'simple', 'nmos', ['    input: 1', '    size: { w: 0.22u, l: 10u }', '    output: { v: 1.2 }'])),
-    code: 'no-convergence', at: [7, 10, 14, 'huge'], fix: false, message: /has no DC operating point/,
+    code: 'stack-over-supply', at: [10, 11, 12, '1'], fix: false, message: /^huge: no operating point: the stack `ref` needs 30\d V to carry 1 A but the supply is 1\.8 V/,
+  },
+  {
+    // PMOS cascode at 40 µA in 1 µm / 1 µm: VSG_ref = 0.48 + √(2·40µ/70µ) ≈ 1.55 V, refc more with
+    // body effect (square law, design §3): two stacked VSG above 3.1 V on a 1.8 V supply. One error
+    // names the stack; no not-saturated, ratio, margin, VDS or headroom finding follows.
+    name: 'stack-over-supply: a PMOS cascode whose two VSG exceed the supply, at the input value',
+    text: spec(mirror('pc', 'cascode', 'pmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 0.3 }', '    require: { ratio: 1, compliance: 1.2 }'])),
+    code: 'stack-over-supply', at: [10, 11, 14, '40u'], fix: false,
+    message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at −1\.\d+ V, below vss\)/,
   },
 ];
 
 function find(findings: Finding[], code: string): Finding | undefined {
   return findings.find((f) => f.code === code);
 }
+
+describe('one cause, one finding', () => {
+  it('a stack over the supply raises only stack-over-supply for that mirror, and no figures', () => {
+    const text = spec(mirror('pc', 'cascode', 'pmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 0.3 }', '    require: { ratio: 1, compliance: 1.2 }']));
+    expect(check(text).findings.map((f) => f.code)).toEqual(['stack-over-supply']);
+  });
+
+  it('a wide-swing refc in triode at every Vout: vbias-triode names refc; no compliance figure, no compliance finding', () => {
+    // vbias 1.25 V: VDS_refc = VGS_ref − (vbias − VGS_refc) ≈ 64 mV < VDSsat (square law, design §3).
+    const text = spec(mirror('ws', 'wide-swing', 'nmos', ['    input: 20u', '    size: { w: 8u, l: 1u }', '    vbias: 1.25', '    output: { v: 1.2 }', '    require: { ratio: 1, compliance: 0.8 }']));
+    const { findings } = check(text);
+    expect(findings.map((f) => f.code)).toEqual(['vbias-triode']);
+    expect(findings[0]!.message).toMatch(/^ws: vbias 1\.25 V leaves `refc` out of saturation/);
+  });
+});
 
 describe('design findings: present at the exact range, gone after the preferred fix', () => {
   for (const row of rows) {

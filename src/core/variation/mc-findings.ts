@@ -33,7 +33,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
         out.push({
           severity: 'info', code: 'mc-nonlinear', path: [...site.path, 'require', 'sigma'],
           range: site.require.sigma !== undefined ? requireRange(parsed, site, 'sigma') : nameRange(parsed, site),
-          message: `Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
+          message: `${report.name}: Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
         });
       }
     }
@@ -50,7 +50,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
       out.push({
         severity: 'warning', code: 'mc-yield', path: [...site.path, 'require'],
         range: parsed.source.key([...site.path, 'require']) ?? nameRange(parsed, site),
-        message: `Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
+        message: `${report.name}: Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
       });
     }
   }
