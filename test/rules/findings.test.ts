@@ -177,6 +177,29 @@ describe('one cause, one finding', () => {
   });
 });
 
+describe('the error split names only causes that are there', () => {
+  it('a netlist pair on different gate voltages: gate drive, never body effect (both sources and bulks on vss)', () => {
+    // M2's gate held 50 mV above M1's diode voltage: a VGS difference, VBS = 0 for both, so the
+    // body term is exactly zero (analysis/errorSplit.ts) and the message must not name it.
+    const text = [
+      'format: 1', 'process:',
+      '  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85 }',
+      '  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8 }',
+      'supplies: { vdd: 1.8 }', 'mirrors:',
+      '  - name: off', '    kind: netlist', '    type: nmos', '    devices:',
+      '      M1: { type: nmos, d: a, g: a, s: vss, w: 2u, l: 1u }',
+      '      M2: { type: nmos, d: out, g: g2, s: vss, w: 2u, l: 1u }',
+      '    currents:', '      I1: { from: vdd, to: a, i: 10u }',
+      '    voltages:', '      VG: { node: g2, v: 0.684 }',
+      '    output: { node: out, v: 0.634 }', '    input: { source: I1 }', '    pair: { ref: M1, out: M2 }', '    require: { ratio: 1 }', '',
+    ].join('\n');
+    const { findings } = check(text);
+    const f = findings.find((x) => x.code === 'ratio-error');
+    expect(f?.message).toMatch(/^off: ratio 1\.\d+ is \+\d+(\.\d+)? % off the required 1 \(limit ±1 %\): gate drive \+\d/);
+    expect(f?.message).not.toMatch(/body effect/);
+  });
+});
+
 describe('design findings: present at the exact range, gone after the preferred fix', () => {
   for (const row of rows) {
     it(row.name, () => {
