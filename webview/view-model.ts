@@ -166,7 +166,9 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
 
 export interface Column { key: string; label: string; unit?: string; numeric: boolean; title?: string }
 
-export interface CellView { text: string; title?: string; flag?: 'bad' | 'sized' }
+/** `bad`: fails a requirement (error colour); `worst`: the worst of its column, still within
+ *  every requirement (emphasis only); `sized`: computed by qpoint. */
+export interface CellView { text: string; title?: string; flag?: 'bad' | 'worst' | 'sized' }
 
 export interface DeviceRowView {
   name: string;
@@ -298,11 +300,16 @@ export const CORNER_COLUMNS: readonly Column[] = [
   { key: 'minMargin', label: 'Min margin', numeric: true },
 ];
 
-/** Corner rows with the worst value of each column flagged: largest |error|, lowest Rout,
- *  compliance nearest the supply it must stay away from, largest σ, smallest margin. */
-export function cornerRows(mirror: MirrorReport): CornerRowView[] {
+/** Corner rows. The worst value of each column is marked `worst` (emphasis, no colour); a value
+ *  is `bad` (the error colour) only where it fails a requirement: a device out of saturation
+ *  (margin < 0), the ratio beyond limits.error of require.ratio (else the geometric ratio, as the
+ *  ratio check reads it), Rout below require.rout, compliance past require.compliance, σ above
+ *  require.sigma. Without `limits` the ratio column is only ranked. */
+export function cornerRows(mirror: MirrorReport, limits?: { error: number }): CornerRowView[] {
   const corners = mirror.corners ?? [];
   const ok = corners.filter((c) => c.converged);
+  const req = mirror.require ?? {};
+  const nmos = mirror.type === 'nmos';
   const worst = (pick: (c: CornerResult) => number | undefined, better: (a: number, b: number) => boolean): CornerResult | undefined => {
     let w: CornerResult | undefined;
     for (const c of ok) {
@@ -315,22 +322,31 @@ export function cornerRows(mirror: MirrorReport): CornerRowView[] {
   };
   const worstError = worst((c) => Math.abs(c.error), (a, b) => b > a);
   const worstRout = worst((c) => c.rout, (a, b) => b < a);
-  const worstCompliance = worst((c) => c.compliance, (a, b) => (mirror.type === 'nmos' ? b > a : b < a));
+  const worstCompliance = worst((c) => c.compliance, (a, b) => (nmos ? b > a : b < a));
   const worstSigma = worst((c) => c.sigma, (a, b) => b > a);
   const worstMargin = worst((c) => c.minMargin, (a, b) => b < a);
-  const flag = (c: CornerResult, w: CornerResult | undefined): CellView['flag'] => (c === w ? 'bad' : undefined);
+  const target = req.ratio ?? mirror.ratioIdeal;
+  const fails = {
+    error: (c: CornerResult) => limits !== undefined && target !== undefined && target > 0 && Math.abs(c.ratio / target - 1) > limits.error,
+    rout: (c: CornerResult) => req.rout !== undefined && c.rout < req.rout,
+    compliance: (c: CornerResult) => req.compliance !== undefined && (nmos ? c.compliance > req.compliance : c.compliance < req.compliance),
+    sigma: (c: CornerResult) => req.sigma !== undefined && c.sigma !== undefined && c.sigma > req.sigma,
+    margin: (c: CornerResult) => c.minMargin !== undefined && c.minMargin < 0,
+  };
+  const flag = (c: CornerResult, w: CornerResult | undefined, bad: (c: CornerResult) => boolean): CellView['flag'] =>
+    (c.converged && bad(c) ? 'bad' : c === w ? 'worst' : undefined);
   return corners.map((c) => ({
     name: c.name,
     cells: [
       { text: c.name, title: c.converged ? undefined : 'did not converge', flag: c.converged ? undefined : 'bad' },
       { text: formatSI(c.iout, 'A', 4) },
       { text: formatNumber(c.ratio, 5) },
-      { text: formatSignedPercent(c.error), flag: flag(c, worstError) },
-      { text: formatSI(c.rout, 'Ω'), flag: flag(c, worstRout) },
-      { text: formatSI(c.compliance, 'V', 4), flag: flag(c, worstCompliance) },
-      { text: c.sigma === undefined ? '—' : formatPercent(c.sigma), flag: flag(c, worstSigma) },
+      { text: formatSignedPercent(c.error), flag: flag(c, worstError, fails.error) },
+      { text: formatSI(c.rout, 'Ω'), flag: flag(c, worstRout, fails.rout) },
+      { text: formatSI(c.compliance, 'V', 4), flag: flag(c, worstCompliance, fails.compliance) },
+      { text: c.sigma === undefined ? '—' : formatPercent(c.sigma), flag: flag(c, worstSigma, fails.sigma) },
       { text: c.minMargin === undefined ? '—' : `${formatSI(c.minMargin, 'V')}${c.minMarginDevice ? ` (${c.minMarginDevice})` : ''}`,
-        flag: flag(c, worstMargin) },
+        flag: flag(c, worstMargin, fails.margin) },
     ],
   }));
 }
@@ -345,6 +361,25 @@ export function monteCarloFigures(mirror: MirrorReport): FigureView[] {
     { key: 'mean', label: 'Mean Iout', value: formatSI(mc.mean, 'A', 4) },
     { key: 'sigma', label: 'σ(Iout)', value: formatPercent(mc.sigma), detail: mirror.sigma === undefined ? undefined : `Pelgrom ${formatPercent(mirror.sigma)}` },
     { key: 'range', label: 'Range', value: `${formatSI(mc.min, 'A', 4)} … ${formatSI(mc.max, 'A', 4)}` },
-    { key: 'yield', label: 'Yield', value: formatPercent(mc.yield, 4), detail: 'meets every requirement' },
+    { key: 'yield', label: 'Yield', value: formatPercent(mc.yield, 4), detail: yieldDetail(mirror) },
   ];
+}
+
+/** What the yield counts, in samples, so that 99.55 % cannot read as a pass: the per-sample
+ *  checks (variation/montecarlo.ts) when all pass, else how many samples fail and why. */
+export function yieldDetail(mirror: MirrorReport): string {
+  const mc = mirror.mc!;
+  const failing = mc.samples - Math.round(mc.yield * mc.samples);   // yield is pass/N: exact in samples
+  if (failing === 0) {
+    const compliance = mirror.require?.compliance !== undefined ? ', and at require.compliance' : '';
+    return `all ${mc.samples} samples saturated, ratio within limits.tolerance${compliance}`;
+  }
+  const f = mc.failures;
+  const why = [
+    f?.saturation ? `${f.saturation} out of saturation` : '',
+    f?.ratio ? `${f.ratio} ratio outside limits.tolerance` : '',
+    f?.compliance ? `${f.compliance} not saturated at require.compliance` : '',
+    f?.convergence ? `${f.convergence} without a solution` : '',
+  ].filter((x) => x !== '');
+  return `${failing} of ${mc.samples} samples fail${why.length > 0 ? `: ${why.join(', ')}` : ''}`;
 }

@@ -341,6 +341,9 @@ export interface FileReport {
   mirrors: MirrorReport[];
   findings: Finding[];
   anchors: Anchor[];
+  /** The limits the findings judged against (V and fraction), for front ends that mark values
+   *  against requirements (the panel's corner table). Not part of the CLI's JSON. */
+  limits?: { error: number; margin: number };
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];

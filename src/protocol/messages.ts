@@ -171,7 +171,8 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
 
 export function isFileReport(v: unknown): v is FileReport {
   return isRecord(v) && isString(v.file) && isBoolean(v.parsed) && optional(v.title, isString) &&
-    arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor);
+    arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor) &&
+    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin));
 }
 
 // ───────────────────────────── primitives ─────────────────────────────

@@ -46,7 +46,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
       if (f?.saturation) parts.push(`${f.saturation} with a device out of saturation`);
       if (f?.compliance) parts.push(`${f.compliance} not saturated at ${formatSI(req.compliance ?? NaN, 'V')}`);
       if (f?.convergence) parts.push(`${f.convergence} without a solution`);
-      const failing = Math.round((1 - mc.yield) * mc.samples);
+      const failing = mc.samples - Math.round(mc.yield * mc.samples);   // yield is pass/N: exact in samples
       out.push({
         severity: 'warning', code: 'mc-yield', path: [...site.path, 'require'],
         range: parsed.source.key([...site.path, 'require']) ?? nameRange(parsed, site),
