@@ -110,12 +110,12 @@ const rows: Row[] = [
     // Stack VGS_ref + VGS_refc ≈ 0.63 + 0.77 = 1.40 V leaves 0.10 V of the 1.5 V supply.
     name: 'input-headroom: cascode current input, at the input value',
     text: spec(mirror('tail', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 1.2 }']), 1.5),
-    code: 'input-headroom', at: [10, 11, 14, '10u'], fix: true, message: /leaving 9\d\.\d mV for the input current source; it needs limits\.sourceHeadroom 200 mV/,
+    code: 'input-headroom', at: [10, 11, 14, '10u'], fix: true, message: /^tail: the input node sits 1\.4\d* V above vss \(stack `ref` \+ `refc`\), leaving 9\d\.\d mV to vdd for the input current source; it needs limits\.sourceHeadroom 200 mV/,
   },
   {
     name: 'input-headroom: a resistor input with almost nothing across it (no fix can make room)',
     text: spec(mirror('tail', 'cascode', 'nmos', ['    input: { resistor: 100k }', '    size: { w: 2u, l: 1u }', '    output: { v: 1.0 }']), 1.2),
-    code: 'input-headroom', at: [10, 23, 27, '100k'], fix: false, message: /the input resistor has only \d+\.?\d* mV across it/,
+    code: 'input-headroom', at: [10, 23, 27, '100k'], fix: false, message: /^tail: the input resistor has only \d+\.?\d* mV across it to vdd \(the stack `ref` \+ `refc` takes 1\.\d+ V above vss of the 1\.2 V supply/,
   },
   {
     // IC = ID/(2·n·β·UT²) = 100n/(2·1.3·560µ·25.86m²) ≈ 0.10 (design §3).

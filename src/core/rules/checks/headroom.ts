@@ -51,7 +51,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const message = resistor
     ? `the input resistor has only ${signedVolts(got.room)} across it to ${far} (the stack ${stackNames} takes ${volts(got.stack)} ${side} ${own} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
       `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${volts(got.stack)} ${side} ${own} (stack ${stackNames}) and ${signedVolts(got.room)} from ${far}, leaving ${signedVolts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+    : `the input node sits ${volts(got.stack)} ${side} ${own} (stack ${stackNames}), leaving ${signedVolts(got.room)} to ${far} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
