@@ -7,7 +7,7 @@ import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import type { HostMessage } from '../../src/protocol/messages';
-import { renderHtmlReport } from '../../src/core/report/html';
+import { STATIC_ID, renderHtmlReport } from '../../src/core/report/html';
 import {
   OUT, ROOT, THEMES, applyTheme, canvasInk, ensureBundle, ensureDir, hexToRgb, instrument, launch,
   readSI, until, writePanelPage, type PageProbe, type ThemeKind,
@@ -345,6 +345,38 @@ describe('the HTML report', () => {
     });
     expect(requests).toEqual([]);
     expect(errors).toEqual([]);
+    // On screen the live view replaces the static body; printed, the static body is what shows.
+    expect(await page.locator(`#${STATIC_ID}`).isVisible()).toBe(false);
+    await page.emulateMedia({ media: 'print', colorScheme: 'light' });
+    expect(await page.locator(`#${STATIC_ID}`).isVisible()).toBe(true);
+    expect(await page.locator('#qpoint-root').isVisible()).toBe(false);
+    await context.close();
+  });
+
+  it('reads without JavaScript: every mirror\'s tables and its plots as SVG', async () => {
+    const { main } = core();
+    const file = join(OUT, 'report-noscript.html');
+    mkdirSync(OUT, { recursive: true });
+    writeFileSync(file, renderHtmlReport(main, { script: readFileSync(join(ROOT, 'dist', 'webview.js'), 'utf8') },
+      { version: '0.0.0-test', date: '2026-01-01T00:00:00.000Z', inputHash: 'sha256:test' }));
+    const context = await browser.newContext({ viewport: { width: 1200, height: 900 }, javaScriptEnabled: false });
+    const page = await context.newPage();
+    await page.goto(pathToFileURL(file).toString());
+    expect(await page.locator(`#${STATIC_ID}`).isVisible()).toBe(true);
+    for (const m of main.mirrors) {
+      const section = page.locator(`#${STATIC_ID} section[data-mirror="${m.name}"]`);
+      expect(await section.locator('table.devices tbody tr').count()).toBe(m.devices.length);
+      // The Iout figure as the table prints it is the core's number (4 significant digits).
+      const iout = await section.locator('table.figures tr', { hasText: 'Iout' }).locator('td').nth(1).innerText();
+      expect(readSI(iout.split(' at ')[0]!, 'A') / m.iout).toBeCloseTo(1, 3);
+      if ((m.curve?.length ?? 0) > 1) {
+        const box = await section.locator('svg.plot-svg').first().boundingBox();
+        expect(box?.width).toBeGreaterThan(300);
+        expect(await section.locator('svg.plot-svg polyline').count()).toBeGreaterThanOrEqual(2);
+      }
+    }
+    expect(await page.locator(`#${STATIC_ID} .stamp`).innerText()).toContain('qpoint 0.0.0-test');
+    await page.screenshot({ path: join(OUT, 'report-noscript.png'), fullPage: true });
     await context.close();
   });
 });
