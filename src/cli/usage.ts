@@ -14,7 +14,8 @@ check    solve every mirror, print each mirror's figures and the findings
 fix      apply the preferred fix of every finding, re-check, repeat while errors drop;
          without --apply (or with --dry-run) print the change as a unified diff
 report   write one self-contained HTML page with the tables, plots and corners
-         (and a Monte Carlo histogram per output with --mc)
+         (and a Monte Carlo histogram per output with --mc); readable without
+         JavaScript, stamped with version, date and input hash; exits 0 once written
 sweep    print Iout and Rout of one mirror output across a range of output voltages
 
 exit codes: 0 no errors (warnings allowed), 1 findings of severity error,
