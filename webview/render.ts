@@ -104,7 +104,7 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
     onActivate: ctx.mode === 'panel' ? () => ctx.onSelect(it.name) : undefined,
     cells: [
       { text: ctx.mode === 'report' ? h('a', { href: `#mirror-${cssId(it.name)}` }, it.name) : it.name },
-      { text: it.kind }, { text: it.type },
+      { text: `${it.kind} ${it.type}` },
       { text: it.iout }, { text: it.error }, { text: it.compliance },
       { text: findingCounts(it.counts, it.converged) },
     ],
@@ -118,14 +118,15 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
       actionLabel: ctx.mode === 'panel' ? `Show mirror ${name} in the editor` : undefined,
       onActivate: ctx.mode === 'panel' ? () => ctx.onReveal(w.range) : undefined,
       cells: [
-        { text: name }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' },
+        { text: name }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' },
         { text: h('span', { class: 'finding-counts' }, h('span', { class: 'severity severity-error' }, 'not solved: fix its errors')) },
       ],
     } });
   }
   const rows = placed.sort((a, b) => a.at - b.at).map((p) => p.row);  // stable: a bank's outputs keep their order
   return table('Mirrors of this spec', [
-    { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false }, { label: 'Type', numeric: false },
+    // Kind and polarity share a column: the list must fit an editor split in two.
+    { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false },
     { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
     { label: 'Findings', numeric: false },
   ], rows, { id: 'mirror-list' });

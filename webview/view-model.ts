@@ -137,6 +137,13 @@ export interface FigureView {
   detail?: string;
 }
 
+/** The causes of the error that are there (≥ 0.005 %, as the ratio-error message names them). */
+function splitText(split: NonNullable<MirrorReport['errorSplit']>): string {
+  const named: [string, number | undefined][] = [['VDS', split.vds], ['body', split.body], ['gate', split.gate], ['geometry', split.geometry]];
+  const shown = named.filter(([, v]) => v !== undefined && Math.abs(v) >= 5e-5).map(([k, v]) => `${k} ${formatSignedPercent(v!, 2)}`);
+  return shown.length > 0 ? shown.join(' · ') : 'no systematic cause above 0.005 %';
+}
+
 export function summaryFigures(m: MirrorReport): FigureView[] {
   const figures: FigureView[] = [
     { key: 'iin', label: 'Iin', value: formatSI(m.iin, 'A', 4), detail: 'input branch' },
@@ -147,7 +154,7 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
   if (m.error !== undefined) {
     const split = m.errorSplit;
     figures.push({ key: 'error', label: 'Error', value: formatSignedPercent(m.error),
-      detail: split ? `VDS ${formatSignedPercent(split.vds, 2)} · body ${formatSignedPercent(split.body, 2)}${split.gate !== undefined ? ` · gate ${formatSignedPercent(split.gate, 2)}` : ''} · geometry ${formatSignedPercent(split.geometry, 2)}` : 'systematic' });
+      detail: split ? splitText(split) : 'systematic' });
   }
   figures.push({ key: 'rout', label: 'Rout', value: formatSI(m.rout, 'Ω'),
     detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });

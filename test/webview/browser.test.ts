@@ -95,7 +95,8 @@ describe('the bias panel page', () => {
     for (const [i, m] of main.mirrors.entries()) {
       const cells = rows.nth(i).locator('th, td');
       expect(await cells.nth(0).innerText()).toBe(m.name);
-      expect(Math.abs(readSI(await cells.nth(3).innerText(), 'A') / m.iout - 1)).toBeLessThan(5e-4);
+      expect(await cells.nth(1).innerText()).toBe(`${m.kind} ${m.type}`);
+      expect(Math.abs(readSI(await cells.nth(2).innerText(), 'A') / m.iout - 1)).toBeLessThan(5e-4);
     }
 
     const m = main.mirrors[0];
@@ -124,6 +125,62 @@ describe('the bias panel page', () => {
       expect(rout.every((c) => c.inked > 1000)).toBe(true);
       await page.screenshot({ path: ensureDir(join(OUT, `panel-${kind}.png`)), fullPage: true });
     }
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
+  it('dark theme: the selected mirror row reads at a contrast of 4.5 or more, and the mirror table fits a split editor', async () => {
+    // WCAG 2.1 §1.4.3 contrast ratio (L1 + 0.05)/(L2 + 0.05) of relative luminances, ≥ 4.5:1 for
+    // text; the colours are the ones Chromium renders. Default split: a 1400 px window with the
+    // side bar open leaves each editor half about 520 px (the workbench's layout).
+    const { faulty } = core();
+    const page = await browser.newPage({ viewport: { width: 520, height: 900 } });
+    const probe = await instrument(page);
+    await page.goto(panelUrl);
+    await applyTheme(page, 'dark');
+    await post(page, { type: 'report', uri: URI, report: faulty, version: 1 });
+    await page.locator('article.mirror').waitFor();
+    // Select a row with an error (red text) so the worst case is the one read.
+    const errRow = faulty.mirrors.find((m) => faulty.findings.some((f) => f.severity === 'error' && f.message.startsWith(`${m.name}: `)))!;
+    await page.locator(`#mirror-list tbody tr[data-key="mirror:${errRow.name}"]`).click();
+    await expect.poll(() => page.locator('#mirror-list tbody tr.selected').count()).toBe(1);
+    const ratios = await page.evaluate(() => {
+      const parse = (c: string): [number, number, number, number] => {
+        const m = /rgba?\(([\d.]+), ([\d.]+), ([\d.]+)(?:, ([\d.]+))?\)/.exec(c);
+        return m ? [Number(m[1]), Number(m[2]), Number(m[3]), m[4] === undefined ? 1 : Number(m[4])] : [0, 0, 0, 0];
+      };
+      const lum = ([r, g, b]: number[]) => {
+        const f = (v: number) => { const x = v / 255; return x <= 0.03928 ? x / 12.92 : ((x + 0.055) / 1.055) ** 2.4; };
+        return 0.2126 * f(r!) + 0.7152 * f(g!) + 0.0722 * f(b!);
+      };
+      // The backdrop: the first opaque background from the cell up (the row's selection colour).
+      const backdrop = (el: Element | null): number[] => {
+        for (let e = el; e; e = e.parentElement) {
+          const c = parse(getComputedStyle(e).backgroundColor);
+          if (c[3] > 0.5) return c;
+        }
+        return parse(getComputedStyle(document.body).backgroundColor);
+      };
+      const row = document.querySelector('#mirror-list tbody tr.selected')!;
+      const out: { text: string; ratio: number }[] = [];
+      for (const el of Array.from(row.querySelectorAll('*')).concat(row)) {
+        const own = Array.from(el.childNodes).some((n) => n.nodeType === 3 && (n.textContent ?? '').trim() !== '');
+        if (!own) continue;
+        const fg = parse(getComputedStyle(el).color);
+        const [a, b] = [lum(fg), lum(backdrop(el))].sort((x, y) => y - x);
+        out.push({ text: (el.textContent ?? '').trim(), ratio: (a! + 0.05) / (b! + 0.05) });
+      }
+      return out;
+    });
+    expect(ratios.length).toBeGreaterThan(3);
+    for (const r of ratios) expect(r.ratio, `"${r.text}"`).toBeGreaterThanOrEqual(4.5);
+    // Every column of the mirror table is on screen without scrolling sideways.
+    const fit = await page.evaluate(() => {
+      const box = document.querySelector('#mirror-list')!.closest('.scroll-x') as HTMLElement;
+      return { scroll: box.scrollWidth, client: box.clientWidth };
+    });
+    await page.screenshot({ path: ensureDir(join(OUT, 'panel-dark-selected.png')) });
+    expect(fit.scroll).toBeLessThanOrEqual(fit.client);
     await cleanPage(page, probe);
     await page.close();
   });
@@ -222,7 +279,7 @@ describe('the bias panel page', () => {
     // Post and wait for the new Iout inside the page: the latency the designer sees.
     const latency = await page.evaluate(async (msg) => {
       const start = performance.now();
-      const cell = () => document.querySelector('#mirror-list tbody tr th')?.parentElement?.children[3]?.textContent;
+      const cell = () => document.querySelector('#mirror-list tbody tr th')?.parentElement?.children[2]?.textContent;  // Iout
       const before = cell();
       window.postMessage(msg, '*');
       return new Promise<number>((resolve, reject) => {

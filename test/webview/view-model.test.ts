@@ -104,7 +104,8 @@ describe('summary, list, findings', () => {
   it('puts Rout beside the textbook formula and the error split in the detail', () => {
     const figs = summaryFigures(tailMirror());
     expect(figs.find((f) => f.key === 'rout')).toMatchObject({ value: '21.3 MΩ', detail: 'textbook 20.5 MΩ' });
-    expect(figs.find((f) => f.key === 'error')).toMatchObject({ value: '+0.3 %', detail: 'VDS +0.25 % · body +0.05 % · geometry 0 %' });
+    // A cause whose term is zero (geometry here) is not named (issue: never blame an absent cause).
+    expect(figs.find((f) => f.key === 'error')).toMatchObject({ value: '+0.3 %', detail: 'VDS +0.25 % · body +0.05 %' });
     expect(figs.find((f) => f.key === 'compliance')?.detail).toBe('works down to');
   });
 
