@@ -140,21 +140,25 @@ export function deviceFigures(d: DeviceReport): [label: string, value: string][]
   ];
 }
 
-/** Pairs of figures side by side: a compact four-column table. */
-function pairTable(rows: [string, string][], header: string): string {
-  const lines = [`| ${header} | | | |`, '|:--|--:|:--|--:|'];
-  for (let i = 0; i < rows.length; i += 2) {
-    const a = rows[i];
+/** Pairs of figures side by side: a compact four-column table whose first pair is its header
+ *  row (a markdown table needs one; a separate title row would cost the hover a line). */
+function pairTable(rows: [string, string][]): string {
+  const line = (i: number): string => {
+    const a = rows[i]!;
     const b = rows[i + 1] ?? ['', ''];
-    lines.push(`| **${a[0]}** | ${a[1]} | ${b[0] ? `**${b[0]}**` : ''} | ${b[1]} |`);
-  }
+    return `| **${a[0]}** | ${a[1]} | ${b[0] ? `**${b[0]}**` : ''} | ${b[1]} |`;
+  };
+  const lines = [line(0), '|:--|--:|:--|--:|'];
+  for (let i = 2; i < rows.length; i += 2) lines.push(line(i));
   return lines.join('\n');
 }
 
+/** One title line, five table rows, the caution: short enough that the editor's hover shows it
+ *  whole, below a diagnostic or two, without scrolling. */
 export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
-  const head = `**${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)}  \n${sizeLine(d)}`;
+  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}`;
   const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
-  return `${head}${note}\n\n${pairTable(deviceFigures(d), 'Operating point')}\n\n${CAUTION}`;
+  return `${head}${note}\n\n${pairTable(deviceFigures(d))}\n\n${CAUTION}`;
 }
 
 export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): string {
