@@ -4,7 +4,7 @@ import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
-import { readOne } from './io';
+import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
@@ -15,6 +15,10 @@ export function webviewAssets(): { script: string } {
 }
 
 export function runReport(c: ReportCommand): number {
+  if (isSameFile(c.file, c.html)) {
+    process.stderr.write(`qpoint: --html ${c.html} is the spec itself; name another file for the page\n`);
+    return 2;
+  }
   const read = readOne(c.file);
   if (!read) return 2;
   const name = read.name;
@@ -25,7 +29,7 @@ export function runReport(c: ReportCommand): number {
     const stamp = { version: VERSION, date: new Date().toISOString(), inputHash: `sha256:${createHash('sha256').update(read.text).digest('hex')}` };
     writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp));
   } catch (err) {
-    process.stderr.write(`qpoint: cannot write ${c.html}: ${(err as Error).message}\n`);
+    process.stderr.write(`qpoint: cannot write ${c.html}: ${reasonOf(err)}\n`);
     return 2;
   }
   const errors = report.findings.filter((f) => f.severity === 'error').length;
