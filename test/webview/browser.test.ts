@@ -317,6 +317,7 @@ describe('sections that render when present', () => {
   it('Monte Carlo histogram and corner table (hand-made report until the core attaches them)', async () => {
     const report = fixtureReport();
     const { page, probe } = await openPanel();
+    await applyTheme(page, 'light');
     await post(page, { type: 'report', uri: URI, report, version: 1 });
     const m = report.mirrors[0];
     const ink = await until('the histogram', async () => {
@@ -328,9 +329,16 @@ describe('sections that render when present', () => {
     expect(readSI(await mc.locator('[data-figure="mean"] .value').innerText(), 'A') / m.mc!.mean - 1).toBeCloseTo(0, 3);
     const corners = page.locator('table.corners tbody tr');
     expect(await corners.count()).toBe(m.corners!.length);
-    // slow-cold has the largest error, lowest Rout, highest compliance and smallest margin.
-    expect(await corners.nth(0).locator('td.bad').count()).toBe(5);
-    expect(await corners.nth(1).locator('td.bad').count()).toBe(0);
+    // slow-cold has the largest error, lowest Rout, highest compliance, σ and smallest margin:
+    // all five are marked; only Rout, compliance and σ fail their requirement (error colour),
+    // the error (+0.75 % of ±1 %) and the margin (+20 mV) are the worst but within it (bold).
+    expect(await corners.nth(0).locator('td.bad').count()).toBe(3);
+    expect(await corners.nth(0).locator('td.worst').count()).toBe(2);
+    const red = hexToRgb(THEMES.light.vars['--vscode-errorForeground']);
+    const colour = (sel: string) => corners.nth(0).locator(sel).first().evaluate((el) => getComputedStyle(el).color);
+    expect(await colour('td.bad')).toBe(`rgb(${red.join(', ')})`);
+    expect(await colour('td.worst')).not.toBe(`rgb(${red.join(', ')})`);
+    expect(await corners.nth(1).locator('td.bad, td.worst').count()).toBe(0);
     await cleanPage(page, probe);
     await page.close();
   });
