@@ -136,7 +136,8 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
     const untrustedFamilies = new Set<string>();
     let tried = 0;
     try {
-      for (const c of d.plan((family) => families.has(family))) {
+      const seen = { offered: (f: string) => families.has(f), untrusted: (f: string) => untrustedFamilies.has(f) };
+      for (const c of d.plan(seen)) {
         if (families.has(c.family) || untrustedFamilies.has(c.family)) continue;
         if (tried >= MAX_VERIFICATIONS || budget.left <= 0 || budget.now() >= budget.deadline) break;
         const built = c.build();

@@ -31,16 +31,23 @@ export interface FixPlan {
   family: string;
 }
 
+export interface PlanProgress {
+  /** A fix of this family is verified and offered. */
+  offered(family: string): boolean;
+  /** A candidate of this family was refused for leaving the model's trusted region (rules/trust.ts). */
+  untrusted(family: string): boolean;
+}
+
 export interface Draft {
   /** Identity across re-checks: code, report path and subject (device, token). */
   key: string;
   finding: Finding;
   mirrorIndex: number;
   /**
-   * Candidate fixes, best first, built lazily; only verified ones are offered. `offered(family)`
-   * says whether a fix of that family is verified already, so a fallback is computed only when due.
+   * Candidate fixes, best first, built lazily; only verified ones are offered. `seen` says what
+   * became of a family's candidates so far, so a fallback is computed only when due.
    */
-  plan?: (offered: (family: string) => boolean) => Iterable<{ family: string; build: () => FixPlan | undefined }>;
+  plan?: (seen: PlanProgress) => Iterable<{ family: string; build: () => FixPlan | undefined }>;
   /** Appended to the message when no verified fix exists ("a cascode would …"). */
   hint?: string;
 }

@@ -73,12 +73,15 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
         severity: 'error', code: 'not-saturated', path: at.path, range: at.range,
         message: `${code(d.name)} ${state(d)} at Vout = ${volts(site.vout)}${where}`,
       },
-      plan: function* (offered) {
+      plan: function* (seen) {
         // Full margin if the mirror can get it, else a smaller step: just saturation (the
         // low-margin warning stays) — also when the full margin would take a device where the
         // square law is not trusted (rules/trust.ts).
-        yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`);
-        if (!offered('widen')) yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0.005, site.vout), `to saturate ${code(d.name)}`, 'widen-step');
+        let any = false;
+        for (const c of widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`)) { any = true; yield c; }
+        if (!any || (!seen.offered('widen') && seen.untrusted('widen'))) {
+          yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0.005, site.vout), `to saturate ${code(d.name)}`, 'widen-step');
+        }
       },
       hint: 'lower its overdrive (wider devices) or move Vout away from the rail',
     });
