@@ -115,7 +115,12 @@ export class CircuitBuilder {
       switch (p.kind) {
         case 'mos': {
           const [d, g, s, b] = p.nodes;
-          const e: MosElement = { kind: 'mos', ...p.m, d: at(d), g: at(g), s: at(s), b: at(b), slot: 0 };
+          const m = p.m;
+          // Field by field: an object spread here costs as much as a small solve.
+          const e: MosElement = {
+            kind: 'mos', name: m.name, role: m.role, type: m.type, size: m.size, params: m.params, dev: m.dev,
+            measured: m.measured, d: at(d), g: at(g), s: at(s), b: at(b), slot: 0,
+          };
           elements.push(e);
           devices.push(e);
           break;
@@ -124,14 +129,17 @@ export class CircuitBuilder {
         case 'current': p.e.from = at(p.from); p.e.to = at(p.to); elements.push(p.e); break;
       }
     }
-    const entries: number[] = [];
-    const add = (row: number, col: number): void => { entries.push(row, col); };
+    let count = 0;
+    for (const e of elements) patternOf(e, () => { count++; });
+    const entries = new Int32Array(2 * count);
+    let filled = 0;
+    const add = (row: number, col: number): void => { entries[filled++] = row; entries[filled++] = col; };
     for (const e of elements) {
-      if (hasSlots(e)) e.slot = entries.length >> 1;
+      if (hasSlots(e)) e.slot = filled >> 1;
       patternOf(e, add);
     }
     const n = free.length;
-    const jacobian = new JacobianPattern(nodeNames.length, n, Int32Array.from(entries));
+    const jacobian = new JacobianPattern(nodeNames.length, n, entries);
     let ordering: Int32Array | undefined;
     if (n > SOLVER.denseMaxNodes) {
       const o = minimumDegree(n, jacobian.colPtr, jacobian.rowIdx, jacobian.freeEnd, SOLVER.maxFactorWork);
@@ -140,7 +148,7 @@ export class CircuitBuilder {
     }
     return {
       nodeNames, nFree: n, fixedV, elements, devices, jacobian, ordering,
-      hasCurrentSources: elements.some((e) => e.kind === 'current'),
+      hasCurrentSources: this.pending.some((p) => p.kind === 'current'),
       outNode: at(out),
       outSign,
       vmid: 0.5 * (vss + vdd),

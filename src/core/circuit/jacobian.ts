@@ -26,15 +26,20 @@ export class JacobianPattern {
     this.n = n;
     const count = entries.length >> 1;
     // Key col·nt + row sorts by column, then row; nt² stays far below 2⁵³.
-    const keys = new Float64Array(count + n);
+    const keys = new Float64Array(2 * (count + n));
     for (let k = 0; k < count; k++) keys[k] = entries[2 * k + 1]! * nt + entries[2 * k]!;
     for (let k = 0; k < n; k++) keys[count + k] = k * nt + k;
-    const sorted = keys.slice().sort();
+    const sorted = keys.subarray(count + n);
+    sorted.set(keys.subarray(0, count + n));
+    sorted.sort();
     let nnz = 0;
     for (let k = 0; k < sorted.length; k++) if (k === 0 || sorted[k] !== sorted[k - 1]) sorted[nnz++] = sorted[k]!;
     this.nnz = nnz;
-    this.colPtr = new Int32Array(nt + 1);
-    this.rowIdx = new Int32Array(nnz);
+    // One allocation for the index arrays: a pattern is built for each measured output.
+    const buf = new Int32Array(nt + 1 + nnz + count + 2 * n);
+    let at = 0;
+    const take = (len: number): Int32Array => { const a = buf.subarray(at, at + len); at += len; return a; };
+    this.colPtr = take(nt + 1); this.rowIdx = take(nnz); this.slots = take(count); this.diag = take(n); this.freeEnd = take(n);
     for (let p = 0; p < nnz; p++) {
       const key = sorted[p]!;
       const col = Math.floor(key / nt);
@@ -47,11 +52,8 @@ export class JacobianPattern {
       while (lo < hi) { const mid = (lo + hi) >> 1; if (sorted[mid]! < key) lo = mid + 1; else hi = mid; }
       return lo;
     };
-    this.slots = new Int32Array(count);
     for (let k = 0; k < count; k++) this.slots[k] = find(keys[k]!);
-    this.diag = new Int32Array(n);
     for (let k = 0; k < n; k++) this.diag[k] = find(k * nt + k);
-    this.freeEnd = new Int32Array(n);
     for (let j = 0; j < n; j++) {
       let p = this.colPtr[j]!;
       const end = this.colPtr[j + 1]!;

@@ -21,11 +21,12 @@ export class DenseSolver implements LinearSolver {
   private readonly lu: Float64Array;
   private readonly perm: Int32Array;
   private readonly tmp: Float64Array;
-  constructor(private readonly pattern: JacobianPattern) {
+  /** `buf` holds n² + n values for the factors and a scratch vector (the workspace's). */
+  constructor(private readonly pattern: JacobianPattern, buf: Float64Array) {
     const n = pattern.n;
-    this.lu = new Float64Array(n * n);
+    this.lu = buf.subarray(0, n * n);
+    this.tmp = buf.subarray(n * n, n * n + n);
     this.perm = new Int32Array(n);
-    this.tmp = new Float64Array(n);
   }
   factor(values: Float64Array): boolean {
     const { n, colPtr, rowIdx, freeEnd } = this.pattern;

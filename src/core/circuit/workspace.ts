@@ -34,11 +34,12 @@ export class Workspace {
     this.pattern = c.jacobian;
     this.slots = c.jacobian.slots;
     // One allocation for the node buffers: a workspace is built for each measured output.
-    const buf = new Float64Array(6 * nt + c.jacobian.nnz);
+    const n = c.nFree, dense = c.ordering ? 0 : n * n + n;
+    const buf = new Float64Array(6 * nt + c.jacobian.nnz + dense);
     let at = 0;
     const take = (len: number): Float64Array => { const a = buf.subarray(at, at + len); at += len; return a; };
     this.v = take(nt); this.F = take(nt); this.absI = take(nt); this.dx = take(nt);
     this.saved = take(nt); this.best = take(nt); this.G = take(c.jacobian.nnz);
-    this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering) : new DenseSolver(c.jacobian);
+    this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering) : new DenseSolver(c.jacobian, take(dense));
   }
 }

@@ -69,8 +69,9 @@ export function mosSigmas(m: MosElement): [number, number] | undefined {
 /** V, VDS − VDSsat; a device in cutoff counts with its (non-positive) overdrive, so it never
  *  passes as saturated. */
 export function mosMargin(m: MosElement, v: Float64Array, ch: ChannelEval): number {
-  const [vgs, vds, vbs] = mosFrame(m, v);
-  evalFrame(m.dev, vgs, vds, vbs, ch);
+  const p = m.dev.sign;
+  const vgs = p * (v[m.g]! - v[m.s]!), vds = p * (v[m.d]! - v[m.s]!);
+  evalFrame(m.dev, vgs, vds, p * (v[m.b]! - v[m.s]!), ch);
   return ch.region === 0 ? vgs - ch.vth : vds - ch.vdsat;
 }
 
@@ -78,7 +79,8 @@ export function mosMargin(m: MosElement, v: Float64Array, ch: ChannelEval): numb
  *  PMOS); the body bias as the reverse-bias magnitude `vbs` = VSB (VBS for PMOS), so every
  *  voltage is positive in normal operation. */
 export function mosReport(m: MosElement, v: Float64Array): DeviceReport {
-  const [vgs, vds, vbs] = mosFrame(m, v);
+  const p = m.dev.sign;
+  const vgs = p * (v[m.g]! - v[m.s]!), vds = p * (v[m.d]! - v[m.s]!), vbs = p * (v[m.b]! - v[m.s]!);
   const e = evalPrepared(m.dev, vgs, vds, vbs);
   const r: DeviceReport = {
     name: m.name, role: m.role, type: m.type, w: m.size.w, l: m.size.l, m: m.size.m,
