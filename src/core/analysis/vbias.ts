@@ -34,7 +34,7 @@ function refExcess(mc: MirrorCircuit, margin: number): number {
 
 /** V, VDS − VDSsat − margin of device k at the present solution. */
 function excess(mc: MirrorCircuit, k: number, margin: number): number {
-  const m = mc.circuit.mos[k]!;
+  const m = mc.circuit.devices[k]!;
   const v = mc.ws.v, p = m.dev.sign;
   const vds = p * (v[m.d]! - v[m.s]!);
   evalFrame(m.dev, p * (v[m.g]! - v[m.s]!), vds, p * (v[m.b]! - v[m.s]!), scratch);
@@ -75,7 +75,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   }
   const { sign, rail } = mc;
   const span = Math.abs(mc.span);
-  const ref = mc.circuit.mos[kRef]!, refc = mc.circuit.mos[kRefc]!;
+  const ref = mc.circuit.devices[kRef]!, refc = mc.circuit.devices[kRefc]!;
   // Start from the hand estimate: u_vbias = VDSsat_ref + margin + VGS_refc(VSB).
   mc.guess();
   const i = Math.abs(mc.iin());
@@ -95,7 +95,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
    *  where VDSsat follows the gate (square law: VOV; EKV: about VOV/n). */
   const evalAt = (u: number): { g: number; slope: number } => {
     fixed[node] = rail + sign * u;
-    const r = solveMirror(mc, warm);
+    const r = solveMirror(mc, warm, { polish: false });
     if (!r.converged) return { g: NaN, slope: NaN };
     warm = mc.ws.v.slice();
     const dx = heldNodeResponse(mc.ws, node);
@@ -141,7 +141,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
  * Undefined when nothing is short or no such u exists (mc is left solved at u then).
  */
 function raiseForOutputs(mc: MirrorCircuit, node: number, u0: number, margin: number, span: number): number | undefined {
-  const mos = mc.circuit.mos;
+  const mos = mc.circuit.devices;
   const outs = mos.flatMap((m, k) => (m.role === 'out' ? [k] : []));
   const bottom = mos.flatMap((m, k) => (m.role === 'out' || m.role === 'ref' ? [k] : []));
   const cascodes = mos.flatMap((m, k) => (m.role === 'outc' || m.role === 'refc' ? [k] : []));
