@@ -7,7 +7,6 @@
 import { gateDriveFor } from '../models/evaluate';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { newChannelEval } from '../models/core';
-import { MODELS } from '../models/registry';
 import { evalFrame } from '../models/terminal';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import { heldNodeResponse } from '../circuit/smallSignal';
@@ -73,7 +72,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   // Start from the hand estimate: u_vbias = VDSsat_ref + margin + VGS_refc(VSB).
   mc.guess();
   const i = Math.abs(mc.iin());
-  const refModel = MODELS[ref.dev.model];
+  const refModel = ref.dev.model;
   const uA = refModel.saturationVoltage(ref.dev, i) + margin;
   let u0 = uA + gateDriveFor(refc.dev, i, refc.size.bulk === 'rail' ? uA : 0);
   if (!Number.isFinite(u0)) u0 = 0.5 * span;

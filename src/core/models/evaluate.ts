@@ -6,7 +6,6 @@ import { DEFAULTS } from '../defaults';
 import type { DeviceParams, Inversion, ModelKind, Region } from '../types';
 import { newChannelEval } from './core';
 import { prepareDevice, type DeviceSizeLike, type ModelDevice } from './device';
-import { MODELS } from './registry';
 import { evalFrame } from './terminal';
 
 export interface DeviceEvaluation {
@@ -55,5 +54,5 @@ export function evalDevice(
  *  `vsb` above the bulk, ignoring length modulation: the device's model inverted, for initial
  *  guesses and the sizing code. */
 export function gateDriveFor(dev: ModelDevice, id: number, vsb: number): number {
-  return MODELS[dev.model].gateDrive(dev, id, vsb);
+  return dev.model.gateDrive(dev, id, vsb);
 }

@@ -1,7 +1,8 @@
 /**
  * The device-model interface: everything the core asks of a device model, answered by each
  * implementation in its own file and registered by name in registry.ts. Code outside this
- * folder reaches a model only through `MODELS[kind]`, never by testing the model's name.
+ * folder reaches a model through `MODELS[kind]` or a prepared device's `model`, never by
+ * testing the model's name.
  */
 import type { DesignTarget } from '../types';
 import type { ChannelEval } from './core';

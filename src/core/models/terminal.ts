@@ -1,18 +1,16 @@
 /**
  * Source/drain symmetry and polarity around the forward-frame models: a device with VDS < 0
- * is evaluated with drain and source swapped, and a PMOS with every voltage negated. The
- * model itself is looked up by name in the registry, once per evaluation.
+ * is evaluated with drain and source swapped, and a PMOS with every voltage negated.
  */
 import type { ChannelEval } from './core';
 import type { ModelDevice } from './device';
-import { MODELS } from './registry';
 
 /** Device-frame evaluation (voltages in the device's own polarity, any sign of VDS). On return
  *  `out.id` is the drain-to-source current in the device frame and gm/gds/gmb its derivatives
  *  with respect to the device-frame VGS/VDS/VBS; vth, vdsat, ic, region describe the channel
  *  in whichever orientation conducts. Returns true when drain and source were swapped. */
 export function evalFrame(dev: ModelDevice, vgs: number, vds: number, vbs: number, out: ChannelEval): boolean {
-  const model = MODELS[dev.model];
+  const model = dev.model;
   if (vds >= 0) {
     model.channel(dev, vgs, vds, vbs, out);
     return false;
