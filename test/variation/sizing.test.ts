@@ -1,7 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
 import { applyDesignTargets } from '../../src/core/design/auto-size';
-import { aspectForTarget, gmIdFromIc, icFromGmId, icFromOverdrive } from '../../src/core/design/targets';
+import { gmIdFromIc, icFromGmId, icFromOverdrive } from '../../src/core/models/ekv';
+import { MODELS } from '../../src/core/models/registry';
 import { snapLength } from '../../src/core/design/snap';
 import { BOLTZMANN, ELEMENTARY_CHARGE } from '../../src/core/defaults';
 import type { DesignTarget, DeviceReport, ResolvedSpec, TemplateKind } from '../../src/core/types';
@@ -9,20 +10,21 @@ import { makeSpec, mirror, sz } from './builders';
 
 const UT300 = (BOLTZMANN * 300) / ELEMENTARY_CHARGE; // 25.852000 mV (references §1)
 
-describe('closed-form sizing relations (targets.ts)', () => {
+describe('closed-form sizing relations (DeviceModel.aspectForTarget)', () => {
   it('square law reproduces the Razavi set D: W/L = 10 at VOV = 0.386334 V, 100 µA', () => {
     // references §2 "D" (Razavi 0.5 µm set, from memory): VOV = sqrt(2·I/(k′·W/L)), no CLM.
-    const ctx = { model: 'square-law' as const, kp: 134e-6, n: 1.3, ut: UT300 };
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'vov', value: 0.386334 })!).toBeCloseTo(10, 4);
+    const ctx = { kp: 134e-6, n: 1.3, ut: UT300 };
+    const model = MODELS['square-law'];
+    expect(model.aspectForTarget(ctx, 100e-6, { kind: 'vov', value: 0.386334 }, 1)!).toBeCloseTo(10, 4);
     // gm/ID = 2/VOV (square law): the same device at gm/ID = 2/0.386334 V.
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'gmid', value: 2 / 0.386334 })!).toBeCloseTo(10, 4);
+    expect(model.aspectForTarget(ctx, 100e-6, { kind: 'gmid', value: 2 / 0.386334 }, 1)!).toBeCloseTo(10, 4);
   });
 
   it('EKV reproduces references §6 "D in EKV terms": IS = 2.3284 µA, IC = 42.95 at 100 µA', () => {
     // IS = 2·n·β·U_T² (Enz, Krummenacher & Vittoz 1995, from memory): W/L = 10 gives IC 42.95.
-    const ctx = { model: 'ekv' as const, kp: 134e-6, n: 1.3, ut: UT300 };
+    const ctx = { kp: 134e-6, n: 1.3, ut: UT300 };
     expect(2 * 1.3 * 134e-6 * 10 * UT300 * UT300).toBeCloseTo(2.3284e-6, 10);
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'ic', value: 42.95 })!).toBeCloseTo(10, 2);
+    expect(MODELS.ekv.aspectForTarget(ctx, 100e-6, { kind: 'ic', value: 42.95 }, 1)!).toBeCloseTo(10, 2);
   });
 
   it('EKV overdrive ↔ IC follows the ln² form of references §6', () => {

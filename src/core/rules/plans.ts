@@ -20,6 +20,7 @@ import { paramsOf, planParamEdits } from './param-edits';
 import { isAutoSized, overridePath, textAt, type Site } from './sites';
 import { factor, volts } from './words';
 import { indexOf } from '../mirror-at';
+import { MODELS, WEAK_INVERSION_MODEL } from '../models/registry';
 
 /** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
 function fixable(rc: RuleContext, mirrorIndex: number): boolean {
@@ -238,7 +239,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   }
 }
 
-/** `process.model: ekv` (whole-file scope). */
+/** `process.model:` the model that covers weak inversion (whole-file scope). */
 export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Candidate> {
   // The re-check re-solves the whole file; auto-sized mirrors are sized by another pass first.
   if (rc.spec.mirrors.some((m) => isAutoSized(rc.spec, indexOf(m)))) return;
@@ -246,18 +247,20 @@ export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Can
 }
 
 function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
+  const name = WEAK_INVERSION_MODEL;
+  if (name === undefined) return undefined;
   const path = ['process', 'model'];
   const range = rc.parsed.source.value(path);
   let edits: TextEdit[] | undefined;
   if (range) {
     const token = textAt(rc.parsed.text, range);
-    const e = replaceValueEdit(rc.parsed, path, quotedLike(token, 'ekv'));
+    const e = replaceValueEdit(rc.parsed, path, quotedLike(token, name));
     edits = e ? [e] : undefined;
   } else {
-    edits = buildEdits(rc.parsed, [], [{ parent: ['process'], key: 'model', text: rc.json ? '"ekv"' : 'ekv' }], rc.file);
+    edits = buildEdits(rc.parsed, [], [{ parent: ['process'], key: 'model', text: rc.json ? `"${name}"` : name }], rc.file);
   }
   if (!edits) return undefined;
-  return { title: 'Use the EKV model (`model: ekv`), valid from weak to strong inversion', edits, scope: 'spec', mirrorIndex, family: 'model' };
+  return { title: `Use the ${MODELS[name].title} (\`model: ${name}\`), valid from weak to strong inversion`, edits, scope: 'spec', mirrorIndex, family: 'model' };
 }
 
 /** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
