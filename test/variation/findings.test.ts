@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { parseSpec } from '../../src/core/spec/index';
 import type { Finding, TemplateMirror } from '../../src/core/types';
 import { applyDesignTargets } from '../../src/core/variation/index';

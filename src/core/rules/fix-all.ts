@@ -8,7 +8,7 @@
  * and are never applied. At most MAX_ROUNDS rounds.
  */
 import type { Finding, Fix, Severity, TextEdit } from '../types';
-import { applyEdits } from '../spec/edit';
+import { applyEdits } from '../text/edits';
 
 export const MAX_ROUNDS = 8;
 

@@ -16,7 +16,7 @@ import { shortDecimal } from '../sizing/token-style';
 import { replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
-import { isAutoSized, textAt, type Site } from './sites';
+import { isAutoSized, type Site } from './sites';
 import { factor, volts } from './words';
 import { indexOf } from '../mirror-at';
 
@@ -151,7 +151,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
   const path = ['mirrors', site.mirrorIndex, 'vbias'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const seen = new Set<number>();
   for (const dir of ['up', 'nearest', 'down'] as const) {
     const mv = dir === 'up' ? Math.ceil(picked * 1000 - 1e-9) : dir === 'down' ? Math.floor(picked * 1000 + 1e-9) : Math.round(picked * 1000);
@@ -172,7 +172,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   const path = ['mirrors', site.mirrorIndex, 'kind'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(token, 'wilson-balanced'));
   if (!kindEdit) return;
   const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
@@ -202,7 +202,7 @@ function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
   const range = rc.parsed.source.value(path);
   let edits: TextEdit[] | undefined;
   if (range) {
-    const token = textAt(rc.parsed.text, range);
+    const token = rc.parsed.source.text(range);
     const e = replaceValueEdit(rc.parsed, path, quotedLike(token, 'ekv'));
     edits = e ? [e] : undefined;
   } else {

@@ -85,7 +85,7 @@ export interface SizeToken { path: SpecPath; range: Range; text: string }
 export function sizeToken(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef, key: SizeKey): SizeToken | undefined {
   for (const path of sourceCandidates(spec, ref, key)) {
     const range = parsed.source.value(path);
-    if (range) return { path, range, text: textAt(parsed.text, range) };
+    if (range) return { path, range, text: parsed.source.text(range) };
   }
   return undefined;
 }
@@ -144,18 +144,4 @@ export function kindRange(parsed: ParsedSpec, mirrorIndex: number): { path: Spec
   const path: SpecPath = ['mirrors', mirrorIndex, 'kind'];
   const r = parsed.source.value(path);
   return r ? { path, range: r } : mirrorRange(parsed, mirrorIndex);
-}
-
-/** The source text of a range (LSP positions). */
-export function textAt(text: string, r: Range): string {
-  const offset = (p: { line: number; character: number }): number => {
-    let at = 0;
-    for (let line = 0; line < p.line; line++) {
-      const nl = text.indexOf('\n', at);
-      if (nl < 0) return text.length;
-      at = nl + 1;
-    }
-    return Math.min(at + p.character, text.length);
-  };
-  return text.slice(offset(r.start), offset(r.end));
 }

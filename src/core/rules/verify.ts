@@ -18,7 +18,7 @@ import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
 import { measure } from '../sizing/devices';
-import { applyTextEdits } from './compose';
+import { applyEdits } from '../text/edits';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { mirrorAt } from '../mirror-at';
 
@@ -48,7 +48,7 @@ export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): Mirror
 /** Re-check the text with the plan applied: the drafts found there, or undefined when it no longer parses cleanly. */
 export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Draft[] | undefined {
   try {
-    const text = applyTextEdits(rc.parsed.text, plan.edits);
+    const text = applyEdits(rc.parsed.text, plan.edits);
     const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
     return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
   } catch {
@@ -97,7 +97,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const lineDelta = countLines(text) - countLines(rc.parsed.text);
-  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta);
+  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta, text);
   const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
   return detect({ ...rc, parsed, spec, reports, quick: true });
 }

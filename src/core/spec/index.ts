@@ -12,7 +12,7 @@ import type { Finding, ResolvedSpec } from '../types';
 import { readDocument } from './document';
 import { elaborate } from './elaborate';
 import { FindingSink } from './findings';
-import { LineIndex, ZERO_RANGE } from './positions';
+import { LineIndex, ZERO_RANGE } from '../text/lines';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
 import type { SourceMap } from './source-map';
