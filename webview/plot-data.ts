@@ -72,12 +72,12 @@ export function histogramPlotData(m: MirrorReport): HistogramPlotData | undefine
   const spread = 3 * mc.sigma * mean;
   const marks: Mark[] = [
     { x: mean, label: 'mean', kind: 'mean' },
-    { x: mean - spread, label: '−3σ', kind: 'sigma' },
+    { x: mean - spread, label: '-3σ', kind: 'sigma' },
     { x: mean + spread, label: '+3σ', kind: 'sigma' },
   ];
   const allowed = m.require?.sigma;
   if (allowed !== undefined) {
-    marks.push({ x: mean * (1 - 3 * allowed), label: '−3σ max', kind: 'limit' },
+    marks.push({ x: mean * (1 - 3 * allowed), label: '-3σ max', kind: 'limit' },
       { x: mean * (1 + 3 * allowed), label: '+3σ max', kind: 'limit' });
   }
   if (m.require?.ratio !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });

@@ -4,6 +4,7 @@ import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
 import { findingLine } from '../core/report/text';
+import { escapeControls } from '../core/text/format';
 import { readOne } from './io';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
@@ -20,7 +21,7 @@ export function runFix(c: FixCommand): number {
   }
   // The first round checks the text just analysed: reuse that report instead of solving it again.
   const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name)));
-  for (const a of result.applied) process.stdout.write(`fixed ${a.code}: ${a.title}\n`);
+  for (const a of result.applied) process.stdout.write(escapeControls(`fixed ${a.code}: ${a.title}`) + '\n');
   if (result.text === read.text) {
     // A spec with errors is solved for its other mirrors, but gets no fixes until it reads cleanly.
     process.stdout.write(result.withheld ? 'nothing fixed: fixes are offered once the spec has no errors; fix the errors below first\n' : 'nothing to fix\n');

@@ -2,7 +2,7 @@ import type { Command } from './args';
 import type { MirrorOutput } from '../core/types';
 import { parseSpec } from '../core/spec/index';
 import { sweepVout } from '../core/analysis/index';
-import { formatSI } from '../core/units/format';
+import { formatSI } from '../core/text/format';
 import { findingLine } from '../core/report/text';
 import { readOne } from './io';
 

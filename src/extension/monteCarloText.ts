@@ -3,6 +3,7 @@
  * uses, and the progress and summary lines the designer reads.
  */
 import type { FileReport } from '../core/types';
+import { formatPercent } from '../core/text/format';
 
 /** Bounds of `qpoint.monteCarlo.samples` (package.json says the same). */
 export const MC_SAMPLES = { min: 10, max: 10_000_000, default: 10_000 } as const;
@@ -56,5 +57,5 @@ export function summaryMessage(report: FileReport, run: MonteCarloRun, ms: numbe
   if (sampled.length === 0) return `${head}: nothing to sample.`;
   const worst = sampled.reduce((a, b) => (b.mc!.yield < a.mc!.yield ? b : a));
   const y = worst.mc!.yield;
-  return `${head}; lowest yield ${Number((100 * y).toFixed(2))} % (${worst.name}).`;
+  return `${head}; lowest yield ${formatPercent(y, 4)} (${worst.name}).`;
 }

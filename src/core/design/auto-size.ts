@@ -26,7 +26,7 @@ import { isBank } from '../circuit/templates';
 import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
 import { aspectForTarget } from './targets';
 import { snapLength } from './snap';
-import { formatSI } from '../units/format';
+import { formatSI } from '../text/format';
 import { indexOf, mirrorAt, withMirrorAt } from '../mirror-at';
 
 export interface SizedDevice {

@@ -12,7 +12,7 @@
 import type { Finding, Range, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../types';
 import { parseSpec, type ParsedSpec } from '../spec/index';
 import { insertKeyEdits, replaceValueEdit } from '../spec/edit';
-import { formatSI } from '../units/format';
+import { formatSI } from '../text/format';
 import type { SizedDevice } from './auto-size';
 import { applyEdits, editsBetween } from '../text/edits';
 import { mirrorAt } from '../mirror-at';

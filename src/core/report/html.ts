@@ -6,13 +6,12 @@
  *
  * Pure core: no Node, no DOM. The caller (CLI, extension) reads the bundle and writes the file.
  */
+import { CAUTION } from '../text/format';
 import type { FileReport } from '../types';
 
 /** Id of the data element the page script reads. */
 export const REPORT_DATA_ID = 'qpoint-report-data';
 
-export const CAUTION_TEXT =
-  "First-order hand-analysis models — confirm with transistor-level simulation on the foundry's models and corners before committing a design.";
 
 /** One complete HTML page. `assets.script` is the panel bundle's text; `assets.css` optional
  *  extra styles (the bundle carries its own). */
@@ -31,7 +30,7 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     `<style>${escapeStyle(REPORT_THEME)}${assets.css ? `\n${escapeStyle(assets.css)}` : ''}</style>`,
     '</head>',
     '<body class="vscode-light qpoint-report">',
-    `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION_TEXT)}</div>`,
+    `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION)}</div>`,
     `<main id="qpoint-root"><noscript>This report draws its tables and plots with JavaScript; open it in a browser with scripts enabled. File: ${escapeHtml(report.file)}</noscript></main>`,
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,
     `<script>${escapeScript(assets.script)}</script>`,

@@ -17,7 +17,7 @@ import { replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
 import { isAutoSized, type Site } from './sites';
-import { factor, volts } from './words';
+import { formatFactor, formatSI } from '../text/format';
 import { indexOf } from '../mirror-at';
 
 /** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
@@ -56,7 +56,7 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('widen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
+      return p && plan(mirrorIndex, `Widen the mirror ${formatFactor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
     });
   }
 }
@@ -69,7 +69,7 @@ export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: R
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('lengthen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
+      return p && plan(mirrorIndex, `Lengthen the mirror ${formatFactor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
     });
   }
 }
@@ -82,7 +82,7 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   for (const ss of [s, s * 1.03, s * 1.1]) {
     yield candidate('area', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
+      return p && plan(site.mirrorIndex, `Scale the gate area ${formatFactor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
     });
   }
 }
@@ -160,7 +160,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
     seen.add(v);
     yield candidate('vbias', () => {
       const edit = replaceValueEdit(rc.parsed, path, formatValue('v', v, token, rc.json));
-      return edit && plan(site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
+      return edit && plan(site.mirrorIndex, `Set vbias to ${formatSI(v, 'V')} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
     });
   }
 }

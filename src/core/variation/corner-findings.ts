@@ -6,7 +6,7 @@
  */
 import type { CornerResult, CornerSpec, Finding, MirrorReport, ResolvedSpec, Severity } from '../types';
 import type { ParsedSpec } from '../spec/index';
-import { formatSI } from '../units/format';
+import { formatPercent, formatRatio, formatSI, formatSignedPercent } from '../text/format';
 import { ZERO_CELSIUS } from '../defaults';
 import {
   complianceFails, complianceLimit, cornerRange, deviceRange, nameRange, requireRange, siteOf, type Site,
@@ -18,15 +18,13 @@ export function cornerLabel(c: CornerSpec | undefined, name: string): string {
   const parts: string[] = [];
   if (c.temperature !== undefined) {
     const t = Number((c.temperature - ZERO_CELSIUS).toFixed(1));
-    parts.push(`${t < 0 ? '−' : ''}${Math.abs(t)} °C`);
+    parts.push(`${t} °C`);
   }
   if (c.vdd !== undefined) parts.push(`vdd ${formatSI(c.vdd, 'V')}`);
   if (c.vss !== undefined) parts.push(`vss ${formatSI(c.vss, 'V')}`);
   return parts.length ? `${name} (${parts.join(', ')})` : name;
 }
 
-const pct = (x: number): string => `${x >= 0 ? '+' : '−'}${Math.abs(100 * x).toPrecision(2)} %`;
-const mv = (x: number): string => `${x < 0 ? '−' : ''}${formatSI(Math.abs(x), 'V')}`;
 
 interface Failing { r: CornerResult; badness: number }
 
@@ -73,13 +71,13 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     const bad = solved.filter((r) => r.minMargin !== undefined && r.minMargin < 0).map((r) => ({ r, badness: -r.minMargin! }));
     const worst = bad.slice().sort((a, b) => b.badness - a.badness)[0];
     emit('corner-not-saturated', 'error', bad, worst ? deviceRange(parsed, site, worst.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
-      (w, label) => `\`${w.minMarginDevice}\` is not saturated at corner ${label}: margin ${mv(w.minMargin!)}; widen it (lower VOV) or give it more VDS`);
+      (w, label) => `\`${w.minMarginDevice}\` is not saturated at corner ${label}: margin ${formatSI(w.minMargin!, 'V')}; widen it (lower VOV) or give it more VDS`);
     if (nomMargin >= limits.margin) {
       const low = solved.filter((r) => r.minMargin !== undefined && r.minMargin >= 0 && r.minMargin < limits.margin)
         .map((r) => ({ r, badness: limits.margin - r.minMargin! }));
       const wl = low.slice().sort((a, b) => b.badness - a.badness)[0];
       emit('corner-low-margin', 'warning', low, wl ? deviceRange(parsed, site, wl.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
-        (w, label) => `\`${w.minMarginDevice}\` has only ${mv(w.minMargin!)} saturation margin at corner ${label}, below limits.margin ${mv(limits.margin)}`);
+        (w, label) => `\`${w.minMarginDevice}\` has only ${formatSI(w.minMargin!, 'V')} saturation margin at corner ${label}, below limits.margin ${formatSI(limits.margin, 'V')}`);
     }
   }
 
@@ -89,7 +87,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     const bad = solved.map((r) => ({ r, badness: Math.abs(r.ratio / target - 1) })).filter((f) => f.badness > limits.error);
     emit('corner-ratio-error', 'error', bad, site.require.ratio !== undefined ? requireRange(parsed, site, 'ratio') : nameRange(parsed, site),
       [...site.path, 'require', 'ratio'],
-      (w, label) => `ratio ${Number(w.ratio.toPrecision(4))} at corner ${label} is ${pct(w.ratio / target - 1)} from ${Number(target.toPrecision(4))}, beyond limits.error ±${Number((100 * limits.error).toPrecision(3))} %`);
+      (w, label) => `ratio ${formatRatio(w.ratio)} at corner ${label} is ${formatSignedPercent(w.ratio / target - 1)} from ${formatRatio(target)}, beyond limits.error ±${formatPercent(limits.error)}`);
   }
 
   const rout = site.require.rout;
@@ -117,7 +115,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
   if (sigma !== undefined && !(nominal.sigma !== undefined && nominal.sigma > sigma)) {
     const bad = solved.filter((r) => r.sigma !== undefined && r.sigma > sigma).map((r) => ({ r, badness: r.sigma! / sigma }));
     emit('corner-high-sigma', 'error', bad, requireRange(parsed, site, 'sigma'), [...site.path, 'require', 'sigma'],
-      (w, label) => `mismatch sigma ${Number((100 * w.sigma!).toPrecision(2))} % at corner ${label} is above require.sigma ${Number((100 * sigma).toPrecision(2))} %; enlarge the devices' area`);
+      (w, label) => `mismatch sigma ${formatPercent(w.sigma!)} at corner ${label} is above require.sigma ${formatPercent(sigma)}; enlarge the devices' area`);
   }
   return findings;
 }

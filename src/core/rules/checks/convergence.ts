@@ -2,7 +2,7 @@
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { mirrorRange, type Site } from '../sites';
-import { code } from '../words';
+import { code } from '../../text/format';
 
 export function checkConvergence(rc: RuleContext, site: Site): Draft[] {
   if (site.report.converged) return [];

@@ -11,7 +11,7 @@ import { valueRange, type Site } from '../sites';
 import { solve } from '../../sizing/devices';
 import type { OperatingPoint } from '../../analysis/index';
 import { widenPlans } from '../plans';
-import { amps, code, signedVolts, volts } from '../words';
+import { code, formatSI } from '../../text/format';
 
 /** Devices between the source rail and the input node, per kind (design §2 connections). */
 const INPUT_STACK: Record<TemplateKind, string[]> = {
@@ -46,9 +46,9 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const at = valueRange(rc.parsed, path);
   const stackNames = INPUT_STACK[m.kind].map(code).join(' + ');
   const message = resistor
-    ? `the input resistor has only ${signedVolts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
-      `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${volts(got.stack)} from the rail (stack ${stackNames}), leaving ${signedVolts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+    ? `the input resistor has only ${formatSI(got.room, 'V')} across it (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
+      `so iin = ${formatSI(site.report.iin, 'A')} is set by the threshold voltage, not by the resistor`
+    : `the input node sits ${formatSI(got.stack, 'V')} from the rail (stack ${stackNames}), leaving ${formatSI(got.room, 'V')} for the input current source; it needs limits.sourceHeadroom ${formatSI(need, 'V')}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
@@ -58,7 +58,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
     key: draftKey('input-headroom', ['mirrors', site.mirrorIndex]),
     mirrorIndex: site.mirrorIndex,
     finding: { severity: 'error', code: 'input-headroom', path: at.path, range: at.range, message },
-    plan: () => widenPlans(rc, site.mirrorIndex, goal, `for ${volts(need)} of input headroom`),
+    plan: () => widenPlans(rc, site.mirrorIndex, goal, `for ${formatSI(need, 'V')} of input headroom`),
     hint: 'lower VGS (wider devices) or use a stack with fewer gate-source drops',
   }];
 }

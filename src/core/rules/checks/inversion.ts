@@ -3,7 +3,7 @@ import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
 import { modelPlans } from '../plans';
-import { code } from '../words';
+import { code } from '../../text/format';
 import { siteDevices } from './common';
 
 export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): Draft[] {

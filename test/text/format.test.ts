@@ -1,6 +1,7 @@
-/** Engineering display: prefixes step by 10³ (SI Brochure 9th ed. Table 7, CGPM 2022 Res. 3). */
-import { describe, expect, test } from 'vitest';
-import { formatSI } from '../../src/core/units/format';
+/** Engineering display: prefixes step by 10³ (SI Brochure 9th ed. Table 7, CGPM 2022 Res. 3);
+ *  the percent is 0.01 (SI Brochure 9th ed. §5.4.7). */
+import { describe, expect, it, test } from 'vitest';
+import { escapeControls, formatPercent, formatPlain, formatSI, formatSignedPercent } from '../../src/core/text/format';
 
 describe('formatSI', () => {
   test.each<[number, string, number | undefined, string]>([
@@ -26,5 +27,21 @@ describe('formatSI', () => {
     expect(formatSI(Number.NaN, 'A')).toBe('NaN A');
     expect(formatSI(Infinity, 'Ω')).toBe('∞ Ω');
     expect(formatSI(-Infinity, 'Ω')).toBe('-∞ Ω');
+  });
+});
+
+describe('number display', () => {
+  it('prints ratios and IC without SI prefixes', () => {
+    expect(formatPlain(1.0390935, 4)).toBe('1.039');
+    expect(formatPlain(42.95)).toBe('43');
+    expect(formatPlain(0.05)).toBe('0.05');
+    expect(formatPlain(2.5e-5)).toBe('2.5e-5');
+    expect(formatPlain(Infinity)).toBe('∞');
+  });
+
+  it('prints relative values in percent, 1 % = 0.01 (SI Brochure §5.4.7)', () => {
+    expect(formatSignedPercent(0.0025)).toBe('+0.25 %');
+    expect(formatSignedPercent(-0.0391)).toBe('-3.91 %');
+    expect(formatPercent(0.003)).toBe('0.3 %');
   });
 });
