@@ -9,7 +9,8 @@
  * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
  */
 import type { MirrorReport, ResolvedSpec } from '../types';
-import { parseSpec, type ParsedSpec } from '../spec/index';
+import type { ParsedSpec } from '../spec/index';
+import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
@@ -57,15 +58,15 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
 }
 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Draft[] | undefined {
-  const parsed: ParsedSpec = parseSpec(text, rc.file);
-  if (!parsed.parsed || !parsed.spec) return undefined;
-  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
-  if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them.
-  const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
+  const spec = parsed.spec;
+  if (!parsed.parsed || !spec) return undefined;
+  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
+  if (spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+  return detect({ ...rc, parsed, spec, reports, quick: true });
 }
 
 const WHOLE = Symbol('re-read the whole text');
