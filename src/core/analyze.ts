@@ -13,7 +13,7 @@ import { buildAnchors } from './anchors';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { sortFindings } from './findings';
-import { mirrorOfPath } from './mirror-at';
+import { mirrorAt } from './mirror-at';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -85,11 +85,10 @@ function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
-    const mirror = mirrorOfPath(spec, r.path);
+    const mirror = mirrorAt(spec, r.mirrorIndex);
     if (!mirror) return r;
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
-    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
-    const out = mirror.outputs[j];
+    const out = mirror.outputs[r.outputIndex];
     return out ? { ...r, require: out.require } : r;
   });
 }

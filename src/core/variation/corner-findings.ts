@@ -4,13 +4,13 @@
  * to the nominal rule, so a designer sees each problem once. Severities follow the nominal
  * checks: a corner is a condition the chip must survive.
  */
-import type { CornerResult, CornerSpec, Finding, MirrorReport, ResolvedSpec, Severity } from '../types';
+import type { CornerResult, CornerSpec, Finding, MirrorReport, Range, ResolvedSpec, Severity } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import { formatPercent, formatRatio, formatSI, formatSignedPercent } from '../text/format';
 import { ZERO_CELSIUS } from '../defaults';
 import {
-  complianceFails, complianceLimit, cornerRange, deviceRange, nameRange, requireRange, siteOf, type Site,
-} from './site';
+  complianceFails, complianceLimit, cornerRange, deviceRange, nameRange, refOf, requireRange, siteOf, type Site,
+} from '../rules/sites';
 
 /** "ss (125 °C, vdd 1.62 V)". */
 export function cornerLabel(c: CornerSpec | undefined, name: string): string {
@@ -27,6 +27,12 @@ export function cornerLabel(c: CornerSpec | undefined, name: string): string {
 
 
 interface Failing { r: CornerResult; badness: number }
+
+/** A corner finding about a device points at its key (no size fix is offered for it). */
+function deviceAt(parsed: ParsedSpec, spec: ResolvedSpec, site: Site, name: string | undefined): Range {
+  const d = site.report.devices.find((x) => x.name === name);
+  return d ? deviceRange(parsed, spec, refOf(site, d), []).range : nameRange(parsed, site);
+}
 
 export function cornerFindings(parsed: ParsedSpec, spec: ResolvedSpec, reports: MirrorReport[]): Finding[] {
   const out: Finding[] = [];
@@ -70,13 +76,13 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
   if (nominal.converged && nomMargin >= 0) {
     const bad = solved.filter((r) => r.minMargin !== undefined && r.minMargin < 0).map((r) => ({ r, badness: -r.minMargin! }));
     const worst = bad.slice().sort((a, b) => b.badness - a.badness)[0];
-    emit('corner-not-saturated', 'error', bad, worst ? deviceRange(parsed, site, worst.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
+    emit('corner-not-saturated', 'error', bad, worst ? deviceAt(parsed, spec, site, worst.r.minMarginDevice) : nameRange(parsed, site), site.path,
       (w, label) => `\`${w.minMarginDevice}\` is not saturated at corner ${label}: margin ${formatSI(w.minMargin!, 'V')}; widen it (lower VOV) or give it more VDS`);
     if (nomMargin >= limits.margin) {
       const low = solved.filter((r) => r.minMargin !== undefined && r.minMargin >= 0 && r.minMargin < limits.margin)
         .map((r) => ({ r, badness: limits.margin - r.minMargin! }));
       const wl = low.slice().sort((a, b) => b.badness - a.badness)[0];
-      emit('corner-low-margin', 'warning', low, wl ? deviceRange(parsed, site, wl.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
+      emit('corner-low-margin', 'warning', low, wl ? deviceAt(parsed, spec, site, wl.r.minMarginDevice) : nameRange(parsed, site), site.path,
         (w, label) => `\`${w.minMarginDevice}\` has only ${formatSI(w.minMargin!, 'V')} saturation margin at corner ${label}, below limits.margin ${formatSI(limits.margin, 'V')}`);
     }
   }
@@ -103,12 +109,12 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
       .map((r) => ({ r, badness: Math.abs(r.compliance - limit) }));
     const which = site.require.compliance !== undefined ? 'require.compliance' : 'output.range';
     // The far end of output.range is the element that must change (NMOS the low, PMOS the high).
-    const end = site.type === 'nmos' ? 0 : 1;
+    const end = site.mirror.type === 'nmos' ? 0 : 1;
     const rangePath = [...site.path, 'output', 'range', end];
     const range = site.require.compliance !== undefined ? requireRange(parsed, site, 'compliance')
       : parsed.source.value(rangePath) ?? parsed.source.value([...site.path, 'output', 'range']) ?? nameRange(parsed, site);
     emit('corner-compliance', 'error', bad, range, which === 'require.compliance' ? [...site.path, 'require', 'compliance'] : rangePath,
-      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
+      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.mirror.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
   }
 
   const sigma = site.require.sigma;

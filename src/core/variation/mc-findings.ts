@@ -7,7 +7,7 @@
 import type { Finding, MirrorReport, ResolvedSpec } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
-import { nameRange, requireRange, siteOf } from './site';
+import { nameRange, requireRange, siteOf } from '../rules/sites';
 
 /** Relative disagreement between Monte Carlo and linearized sigma that counts as nonlinear. */
 export const MC_NONLINEAR = 0.15;
