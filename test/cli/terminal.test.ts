@@ -32,6 +32,7 @@ beforeAll(async () => {
 }, 120_000);
 
 // C0 controls other than LF (the line break the CLI itself writes), DEL and C1.
+// eslint-disable-next-line no-control-regex -- control characters are what this test looks for
 const RAW_CONTROL = /[\u0000-\u0009\u000B-\u001F\u007F-\u009F]/;
 
 describe('control characters from YAML escapes never reach the terminal', () => {

@@ -1,9 +1,9 @@
 /**
  * The analysis worker client with the real worker bundle (dist/worker.js, built by `npm test`):
  * supersession by key, answers for the newest text only, recovery from a hung worker.
- * The analysed spec is the Razavi level-1 device D (references.md; set from memory, numbers
+ * The analysed spec is the Razavi level-1 device D (docs/references.md; set from memory, numbers
  * computed there): a simple NMOS mirror, W/L = 10, IREF = 100 µA, VOUT = 1.5 V → IOUT =
- * 103.9103 µA (references.md §9 "Constructed check on D").
+ * 103.9103 µA (docs/references.md §9 "Constructed check on D").
  */
 import { describe, expect, it } from 'vitest';
 import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
@@ -36,7 +36,7 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const report = await make().analyze('a', D_SPEC('100u'), 'd.bias.yaml', {});
     expect(report?.parsed).toBe(true);
     const m = report!.mirrors[0];
-    expect(m.iout).toBeCloseTo(103.9103e-6, 9);  // references.md §9, to 0.1 nA
+    expect(m.iout).toBeCloseTo(103.9103e-6, 9);  // docs/references.md §9, to 0.1 nA
   });
 
   it('answers only the newest request of a key; older ones resolve undefined', async () => {
@@ -59,9 +59,8 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const hang = join(dir, 'hang.js');
     writeFileSync(hang, "require('node:worker_threads').parentPort.on('message', () => { for (;;) {} });\n");
     const a = make(hang, 300);
-    const t0 = Date.now();
+    // The rejection names the 300 ms job limit: the hang was cut by it, not by the test timeout.
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
-    expect(Date.now() - t0).toBeLessThan(5_000);
     // A fresh worker is started for the next request (it hangs too, by construction).
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
   });

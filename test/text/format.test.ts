@@ -45,3 +45,14 @@ describe('number display', () => {
     expect(formatPercent(0.003)).toBe('0.3 %');
   });
 });
+
+describe('escapeControls (ECMA-48 5th ed. §5: ESC, BEL, CR are control functions, not text)', () => {
+  it('writes each control character as an escape and leaves other text alone', () => {
+    expect(escapeControls('\u001b]0;title\u0007')).toBe('\\e]0;title\\a');
+    expect(escapeControls('a\u001b[2K\rFAKE')).toBe('a\\e[2K\\rFAKE');
+    expect(escapeControls('tab\there\nline')).toBe('tab\\there\\nline');
+    expect(escapeControls('\u0085\u009b\u007f\u0000')).toBe('\\u0085\\u009B\\u007F\\u0000');
+    expect(escapeControls('µA · Ω — 10 °C')).toBe('µA · Ω — 10 °C');
+  });
+});
+

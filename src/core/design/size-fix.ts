@@ -9,7 +9,7 @@
  * Also `design-unreachable`: a target no size can meet (gm/ID above the weak-inversion limit),
  * a width raised to wmin, or a require.rout that lengthening cannot reach.
  */
-import type { Finding, Range, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../types';
+import type { Finding, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../types';
 import { parseSpec, type ParsedSpec } from '../spec/index';
 import { insertKeyEdits, replaceValueEdit } from '../spec/edit';
 import { formatSI } from '../text/format';
