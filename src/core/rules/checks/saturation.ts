@@ -9,6 +9,7 @@ import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
 import { solve } from '../../sizing/devices';
 import { pickedVbias, withVbias } from '../../sizing/vbias';
+import { takesVbias } from '../../kinds/index';
 import { vbiasPlans, widenPlans } from '../plans';
 import { code, formatSI } from '../../text/format';
 import { awayFromRail, crossing, deviceIn, isSaturated, marginGoal, siteDevices } from './common';
@@ -31,7 +32,7 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
 
   // A written wide-swing vbias that the picked one would cure is the thing to change.
   const m = site.mirror;
-  if (m.kind === 'wide-swing' && m.vbias !== undefined && unsat.length > 0) {
+  if (takesVbias(m) && m.vbias !== undefined && unsat.length > 0) {
     const picked = pickedVbias(rc.spec, site.mirrorIndex, site.outputIndex);
     const cured = picked !== undefined && (() => {
       const op = solve(withVbias(rc.spec, site.mirrorIndex, picked), site.mirrorIndex, site.outputIndex);
@@ -94,7 +95,7 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
         message: `${code(d.name)} has ${formatSI(d.margin, 'V')} of saturation margin at Vout = ${formatSI(site.vout, 'V')} (VDS ${formatSI(d.vds, 'V')}, VDSsat ${formatSI(d.vdsat, 'V')}); limits.margin asks for ${formatSI(limits.margin, 'V')}`,
       },
       plan: function* () {
-        if (m.kind === 'wide-swing' && m.vbias !== undefined) yield* vbiasPlans(rc, site, formatSI(limits.margin, 'V'));
+        if (takesVbias(m) && m.vbias !== undefined) yield* vbiasPlans(rc, site, formatSI(limits.margin, 'V'));
         yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${formatSI(limits.margin, 'V')} margin on ${code(d.name)}`);
       },
     });
