@@ -24,6 +24,10 @@ export interface ComplianceResult {
   /** False when no output voltage within the supplies saturates every device. */
   found: boolean;
   solves: number;
+  /** Index into circuit.mos of the device that sets the limit: the one out of saturation just
+   *  past it (found), or the worst one at the far rail (not found: it is out of saturation at
+   *  every output voltage). Absent when the mirror works all the way to its rail. */
+  limiter?: number;
 }
 
 interface Point { u: number; f: number; x: Float64Array; each: Float64Array }
@@ -97,7 +101,7 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
       t = Math.min(Math.max(predict(before, last), 0), hi.u - 0.5 * tol);
     } else {
       const l = lo!;
-      if (l.u >= span) return { compliance: toV(span), found: false, solves };
+      if (l.u >= span) return { compliance: toV(span), found: false, solves, ...worstOf(l) };
       t = Math.min(Math.max(predict(before, last), l.u + 0.5 * tol), span);
     }
     const warm = lo && hi ? (t - lo.u < hi.u - t ? lo.x : hi.x) : last.x;
@@ -113,8 +117,24 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
       if (side === -1) hiF /= 2;
       side = -1;
     }
-    if (Number.isFinite(p.f) && Math.abs(p.f) < 0.1 * tol) return { compliance: toV(p.u), found: true, solves };
+    if (Number.isFinite(p.f) && Math.abs(p.f) < 0.1 * tol) return { compliance: toV(p.u), found: true, solves, ...limiterNear(p, lo) };
   }
-  if (hi) return { compliance: toV(hi.u), found: true, solves };
-  return { compliance: toV(span), found: false, solves };
+  if (hi) return { compliance: toV(hi.u), found: true, solves, ...limiterNear(hi, lo) };
+  return { compliance: toV(span), found: false, solves, ...worstOf(last) };
+}
+
+/** The device with the smallest margin at a point (finite margins only). */
+function worstOf(p: Point): { limiter?: number } {
+  let k0 = -1;
+  for (let k = 0; k < p.each.length; k++) {
+    const m = p.each[k]!;
+    if (Number.isFinite(m) && (k0 < 0 || m < p.each[k0]!)) k0 = k;
+  }
+  return k0 < 0 ? {} : { limiter: k0 };
+}
+
+/** The limiting device at compliance `at`: the worst one just past it (lo), else the one at
+ *  the edge there. */
+function limiterNear(at: Point, lo: Point | undefined): { limiter?: number } {
+  return lo && lo.each.some((m) => Number.isFinite(m)) ? worstOf(lo) : worstOf(at);
 }

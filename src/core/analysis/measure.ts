@@ -96,6 +96,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   base.iin = iin; base.iout = iout; base.ratio = ratio;
   base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
   if (sol.note) base.solveNote = sol.note;
+  if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
   const ideal = ratioIdealOf(t, mc);
   if (ideal !== undefined) base.ratioIdeal = ideal;
@@ -124,7 +125,9 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
-  base.compliance = findCompliance(mc, uNom, xNom).compliance;
+  const comp = findCompliance(mc, uNom, xNom);
+  base.compliance = comp.compliance;
+  if (!comp.found && comp.limiter !== undefined) base.noCompliance = { device: mc.circuit.mos[comp.limiter]!.name };
 
   if (opts.curve) {
     const { vdd, vss } = t.spec.supplies;

@@ -36,9 +36,24 @@ export function setVout(mc: MirrorCircuit, vout: number): void {
   mc.circuit.fixedV[mc.circuit.outNode] = vout;
 }
 
+/** A solve's outcome: the solver's result, and when a node lies outside the held voltages, where. */
+export interface MirrorSolve extends DcResult { beyond?: RailExcess }
+
+/**
+ * A node the solve put outside every held voltage (rails, held sources, the output): MOSFETs and
+ * resistors cannot take a node there, only a forced current with no device able to carry it, so
+ * the point is not a valid operating point. `stack` is the chain of channels from the mirror's
+ * own rail to that node, `need` the voltage that chain takes (V).
+ */
+export interface RailExcess { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number }
+
+/** V: a node this far past a held voltage is outside the rails (far above gmin's offsets). */
+const RAIL_TOL = 1e-3;
+
 /** Solve at the present held voltages. With `warm`, Newton starts from it and falls back to the
- *  topology guess with every retry; without, it starts from the topology guess. */
-export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOptions = {}): DcResult {
+ *  topology guess with every retry; without, it starts from the topology guess. A converged
+ *  point with a node outside the rails comes back as not converged, with `beyond`. */
+export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOptions = {}): MirrorSolve {
   const c = mc.circuit;
   if (c.problems.length > 0) {
     mc.guess();
@@ -61,18 +76,52 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
   return r!.converged ? sanity(mc, r!) : r!;
 }
 
-/** A converged point far outside the supplies means the forced currents have no physical
- *  path (an input current no device can carry): report it as not converged. */
-function sanity(mc: MirrorCircuit, r: DcResult): DcResult {
+/** A converged point with a node outside the rails means the forced currents have no physical
+ *  path (an input current the stack cannot carry within the supply): report it as not converged. */
+function sanity(mc: MirrorCircuit, r: DcResult): MirrorSolve {
   const c = mc.circuit;
-  const bound = 10 * Math.abs(mc.span) + 10;
+  let lo = Infinity, hi = -Infinity;
+  for (let k = c.nFree; k < c.nodeNames.length; k++) { lo = Math.min(lo, c.fixedV[k]!); hi = Math.max(hi, c.fixedV[k]!); }
+  let worst = -1, excess = RAIL_TOL;
   for (let k = 0; k < c.nFree; k++) {
     const v = mc.ws.v[k]!;
-    if (!(Math.abs(v - c.vmid) <= bound)) {
-      return { converged: false, iterations: r.iterations, residual: r.residual, note: `node ${c.nodeNames[k]} would sit at ${v.toPrecision(3)} V, far outside the supplies: no device can carry the forced current` };
-    }
+    const out = Number.isFinite(v) ? Math.max(lo - v, v - hi) : Infinity;
+    if (out > excess) { excess = out; worst = k; }
   }
-  return r;
+  if (worst < 0) return r;
+  const v = mc.ws.v[worst]!;
+  const node = c.nodeNames[worst]!;
+  const rail = v < lo ? 'vss' : 'vdd';
+  const stack = channelPath(mc, worst);
+  const need = Math.abs(v - mc.rail);
+  const where = excess > 10 * Math.abs(mc.span) + 10 ? 'far outside the supplies' : rail === 'vss' ? 'below vss' : 'above vdd';
+  const note = `node ${node} would sit at ${v.toPrecision(3)} V, ${where}: no device can carry the forced current within the supply`;
+  return { converged: false, iterations: r.iterations, residual: r.residual, note, beyond: { node, v, rail, stack, need } };
+}
+
+/** Devices on the shortest chain of channels (drain–source) from the mirror's own rail to node
+ *  `to`, rail side first; empty when no such chain exists. */
+function channelPath(mc: MirrorCircuit, to: number): string[] {
+  const c = mc.circuit;
+  const start = c.nodeNames.findIndex((n, k) => k >= c.nFree && c.fixedV[k] === mc.rail && (n === 'vss' || n === 'vdd'));
+  if (start < 0) return [];
+  const via = new Map<number, { from: number; dev: number }>([[start, { from: -1, dev: -1 }]]);
+  const queue = [start];
+  while (queue.length > 0) {
+    const n = queue.shift()!;
+    if (n === to) break;
+    c.mos.forEach((m, k) => {
+      const next = m.d === n ? m.s : m.s === n ? m.d : -1;
+      // Through free nodes only: a held node (another rail, the output) ends a chain.
+      if (next < 0 || via.has(next) || (next >= c.nFree && next !== to)) return;
+      via.set(next, { from: n, dev: k });
+      queue.push(next);
+    });
+  }
+  if (!via.has(to)) return [];
+  const names: string[] = [];
+  for (let n = to; n !== start;) { const e = via.get(n)!; names.push(c.mos[e.dev]!.name); n = e.from; }
+  return names.reverse();
 }
 
 /** A, the output current (positive for a working mirror) at the assembled solution. */

@@ -202,10 +202,12 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   }
 
   // Nodes that no drain, source, bulk, source or resistor drives float (gates only) or dangle.
+  // An error, not a warning: a solve would put a floating gate wherever gmin pulls it (mid-supply)
+  // and report the wiring mistake as a ratio error with a fix that hides it.
   for (const [node, list] of uses) {
     if (list.length === 1 || !list.some((u) => u.drives)) {
-      const why = list.length === 1 ? 'connects to only one terminal' : 'connects only to gates, so nothing sets its voltage';
-      sink.warning('floating-node', `node \`${node}\` ${why}`, list[0].path);
+      const why = list.length === 1 ? 'connects to only one terminal' : 'connects only to gates';
+      sink.error('floating-node', `node \`${node}\` ${why}, so nothing sets its voltage: \`${name}\` is not solved until it is wired`, list[0].path);
     }
   }
 

@@ -37,10 +37,13 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const path: SpecPath = resistor ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'];
   const at = valueRange(rc.parsed, path);
   const stackNames = KINDS[m.kind].inputStack.map(code).join(' + ');
+  // The stack stands on the mirror's own rail; the input source or resistor hangs from the other.
+  const [own, far] = m.type === 'nmos' ? ['vss', 'vdd'] : ['vdd', 'vss'];
+  const side = m.type === 'nmos' ? 'above' : 'below';
   const message = resistor
-    ? `the input resistor has only ${formatSI(got.room, 'V')} across it (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
+    ? `the input resistor has only ${formatSI(got.room, 'V')} across it to ${far} (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} ${side} ${own} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
       `so iin = ${formatSI(site.report.iin, 'A')} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${formatSI(got.stack, 'V')} from the rail (stack ${stackNames}), leaving ${formatSI(got.room, 'V')} for the input current source; it needs limits.sourceHeadroom ${formatSI(need, 'V')}`;
+    : `the input node sits ${formatSI(got.stack, 'V')} ${side} ${own} (stack ${stackNames}), leaving ${formatSI(got.room, 'V')} to ${far} for the input current source; it needs limits.sourceHeadroom ${formatSI(need, 'V')}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
