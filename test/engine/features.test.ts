@@ -201,12 +201,13 @@ describe('EKV mirrors', () => {
 
 describe('report fields', () => {
   const r: MirrorReport = measureMirror(ctxOf(makeSpec([template('cascode', { type: 'pmos', vout: 1.0, devices: { out: { m: 2 }, outc: { m: 2 } } })])));
-  it('PMOS voltages are magnitudes (VSG, VSD) and currents positive', () => {
+  it('PMOS voltages are magnitudes (VSG, VSD, VBS) and currents positive', () => {
     for (const d of r.devices) {
       expect(d.vgs).toBeGreaterThan(0.7);
       expect(d.vds).toBeGreaterThan(0);
       expect(d.id).toBeGreaterThan(0);
-      expect(d.vbs).toBeLessThanOrEqual(0);
+      // The body bias as a magnitude too: VBS of a PMOS with its bulk at vdd (design §4).
+      expect(d.vbs).toBeGreaterThanOrEqual(0);
       expect(d.type).toBe('pmos');
     }
     expect(r.iout).toBeGreaterThan(0);

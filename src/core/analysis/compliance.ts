@@ -15,8 +15,12 @@
  * triode, say), the limit is reported as the far rail (NMOS: vdd, PMOS: vss): nothing works.
  */
 import { SOLVER } from '../defaults';
+import { carriesNode } from '../circuit/elements/device';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import { setVout, solveMirror, TRIAL, worstMargin } from './solve';
+
+/** The trials are read for saturation margins only: no polish without gmin. */
+const MARGINS_ONLY = { ...TRIAL, polish: false };
 
 export interface ComplianceResult {
   /** V, absolute. */
@@ -42,12 +46,12 @@ const FLAT = 0.02;
 export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Array): ComplianceResult {
   const span = Math.abs(mc.span);
   const tol = SOLVER.complianceTol;
-  const nDev = mc.circuit.mos.length;
+  const nDev = mc.circuit.devices.length;
   const toV = (u: number): number => mc.rail + mc.sign * u;
   let solves = 0;
   const evalAt = (u: number, warm: Float64Array | undefined): Point => {
     setVout(mc, toV(u));
-    const r = solveMirror(mc, warm, TRIAL);
+    const r = solveMirror(mc, warm, MARGINS_ONLY);
     solves++;
     const each = new Float64Array(nDev);
     // A trial that does not converge counts as not saturated.
@@ -71,8 +75,7 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
         const ma = a.each[k]!;
         slope = Number.isFinite(ma) && Number.isFinite(mb) ? (mb - ma) / (b.u - a.u) : 1;
       } else {
-        const m = mc.circuit.mos[k]!;
-        slope = m.d === mc.circuit.outNode || m.s === mc.circuit.outNode ? 1 : 0;
+        slope = carriesNode(mc.circuit.devices[k]!, mc.circuit.outNode) ? 1 : 0;
       }
       if (!Number.isFinite(mb)) { t = Math.max(t, b.u + 0.25 * span); continue; }
       if (slope > FLAT) t = Math.max(t, b.u - mb / slope);

@@ -15,19 +15,15 @@
  * devices is zero and is never named. A Wilson's body effect shows in `vds`: it raises VGS of
  * `out`, and so VDS of `in`.
  */
-import type { MosInstance } from '../circuit/circuit';
+import type { MosElement } from '../circuit/elements/element';
+import { mosFrame as frameVoltages } from '../circuit/elements/mosfet';
 import { newChannelEval } from '../models/core';
 import { evalFrame } from '../models/terminal';
 import type { ErrorSplit } from '../types';
 
 const ch = newChannelEval();
 
-function frameVoltages(m: MosInstance, v: Float64Array): [number, number, number] {
-  const p = m.dev.sign;
-  return [p * (v[m.g]! - v[m.s]!), p * (v[m.d]! - v[m.s]!), p * (v[m.b]! - v[m.s]!)];
-}
-
-function current(m: MosInstance, vgs: number, vds: number, vbs: number): number {
+function current(m: MosElement, vgs: number, vds: number, vbs: number): number {
   evalFrame(m.dev, vgs, vds, vbs, ch);
   return ch.id;
 }
@@ -36,7 +32,7 @@ function rel(a: number, b: number): number {
   return b !== 0 && Number.isFinite(a / b) ? a / b - 1 : 0;
 }
 
-export function splitError(a: MosInstance, b: MosInstance, ratioIdeal: number, v: Float64Array): ErrorSplit {
+export function splitError(a: MosElement, b: MosElement, ratioIdeal: number, v: Float64Array): ErrorSplit {
   const [ga, da, ba] = frameVoltages(a, v);
   const [gb, db, bb] = frameVoltages(b, v);
   const ia = current(a, ga, da, ba);

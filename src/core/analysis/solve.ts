@@ -2,10 +2,8 @@
  * Build a measured mirror's circuit and solve it; read node voltages, currents and device
  * reports from the solution. Everything here returns data, never throws on bad circuits.
  */
-import { SOLVER } from '../defaults';
 import { newChannelEval } from '../models/core';
-import { evalPrepared } from '../models/evaluate';
-import { evalFrame } from '../models/terminal';
+import { currentNodes, deviceMargin, deviceReport } from '../circuit/elements/device';
 import { buildNetlist } from '../circuit/netlistCircuit';
 import { solveDc, type DcOptions, type DcResult } from '../circuit/newton';
 import { buildTemplate, type PerturbationLike } from '../circuit/templates';
@@ -64,7 +62,7 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
   let iterations = 0;
   if (warm) {
     mc.ws.v.set(warm);
-    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, plainOnly: true });
+    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, polish: opts.polish, plainOnly: true });
     iterations = r.iterations;
   }
   // A warm plain-only solve is a continuation step: its caller halves the step instead.
@@ -110,8 +108,9 @@ function channelPath(mc: MirrorCircuit, to: number): string[] {
   while (queue.length > 0) {
     const n = queue.shift()!;
     if (n === to) break;
-    c.mos.forEach((m, k) => {
-      const next = m.d === n ? m.s : m.s === n ? m.d : -1;
+    c.devices.forEach((dev, k) => {
+      const [a, b] = currentNodes(dev);
+      const next = a === n ? b : b === n ? a : -1;
       // Through free nodes only: a held node (another rail, the output) ends a chain.
       if (next < 0 || via.has(next) || (next >= c.nFree && next !== to)) return;
       via.set(next, { from: n, dev: k });
@@ -120,7 +119,7 @@ function channelPath(mc: MirrorCircuit, to: number): string[] {
   }
   if (!via.has(to)) return [];
   const names: string[] = [];
-  for (let n = to; n !== start;) { const e = via.get(n)!; names.push(c.mos[e.dev]!.name); n = e.from; }
+  for (let n = to; n !== start;) { const e = via.get(n)!; names.push(c.devices[e.dev]!.name); n = e.from; }
   return names.reverse();
 }
 
@@ -135,31 +134,16 @@ export function nodeVoltages(mc: MirrorCircuit): Record<string, number> {
   return out;
 }
 
-/** Reports of every device in circuit order (index k is circuit.mos[k]). */
+/** Reports of every device in circuit order (index k is circuit.devices[k]). */
 export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
   const v = mc.ws.v;
-  return mc.circuit.mos.map((m) => {
-    const p = m.dev.sign;
-    const vgs = p * (v[m.g]! - v[m.s]!);
-    const vds = p * (v[m.d]! - v[m.s]!);
-    const vbs = p * (v[m.b]! - v[m.s]!);
-    const e = evalPrepared(m.dev, vgs, vds, vbs);
-    const r: DeviceReport = {
-      name: m.name, role: m.role, type: m.type, w: m.size.w, l: m.size.l, m: m.size.m,
-      id: e.id, vgs, vds, vbs, vth: e.vth, vov: vgs - e.vth, vdsat: e.vdsat, margin: vds - e.vdsat,
-      region: e.region, inversion: e.inversion, ic: e.ic, gm: e.gm, gds: e.gds, gmb: e.gmb,
-      ro: e.gds > 0 ? 1 / e.gds : 1 / SOLVER.gmin,
-      gmId: e.id !== 0 ? e.gm / e.id : 0,
-    };
-    if (m.size.auto?.w || m.size.auto?.l) r.sized = true;
-    return r;
-  });
+  return mc.circuit.devices.map((d) => deviceReport(d, v));
 }
 
 /** The devices a report shows: the shared reference and the measured output's devices (a
  *  bank's other outputs are in the circuit but belong to their own reports). */
 export function shownDevices(mc: MirrorCircuit, all: DeviceReport[]): DeviceReport[] {
-  return all.filter((_, k) => mc.circuit.mos[k]!.measured);
+  return all.filter((_, k) => mc.circuit.devices[k]!.measured);
 }
 
 const scratch = newChannelEval();
@@ -170,12 +154,9 @@ const scratch = newChannelEval();
 export function worstMargin(mc: MirrorCircuit, each?: Float64Array): number {
   const v = mc.ws.v;
   let worst = Infinity;
-  mc.circuit.mos.forEach((m, k) => {
-    if (!m.measured) { if (each) each[k] = NaN; return; }
-    const p = m.dev.sign;
-    const vds = p * (v[m.d]! - v[m.s]!);
-    evalFrame(m.dev, p * (v[m.g]! - v[m.s]!), vds, p * (v[m.b]! - v[m.s]!), scratch);
-    const margin = scratch.region === 0 ? p * (v[m.g]! - v[m.s]!) - scratch.vth : vds - scratch.vdsat;
+  mc.circuit.devices.forEach((d, k) => {
+    if (!d.measured) { if (each) each[k] = NaN; return; }
+    const margin = deviceMargin(d, v, scratch);
     if (each) each[k] = margin;
     if (margin < worst) worst = margin;
   });
