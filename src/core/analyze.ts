@@ -5,17 +5,17 @@
  */
 import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
-import { parseSpec, type ParsedSpec } from './spec/index';
+import type { ParsedSpec } from './spec/index';
+import { resolveText } from './resolve';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
 import { withSuggestionFixes } from './spec/suggestion-fixes';
 import { buildAnchors } from './anchors';
-import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
-import { mirrorOfPath } from './mirror-at';
+import { mirrorAt } from './mirror-at';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -41,28 +41,28 @@ export interface AnalyzeHooks {
 export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}, hooks: AnalyzeHooks = {}): FileReport {
   let parsed: ParsedSpec | undefined;
   try {
-    parsed = parseSpec(text, file);
-    if (!parsed.spec) {
-      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
-    }
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed, parsed.spec, opts));
-    const withSpec: ParsedSpec = { ...parsed, spec };
+    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults });
+    parsed = resolved.parsed;
+    const spec = parsed.spec;
+    if (!spec) {
+      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
+    }
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     let findings: Finding[] = [
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(withSpec, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
-      ...variationFindings(withSpec, spec, mirrors, sized, file),
+      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
+      ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
       const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
-      findings = withCornerFixes(withSpec, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
+      findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
     }
-    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
+    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);
     const report: FileReport = {
       file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors,
       limits: { error: spec.limits.error, margin: spec.limits.margin },
@@ -96,18 +96,10 @@ function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
-    const mirror = mirrorOfPath(spec, r.path);
+    const mirror = mirrorAt(spec, r.mirrorIndex);
     if (!mirror) return r;
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
-    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
-    const out = mirror.outputs[j];
+    const out = mirror.outputs[r.outputIndex];
     return out ? { ...r, require: out.require } : r;
   });
-}
-
-/** The editor may supply a default margin; a margin written in the spec always wins. */
-function withLimitDefaults(parsed: ParsedSpec, spec: ResolvedSpec, opts: AnalyzeOptions): ResolvedSpec {
-  const margin = opts.limitsDefaults?.margin;
-  if (margin === undefined || parsed.source.value(['limits', 'margin']) !== undefined) return spec;
-  return { ...spec, limits: { ...spec.limits, margin } };
 }

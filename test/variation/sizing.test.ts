@@ -3,7 +3,7 @@ import { measureMirror } from '../../src/core/analysis/index';
 import { applyDesignTargets } from '../../src/core/design/auto-size';
 import { gmIdFromIc, icFromGmId, icFromOverdrive } from '../../src/core/models/ekv';
 import { MODELS } from '../../src/core/models/registry';
-import { snapLength } from '../../src/core/design/snap';
+import { quantizeSize } from '../../src/core/sizing/quantize';
 import { BOLTZMANN, ELEMENTARY_CHARGE } from '../../src/core/defaults';
 import type { DesignTarget, DeviceReport, ResolvedSpec, TemplateKind } from '../../src/core/types';
 import { makeSpec, mirror, sz } from './builders';
@@ -47,12 +47,12 @@ describe('closed-form sizing relations (DeviceModel.aspectForTarget)', () => {
     expect(icFromGmId(29.7, 1.3, UT300)).toBeGreaterThan(0);
   });
 
-  it('snaps to the grid (nearest, or up) and to 4 significant digits without one', () => {
-    expect(snapLength(1.234e-6, 10e-9)).toBe(1.23e-6);
-    expect(snapLength(1.231e-6, 10e-9, 'up')).toBe(1.24e-6);
-    expect(snapLength(1.24e-6, 10e-9, 'up')).toBe(1.24e-6);
-    expect(snapLength(12.3456e-6, undefined)).toBe(12.35e-6);
-    expect(snapLength(12.3412e-6, undefined, 'up')).toBe(12.35e-6);
+  it('snaps to the grid (nearest, or up) and to 3 significant digits without one, as fixes do', () => {
+    expect(quantizeSize(1.234e-6, 10e-9, 'nearest')).toBe(1.23e-6);
+    expect(quantizeSize(1.231e-6, 10e-9, 'up')).toBe(1.24e-6);
+    expect(quantizeSize(1.24e-6, 10e-9, 'up')).toBe(1.24e-6);
+    expect(quantizeSize(12.3456e-6, undefined, 'nearest')).toBe(12.3e-6);
+    expect(quantizeSize(12.3412e-6, undefined, 'up')).toBe(12.4e-6);
   });
 });
 

@@ -27,8 +27,8 @@ import { KINDS } from '../kinds/index';
 import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
 import { MODELS } from '../models/registry';
 import type { DeviceModel, SizingContext } from '../models/model';
-import { snapLength } from './snap';
-import { formatSI } from '../units/format';
+import { quantizeSize } from '../sizing/quantize';
+import { formatSI } from '../text/format';
 import { indexOf, mirrorAt, withMirrorAt } from '../mirror-at';
 
 export interface SizedDevice {
@@ -191,7 +191,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
   const bank = isBank(m);
 
   // Lengths first, so every width is computed for the length that will be written.
-  for (const s of slots) if (s.size.auto?.l === true) s.size.l = snapLength(s.size.l, proc.grid, 'up');
+  for (const s of slots) if (s.size.auto?.l === true) s.size.l = quantizeSize(s.size.l, proc.grid, 'up');
   // First pass: ideal currents (the solve with provisional sizes gives iin for a resistor input).
   let iin = m.input.kind === 'current' ? m.input.i : solveAt(ctxOf(spec, index, 0), m.outputs[0].output.v).iin;
   const ratios = m.outputs.map((_, j) => pairRatio(m, j, slots));
@@ -232,7 +232,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
       const wmin = params.wmin;
       if (wmin !== undefined && w < wmin) {
         if (s.size.auto?.l === true) {
-          s.size.l = snapLength(s.size.l * (wmin / w), proc.grid, 'up');
+          s.size.l = quantizeSize(s.size.l * (wmin / w), proc.grid, 'up');
           s.note = `L lengthened to keep W/L at the target with W at wmin`;
         } else {
           s.note = `W raised to wmin ${formatSI(wmin, 'm')}: the target needs ${formatSI(w, 'm')}`;
@@ -258,7 +258,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     }
   }
   for (const s of slots) {
-    if (s.size.auto?.w === true) s.size.w = snapLength(s.size.w, proc.grid, 'nearest');
+    if (s.size.auto?.w === true) s.size.w = quantizeSize(s.size.w, proc.grid, 'nearest');
   }
   return withSlots(spec, index, m, slots);
 }

@@ -13,7 +13,8 @@
  * end is listed in `unfixed` with the reason, so a run that stops never stops silently.
  */
 import type { Finding, Fix, Severity, TextEdit } from '../types';
-import { applyEdits } from '../spec/edit';
+import { mirrorIndexOfPath } from '../mirror-at';
+import { applyEdits } from '../text/edits';
 import { RULES_BY_CODE } from './catalog';
 
 export const MAX_ROUNDS = 8;
@@ -138,7 +139,8 @@ function tryCandidates(text: string, cs: Candidate[], check: (text: string) => {
 
 /** Fixes of one mirror interact (widening changes the ratio): one per mirror and round. */
 function groupOf(f: Finding): string {
-  return f.path[0] === 'mirrors' && typeof f.path[1] === 'number' ? `mirrors/${f.path[1]}` : f.path.join('/');
+  const index = mirrorIndexOfPath(f.path);
+  return index !== undefined ? `mirrors/${index}` : f.path.join('/');
 }
 
 /** Greedy: keep each candidate whose edits do not clash with those already kept, one per mirror. */

@@ -17,7 +17,7 @@ import { readQuantity } from '../units/si';
 import { allDevices, sizeOf, type SizeKey } from '../sizing/devices';
 import { quantizeSize } from '../sizing/quantize';
 import { formatValue, planSizeEdits, type ChangeNote, type SizeChange, type SizePlan } from './size-edits';
-import { sizeToken, textAt } from './sites';
+import { sizeToken } from './sites';
 
 export interface ParamPlan extends SizePlan {
   /** The params edited. */
@@ -108,7 +108,7 @@ export function planParamEdits(parsed: ParsedSpec, spec: ResolvedSpec, changes: 
     const path = ['params', param];
     const range = parsed.source.value(path);
     if (!range) return undefined;
-    const token = textAt(parsed.text, range);
+    const token = parsed.source.text(range);
     if (!readQuantity(token.trim().replace(/^(["'])(.*)\1$/s, '$2'), 'length').ok) return undefined;  // a param written as an expression
     const value = quantizeSize(spec.params[param]! * factor, spec.process.grid, 'up');
     const text = formatValue('w', value, token, json);

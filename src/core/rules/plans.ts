@@ -17,8 +17,8 @@ import { replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
 import { paramsOf, planParamEdits } from './param-edits';
-import { isAutoSized, overridePath, textAt, type Site } from './sites';
-import { factor, volts } from './words';
+import { isAutoSized, overridePath, type Site } from './sites';
+import { formatFactor, formatSI } from '../text/format';
 import { indexOf } from '../mirror-at';
 import { MODELS, WEAK_INVERSION_MODEL } from '../models/registry';
 
@@ -57,7 +57,7 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield* scaleCandidates(rc, mirrorIndex, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), family,
-      (notes) => `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notes}`);
+      (notes) => `Widen the mirror ${formatFactor(kk)} (every W, ratios kept) ${purpose}: ${notes}`);
   }
 }
 
@@ -91,7 +91,7 @@ export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: R
   if (k === undefined) return;
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield* scaleCandidates(rc, mirrorIndex, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), 'lengthen',
-      (notes) => `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notes}`);
+      (notes) => `Lengthen the mirror ${formatFactor(kk)} at constant W/L ${purpose}: ${notes}`);
   }
 }
 
@@ -102,7 +102,7 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   if (s === undefined) return;
   for (const ss of [s, s * 1.03, s * 1.1]) {
     yield* scaleCandidates(rc, site.mirrorIndex, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), 'area',
-      (notes) => `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notes}`);
+      (notes) => `Scale the gate area ${formatFactor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notes}`);
   }
 }
 
@@ -169,7 +169,7 @@ export function* cascodePlans(rc: RuleContext, site: Site): Generator<Candidate>
   const path = ['mirrors', site.mirrorIndex, 'kind'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(textAt(rc.parsed.text, range), 'cascode'));
+  const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(rc.parsed.source.text(range), 'cascode'));
   if (!kindEdit) return;
   yield candidate('cascode', () => {
     const extra: KeyInsert[] = [];
@@ -178,7 +178,7 @@ export function* cascodePlans(rc: RuleContext, site: Site): Generator<Candidate>
         const own = overridePath(rc.spec, ref);
         for (const key of ['w', 'l', 'm'] as const) {
           const tok = rc.parsed.source.value([...own, key]);
-          if (tok) extra.push({ parent: [...own.slice(0, -1), to], key, text: textAt(rc.parsed.text, tok) });
+          if (tok) extra.push({ parent: [...own.slice(0, -1), to], key, text: rc.parsed.source.text(tok) });
         }
       }
     }
@@ -200,7 +200,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
   const path = ['mirrors', site.mirrorIndex, 'vbias'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const seen = new Set<number>();
   for (const dir of ['up', 'nearest', 'down'] as const) {
     const mv = dir === 'up' ? Math.ceil(picked * 1000 - 1e-9) : dir === 'down' ? Math.floor(picked * 1000 + 1e-9) : Math.round(picked * 1000);
@@ -209,7 +209,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
     seen.add(v);
     yield candidate('vbias', () => {
       const edit = replaceValueEdit(rc.parsed, path, formatValue('v', v, token, rc.json));
-      return edit && plan(site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
+      return edit && plan(site.mirrorIndex, `Set vbias to ${formatSI(v, 'V')} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
     });
   }
 }
@@ -221,7 +221,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   const path = ['mirrors', site.mirrorIndex, 'kind'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(token, 'wilson-balanced'));
   if (!kindEdit) return;
   const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
@@ -253,7 +253,7 @@ function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
   const range = rc.parsed.source.value(path);
   let edits: TextEdit[] | undefined;
   if (range) {
-    const token = textAt(rc.parsed.text, range);
+    const token = rc.parsed.source.text(range);
     const e = replaceValueEdit(rc.parsed, path, quotedLike(token, name));
     edits = e ? [e] : undefined;
   } else {

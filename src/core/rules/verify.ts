@@ -9,7 +9,8 @@
  * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
  */
 import type { MirrorReport, ResolvedSpec } from '../types';
-import { parseSpec, type ParsedSpec } from '../spec/index';
+import type { ParsedSpec } from '../spec/index';
+import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
@@ -19,7 +20,7 @@ import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
-import { applyTextEdits } from './compose';
+import { applyEdits } from '../text/edits';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { untrustedMove } from './trust';
 import { mirrorAt } from '../mirror-at';
@@ -59,7 +60,7 @@ export type Recheck = Draft[] | Untrusted | undefined;
  */
 export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Recheck {
   try {
-    const text = applyTextEdits(rc.parsed.text, plan.edits);
+    const text = applyEdits(rc.parsed.text, plan.edits);
     const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
     return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
   } catch {
@@ -75,17 +76,16 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
 }
 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
-  const parsed: ParsedSpec = parseSpec(text, rc.file);
-  if (!parsed.parsed || !parsed.spec) return undefined;
-  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
-  if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
-  const read: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
-  const spec = plan.scope === 'spec' ? applyDesignTargets(read).spec : applyDesignTargets(read, plan.mirrorIndex).spec;
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
+  const spec = parsed.spec;
+  if (!parsed.parsed || !spec) return undefined;
+  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
+  if (spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return trusted(rc, spec, reports) ?? detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+  return trusted(rc, spec, reports) ?? detect({ ...rc, parsed, spec, reports, quick: true });
 }
 
 const WHOLE = Symbol('re-read the whole text');
@@ -119,7 +119,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const untrusted = trusted(rc, spec, reports);
   if (untrusted) return untrusted;
   const lineDelta = countLines(text) - countLines(rc.parsed.text);
-  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta);
+  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta, text);
   const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
   return detect({ ...rc, parsed, spec, reports, quick: true });
 }

@@ -12,9 +12,10 @@ import type { Finding, ResolvedSpec } from '../types';
 import { readDocument } from './document';
 import { elaborate } from './elaborate';
 import { FindingSink, type SpecSuggestion } from './findings';
-import { LineIndex, ZERO_RANGE } from './positions';
+import { LineIndex, ZERO_RANGE } from '../text/lines';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
+import { indexOf, mirrorIndexOfPath } from '../mirror-at';
 import type { SourceMap } from './source-map';
 
 export type { SourceMap } from './source-map';
@@ -48,8 +49,9 @@ function mirrorsInError(findings: Finding[]): number[] | undefined {
   const at = new Set<number>();
   for (const f of findings) {
     if (f.severity !== 'error') continue;
-    if (f.path[0] !== 'mirrors' || typeof f.path[1] !== 'number') return undefined;
-    at.add(f.path[1]);
+    const index = mirrorIndexOfPath(f.path);
+    if (index === undefined) return undefined;
+    at.add(index);
   }
   return [...at].sort((a, b) => a - b);
 }
@@ -79,7 +81,7 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     else if (spec !== undefined) {
       const withheld = mirrorsInError(sink.list);
       if (withheld) {
-        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !withheld.includes(m.path[1] as number)) };
+        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !withheld.includes(indexOf(m))) };
         out.withheld = withheld;
       }
     }

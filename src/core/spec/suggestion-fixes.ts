@@ -7,20 +7,14 @@
  * A suggestion is a guess at intent, so the fix is never preferred: fix-all does not
  * apply it, the designer does.
  */
-import type { Finding, Range, TextEdit } from '../types';
+import type { Finding, TextEdit } from '../types';
 import { parseSpec, type ParsedSpec } from './index';
-import { applyEdits } from './edit';
-import { LineIndex } from './positions';
+import { applyEdits } from '../text/edits';
 
 /** Re-reads per file (each parses the whole text; a hostile file may hold hundreds of typos)… */
 const MAX_SUGGESTION_CHECKS = 20;
 /** …and characters re-read in all, so a large file gets fewer (a 512 KiB file: two). */
 const MAX_SUGGESTION_CHARS = 1_048_576;
-
-function textAt(text: string, r: Range): string {
-  const lines = new LineIndex(text);
-  return text.slice(lines.offset(r.start), lines.offset(r.end));
-}
 
 /** `parsed.findings` with a verified fix on each finding whose suggestion holds. */
 export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[] {
@@ -31,7 +25,7 @@ export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[
   const checks = Math.min(MAX_SUGGESTION_CHECKS, Math.floor(MAX_SUGGESTION_CHARS / Math.max(1, parsed.text.length)));
   for (const s of list.slice(0, checks)) {
     try {
-      const token = textAt(parsed.text, s.range);
+      const token = parsed.source.text(s.range);
       const q = token[0];
       const quoted = token.length >= 2 && (q === '"' || q === "'") && token[token.length - 1] === q;
       const edit: TextEdit = { range: s.range, newText: quoted ? `${q}${s.word}${q}` : s.word };
@@ -51,7 +45,7 @@ export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[
   return parsed.findings.map((f) => {
     const edit = fixes.get(f);
     if (!edit) return f;
-    const token = textAt(parsed.text, edit.range).trim();
+    const token = parsed.source.text(edit.range).trim();
     return { ...f, fixes: [{ title: `Change \`${token}\` to \`${edit.newText.trim()}\``, edits: [edit] }] };
   });
 }

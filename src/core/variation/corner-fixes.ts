@@ -9,11 +9,10 @@
 import type { Finding, MirrorReport, ResolvedSpec } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import type { RuleContext } from '../rules/model';
-import { siteOf as ruleSite } from '../rules/sites';
 import { lengthenPlans, widenPlans, type Candidate } from '../rules/plans';
-import { applyEdits } from '../spec/edit';
+import { applyEdits } from '../text/edits';
 import { runCorners } from './corners';
-import { complianceLimit, siteOf as variationSite } from './site';
+import { complianceLimit, siteOf } from '../rules/sites';
 
 /** Full re-checks (with corners) per file: each re-analyses the whole edited text at every corner. */
 const MAX_CORNER_CHECKS = 6;
@@ -57,9 +56,8 @@ export function withCornerFixes(parsed: ParsedSpec, spec: ResolvedSpec, reports:
 
 /** The scaling that passes the finding's check at every corner, lazily. */
 function plansFor(rc: RuleContext, f: Finding, report: MirrorReport): Iterable<Candidate> | undefined {
-  const site = ruleSite(rc.spec, report);
-  const vsite = variationSite(rc.spec, report);
-  if (!site || !vsite) return undefined;
+  const site = siteOf(rc.spec, report);
+  if (!site) return undefined;
   const { mirrorIndex: i, outputIndex: j } = site;
   const limits = rc.spec.limits;
   /** The worst value of `metric` over the corners (NaN when a corner does not solve). */
@@ -75,7 +73,7 @@ function plansFor(rc: RuleContext, f: Finding, report: MirrorReport): Iterable<C
     case 'corner-low-margin':
       return widenPlans(rc, i, worst((r) => (r.minMargin ?? NaN) - limits.margin), `for limits.margin ${all}`);
     case 'corner-compliance': {
-      const limit = complianceLimit(vsite);
+      const limit = complianceLimit(site);
       if (limit === undefined) return undefined;
       const nmos = site.mirror.type === 'nmos';
       return widenPlans(rc, i, worst((r) => (nmos ? limit - r.compliance : r.compliance - limit)), `for the compliance ${all}`);

@@ -5,7 +5,7 @@ import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
 import { modelPlans } from '../plans';
 import { MODELS, WEAK_INVERSION_MODEL } from '../../models/registry';
-import { code } from '../words';
+import { code } from '../../text/format';
 import { siteDevices } from './common';
 
 export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): Draft[] {
