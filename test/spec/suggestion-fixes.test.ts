@@ -6,7 +6,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { fixAll } from '../../src/core/rules/fix-all';
 import { marked, withText } from './helpers';
 

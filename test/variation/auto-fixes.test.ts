@@ -7,7 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { spec } from '../rules/helpers';
 
 const ws = (vbias: string) => spec(['  - name: wsa', '    kind: wide-swing', '    type: nmos', '    input: 10u', '    size: { w: auto, l: 1u }',

@@ -9,7 +9,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { fixAll } from '../../src/core/rules/fix-all';
 import { spec } from '../rules/helpers';
 
