@@ -37,6 +37,8 @@ export const SPEC_LIMITS = {
   maxExpressionLength: 1000,
   /** YAML syntax findings reported per file; the rest are counted in the last one. */
   maxSyntaxFindings: 20,
+  /** spec findings listed per code; the rest are counted in one `more-findings` per code. */
+  maxFindingsPerCode: 100,
 } as const;
 
 /** Provisional size of an `auto` dimension until the sizing pass runs (design §2 auto sizing). */

@@ -41,17 +41,6 @@ export function sortSpecFindings(list: Finding[]): Finding[] {
     || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
 }
 
-/** File indices of the mirrors the errors are in, or undefined when any error is outside mirrors. */
-function mirrorsInError(findings: Finding[]): number[] | undefined {
-  const at = new Set<number>();
-  for (const f of findings) {
-    if (f.severity !== 'error') continue;
-    if (f.path[0] !== 'mirrors' || typeof f.path[1] !== 'number') return undefined;
-    at.add(f.path[1]);
-  }
-  return [...at].sort((a, b) => a - b);
-}
-
 function looksJson(text: string, file?: string): boolean {
   if (file) return /\.json$/i.test(file);
   return /^\s*\{/.test(text) && /\}\s*$/.test(text);
@@ -74,9 +63,10 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
     if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
     else if (spec !== undefined) {
-      const withheld = mirrorsInError(sink.list);
+      const withheld = sink.mirrorsInError();
       if (withheld) {
-        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !withheld.includes(m.path[1] as number)) };
+        const setAside = new Set(withheld);
+        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(m.path[1] as number)) };
         out.withheld = withheld;
       }
     }

@@ -82,7 +82,7 @@ function readDesign(scope: ValueScope, raw: unknown, path: SpecPath): DesignTarg
   if (!d) return undefined;
   const keys = Object.keys(d).filter((k) => ['vov', 'gmid', 'ic'].includes(k));
   if (keys.length !== 1) {
-    scope.sink.error('bad-value', '`design` takes exactly one of vov (V), gmid (1/V), ic', path, scope.sink.src.keyOf(path), 'props');
+    scope.sink.error('bad-value', '`design` takes exactly one of vov (V), gmid (1/V), ic', path, 'key', 'props');
     return undefined;
   }
   const kind = keys[0] as DesignTarget['kind'];
@@ -103,7 +103,7 @@ function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: T
       const msg = shared
         ? `\`${role}\` belongs to the shared reference of the bank; set it in the mirror's \`devices\``
         : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${didYouMean(role, allowed)}`;
-      scope.sink.error('unknown-role', msg, at, scope.sink.src.keyOf(at));
+      scope.sink.error('unknown-role', msg, at, 'key');
       continue;
     }
     const layer = readSizeLayer(scope, d[role], at);
@@ -161,7 +161,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (m.outputs !== undefined && BANK_KINDS.includes(kind)) {
     const op = [...path, 'outputs'];
     if (!Array.isArray(m.outputs) || m.outputs.length === 0) {
-      sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, sink.src.keyOf(op), 'type');
+      sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, 'key', 'type');
     } else {
       const names = new Map<string, number>();
       m.outputs.forEach((item: unknown, j: number) => {
@@ -196,7 +196,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
     if (output) outputs.push({ name: head.name, devices: devs, output, require: mirrorRequire, path });
   }
   if (design && ![...Object.values(devices), ...outputs.flatMap((o) => Object.values(o.devices))].some((d) => d.auto)) {
-    sink.warning('unused-design', '`design` is set but no size is `auto`; it has no effect', [...path, 'design'], sink.src.keyOf([...path, 'design']));
+    sink.warning('unused-design', '`design` is set but no size is `auto`; it has no effect', [...path, 'design'], 'key');
   }
   if (sink.errorCount > before || !input) return undefined;
   const mirror: TemplateMirror = { kind, name: head.name, type: head.type, input, devices, outputs, path };

@@ -56,7 +56,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const seen = new Map<string, string>();  // element name → its group, for duplicate-name
   const claim = (group: string, elem: string, at: SpecPath) => {
     const g = seen.get(elem);
-    if (g) sink.error('duplicate-name', `\`${elem}\` is already the name of an entry in \`${g}\`; element names must be unique in a netlist`, at, sink.src.keyOf(at));
+    if (g) sink.error('duplicate-name', `\`${elem}\` is already the name of an entry in \`${g}\`; element names must be unique in a netlist`, at, 'key');
     else seen.set(elem, group);
   };
   const uses: Uses = new Map();
@@ -65,7 +65,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const dp = [...path, 'devices'];
   if (m.devices === undefined) missing(sink, path, 'devices', ' (the MOSFETs by name)');
   const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, d, g, s, b, w, l, m }') ?? {};
-  if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, sink.src.keyOf(dp));
+  if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, 'key');
   for (const dn of Object.keys(dmap)) {
     const at = [...dp, dn];
     claim('devices', dn, at);
@@ -197,7 +197,9 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
         if (dmap[n] === undefined) sink.error('unknown-name', `\`${n}\` is not a device of this netlist${didYouMean(n, Object.keys(dmap))}`, [...pp, k]);
         else names[k] = n;
       }
-      if (names.ref && names.out) pair = { ref: names.ref, out: names.out };
+      if (names.ref && names.out && names.ref === names.out) {
+        sink.error('bad-value', `\`out\` is \`${names.out}\`, the device already named as \`ref\`; a pair is two devices: the reference and the output it copies to`, [...pp, 'out']);
+      } else if (names.ref && names.out) pair = { ref: names.ref, out: names.out };
     }
   }
 

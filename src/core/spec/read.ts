@@ -34,10 +34,10 @@ export function readEnum<T extends string>(sink: FindingSink, raw: unknown, path
 /** A missing-key finding at the parent's key. */
 export function missing(sink: FindingSink, parent: SpecPath, key: string, why = ''): void {
   const where = parent.length ? `\`${formatPath(parent)}\`` : 'the spec';
-  sink.error('missing-key', `${where} is missing \`${key}\`${why}`, parent, sink.src.keyOf(parent), `missing:${key}`);
+  sink.error('missing-key', `${where} is missing \`${key}\`${why}`, parent, 'key', `missing:${key}`);
 }
 
 /** A key that the schema allows somewhere but not in this context (e.g. `vbias` on a simple mirror). */
 export function misplaced(sink: FindingSink, path: SpecPath, message: string): void {
-  sink.error('unknown-key', message, path, sink.src.keyOf(path), 'unknown');
+  sink.error('unknown-key', message, path, 'key', 'unknown');
 }

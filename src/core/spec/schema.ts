@@ -14,7 +14,7 @@ import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import { formatPath } from './findings';
 import { didYouMean } from './suggest';
-import { typeName } from './values';
+import { nonFiniteMessage, typeName } from './values';
 
 const validator = generatedValidator as unknown as ValidateFunction;
 
@@ -24,7 +24,7 @@ function toPath(pointer: string, data: unknown): SpecPath {
   const path: SpecPath = [];
   let cur: unknown = data;
   for (const raw of pointer.split('/').slice(1)) {
-    const seg = raw.replace(/~1/g, '/').replace(/~0/g, '~');
+    const seg = raw.includes('~') ? raw.replace(/~1/g, '/').replace(/~0/g, '~') : raw;
     if (Array.isArray(cur)) {
       const i = Number(seg);
       path.push(i);
@@ -45,10 +45,17 @@ function valueAt(data: unknown, path: SpecPath): unknown {
 
 interface SchemaNode { properties?: Record<string, { description?: string }>; description?: string }
 
+const hints = new Map<string, string>();
+
 function shortHint(d: string | undefined): string {
   if (!d) return '';
-  const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
-  return s.length <= 70 ? ` (${s})` : '';
+  let hint = hints.get(d);
+  if (hint === undefined) {
+    const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
+    hint = s.length <= 70 ? ` (${s})` : '';
+    hints.set(d, hint);  // one per schema description: bounded
+  }
+  return hint;
 }
 
 function where(path: SpecPath): string {
@@ -91,20 +98,26 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
       const known = Object.keys(parent?.properties ?? {});
       const hint = didYouMean(key, known) || (known.length && known.length <= 16 ? `; expected one of ${known.join(', ')}` : '');
       const at = [...path, key];
-      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, sink.src.keyOf(at), 'unknown');
+      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, 'key', 'unknown');
       return;
     }
     case 'required': {
       const missing = String(p.missingProperty);
       const hint = shortHint(parent?.properties?.[missing]?.description);
-      sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, sink.src.keyOf(path), `missing:${missing}`);
+      sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, 'key', `missing:${missing}`);
       return;
     }
     case 'type':
+      // JSON Schema's numbers are finite: `.nan` and `.inf` are numbers of the wrong value, said
+      // once, as the elaborator says it (the same fact, so it is not said twice).
+      if (typeof value === 'number' && !Number.isFinite(value) && /number|integer/.test(String(p.type))) {
+        sink.error('bad-value', nonFiniteMessage(path, value), path, undefined, 'type');
+        return;
+      }
       sink.error('wrong-type', `${name} must be ${typeWords(p.type)}; got ${typeName(value)}`, path, undefined, 'type');
       return;
     case 'false schema':
-      sink.error('unknown-key', `${name} does not belong here`, path, sink.src.keyOf(path), 'unknown');
+      sink.error('unknown-key', `${name} does not belong here`, path, 'key', 'unknown');
       return;
   }
   if (sink.has(path, 'type')) return;

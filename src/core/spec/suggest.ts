@@ -21,13 +21,20 @@ export function editDistance(a: string, b: string): number {
   return prev[n];
 }
 
+/** Candidates compared at most: a spec of 40 000 params must not cost 40 000 comparisons for each
+ *  unknown name (a designer's spec has tens). */
+export const MAX_SUGGEST_CANDIDATES = 2000;
+
 /** The closest candidate within a length-dependent distance, or undefined. */
 export function closest(word: string, candidates: Iterable<string>): string | undefined {
   const w = word.toLowerCase();
   const limit = w.length <= 3 ? 1 : w.length <= 6 ? 2 : 3;
   let best: string | undefined;
   let bestD = Infinity;
+  let seen = 0;
   for (const c of candidates) {
+    if (++seen > MAX_SUGGEST_CANDIDATES) break;
+    if (Math.abs(c.length - w.length) > limit) continue;  // the distance is at least that
     const d = editDistance(w, c.toLowerCase());
     if (d < bestD && d <= limit && d < w.length) {
       best = c;
