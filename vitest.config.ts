@@ -6,6 +6,8 @@ export default defineConfig({
   resolve: { alias: [{ find: /^yaml$/, replacement: resolve('node_modules/yaml/browser/index.js') }] },
   test: {
     include: ['test/**/*.test.ts'],
+    // Says before and after the run when QPOINT_SKIP_WORKBENCH leaves a suite out.
+    globalSetup: ['test/skip-notice.ts'],
     testTimeout: 120_000,
     hookTimeout: 300_000,
   },

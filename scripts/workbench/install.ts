@@ -3,7 +3,7 @@
  * ignored cache folder, so the project never depends on it at runtime. A second call finds the
  * marker and returns at once.
  *
- * Offline pitfalls handled here (see /work/shared/vscode-host.md):
+ * Pitfalls of an install without downloads outside the npm registry, handled here:
  * - @vscode/ripgrep downloads a prebuilt binary; we seed its download cache from Debian's `rg`.
  * - node-pty's install calls `npx node-gyp`: `npm_config_yes=true`.
  * - As root, code-server's postinstall wants `--unsafe-perm`.

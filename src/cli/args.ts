@@ -1,4 +1,5 @@
 import { parseArgs } from 'node:util';
+import { MC_SAMPLES } from '../core/defaults';
 
 export type Command =
   | { cmd: 'help' } | { cmd: 'version' }
@@ -46,7 +47,7 @@ function parse(argv: string[]): Command {
     case 'check': {
       const format = values.format ?? 'text';
       if (format !== 'text' && format !== 'json' && format !== 'sarif') throw new Error(`--format must be text, json or sarif, not '${format}'`);
-      const mc = values.mc !== undefined ? positiveInt(values.mc, '--mc') : undefined;
+      const mc = values.mc !== undefined ? samples(values.mc) : undefined;
       const seed = values.seed !== undefined ? positiveInt(values.seed, '--seed', true) : 1;
       return { cmd, files: positionals, format, corners: values.corners ?? false, mc, seed };
     }
@@ -54,7 +55,7 @@ function parse(argv: string[]): Command {
       return { cmd, file, apply: (values.apply ?? false) && !(values['dry-run'] ?? false) };
     case 'report':
       if (!values.html) throw new Error(`'report' needs --html OUT.html`);
-      return { cmd, file, html: values.html, mc: values.mc !== undefined ? positiveInt(values.mc, '--mc') : undefined,
+      return { cmd, file, html: values.html, mc: values.mc !== undefined ? samples(values.mc) : undefined,
         seed: values.seed !== undefined ? positiveInt(values.seed, '--seed', true) : 1 };
     default: {
       if (!values.mirror) throw new Error(`'sweep' needs --mirror NAME`);
@@ -67,6 +68,13 @@ function parse(argv: string[]): Command {
 function positiveInt(text: string, flag: string, allowZero = false): number {
   const n = Number(text);
   if (!Number.isInteger(n) || n < (allowZero ? 0 : 1)) throw new Error(`${flag} takes a whole number, not '${text}'`);
+  return n;
+}
+
+/** Monte Carlo samples per output, bounded as the editor's qpoint.monteCarlo.samples is. */
+function samples(text: string): number {
+  const n = positiveInt(text, '--mc');
+  if (n > MC_SAMPLES.max) throw new Error(`--mc takes at most ${MC_SAMPLES.max} samples per output (as the editor's qpoint.monteCarlo.samples), not '${text}'`);
   return n;
 }
 

@@ -19,7 +19,7 @@ export function runCheck(c: CheckCommand): number {
     const name = displayName(file);
     if (!read.ok) {
       unreadable = true;
-      reports.push(unreadableReport(name, read.reason));
+      reports.push('tooLarge' in read ? { file: name, parsed: false, mirrors: [], anchors: [], findings: [read.tooLarge] } : unreadableReport(name, read.reason));
       continue;
     }
     const report = analyzeText(read.text, name, opts);

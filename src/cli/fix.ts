@@ -1,10 +1,9 @@
-import { writeFileSync } from 'node:fs';
 import { createTwoFilesPatch } from 'diff';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
 import { findingLine } from '../core/report/text';
-import { readOne } from './io';
+import { readOne, replaceIfUnchanged } from './io';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
 
@@ -20,14 +19,24 @@ export function runFix(c: FixCommand): number {
   }
   // The first round checks the text just analysed: reuse that report instead of solving it again.
   const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name)));
-  for (const a of result.applied) process.stdout.write(`fixed ${a.code}: ${a.title}\n`);
+  const applied = result.applied.map((a) => `fixed ${a.code}: ${a.title}\n`).join('');
   if (result.text === read.text) {
+    process.stdout.write(applied);
     // A spec with errors is solved for its other mirrors, but gets no fixes until it reads cleanly.
     process.stdout.write(result.withheld ? 'nothing fixed: fixes are offered once the spec has no errors; fix the errors below first\n' : 'nothing to fix\n');
   } else if (c.apply && c.file !== '-') {
-    writeFileSync(c.file, result.text);
+    // Only a file that still holds what was read is replaced, and "fixed" is said once it is.
+    const written = replaceIfUnchanged(c.file, read.digest, result.text);
+    if (!written.ok) {
+      process.stderr.write(written.changed
+        ? `qpoint: ${name} changed while qpoint was fixing it; nothing was written (run qpoint fix again)\n`
+        : `qpoint: cannot write ${name}: ${written.reason}; nothing was changed\n`);
+      return 2;
+    }
+    process.stdout.write(applied);
     process.stdout.write(`wrote ${name} (${result.applied.length} fixes in ${result.rounds} rounds)\n`);
   } else {
+    process.stdout.write(applied);
     process.stdout.write(createTwoFilesPatch(`a/${name}`, `b/${name}`, read.text, result.text));
   }
   for (const f of result.remaining) process.stdout.write(findingLine(name, f) + '\n');

@@ -3,7 +3,7 @@ import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
-import { readOne } from './io';
+import { isSameFile, readOne, reasonOf } from './io';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -13,6 +13,10 @@ export function webviewAssets(): { script: string } {
 }
 
 export function runReport(c: ReportCommand): number {
+  if (isSameFile(c.file, c.html)) {
+    process.stderr.write(`qpoint: --html ${c.html} is the spec itself; name another file for the page\n`);
+    return 2;
+  }
   const read = readOne(c.file);
   if (!read) return 2;
   const name = read.name;
@@ -22,7 +26,7 @@ export function runReport(c: ReportCommand): number {
     mkdirSync(dirname(c.html), { recursive: true });
     writeFileSync(c.html, renderHtmlReport(report, webviewAssets()));
   } catch (err) {
-    process.stderr.write(`qpoint: cannot write ${c.html}: ${(err as Error).message}\n`);
+    process.stderr.write(`qpoint: cannot write ${c.html}: ${reasonOf(err)}\n`);
     return 2;
   }
   process.stdout.write(`wrote ${c.html} (${report.mirrors.length} mirror outputs, ${report.findings.length} findings)\n`);

@@ -8,13 +8,17 @@ usage:
   qpoint --help | --version
 
 FILE is a *.bias.yaml, *.bias.yml or *.bias.json spec; '-' reads standard input.
+A spec past 512 KB is refused (too-large) as soon as reading passes the limit.
+--mc N   Monte Carlo samples per output, 1 to 10000000
 
 check    solve every mirror, print each mirror's figures and the findings
          (file:line:col: severity code: message), or JSON / SARIF 2.1.0
 fix      apply the preferred fix of every finding, re-check, repeat while errors drop;
-         without --apply (or with --dry-run) print the change as a unified diff
+         without --apply (or with --dry-run) print the change as a unified diff;
+         --apply replaces FILE through a temporary file beside it, and only if FILE
+         still holds what was read (an edit saved meanwhile is kept, nothing written)
 report   write one self-contained HTML page with the tables, plots and corners
-         (and a Monte Carlo histogram per output with --mc)
+         (and a Monte Carlo histogram per output with --mc); never over FILE itself
 sweep    print Iout and Rout of one mirror output across a range of output voltages
 
 exit codes: 0 no errors (warnings allowed), 1 findings of severity error,

@@ -41,6 +41,13 @@ export const SPEC_LIMITS = {
   maxFindingsPerCode: 100,
 } as const;
 
+/**
+ * Monte Carlo samples per output, as the editor's `qpoint.monteCarlo.samples` bounds them
+ * (package.json says the same) and the CLI's `--mc` accepts: each sample re-solves a mirror, and
+ * the draws are held in typed arrays, so an unbounded count is minutes of work or a failed allocation.
+ */
+export const MC_SAMPLES = { min: 10, max: 10_000_000, default: 10_000 } as const;
+
 /** Provisional size of an `auto` dimension until the sizing pass runs (design §2 auto sizing). */
 export const PROVISIONAL_SIZE = {
   /** m, when neither the process `lref` nor the spec gives a length. */

@@ -16,4 +16,6 @@ export interface QpointApi {
   readonly onDidUpdate: vscode.Event<ReportUpdate>;
   /** True while a Monte Carlo thread computes; false again once a cancelled one has exited. */
   monteCarloBusy(): boolean;
+  /** Samples done of the total in the Monte Carlo run in progress (undefined when none runs). */
+  monteCarloProgress(): { done: number; total: number } | undefined;
 }

@@ -51,6 +51,7 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
     lastAnalysisMs: () => analyzer.lastJobMs,
     onDidUpdate: manager.onDidUpdate,
     monteCarloBusy: () => monteCarlo.busy(),
+    monteCarloProgress: () => monteCarlo.progress(),
   };
 }
 

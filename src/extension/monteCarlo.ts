@@ -53,12 +53,19 @@ export class MonteCarloCommand {
   private running: vscode.CancellationTokenSource | undefined;
   /** One key per run, so stopping an old run can never hit a newer one. */
   private runs = 0;
+  /** The summary of the run in progress, whose `progress` the worker updates. */
+  private current: MonteCarloSummary | undefined;
 
   constructor(private readonly c: MonteCarloContext) {}
 
   /** True while a run's thread is computing (it is false again once a cancelled thread exited). */
   busy(): boolean {
     return this.c.analyzer.busy();
+  }
+
+  /** Samples done of the total in the run in progress, as the worker last reported them. */
+  progress(): SampleCount | undefined {
+    return this.current?.progress;
   }
 
   async run(arg?: unknown): Promise<MonteCarloSummary | undefined> {
@@ -87,6 +94,7 @@ export class MonteCarloCommand {
     const version = doc.version;
     const rel = vscode.workspace.asRelativePath(doc.uri, false);
     const summary: MonteCarloSummary = { uri: doc.uri.toString(), ...run, cancelled: false, stale: false, adopted: false, ms: 0 };
+    this.current = summary;
     try {
       await vscode.window.withProgress(
         { location: vscode.ProgressLocation.Notification, title: `qpoint: Monte Carlo mismatch of ${rel}`, cancellable: true },
@@ -115,6 +123,7 @@ export class MonteCarloCommand {
     } finally {
       sub?.dispose();
       if (this.running === mine) this.running = undefined;
+      if (this.current === summary) this.current = undefined;
       mine.dispose();
     }
     summary.ms = Date.now() - t0;

@@ -3,9 +3,7 @@
  * uses, and the progress and summary lines the designer reads.
  */
 import type { FileReport } from '../core/types';
-
-/** Bounds of `qpoint.monteCarlo.samples` (package.json says the same). */
-export const MC_SAMPLES = { min: 10, max: 10_000_000, default: 10_000 } as const;
+import { MC_SAMPLES } from '../core/defaults';
 export const MC_SEED_DEFAULT = 1;
 
 export interface MonteCarloRun { samples: number; seed: number }

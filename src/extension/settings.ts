@@ -1,7 +1,7 @@
 /** The extension's settings (package.json `contributes.configuration`), read in one place. */
 import * as vscode from 'vscode';
-import { DEFAULTS } from '../core/defaults';
-import { MC_SAMPLES, MC_SEED_DEFAULT } from './monteCarloText';
+import { DEFAULTS, MC_SAMPLES } from '../core/defaults';
+import { MC_SEED_DEFAULT } from './monteCarloText';
 
 export const SECTION = 'qpoint';
 

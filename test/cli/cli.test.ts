@@ -90,7 +90,7 @@ describe('check', () => {
   });
 
   it('reproduces the simple-mirror output current of the Razavi check device end to end', () => {
-    // shared references §9 (C, square law of §2 with the diode's own (1+λVDS)):
+    // docs/references.md §9 (C, square law of §2 with the diode's own (1+λVDS)):
     // IOUT at VOUT = 1.5 V = 103.9103 µA. Razavi parameter set from memory.
     const r = qpoint(['check', RAZAVI, '--format', 'json']);
     const m = (JSON.parse(r.stdout) as { files: { mirrors: { iout: number; devices: { vgs: number }[] }[] }[] }).files[0]!.mirrors[0]!;
@@ -201,7 +201,7 @@ describe('fix, report, sweep', () => {
     const rows = r.stdout.trim().split('\n').slice(1).map((l) => l.split(',').map(Number));
     expect(rows.map((x) => x[0])).toEqual([1, 1.5, 2, 2.5]);
     expect(rows[1]![1]).toBeCloseTo(check.files[0]!.mirrors[0]!.iout, 12);
-    // shared references §9 (C): 99.3925 and 112.9460 µA at 1.0 and 2.5 V.
+    // docs/references.md §9 (C): 99.3925 and 112.9460 µA at 1.0 and 2.5 V.
     expect(rows[0]![1]! * 1e6).toBeCloseTo(99.3925, 3);
     expect(rows[3]![1]! * 1e6).toBeCloseTo(112.946, 3);
   });

@@ -1,6 +1,6 @@
 /**
  * Mirror figures against the textbook formulas and computed check values of
- * /work/shared/references.md §3, §5, §9 (Razavi set D, from memory; values computed).
+ * docs/references.md §3, §5, §9 (Razavi set D, from memory; values computed).
  */
 import { describe, expect, it } from 'vitest';
 import { measureMirror, solveAt } from '../../src/core/analysis/index';

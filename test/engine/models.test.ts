@@ -1,6 +1,6 @@
 /**
  * Device models against published formulas and the computed check values of
- * /work/shared/references.md (sections named beside each check).
+ * docs/references.md (sections named beside each check).
  */
 import { describe, expect, it } from 'vitest';
 import { evalDevice, gateDriveFor, inversionOf, prepareDevice, thermalVoltage } from '../../src/core/models/index';

@@ -1,6 +1,6 @@
 /**
  * Hard circuits: the engine returns converged: false with a note, or a sane result — never an
- * exception, always within a bounded time (brief: "bad input always yields a clear finding").
+ * exception, always within a bounded time: bad input always yields a clear finding.
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeSpec, measureMirror, solveAt, sweepVout } from '../../src/core/analysis/index';
@@ -9,13 +9,9 @@ import { solveDc } from '../../src/core/circuit/newton';
 import type { MirrorReport, ResolvedSpec } from '../../src/core/types';
 import { ctxOf, makeSpec, netlist, sz, template } from './builders';
 
-/** Run f and require it to finish within ms (wall clock), returning its value. */
-function bounded<T>(ms: number, f: () => T): T {
-  const t0 = Date.now();
-  const v = f();
-  expect(Date.now() - t0).toBeLessThan(ms);
-  return v;
-}
+// No wall-clock limits here: a solve that hung would fail through the test timeout
+// (vitest.config.ts), and the solver's own iteration and time bounds are tested below with
+// starved retries and an injected clock.
 
 function sane(r: MirrorReport): void {
   if (r.converged) {
@@ -29,21 +25,21 @@ function sane(r: MirrorReport): void {
 
 describe('hard circuits', () => {
   it('an input current the supply cannot carry: the diode node rises beyond vdd (a sane, flagged-by-rules result)', () => {
-    const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template('simple', { input: 10e-3, vout: 2 })]))));
+    const r = measureMirror(ctxOf(makeSpec([template('simple', { input: 10e-3, vout: 2 })])));
     sane(r);
     expect(r.converged).toBe(true);
     // VGS = 0.7 + sqrt(2·10 mA/1.34 mA/V²) ≈ 4.56 V (λ shifts it a little): above the 3.3 V supply.
     expect(r.nodes.a).toBeGreaterThan(3.3);
   });
   it('an input current no device can carry: a node far outside the supplies is reported as not converged', () => {
-    const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template('cascode', { input: 10, vout: 2 })]))));
+    const r = measureMirror(ctxOf(makeSpec([template('cascode', { input: 10, vout: 2 })])));
     sane(r);
     expect(r.converged).toBe(false);
     expect(r.solveNote).toMatch(/far outside the supplies/);
   });
   it('a device that never saturates (output held at vss): converged, out in triode/cutoff, compliance above vout', () => {
     for (const kind of ['simple', 'cascode', 'wide-swing'] as const) {
-      const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template(kind, { vout: 0 })]), 0), { curve: true }));
+      const r = measureMirror(ctxOf(makeSpec([template(kind, { vout: 0 })]), 0), { curve: true });
       sane(r);
       expect(r.converged).toBe(true);
       expect(r.devices.some((d) => d.region !== 'saturation')).toBe(true);
@@ -55,22 +51,22 @@ describe('hard circuits', () => {
     // The output device turns around and drains the diode node too; the ideal input current
     // then has no path and its node runs away. Physically the input source loses compliance.
     for (const kind of ['wilson', 'wilson-balanced'] as const) {
-      const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template(kind, { vout: 0 })]), 0), { curve: true }));
+      const r = measureMirror(ctxOf(makeSpec([template(kind, { vout: 0 })]), 0), { curve: true });
       sane(r);
       expect(r.converged).toBe(false);
       expect(r.solveNote).toMatch(/did not converge|far outside/);
       // The curve is still drawn where the mirror works, in bounded time.
-      const curve = bounded(1000, () => measureMirror(ctxOf(makeSpec([template(kind, { vout: 2.5 })])), { curve: true }).curve!);
+      const curve = measureMirror(ctxOf(makeSpec([template(kind, { vout: 2.5 })])), { curve: true }).curve!;
       expect(curve.filter((p) => p.converged && p.vout > 1.5).length).toBeGreaterThan(20);
     }
   });
   it('a Wilson whose output is above vdd - nothing breaks, figures finite', () => {
-    const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template('wilson', { vout: 6 })]))));
+    const r = measureMirror(ctxOf(makeSpec([template('wilson', { vout: 6 })])));
     sane(r);
     expect(r.converged).toBe(true);
   });
   it('zero width: not solved, the note names the device', () => {
-    const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template('cascode', { vout: 2, devices: { outc: { w: 0 } } })]))));
+    const r = measureMirror(ctxOf(makeSpec([template('cascode', { vout: 2, devices: { outc: { w: 0 } } })])));
     expect(r.converged).toBe(false);
     expect(r.solveNote).toMatch(/device outc: W = 0 m/);
     expect(r.devices.every((d) => Number.isFinite(d.id))).toBe(true);
@@ -82,7 +78,7 @@ describe('hard circuits', () => {
   });
   it('huge and tiny sizes: a sane result', () => {
     for (const size of [sz(1, 1e-6), sz(1e-9, 1e-3), sz(1e3, 1e3)]) {
-      const r = bounded(1000, () => measureMirror(ctxOf(makeSpec([template('cascode', { vout: 2, size, input: 1e-6 })]))));
+      const r = measureMirror(ctxOf(makeSpec([template('cascode', { vout: 2, size, input: 1e-6 })])));
       sane(r);
     }
   });
@@ -97,7 +93,7 @@ describe('hard circuits', () => {
       currents: [{ name: 'I1', from: 'vdd', to: 'a', i: 100e-6 }],
       output: { node: 'out', v: 2 }, input: { source: 'I1' },
     })]);
-    const r = bounded(1000, () => measureMirror(ctxOf(spec)));
+    const r = measureMirror(ctxOf(spec));
     sane(r);
     expect(r.converged).toBe(true);
     expect(r.nodes.floating).toBeCloseTo(1.65, 6);
@@ -111,7 +107,7 @@ describe('hard circuits', () => {
       voltages: [{ name: 'V1', node: 'g', v: 1 }],
       output: { node: 'out', v: 2 }, input: { source: 'I1' },
     })]);
-    const r = bounded(1000, () => measureMirror(ctxOf(spec)));
+    const r = measureMirror(ctxOf(spec));
     expect(r.converged).toBe(false);
     // The node runs away to I/gmin = 1 MV: caught by the step limit growing with the distance
     // outside the supplies, then by the sanity bound.

@@ -2,9 +2,9 @@
  * The analysis worker client with the real worker bundle (dist/worker.js, built by `npm test`):
  * supersession by key, answers for the newest text only, recovery from a hung worker, a time
  * budget per job so that one hostile file never starves the others.
- * The analysed spec is the Razavi level-1 device D (references.md; set from memory, numbers
+ * The analysed spec is the Razavi level-1 device D (docs/references.md; set from memory, numbers
  * computed there): a simple NMOS mirror, W/L = 10, IREF = 100 µA, VOUT = 1.5 V → IOUT =
- * 103.9103 µA (references.md §9 "Constructed check on D").
+ * 103.9103 µA (docs/references.md §9 "Constructed check on D").
  */
 import { describe, expect, it } from 'vitest';
 import { existsSync, mkdtempSync, writeFileSync } from 'node:fs';
@@ -37,7 +37,7 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const report = await make().analyze('a', D_SPEC('100u'), 'd.bias.yaml', {});
     expect(report?.parsed).toBe(true);
     const m = report!.mirrors[0];
-    expect(m.iout).toBeCloseTo(103.9103e-6, 9);  // references.md §9, to 0.1 nA
+    expect(m.iout).toBeCloseTo(103.9103e-6, 9);  // docs/references.md §9, to 0.1 nA
   });
 
   it('answers only the newest request of a key; older ones resolve undefined', async () => {
@@ -60,9 +60,8 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const hang = join(dir, 'hang.js');
     writeFileSync(hang, "require('node:worker_threads').parentPort.on('message', () => { for (;;) {} });\n");
     const a = make(hang, 300);
-    const t0 = Date.now();
+    // The rejection names the 300 ms job limit: the hang was cut by it, not by the test timeout.
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
-    expect(Date.now() - t0).toBeLessThan(5_000);
     // A fresh worker is started for the next request (it hangs too, by construction).
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
   });
@@ -70,7 +69,7 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
   it('keeps analysing a valid file while a hostile one is open (issue 14)', async () => {
     // The hostile job: Monte Carlo at the editor's largest sample count (package.json,
     // qpoint.monteCarlo.samples maximum 10^7) on a mirror with Pelgrom coefficients, which runs
-    // for minutes. Budget 4 s; the valid file is the D mirror (references.md §9).
+    // for minutes. Budget 4 s; the valid file is the D mirror (docs/references.md §9).
     const a = make(WORKER, 4000);
     const hostile = D_SPEC('100u', ', avt: 4e-9, abeta: 1e-8');
     const slow = { mc: { samples: 10_000_000, seed: 1 } };
@@ -80,7 +79,7 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     const h1 = a.analyze('hostile', hostile, 'hostile.bias.yaml', slow);
     const v1 = a.analyze('valid', valid, 'valid.bias.yaml', {});
     const [hr, vr] = await Promise.all([h1, v1]);
-    expect(vr!.mirrors[0].iout).toBeCloseTo(103.9103e-6, 9);  // references.md §9, to 0.1 nA
+    expect(vr!.mirrors[0].iout).toBeCloseTo(103.9103e-6, 9);  // docs/references.md §9, to 0.1 nA
     expect(hr!.mirrors).toEqual([]);
     expect(hr!.findings.map((f) => [f.code, f.severity, f.range.start])).toEqual([['analysis-timeout', 'error', { line: 0, character: 0 }]]);
     expect(hr!.findings[0].message).toMatch(/^qpoint stopped analysing this file after 4 s so that the other open specs are analysed meanwhile/);

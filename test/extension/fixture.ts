@@ -1,7 +1,7 @@
 /**
  * A small hand-made FileReport for the converter tests: a simple NMOS mirror of the Razavi
- * level-1 device (references.md "D": k′ = 134 µA/V², VT0 = 0.7 V, λ = 0.1 /V, W/L = 10,
- * 100 µA; parameter set from memory, numbers computed from the square law, references.md §2
+ * level-1 device (docs/references.md "D": k′ = 134 µA/V², VT0 = 0.7 V, λ = 0.1 /V, W/L = 10,
+ * 100 µA; parameter set from memory, numbers computed from the square law, docs/references.md §2
  * and §9 "Constructed check on D"): diode VGS = 1.067 234 V with length modulation, IOUT at
  * VOUT = 1.5 V = 103.9103 µA. gm = β·VOV·(1+λVDS), ro = 1/(λ·β/2·VOV²) (design §3 model).
  * The YAML text is the spec these numbers belong to, with anchors at its real positions.

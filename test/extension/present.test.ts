@@ -2,7 +2,7 @@
  * Hover, CodeLens and status text from a report. Displayed values are checked against the SI
  * prefixes (SI Brochure, 9th ed., Table 7: µ = 10⁻⁶, k = 10³, M = 10⁶) and the percent
  * (SI Brochure 9th ed. §5.4.7: % = 0.01) applied to the Razavi level-1 device of the fixture
- * (references.md D; set from memory, values computed).
+ * (docs/references.md D; set from memory, values computed).
  */
 import { describe, expect, it } from 'vitest';
 import {
@@ -34,7 +34,7 @@ describe('number display', () => {
 describe('device hover', () => {
   it('shows the ten operating-point figures of the D device with SI prefixes', () => {
     const f = Object.fromEntries(deviceFigures(OUT));
-    // ID at VOUT = 1.5 V: 103.9103 µA (references.md §9, computed from the square law).
+    // ID at VOUT = 1.5 V: 103.9103 µA (docs/references.md §9, computed from the square law).
     expect(f.ID).toBe('104 µA');
     expect(f.VGS).toBe('1.07 V');        // 0.7 + 0.367 234 V
     expect(f.VDS).toBe('1.5 V');
@@ -43,7 +43,7 @@ describe('device hover', () => {
     expect(f.gm).toBe('566 µS');         // β·VOV·(1 + λ·1.5)
     expect(f.ro).toBe('111 kΩ');         // 1/(λ·β/2·VOV²) = 110.67 kΩ
     expect(f['gm/ID']).toBe('5.45 /V');  // 2/VOV·(1+λVDS)/(1+λVDS) = 5.446 /V
-    expect(f.IC).toBe('43 (strong)');    // references.md §6: D in EKV terms, IC = 42.95
+    expect(f.IC).toBe('43 (strong)');    // docs/references.md §6: D in EKV terms, IC = 42.95
     expect(f.region).toBe('saturation');
   });
 
@@ -68,7 +68,7 @@ describe('mirror hover', () => {
     expect(md).toContain('| **Rout** | 111 kΩ (textbook 100 kΩ) |');
     expect(md).toContain('| **Iout** | 104 µA |');
     expect(md).toContain('| **compliance** | 367 mV (lowest Vout) |');
-    // error = 103.9103/100 − 1 = +3.91 % (references.md §9 constructed check)
+    // error = 103.9103/100 − 1 = +3.91 % (docs/references.md §9 constructed check)
     expect(md).toContain('| **error** | +3.91 % |');
     expect(md).toContain(CAUTION_TEXT);
   });

@@ -1,6 +1,6 @@
 /**
  * Shared by the tests that drive the real analysis worker bundle (dist/worker.js, built by
- * `npm test`): the Razavi level-1 device D as a simple NMOS mirror (references.md; set from
+ * `npm test`): the Razavi level-1 device D as a simple NMOS mirror (docs/references.md; set from
  * memory), W/L = 10, VOUT = 1.5 V, and analyzers that are disposed after each test.
  */
 import { afterEach } from 'vitest';

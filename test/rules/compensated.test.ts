@@ -1,6 +1,6 @@
 // A VDS mismatch that the sizing already compensates raises no `vds-mismatch` warning; the same
 // mirror without a required ratio still gets one. The size in the spec is the closed form for a
-// simple mirror under length modulation (square law, shared references §2 and §9):
+// simple mirror under length modulation (square law, docs/references.md §2 and §9):
 // W_out/W_ref = R·(1 + λ·VDS,ref)/(1 + λ·VDS,out), with VDS,ref = VGS of the diode.
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';

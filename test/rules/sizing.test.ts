@@ -1,6 +1,6 @@
 /**
  * The sizing solvers against closed forms of the model they solve (design §3 square law with
- * length modulation, references.md §2: ID = β/2·VOV²·(1+λ·VDS), "M" — Razavi ch. 2 / Sedra &
+ * length modulation, docs/references.md §2: ID = β/2·VOV²·(1+λ·VDS), "M" — Razavi ch. 2 / Sedra &
  * Smith ch. 5 from memory; ro convention (1/λ + VDS)/ID, references §10 item 2; Pelgrom σ ∝
  * 1/√(W·L), Pelgrom, Duinmaijer & Welbers, IEEE JSSC 24(5) 1989). No body effect in these
  * checks: every device has its source on the rail.

@@ -7,10 +7,10 @@ import { parseSpec } from '../../src/core/spec/index';
 import { SPEC_LIMITS } from '../../src/core/defaults';
 import { BASE, codes } from './helpers';
 
+// Each hostile input is refused by its finding (too-large, too-deep, …), which is reached
+// before any parse: no wall-clock limit here; the test timeout guards against a hang.
 function timed(text: string) {
-  const t = performance.now();
-  const p = parseSpec(text, 'x.bias.yaml');
-  return { p, ms: performance.now() - t };
+  return { p: parseSpec(text, 'x.bias.yaml') };
 }
 
 describe('bad input', () => {
@@ -20,31 +20,28 @@ describe('bad input', () => {
 
   test('empty file and comment-only file', () => {
     for (const text of ['', '   \n\n', '# just a comment\n# another\n']) {
-      const { p, ms } = timed(text);
+      const { p } = timed(text);
       expect(codes(p.findings)).toEqual(['empty-spec']);
       expect(p.findings[0].range.start).toEqual({ line: 0, character: 0 });
       expect(p.spec).toBeUndefined();
-      expect(ms).toBeLessThan(1000);
     }
   });
 
   test('binary bytes', () => {
     const bytes = 'format: 1\n\u0000\u0001\u0002PK\u0003\u0004\uFFFD';
-    const { p, ms } = timed(bytes);
+    const { p } = timed(bytes);
     expect(p.parsed).toBe(false);
     expect(codes(p.findings)).toEqual(['binary-input']);
     expect(p.findings[0].range.start).toEqual({ line: 1, character: 0 });
-    expect(ms).toBeLessThan(1000);
   });
 
   test('a 1 MB file', () => {
     let big = BASE;
     while (big.length < 1 << 20) big += `# filler line ${big.length}\n`;
-    const { p, ms } = timed(big);
+    const { p } = timed(big);
     expect(p.parsed).toBe(false);
     expect(codes(p.findings)).toEqual(['too-large']);
     expect(p.findings[0].message).toContain('1.0 MB');
-    expect(ms).toBeLessThan(1000);
   });
 
   // How fast is the benchmark's business (`npm run bench`: parse at the size limit < 1 s); here
@@ -61,22 +58,20 @@ describe('bad input', () => {
 
   test('3,000 levels of flow nesting', () => {
     const deep = 'format: 1\nx: ' + '['.repeat(3000) + ']'.repeat(3000) + '\n';
-    const { p, ms } = timed(deep);
+    const { p } = timed(deep);
     expect(p.findings.length).toBeGreaterThan(0);
     expect(p.findings.every((f) => f.severity === 'error')).toBe(true);
     expect(p.spec).toBeUndefined();
-    expect(ms).toBeLessThan(1000);
   });
 
   test('3,000 levels of block nesting', () => {
     let deep = 'format: 1\n';
     for (let i = 0; i < 3000; i++) deep += ' '.repeat(i) + `k${i}:\n`;
     deep += ' '.repeat(3000) + 'v\n';
-    const { p, ms } = timed(deep);
+    const { p } = timed(deep);
     expect(p.findings.length).toBeGreaterThan(0);
     expect(p.findings.length).toBeLessThanOrEqual(SPEC_LIMITS.maxSyntaxFindings + 1);
     expect(p.spec).toBeUndefined();
-    expect(ms).toBeLessThan(1000);
   });
 
   test('an alias bomb stops at maxAliasCount', () => {
@@ -89,11 +84,10 @@ describe('bad input', () => {
       'e: &e [*d, *d, *d, *d, *d, *d, *d, *d, *d, *d]',
       'f: [*e, *e, *e, *e, *e, *e, *e, *e, *e, *e]',
       ''].join('\n');
-    const { p, ms } = timed(bomb);
+    const { p } = timed(bomb);
     expect(codes(p.findings)).toEqual(['too-many-aliases']);
     expect(p.findings[0].range).toEqual({ start: { line: 2, character: 7 }, end: { line: 2, character: 9 } });  // the first `*a`, after `b: &b [`
     expect(p.parsed).toBe(false);
-    expect(ms).toBeLessThan(1000);
   });
 
   test('anchors, aliases and merge keys work in a normal spec, findings land in the anchor', () => {

@@ -2,7 +2,7 @@
  * SI values: prefixes, units per field, percent, temperatures, signs.
  * Prefix table: SI Brochure, 9th ed. (BIPM 2019), Table 7, plus ronna R 10²⁷, quetta Q 10³⁰,
  * ronto r 10⁻²⁷, quecto q 10⁻³⁰ from the 27th CGPM (2022), Resolution 3
- * (bipm.org/en/-/2022-12-19-si-prefixes; references.md §1, V).
+ * (bipm.org/en/-/2022-12-19-si-prefixes; docs/references.md §1, V).
  */
 import { describe, expect, test } from 'vitest';
 import { parseQuantity, readQuantity } from '../../src/core/units/si';

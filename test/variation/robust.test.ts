@@ -30,15 +30,14 @@ describe('bad input never throws and stays bounded', () => {
   });
 
   it('a mirror with no working point: sizing, corners and Monte Carlo report it', () => {
-    const t0 = Date.now();
     const spec = impossible();
     const corners = runCorners(spec, 0, 0);
     expect(corners[0]!.converged).toBe(false);
     const mc = runMonteCarlo({ spec, mirror: spec.mirrors[0]!, outputIndex: 0 }, 1000, 1);
     expect(mc.yield).toBe(0);
     expect(mc.failed).toBe(1000);
-    // Solves are bounded by the engine's per-solve budget; the whole lot stays well under 10 s.
-    expect(Date.now() - t0).toBeLessThan(10_000);
+    // Every solve is bounded by the engine's iteration and time limits (test/engine/robustness);
+    // a hang would fail through the test timeout.
   });
 
   it('an Rout no length can reach ends the search at 1 mm with a note', () => {

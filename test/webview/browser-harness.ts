@@ -39,7 +39,10 @@ function newestMtime(dir: string): number {
   return newest;
 }
 
-/** Flags from /work/shared/vscode-host.md. */
+/**
+ * Headless Chromium as root on a machine without a GPU and without network: no sandbox (root),
+ * no GPU process, and none of the background fetches (QUIC, updates, sync) that would reach out.
+ */
 export const CHROMIUM_ARGS = ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
   '--disable-background-networking', '--disable-component-update', '--disable-sync'];
 

@@ -68,7 +68,7 @@ export function bankOutput(name: string, j: number, over: Partial<MirrorReport> 
 
 export function fixtureReport(): FileReport {
   return {
-    file: '/work/specs/afe.bias.yaml', parsed: true, title: 'Halden 180 sensor bias',
+    file: '/srv/chips/afe.bias.yaml', parsed: true, title: 'Halden 180 sensor bias',
     mirrors: [tailMirror(), bankOutput('a', 0), bankOutput('b', 1, { converged: false, solveNote: 'Newton, source stepping' })],
     findings: [
       { severity: 'warning', code: 'low-margin', message: 'outc margin 50 mV < 100 mV', path: ['mirrors', 0, 'devices', 'outc'], range: r(14, 6, 4) },

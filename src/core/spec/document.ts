@@ -35,6 +35,14 @@ function sizeText(n: number): string {
   return n >= 1 << 20 ? `${(n / (1 << 20)).toFixed(1)} MB` : `${Math.ceil(n / 1024)} KB`;
 }
 
+/**
+ * The `too-large` message for a spec of `size` characters; `over` when a reader stopped at the
+ * limit without reaching the end (the CLI on a stream or a device).
+ */
+export function tooLargeMessage(size: number, over = false): string {
+  return `the file is ${over ? 'over ' : ''}${sizeText(size)}; qpoint reads bias specs up to ${sizeText(SPEC_LIMITS.maxChars)} — split it into several files`;
+}
+
 /** Duplicate keys: the later one wins in the data, so it is the one flagged. */
 export function duplicateKeys(doc: Document, lines: LineIndex, out: Finding[]): void {
   const stack: { node: unknown; depth: number }[] = [{ node: doc.contents, depth: 0 }];
@@ -111,8 +119,7 @@ function flowTooDeep(text: string, max: number): number {
 
 export function readDocument(text: string, lines: LineIndex): ReadDocument {
   if (text.length > SPEC_LIMITS.maxChars) {
-    return { parsed: false, findings: [at(lines, 0, 0, 'too-large',
-      `the file is ${sizeText(text.length)}; qpoint reads bias specs up to ${sizeText(SPEC_LIMITS.maxChars)} — split it into several files`)] };
+    return { parsed: false, findings: [at(lines, 0, 0, 'too-large', tooLargeMessage(text.length))] };
   }
   // A carriage return alone ends a line for YAML and for editors (LSP), but not for the line
   // arithmetic of every tool that reads the positions back; such files come from old editors or

@@ -5,7 +5,7 @@
  * same quotes, and in JSON a value that is not valid JSON is double-quoted.
  */
 import { isAlias, isMap, isScalar, parseDocument, Scalar } from 'yaml';
-import type { Document, Pair, YAMLMap } from 'yaml';
+import type { Document, YAMLMap } from 'yaml';
 import type { SpecPath, TextEdit } from '../types';
 import type { ParsedSpec } from './index';
 import { LineIndex } from './positions';
@@ -52,10 +52,6 @@ export function replaceValueEdit(p: ParsedSpec, path: SpecPath, newText: string)
   // An empty value (`w:`) gets the space YAML needs after the colon.
   if (start === end && p.text[start - 1] === ':') text = ` ${text}`;
   return { range: src.lines.range(start, end), newText: text };
-}
-
-function keyOf(pair: Pair): string | undefined {
-  return isScalar(pair.key) ? String(pair.key.value) : undefined;
 }
 
 /** Offset just past the last non-space character before `end`. */

@@ -11,7 +11,7 @@
  * (the `- ` before the first key is blanked to spaces, so columns and offsets stay). Anything else
  * answers undefined and the caller re-reads the whole text.
  */
-import { isAlias, isMap, isSeq, parseDocument, visit } from 'yaml';
+import { isMap, isSeq, parseDocument, visit } from 'yaml';
 import type { Document } from 'yaml';
 import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';

@@ -3,7 +3,7 @@
  * @vscode/test-electron elsewhere) with the real `vscode` API, on copies of the fixture specs in
  * the workspace folder. The host calls `run()`; a rejected promise is exit code 1.
  *
- * External checks: the Razavi level-1 device D of references.md (set from memory, values
+ * External checks: the Razavi level-1 device D of docs/references.md (set from memory, values
  * computed there from the square law): diode VGS = 1.067 234 V, IOUT at VOUT = 1.5 V =
  * 103.9103 µA, so the ratio error is +3.91 % (§9); VDSsat = VOV = 0.367 V, so VOUT = 0.3 V puts
  * the output device in triode (design §3). Expected finding positions come from the fixtures'
@@ -252,7 +252,7 @@ async function suite(folder: vscode.Uri): Promise<void> {
   });
 
   let dDoc: vscode.TextDocument | undefined;
-  await check('hover shows the operating point of the D device (references.md §9)', async () => {
+  await check('hover shows the operating point of the D device (docs/references.md §9)', async () => {
     dDoc = await vscode.workspace.openTextDocument(dUri);
     await vscode.window.showTextDocument(dDoc);
     const report = await waitFor('report of d-check', () => qp.lastReport(dUri), 20_000, [qp.onDidUpdate]);
@@ -470,7 +470,7 @@ async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode
     // 10⁶ samples × 9 outputs of the example: many seconds of work.
     const long = vscode.commands.executeCommand<MonteCarloSummary | undefined>('qpoint.runMonteCarlo', { uri: faulty.uri, samples: 1_000_000, seed: 1, token: cts.token });
     await waitFor('the Monte Carlo thread to start', () => qp.monteCarloBusy(), 10_000, []);
-    await new Promise((r) => setTimeout(r, 1_000));  // long enough for the worker to report samples
+    await waitFor('the worker to report samples', () => (qp.monteCarloProgress()?.done ?? 0) > 0, 10_000, []);
     const t0 = Date.now();
     cts.cancel();
     const summary = await long;
