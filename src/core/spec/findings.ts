@@ -25,7 +25,6 @@ const RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
 export class FindingSink {
   private readonly kept: Finding[] = [];
   private readonly seen = new Set<string>();
-  private readonly paths = new Set<string>();
   private readonly perCode = new Map<string, number>();
   private readonly overflow = new Map<string, Overflow>();
   private errors = 0;
@@ -45,7 +44,6 @@ export class FindingSink {
     const key = `${once ?? code}@${p}`;
     if (this.seen.has(key)) return;
     this.seen.add(key);
-    this.paths.add(p);
     if (severity === 'error') {
       this.errors++;
       if (path[0] === 'mirrors' && typeof path[1] === 'number') this.errorMirrors.add(path[1]);
@@ -101,7 +99,9 @@ export class FindingSink {
   /** True when a finding with this fact (or, without `once`, any finding) was made at path. */
   has(path: SpecPath, once?: string): boolean {
     const p = JSON.stringify(path);
-    return once ? this.seen.has(`${once}@${p}`) : this.paths.has(p);
+    if (once) return this.seen.has(`${once}@${p}`);
+    for (const k of this.seen) if (k.endsWith(`@${p}`)) return true;
+    return false;
   }
 
   get errorCount(): number {
