@@ -232,7 +232,7 @@ const HOSTILE_MIRROR = (w: string, name = 'a') =>
  * bound; the reproducers of the issue (40 000 keys, 60 000 mirrors) are in test/spec/bounded.test.ts.
  */
 export const arbManyFindings: fc.Arbitrary<FuzzInput> = fc.record({
-  n: fc.integer({ min: 90, max: 2000 }),
+  n: fc.integer({ min: 90, max: 1000 }),
   kind: fc.constantFrom('unknown-key', 'bad-name', 'empty-mirror', 'unknown-param', 'duplicate-key', 'unknown-role'),
 }).map(({ n, kind }) => {
   let body = '';
@@ -251,7 +251,7 @@ export const arbManyFindings: fc.Arbitrary<FuzzInput> = fc.record({
 /** Long param chains and loops (issue 14): an iterative, linear dependency walk; each param of a
  *  loop reported once, with a short message. `back`: every param also uses p0. */
 export const arbParamGraphs: fc.Arbitrary<FuzzInput> = fc.record({
-  n: fc.integer({ min: 2, max: 1200 }),
+  n: fc.integer({ min: 2, max: 800 }),
   shape: fc.constantFrom('chain', 'loop', 'loop-back', 'self'),
   reversed: fc.boolean(),
 }).map(({ n, shape, reversed }) => {
