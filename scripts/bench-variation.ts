@@ -7,7 +7,7 @@ import { runCorners } from '../src/core/variation/corners';
 import { runMonteCarlo } from '../src/core/variation/montecarlo';
 import { applyDesignTargets } from '../src/core/design/auto-size';
 import type { CornerSpec, DeviceSize, ResolvedSpec, TemplateKind, TemplateMirror } from '../src/core/types';
-import { OUTPUT_ROLES, ROLES } from '../src/core/types';
+import { KINDS, referenceRoles } from '../src/core/kinds/index';
 import { HALDEN_NMOS, HALDEN_PMOS } from './spec-texts';
 
 const CORNERS: CornerSpec[] = [
@@ -18,8 +18,8 @@ const CORNERS: CornerSpec[] = [
 ];
 
 function templateMirror(kind: TemplateKind, size: DeviceSize, vout: number, extra: Partial<TemplateMirror> = {}): TemplateMirror {
-  const out = OUTPUT_ROLES[kind];
-  const ref = ROLES[kind].filter((r) => !out.includes(r));
+  const out = KINDS[kind].outputRoles;
+  const ref = referenceRoles(kind);
   return {
     kind, name: kind, type: 'nmos', input: { kind: 'current', i: 10e-6 },
     devices: Object.fromEntries(ref.map((r) => [r, { ...size }])),

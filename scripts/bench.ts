@@ -34,18 +34,17 @@ import type {
   DeviceSize, MirrorOutput, NetlistMirror, Polarity, ResolvedMirror, ResolvedSpec,
   TemplateKind, TemplateMirror,
 } from '../src/core/types';
-import { OUTPUT_ROLES, ROLES } from '../src/core/types';
+import { KINDS, referenceRoles, TEMPLATE_KINDS } from '../src/core/kinds/index';
 
 const VDD = 1.8;
-const KINDS: TemplateKind[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'];
 
 function size(w: number, l: number, m = 1): DeviceSize { return { w, l, m, bulk: 'rail' }; }
 
 function templateMirror(
   index: number, kind: TemplateKind, type: Polarity, iin: number, unit: DeviceSize, mOut: number, vout: number,
 ): TemplateMirror {
-  const outRoles = OUTPUT_ROLES[kind];
-  const refRoles = ROLES[kind].filter((r) => !outRoles.includes(r));
+  const outRoles = KINDS[kind].outputRoles;
+  const refRoles = referenceRoles(kind);
   const name = `${kind}-${type}-${index}`;
   const output: MirrorOutput = {
     name, output: { v: vout }, require: {}, path: ['mirrors', index],
@@ -84,7 +83,7 @@ function spec(mirrors: ResolvedMirror[]): ResolvedSpec {
 function representative(): ResolvedSpec {
   const mirrors: ResolvedMirror[] = [];
   for (const type of ['nmos', 'pmos'] as const) {
-    for (const kind of KINDS) {
+    for (const kind of TEMPLATE_KINDS) {
       const vout = type === 'nmos' ? 1.2 : 0.6;
       mirrors.push(templateMirror(mirrors.length, kind, type, 20e-6, size(4e-6, 1e-6), 2, vout));
     }
@@ -99,7 +98,7 @@ function generated(n: number): ResolvedSpec {
   const rnd = (): number => { seed = (seed * 1103515245 + 12345) % 2147483648; return seed / 2147483648; };
   const mirrors: ResolvedMirror[] = [];
   for (let i = 0; i < n; i++) {
-    const kind = KINDS[i % KINDS.length]!;
+    const kind = TEMPLATE_KINDS[i % TEMPLATE_KINDS.length]!;
     const type: Polarity = i % 2 === 0 ? 'nmos' : 'pmos';
     const iin = 5e-6 * (1 + 9 * rnd());
     const l = (0.5 + 2 * rnd()) * 1e-6;

@@ -3,6 +3,7 @@
  * Units: SI base units throughout (A, V, m, Ω, S, K) unless a doc comment says otherwise.
  * Positions are 0-based lines and UTF-16 characters, as in the Language Server Protocol.
  */
+import type { MirrorKind, TemplateKind } from './kinds/names';
 
 // ───────────────────────────── positions, findings, edits ─────────────────────────────
 
@@ -42,8 +43,8 @@ export interface Finding {
 // ───────────────────────────── resolved spec (after elaboration) ─────────────────────────────
 
 export type Polarity = 'nmos' | 'pmos';
-export type MirrorKind = 'simple' | 'cascode' | 'wide-swing' | 'wilson' | 'wilson-balanced' | 'netlist';
-export type TemplateKind = Exclude<MirrorKind, 'netlist'>;
+/** The kinds are described once, in src/core/kinds/. */
+export type { MirrorKind, TemplateKind };
 export type ModelKind = 'square-law' | 'ekv';
 
 /** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
@@ -117,29 +118,11 @@ export type DesignTarget =
   | { kind: 'gmid'; value: number }
   | { kind: 'ic'; value: number };
 
-/** Roles per kind (design §2). */
-export const ROLES: Record<TemplateKind, readonly string[]> = {
-  simple: ['ref', 'out'],
-  cascode: ['ref', 'refc', 'out', 'outc'],
-  'wide-swing': ['ref', 'refc', 'out', 'outc'],
-  wilson: ['in', 'diode', 'out'],
-  'wilson-balanced': ['in', 'diode', 'out', 'bal'],
-};
-
-/** Roles that belong to each output of a bias bank (the rest form the shared reference). */
-export const OUTPUT_ROLES: Record<TemplateKind, readonly string[]> = {
-  simple: ['out'],
-  cascode: ['out', 'outc'],
-  'wide-swing': ['out', 'outc'],
-  wilson: ['out'],
-  'wilson-balanced': ['out'],
-};
-
 /** One measured output of a mirror. A mirror without `outputs:` has exactly one, named like
  *  the mirror, whose path is the mirror's path. */
 export interface MirrorOutput {
   name: string;
-  /** Sizes of this output's roles (OUTPUT_ROLES of the kind), every default filled. */
+  /** Sizes of this output's roles (the kind's outputRoles), every default filled. */
   devices: Record<string, DeviceSize>;
   output: OutputSpec;
   require: Requirements;
@@ -152,7 +135,7 @@ export interface TemplateMirror {
   name: string;
   type: Polarity;
   input: InputSource;
-  /** Sizes of the reference roles (ROLES minus OUTPUT_ROLES), every default filled. */
+  /** Sizes of the reference roles (the kind's roles minus its outputRoles), every default filled. */
   devices: Record<string, DeviceSize>;
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;

@@ -10,6 +10,7 @@ import type {
   Anchor, CornerResult, CurvePoint, DeviceReport, FileReport, Finding, MirrorReport,
   MonteCarloResult, Position, Range, Requirements, SpecPath,
 } from '../core/types';
+import { MIRROR_KINDS } from '../core/kinds/names';
 
 // ───────────────────────────── host → page ─────────────────────────────
 
@@ -86,7 +87,7 @@ export function describeMessage(m: unknown, max = 200): string {
 // ───────────────────────────── guards: report data ─────────────────────────────
 // Deep enough that the page can render whatever passes without a type error.
 
-const KINDS: readonly string[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist'];
+const KINDS: readonly string[] = MIRROR_KINDS;
 const POLARITIES: readonly string[] = ['nmos', 'pmos'];
 const SEVERITIES: readonly string[] = ['error', 'warning', 'info'];
 const REGIONS: readonly string[] = ['cutoff', 'triode', 'saturation'];

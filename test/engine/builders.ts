@@ -6,7 +6,7 @@ import type {
   DeviceParams, DeviceSize, InputSource, ModelKind, NetlistMirror, Polarity, ResolvedMirror,
   ResolvedSpec, TemplateKind, TemplateMirror,
 } from '../../src/core/types';
-import { OUTPUT_ROLES, ROLES } from '../../src/core/types';
+import { KINDS, referenceRoles } from '../../src/core/kinds/index';
 
 /** Razavi, Design of Analog CMOS ICs, Table 2.1 level-1 0.5 µm set (from memory, references §2 "D"). */
 export const RAZAVI_N: DeviceParams = { kp: 134e-6, vt0: 0.7, lambda: 0.1, gamma: 0.45, phi: 0.9, n: 1.3, tcv: 0, bex: -1.5 };
@@ -55,8 +55,8 @@ export function template(kind: TemplateKind, o: TemplateOptions): TemplateMirror
   const unit = o.size ?? sz(10e-6, 1e-6);
   const sizeOf = (role: string, extra?: Record<string, Partial<DeviceSize>>): DeviceSize =>
     ({ ...unit, ...o.devices?.[role], ...extra?.[role] });
-  const outputRoles = OUTPUT_ROLES[kind];
-  const refRoles = ROLES[kind].filter((r) => !outputRoles.includes(r));
+  const outputRoles = KINDS[kind].outputRoles;
+  const refRoles = referenceRoles(kind);
   const input: InputSource = typeof o.input === 'object'
     ? { kind: 'resistor', r: o.input.resistor } : { kind: 'current', i: o.input ?? 100e-6 };
   const name = o.name ?? kind;

@@ -6,7 +6,7 @@ import type {
   CornerSpec, DesignTarget, DeviceParams, DeviceSize, ModelKind, NetlistMirror, Polarity, Requirements,
   ResolvedMirror, ResolvedSpec, TemplateKind, TemplateMirror,
 } from '../../src/core/types';
-import { OUTPUT_ROLES, ROLES } from '../../src/core/types';
+import { KINDS, referenceRoles } from '../../src/core/kinds/index';
 
 /** Razavi, Design of Analog CMOS ICs, Table 2.1 level-1 0.5 µm set (from memory, references §2
  *  "D"), with Pelgrom coefficients of the order references §7 gives (AVT 5 mV·µm, Aβ 1 %·µm). */
@@ -73,8 +73,8 @@ export function mirror(kind: TemplateKind, o: MirrorOptions): TemplateMirror {
   const unit = o.size ?? sz(10e-6, 1e-6);
   const sizeOf = (role: string, extra?: Record<string, Partial<DeviceSize>>): DeviceSize =>
     ({ ...unit, ...o.devices?.[role], ...extra?.[role] });
-  const outputRoles = OUTPUT_ROLES[kind];
-  const refRoles = ROLES[kind].filter((r) => !outputRoles.includes(r));
+  const outputRoles = KINDS[kind].outputRoles;
+  const refRoles = referenceRoles(kind);
   const name = o.name ?? kind;
   const outputs = o.outputs
     ? o.outputs.map((x, j) => ({

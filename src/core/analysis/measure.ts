@@ -4,6 +4,7 @@
  */
 import { outputAdjoint, outputConductance, outputSensitivities } from '../circuit/smallSignal';
 import { idealRatio, isBank } from '../circuit/templates';
+import { takesVbias } from '../kinds/index';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { findCompliance } from './compliance';
@@ -48,7 +49,7 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
 }
 
 export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
-  return t.mirror.kind === 'wide-swing' ? resolveVbias(t.spec, t.mirror) : undefined;
+  return takesVbias(t.mirror) ? resolveVbias(t.spec, t.mirror) : undefined;
 }
 
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
@@ -74,10 +75,10 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   // A wide-swing pick still due is made on this very circuit; its last solve is the nominal
   // point, so the nominal solve below starts there.
   const m = t.mirror;
-  let vb = m.kind === 'wide-swing' ? knownVbias(t.spec, m) : undefined;
+  let vb = takesVbias(m) ? knownVbias(t.spec, m) : undefined;
   const mc = buildMirror(t, vout, vb?.vbias);
   let warm: Float64Array | undefined;
-  if (m.kind === 'wide-swing' && !vb) {
+  if (takesVbias(m) && !vb) {
     vb = pickVbiasOn(t.spec, m, mc);
     warm = mc.ws.v.slice();
   }

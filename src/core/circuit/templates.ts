@@ -1,48 +1,20 @@
 /**
- * Topology templates (design §2) for every kind in both polarities. Node names follow the
- * design's table: simple `a`; cascode `a` `b` `c`; wide-swing `a` `b` `c` `vbias`; wilson `x`
- * `y`; wilson-balanced `x` `y` `z`; the output `out`. In a bias bank each output gets its own
- * `<output>.c` and `<output>.out`, its devices are named `<output>.<role>`, and every output
- * other than the measured one is held at its own nominal voltage.
+ * Topology templates (design §2) for every kind in both polarities, wired from the kind's
+ * connections (src/core/kinds/): node names are the kinds' own (simple `a`; cascode `a` `b` `c`;
+ * wide-swing `a` `b` `c` `vbias`; wilson `x` `y`; wilson-balanced `x` `y` `z`), the output is
+ * `out`. In a bias bank each output gets its own `<output>.c` and `<output>.out`, its devices are
+ * named `<output>.<role>`, and every output other than the measured one is held at its own
+ * nominal voltage. The starting guess for Newton is written per kind (`guessNodes`).
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
-import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateKind, TemplateMirror } from '../types';
-import { OUTPUT_ROLES } from '../types';
+import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
+import { assertNever } from '../assert-never';
+import { KINDS, type Connection } from '../kinds/index';
 import { CircuitBuilder, type MosInstance } from './circuit';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
 export interface PerturbationLike { dvt: Record<string, number>; dbeta: Record<string, number> }
-
-interface Conn { d: string; g: string; s: string }
-
-/** Reference-side connections per kind; R is the mirror's own rail. */
-const REFERENCE: Record<TemplateKind, Record<string, Conn>> = {
-  simple: { ref: { d: 'a', g: 'a', s: 'R' } },
-  cascode: { ref: { d: 'a', g: 'a', s: 'R' }, refc: { d: 'b', g: 'b', s: 'a' } },
-  'wide-swing': { refc: { d: 'b', g: 'vbias', s: 'a' }, ref: { d: 'a', g: 'b', s: 'R' } },
-  wilson: { in: { d: 'x', g: 'y', s: 'R' }, diode: { d: 'y', g: 'y', s: 'R' } },
-  'wilson-balanced': { in: { d: 'z', g: 'y', s: 'R' }, diode: { d: 'y', g: 'y', s: 'R' }, bal: { d: 'x', g: 'x', s: 'z' } },
-};
-
-/** Output-side connections; O is the output node, C the output's internal cascode node. */
-const OUTPUT: Record<TemplateKind, Record<string, Conn>> = {
-  simple: { out: { d: 'O', g: 'a', s: 'R' } },
-  cascode: { out: { d: 'C', g: 'a', s: 'R' }, outc: { d: 'O', g: 'b', s: 'C' } },
-  'wide-swing': { out: { d: 'C', g: 'b', s: 'R' }, outc: { d: 'O', g: 'vbias', s: 'C' } },
-  wilson: { out: { d: 'O', g: 'x', s: 'y' } },
-  'wilson-balanced': { out: { d: 'O', g: 'x', s: 'y' } },
-};
-
-const INPUT_NODE: Record<TemplateKind, string> = {
-  simple: 'a', cascode: 'b', 'wide-swing': 'b', wilson: 'x', 'wilson-balanced': 'x',
-};
-
-/** The pair whose m·W/L ratio is the ideal mirror ratio: [reference, output]. */
-const PAIR: Record<TemplateKind, [string, string]> = {
-  simple: ['ref', 'out'], cascode: ['ref', 'out'], 'wide-swing': ['ref', 'out'],
-  wilson: ['in', 'diode'], 'wilson-balanced': ['in', 'diode'],
-};
 
 /** Whether the mirror reports bank-style names (it was written with `outputs:`). */
 export function isBank(m: TemplateMirror): boolean {
@@ -53,7 +25,7 @@ function area(s: DeviceSize): number { return s.m * s.w / s.l; }
 
 /** Ideal ratio of the pair for output j. */
 export function idealRatio(m: TemplateMirror, j: number): number | undefined {
-  const [a, b] = PAIR[m.kind];
+  const { ref: a, out: b } = KINDS[m.kind].pair;
   const out = m.outputs[j];
   const sa = m.devices[a] ?? out?.devices[a];
   const sb = out?.devices[b] ?? m.devices[b];
@@ -73,15 +45,16 @@ export function buildTemplate(
   const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
+  const kind = KINDS[m.kind];
   const b = new CircuitBuilder();
   b.hold('vdd', vdd);
   b.hold('vss', vss);
   const R = sign > 0 ? 'vss' : 'vdd';
-  if (m.kind === 'wide-swing') b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
+  if (kind.vbias) b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
 
   let count = 0;
   const byRole: Record<string, number> = {};
-  const add = (name: string, role: string, size: DeviceSize, conn: Conn, map: (n: string) => string, measured: boolean): number => {
+  const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean): number => {
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${name}: ${problem}`);
     const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
@@ -91,7 +64,7 @@ export function buildTemplate(
   };
 
   const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
-  for (const [role, conn] of Object.entries(REFERENCE[m.kind])) {
+  for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
     byRole[role] = add(role, role, size, conn, refMap, true);
@@ -104,11 +77,11 @@ export function buildTemplate(
     const outName = `${prefix}out`;
     b.hold(outName, j === outputIndex ? vout : o.output.v);
     outNodes.push(outName);
-    cNodes.push(OUTPUT[m.kind].outc ? `${prefix}c` : undefined);
+    cNodes.push(Object.values(kind.output).some((x) => x.d === 'C' || x.s === 'C') ? `${prefix}c` : undefined);
     const map = (n: string): string =>
       n === 'O' ? outName : n === 'C' ? b.node(`${prefix}c`) : refMap(n);
-    for (const role of OUTPUT_ROLES[m.kind]) {
-      const conn = OUTPUT[m.kind][role];
+    for (const role of kind.outputRoles) {
+      const conn = kind.output[role];
       const size = o.devices[role] ?? m.devices[role];
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
       const k = add(`${prefix}${role}`, role, size, conn, map, j === outputIndex);
@@ -116,7 +89,7 @@ export function buildTemplate(
     }
   });
 
-  const input = INPUT_NODE[m.kind];
+  const input = kind.inputNode;
   let iin: (v: Float64Array) => number;
   let resistorIndex = -1;
   if (m.input.kind === 'current') {
@@ -134,12 +107,12 @@ export function buildTemplate(
   const c = b.build(measuredOut, sign, vss, vdd);
   const ws = makeWorkspace(c);
   const index = (name: string): number => c.nodeNames.indexOf(name);
-  const [pa, pb] = PAIR[m.kind];
+  const { ref: pa, out: pb } = kind.pair;
 
   // Everything the guess needs that does not change between solves, gathered once.
   const devByName = new Map(c.mos.map((x) => [x.name, x] as const));
   const outIdx = outNodes.map((n) => index(n));
-  const vbIdx = m.kind === 'wide-swing' ? index('vbias') : -1;
+  const vbIdx = kind.vbias ? index('vbias') : -1;
   const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
   const freeNames = c.nodeNames.slice(0, c.nFree);
   const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {} };
@@ -174,7 +147,7 @@ export function buildTemplate(
     iin: () => iin(ws.v),
     pair: pairRef !== undefined && pairOut !== undefined ? { ref: pairRef, out: pairOut } : undefined,
     byRole,
-    vbiasNode: m.kind === 'wide-swing' ? index('vbias') : undefined,
+    vbiasNode: kind.vbias ? index('vbias') : undefined,
   };
 }
 
@@ -256,5 +229,7 @@ function guessNodes(g: GuessContext, i: number): void {
       }
       break;
     }
+    default:
+      assertNever(m.kind);
   }
 }

@@ -4,7 +4,7 @@
  * current, and `l: auto` is the shortest length that meets every output's `require.rout`.
  *
  * Currents a device is sized for:
- * - input-branch roles (ref, refc, in, bal): the input current, from the solve (so a resistor
+ * - input-stack roles (ref, refc, in, bal): the input current, from the solve (so a resistor
  *   input is handled like an ideal one);
  * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin; without
  *   require.ratio it copies the reference's W/L per finger instead (the multiplier m carries
@@ -19,10 +19,11 @@
  * wmin is raised to wmin (lengthening L at the same W/L when L is auto too).
  */
 import type {
-  DesignTarget, DeviceParams, DeviceSize, ResolvedSpec, SpecPath, TemplateKind, TemplateMirror,
+  DesignTarget, DeviceParams, DeviceSize, ResolvedSpec, SpecPath, TemplateMirror,
 } from '../types';
 import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
 import { isBank } from '../circuit/templates';
+import { KINDS } from '../kinds/index';
 import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
 import { aspectForTarget } from './targets';
 import { snapLength } from './snap';
@@ -48,24 +49,6 @@ export interface SizedDevice {
   /** Why the target is not met exactly (wmin clamp, unreachable target or Rout). */
   note?: string;
 }
-
-/** The mirror pair of each kind: ratioIdeal is pair.out over pair.ref (design §4). */
-export const PAIR: Record<TemplateKind, { ref: string; out: string }> = {
-  simple: { ref: 'ref', out: 'out' },
-  cascode: { ref: 'ref', out: 'out' },
-  'wide-swing': { ref: 'ref', out: 'out' },
-  wilson: { ref: 'in', out: 'diode' },
-  'wilson-balanced': { ref: 'in', out: 'diode' },
-};
-
-/** Roles that carry the input current (design §2 connections). */
-export const INPUT_BRANCH: Record<TemplateKind, readonly string[]> = {
-  simple: ['ref'],
-  cascode: ['ref', 'refc'],
-  'wide-swing': ['ref', 'refc'],
-  wilson: ['in'],
-  'wilson-balanced': ['in', 'bal'],
-};
 
 const MAX_ROUNDS = 12;
 const W_TOL = 1e-6;
@@ -183,7 +166,7 @@ function withSlots(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: 
 function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): number {
   const required = m.outputs[outputIndex]?.require.ratio;
   if (required !== undefined && required > 0) return required;
-  const pair = PAIR[m.kind];
+  const pair = KINDS[m.kind].pair;
   const find = (role: string): Slot | undefined =>
     slots.find((s) => s.role === role && (s.output === undefined || s.output === outputIndex));
   const ref = find(pair.ref), out = find(pair.out);
@@ -199,8 +182,8 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
   const proc = spec.process;
   const params = proc[m.type];
   const ctxT = { model: proc.model, kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
-  const inputBranch = INPUT_BRANCH[m.kind];
-  const pairOut = PAIR[m.kind].out;
+  const inputBranch = KINDS[m.kind].inputStack;
+  const pairOut = KINDS[m.kind].pair.out;
   const bank = isBank(m);
 
   // Lengths first, so every width is computed for the length that will be written.
@@ -215,7 +198,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
   }
   // Without require.ratio the output device of the pair copies the reference's W/L per finger
   // (the multiplier m carries the ratio, as with unit devices in a layout).
-  const pairRef = PAIR[m.kind].ref;
+  const pairRef = KINDS[m.kind].pair.ref;
   const copiesRef = (s: Slot): Slot | undefined => {
     if (s.role !== pairOut || (m.outputs[s.output ?? 0]?.require.ratio ?? 0) > 0) return undefined;
     return slots.find((x) => x.role === pairRef && (x.output === undefined || x.output === s.output));

@@ -8,7 +8,7 @@ import type {
   DeviceReport, DeviceSize, MirrorOutput, MirrorReport, Range, Requirements, ResolvedMirror,
   ResolvedSpec, SpecPath,
 } from '../types';
-import { OUTPUT_ROLES } from '../types';
+import { KINDS } from '../kinds/index';
 import type { ParsedSpec } from '../spec/index';
 import type { DeviceRef, SizeKey } from '../sizing/devices';
 import { mirrorAt } from '../mirror-at';
@@ -47,7 +47,7 @@ export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefin
 export function refOf(site: Site, d: DeviceReport): DeviceRef {
   const m = site.mirror;
   if (m.kind === 'netlist') return { mirror: site.mirrorIndex, role: d.name };
-  if (!OUTPUT_ROLES[m.kind].includes(d.role)) return { mirror: site.mirrorIndex, role: d.role };
+  if (!KINDS[m.kind].outputRoles.includes(d.role)) return { mirror: site.mirrorIndex, role: d.role };
   const dot = d.name.lastIndexOf('.');
   if (dot > 0) {
     const j = m.outputs.findIndex((o) => o.name === d.name.slice(0, dot));

@@ -6,11 +6,12 @@
 import type { ResolvedSpec } from '../types';
 import { measure, withMirror } from './devices';
 import { mirrorAt } from '../mirror-at';
+import { takesVbias } from '../kinds/index';
 
 /** The vbias qpoint would pick for this wide-swing mirror (absolute V), or undefined. */
 export function pickedVbias(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): number | undefined {
   const m = mirrorAt(spec, mirrorIndex);
-  if (!m || m.kind !== 'wide-swing') return undefined;
+  if (!m || !takesVbias(m)) return undefined;
   const { vbias: _written, ...rest } = m;
   void _written;
   const report = measure(withMirror(spec, mirrorIndex, rest), mirrorIndex, outputIndex);
@@ -20,6 +21,6 @@ export function pickedVbias(spec: ResolvedSpec, mirrorIndex: number, outputIndex
 /** The spec with a given vbias on a wide-swing mirror. */
 export function withVbias(spec: ResolvedSpec, mirrorIndex: number, vbias: number): ResolvedSpec {
   const m = mirrorAt(spec, mirrorIndex);
-  if (!m || m.kind !== 'wide-swing') return spec;
+  if (!m || !takesVbias(m)) return spec;
   return withMirror(spec, mirrorIndex, { ...m, vbias });
 }

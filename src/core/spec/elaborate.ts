@@ -3,7 +3,8 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, MirrorKind, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, TemplateKind } from '../types';
+import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
+import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
@@ -12,8 +13,6 @@ import { isRecord, resolveParams } from './params';
 import { readLimits, readProcess, readSupplies } from './process';
 import { missing, readEnum, readMap, readString } from './read';
 import { typeName } from './values';
-
-const KINDS: readonly MirrorKind[] = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist'];
 
 /**
  * Mirrors already elaborated from the same items: a re-check after a fix to mirror `except` reads
@@ -65,9 +64,9 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     const m = readMap(sink, item, path, 'a mapping { name, kind, type, … }');
     if (!m) return;
     if (m.name === undefined) missing(sink, path, 'name', ' (mirror name)');
-    if (m.kind === undefined) missing(sink, path, 'kind', ` (one of ${KINDS.join(', ')})`);
+    if (m.kind === undefined) missing(sink, path, 'kind', ` (one of ${MIRROR_KINDS.join(', ')})`);
     const name = m.name === undefined ? undefined : readString(sink, m.name, [...path, 'name']);
-    const kind = m.kind === undefined ? undefined : readEnum<MirrorKind>(sink, m.kind, [...path, 'kind'], KINDS);
+    const kind = m.kind === undefined ? undefined : readEnum<MirrorKind>(sink, m.kind, [...path, 'kind'], MIRROR_KINDS);
     if (m.type === undefined && kind !== 'netlist') missing(sink, path, 'type', ' (nmos or pmos)');
     const type = m.type === undefined ? undefined : readEnum<Polarity>(sink, m.type, [...path, 'type'], ['nmos', 'pmos']);
     if (name !== undefined) {
@@ -86,7 +85,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     }
     if (!type) return;
     if (!used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind: kind as TemplateKind, type }, proc?.[type], supplies);
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, proc?.[type], supplies);
     if (tm) mirrors.push(tm);
   });
 

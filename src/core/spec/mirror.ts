@@ -1,7 +1,7 @@
-/** One template mirror (simple, cascode, wide-swing, wilson, wilson-balanced) → TemplateMirror. */
-import { OUTPUT_ROLES, ROLES } from '../types';
+/** One template mirror (any kind of src/core/kinds/) → TemplateMirror. */
+import { BANK_KINDS, KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/index';
 import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
-  Requirements, SpecPath, Supplies, TemplateKind, TemplateMirror } from '../types';
+  Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
 import { formatSI } from '../units/format';
 import { isRecord } from './params';
 import { misplaced, missing, readMap, readString } from './read';
@@ -12,7 +12,6 @@ import { didYouMean } from './suggest';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
-const BANK_KINDS: readonly TemplateKind[] = ['simple', 'cascode', 'wide-swing'];
 const NETLIST_KEYS = ['currents', 'voltages', 'resistors', 'pair'];
 
 export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
@@ -99,7 +98,7 @@ function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: T
   for (const role of Object.keys(d)) {
     const at = [...path, role];
     if (!allowed.includes(role)) {
-      const shared = bank && ROLES[kind].includes(role);
+      const shared = bank && KINDS[kind].roles.includes(role);
       const msg = shared
         ? `\`${role}\` belongs to the shared reference of the bank; set it in the mirror's \`devices\``
         : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${didYouMean(role, allowed)}`;
@@ -133,16 +132,17 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   const sink = scope.sink;
   const before = sink.errorCount;
   for (const k of NETLIST_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` belongs to netlist mirrors (kind: netlist)`);
-  if (m.vbias !== undefined && kind !== 'wide-swing') misplaced(sink, [...path, 'vbias'], '`vbias` applies only to wide-swing mirrors (the cascode gate voltage)');
-  if (m.outputs !== undefined && !BANK_KINDS.includes(kind)) misplaced(sink, [...path, 'outputs'], `\`outputs\` (bias banks) applies to ${BANK_KINDS.join(', ')} mirrors`);
+  const spec = KINDS[kind];
+  if (m.vbias !== undefined && !spec.vbias) misplaced(sink, [...path, 'vbias'], `\`vbias\` applies only to ${VBIAS_KINDS.join(', ')} mirrors (the cascode gate voltage)`);
+  if (m.outputs !== undefined && !spec.bank) misplaced(sink, [...path, 'outputs'], `\`outputs\` (bias banks) applies to ${BANK_KINDS.join(', ')} mirrors`);
 
   const input = readInput(scope, m.input, [...path, 'input']);
   const design = m.design === undefined ? undefined : readDesign(scope, m.design, [...path, 'design']);
-  const vbias = m.vbias === undefined || kind !== 'wide-swing' ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
+  const vbias = m.vbias === undefined || !spec.vbias ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
   if (m.size === undefined) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
   const unit = m.size === undefined ? undefined : readSizeLayer(scope, m.size, [...path, 'size']);
-  const roles = ROLES[kind];
-  const outRoles = OUTPUT_ROLES[kind];
+  const roles = spec.roles;
+  const outRoles = spec.outputRoles;
   const mirrorLayers = readRoleLayers(scope, m.devices, [...path, 'devices'], kind, roles, false);
   const ctx: SizeContext = { scope, params, hasDesign: design !== undefined, sizePath: [...path, 'size'] };
   // Without a readable unit size the finding is already made; no role can be sized.
@@ -158,7 +158,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   const mirrorRequire = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
 
   const outputs: MirrorOutput[] = [];
-  if (m.outputs !== undefined && BANK_KINDS.includes(kind)) {
+  if (m.outputs !== undefined && spec.bank) {
     const op = [...path, 'outputs'];
     if (!Array.isArray(m.outputs) || m.outputs.length === 0) {
       sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, 'key', 'type');

@@ -4,7 +4,8 @@
  * limits.sourceHeadroom across it, and a resistor input left with less than that sets a current
  * that follows the threshold voltage rather than the resistor.
  */
-import type { ResolvedSpec, SpecPath, TemplateKind } from '../../types';
+import type { ResolvedSpec, SpecPath } from '../../types';
+import { KINDS, type TemplateKind } from '../../kinds/index';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { valueRange, type Site } from '../sites';
@@ -13,19 +14,10 @@ import type { OperatingPoint } from '../../analysis/index';
 import { widenPlans } from '../plans';
 import { amps, code, signedVolts, volts } from '../words';
 
-/** Devices between the source rail and the input node, per kind (design §2 connections). */
-const INPUT_STACK: Record<TemplateKind, string[]> = {
-  simple: ['ref'],
-  cascode: ['ref', 'refc'],
-  'wide-swing': ['ref', 'refc'],
-  wilson: ['in'],
-  'wilson-balanced': ['in', 'bal'],
-};
-
 /** Voltage left between the input node and the opposite rail, and the stack height. */
 export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: { role: string; name: string; vds: number }[]): { room: number; stack: number } | undefined {
   let stack = 0;
-  for (const role of INPUT_STACK[kind]) {
+  for (const role of KINDS[kind].inputStack) {
     const d = devices.find((x) => x.role === role && !x.name.includes('.'));
     if (!d) return undefined;
     stack += d.vds;
@@ -44,7 +36,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const resistor = m.input.kind === 'resistor';
   const path: SpecPath = resistor ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'];
   const at = valueRange(rc.parsed, path);
-  const stackNames = INPUT_STACK[m.kind].map(code).join(' + ');
+  const stackNames = KINDS[m.kind].inputStack.map(code).join(' + ');
   const message = resistor
     ? `the input resistor has only ${signedVolts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
       `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`

@@ -3,18 +3,19 @@
  * vds-mismatch (the pair's VDS difference alone moves the ratio by half the budget or more).
  */
 import type { DeviceReport, RelatedLocation } from '../../types';
+import { KINDS } from '../../kinds/index';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, kindRange, refOf, valueRange, type DeviceRef, type Site } from '../sites';
 import { balancedPlans, ratioPlans } from '../plans';
 import { code, percent, ratioText, signedPercent, volts } from '../words';
 
-/** The ratio-setting device and its partner (design §4 ratioIdeal): out/ref, or diode/in for Wilsons. */
+/** The ratio-setting device and its partner: the kind's mirror pair (design §4 ratioIdeal). */
 export function ratioPair(site: Site): { setter: string; partner: string } | undefined {
   const m = site.mirror;
   if (m.kind === 'netlist') return m.pair ? { setter: m.pair.out, partner: m.pair.ref } : undefined;
-  if (m.kind === 'wilson' || m.kind === 'wilson-balanced') return { setter: 'diode', partner: 'in' };
-  return { setter: 'out', partner: 'ref' };
+  const { ref, out } = KINDS[m.kind].pair;
+  return { setter: out, partner: ref };
 }
 
 function findRole(site: Site, role: string): DeviceReport | undefined {

@@ -9,6 +9,7 @@ import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
 import { solve } from '../../sizing/devices';
 import { pickedVbias, withVbias } from '../../sizing/vbias';
+import { takesVbias } from '../../kinds/index';
 import { vbiasPlans, widenPlans } from '../plans';
 import { code, signedVolts, volts } from '../words';
 import { formatSI } from '../../units/format';
@@ -32,7 +33,7 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
 
   // A written wide-swing vbias that the picked one would cure is the thing to change.
   const m = site.mirror;
-  if (m.kind === 'wide-swing' && m.vbias !== undefined && unsat.length > 0) {
+  if (takesVbias(m) && m.vbias !== undefined && unsat.length > 0) {
     const picked = pickedVbias(rc.spec, site.mirrorIndex, site.outputIndex);
     const cured = picked !== undefined && (() => {
       const op = solve(withVbias(rc.spec, site.mirrorIndex, picked), site.mirrorIndex, site.outputIndex);
@@ -95,7 +96,7 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
         message: `${code(d.name)} has ${volts(d.margin)} of saturation margin at Vout = ${volts(site.vout)} (VDS ${volts(d.vds)}, VDSsat ${volts(d.vdsat)}); limits.margin asks for ${volts(limits.margin)}`,
       },
       plan: function* () {
-        if (m.kind === 'wide-swing' && m.vbias !== undefined) yield* vbiasPlans(rc, site, volts(limits.margin));
+        if (takesVbias(m) && m.vbias !== undefined) yield* vbiasPlans(rc, site, volts(limits.margin));
         yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`);
       },
     });

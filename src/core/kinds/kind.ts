@@ -1,0 +1,57 @@
+/**
+ * What qpoint knows about one template mirror kind (design §2, §4): its roles, how they are
+ * wired, which devices carry the input current, the pair that sets the ideal ratio, what the
+ * spec may say about it, and its textbook output resistance. One file per kind describes it;
+ * the circuit builder, the spec reader, sizing and the rules read the description.
+ */
+
+/** Device families a kind can be built from. Every kind is MOSFET today; bipolar comes later. */
+export type DeviceFamily = 'mosfet' | 'bipolar';
+
+/**
+ * Drain, gate and source of one role, on named nodes. `R` is the mirror's own rail, `O` the
+ * output node and `C` the output's internal cascode node (both one per output of a bias bank),
+ * `vbias` the held cascode gate; any other name is an internal node of the shared reference.
+ */
+export interface Connection { d: string; g: string; s: string }
+
+/** Small-signal parameters of one device as the circuit sees them: gmb is zero for a device
+ *  whose bulk is tied to its own source (the model's ∂ID/∂VBS exists, but VBS cannot move). */
+export interface SmallSignal { gm: number; gds: number; gmb: number }
+
+/** ro of a device, NaN when it is missing or has no output conductance. */
+export function ro(d: SmallSignal | undefined): number {
+  return d && d.gds > 0 ? 1 / d.gds : NaN;
+}
+
+export interface KindSpec {
+  /** Every role, in the order the docs and messages list them. */
+  roles: readonly string[];
+  /** Roles each output of a bias bank has its own copy of; the rest form the shared reference. */
+  outputRoles: readonly string[];
+  /** Reference-side connections, in the order the devices are built (and reported). */
+  reference: Readonly<Record<string, Connection>>;
+  /** Output-side connections, one set per output. */
+  output: Readonly<Record<string, Connection>>;
+  /** The node the input current flows into. */
+  inputNode: string;
+  /** Devices between the source rail and the input node, rail first: they carry the input
+   *  current and their VDS add up to the input node's voltage. */
+  inputStack: readonly string[];
+  /** The mirror pair: ratioIdeal is m·W/L of `out` over m·W/L of `ref` (design §4). */
+  pair: { ref: string; out: string };
+  /** Takes `outputs:` (one reference driving a bias bank). */
+  bank: boolean;
+  /** Takes `vbias:` (a cascode gate held at a bias voltage, picked by qpoint when absent). */
+  vbias: boolean;
+  /** Device families the kind may be built from. */
+  families: readonly DeviceFamily[];
+  /** The textbook first-order output resistance (design §4 routApprox). */
+  rout: {
+    /** The formula as the docs print it. */
+    formula: string;
+    /** Its value from the devices' small-signal parameters by role; NaN or undefined when a
+     *  device is missing. */
+    value(byRole: Readonly<Record<string, SmallSignal | undefined>>): number | undefined;
+  };
+}

@@ -1,0 +1,19 @@
+/** Simple mirror: `ref` diode-connected on the input node, `out` on its gate. */
+import { ro, type KindSpec } from './kind';
+
+export const simple: KindSpec = {
+  roles: ['ref', 'out'],
+  outputRoles: ['out'],
+  reference: { ref: { d: 'a', g: 'a', s: 'R' } },
+  output: { out: { d: 'O', g: 'a', s: 'R' } },
+  inputNode: 'a',
+  inputStack: ['ref'],
+  pair: { ref: 'ref', out: 'out' },
+  bank: true,
+  vbias: false,
+  families: ['mosfet'],
+  rout: {
+    formula: '1/gds_out',
+    value: ({ out }) => ro(out),
+  },
+};
