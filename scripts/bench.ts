@@ -6,6 +6,8 @@
  *            clean and with faults: as fast as possible (it runs on every keystroke)
  *   cli      `node dist/cli.js check` on a clean 500-mirror file ≤ 150 ms including Node start-up
  *   mc       10 000 Monte Carlo samples of a cascode ≤ 100 ms, single-threaded
+ *   netlist  a tree of 1 000 linked mirror stages (4 002 devices) as one Newton system: shown,
+ *            no budget yet (the bias networks to come aim at < 100 ms for such a tree)
  *   bundle   dist/extension.js minified (--production) ≤ 1.5 MB
  * plus the parse time of a file at the size limit (512 KiB, < 1 s).
  *
@@ -24,6 +26,7 @@ import { createRequire } from 'node:module';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { analyzeSpec } from '../src/core/analysis/index';
+import { buildMirror, solveMirror } from '../src/core/analysis/solve';
 import { analyzeText } from '../src/core/analyze';
 import { parseSpec } from '../src/core/spec/index';
 import { runRules } from '../src/core/rules/index';
@@ -67,6 +70,25 @@ function netlistMirror(index: number, type: Polarity): NetlistMirror {
     currents: [type === 'nmos' ? { name: 'Iref', from: 'vdd', to: 'b', i: 20e-6 } : { name: 'Iref', from: 'b', to: 'vss', i: 20e-6 }],
     voltages: [], resistors: [],
     output: { node: 'out', v: type === 'nmos' ? 1.3 : 0.5 }, input: { source: 'Iref' }, pair: { ref: 'M1', out: 'M2' },
+  };
+}
+
+/** A netlist tree of `stages` linked mirror stages: each NMOS copy of its parent's gate feeds a
+ *  PMOS diode, whose PMOS copy feeds the NMOS diode the stage's children copy (a binary tree
+ *  rooted at the input diode): 4 devices and 2 nodes a stage, solved as one Newton system. */
+function treeNetlist(stages: number): NetlistMirror {
+  const dev = (name: string, type: Polarity, d: string, g: string, s: string) =>
+    ({ name, type, d, g, s, b: type === 'nmos' ? 'vss' : 'vdd', w: 4e-6, l: 1e-6, m: 1 });
+  const devices = [dev('M1', 'nmos', 'g0', 'g0', 'vss'), dev('M2', 'nmos', 'out', 'g0', 'vss')];
+  for (let k = 1; k <= stages; k++) {
+    const parent = `g${(k - 1) >> 1}`;
+    devices.push(dev(`N${k}`, 'nmos', `p${k}`, parent, 'vss'), dev(`P${k}`, 'pmos', `p${k}`, `p${k}`, 'vdd'),
+      dev(`Q${k}`, 'pmos', `g${k}`, `p${k}`, 'vdd'), dev(`D${k}`, 'nmos', `g${k}`, `g${k}`, 'vss'));
+  }
+  return {
+    kind: 'netlist', name: 'tree', type: 'nmos', path: ['mirrors', 0], require: {}, devices,
+    currents: [{ name: 'Iref', from: 'vdd', to: 'g0', i: 20e-6 }], voltages: [], resistors: [],
+    output: { node: 'out', v: 1.3 }, input: { source: 'Iref' }, pair: { ref: 'M1', out: 'M2' },
   };
 }
 
@@ -238,6 +260,17 @@ function main(): void {
   }
   const b = time(big, Math.max(5, Math.round(runs / 10)));
 
+  // ---- a large netlist: one Newton system of thousands of unknowns (sparse LU) ----
+  const tree = spec([treeNetlist(1000)]);
+  const treeCtx = { spec: tree, mirror: tree.mirrors[0]!, outputIndex: 0 };
+  const treeMc = buildMirror(treeCtx, 1.3, undefined);
+  let treeSolve = solveMirror(treeMc);
+  const large = {
+    devices: treeMc.circuit.devices.length, nodes: treeMc.circuit.nFree,
+    solve: timeFn(quick ? 5 : 20, 2, () => { treeSolve = solveMirror(treeMc); }),
+    analysis: timeFn(quick ? 3 : 10, 1, () => analyzeSpec(structuredClone(tree), { repeats: false })),
+  };
+
   // ---- the example and texts (parse + solve + rules with verified fixes) ----
   const exampleText = readFileSync(join(root, 'examples/sensor-afe.bias.yaml'), 'utf8');
   const faultyText = faultyExampleText(exampleText);
@@ -340,6 +373,7 @@ function main(): void {
     },
     textMs: { ...texts, cold: textCold, faultyExampleFindings: faults },
     sizeLimit: limit,
+    largeNetlistMs: { devices: large.devices, nodes: large.nodes, converged: treeSolve.converged, solve: large.solve, analysis: large.analysis },
     cliMs: cliResult,
     variationMs: variation,
     bundleBytes: bundles,
@@ -366,6 +400,8 @@ function main(): void {
   console.log(`  ${ok(checks.mirrors500Ms)} 500 mirrors                 median ${f(result.mirrors500Ms.median)} ms   p90 ${f(result.mirrors500Ms.p90)} ms   cpu ${f(result.mirrors500Ms.cpuMedian)} ms   (≤ 50 ms; ${b.converged}/${b.reports} converged)`);
   console.log(`  ${ok(checks.exampleEngineMs)} example spec (7 mirrors, 9 outputs)  ${t(texts.exampleEngine)}   (≤ 5 ms)`);
   console.log(`       first analysis before warm-up (${r.reports} mirrors, cold JIT): ${coldMs.toFixed(1)} ms`);
+  console.log(`       netlist tree, ${large.devices} devices / ${large.nodes} nodes: one DC solve ${t(large.solve)}${treeSolve.converged ? '' : ' (did not converge)'}`);
+  console.log(`         its full analysis (compliance search included) ${t(large.analysis)}`);
   console.log('text (analyzeText: parse + solve + rules with verified fixes)');
   console.log(`       example, parse only              ${t(texts.exampleParse)}`);
   console.log(`       example, clean                   ${t(texts.example)}   (cold ${textCold.example.toFixed(0)} ms)`);

@@ -7,7 +7,7 @@
 import css from './styles.css';
 import uplotCss from 'uplot/dist/uPlot.min.css';
 import type { Range } from '../src/core/types';
-import { REPORT_DATA_ID, parseEmbeddedReport } from '../src/core/report/html';
+import { REPORT_DATA_ID, STATIC_ID, parseEmbeddedReport } from '../src/core/report/html';
 import { describeMessage, fromWire, isFileReport, isHostMessage, type PageMessage } from '../src/protocol/messages';
 import { registerComponents } from './components';
 import type { PlotHandle } from './plots';
@@ -81,6 +81,9 @@ function bootReport(root: HTMLElement, json: string): void {
   };
   dark?.addEventListener('change', draw);
   draw();
+  // The live view replaces the static body on screen; printing still uses the static one.
+  const stat = document.getElementById(STATIC_ID);
+  if (stat && isFileReport(report)) stat.hidden = true;
   document.body.dataset.qpointReady = 'true';
 }
 

@@ -104,7 +104,7 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
     onActivate: ctx.mode === 'panel' ? () => ctx.onSelect(it.name) : undefined,
     cells: [
       { text: ctx.mode === 'report' ? h('a', { href: `#mirror-${cssId(it.name)}` }, it.name) : it.name },
-      { text: it.kind }, { text: it.type },
+      { text: `${it.kind} ${it.type}` },
       { text: it.iout }, { text: it.error }, { text: it.compliance },
       { text: findingCounts(it.counts, it.converged) },
     ],
@@ -118,14 +118,15 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
       actionLabel: ctx.mode === 'panel' ? `Show mirror ${name} in the editor` : undefined,
       onActivate: ctx.mode === 'panel' ? () => ctx.onReveal(w.range) : undefined,
       cells: [
-        { text: name }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' },
+        { text: name }, { text: '—' }, { text: '—' }, { text: '—' }, { text: '—' },
         { text: h('span', { class: 'finding-counts' }, h('span', { class: 'severity severity-error' }, 'not solved: fix its errors')) },
       ],
     } });
   }
   const rows = placed.sort((a, b) => a.at - b.at).map((p) => p.row);  // stable: a bank's outputs keep their order
   return table('Mirrors of this spec', [
-    { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false }, { label: 'Type', numeric: false },
+    // Kind and polarity share a column: the list must fit an editor split in two.
+    { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false },
     { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
     { label: 'Findings', numeric: false },
   ], rows, { id: 'mirror-list' });
@@ -152,8 +153,15 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
   const title = h('div', { class: 'mirror-title' },
     h('h2', { id: `mirror-${id}-name` }, m.name),
     tag(m.kind), tag(m.type.toUpperCase()),
-    m.converged ? undefined : tag('not converged', { class: 'tag-error' }),
+    m.converged ? undefined : tag(m.beyondRails ? 'no operating point' : 'not converged', { class: 'tag-error' }),
     ctx.mode === 'panel' && anchor ? button('Show in editor', () => ctx.onReveal(anchor.range), { appearance: 'secondary', 'data-key': `reveal:${m.name}` }) : undefined);
+  if (m.beyondRails) {
+    // No operating point: the numbers of the last iterate describe nothing, so only the finding shows.
+    return h('article', { class: 'mirror', id: `mirror-${id}`, 'data-mirror': m.name, 'aria-labelledby': `mirror-${id}-name` },
+      divider(), title,
+      h('p', { class: 'solve-note severity-error' }, `No operating point within the supply${m.solveNote ? `: ${m.solveNote}` : ''}.`),
+      section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'note' }, 'No findings.')));
+  }
   const body: (HTMLElement | undefined)[] = [
     m.converged ? undefined : h('p', { class: 'solve-note severity-error' }, `The DC solve did not converge${m.solveNote ? `: ${m.solveNote}` : ''}.`),
     figures(summaryFigures(m), { 'data-figures': 'summary' }),
@@ -205,8 +213,8 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
   }
   if (m.corners && m.corners.length > 0) {
     body.push(section(`corners-${id}`, 'Corners', h('div', { class: 'scroll-x' }, table(`Corners of ${m.name}`, CORNER_COLUMNS,
-      cornerRows(m).map((r) => ({ key: `corner:${m.name}:${r.name}`, cells: r.cells.map((c) => ({ text: c.text, title: c.title, className: c.flag })) })),
-      { class: 'grid corners' })), h('p', { class: 'note' }, 'The worst value of each column is marked.')));
+      cornerRows(m, report.limits).map((r) => ({ key: `corner:${m.name}:${r.name}`, cells: r.cells.map((c) => ({ text: c.text, title: c.title, className: c.flag })) })),
+      { class: 'grid corners' })), h('p', { class: 'note' }, 'The worst value of each column is in bold; a value in the error colour fails a requirement.')));
   }
   return h('article', { class: 'mirror', id: `mirror-${id}`, 'data-mirror': m.name, 'aria-labelledby': `mirror-${id}-name` },
     divider(), title, ...body);

@@ -137,6 +137,13 @@ export interface FigureView {
   detail?: string;
 }
 
+/** The causes of the error that are there (≥ 0.005 %, as the ratio-error message names them). */
+function splitText(split: NonNullable<MirrorReport['errorSplit']>): string {
+  const named: [string, number | undefined][] = [['VDS', split.vds], ['body', split.body], ['gate', split.gate], ['geometry', split.geometry]];
+  const shown = named.filter(([, v]) => v !== undefined && Math.abs(v) >= 5e-5).map(([k, v]) => `${k} ${formatSignedPercent(v!, 2)}`);
+  return shown.length > 0 ? shown.join(' · ') : 'no systematic cause above 0.005 %';
+}
+
 export function summaryFigures(m: MirrorReport): FigureView[] {
   const figures: FigureView[] = [
     { key: 'iin', label: 'Iin', value: formatSI(m.iin, 'A', 4), detail: 'input branch' },
@@ -147,12 +154,13 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
   if (m.error !== undefined) {
     const split = m.errorSplit;
     figures.push({ key: 'error', label: 'Error', value: formatSignedPercent(m.error),
-      detail: split ? `VDS ${formatSignedPercent(split.vds, 2)} · body ${formatSignedPercent(split.body, 2)} · geometry ${formatSignedPercent(split.geometry, 2)}` : 'systematic' });
+      detail: split ? splitText(split) : 'systematic' });
   }
   figures.push({ key: 'rout', label: 'Rout', value: formatSI(m.rout, 'Ω'),
     detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });
-  figures.push({ key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4),
-    detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
+  figures.push(m.noCompliance
+    ? { key: 'compliance', label: 'Compliance', value: 'none', detail: `${m.noCompliance.device} out of saturation at every Vout` }
+    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
   if (m.sigma !== undefined) figures.push({ key: 'sigma', label: 'σ(Iout)', value: formatPercent(m.sigma), detail: 'Pelgrom, 1σ' });
   if (m.vbias !== undefined) {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
@@ -165,7 +173,9 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
 
 export interface Column { key: string; label: string; unit?: string; numeric: boolean; title?: string }
 
-export interface CellView { text: string; title?: string; flag?: 'bad' | 'sized' }
+/** `bad`: fails a requirement (error colour); `worst`: the worst of its column, still within
+ *  every requirement (emphasis only); `sized`: computed by qpoint. */
+export interface CellView { text: string; title?: string; flag?: 'bad' | 'worst' | 'sized' }
 
 export interface DeviceRowView {
   name: string;
@@ -297,11 +307,16 @@ export const CORNER_COLUMNS: readonly Column[] = [
   { key: 'minMargin', label: 'Min margin', numeric: true },
 ];
 
-/** Corner rows with the worst value of each column flagged: largest |error|, lowest Rout,
- *  compliance nearest the supply it must stay away from, largest σ, smallest margin. */
-export function cornerRows(mirror: MirrorReport): CornerRowView[] {
+/** Corner rows. The worst value of each column is marked `worst` (emphasis, no colour); a value
+ *  is `bad` (the error colour) only where it fails a requirement: a device out of saturation
+ *  (margin < 0), the ratio beyond limits.error of require.ratio (else the geometric ratio, as the
+ *  ratio check reads it), Rout below require.rout, compliance past require.compliance, σ above
+ *  require.sigma. Without `limits` the ratio column is only ranked. */
+export function cornerRows(mirror: MirrorReport, limits?: { error: number }): CornerRowView[] {
   const corners = mirror.corners ?? [];
   const ok = corners.filter((c) => c.converged);
+  const req = mirror.require ?? {};
+  const nmos = mirror.type === 'nmos';
   const worst = (pick: (c: CornerResult) => number | undefined, better: (a: number, b: number) => boolean): CornerResult | undefined => {
     let w: CornerResult | undefined;
     for (const c of ok) {
@@ -314,22 +329,31 @@ export function cornerRows(mirror: MirrorReport): CornerRowView[] {
   };
   const worstError = worst((c) => Math.abs(c.error), (a, b) => b > a);
   const worstRout = worst((c) => c.rout, (a, b) => b < a);
-  const worstCompliance = worst((c) => c.compliance, (a, b) => (mirror.type === 'nmos' ? b > a : b < a));
+  const worstCompliance = worst((c) => c.compliance, (a, b) => (nmos ? b > a : b < a));
   const worstSigma = worst((c) => c.sigma, (a, b) => b > a);
   const worstMargin = worst((c) => c.minMargin, (a, b) => b < a);
-  const flag = (c: CornerResult, w: CornerResult | undefined): CellView['flag'] => (c === w ? 'bad' : undefined);
+  const target = req.ratio ?? mirror.ratioIdeal;
+  const fails = {
+    error: (c: CornerResult) => limits !== undefined && target !== undefined && target > 0 && Math.abs(c.ratio / target - 1) > limits.error,
+    rout: (c: CornerResult) => req.rout !== undefined && c.rout < req.rout,
+    compliance: (c: CornerResult) => req.compliance !== undefined && (nmos ? c.compliance > req.compliance : c.compliance < req.compliance),
+    sigma: (c: CornerResult) => req.sigma !== undefined && c.sigma !== undefined && c.sigma > req.sigma,
+    margin: (c: CornerResult) => c.minMargin !== undefined && c.minMargin < 0,
+  };
+  const flag = (c: CornerResult, w: CornerResult | undefined, bad: (c: CornerResult) => boolean): CellView['flag'] =>
+    (c.converged && bad(c) ? 'bad' : c === w ? 'worst' : undefined);
   return corners.map((c) => ({
     name: c.name,
     cells: [
       { text: c.name, title: c.converged ? undefined : 'did not converge', flag: c.converged ? undefined : 'bad' },
       { text: formatSI(c.iout, 'A', 4) },
       { text: formatNumber(c.ratio, 5) },
-      { text: formatSignedPercent(c.error), flag: flag(c, worstError) },
-      { text: formatSI(c.rout, 'Ω'), flag: flag(c, worstRout) },
-      { text: formatSI(c.compliance, 'V', 4), flag: flag(c, worstCompliance) },
-      { text: c.sigma === undefined ? '—' : formatPercent(c.sigma), flag: flag(c, worstSigma) },
+      { text: formatSignedPercent(c.error), flag: flag(c, worstError, fails.error) },
+      { text: formatSI(c.rout, 'Ω'), flag: flag(c, worstRout, fails.rout) },
+      { text: formatSI(c.compliance, 'V', 4), flag: flag(c, worstCompliance, fails.compliance) },
+      { text: c.sigma === undefined ? '—' : formatPercent(c.sigma), flag: flag(c, worstSigma, fails.sigma) },
       { text: c.minMargin === undefined ? '—' : `${formatSI(c.minMargin, 'V')}${c.minMarginDevice ? ` (${c.minMarginDevice})` : ''}`,
-        flag: flag(c, worstMargin) },
+        flag: flag(c, worstMargin, fails.margin) },
     ],
   }));
 }
@@ -344,6 +368,25 @@ export function monteCarloFigures(mirror: MirrorReport): FigureView[] {
     { key: 'mean', label: 'Mean Iout', value: formatSI(mc.mean, 'A', 4) },
     { key: 'sigma', label: 'σ(Iout)', value: formatPercent(mc.sigma), detail: mirror.sigma === undefined ? undefined : `Pelgrom ${formatPercent(mirror.sigma)}` },
     { key: 'range', label: 'Range', value: `${formatSI(mc.min, 'A', 4)} … ${formatSI(mc.max, 'A', 4)}` },
-    { key: 'yield', label: 'Yield', value: formatPercent(mc.yield, 4), detail: 'meets every requirement' },
+    { key: 'yield', label: 'Yield', value: formatPercent(mc.yield, 4), detail: yieldDetail(mirror) },
   ];
+}
+
+/** What the yield counts, in samples, so that 99.55 % cannot read as a pass: the per-sample
+ *  checks (variation/montecarlo.ts) when all pass, else how many samples fail and why. */
+export function yieldDetail(mirror: MirrorReport): string {
+  const mc = mirror.mc!;
+  const failing = mc.samples - Math.round(mc.yield * mc.samples);   // yield is pass/N: exact in samples
+  if (failing === 0) {
+    const compliance = mirror.require?.compliance !== undefined ? ', and at require.compliance' : '';
+    return `all ${mc.samples} samples saturated, ratio within limits.tolerance${compliance}`;
+  }
+  const f = mc.failures;
+  const why = [
+    f?.saturation ? `${f.saturation} out of saturation` : '',
+    f?.ratio ? `${f.ratio} ratio outside limits.tolerance` : '',
+    f?.compliance ? `${f.compliance} not saturated at require.compliance` : '',
+    f?.convergence ? `${f.convergence} without a solution` : '',
+  ].filter((x) => x !== '');
+  return `${failing} of ${mc.samples} samples fail${why.length > 0 ? `: ${why.join(', ')}` : ''}`;
 }

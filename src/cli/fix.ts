@@ -20,10 +20,21 @@ export function runFix(c: FixCommand): number {
   // The first round checks the text just analysed: reuse that report instead of solving it again.
   const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name)));
   const applied = result.applied.map((a) => `fixed ${a.code}: ${a.title}\n`).join('');
+  if (result.text === read.text && result.withheld) {
+    // A spec with errors is solved for its other mirrors, but gets no fixes until it reads
+    // cleanly: list what blocks, not every finding of the file (`qpoint check` lists those).
+    process.stdout.write(applied);
+    const aside = new Set((before.withheld ?? []).map((w) => w.index));
+    const blocking = result.remaining.filter((f) => f.severity === 'error' && f.path[0] === 'mirrors' && typeof f.path[1] === 'number' && aside.has(f.path[1]));
+    process.stdout.write(`nothing fixed: fixes are offered once the spec has no errors; fix ${blocking.length === 1 ? 'this error' : `these ${blocking.length} errors`} first\n`);
+    for (const f of blocking) process.stdout.write(findingLine(name, f) + '\n');
+    const others = result.remaining.length - blocking.length;
+    if (others > 0) process.stdout.write(`(${others} other finding${others === 1 ? '' : 's'} of the solved mirrors: qpoint check ${name})\n`);
+    return 1;
+  }
   if (result.text === read.text) {
     process.stdout.write(applied);
-    // A spec with errors is solved for its other mirrors, but gets no fixes until it reads cleanly.
-    process.stdout.write(result.withheld ? 'nothing fixed: fixes are offered once the spec has no errors; fix the errors below first\n' : 'nothing to fix\n');
+    process.stdout.write('nothing to fix\n');
   } else if (c.apply && c.file !== '-') {
     // Only a file that still holds what was read is replaced, and "fixed" is said once it is.
     const written = replaceIfUnchanged(c.file, read.digest, result.text);
@@ -37,8 +48,18 @@ export function runFix(c: FixCommand): number {
     process.stdout.write(`wrote ${name} (${result.applied.length} fixes in ${result.rounds} rounds)\n`);
   } else {
     process.stdout.write(applied);
-    process.stdout.write(createTwoFilesPatch(`a/${name}`, `b/${name}`, read.text, result.text));
+    const [from, to] = diffLabels(name);
+    process.stdout.write(createTwoFilesPatch(from, to, read.text, result.text));
   }
   for (const f of result.remaining) process.stdout.write(findingLine(name, f) + '\n');
   return result.remaining.some((f) => f.severity === 'error') ? 1 : 0;
+}
+
+/** Diff header names: `a/<path>` and `b/<path>` for a path relative to here (apply with
+ *  `patch -p1`); an absolute path as given on both sides (`patch -p0`), never `a//tmp/…`. */
+export function diffLabels(name: string): [string, string] {
+  if (name === '<stdin>') return ['a/<stdin>', 'b/<stdin>'];
+  if (/^([/\\]|[A-Za-z]:[/\\])/.test(name)) return [name, name];
+  const rel = name.replace(/^(\.[/\\])+/, '');
+  return [`a/${rel}`, `b/${rel}`];
 }

@@ -1,9 +1,11 @@
+import { createHash } from 'node:crypto';
 import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
 import { isSameFile, readOne, reasonOf } from './io';
+import { VERSION } from './version';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -24,12 +26,15 @@ export function runReport(c: ReportCommand): number {
   const report = analyzeText(read.text, name, { curve: true, corners: true, ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
   try {
     mkdirSync(dirname(c.html), { recursive: true });
-    writeFileSync(c.html, renderHtmlReport(report, webviewAssets()));
+    const stamp = { version: VERSION, date: new Date().toISOString(), inputHash: `sha256:${createHash('sha256').update(read.text).digest('hex')}` };
+    writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp));
   } catch (err) {
     process.stderr.write(`qpoint: cannot write ${c.html}: ${reasonOf(err)}\n`);
     return 2;
   }
-  process.stdout.write(`wrote ${c.html} (${report.mirrors.length} mirror outputs, ${report.findings.length} findings)\n`);
-  if (!report.parsed) return 2;
-  return report.findings.some((f) => f.severity === 'error') ? 1 : 0;
+  const errors = report.findings.filter((f) => f.severity === 'error').length;
+  process.stdout.write(`wrote ${c.html} (${report.mirrors.length} mirror outputs, ${report.findings.length} findings, ${errors} errors)\n`);
+  // The command's job is the page: once it is written the run succeeded (exit 0), findings and
+  // all — `qpoint check` is the gate on errors. Input that could not be parsed is still exit 2.
+  return report.parsed ? 0 : 2;
 }

@@ -18,7 +18,9 @@ fix      apply the preferred fix of every finding, re-check, repeat while errors
          --apply replaces FILE through a temporary file beside it, and only if FILE
          still holds what was read (an edit saved meanwhile is kept, nothing written)
 report   write one self-contained HTML page with the tables, plots and corners
-         (and a Monte Carlo histogram per output with --mc); never over FILE itself
+         (and a Monte Carlo histogram per output with --mc); never over FILE itself;
+         readable without JavaScript, stamped with version, date and input hash;
+         exits 0 once written
 sweep    print Iout and Rout of one mirror output across a range of output voltages
 
 exit codes: 0 no errors (warnings allowed), 1 findings of severity error,

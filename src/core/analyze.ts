@@ -55,7 +55,10 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...variationFindings(withSpec, spec, mirrors, sized, file),
     ];
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
-    const report: FileReport = { file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors };
+    const report: FileReport = {
+      file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors,
+      limits: { error: spec.limits.error, margin: spec.limits.margin },
+    };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
     return report;
   } catch (err) {

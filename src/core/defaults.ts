@@ -39,6 +39,9 @@ export const SPEC_LIMITS = {
   maxSyntaxFindings: 20,
   /** spec findings listed per code; the rest are counted in one `more-findings` per code. */
   maxFindingsPerCode: 100,
+  /** Elements (devices, sources, resistors) of one netlist mirror; a larger netlist gets a
+   *  `netlist-too-large` finding instead of a solve (its analysis would take seconds). */
+  maxNetlistElements: 5000,
 } as const;
 
 /**
@@ -59,6 +62,16 @@ export const PROVISIONAL_SIZE = {
 export const SOLVER = {
   /** S, conductance across every channel and from every node to the rails' midpoint. */
   gmin: 1e-12,
+  /** S, what is left of gmin when a converged point is polished (where gmin could show in a
+   *  figure): small enough to vanish from nanoampere figures, not zero, so a node that only
+   *  gates devices keeps its place. */
+  gminFinal: 1e-18,
+  /** Unknown node voltages up to which the Jacobian is factored dense (every template
+   *  circuit); larger circuits are factored sparse in a fill-reducing order. */
+  denseMaxNodes: 40,
+  /** Multiply-adds of one sparse factorization (from the symbolic elimination) beyond which a
+   *  circuit is refused as too densely connected: a few milliseconds per Newton iteration. */
+  maxFactorWork: 2e6,
   /** Newton iterations per attempt. */
   maxIterations: 200,
   /** V, largest node-voltage step of one Newton iteration. */

@@ -225,7 +225,9 @@ export interface DeviceReport {
 }
 
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
-export interface ErrorSplit { vds: number; body: number; geometry: number }
+/** Causes of the systematic ratio error (analysis/errorSplit.ts); `gate` only when the pair's
+ *  VGS differ (a netlist pair on different gate or source nodes). */
+export interface ErrorSplit { vds: number; body: number; geometry: number; gate?: number }
 
 export interface CornerResult {
   name: string; converged: boolean;
@@ -265,6 +267,10 @@ export interface MirrorReport {
   residual: number;
   /** When not converged: what the solver tried, for the finding. */
   solveNote?: string;
+  /** Not converged because the solve put a node outside the rails: that node, the rail it
+   *  passes, the chain of devices from the mirror's own rail to it (input stack first) and the
+   *  voltage (V) that chain takes to carry its current, against the supply. */
+  beyondRails?: { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number };
   vout: number;        // V, nominal output voltage (absolute)
   iin: number;
   iout: number;
@@ -275,6 +281,10 @@ export interface MirrorReport {
   rout: number;
   routApprox?: number;
   compliance: number;  // V, absolute
+  /** Set when no output voltage within the supplies saturates every device: `device` is out of
+   *  saturation at every Vout (an input-side device in triode, say). There is no compliance
+   *  figure then; `compliance` holds the far rail only as design §4's placeholder. */
+  noCompliance?: { device: string };
   sigma?: number;
   /** Wide-swing: the cascode gate voltage used (V, absolute) and whether qpoint picked it. */
   vbias?: number;
@@ -314,6 +324,9 @@ export interface FileReport {
   mirrors: MirrorReport[];
   findings: Finding[];
   anchors: Anchor[];
+  /** The limits the findings judged against (V and fraction), for front ends that mark values
+   *  against requirements (the panel's corner table). Not part of the CLI's JSON. */
+  limits?: { error: number; margin: number };
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];

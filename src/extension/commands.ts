@@ -2,6 +2,7 @@
  * The palette commands: check every spec in the workspace, apply every preferred fix, export the
  * HTML report. Each returns a small summary, which the workbench tests assert on.
  */
+import { createHash } from 'node:crypto';
 import * as vscode from 'vscode';
 import { renderHtmlReport } from '../core/report/html';
 import type { AnalysisManager } from './analysisManager';
@@ -16,6 +17,8 @@ export interface FixAllSummary { applied: number; rounds: number; remaining: num
 
 export interface CommandContext {
   extensionUri: vscode.Uri;
+  /** The extension's version, stamped on exported reports. */
+  version: string;
   manager: AnalysisManager;
   analyzer: Analyzer;
   diagnostics: vscode.DiagnosticCollection;
@@ -112,7 +115,12 @@ export async function exportReport(c: CommandContext, target?: vscode.Uri): Prom
   if (!report) return undefined;
   const script = new TextDecoder('utf-8').decode(
     await vscode.workspace.fs.readFile(vscode.Uri.joinPath(c.extensionUri, 'dist', 'webview.js')));
-  const html = renderHtmlReport(report, { script });
+  const stamp = {
+    version: c.version,
+    date: new Date().toISOString(),
+    inputHash: `sha256:${createHash('sha256').update(doc.getText()).digest('hex')}`,
+  };
+  const html = renderHtmlReport(report, { script }, stamp);
   const base = doc.uri.path.split('/').pop()?.replace(/\.bias\.(ya?ml|json)$/i, '') || 'qpoint-report';
   const uri = target ?? await vscode.window.showSaveDialog({
     defaultUri: doc.isUntitled ? undefined : vscode.Uri.joinPath(doc.uri, '..', `${base}.report.html`),

@@ -28,7 +28,7 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
     monteCarlo, { dispose: () => mcAnalyzer.dispose() });
 
   const panel = registerPanel(context, manager);
-  const c: CommandContext = { extensionUri: context.extensionUri, manager, analyzer, diagnostics, log };
+  const c: CommandContext = { extensionUri: context.extensionUri, version: String((context.extension.packageJSON as { version?: unknown }).version ?? 'unknown'), manager, analyzer, diagnostics, log };
   context.subscriptions.push(
     ...registerProviders(manager, analyzer),
     ...registerStatusBar(manager),

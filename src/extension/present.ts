@@ -140,21 +140,25 @@ export function deviceFigures(d: DeviceReport): [label: string, value: string][]
   ];
 }
 
-/** Pairs of figures side by side: a compact four-column table. */
-function pairTable(rows: [string, string][], header: string): string {
-  const lines = [`| ${header} | | | |`, '|:--|--:|:--|--:|'];
-  for (let i = 0; i < rows.length; i += 2) {
-    const a = rows[i];
+/** Pairs of figures side by side: a compact four-column table whose first pair is its header
+ *  row (a markdown table needs one; a separate title row would cost the hover a line). */
+function pairTable(rows: [string, string][]): string {
+  const line = (i: number): string => {
+    const a = rows[i]!;
     const b = rows[i + 1] ?? ['', ''];
-    lines.push(`| **${a[0]}** | ${a[1]} | ${b[0] ? `**${b[0]}**` : ''} | ${b[1]} |`);
-  }
+    return `| **${a[0]}** | ${a[1]} | ${b[0] ? `**${b[0]}**` : ''} | ${b[1]} |`;
+  };
+  const lines = [line(0), '|:--|--:|:--|--:|'];
+  for (let i = 2; i < rows.length; i += 2) lines.push(line(i));
   return lines.join('\n');
 }
 
+/** One title line, five table rows, the caution: short enough that the editor's hover shows it
+ *  whole, below a diagnostic or two, without scrolling. */
 export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
-  const head = `**${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)}  \n${sizeLine(d)}`;
+  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}`;
   const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
-  return `${head}${note}\n\n${pairTable(deviceFigures(d), 'Operating point')}\n\n${CAUTION}`;
+  return `${head}${note}\n\n${pairTable(deviceFigures(d))}\n\n${CAUTION}`;
 }
 
 export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): string {
@@ -179,10 +183,15 @@ export function mirrorFigures(r: MirrorReport): [label: string, value: string][]
   ];
   if (r.error !== undefined) rows.push(['error', formatPercent(r.error, true)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
-  rows.push(['compliance', `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
+  rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
   if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
   if (r.vbias !== undefined) rows.push(['vbias', `${formatSI(r.vbias, 'V')}${r.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
   return rows;
+}
+
+/** The compliance figure, or why there is none (a device out of saturation at every Vout). */
+function complianceText(r: MirrorReport): string {
+  return r.noCompliance ? `none (${escapeMd(r.noCompliance.device)} out of saturation at every Vout)` : formatSI(r.compliance, 'V');
 }
 
 function kindLine(r: MirrorReport): string {
@@ -212,7 +221,7 @@ export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): st
   ];
   for (const r of reports) {
     const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
-    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${formatSI(r.compliance, 'V')} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
 }
@@ -230,10 +239,11 @@ export function hoverMarkdown(t: HoverTarget): string {
 
 /** One line above a mirror (or bank output): Iout, error, Rout, compliance. */
 export function lensTitle(r: MirrorReport): string {
+  if (r.beyondRails) return `${r.name}: no operating point within the supply`;
   if (!r.converged) return `${r.name}: did not converge`;
   const parts = [`Iout ${formatSI(r.iout, 'A')}`];
   if (r.error !== undefined) parts.push(`error ${formatPercent(r.error, true)}`);
-  parts.push(`Rout ${formatOhm(r.rout)}`, `compliance ${formatSI(r.compliance, 'V')}`);
+  parts.push(`Rout ${formatOhm(r.rout)}`, r.noCompliance ? `no compliance: ${r.noCompliance.device} out of saturation at every Vout` : `compliance ${formatSI(r.compliance, 'V')}`);
   return parts.join(' · ');
 }
 

@@ -158,7 +158,10 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     MIRROR_NUMBERS.every((k) => isNumber(v[k])) &&
     MIRROR_OPTIONAL_NUMBERS.every((k) => optional(v[k], isNumber)) &&
     optional(v.solveNote, isString) && optional(v.vbiasPicked, isBoolean) &&
-    optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.vds) && isNumber(s.body) && isNumber(s.geometry)) &&
+    optional(v.noCompliance, (c) => isRecord(c) && isString(c.device)) &&
+    optional(v.beyondRails, (b) => isRecord(b) && isString(b.node) && isNumber(b.v) && oneOf(b.rail, ['vdd', 'vss'] as const) &&
+      arrayOf(b.stack, isString) && isNumber(b.need)) &&
+    optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.vds) && isNumber(s.body) && isNumber(s.geometry) && optional(s.gate, isNumber)) &&
     isRecord(v.nodes) && Object.values(v.nodes).every(isNumber) &&
     arrayOf(v.devices, isDeviceReport) && isSpecPath(v.path) &&
     optional(v.corners, (c) => arrayOf(c, isCornerResult)) &&
@@ -169,7 +172,8 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
 
 export function isFileReport(v: unknown): v is FileReport {
   return isRecord(v) && isString(v.file) && isBoolean(v.parsed) && optional(v.title, isString) &&
-    arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor);
+    arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor) &&
+    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin));
 }
 
 // ───────────────────────────── primitives ─────────────────────────────

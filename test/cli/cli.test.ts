@@ -6,6 +6,7 @@
  */
 import { describe, it, expect, beforeAll } from 'vitest';
 import { spawnSync } from 'node:child_process';
+import { createHash } from 'node:crypto';
 import { copyFileSync, existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -172,15 +173,38 @@ describe('fix, report, sweep', () => {
     writeFileSync(copy, typo);
     const r = qpoint(['fix', copy, '--apply']);
     expect(r.code).toBe(1);
-    expect(r.stdout).toMatch(/^nothing fixed: fixes are offered once the spec has no errors/);
+    expect(r.stdout).toMatch(/^nothing fixed: fixes are offered once the spec has no errors; fix this error first$/m);
     expect(r.stdout).toMatch(/error bad-value: `kind` must be one of/);
-    // The other mirrors' findings are still listed (the faulty fixture's physics errors).
-    expect(r.stdout.split('\n').filter((l) => / (error|warning) /.test(l)).length).toBeGreaterThan(1);
+    // Only what blocks is listed; the other mirrors' findings (the faulty fixture's physics
+    // errors) are counted and left to `qpoint check`.
+    expect(r.stdout.split('\n').filter((l) => /:\d+:\d+: (error|warning|info) /.test(l))).toHaveLength(1);
+    expect(r.stdout).toMatch(/^\(\d+ other findings of the solved mirrors: qpoint check .*typo\.bias\.yaml\)$/m);
     expect(readFileSync(copy, 'utf8')).toBe(typo);
     // check says which part was not solved
     const checked = qpoint(['check', copy]);
     expect(checked.code).toBe(1);
     expect(checked.stdout).toMatch(/mirror outputs checked in 1 file \(1 mirror not solved until its errors are fixed\): /);
+  });
+
+  it('fix names an absolute path as given in the diff header, never a//…', () => {
+    const copy = join(OUT, 'abs-faulty.bias.yaml');
+    copyFileSync(join(ROOT, FAULTY), copy);
+    const r = qpoint(['fix', copy]);
+    expect(r.stdout).toContain(`--- ${copy}\n+++ ${copy}\n`);
+    expect(r.stdout).not.toMatch(/^--- a\/\//m);
+  });
+
+  it('report exits 0 once the page is written, errors and all, and stamps version, date and input hash', () => {
+    const out = join(OUT, 'report', 'faulty.html');
+    const r = qpoint(['report', FAULTY, '--html', out]);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/^wrote .*faulty\.html \(\d+ mirror outputs, \d+ findings, [1-9]\d* errors\)$/m);
+    const html = readFileSync(out, 'utf8');
+    const hash = createHash('sha256').update(readFileSync(join(ROOT, FAULTY))).digest('hex');
+    expect(html).toContain(`<meta name="qpoint-input" content="sha256:${hash}">`);
+    expect(html).toMatch(/<meta name="generator" content="qpoint \d+\.\d+\.\d+">/);
+    expect(html).toMatch(/<meta name="date" content="\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z">/);
+    expect(html).toContain('<caption>Findings in test/rules/fixtures/faulty.bias.yaml</caption>');
   });
 
   it('report writes one self-contained page with the report data', () => {

@@ -4,10 +4,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { measureMirror, solveAt } from '../../src/core/analysis/index';
-import { routApprox } from '../../src/core/analysis/routApprox';
 import { analyzeText } from '../../src/core/analyze';
 import type { DeviceReport, MirrorReport } from '../../src/core/types';
-import { ctxOf, makeSpec, sz, template, type SpecOptions, type TemplateOptions } from './builders';
+import { ctxOf, makeSpec, netlist, sz, template, type SpecOptions, type TemplateOptions } from './builders';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 const dev = (r: MirrorReport, name: string): DeviceReport => {
@@ -17,6 +16,22 @@ const dev = (r: MirrorReport, name: string): DeviceReport => {
 };
 const measure = (kind: Parameters<typeof template>[0], o: TemplateOptions, s: SpecOptions = {}): MirrorReport =>
   measureMirror(ctxOf(makeSpec([template(kind, o)], s)));
+
+/** Set D (references §2): k' = 134 µA/V², λ = 0.1 /V; the textbook small-signal values at
+ *  100 µA and W/L = 10: gm = √(2·k'·10·100 µA) = 517.687 µS, ro = 1/(λ·ID) = 100 kΩ, and the
+ *  cascode's gmb2 = 82.646 µS (references §3). */
+const K = 134e-6, G = 517.687e-6, GMB2 = 82.646e-6;
+
+/**
+ * The overdrive and width (L = 1 µm, k' of D) at which a square-law device at VDS = vds, with
+ * length modulation λ, shows gm = G and gds = 10 µS: the engine's gds = λ·β·VOV²/2 and
+ * gm = β·VOV·(1 + λ·VDS) (design §3), so VOV = 2·gds·(1 + λ·VDS)/(λ·G) and β = 2·gds/(λ·VOV²).
+ * This sizes the test bench; the values checked are what the solver makes of it.
+ */
+function textbookBias(vds: number, lambda: number): { vov: number; w: number } {
+  const vov = (2e-5 * (1 + lambda * vds)) / (lambda * G);
+  return { vov, w: (2e-5 / (lambda * vov * vov)) / K * 1e-6 };
+}
 
 describe('simple mirror (references §9, constructed check on D)', () => {
   it('diode VGS with length modulation is 1.067234 V (references §2, §10 convention 1)', () => {
@@ -59,10 +74,35 @@ describe('simple mirror (references §9, constructed check on D)', () => {
 });
 
 describe('cascode output resistance (references §3)', () => {
-  it('formula ro1 + ro2 + (gm2 + gmb2)·ro1·ro2 with the D values gives 6.203335 MΩ', () => {
-    // D values: gm = 517.687 µS, ro = 100 kΩ, gmb2 = 82.646 µS at VSB2 = 1.086 V (references §3).
-    const d = (gm: number, gmb: number) => ({ gm, gds: 1e-5, gmb });
-    expect(routApprox('cascode', { out: d(517.687e-6, 0), outc: d(517.687e-6, 82.646e-6) })! / 1e6).toBeCloseTo(6.203335, 4);
+  it('the solver, biased at the D small-signal values (gm 517.687 µS, ro 100 kΩ, gmb2 82.646 µS), gives 6.203335 MΩ', () => {
+    // references §3: Rout = ro1 + ro2 + (gm2 + gmb2)·ro1·ro2 = 6.203 335 MΩ for set D. The bench
+    // below only chooses sizes and gate voltages (textbookBias); the operating point, gm, gds,
+    // gmb and Rout all come out of the solver and its linearized circuit.
+    const vsb2 = (G * 0.45 / (2 * GMB2)) ** 2 - 0.9;          // gmb = gm·γ/(2√(φ + VSB))
+    const m1 = textbookBias(vsb2, 0.1), m2 = textbookBias(vsb2, 0.1);
+    const vt2 = 0.7 + 0.45 * (Math.sqrt(0.9 + vsb2) - Math.sqrt(0.9));
+    const spec = makeSpec([netlist({
+      name: 'cas', type: 'nmos',
+      devices: [
+        { name: 'M0', type: 'nmos', d: 'g1', g: 'g1', s: 'vss', b: 'vss', w: m1.w, l: 1e-6, m: 1 },
+        { name: 'M1', type: 'nmos', d: 'c', g: 'g1', s: 'vss', b: 'vss', w: m1.w, l: 1e-6, m: 1 },
+        { name: 'M2', type: 'nmos', d: 'out', g: 'g2', s: 'c', b: 'vss', w: m2.w, l: 1e-6, m: 1 },
+      ],
+      currents: [{ name: 'I0', from: 'vdd', to: 'g1', i: 1e-4 * (1 + 0.1 * (0.7 + m1.vov)) }],
+      voltages: [{ name: 'VG2', node: 'g2', v: vsb2 + vt2 + m2.vov }],
+      output: { node: 'out', v: 2 * vsb2 }, input: { source: 'I0' },
+    })]);
+    const r = measureMirror(ctxOf(spec));
+    expect(r.converged).toBe(true);
+    const o = dev(r, 'M1'), c = dev(r, 'M2');
+    for (const d of [o, c]) {
+      expect(rel(d.gm, G)).toBeLessThan(1e-6);
+      expect(rel(d.gds, 1e-5)).toBeLessThan(1e-6);
+    }
+    expect(c.vbs).toBeCloseTo(-vsb2, 6);
+    // gmb2 to the 5 digits references §3 gives it (82.646 µS at VSB2 = 1.086 V).
+    expect(rel(c.gmb, GMB2)).toBeLessThan(1e-4);
+    expect(r.rout / 1e6).toBeCloseTo(6.203335, 3);             // ±0.5 kΩ (1e-4)
   });
   it('the linearized circuit gives exactly that formula with the engine\'s own gm, gds, gmb', () => {
     for (const type of ['nmos', 'pmos'] as const) {
@@ -121,10 +161,37 @@ describe('Wilson mirror (references §5, D, VOUT = 3 V)', () => {
     expect(rel(r.routApprox!, exact)).toBeLessThan(0.05);
     expect(rel(r.routApprox!, exact)).toBeGreaterThan(1e-4);
   });
-  it('the exact expression with D values (all gm 517.687 µS, ro 100 kΩ, gmb 0) is 5.278767 MΩ', () => {
-    const gm = 517.687e-6, r0 = 1e5;
-    const exact = (r0 * r0 * (gm + gm * gm * r0 + gm) + 2 * r0) / (1 + gm * r0);
-    expect(exact / 1e6).toBeCloseTo(5.278767, 3);
+  it('the solver, biased at the D values (all gm 517.687 µS, ro 100 kΩ, gmb 0), gives 5.278767 MΩ', () => {
+    // references §3 (exact sympy expression, set D): 5.278 767 MΩ. A Wilson fixes each device's
+    // VGS and VDS: `diode` and `out` sit at VDS = VGS_d (Vout = 2·VGS_d), `in` at VGS_d with
+    // VDS = VGS_d + VGS_out, so `in` gets its own λ (a shorter L with lref) and W to land on the
+    // same gm and ro. The bench chooses sizes only; Rout comes out of the solver.
+    const vgs = 0.7 + textbookBias(0, 0.1).vov;                // first guess, refined below
+    let vgsD = vgs;
+    for (let k = 0; k < 50; k++) vgsD = 0.7 + textbookBias(vgsD, 0.1).vov;   // VDS_d = VGS_d
+    const d = textbookBias(vgsD, 0.1);
+    // `in`: VOV = VGS_d − VT0 and VDS = 2·VGS_d are set; solve gm and gds for β and λ.
+    const vovIn = vgsD - 0.7, vdsIn = 2 * vgsD;
+    const lamBeta = 2e-5 / vovIn ** 2;                         // gds = λ·β·VOV²/2
+    const betaIn = (G - lamBeta * vovIn * vdsIn) / vovIn;      // gm = β·VOV·(1 + λ·VDS)
+    const lamIn = lamBeta / betaIn;
+    const spec = makeSpec([netlist({
+      name: 'wil', type: 'nmos',
+      devices: [
+        { name: 'Min', type: 'nmos', d: 'x', g: 'y', s: 'vss', b: 'vss', w: betaIn / K * (0.1 / lamIn) * 1e-6, l: (0.1 / lamIn) * 1e-6, m: 1 },
+        { name: 'Md', type: 'nmos', d: 'y', g: 'y', s: 'vss', b: 'vss', w: d.w, l: 1e-6, m: 1 },
+        { name: 'Mout', type: 'nmos', d: 'out', g: 'x', s: 'y', b: 'y', w: d.w, l: 1e-6, m: 1 },
+      ],
+      currents: [{ name: 'IREF', from: 'vdd', to: 'x', i: (betaIn / 2) * vovIn ** 2 * (1 + lamIn * vdsIn) }],
+      output: { node: 'out', v: 2 * vgsD }, input: { source: 'IREF' },
+    })], { nmos: { lref: 1e-6 } });
+    const r = measureMirror(ctxOf(spec));
+    expect(r.converged).toBe(true);
+    for (const name of ['Min', 'Md', 'Mout']) {
+      expect(rel(dev(r, name).gm, G)).toBeLessThan(1e-6);
+      expect(rel(dev(r, name).gds, 1e-5)).toBeLessThan(1e-6);
+    }
+    expect(r.rout / 1e6).toBeCloseTo(5.278767, 4);             // ±50 Ω (1e-5)
   });
   it('balanced (4-T) Wilson: VDS,in = 1.058623 V vs VDS,d = 1.067377 V, ratio 1.000792', () => {
     const r = measure('wilson-balanced', { vout: 3 });

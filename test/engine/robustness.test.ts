@@ -24,12 +24,15 @@ function sane(r: MirrorReport): void {
 }
 
 describe('hard circuits', () => {
-  it('an input current the supply cannot carry: the diode node rises beyond vdd (a sane, flagged-by-rules result)', () => {
+  it('an input current the supply cannot carry: the diode node rises beyond vdd, which is no operating point (beyondRails names it)', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { input: 10e-3, vout: 2 })])));
     sane(r);
-    expect(r.converged).toBe(true);
+    expect(r.converged).toBe(false);
     // VGS = 0.7 + sqrt(2·10 mA/1.34 mA/V²) ≈ 4.56 V (λ shifts it a little): above the 3.3 V supply.
     expect(r.nodes.a).toBeGreaterThan(3.3);
+    expect(r.beyondRails).toMatchObject({ node: 'a', rail: 'vdd', stack: ['ref'] });
+    expect(r.beyondRails!.need).toBeCloseTo(r.nodes.a!, 9);
+    expect(r.rout).toBeNaN();
   });
   it('an input current no device can carry: a node far outside the supplies is reported as not converged', () => {
     const r = measureMirror(ctxOf(makeSpec([template('cascode', { input: 10, vout: 2 })])));

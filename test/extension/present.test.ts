@@ -60,6 +60,14 @@ describe('device hover', () => {
     expect(md).toContain(CAUTION_TEXT);
     expect(md).toContain('W/L = 10 µm / 1 µm');
   });
+
+  it('is short enough to show whole in the editor\'s hover: a title line, five rows, the caution', () => {
+    const md = hoverMarkdown({ kind: 'device', report: MIRROR, device: OUT });
+    const lines = md.split('\n').filter((l) => l.trim() !== '');
+    expect(lines).toHaveLength(1 + 1 + 5 + 1);   // title, table header and its rule … 5 rows of pairs, caution
+    expect(lines[0]).toMatch(/^Operating point of \*\*out\*\* · NMOS · out of copy · W\/L = 10 µm \/ 1 µm$/);
+    expect(md).toContain('| **gm/ID** | 5.45 /V | **IC** | 43 (strong) |');
+  });
 });
 
 describe('mirror hover', () => {

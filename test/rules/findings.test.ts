@@ -75,7 +75,7 @@ const rows: Row[] = [
     name: 'not-saturated: one output of a bias bank, at that output\'s name',
     text: spec(mirror('bank', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    outputs:', '      - name: a',
       '        output: { v: 1.2 }', '      - name: b', '        output: { v: 0.75 }'])),
-    code: 'not-saturated', at: [15, 14, 15, 'b'], fix: true, message: /^`b\.outc` is in triode/,
+    code: 'not-saturated', at: [15, 14, 15, 'b'], fix: true, message: /^bank\.b: `b\.outc` is in triode/,
   },
   {
     // Wilson: (1+λ·VGS_d)/(1+λ·(VGS_d+VGS_out)) − 1 ≈ −5.5 % at λ = 0.08 (references §5 form).
@@ -110,12 +110,12 @@ const rows: Row[] = [
     // Stack VGS_ref + VGS_refc ≈ 0.63 + 0.77 = 1.40 V leaves 0.10 V of the 1.5 V supply.
     name: 'input-headroom: cascode current input, at the input value',
     text: spec(mirror('tail', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 1.2 }']), 1.5),
-    code: 'input-headroom', at: [10, 11, 14, '10u'], fix: true, message: /leaving 9\d\.\d mV for the input current source; it needs limits\.sourceHeadroom 200 mV/,
+    code: 'input-headroom', at: [10, 11, 14, '10u'], fix: true, message: /^tail: the input node sits 1\.4\d* V above vss \(stack `ref` \+ `refc`\), leaving 9\d\.\d mV to vdd for the input current source; it needs limits\.sourceHeadroom 200 mV/,
   },
   {
     name: 'input-headroom: a resistor input with almost nothing across it (no fix can make room)',
     text: spec(mirror('tail', 'cascode', 'nmos', ['    input: { resistor: 100k }', '    size: { w: 2u, l: 1u }', '    output: { v: 1.0 }']), 1.2),
-    code: 'input-headroom', at: [10, 23, 27, '100k'], fix: false, message: /the input resistor has only \d+\.?\d* mV across it/,
+    code: 'input-headroom', at: [10, 23, 27, '100k'], fix: false, message: /^tail: the input resistor has only \d+\.?\d* mV across it to vdd \(the stack `ref` \+ `refc` takes 1\.\d+ V above vss of the 1\.2 V supply/,
   },
   {
     // IC = ID/(2·n·β·UT²) = 100n/(2·1.3·560µ·25.86m²) ≈ 0.10 (design §3).
@@ -140,16 +140,65 @@ const rows: Row[] = [
     code: 'vbias-triode', at: [12, 11, 14, '0.8'], fix: true, fixTitle: /^Set vbias to 9\d\d mV/, message: /vbias 800 mV leaves `ref`, `out` out of saturation/,
   },
   {
-    // 1 A through a 0.22 µm / 10 µm device: no node voltage within reach carries it.
-    name: 'no-convergence: a current the device cannot carry, at the mirror name',
+    // 1 A through a 0.22 µm / 10 µm device: VGS = VT + √(2·I/(β·(1 + λ·VGS))) with β = 6.16 µA/V²
+    // and λ = 0.008 /V (square law, design §3) solves to about 307 V on a 1.8 V supply — the diode
+    // node would sit far above vdd: no operating point.
+    name: 'stack-over-supply: a current the device cannot carry, at the input value',
     text: spec(mirror('huge', 'simple', 'nmos', ['    input: 1', '    size: { w: 0.22u, l: 10u }', '    output: { v: 1.2 }'])),
-    code: 'no-convergence', at: [7, 10, 14, 'huge'], fix: false, message: /has no DC operating point/,
+    code: 'stack-over-supply', at: [10, 11, 12, '1'], fix: false, message: /^huge: no operating point: the stack `ref` needs 30\d V to carry 1 A but the supply is 1\.8 V/,
+  },
+  {
+    // PMOS cascode at 40 µA in 1 µm / 1 µm: VSG_ref = 0.48 + √(2·40µ/70µ) ≈ 1.55 V, refc more with
+    // body effect (square law, design §3): two stacked VSG above 3.1 V on a 1.8 V supply. One error
+    // names the stack; no not-saturated, ratio, margin, VDS or headroom finding follows.
+    name: 'stack-over-supply: a PMOS cascode whose two VSG exceed the supply, at the input value',
+    text: spec(mirror('pc', 'cascode', 'pmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 0.3 }', '    require: { ratio: 1, compliance: 1.2 }'])),
+    code: 'stack-over-supply', at: [10, 11, 14, '40u'], fix: false,
+    message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at −1\.\d+ V, below vss\)/,
   },
 ];
 
 function find(findings: Finding[], code: string): Finding | undefined {
   return findings.find((f) => f.code === code);
 }
+
+describe('one cause, one finding', () => {
+  it('a stack over the supply raises only stack-over-supply for that mirror, and no figures', () => {
+    const text = spec(mirror('pc', 'cascode', 'pmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 0.3 }', '    require: { ratio: 1, compliance: 1.2 }']));
+    expect(check(text).findings.map((f) => f.code)).toEqual(['stack-over-supply']);
+  });
+
+  it('a wide-swing refc in triode at every Vout: vbias-triode names refc; no compliance figure, no compliance finding', () => {
+    // vbias 1.25 V: VDS_refc = VGS_ref − (vbias − VGS_refc) ≈ 64 mV < VDSsat (square law, design §3).
+    const text = spec(mirror('ws', 'wide-swing', 'nmos', ['    input: 20u', '    size: { w: 8u, l: 1u }', '    vbias: 1.25', '    output: { v: 1.2 }', '    require: { ratio: 1, compliance: 0.8 }']));
+    const { findings } = check(text);
+    expect(findings.map((f) => f.code)).toEqual(['vbias-triode']);
+    expect(findings[0]!.message).toMatch(/^ws: vbias 1\.25 V leaves `refc` out of saturation/);
+  });
+});
+
+describe('the error split names only causes that are there', () => {
+  it('a netlist pair on different gate voltages: gate drive, never body effect (both sources and bulks on vss)', () => {
+    // M2's gate held 50 mV above M1's diode voltage: a VGS difference, VBS = 0 for both, so the
+    // body term is exactly zero (analysis/errorSplit.ts) and the message must not name it.
+    const text = [
+      'format: 1', 'process:',
+      '  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85 }',
+      '  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8 }',
+      'supplies: { vdd: 1.8 }', 'mirrors:',
+      '  - name: off', '    kind: netlist', '    type: nmos', '    devices:',
+      '      M1: { type: nmos, d: a, g: a, s: vss, w: 2u, l: 1u }',
+      '      M2: { type: nmos, d: out, g: g2, s: vss, w: 2u, l: 1u }',
+      '    currents:', '      I1: { from: vdd, to: a, i: 10u }',
+      '    voltages:', '      VG: { node: g2, v: 0.684 }',
+      '    output: { node: out, v: 0.634 }', '    input: { source: I1 }', '    pair: { ref: M1, out: M2 }', '    require: { ratio: 1 }', '',
+    ].join('\n');
+    const { findings } = check(text);
+    const f = findings.find((x) => x.code === 'ratio-error');
+    expect(f?.message).toMatch(/^off: ratio 1\.\d+ is \+\d+(\.\d+)? % off the required 1 \(limit ±1 %\): gate drive \+\d/);
+    expect(f?.message).not.toMatch(/body effect/);
+  });
+});
 
 describe('design findings: present at the exact range, gone after the preferred fix', () => {
   for (const row of rows) {

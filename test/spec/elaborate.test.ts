@@ -213,9 +213,13 @@ describe('netlist mirrors', () => {
     expectErrorsBlock(p);
   });
 
-  test('a gate-only node floats (warning)', () => {
+  test('a gate-only node floats: an error that sets the mirror aside (no figures, no fixes)', () => {
     const p = parseSpec(withText('d: out, g: nin', 'd: out, g: nbias', net));
-    expect(codes(p.findings)).toContain('floating-node');
+    const f = p.findings.find((x) => x.code === 'floating-node');
+    expect(f?.severity).toBe('error');
+    expect(f?.message).toMatch(/node `nbias` connects to only one terminal, so nothing sets its voltage/);
+    expectErrorsBlock(p);
+    expect(p.spec?.mirrors ?? []).toEqual([]);
   });
 });
 

@@ -124,7 +124,7 @@ describe('corner findings', () => {
     expect(f.length).toBe(1);
     expect(f[0]!.severity).toBe('error');
     expect(at(f[0]!)).toBe('14:6-14:9');   // `out:` under devices
-    expect(f[0]!.message).toMatch(/^`out` is not saturated at corner slow \(125 °C\): margin −\d/);
+    expect(f[0]!.message).toMatch(/^sink: `out` is not saturated at corner slow \(125 °C\): margin −\d/);
     expect(f[0]!.related?.[0]?.path).toEqual(['corners', 'slow']);
     expect(at({ ...f[0]!, range: f[0]!.related![0]!.range })).toBe('18:2-18:6');
   });
@@ -181,7 +181,7 @@ describe('corner findings against requirements', () => {
     const one = (code: string): Finding => { const f = byCode(r.findings, code).filter((x) => x.path[1] === 0); expect(f.length).toBe(1); return f[0]!; };
     const rout = one('corner-low-rout');
     expect(at(rout)).toBe('14:21-14:25');          // `250M`
-    expect(rout.message).toMatch(/^Rout 2\d\d MΩ at corner ss \(125 °C, vdd 1\.62 V\) is below require\.rout 250 MΩ/);
+    expect(rout.message).toMatch(/^tail: Rout 2\d\d MΩ at corner ss \(125 °C, vdd 1\.62 V\) is below require\.rout 250 MΩ/);
     const comp = one('corner-compliance');
     expect(at(comp)).toBe('14:39-14:43');          // `0.73`
     expect(comp.message).toMatch(/at corner ss .*must work down to 730 mV \(require\.compliance\)/);

@@ -2,7 +2,7 @@
 // (browser.test.ts) opens the same file in Chromium.
 import { describe, expect, it } from 'vitest';
 import {
-  REPORT_DATA_ID, embedReportJson, escapeScript, parseEmbeddedReport, renderHtmlReport,
+  REPORT_DATA_ID, STATIC_ID, embedReportJson, escapeScript, parseEmbeddedReport, renderHtmlReport,
 } from '../../src/core/report/html';
 import { isFileReport } from '../../src/protocol/messages';
 import { fixtureReport } from './fixtures';
@@ -48,6 +48,28 @@ describe('renderHtmlReport', () => {
     expect(html).not.toMatch(/https?:\/\//i);
     expect(html).toContain('confirm with transistor-level simulation on the foundry&#39;s models and corners');
     expect(html).toContain('<title>qpoint report — &lt;/script&gt;');
+  });
+
+  it('reads without JavaScript: findings, figures and devices as tables, plots as inline SVG, and its own stamp', () => {
+    const report = fixtureReport();
+    const stamp = { version: '9.8.7', date: '2026-01-02T03:04:05.000Z', inputHash: 'sha256:0123abcd' };
+    const html = renderHtmlReport(report, { script }, stamp);
+    const body = html.slice(html.indexOf(`<div id="${STATIC_ID}">`), html.indexOf('<main id="qpoint-root">'));
+    expect(body).toContain('qpoint 9.8.7 · written 2026-01-02T03:04:05.000Z · input sha256:0123abcd');
+    expect(html).toContain('<meta name="qpoint-input" content="sha256:0123abcd">');
+    for (const m of report.mirrors) {
+      expect(body).toContain(`<caption>Figures of ${m.name}</caption>`);
+      expect(body).toContain(`<caption>Devices of ${m.name}</caption>`);
+    }
+    // tailMirror's curve: one Iout and one Rout plot; the point that did not converge is marked.
+    expect(body.match(/<svg class="plot-svg"/g)!.length).toBeGreaterThanOrEqual(3);  // + the MC histogram
+    expect(body).toContain('<title>Iout versus Vout — tail</title>');
+    expect(body).toContain('class="failed"');
+    expect(body).toContain('Monte Carlo: 200 samples (seed 7)');
+    expect(body).toContain('7 of 200 samples fail');   // yield 0.965 of 200
+    // Printing uses the static body; nothing is fetched, no script needed to read it.
+    expect(html).toContain(`@media print { #${STATIC_ID} { display: block !important; }`);
+    expect(body).not.toMatch(/<script/i);
   });
 
   it('escapes the bundle so a "</script" or "<!--" inside it means the same characters', () => {

@@ -2,7 +2,7 @@
 // each requirement holds, what a row reveals, which corner is worst, how numbers read.
 import { describe, expect, it } from 'vitest';
 import {
-  concerns, cornerRows, deviceAnchor, deviceColumns, deviceRow, failsRequirement, fileFindings,
+  concerns, cornerRows, monteCarloFigures, deviceAnchor, deviceColumns, deviceRow, failsRequirement, fileFindings,
   findingRows, findingsFor, mirrorAnchor, mirrorList, requirementViews, summaryFigures,
 } from '../../webview/view-model';
 import { axisScale, formatNumber, formatPercent, formatSI, formatSignedPercent } from '../../webview/format';
@@ -104,7 +104,8 @@ describe('summary, list, findings', () => {
   it('puts Rout beside the textbook formula and the error split in the detail', () => {
     const figs = summaryFigures(tailMirror());
     expect(figs.find((f) => f.key === 'rout')).toMatchObject({ value: '21.3 MΩ', detail: 'textbook 20.5 MΩ' });
-    expect(figs.find((f) => f.key === 'error')).toMatchObject({ value: '+0.3 %', detail: 'VDS +0.25 % · body +0.05 % · geometry 0 %' });
+    // A cause whose term is zero (geometry here) is not named (issue: never blame an absent cause).
+    expect(figs.find((f) => f.key === 'error')).toMatchObject({ value: '+0.3 %', detail: 'VDS +0.25 % · body +0.05 %' });
     expect(figs.find((f) => f.key === 'compliance')?.detail).toBe('works down to');
   });
 
@@ -120,19 +121,59 @@ describe('summary, list, findings', () => {
 });
 
 describe('corners', () => {
-  it('flags the worst value of each column', () => {
-    const rows = cornerRows(tailMirror());
-    const flagged = (col: number) => rows.filter((r) => r.cells[col].flag === 'bad').map((r) => r.name);
-    expect(flagged(3)).toEqual(['slow-cold']);  // largest |error|
-    expect(flagged(4)).toEqual(['slow-cold']);  // lowest Rout
-    expect(flagged(5)).toEqual(['slow-cold']);  // NMOS: highest compliance voltage
-    expect(flagged(7)).toEqual(['slow-cold']);  // smallest margin
+  it('marks the worst value of each column; the error colour only where a requirement fails', () => {
+    // tailMirror requires ratio 4 (±1 %), Rout ≥ 20 MΩ, compliance ≤ 0.6 V, σ ≤ 0.3 %.
+    const rows = cornerRows(tailMirror(), { error: 0.01 });
+    const marked = (col: number) => rows.filter((r) => r.cells[col].flag !== undefined).map((r) => r.name);
+    const bad = (col: number) => rows.filter((r) => r.cells[col].flag === 'bad').map((r) => r.name);
+    expect(marked(3)).toEqual(['slow-cold']);  // largest |error|
+    expect(marked(4)).toEqual(['slow-cold']);  // lowest Rout
+    expect(marked(5)).toEqual(['slow-cold']);  // NMOS: highest compliance voltage
+    expect(marked(7)).toEqual(['slow-cold']);  // smallest margin
     expect(rows[0].cells[7].text).toBe('20 mV (outc)');
+    // 4.03 is +0.75 % from 4 (within ±1 %), a margin of +20 mV is saturated: worst, not failing.
+    expect(rows[0].cells[3].flag).toBe('worst');
+    expect(rows[0].cells[7].flag).toBe('worst');
+    // 19 MΩ < 20 MΩ, 0.66 V > 0.6 V, 0.33 % > 0.3 %: these fail their requirement.
+    expect(bad(4)).toEqual(['slow-cold']);
+    expect(bad(5)).toEqual(['slow-cold']);
+    expect(bad(6)).toEqual(['slow-cold']);
+    expect(bad(3)).toEqual([]);
+    expect(bad(7)).toEqual([]);
+  });
+
+  it('without requirements nothing is in the error colour, however bad it ranks', () => {
+    const rows = cornerRows(tailMirror({ require: {} }), { error: 0.01 });
+    expect(rows.flatMap((r) => r.cells.slice(1)).filter((c) => c.flag === 'bad')).toEqual([]);
+    expect(rows[0].cells[4].flag).toBe('worst');
+  });
+
+  it('a ratio beyond limits.error of the required ratio and a negative margin are failures', () => {
+    const m = tailMirror();
+    m.corners![0] = { ...m.corners![0]!, ratio: 4.1, error: 0.025, minMargin: -0.01 };
+    const rows = cornerRows(m, { error: 0.01 });
+    expect(rows[0].cells[3].flag).toBe('bad');
+    expect(rows[0].cells[7].flag).toBe('bad');
   });
 
   it('for PMOS the lowest compliance voltage is worst', () => {
     const m = tailMirror({ type: 'pmos' });
-    expect(cornerRows(m).filter((r) => r.cells[5].flag === 'bad').map((r) => r.name)).toEqual(['fast-hot']);
+    expect(cornerRows(m).filter((r) => r.cells[5].flag !== undefined).map((r) => r.name)).toEqual(['fast-hot']);
+  });
+});
+
+describe('Monte Carlo yield', () => {
+  it('says how many samples fail and why, never "meets every requirement" below 100 %', () => {
+    const m = tailMirror();
+    m.mc = { ...m.mc!, samples: 2000, yield: 1991 / 2000, failures: { convergence: 0, saturation: 6, ratio: 3, compliance: 0 } };
+    const y = monteCarloFigures(m).find((f) => f.key === 'yield')!;
+    expect(y.value).toBe('99.55 %');
+    expect(y.detail).toBe('9 of 2000 samples fail: 6 out of saturation, 3 ratio outside limits.tolerance');
+  });
+  it('names the per-sample checks when every sample passes', () => {
+    const m = tailMirror();
+    m.mc = { ...m.mc!, samples: 200, yield: 1 };
+    expect(monteCarloFigures(m).find((f) => f.key === 'yield')!.detail).toBe('all 200 samples saturated, ratio within limits.tolerance, and at require.compliance');
   });
 });
 

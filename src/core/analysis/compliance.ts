@@ -15,8 +15,12 @@
  * triode, say), the limit is reported as the far rail (NMOS: vdd, PMOS: vss): nothing works.
  */
 import { SOLVER } from '../defaults';
+import { carriesNode } from '../circuit/elements/device';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import { setVout, solveMirror, TRIAL, worstMargin } from './solve';
+
+/** The trials are read for saturation margins only: no polish without gmin. */
+const MARGINS_ONLY = { ...TRIAL, polish: false };
 
 export interface ComplianceResult {
   /** V, absolute. */
@@ -24,6 +28,10 @@ export interface ComplianceResult {
   /** False when no output voltage within the supplies saturates every device. */
   found: boolean;
   solves: number;
+  /** Index into circuit.mos of the device that sets the limit: the one out of saturation just
+   *  past it (found), or the worst one at the far rail (not found: it is out of saturation at
+   *  every output voltage). Absent when the mirror works all the way to its rail. */
+  limiter?: number;
 }
 
 interface Point { u: number; f: number; x: Float64Array; each: Float64Array }
@@ -38,12 +46,12 @@ const FLAT = 0.02;
 export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Array): ComplianceResult {
   const span = Math.abs(mc.span);
   const tol = SOLVER.complianceTol;
-  const nDev = mc.circuit.mos.length;
+  const nDev = mc.circuit.devices.length;
   const toV = (u: number): number => mc.rail + mc.sign * u;
   let solves = 0;
   const evalAt = (u: number, warm: Float64Array | undefined): Point => {
     setVout(mc, toV(u));
-    const r = solveMirror(mc, warm, TRIAL);
+    const r = solveMirror(mc, warm, MARGINS_ONLY);
     solves++;
     const each = new Float64Array(nDev);
     // A trial that does not converge counts as not saturated.
@@ -67,8 +75,7 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
         const ma = a.each[k]!;
         slope = Number.isFinite(ma) && Number.isFinite(mb) ? (mb - ma) / (b.u - a.u) : 1;
       } else {
-        const m = mc.circuit.mos[k]!;
-        slope = m.d === mc.circuit.outNode || m.s === mc.circuit.outNode ? 1 : 0;
+        slope = carriesNode(mc.circuit.devices[k]!, mc.circuit.outNode) ? 1 : 0;
       }
       if (!Number.isFinite(mb)) { t = Math.max(t, b.u + 0.25 * span); continue; }
       if (slope > FLAT) t = Math.max(t, b.u - mb / slope);
@@ -97,7 +104,7 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
       t = Math.min(Math.max(predict(before, last), 0), hi.u - 0.5 * tol);
     } else {
       const l = lo!;
-      if (l.u >= span) return { compliance: toV(span), found: false, solves };
+      if (l.u >= span) return { compliance: toV(span), found: false, solves, ...worstOf(l) };
       t = Math.min(Math.max(predict(before, last), l.u + 0.5 * tol), span);
     }
     const warm = lo && hi ? (t - lo.u < hi.u - t ? lo.x : hi.x) : last.x;
@@ -113,8 +120,24 @@ export function findCompliance(mc: MirrorCircuit, uNom: number, xNom: Float64Arr
       if (side === -1) hiF /= 2;
       side = -1;
     }
-    if (Number.isFinite(p.f) && Math.abs(p.f) < 0.1 * tol) return { compliance: toV(p.u), found: true, solves };
+    if (Number.isFinite(p.f) && Math.abs(p.f) < 0.1 * tol) return { compliance: toV(p.u), found: true, solves, ...limiterNear(p, lo) };
   }
-  if (hi) return { compliance: toV(hi.u), found: true, solves };
-  return { compliance: toV(span), found: false, solves };
+  if (hi) return { compliance: toV(hi.u), found: true, solves, ...limiterNear(hi, lo) };
+  return { compliance: toV(span), found: false, solves, ...worstOf(last) };
+}
+
+/** The device with the smallest margin at a point (finite margins only). */
+function worstOf(p: Point): { limiter?: number } {
+  let k0 = -1;
+  for (let k = 0; k < p.each.length; k++) {
+    const m = p.each[k]!;
+    if (Number.isFinite(m) && (k0 < 0 || m < p.each[k0]!)) k0 = k;
+  }
+  return k0 < 0 ? {} : { limiter: k0 };
+}
+
+/** The limiting device at compliance `at`: the worst one just past it (lo), else the one at
+ *  the edge there. */
+function limiterNear(at: Point, lo: Point | undefined): { limiter?: number } {
+  return lo && lo.each.some((m) => Number.isFinite(m)) ? worstOf(lo) : worstOf(at);
 }

@@ -11,8 +11,11 @@
  *   nominal voltages. Netlist devices keep their own names. Perturbations use these names.
  * - Not converged: iin, iout, ratio, nodes and devices describe the best iterate (for the
  *   finding's message only); rout and compliance are NaN, error, errorSplit, sigma absent.
+ *   A converged point with a node outside the rails is not an operating point: not converged,
+ *   with `beyondRails` (solve.ts).
  * - compliance: when no output voltage within the supplies saturates every device (a reference
- *   device in triode), the far rail (NMOS vdd, PMOS vss): "nothing works". A device within
+ *   device in triode), the far rail (NMOS vdd, PMOS vss): "nothing works", with `noCompliance`
+ *   naming the device that is out of saturation at every Vout (front ends show that, not a figure). A device within
  *   1 µV of the edge counts as saturated (compliance.ts).
  * - sigma: present when any device's type has avt or abeta; a missing coefficient counts 0.
  * - errorSplit: see errorSplit.ts (geometry, body, vds as successive model evaluations).

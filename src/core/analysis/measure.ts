@@ -55,7 +55,7 @@ export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
   if (!mc.pair) return undefined;
-  const a = mc.circuit.mos[mc.pair.ref]!.size, b = mc.circuit.mos[mc.pair.out]!.size;
+  const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
   const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
   return Number.isFinite(r) ? r : undefined;
 }
@@ -92,6 +92,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   base.iin = iin; base.iout = iout; base.ratio = ratio;
   base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
   if (sol.note) base.solveNote = sol.note;
+  if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
   const ideal = ratioIdealOf(t, mc);
   if (ideal !== undefined) base.ratioIdeal = ideal;
@@ -100,19 +101,19 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   if (ideal !== undefined && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
     if (mc.pair) {
-      base.errorSplit = splitError(mc.circuit.mos[mc.pair.ref]!, mc.circuit.mos[mc.pair.out]!, ideal, mc.ws.v);
+      base.errorSplit = splitError(mc.circuit.devices[mc.pair.ref]!, mc.circuit.devices[mc.pair.out]!, ideal, mc.ws.v);
     }
   }
   const lam = outputAdjoint(mc.circuit, mc.ws);
   if (lam) {
     const g = outputConductance(mc.circuit, mc.ws, lam);
     base.rout = g !== 0 ? 1 / g : Infinity;
-    const sigma = outputSigma(mc.circuit.mos, outputSensitivities(mc.circuit, mc.ws, lam), iout);
+    const sigma = outputSigma(mc.circuit.devices, outputSensitivities(mc.circuit, mc.ws, lam), iout);
     if (sigma !== undefined) base.sigma = sigma;
   }
   const byRole: Record<string, SmallSignal | undefined> = {};
   for (const role in mc.byRole) {
-    const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.mos[k]!;
+    const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.devices[k]!;
     byRole[role] = { gm: d.gm, gds: d.gds, gmb: m.b === m.s ? 0 : d.gmb };
   }
   const approx = routApprox(t.mirror.kind, byRole);
@@ -120,7 +121,9 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
-  base.compliance = findCompliance(mc, uNom, xNom).compliance;
+  const comp = findCompliance(mc, uNom, xNom);
+  base.compliance = comp.compliance;
+  if (!comp.found && comp.limiter !== undefined) base.noCompliance = { device: mc.circuit.devices[comp.limiter]!.name };
 
   if (opts.curve) {
     const { vdd, vss } = t.spec.supplies;

@@ -6,27 +6,19 @@
  * linearized circuit. A coefficient the process leaves out counts as zero; the figure is absent
  * only when no device has either coefficient.
  */
-import type { MosInstance } from '../circuit/circuit';
+import { deviceSigmas } from '../circuit/elements/device';
+import type { DeviceElement } from '../circuit/elements/element';
 import type { Sensitivities } from '../circuit/smallSignal';
 
-/** Per-device 1σ of ΔVT (V) and of Δβ/β, or undefined when the process gives neither. */
-export function deviceSigmas(m: MosInstance): { vt: number; beta: number } | undefined {
-  const { avt, abeta } = m.params;
-  if (avt === undefined && abeta === undefined) return undefined;
-  const root = Math.sqrt(2 * m.size.m * m.size.w * m.size.l);
-  if (!(root > 0)) return undefined;
-  return { vt: (avt ?? 0) / root, beta: (abeta ?? 0) / root };
-}
-
-export function outputSigma(mos: MosInstance[], sens: Sensitivities, iout: number): number | undefined {
+export function outputSigma(devices: DeviceElement[], sens: Sensitivities, iout: number): number | undefined {
   let sum = 0;
   let any = false;
-  mos.forEach((m, k) => {
-    const s = deviceSigmas(m);
+  devices.forEach((d, k) => {
+    const s = deviceSigmas(d);
     if (!s) return;
     any = true;
     const svt = sens.vt[k]! / iout, sb = sens.beta[k]! / iout;
-    sum += svt * svt * s.vt * s.vt + sb * sb * s.beta * s.beta;
+    sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
   });
   return any && Number.isFinite(sum) ? Math.sqrt(sum) : undefined;
 }

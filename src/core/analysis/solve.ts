@@ -2,10 +2,8 @@
  * Build a measured mirror's circuit and solve it; read node voltages, currents and device
  * reports from the solution. Everything here returns data, never throws on bad circuits.
  */
-import { SOLVER } from '../defaults';
 import { newChannelEval } from '../models/core';
-import { evalPrepared } from '../models/evaluate';
-import { evalFrame } from '../models/terminal';
+import { currentNodes, deviceMargin, deviceReport } from '../circuit/elements/device';
 import { buildNetlist } from '../circuit/netlistCircuit';
 import { solveDc, type DcOptions, type DcResult } from '../circuit/newton';
 import { buildTemplate, type PerturbationLike } from '../circuit/templates';
@@ -36,9 +34,24 @@ export function setVout(mc: MirrorCircuit, vout: number): void {
   mc.circuit.fixedV[mc.circuit.outNode] = vout;
 }
 
+/** A solve's outcome: the solver's result, and when a node lies outside the held voltages, where. */
+export interface MirrorSolve extends DcResult { beyond?: RailExcess }
+
+/**
+ * A node the solve put outside every held voltage (rails, held sources, the output): MOSFETs and
+ * resistors cannot take a node there, only a forced current with no device able to carry it, so
+ * the point is not a valid operating point. `stack` is the chain of channels from the mirror's
+ * own rail to that node, `need` the voltage that chain takes (V).
+ */
+export interface RailExcess { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number }
+
+/** V: a node this far past a held voltage is outside the rails (far above gmin's offsets). */
+const RAIL_TOL = 1e-3;
+
 /** Solve at the present held voltages. With `warm`, Newton starts from it and falls back to the
- *  topology guess with every retry; without, it starts from the topology guess. */
-export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOptions = {}): DcResult {
+ *  topology guess with every retry; without, it starts from the topology guess. A converged
+ *  point with a node outside the rails comes back as not converged, with `beyond`. */
+export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOptions = {}): MirrorSolve {
   const c = mc.circuit;
   if (c.problems.length > 0) {
     mc.guess();
@@ -49,7 +62,7 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
   let iterations = 0;
   if (warm) {
     mc.ws.v.set(warm);
-    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, plainOnly: true });
+    r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, polish: opts.polish, plainOnly: true });
     iterations = r.iterations;
   }
   if (!r || !r.converged) {
@@ -60,18 +73,53 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
   return r.converged ? sanity(mc, r) : r;
 }
 
-/** A converged point far outside the supplies means the forced currents have no physical
- *  path (an input current no device can carry): report it as not converged. */
-function sanity(mc: MirrorCircuit, r: DcResult): DcResult {
+/** A converged point with a node outside the rails means the forced currents have no physical
+ *  path (an input current the stack cannot carry within the supply): report it as not converged. */
+function sanity(mc: MirrorCircuit, r: DcResult): MirrorSolve {
   const c = mc.circuit;
-  const bound = 10 * Math.abs(mc.span) + 10;
+  let lo = Infinity, hi = -Infinity;
+  for (let k = c.nFree; k < c.nodeNames.length; k++) { lo = Math.min(lo, c.fixedV[k]!); hi = Math.max(hi, c.fixedV[k]!); }
+  let worst = -1, excess = RAIL_TOL;
   for (let k = 0; k < c.nFree; k++) {
     const v = mc.ws.v[k]!;
-    if (!(Math.abs(v - c.vmid) <= bound)) {
-      return { converged: false, iterations: r.iterations, residual: r.residual, note: `node ${c.nodeNames[k]} would sit at ${v.toPrecision(3)} V, far outside the supplies: no device can carry the forced current` };
-    }
+    const out = Number.isFinite(v) ? Math.max(lo - v, v - hi) : Infinity;
+    if (out > excess) { excess = out; worst = k; }
   }
-  return r;
+  if (worst < 0) return r;
+  const v = mc.ws.v[worst]!;
+  const node = c.nodeNames[worst]!;
+  const rail = v < lo ? 'vss' : 'vdd';
+  const stack = channelPath(mc, worst);
+  const need = Math.abs(v - mc.rail);
+  const where = excess > 10 * Math.abs(mc.span) + 10 ? 'far outside the supplies' : rail === 'vss' ? 'below vss' : 'above vdd';
+  const note = `node ${node} would sit at ${v.toPrecision(3)} V, ${where}: no device can carry the forced current within the supply`;
+  return { converged: false, iterations: r.iterations, residual: r.residual, note, beyond: { node, v, rail, stack, need } };
+}
+
+/** Devices on the shortest chain of channels (drain–source) from the mirror's own rail to node
+ *  `to`, rail side first; empty when no such chain exists. */
+function channelPath(mc: MirrorCircuit, to: number): string[] {
+  const c = mc.circuit;
+  const start = c.nodeNames.findIndex((n, k) => k >= c.nFree && c.fixedV[k] === mc.rail && (n === 'vss' || n === 'vdd'));
+  if (start < 0) return [];
+  const via = new Map<number, { from: number; dev: number }>([[start, { from: -1, dev: -1 }]]);
+  const queue = [start];
+  while (queue.length > 0) {
+    const n = queue.shift()!;
+    if (n === to) break;
+    c.devices.forEach((dev, k) => {
+      const [a, b] = currentNodes(dev);
+      const next = a === n ? b : b === n ? a : -1;
+      // Through free nodes only: a held node (another rail, the output) ends a chain.
+      if (next < 0 || via.has(next) || (next >= c.nFree && next !== to)) return;
+      via.set(next, { from: n, dev: k });
+      queue.push(next);
+    });
+  }
+  if (!via.has(to)) return [];
+  const names: string[] = [];
+  for (let n = to; n !== start;) { const e = via.get(n)!; names.push(c.devices[e.dev]!.name); n = e.from; }
+  return names.reverse();
 }
 
 /** A, the output current (positive for a working mirror) at the assembled solution. */
@@ -85,31 +133,16 @@ export function nodeVoltages(mc: MirrorCircuit): Record<string, number> {
   return out;
 }
 
-/** Reports of every device in circuit order (index k is circuit.mos[k]). */
+/** Reports of every device in circuit order (index k is circuit.devices[k]). */
 export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
   const v = mc.ws.v;
-  return mc.circuit.mos.map((m) => {
-    const p = m.dev.sign;
-    const vgs = p * (v[m.g]! - v[m.s]!);
-    const vds = p * (v[m.d]! - v[m.s]!);
-    const vbs = p * (v[m.b]! - v[m.s]!);
-    const e = evalPrepared(m.dev, vgs, vds, vbs);
-    const r: DeviceReport = {
-      name: m.name, role: m.role, type: m.type, w: m.size.w, l: m.size.l, m: m.size.m,
-      id: e.id, vgs, vds, vbs, vth: e.vth, vov: vgs - e.vth, vdsat: e.vdsat, margin: vds - e.vdsat,
-      region: e.region, inversion: e.inversion, ic: e.ic, gm: e.gm, gds: e.gds, gmb: e.gmb,
-      ro: e.gds > 0 ? 1 / e.gds : 1 / SOLVER.gmin,
-      gmId: e.id !== 0 ? e.gm / e.id : 0,
-    };
-    if (m.size.auto?.w || m.size.auto?.l) r.sized = true;
-    return r;
-  });
+  return mc.circuit.devices.map((d) => deviceReport(d, v));
 }
 
 /** The devices a report shows: the shared reference and the measured output's devices (a
  *  bank's other outputs are in the circuit but belong to their own reports). */
 export function shownDevices(mc: MirrorCircuit, all: DeviceReport[]): DeviceReport[] {
-  return all.filter((_, k) => mc.circuit.mos[k]!.measured);
+  return all.filter((_, k) => mc.circuit.devices[k]!.measured);
 }
 
 const scratch = newChannelEval();
@@ -120,12 +153,9 @@ const scratch = newChannelEval();
 export function worstMargin(mc: MirrorCircuit, each?: Float64Array): number {
   const v = mc.ws.v;
   let worst = Infinity;
-  mc.circuit.mos.forEach((m, k) => {
-    if (!m.measured) { if (each) each[k] = NaN; return; }
-    const p = m.dev.sign;
-    const vds = p * (v[m.d]! - v[m.s]!);
-    evalFrame(m.dev, p * (v[m.g]! - v[m.s]!), vds, p * (v[m.b]! - v[m.s]!), scratch);
-    const margin = scratch.region === 0 ? p * (v[m.g]! - v[m.s]!) - scratch.vth : vds - scratch.vdsat;
+  mc.circuit.devices.forEach((d, k) => {
+    if (!d.measured) { if (each) each[k] = NaN; return; }
+    const margin = deviceMargin(d, v, scratch);
     if (each) each[k] = margin;
     if (margin < worst) worst = margin;
   });

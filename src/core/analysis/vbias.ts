@@ -27,7 +27,7 @@ const scratch = newChannelEval();
 function refExcess(mc: MirrorCircuit, margin: number): number {
   const k = mc.byRole.ref;
   if (k === undefined) return NaN;
-  const m = mc.circuit.mos[k]!;
+  const m = mc.circuit.devices[k]!;
   const v = mc.ws.v, p = m.dev.sign;
   const vds = p * (v[m.d]! - v[m.s]!);
   evalFrame(m.dev, p * (v[m.g]! - v[m.s]!), vds, p * (v[m.b]! - v[m.s]!), scratch);
@@ -68,7 +68,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   }
   const { sign, rail } = mc;
   const span = Math.abs(mc.span);
-  const ref = mc.circuit.mos[kRef]!, refc = mc.circuit.mos[kRefc]!;
+  const ref = mc.circuit.devices[kRef]!, refc = mc.circuit.devices[kRefc]!;
   // Start from the hand estimate: u_vbias = VDSsat_ref + margin + VGS_refc(VSB).
   mc.guess();
   const i = Math.abs(mc.iin());
@@ -88,7 +88,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
    *  where VDSsat follows the gate (square law: VOV; EKV: about VOV/n). */
   const evalAt = (u: number): { g: number; slope: number } => {
     fixed[node] = rail + sign * u;
-    const r = solveMirror(mc, warm);
+    const r = solveMirror(mc, warm, { polish: false });
     if (!r.converged) return { g: NaN, slope: NaN };
     warm = mc.ws.v.slice();
     const dx = heldNodeResponse(mc.ws, node);

@@ -1,28 +1,20 @@
 /**
  * The elaborated circuit the solver works on: nodes indexed with the unknown (free) nodes
- * first and the held (fixed) nodes after them, so the Jacobian's free block is contiguous.
+ * first and the held (fixed) nodes after them, so the Jacobian's free block is contiguous;
+ * the elements as a closed union (elements/element.ts), and the Jacobian's pattern with, for a
+ * circuit solved sparse, its fill-reducing order — both computed once here.
  */
-import type { DeviceParams, DeviceSize, Polarity } from '../types';
-import type { ModelDevice } from '../models/device';
+import { SOLVER } from '../defaults';
+import type {
+  CircuitElement, CurrentSourceElement, DeviceElement, MosElement, ResistorElement, VoltageSourceElement,
+} from './elements/element';
+import { hasSlots, patternOf } from './elements/stamp';
+import { JacobianPattern } from './jacobian';
+import { minimumDegree } from './ordering';
 
-export interface MosInstance {
-  /** DeviceReport.name. */
-  name: string;
-  role: string;
-  type: Polarity;
-  size: DeviceSize;
-  params: DeviceParams;
-  dev: ModelDevice;
-  d: number; g: number; s: number; b: number;
-  /** Counted for the measured output's compliance (its own and the shared reference devices). */
-  measured: boolean;
-}
-
-/** Ideal current `i` (A) flowing from node `from` through the source into node `to`. */
-export interface CurrentSourceInstance { name: string; from: number; to: number; i: number }
-
-/** Conductance g (S) between nodes a and b. */
-export interface ResistorInstance { name: string; a: number; b: number; g: number }
+/** What a template or netlist says of a MOSFET; the builder adds its terminals. */
+export type MosInstance = MosElement;
+export type MosDescription = Omit<MosElement, 'kind' | 'd' | 'g' | 's' | 'b' | 'slot'>;
 
 export interface Circuit {
   nodeNames: string[];
@@ -30,9 +22,17 @@ export interface Circuit {
   nFree: number;
   /** Held voltages (V, absolute) at indices ≥ nFree; the free entries are unused. */
   fixedV: Float64Array;
-  mos: MosInstance[];
-  isrc: CurrentSourceInstance[];
-  res: ResistorInstance[];
+  /** Every element, in the order they were added (a stamp order fixed per circuit). */
+  elements: CircuitElement[];
+  /** The transistors among them, in the same order: DeviceReport k is devices[k]. */
+  devices: DeviceElement[];
+  jacobian: JacobianPattern;
+  /** Elimination order of the free block when it is solved sparse (more than
+   *  SOLVER.denseMaxNodes unknowns); absent for the dense solve. */
+  ordering?: Int32Array;
+  /** Whether an independent current source drives the circuit (source stepping ramps the
+   *  current sources; without any, it ramps the held voltages). */
+  hasCurrentSources: boolean;
   /** Index of the held output node. */
   outNode: number;
   /** +1: iout is the current the output source delivers into the node (NMOS sinks it);
@@ -47,14 +47,17 @@ export interface Circuit {
 
 type NodeEntry = { fixed: false } | { fixed: true; v: number };
 
+/** An element as added, with node names; built into a CircuitElement with node indices. */
+type Pending =
+  | { kind: 'mos'; m: MosDescription; nodes: [string, string, string, string] }
+  | { kind: 'resistor'; e: ResistorElement; a: string; b: string }
+  | { kind: 'current'; e: CurrentSourceElement; from: string; to: string };
+
 /** Collects nodes by name and elements by node name, then numbers them (free nodes first). */
 export class CircuitBuilder {
   private readonly nodes = new Map<string, NodeEntry>();
   private readonly order: string[] = [];
-  private readonly mosList: MosInstance[] = [];
-  private readonly mosTerminals: string[] = [];
-  private readonly isrcList: { name: string; from: string; to: string; i: number }[] = [];
-  private readonly resList: { name: string; a: string; b: string; g: number }[] = [];
+  private readonly pending: Pending[] = [];
   readonly problems: string[] = [];
 
   /** A free node (created on first use). */
@@ -63,7 +66,7 @@ export class CircuitBuilder {
     return name;
   }
 
-  /** A node held at v (V); holding a node twice keeps the later value. */
+  /** A node held at v (V) by an ideal voltage source; holding a node twice keeps the later value. */
   hold(name: string, v: number): string {
     if (!this.nodes.has(name)) this.order.push(name);
     this.nodes.set(name, { fixed: true, v });
@@ -72,24 +75,23 @@ export class CircuitBuilder {
 
   isHeld(name: string): boolean { return this.nodes.get(name)?.fixed === true; }
 
-  mos(m: Omit<MosInstance, 'd' | 'g' | 's' | 'b'>, d: string, g: string, s: string, b: string): void {
+  mos(m: MosDescription, d: string, g: string, s: string, b: string): void {
     this.node(d); this.node(g); this.node(s); this.node(b);
-    this.mosList.push({
-      name: m.name, role: m.role, type: m.type, size: m.size, params: m.params, dev: m.dev, measured: m.measured,
-      d: 0, g: 0, s: 0, b: 0,
-    });
-    this.mosTerminals.push(d, g, s, b);
+    this.pending.push({ kind: 'mos', m, nodes: [d, g, s, b] });
   }
 
   current(name: string, from: string, to: string, i: number): void {
     this.node(from); this.node(to);
-    this.isrcList.push({ name, from, to, i });
+    this.pending.push({ kind: 'current', e: { kind: 'current', name, from: 0, to: 0, i }, from, to });
   }
 
-  resistor(name: string, a: string, b: string, r: number): void {
+  /** A resistor of r Ω; the returned element gets its node indices when the circuit is built. */
+  resistor(name: string, a: string, b: string, r: number): ResistorElement {
     this.node(a); this.node(b);
     if (!(r > 0) || !Number.isFinite(r)) this.problems.push(`resistor ${name}: ${r} Ω is not a positive resistance`);
-    this.resList.push({ name, a, b, g: r > 0 && Number.isFinite(r) ? 1 / r : 0 });
+    const e: ResistorElement = { kind: 'resistor', name, a: 0, b: 0, g: r > 0 && Number.isFinite(r) ? 1 / r : 0, slot: 0 };
+    this.pending.push({ kind: 'resistor', e, a, b });
+    return e;
   }
 
   build(out: string, outSign: 1 | -1, vss: number, vdd: number): Circuit {
@@ -100,22 +102,53 @@ export class CircuitBuilder {
     const index = new Map(nodeNames.map((n, i) => [n, i] as const));
     const at = (n: string): number => index.get(n) ?? 0;
     const fixedV = new Float64Array(nodeNames.length);
+    const elements: CircuitElement[] = [];
     held.forEach((n, k) => {
       const e = this.nodes.get(n);
       fixedV[free.length + k] = e && e.fixed ? e.v : 0;
+      const source: VoltageSourceElement = { kind: 'voltage', name: n, node: free.length + k };
+      elements.push(source);
     });
     if (!this.isHeld(out)) this.problems.push(`output node ${out} is not held by a voltage`);
+    const devices: DeviceElement[] = [];
+    for (const p of this.pending) {
+      switch (p.kind) {
+        case 'mos': {
+          const [d, g, s, b] = p.nodes;
+          const m = p.m;
+          // Field by field: an object spread here costs as much as a small solve.
+          const e: MosElement = {
+            kind: 'mos', name: m.name, role: m.role, type: m.type, size: m.size, params: m.params, dev: m.dev,
+            measured: m.measured, d: at(d), g: at(g), s: at(s), b: at(b), slot: 0,
+          };
+          elements.push(e);
+          devices.push(e);
+          break;
+        }
+        case 'resistor': p.e.a = at(p.a); p.e.b = at(p.b); elements.push(p.e); break;
+        case 'current': p.e.from = at(p.from); p.e.to = at(p.to); elements.push(p.e); break;
+      }
+    }
+    let count = 0;
+    for (const e of elements) patternOf(e, () => { count++; });
+    const entries = new Int32Array(2 * count);
+    let filled = 0;
+    const add = (row: number, col: number): void => { entries[filled++] = row; entries[filled++] = col; };
+    for (const e of elements) {
+      if (hasSlots(e)) e.slot = filled >> 1;
+      patternOf(e, add);
+    }
+    const n = free.length;
+    const jacobian = new JacobianPattern(nodeNames.length, n, entries);
+    let ordering: Int32Array | undefined;
+    if (n > SOLVER.denseMaxNodes) {
+      const o = minimumDegree(n, jacobian.colPtr, jacobian.rowIdx, jacobian.freeEnd, SOLVER.maxFactorWork);
+      if (o && o.flops <= SOLVER.maxFactorWork) ordering = o.order;
+      else this.problems.push(`the circuit is too densely connected to solve: eliminating its ${n} nodes would take more than ${SOLVER.maxFactorWork.toExponential(0)} operations per Newton iteration`);
+    }
     return {
-      nodeNames,
-      nFree: free.length,
-      fixedV,
-      mos: this.mosList.map((m, k) => {
-        const t = this.mosTerminals;
-        m.d = at(t[4 * k]!); m.g = at(t[4 * k + 1]!); m.s = at(t[4 * k + 2]!); m.b = at(t[4 * k + 3]!);
-        return m;
-      }),
-      isrc: this.isrcList.map((c) => ({ name: c.name, from: at(c.from), to: at(c.to), i: c.i })),
-      res: this.resList.map((r) => ({ name: r.name, a: at(r.a), b: at(r.b), g: r.g })),
+      nodeNames, nFree: n, fixedV, elements, devices, jacobian, ordering,
+      hasCurrentSources: this.pending.some((p) => p.kind === 'current'),
       outNode: at(out),
       outSign,
       vmid: 0.5 * (vss + vdd),

@@ -1,7 +1,8 @@
 /** Circuit elaboration, the Newton DC solver and the small-signal analysis. */
-export { CircuitBuilder, type Circuit, type MosInstance, type CurrentSourceInstance, type ResistorInstance } from './circuit';
-export { Workspace, assemble } from './assemble';
-export { luFactor, luSolve, luSolveTranspose } from './lu';
+export { CircuitBuilder, type Circuit, type MosInstance } from './circuit';
+export type { CircuitElement, DeviceElement, MosElement, ResistorElement, CurrentSourceElement, VoltageSourceElement } from './elements/element';
+export { Workspace } from './workspace';
+export { assemble } from './assemble';
 export { solveDc, type DcOptions, type DcResult } from './newton';
 export { factorAtSolution, outputAdjoint, outputConductance, outputSensitivities, heldNodeResponse, type Sensitivities } from './smallSignal';
 export { buildTemplate, idealRatio, isBank, type PerturbationLike } from './templates';

@@ -1,6 +1,6 @@
 /**
- * Dense LU with partial pivoting on a row-major Float64Array, in place. The circuits are at
- * most a few dozen nodes, where a dense factorization is both simplest and fastest.
+ * Dense LU with partial pivoting on a row-major Float64Array, in place: the solve of circuits
+ * of a few dozen nodes (every template), where it is both simplest and fastest.
  */
 
 /** Factor the n×n matrix `a` in place (PA = LU, unit lower L). `perm[i]` is the original row

@@ -2,7 +2,7 @@
  * A mirror elaborated into a circuit plus what the measurements need to read it: the input
  * branch, the mirror pair, devices by role, and a topology-aware initial guess.
  */
-import { Workspace } from './assemble';
+import { Workspace } from './workspace';
 import type { Circuit } from './circuit';
 
 export interface MirrorCircuit {
@@ -18,9 +18,9 @@ export interface MirrorCircuit {
   guess(): void;
   /** A, the input-branch current at ws.v. */
   iin(): number;
-  /** Indices into circuit.mos of the mirror pair (ratioIdeal: out over ref). */
+  /** Indices into circuit.devices of the mirror pair (ratioIdeal: out over ref). */
   pair?: { ref: number; out: number };
-  /** Index into circuit.mos of the measured output's device (or a shared one) by role. */
+  /** Index into circuit.devices of the measured output's device (or a shared one) by role. */
   byRole: Record<string, number>;
   /** Held node of the wide-swing cascode gate. */
   vbiasNode?: number;

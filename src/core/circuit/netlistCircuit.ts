@@ -58,7 +58,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
 
   const guess = (): void => {
     for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
-    for (const x of c.mos) {
+    for (const x of c.devices) {
       if (x.d !== x.g || x.d >= c.nFree) continue;
       const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;
       if (x.s !== ownRail) continue;
@@ -67,7 +67,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
     }
   };
 
-  const find = (name: string): number => c.mos.findIndex((x) => x.name === name);
+  const find = (name: string): number => c.devices.findIndex((x) => x.name === name);
   const pr = m.pair ? find(m.pair.ref) : -1;
   const po = m.pair ? find(m.pair.out) : -1;
   return {

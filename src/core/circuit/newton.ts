@@ -1,12 +1,14 @@
 /**
  * DC operating point by Newton on the nodal equations: analytic Jacobian, step limiting, then
  * source stepping and gmin stepping when plain Newton fails. Bounded by an iteration cap per
- * attempt and a wall-clock budget; a failure is data (converged: false, with what was tried).
+ * attempt and a wall-clock budget read every iteration; a failure is data (converged: false,
+ * with what was tried). A converged point is polished without gmin (SOLVER.gminFinal), so the
+ * figures at nanoampere currents carry no trace of it.
  */
 import { SOLVER } from '../defaults';
-import { assemble, copyFreeBlock, type Workspace } from './assemble';
+import { assemble } from './assemble';
 import type { Circuit } from './circuit';
-import { luFactor, luSolve } from './lu';
+import type { Workspace } from './workspace';
 
 export interface DcOptions {
   /** ms clock; injected so tests and hosts can control time (default Date.now). */
@@ -18,6 +20,9 @@ export interface DcOptions {
   plainOnly?: boolean;
   /** Newton iterations per attempt (default SOLVER.maxIterations). */
   maxIterations?: number;
+  /** Polish a converged point without gmin (default true); a solve read only for saturation
+   *  margins (the compliance search) skips it. */
+  polish?: boolean;
 }
 
 export interface DcResult {
@@ -46,27 +51,47 @@ function maxResidual(ws: Workspace): number {
   return r;
 }
 
-/** Work limits of one solve: a wall-clock deadline, which only ends a solve once it has done
- *  one attempt's worth of iterations (so a host that stalls the thread for a moment does not
- *  turn an easy solve into a failure), and a hard cap on the iterations of all attempts. */
+/** Work limits of one solve, checked every iteration: a hard cap on the iterations of all
+ *  attempts, and a wall-clock deadline. The deadline ends a solve only once it has done a fixed
+ *  amount of work (GRACE_WORK), so a host that stalls the thread for a moment does not turn an
+ *  easy solve of a small circuit into a failure (it gets a whole attempt's iterations first),
+ *  while a large circuit is held to the clock from its first iterations. */
 class Budget {
   private readonly deadline: number;
+  private readonly grace: number;
   iterations = 0;
-  constructor(private readonly clock: () => number, ms: number, readonly maxIterations: number) { this.deadline = clock() + ms; }
+  constructor(private readonly clock: () => number, ms: number, readonly maxIterations: number, workPerIteration: number) {
+    this.deadline = clock() + ms;
+    this.grace = Math.max(1, Math.min(maxIterations, Math.floor(GRACE_WORK / Math.max(1, workPerIteration))));
+  }
   expired(): boolean {
     if (this.iterations >= TOTAL_ITERATIONS_FACTOR * this.maxIterations) return true;
-    return this.iterations >= this.maxIterations && this.clock() > this.deadline;
+    return this.iterations >= this.grace && this.clock() > this.deadline;
   }
 }
 
 /** Every attempt of one solve together: at most this many times SOLVER.maxIterations. */
 const TOTAL_ITERATIONS_FACTOR = 25;
 
+/** Work a solve may do before the clock can end it, in the units of workOf (about a
+ *  millisecond here): every template circuit gets SOLVER.maxIterations iterations of grace. */
+const GRACE_WORK = 200_000;
+
+/** Work of one Newton iteration: one stamp per element, and the factorization (dense: n³/3;
+ *  sparse: about ten operations per unknown on the trees and stars of bias circuits). */
+function workOf(c: Circuit): number {
+  const n = c.nFree;
+  return c.elements.length + (c.ordering ? 10 * n : (n * n * n) / 3);
+}
+
+/** Iterations of the polish without gmin: it starts at the solution with gmin. */
+const POLISH_ITERATIONS = 20;
+
 /** Newton at one (alpha, gmin). On success ws.G/F hold the equations at the solution. */
 function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: Budget, track: boolean,
   bestRes: { value: number }): Attempt {
   const maxIterations = budget.maxIterations;
-  const { n, v, F, dx, lu, perm, tmp } = ws;
+  const { n, v, F, dx } = ws;
   const halfSpan = c.vmid - c.vss;
   let small = false;
   ws.factored = false;
@@ -83,10 +108,9 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
     if (track && res < bestRes.value) { bestRes.value = res; ws.best.set(v); }
     if (okRes && (small || n === 0)) return { ok: true, iterations: it, residual: res, reason: '' };
     if (it === maxIterations) return { ok: false, iterations: it, residual: res, reason: `${it} iterations` };
-    copyFreeBlock(ws);
-    if (!luFactor(lu, n, perm)) return { ok: false, iterations: it, residual: res, reason: 'singular Jacobian' };
+    if (!ws.solver.factor(ws.G)) return { ok: false, iterations: it, residual: res, reason: 'singular Jacobian' };
     for (let k = 0; k < n; k++) dx[k] = -F[k]!;
-    luSolve(lu, n, perm, dx, tmp);
+    ws.solver.solve(dx);
     // Step limiting: no node moves more than SOLVER.maxStep, plus half of how far it already
     // sits outside the supplies, so a runaway node (a current with no path) still gets far
     // enough in a few dozen iterations to be recognised, while normal nodes creep.
@@ -103,16 +127,53 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
       if (Math.abs(step) > SOLVER.vTol + SOLVER.relTol * Math.abs(v[k]!)) small = false;
       v[k] = v[k]! + step;
     }
-    // The clock is read every 8th iteration: an iteration takes microseconds.
     budget.iterations++;
-    if ((it & 7) === 7 && budget.expired()) return { ok: false, iterations: it + 1, residual: res, reason: 'time budget' };
+    if (budget.expired()) return { ok: false, iterations: it + 1, residual: res, reason: 'time budget' };
   }
   return { ok: false, iterations: maxIterations, residual: Infinity, reason: 'iteration cap' };
 }
 
 /** Solve from the free-node voltages already in ws.v (the initial guess). */
 export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResult {
-  const budget = new Budget(opts.clock ?? Date.now, opts.budgetMs ?? SOLVER.timeBudgetMs, opts.maxIterations ?? SOLVER.maxIterations);
+  const clock = opts.clock ?? Date.now;
+  const budgetMs = opts.budgetMs ?? SOLVER.timeBudgetMs;
+  const budget = new Budget(clock, budgetMs, opts.maxIterations ?? SOLVER.maxIterations, workOf(c));
+  const r = solveWithGmin(c, ws, opts, budget);
+  if (!r.converged || opts.polish === false || !gminMatters(c, ws)) return r;
+  // The polish's iterations are not counted: `iterations` says how hard the point was to find.
+  const p = polish(c, ws, new Budget(clock, budgetMs, POLISH_ITERATIONS, workOf(c)));
+  if (p.ok) r.residual = p.residual;
+  return r;
+}
+
+/** Whether gmin could show in a reported figure (six significant digits): its current is more
+ *  than POLISH_SHARE of a node's currents, or it is more than POLISH_SHARE of a conducting
+ *  channel's own conductance (Rout). At microamperes neither holds; at nanoamperes both do. */
+function gminMatters(c: Circuit, ws: Workspace): boolean {
+  const g = SOLVER.gmin;
+  if (g > POLISH_SHARE * ws.gdsFloor) return true;
+  for (let k = 0; k < c.nFree; k++) {
+    if (g * Math.abs(ws.v[k]! - c.vmid) > POLISH_SHARE * ws.absI[k]!) return true;
+  }
+  return false;
+}
+
+const POLISH_SHARE = 1e-6;
+
+/** Newton again from the solution with gmin, with gmin lowered to SOLVER.gminFinal: a few
+ *  iterations move the point by gmin's share of each node's currents. If it fails (a node held
+ *  only by gmin that now wanders), the solution with gmin stands. */
+function polish(c: Circuit, ws: Workspace, budget: Budget): Attempt {
+  ws.best.set(ws.v);
+  const a = newton(c, ws, 1, SOLVER.gminFinal, budget, false, { value: Infinity });
+  if (a.ok) return a;
+  ws.v.set(ws.best);
+  assemble(c, ws, 1, SOLVER.gmin);
+  ws.factored = false;
+  return a;
+}
+
+function solveWithGmin(c: Circuit, ws: Workspace, opts: DcOptions, budget: Budget): DcResult {
   const gmin = SOLVER.gmin;
   const bestRes = { value: Infinity };
   ws.saved.set(ws.v);
@@ -127,7 +188,7 @@ export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResu
   // failure. Held voltages stay put (a mirror is driven by its currents: at a small current
   // every device sits just above threshold, an easy start); a circuit without current sources
   // (resistor input) ramps its held voltages from vss instead.
-  const rampVoltages = c.isrc.length === 0;
+  const rampVoltages = !c.hasCurrentSources;
   if (!budget.expired()) {
     for (let k = 0; k < c.nFree; k++) ws.v[k] = rampVoltages ? c.vss + (ws.saved[k]! - c.vss) / SOLVER.sourceSteps : c.vmid;
     let alpha = 0;

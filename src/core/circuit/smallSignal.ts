@@ -1,18 +1,17 @@
 /**
  * Small-signal analysis at a converged operating point, from the same Jacobian Newton used:
  * the output node's conductance (Rout) and the output current's sensitivity to every device's
- * threshold and current factor, both from one adjoint solve Jᵀ·λ = ∂F_out/∂x.
+ * mismatch parameters, both from one adjoint solve Jᵀ·λ = ∂F_out/∂x. It sees the elements only
+ * through their stamps (the Jacobian) and the devices' mismatch derivatives.
  */
-import { evalTerminal } from '../models/terminal';
-import { copyFreeBlock, type Workspace } from './assemble';
 import type { Circuit } from './circuit';
-import { luFactor, luSolve, luSolveTranspose } from './lu';
+import { currentNodes, deviceMismatchDerivatives } from './elements/device';
+import type { Workspace } from './workspace';
 
 /** Factor the free block of ws.G (assembled at the solution) unless already done. */
 export function factorAtSolution(ws: Workspace): boolean {
   if (ws.factored) return true;
-  copyFreeBlock(ws);
-  ws.factored = luFactor(ws.lu, ws.n, ws.perm);
+  ws.factored = ws.solver.factor(ws.G);
   return ws.factored;
 }
 
@@ -21,46 +20,48 @@ export function factorAtSolution(ws: Workspace): boolean {
 export function outputAdjoint(c: Circuit, ws: Workspace): Float64Array | undefined {
   if (!factorAtSolution(ws)) return undefined;
   const lam = new Float64Array(ws.n);
-  const row = c.outNode * ws.nt;
-  for (let j = 0; j < ws.n; j++) lam[j] = ws.G[row + j]!;
-  luSolveTranspose(ws.lu, ws.n, ws.perm, lam, ws.tmp);
+  for (let j = 0; j < ws.n; j++) lam[j] = ws.pattern.entry(ws.G, c.outNode, j);
+  ws.solver.solveTranspose(lam);
   return lam;
 }
 
 /** S, total dF_out/dv_out with the free nodes following: 1/Rout. */
 export function outputConductance(c: Circuit, ws: Workspace, lam: Float64Array): number {
   const o = c.outNode;
-  let g = ws.G[o * ws.nt + o]!;
-  for (let j = 0; j < ws.n; j++) g -= lam[j]! * ws.G[j * ws.nt + o]!;
+  const { colPtr, rowIdx } = ws.pattern;
+  let g = ws.pattern.entry(ws.G, o, o);
+  for (let p = colPtr[o]!; p < colPtr[o + 1]!; p++) {
+    const j = rowIdx[p]!;
+    if (j < ws.n) g -= lam[j]! * ws.G[p]!;
+  }
   return g;
 }
 
 export interface Sensitivities {
-  /** A/V, d iout / d ΔVT of each device (in circuit.mos order). */
+  /** d iout / dθ₁ of each device (in circuit.devices order); MOSFET: ΔVT, A/V. */
   vt: Float64Array;
-  /** A, d iout / d ln β of each device. */
+  /** d iout / dθ₂ of each device; MOSFET: ln β, A. */
   beta: Float64Array;
 }
 
-/** d iout/dθ for θ = each device's ΔVT (added to its threshold magnitude) and ln β. */
+/** d iout/dθ for each device's two mismatch parameters (MOSFET: ΔVT added to its threshold
+ *  magnitude, and ln β). */
 export function outputSensitivities(c: Circuit, ws: Workspace, lam: Float64Array): Sensitivities {
-  const vt = new Float64Array(c.mos.length);
-  const beta = new Float64Array(c.mos.length);
+  const vt = new Float64Array(c.devices.length);
+  const beta = new Float64Array(c.devices.length);
   const { v, ch, n } = ws;
-  c.mos.forEach((m, k) => {
-    const vs = v[m.s]!;
-    evalTerminal(m.dev, v[m.g]! - vs, v[m.d]! - vs, v[m.b]! - vs, ch);
-    // The threshold enters as VG − VT in the device frame: ∂I/∂VT = −sign·∂I/∂VG.
-    const dIdVt = -m.dev.sign * ch.gm;
-    const dIdLnBeta = ch.id;
-    // F_d gains I, F_s loses it.
+  const der = new Float64Array(2);
+  c.devices.forEach((d, k) => {
+    deviceMismatchDerivatives(d, v, ch, der);
+    // The current flows through the device from `from` to `to`: F_from gains it, F_to loses it.
+    const [from, to] = currentNodes(d);
     let w = 0;
-    if (m.d === c.outNode) w += 1;
-    if (m.s === c.outNode) w -= 1;
-    if (m.d < n) w -= lam[m.d]!;
-    if (m.s < n) w += lam[m.s]!;
-    vt[k] = c.outSign * w * dIdVt;
-    beta[k] = c.outSign * w * dIdLnBeta;
+    if (from === c.outNode) w += 1;
+    if (to === c.outNode) w -= 1;
+    if (from < n) w -= lam[from]!;
+    if (to < n) w += lam[to]!;
+    vt[k] = c.outSign * w * der[0]!;
+    beta[k] = c.outSign * w * der[1]!;
   });
   return { vt, beta };
 }
@@ -69,7 +70,11 @@ export function outputSensitivities(c: Circuit, ws: Workspace, lam: Float64Array
 export function heldNodeResponse(ws: Workspace, k: number): Float64Array | undefined {
   if (!factorAtSolution(ws)) return undefined;
   const x = new Float64Array(ws.n);
-  for (let i = 0; i < ws.n; i++) x[i] = -ws.G[i * ws.nt + k]!;
-  luSolve(ws.lu, ws.n, ws.perm, x, ws.tmp);
+  const { colPtr, rowIdx } = ws.pattern;
+  for (let p = colPtr[k]!; p < colPtr[k + 1]!; p++) {
+    const i = rowIdx[p]!;
+    if (i < ws.n) x[i] = -ws.G[p]!;
+  }
+  ws.solver.solve(x);
   return x;
 }

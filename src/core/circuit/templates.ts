@@ -12,6 +12,7 @@ import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
 import { CircuitBuilder, type MosInstance } from './circuit';
+import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
 export interface PerturbationLike { dvt: Record<string, number>; dbeta: Record<string, number> }
@@ -60,7 +61,7 @@ export function buildTemplate(
     const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
     b.mos({ name, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
-    return count++;   // index into circuit.mos
+    return count++;   // index into circuit.devices
   };
 
   const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
@@ -91,16 +92,14 @@ export function buildTemplate(
 
   const input = kind.inputNode;
   let iin: (v: Float64Array) => number;
-  let resistorIndex = -1;
   if (m.input.kind === 'current') {
     const i = m.input.i;
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
     iin = () => i;
   } else {
-    if (sign > 0) b.resistor('input', 'vdd', input, m.input.r); else b.resistor('input', input, 'vss', m.input.r);
-    resistorIndex = 0;
-    iin = (v) => { const r = c.res[resistorIndex]!; return r.g * (v[r.a]! - v[r.b]!); };
+    const r = sign > 0 ? b.resistor('input', 'vdd', input, m.input.r) : b.resistor('input', input, 'vss', m.input.r);
+    iin = (v) => resistorCurrent(r, v);
   }
   const measuredOut = outNodes[outputIndex] ?? 'out';
   if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
@@ -110,7 +109,7 @@ export function buildTemplate(
   const { ref: pa, out: pb } = kind.pair;
 
   // Everything the guess needs that does not change between solves, gathered once.
-  const devByName = new Map(c.mos.map((x) => [x.name, x] as const));
+  const devByName = new Map(c.devices.map((x) => [x.name, x] as const));
   const outIdx = outNodes.map((n) => index(n));
   const vbIdx = kind.vbias ? index('vbias') : -1;
   const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);

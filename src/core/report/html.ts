@@ -1,12 +1,21 @@
 /**
  * The self-contained HTML report: one file with the panel's tables and plots for design reviews
- * and CI artifacts. The panel's own bundle (dist/webview.js) is inlined and finds the report as
- * JSON in a `<script type="application/json">` element, so the file draws exactly what the live
- * panel draws — and needs no network at all: its Content-Security-Policy forbids every fetch.
+ * and CI artifacts. Its body is static HTML — tables, and plots as inline SVG (static-html.ts) —
+ * so it reads without JavaScript, prints and archives, and states the tool version, the date and
+ * a hash of the input. With scripts on, the panel's own bundle (dist/webview.js, inlined) finds
+ * the report as JSON in a `<script type="application/json">` element and shows the interactive
+ * view on screen instead; printing always uses the static body. No network at all: the
+ * Content-Security-Policy forbids every fetch.
  *
  * Pure core: no Node, no DOM. The caller (CLI, extension) reads the bundle and writes the file.
  */
 import type { FileReport } from '../types';
+import { renderStaticReport, type ReportStamp } from './static-html';
+
+export type { ReportStamp } from './static-html';
+
+/** Id of the static body; the page script hides it on screen once it has drawn the live view. */
+export const STATIC_ID = 'qpoint-static';
 
 /** Id of the data element the page script reads. */
 export const REPORT_DATA_ID = 'qpoint-report-data';
@@ -15,8 +24,8 @@ export const CAUTION_TEXT =
   "First-order hand-analysis models — confirm with transistor-level simulation on the foundry's models and corners before committing a design.";
 
 /** One complete HTML page. `assets.script` is the panel bundle's text; `assets.css` optional
- *  extra styles (the bundle carries its own). */
-export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }): string {
+ *  extra styles (the bundle carries its own); `stamp` what the page says about its making. */
+export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }, stamp?: ReportStamp): string {
   const title = `qpoint report — ${report.title ?? baseName(report.file)}`;
   return [
     '<!DOCTYPE html>',
@@ -26,13 +35,15 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     // No network: nothing may be fetched, inline script and styles only, images as data: URLs.
     `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; img-src data:; font-src data:">`,
     '<meta name="viewport" content="width=device-width, initial-scale=1">',
-    `<meta name="generator" content="qpoint">`,
+    `<meta name="generator" content="${escapeHtml(stamp ? `qpoint ${stamp.version}` : 'qpoint')}">`,
+    ...(stamp ? [`<meta name="date" content="${escapeHtml(stamp.date)}">`, `<meta name="qpoint-input" content="${escapeHtml(stamp.inputHash)}">`] : []),
     `<title>${escapeHtml(title)}</title>`,
     `<style>${escapeStyle(REPORT_THEME)}${assets.css ? `\n${escapeStyle(assets.css)}` : ''}</style>`,
     '</head>',
     '<body class="vscode-light qpoint-report">',
     `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION_TEXT)}</div>`,
-    `<main id="qpoint-root"><noscript>This report draws its tables and plots with JavaScript; open it in a browser with scripts enabled. File: ${escapeHtml(report.file)}</noscript></main>`,
+    `<div id="${STATIC_ID}">${renderStaticReport(report, stamp)}</div>`,
+    '<main id="qpoint-root"></main>',
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,
     `<script>${escapeScript(assets.script)}</script>`,
     '</body>',
@@ -183,4 +194,16 @@ const REPORT_THEME = [
   `:root { ${declarations(REPORT_THEME_LIGHT)} }`,
   `@media screen and (prefers-color-scheme: dark) { :root { ${declarations(REPORT_THEME_DARK)} } }`,
   'body { margin: 0 auto; max-width: 1200px; background: var(--vscode-editor-background); }',
+  // The static body (no script, print): plain tables in the theme's colours.
+  `#${STATIC_ID} { color: var(--vscode-editor-foreground); font: var(--vscode-font-size) var(--vscode-font-family); padding: 0 16px; }`,
+  `#${STATIC_ID} table.static { border-collapse: collapse; margin: 8px 0 16px; }`,
+  `#${STATIC_ID} table.static caption { text-align: left; font-weight: 600; padding: 4px 0; }`,
+  `#${STATIC_ID} table.static th, #${STATIC_ID} table.static td { border-bottom: 1px solid var(--vscode-panel-border); padding: 2px 8px; text-align: left; vertical-align: top; }`,
+  `#${STATIC_ID} .bad, #${STATIC_ID} .severity-error { color: var(--vscode-errorForeground); font-weight: 600; }`,
+  `#${STATIC_ID} .severity-warning { color: var(--vscode-editorWarning-foreground); }`,
+  `#${STATIC_ID} .stamp { color: var(--vscode-descriptionForeground); }`,
+  `#${STATIC_ID} svg { max-width: 100%; height: auto; margin: 4px 16px 8px 0; }`,
+  `#${STATIC_ID} section { break-inside: avoid-page; }`,
+  // Printing and archiving use the static body, whatever the script drew on screen.
+  `@media print { #${STATIC_ID} { display: block !important; } #qpoint-root { display: none !important; } }`,
 ].join('\n');

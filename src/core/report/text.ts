@@ -24,6 +24,8 @@ export function renderText(report: FileReport, opts: { tables?: boolean } = {}):
 }
 
 function mirrorBlock(m: MirrorReport): string[] {
+  // A node outside the rails is no operating point: its numbers describe nothing, so none are shown.
+  if (m.beyondRails) return [`${m.name}  ${m.kind} ${m.type}  (no operating point within the supply)`];
   const head = `${m.name}  ${m.kind} ${m.type}${m.converged ? '' : '  (did not converge)'}`;
   const ratio = m.ratioIdeal !== undefined
     ? `ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
@@ -33,7 +35,8 @@ function mirrorBlock(m: MirrorReport): string[] {
   const approx = m.routApprox !== undefined ? ` (textbook ${si(m.routApprox, 'Ω')})` : '';
   const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
-  const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  compliance ${si(m.compliance, 'V')} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
+  const compliance = m.noCompliance ? `compliance none (${m.noCompliance.device} out of saturation at every Vout)` : `compliance ${si(m.compliance, 'V')}`;
+  const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  ${compliance} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
   return [head, line1, line2, ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
 }
 

@@ -90,6 +90,12 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Use the value qpoint picks (ref at VDS = VDSsat + limits.margin), offered as a quick fix, or remove vbias to let qpoint pick it.',
   },
   {
+    code: 'stack-over-supply', severity: 'error',
+    summary: 'The solve puts a node outside the rails: the devices stacked between the mirror\'s rail and that node need more voltage to carry their current than the supply gives. The message names the stack, the voltage it needs and the supply.',
+    why: 'No operating point exists (the current source feeding the stack would leave its own compliance), so no figure of this mirror means anything and no other finding is raised for it.',
+    fix: 'Lower the gate-source drops: wider or shorter devices, fewer stacked devices (a wide-swing instead of a plain cascode), or less current. No quick fix: the right change is a design choice.',
+  },
+  {
     code: 'no-convergence', severity: 'error',
     summary: 'The DC solve of the mirror did not converge; the message says what was tried.',
     why: 'No operating point, no checks: the other figures of this mirror are not reported.',

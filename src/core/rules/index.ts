@@ -7,7 +7,8 @@
 import type { Finding, Fix, MirrorReport } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import type { Draft, FixPlan, RuleContext } from './model';
-import { isAutoSized, siteOf } from './sites';
+import { keyPath } from './model';
+import { isAutoSized, siteOf, type Site } from './sites';
 import { MirrorFragments, sharesValues } from '../spec/fragment';
 import { accepts, recheck, type Baseline } from './verify';
 import { checkConvergence } from './checks/convergence';
@@ -67,7 +68,7 @@ export function detect(rc: RuleContext): Draft[] {
         for (const d of f()) {
           if (keys.has(d.key)) continue; // a reference device shared by a bank's outputs
           keys.add(d.key);
-          drafts.push(d);
+          drafts.push(named(d, site));
         }
       } catch {
         // A check that fails on odd numbers must not cost the other findings.
@@ -85,6 +86,15 @@ export function detect(rc: RuleContext): Draft[] {
     run(() => checkInversion(rc, site, inversionSeen));
   }
   return drafts;
+}
+
+/**
+ * The message leads with what it is about — the bank output (`tail.lna: …`) for a finding on
+ * one output, else the mirror — since the Problems list mixes the findings of many mirrors.
+ */
+function named(d: Draft, site: Site): Draft {
+  const own = keyPath(d.key).includes('outputs') ? site.report.name : site.mirror.name;
+  return { ...d, finding: { ...d.finding, message: `${own}: ${d.finding.message}` } };
 }
 
 /**

@@ -45,3 +45,8 @@ export interface Draft {
 export function draftKey(code: string, path: (string | number)[], subject = ''): string {
   return `${code}|${path.join('/')}|${subject}`;
 }
+
+/** The report path segments of a draft key (see draftKey). */
+export function keyPath(key: string): string[] {
+  return (key.split('|')[1] ?? '').split('/');
+}

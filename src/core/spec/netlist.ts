@@ -4,6 +4,7 @@
  */
 import type { NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
   Polarity, SpecPath, Supplies } from '../types';
+import { SPEC_LIMITS } from '../defaults';
 import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
 import { readOutput, readRequire } from './mirror';
@@ -48,6 +49,25 @@ function use(uses: Uses, node: string | undefined, path: SpecPath, drives: boole
   uses.set(node, list);
 }
 
+const SECTIONS = ['devices', 'currents', 'voltages', 'resistors'] as const;
+
+/** A netlist past SPEC_LIMITS.maxNetlistElements is refused before its elements are read, with
+ *  one finding on the key of its largest section. */
+function tooLarge(scope: ValueScope, m: Data, path: SpecPath): boolean {
+  const count = (k: string): number => {
+    const v = m[k];
+    return v !== null && typeof v === 'object' && !Array.isArray(v) ? Object.keys(v).length : 0;
+  };
+  const total = SECTIONS.reduce((sum, k) => sum + count(k), 0);
+  if (total <= SPEC_LIMITS.maxNetlistElements) return false;
+  const largest = SECTIONS.reduce((a, b) => (count(b) > count(a) ? b : a));
+  const at: SpecPath = [...path, largest];
+  scope.sink.error('netlist-too-large',
+    `this netlist has ${total} elements; qpoint solves netlists of up to ${SPEC_LIMITS.maxNetlistElements} (split it into several mirrors)`,
+    at, scope.sink.src.keyOf(at));
+  return true;
+}
+
 export function readNetlistMirror(scope: ValueScope, m: Data, index: number, name: string, type: Polarity | undefined, supplies: Supplies | undefined): NetlistMirror | undefined {
   const path: SpecPath = ['mirrors', index];
   const sink = scope.sink;
@@ -60,6 +80,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     else seen.set(elem, group);
   };
   const uses: Uses = new Map();
+  if (tooLarge(scope, m, path)) return undefined;
 
   const devices: NetlistDevice[] = [];
   const dp = [...path, 'devices'];
@@ -204,10 +225,12 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   }
 
   // Nodes that no drain, source, bulk, source or resistor drives float (gates only) or dangle.
+  // An error, not a warning: a solve would put a floating gate wherever gmin pulls it (mid-supply)
+  // and report the wiring mistake as a ratio error with a fix that hides it.
   for (const [node, list] of uses) {
     if (list.length === 1 || !list.some((u) => u.drives)) {
-      const why = list.length === 1 ? 'connects to only one terminal' : 'connects only to gates, so nothing sets its voltage';
-      sink.warning('floating-node', `node \`${node}\` ${why}`, list[0].path);
+      const why = list.length === 1 ? 'connects to only one terminal' : 'connects only to gates';
+      sink.error('floating-node', `node \`${node}\` ${why}, so nothing sets its voltage: \`${name}\` is not solved until it is wired`, list[0].path);
     }
   }
 

@@ -58,7 +58,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     const corner = byName.get(worst.name);
     findings.push({
       severity, code, path, range,
-      message: `${text(worst, label)}${also}`,
+      message: `${nominal.name}: ${text(worst, label)}${also}`,
       ...(corner ? { related: [{ path: corner.path, range: cornerRange(parsed, corner), message: `corner ${worst.name}` }] } : {}),
     });
   };

@@ -33,7 +33,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
         out.push({
           severity: 'info', code: 'mc-nonlinear', path: [...site.path, 'require', 'sigma'],
           range: site.require.sigma !== undefined ? requireRange(parsed, site, 'sigma') : nameRange(parsed, site),
-          message: `Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
+          message: `${report.name}: Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
         });
       }
     }
@@ -46,11 +46,11 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
       if (f?.saturation) parts.push(`${f.saturation} with a device out of saturation`);
       if (f?.compliance) parts.push(`${f.compliance} not saturated at ${formatSI(req.compliance ?? NaN, 'V')}`);
       if (f?.convergence) parts.push(`${f.convergence} without a solution`);
-      const failing = Math.round((1 - mc.yield) * mc.samples);
+      const failing = mc.samples - Math.round(mc.yield * mc.samples);   // yield is pass/N: exact in samples
       out.push({
         severity: 'warning', code: 'mc-yield', path: [...site.path, 'require'],
         range: parsed.source.key([...site.path, 'require']) ?? nameRange(parsed, site),
-        message: `Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
+        message: `${report.name}: Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
       });
     }
   }

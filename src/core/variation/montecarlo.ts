@@ -22,7 +22,7 @@
 import type { MirrorContext } from '../analysis/index';
 import { idealRatio } from '../circuit/templates';
 import { vbiasFor } from '../analysis/measure';
-import { deviceSigmas } from '../analysis/mismatch';
+import { deviceSigmas, mismatchBase, setMismatch } from '../circuit/elements/device';
 import { buildMirror, nominalVout, outputCurrent, solveMirror, worstMargin } from '../analysis/solve';
 import type { MonteCarloResult, Requirements } from '../types';
 import { Xoshiro128 } from './prng';
@@ -37,7 +37,8 @@ export interface MonteCarloOptions {
 /** Samples between progress calls: rare enough to cost nothing next to 1 024 Newton solves. */
 export const PROGRESS_EVERY = 1024;
 
-interface Perturbed { k: number; vt0: number; beta: number; sVt: number; sBeta: number }
+/** A perturbed device: its nominal mismatch parameters and their 1σ. */
+interface Perturbed { k: number; base: [number, number]; sVt: number; sBeta: number }
 
 /** N samples, reproducible per seed; see the file comment for the statistics and the yield. */
 export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number, opts: MonteCarloOptions = {}): MonteCarloResult {
@@ -71,11 +72,11 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
   }
 
   const perturbed: Perturbed[] = [];
-  c.mos.forEach((m, k) => {
-    if (!m.measured) return;
-    const s = deviceSigmas(m);
-    if (!s || (s.vt === 0 && s.beta === 0)) return;
-    perturbed.push({ k, vt0: m.dev.vt0, beta: m.dev.beta, sVt: s.vt, sBeta: s.beta });
+  c.devices.forEach((d, k) => {
+    if (!d.measured) return;
+    const s = deviceSigmas(d);
+    if (!s || (s[0] === 0 && s[1] === 0)) return;
+    perturbed.push({ k, base: mismatchBase(d), sVt: s[0], sBeta: s[1] });
   });
 
   const rng = Xoshiro128.fromSeed(seed);
@@ -88,9 +89,8 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     if (onSamples && i > 0 && i % PROGRESS_EVERY === 0) onSamples(i);
     // Draw every deviation first, in device order, so a sample's numbers depend only on the seed.
     for (const p of perturbed) {
-      const dev = c.mos[p.k]!.dev;
-      dev.vt0 = p.vt0 + p.sVt * rng.nextGaussian();
-      dev.beta = p.beta * (1 + p.sBeta * rng.nextGaussian());
+      const dvt = p.sVt * rng.nextGaussian();
+      setMismatch(c.devices[p.k]!, p.base, dvt, p.sBeta * rng.nextGaussian());
     }
     const r = solveMirror(mc, xNom);
     if (!r.converged) { failed++; failures.convergence++; continue; }
@@ -115,7 +115,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     }
     pass++;
   }
-  for (const p of perturbed) { const dev = c.mos[p.k]!.dev; dev.vt0 = p.vt0; dev.beta = p.beta; }
+  for (const p of perturbed) setMismatch(c.devices[p.k]!, p.base, 0, 0);
   onSamples?.(n);
 
   if (count === 0) return fail;
@@ -139,7 +139,7 @@ function requirementsOf(ctx: MirrorContext): Requirements {
 function ratioIdealOf(ctx: MirrorContext, mc: ReturnType<typeof buildMirror>): number | undefined {
   if (ctx.mirror.kind !== 'netlist') return idealRatio(ctx.mirror, ctx.outputIndex);
   if (!mc.pair) return undefined;
-  const a = mc.circuit.mos[mc.pair.ref]!.size, b = mc.circuit.mos[mc.pair.out]!.size;
+  const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
   const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
   return Number.isFinite(r) ? r : undefined;
 }

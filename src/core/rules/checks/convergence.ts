@@ -1,19 +1,50 @@
-/** no-convergence: the DC solve failed; nothing else about this output can be trusted. */
+/**
+ * no-convergence: the DC solve failed; nothing else about this output can be trusted.
+ * stack-over-supply: the solve put a node outside the rails — the devices between the mirror's
+ * rail and that node need more voltage to carry their current than the supply gives, so there is
+ * no operating point. One error names the stack and what it needs; no other finding follows.
+ */
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
-import { mirrorRange, type Site } from '../sites';
-import { code } from '../words';
+import { mirrorRange, valueRange, type Site } from '../sites';
+import { amps, code, signedVolts, volts } from '../words';
 
 export function checkConvergence(rc: RuleContext, site: Site): Draft[] {
-  if (site.report.converged) return [];
+  const r = site.report;
+  if (r.converged) return [];
+  if (r.beyondRails) return [overSupply(rc, site)];
   const at = mirrorRange(rc.parsed, site.mirrorIndex);
-  const note = site.report.solveNote ? `: ${site.report.solveNote}` : '';
+  const note = r.solveNote ? `: ${r.solveNote}` : '';
   return [{
     key: draftKey('no-convergence', site.path),
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'no-convergence', path: at.path, range: at.range,
-      message: `${code(site.report.name)} has no DC operating point (the solve did not converge${note}); its other figures are not checked`,
+      message: `no DC operating point (the solve did not converge${note}); its other figures are not checked`,
     },
   }];
+}
+
+function overSupply(rc: RuleContext, site: Site): Draft {
+  const b = site.report.beyondRails!;
+  const { vdd, vss } = rc.spec.supplies;
+  const m = site.mirror;
+  // The input value is what the stack is asked to carry (template kinds); else the mirror's name.
+  const at = m.kind !== 'netlist' && b.stack.length > 0 && !b.stack.some((n) => n.includes('.'))
+    ? valueRange(rc.parsed, m.input.kind === 'resistor' ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'])
+    : mirrorRange(rc.parsed, site.mirrorIndex);
+  const first = site.report.devices.find((d) => d.name === b.stack[0]);
+  const carry = first && Number.isFinite(first.id) ? ` to carry ${amps(Math.abs(first.id))}` : '';
+  const stack = b.stack.length > 0 ? `the stack ${b.stack.map(code).join(' + ')}` : `the devices feeding node ${code(b.node)}`;
+  const side = b.rail === 'vss' ? 'below vss' : 'above vdd';
+  return {
+    // The input stack is shared by a bank's outputs: one finding for the mirror.
+    key: draftKey('stack-over-supply', ['mirrors', site.mirrorIndex], b.node),
+    mirrorIndex: site.mirrorIndex,
+    finding: {
+      severity: 'error', code: 'stack-over-supply', path: at.path, range: at.range,
+      message: `no operating point: ${stack} needs ${volts(b.need)}${carry} but the supply is ${volts(vdd - vss)} ` +
+        `(node ${code(b.node)} would sit at ${signedVolts(b.v)}, ${side}); no figures until it fits — lower VGS (wider or shorter devices), fewer stacked gate-source drops, or less current`,
+    },
+  };
 }

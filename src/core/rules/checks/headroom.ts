@@ -37,10 +37,13 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const path: SpecPath = resistor ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'];
   const at = valueRange(rc.parsed, path);
   const stackNames = KINDS[m.kind].inputStack.map(code).join(' + ');
+  // The stack stands on the mirror's own rail; the input source or resistor hangs from the other.
+  const [own, far] = m.type === 'nmos' ? ['vss', 'vdd'] : ['vdd', 'vss'];
+  const side = m.type === 'nmos' ? 'above' : 'below';
   const message = resistor
-    ? `the input resistor has only ${signedVolts(got.room)} across it (the stack ${stackNames} takes ${volts(got.stack)} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
+    ? `the input resistor has only ${signedVolts(got.room)} across it to ${far} (the stack ${stackNames} takes ${volts(got.stack)} ${side} ${own} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
       `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${volts(got.stack)} from the rail (stack ${stackNames}), leaving ${signedVolts(got.room)} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+    : `the input node sits ${volts(got.stack)} ${side} ${own} (stack ${stackNames}), leaving ${signedVolts(got.room)} to ${far} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;

@@ -2,7 +2,7 @@
  * ratio-error (against require.ratio, else the geometric ratio) with its cause split, and
  * vds-mismatch (the pair's VDS difference alone moves the ratio by half the budget or more).
  */
-import type { DeviceReport, RelatedLocation } from '../../types';
+import type { DeviceReport, ErrorSplit, RelatedLocation } from '../../types';
 import { KINDS } from '../../kinds/index';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
@@ -98,17 +98,17 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
 }
 
 /** The causes of a ratio error, largest first, so the one that matters leads the message;
- *  causes that contribute nothing are left out (all three are shown when none stands out). */
-function causes(split: { vds: number; body: number; geometry: number } | undefined, ideal: number | undefined, required: number | undefined): string {
+ *  causes that contribute nothing (under 0.005 %) are never named, so a term whose voltage
+ *  difference is zero cannot be blamed. */
+function causes(split: ErrorSplit | undefined, ideal: number | undefined, required: number | undefined): string {
   const parts: { text: string; size: number }[] = [];
   if (required !== undefined && ideal !== undefined && Math.abs(ideal / required - 1) > 1e-9) {
     const e = ideal / required - 1;
     parts.push({ text: `sizing ${signedPercent(e)} (geometric ratio ${ratioText(ideal)})`, size: Math.abs(e) });
   }
   if (split) {
-    const named: [string, number][] = [['VDS mismatch', split.vds], ['body effect', split.body], ['geometry', split.geometry]];
-    const shown = named.filter(([, v]) => Math.abs(v) >= 5e-5);
-    for (const [label, v] of shown.length > 0 ? shown : named) parts.push({ text: `${label} ${signedPercent(v)}`, size: Math.abs(v) });
+    const named: [string, number][] = [['VDS mismatch', split.vds], ['body effect', split.body], ['gate drive', split.gate ?? 0], ['geometry', split.geometry]];
+    for (const [label, v] of named) if (Math.abs(v) >= 5e-5) parts.push({ text: `${label} ${signedPercent(v)}`, size: Math.abs(v) });
   }
   parts.sort((a, b) => b.size - a.size);
   return parts.length > 0 ? `: ${parts.map((p) => p.text).join(', ')}` : '';

@@ -7,6 +7,7 @@ import { measure, solve } from '../../sizing/devices';
 import { areaPlans, lengthenPlans, widenPlans } from '../plans';
 import { code, ohms, percent, signedVolts, volts } from '../words';
 import { ratioPair } from './ratio';
+import { deviceIn } from './common';
 
 /** Range of the output device (for a bank, this output's), preferring the given size keys. */
 function outputDeviceRange(rc: RuleContext, site: Site, keys: ('w' | 'l' | 'm')[], role?: string) {
@@ -62,16 +63,19 @@ export function checkCompliance(rc: RuleContext, site: Site): Draft[] {
   const nmos = site.mirror.type === 'nmos';
   const tol = 5e-4; // the engine's compliance is accurate to ≤ 1 mV; do not flag a tie
   const bad = nmos ? r.compliance > t.v + tol : r.compliance < t.v - tol;
-  if (!bad) return [];
-  // The device that is out of saturation at the target voltage limits the compliance.
-  const op = solve(rc.spec, site.mirrorIndex, site.outputIndex, t.v);
-  const worst = op?.devices.filter((d) => d.margin < 0 || d.region !== 'saturation').sort((a, b) => a.margin - b.margin)[0];
+  // A device out of saturation at every output voltage has no compliance to speak of; the
+  // saturation check (not-saturated, vbias-triode) already names it at the nominal point.
+  if (!bad || r.noCompliance) return [];
+  // The device that limits is the one that leaves saturation at the compliance voltage: just past
+  // it, not at the target, where devices that leave later would mask it.
+  const worst = limiterAt(rc, site, r.compliance + (nmos ? -3e-3 : 3e-3)) ?? limiterAt(rc, site, t.v);
   const own = worst ? r.devices.find((d) => d.name === worst.name) : undefined;
   const at = own ? deviceRange(rc.parsed, rc.spec, refOf(site, own), ['w']) : kindRange(rc.parsed, site.mirrorIndex);
   const req = valueRange(rc.parsed, t.path);
   const dir = nmos ? 'down to' : 'up to';
   const who = worst ? `${code(worst.name)} leaves saturation ${nmos ? 'below' : 'above'} Vout = ${volts(r.compliance)}` : `compliance is ${volts(r.compliance)}`;
-  const there = worst ? ` (margin ${signedVolts(worst.margin)} there)` : '';
+  const atTarget = worst ? deviceIn(solve(rc.spec, site.mirrorIndex, site.outputIndex, t.v), worst.name) : undefined;
+  const there = atTarget ? ` (its margin there is ${signedVolts(atTarget.margin)})` : '';
   return [{
     key: draftKey('compliance', site.path),
     mirrorIndex: site.mirrorIndex,
@@ -85,8 +89,14 @@ export function checkCompliance(rc: RuleContext, site: Site): Draft[] {
       if (!m || !m.converged || !Number.isFinite(m.compliance)) return NaN;
       return nmos ? t.v - m.compliance : m.compliance - t.v;
     }, `for compliance ${dir} ${volts(t.v)}`),
-    hint: 'lower the overdrives (wider devices) or use a wide-swing cascode',
+    hint: site.mirror.kind === 'wide-swing' ? 'lower the overdrives (wider devices) or lower vbias' : 'lower the overdrives (wider devices) or use a wide-swing cascode',
   }];
+}
+
+/** The device furthest out of saturation at output voltage `v`, if any is. */
+function limiterAt(rc: RuleContext, site: Site, v: number) {
+  const op = solve(rc.spec, site.mirrorIndex, site.outputIndex, v);
+  return op?.devices.filter((d) => d.margin < 0 || d.region !== 'saturation').sort((a, b) => a.margin - b.margin)[0];
 }
 
 export function checkSigma(rc: RuleContext, site: Site): Draft[] {

@@ -1,0 +1,43 @@
+/**
+ * The circuit's elements, a closed union. Every switch over `kind` ends in `assertNever`, so a
+ * new element (a bipolar transistor, say) is one more member here plus its stamp module, and the
+ * compiler names every switch that must learn it (stamp.ts, device.ts).
+ */
+import type { DeviceParams, DeviceSize, Polarity } from '../../types';
+import type { ModelDevice } from '../../models/device';
+
+/** A MOSFET: terminals d, g, s, b are node indices. */
+export interface MosElement {
+  kind: 'mos';
+  /** DeviceReport.name. */
+  name: string;
+  role: string;
+  type: Polarity;
+  size: DeviceSize;
+  params: DeviceParams;
+  dev: ModelDevice;
+  d: number; g: number; s: number; b: number;
+  /** Counted for the measured output's compliance (its own and the shared reference devices). */
+  measured: boolean;
+  /** First of its Jacobian slots (JacobianPattern.slots), set when the circuit is built. */
+  slot: number;
+}
+
+/** Conductance g (S) between nodes a and b. */
+export interface ResistorElement { kind: 'resistor'; name: string; a: number; b: number; g: number; slot: number }
+
+/** Ideal current `i` (A) flowing from node `from` through the source into node `to`. */
+export interface CurrentSourceElement { kind: 'current'; name: string; from: number; to: number; i: number }
+
+/** Ideal source from the ground reference to `node`: the node is held (not an unknown) at
+ *  circuit.fixedV[node]; the current it delivers is minus that node's KCL residual. */
+export interface VoltageSourceElement { kind: 'voltage'; name: string; node: number }
+
+export type CircuitElement = MosElement | ResistorElement | CurrentSourceElement | VoltageSourceElement;
+
+/** The transistors: reported per device, counted for compliance, perturbed for mismatch. */
+export type DeviceElement = MosElement;
+
+export function assertNever(x: never): never {
+  throw new Error(`unhandled circuit element: ${JSON.stringify(x)}`);
+}

@@ -1,0 +1,50 @@
+/**
+ * The linear solves of Newton and the small-signal analysis, on the free block of the Jacobian:
+ * dense LU for the small circuits of the templates (fastest there, and every figure stays
+ * bit-identical to what it has always been), sparse LU with a fill-reducing order beyond
+ * SOLVER.denseMaxNodes unknowns.
+ */
+import type { JacobianPattern } from './jacobian';
+import { luFactor, luSolve, luSolveTranspose } from './lu';
+import { SparseLu } from './sparseLu';
+
+export interface LinearSolver {
+  /** Factor the free block of the Jacobian values; false when singular. */
+  factor(values: Float64Array): boolean;
+  /** A·x = b in place (the first n entries of b). */
+  solve(b: Float64Array): void;
+  /** Aᵀ·y = c in place. */
+  solveTranspose(c: Float64Array): void;
+}
+
+export class DenseSolver implements LinearSolver {
+  private readonly lu: Float64Array;
+  private readonly perm: Int32Array;
+  private readonly tmp: Float64Array;
+  /** `buf` holds n² + n values for the factors and a scratch vector (the workspace's). */
+  constructor(private readonly pattern: JacobianPattern, buf: Float64Array) {
+    const n = pattern.n;
+    this.lu = buf.subarray(0, n * n);
+    this.tmp = buf.subarray(n * n, n * n + n);
+    this.perm = new Int32Array(n);
+  }
+  factor(values: Float64Array): boolean {
+    const { n, colPtr, rowIdx, freeEnd } = this.pattern;
+    const lu = this.lu;
+    lu.fill(0);
+    for (let j = 0; j < n; j++) for (let p = colPtr[j]!; p < freeEnd[j]!; p++) lu[rowIdx[p]! * n + j] = values[p]!;
+    return luFactor(lu, n, this.perm);
+  }
+  solve(b: Float64Array): void { luSolve(this.lu, this.pattern.n, this.perm, b, this.tmp); }
+  solveTranspose(c: Float64Array): void { luSolveTranspose(this.lu, this.pattern.n, this.perm, c, this.tmp); }
+}
+
+export class SparseSolver implements LinearSolver {
+  private readonly lu: SparseLu;
+  constructor(pattern: JacobianPattern, order: Int32Array) {
+    this.lu = new SparseLu(pattern.n, pattern.colPtr, pattern.rowIdx, pattern.freeEnd, order);
+  }
+  factor(values: Float64Array): boolean { return this.lu.factor(values); }
+  solve(b: Float64Array): void { this.lu.solve(b); }
+  solveTranspose(c: Float64Array): void { this.lu.solveTranspose(c); }
+}

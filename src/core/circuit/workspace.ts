@@ -1,0 +1,45 @@
+/** Preallocated buffers of one circuit; nothing is allocated inside a Newton iteration. */
+import { newChannelEval } from '../models/core';
+import type { Circuit } from './circuit';
+import type { JacobianPattern } from './jacobian';
+import { DenseSolver, SparseSolver, type LinearSolver } from './linearSolver';
+
+export class Workspace {
+  readonly n: number;
+  readonly nt: number;
+  /** V, every node's voltage: free entries are the unknowns, held entries are set by the solver. */
+  readonly v: Float64Array;
+  readonly F: Float64Array;
+  /** Jacobian values at the positions of `pattern` (G_ij = ∂F_i/∂v_j over every node). */
+  readonly G: Float64Array;
+  /** Σ|current| per node, the scale of the residual tolerance. */
+  readonly absI: Float64Array;
+  readonly dx: Float64Array;
+  readonly saved: Float64Array;
+  readonly best: Float64Array;
+  readonly pattern: JacobianPattern;
+  /** Value index of each stamp entry (pattern.slots), where the element stamps write. */
+  readonly slots: Int32Array;
+  readonly solver: LinearSolver;
+  /** S, the smallest nonzero output conductance of a conducting device at the last assembly. */
+  gdsFloor = Infinity;
+  /** Whether the solver holds the factors of the free block at v. */
+  factored = false;
+  readonly ch = newChannelEval();
+
+  constructor(c: Circuit) {
+    const nt = c.nodeNames.length;
+    this.n = c.nFree;
+    this.nt = nt;
+    this.pattern = c.jacobian;
+    this.slots = c.jacobian.slots;
+    // One allocation for the node buffers: a workspace is built for each measured output.
+    const n = c.nFree, dense = c.ordering ? 0 : n * n + n;
+    const buf = new Float64Array(6 * nt + c.jacobian.nnz + dense);
+    let at = 0;
+    const take = (len: number): Float64Array => { const a = buf.subarray(at, at + len); at += len; return a; };
+    this.v = take(nt); this.F = take(nt); this.absI = take(nt); this.dx = take(nt);
+    this.saved = take(nt); this.best = take(nt); this.G = take(c.jacobian.nnz);
+    this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering) : new DenseSolver(c.jacobian, take(dense));
+  }
+}

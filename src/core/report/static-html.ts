@@ -1,0 +1,123 @@
+/**
+ * The report's static body: every mirror's figures, devices, findings, corners and Monte Carlo
+ * as HTML tables, and its Iout/Rout sweep and histogram as inline SVG (svg.ts). It reads without
+ * JavaScript, prints, and archives: the file states the tool version, when it was written and a
+ * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
+ * it runs, replaces it on screen with the interactive view; printing always uses this body.
+ */
+import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
+import { formatSI } from '../units/format';
+import { histogramSvg, linePlotSvg } from './svg';
+
+/** What the page says about its own making; the caller supplies it (the core has no clock). */
+export interface ReportStamp {
+  /** qpoint's version. */
+  version: string;
+  /** ISO 8601 time the report was written. */
+  date: string;
+  /** Hash of the input text, e.g. `sha256:…`. */
+  inputHash: string;
+}
+
+const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
+const esc = (s: string): string => s.replace(/[&<>"']/g, (c) => ESC[c] ?? c);
+const si = (v: number, unit: string, digits = 3): string => (Number.isFinite(v) ? formatSI(v, unit, digits) : v === Infinity ? `∞ ${unit}` : '—');
+const pct = (x: number, signed = false): string => (Number.isFinite(x) ? `${signed && x > 0 ? '+' : ''}${Number((100 * x).toPrecision(3))} %` : '—');
+const plain = (x: number, digits = 5): string => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : '—');
+
+function table(caption: string, head: string[], rows: string[][], cls = ''): string {
+  const th = head.map((h) => `<th scope="col">${esc(h)}</th>`).join('');
+  const body = rows.map((r) => `<tr>${r.map((c) => `<td>${c}</td>`).join('')}</tr>`).join('');
+  return `<table class="grid static ${cls}"><caption>${esc(caption)}</caption><thead><tr>${th}</tr></thead><tbody>${body}</tbody></table>`;
+}
+
+function stampLine(report: FileReport, stamp: ReportStamp | undefined): string {
+  const parts = [`file <code>${esc(report.file)}</code>`];
+  if (stamp) parts.push(`qpoint ${esc(stamp.version)}`, `written ${esc(stamp.date)}`, `input ${esc(stamp.inputHash)}`);
+  return `<p class="stamp">${parts.join(' · ')}</p>`;
+}
+
+function findingsTable(file: string, findings: Finding[]): string {
+  if (findings.length === 0) return '<p class="ok">No findings: every check passes.</p>';
+  return table(`Findings in ${file}`, ['Severity', 'Code', 'Message', 'Line'], findings.map((f) => [
+    `<span class="severity severity-${f.severity}">${f.severity}</span>`, `<code>${esc(f.code)}</code>`, esc(f.message),
+    `${f.range.start.line + 1}:${f.range.start.character + 1}`,
+  ]), 'findings');
+}
+
+function summaryRows(m: MirrorReport): string[][] {
+  const rows: [string, string][] = [
+    ['Iin', si(m.iin, 'A', 4)], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
+    ['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)],
+  ];
+  if (m.error !== undefined) {
+    const s = m.errorSplit;
+    const split = s ? ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})` : '';
+    rows.push(['Error', `${pct(m.error, true)}${split}`]);
+  }
+  rows.push(['Rout', m.routApprox !== undefined ? `${si(m.rout, 'Ω')} (textbook ${si(m.routApprox, 'Ω')})` : si(m.rout, 'Ω')]);
+  rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
+    : `${si(m.compliance, 'V', 4)} (${m.type === 'nmos' ? 'works down to' : 'works up to'})`]);
+  if (m.sigma !== undefined) rows.push(['σ(Iout)', `${pct(m.sigma)} (Pelgrom, 1σ)`]);
+  if (m.vbias !== undefined) rows.push(['Vbias', `${si(m.vbias, 'V', 4)}${m.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
+  return rows.map(([k, v]) => [esc(k), v]);
+}
+
+function deviceRow(d: DeviceReport): string[] {
+  return [
+    esc(d.name), `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}${d.sized ? '*' : ''}`, si(d.id, 'A'), si(d.vgs, 'V'), si(d.vds, 'V'),
+    si(d.vdsat, 'V'), `<span class="${d.margin < 0 ? 'bad' : ''}">${d.margin >= 0 ? '+' : ''}${si(d.margin, 'V')}</span>`,
+    `<span class="${d.region === 'saturation' ? '' : 'bad'}">${d.region}</span>`, plain(d.gmId, 3), plain(d.ic, 3), si(d.ro, 'Ω'),
+  ];
+}
+
+function mirrorSection(m: MirrorReport, findings: Finding[]): string {
+  const out: string[] = [`<section class="mirror-static" data-mirror="${esc(m.name)}"><h2>${esc(m.name)} <small>${m.kind} ${m.type.toUpperCase()}</small></h2>`];
+  if (m.beyondRails || !m.converged) {
+    out.push(`<p class="solve-note severity-error">${m.beyondRails ? 'No operating point within the supply' : 'The DC solve did not converge'}${m.solveNote ? `: ${esc(m.solveNote)}` : ''}.</p>`);
+  }
+  if (!m.beyondRails) {
+    out.push(table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures'));
+    out.push(table(`Devices of ${m.name}`, ['Device', 'W/L·m', 'ID', 'VGS', 'VDS', 'VDSsat', 'Margin', 'Region', 'gm/ID', 'IC', 'ro'], m.devices.map(deviceRow), 'devices'));
+  }
+  const own = findings.filter((f) => f.message.startsWith(`${m.name}: `) || f.message.startsWith(`${m.mirror}: `));
+  if (own.length > 0) out.push(findingsTable(m.name, own));
+  if (!m.beyondRails && m.curve && m.curve.length > 1) {
+    const marker = { x: m.vout, label: 'nominal' };
+    out.push('<div class="plots-static">',
+      linePlotSvg({ title: `Iout versus Vout — ${m.name}`, xUnit: 'V', yUnit: 'A', marker,
+        points: m.curve.map((p) => ({ x: p.vout, y: p.iout, ok: p.converged })) }),
+      linePlotSvg({ title: `Rout versus Vout — ${m.name}`, xUnit: 'V', yUnit: 'Ω', logY: true, marker,
+        points: m.curve.map((p) => ({ x: p.vout, y: p.rout, ok: p.converged })) }),
+      '</div>');
+  }
+  if (m.corners && m.corners.length > 0) {
+    out.push(table(`Corners of ${m.name}`, ['Corner', 'Iout', 'Ratio', 'Error', 'Rout', 'Compliance', 'σ', 'Min margin'], m.corners.map((c) => (c.converged ? [
+      esc(c.name), si(c.iout, 'A', 4), plain(c.ratio), pct(c.error, true), si(c.rout, 'Ω'), si(c.compliance, 'V', 4),
+      c.sigma === undefined ? '—' : pct(c.sigma), c.minMargin === undefined ? '—' : `${si(c.minMargin, 'V')}${c.minMarginDevice ? ` (${esc(c.minMarginDevice)})` : ''}`,
+    ] : [esc(c.name), 'did not converge', '', '', '', '', '', ''])), 'corners'));
+  }
+  const mc = m.mc;
+  if (mc) {
+    const failing = mc.samples - Math.round(mc.yield * mc.samples);
+    out.push(`<p class="mc-static">Monte Carlo: ${mc.samples} samples (seed ${mc.seed}), mean ${si(mc.mean, 'A', 4)}, σ ${pct(mc.sigma)}, ` +
+      `${failing === 0 ? 'every sample saturated and within limits.tolerance' : `${failing} of ${mc.samples} samples fail`} (yield ${pct(mc.yield)}).</p>`);
+    if (mc.histogram) out.push(histogramSvg(`Monte Carlo Iout — ${m.name}`, mc.histogram.edges, mc.histogram.counts, 'A'));
+  }
+  out.push('</section>');
+  return out.join('\n');
+}
+
+/** The whole static body. */
+export function renderStaticReport(report: FileReport, stamp?: ReportStamp): string {
+  const parts = [
+    `<h1>${esc(report.title ?? report.file)}</h1>`,
+    stampLine(report, stamp),
+    findingsTable(report.file, report.findings),
+    ...report.mirrors.map((m) => mirrorSection(m, report.findings)),
+  ];
+  if (report.withheld?.length) {
+    parts.push(`<p class="note">Not solved until their errors are fixed: ${report.withheld.map((w) => esc(w.name ?? `mirror ${w.index + 1}`)).join(', ')}.</p>`);
+  }
+  return parts.join('\n');
+}
