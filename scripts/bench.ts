@@ -29,6 +29,7 @@ import { analyzeSpec } from '../src/core/analysis/index';
 import { buildMirror, solveMirror } from '../src/core/analysis/solve';
 import { analyzeText } from '../src/core/analyze';
 import { parseSpec } from '../src/core/spec/index';
+import { resolveText } from '../src/core/resolve';
 import { runRules } from '../src/core/rules/index';
 import { SPEC_LIMITS } from '../src/core/defaults';
 import { benchVariation } from './bench-variation';
@@ -280,9 +281,9 @@ function main(): void {
     example: cold(() => analyzeText(exampleText, 'sensor-afe.bias.yaml')),
     faultyExample: cold(() => analyzeText(faultyText, 'faulty.bias.yaml')),
   };
-  const exampleSpec = parseSpec(exampleText, 'sensor-afe.bias.yaml').spec!;
+  const exampleSpec = resolveText(exampleText, 'sensor-afe.bias.yaml').parsed.spec!;
   const textRuns = Math.max(10, runs >> 2);
-  const faultyParsed = parseSpec(faultyText, 'faulty.bias.yaml');
+  const faultyParsed = resolveText(faultyText, 'faulty.bias.yaml').parsed;
   const faultyReports = analyzeSpec(faultyParsed.spec!);
   const texts = {
     exampleEngine: timeFn(textRuns * 2, 20, () => analyzeSpec(structuredClone(exampleSpec), { repeats: false })),

@@ -1,9 +1,11 @@
 /**
- * Number formatting for the panel. SI values go through the core's `formatSI` (one formatter for
- * hover, CLI and panel); this adds what only tables and axes need: percentages, plain numbers,
- * and one prefix per plot axis.
+ * Number formatting for the panel: the core's one formatting module (src/core/text/format.ts,
+ * shared with hover, CodeLens and the CLI), with what only tables and axes need on top: a figure
+ * that could not be measured (NaN) shows as "—", and one prefix per plot axis.
  */
-import { formatSI as coreFormatSI } from '../src/core/units/format';
+import {
+  formatPercent as corePercent, formatPlain, formatSI as coreFormatSI, formatSignedPercent as coreSignedPercent,
+} from '../src/core/text/format';
 
 /** SI prefixes by power of 1000 for axis labels (SI Brochure, 9th ed.), yocto to yotta. */
 const PREFIXES: Record<number, string> = {
@@ -13,41 +15,26 @@ const PREFIXES: Record<number, string> = {
 const MIN_POWER = -8;
 const MAX_POWER = 8;
 
-/** `value` with an engineering prefix: (1.2e-5, 'A') → "12 µA". A figure that could not be
- *  measured (NaN) shows as "—" in a table rather than "NaN A". */
+const dash = (value: number, text: () => string): string => (Number.isNaN(value) ? '—' : text());
+
+/** `value` with an engineering prefix: (1.2e-5, 'A') → "12 µA". */
 export function formatSI(value: number, unit: string, digits = 3): string {
-  return Number.isNaN(value) ? '—' : coreFormatSI(value, unit, digits);
+  return dash(value, () => coreFormatSI(value, unit, digits));
 }
 
-/** Finest step a percentage shows: below 0.0001 % a ratio error is numerical noise. */
-const PERCENT_DECIMALS = 4;
-
-/** A relative value as a percentage: 0.0025 → "0.25 %", 5.85e-6 → "0.0006 %". */
+/** A relative value as a percentage: 0.0025 → "0.25 %". */
 export function formatPercent(value: number, digits = 3): string {
-  if (!Number.isFinite(value)) return Number.isNaN(value) ? '—' : `${value < 0 ? '-' : ''}∞ %`;
-  const percent = Number(roundSignificant(value * 100, digits).toFixed(PERCENT_DECIMALS));
-  if (percent === 0) return '0 %';
-  return `${trimNumber(percent, digits)} %`;
+  return dash(value, () => corePercent(value, digits));
 }
 
-/** A plain number (ratio, IC, gm/ID) without prefix: 4.0123 → "4.01"; large or tiny values in
- *  exponent form so a column never grows to twenty characters. */
-export function formatNumber(value: number, digits = 3): string {
-  if (Number.isNaN(value)) return '—';
-  if (!Number.isFinite(value)) return `${value < 0 ? '-' : ''}∞`;
-  if (value === 0) return '0';
-  const magnitude = Math.abs(value);
-  if (magnitude >= 1e6 || magnitude < 1e-3) {
-    const [m, e] = value.toExponential(digits - 1).split('e');
-    return `${Number(m)}e${Number(e)}`;
-  }
-  return trimNumber(roundSignificant(value, digits), digits);
-}
-
-/** A signed relative value with an explicit sign: 0.0025 → "+0.25 %". */
+/** A signed relative value: 0.0025 → "+0.25 %". */
 export function formatSignedPercent(value: number, digits = 3): string {
-  const text = formatPercent(value, digits);
-  return value > 0 && Number.isFinite(value) && text !== '0 %' ? `+${text}` : text;
+  return dash(value, () => coreSignedPercent(value, digits));
+}
+
+/** A plain number (ratio, IC, gm/ID) without prefix: 4.0123 → "4.01". */
+export function formatNumber(value: number, digits = 3): string {
+  return dash(value, () => formatPlain(value, digits));
 }
 
 /** The prefix that suits a set of values for one plot axis: the factor to divide by and the
@@ -58,14 +45,4 @@ export function axisScale(values: readonly number[], unit: string): { factor: nu
   if (largest === 0) return { factor: 1, unit };
   const power = Math.min(MAX_POWER, Math.max(MIN_POWER, Math.floor(Math.log10(largest) / 3)));
   return { factor: 1000 ** power, unit: `${PREFIXES[power]}${unit}` };
-}
-
-function roundSignificant(value: number, digits: number): number {
-  return Number(value.toPrecision(digits));
-}
-
-/** Shortest text of a rounded number: no exponent form, no trailing zeros. */
-function trimNumber(value: number, digits: number): string {
-  const decimals = Math.max(0, digits - 1 - Math.floor(Math.log10(Math.abs(value))));
-  return String(Number(value.toFixed(Math.min(decimals, 20))));
 }

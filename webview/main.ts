@@ -13,7 +13,7 @@ import { registerComponents } from './components';
 import type { PlotHandle } from './plots';
 import { renderPage, type RenderContext } from './render';
 import { applyHostMessage, fromPersisted, initialState, selectMirror, toPersisted, type PanelState } from './state';
-import { CAUTION } from './view-model';
+import { CAUTION } from '../src/core/text/format';
 
 interface VsCodeApi {
   postMessage(message: PageMessage): void;

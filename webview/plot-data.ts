@@ -1,7 +1,8 @@
 /**
  * Plot series from a mirror report, scaled to readable SI units. Pure (tested in vitest): the
  * curve itself is computed by the core; this picks points, drops the ones a plot cannot show
- * (unconverged solves, Rout ≤ 0 or infinite on a log axis) and chooses axis prefixes.
+ * (unconverged solves, Rout ≤ 0 or infinite on a log axis), lists the Vouts with no operating
+ * point so the plot marks them instead of stopping silently, and chooses axis prefixes.
  */
 import type { MirrorReport } from '../src/core/types';
 import { axisScale } from './format';
@@ -19,6 +20,8 @@ export interface CurvePlotData {
   rScale: Scaled;
   /** The nominal operating point (Vout, Iout and Rout in the scaled units). */
   nominal: { x: number; iout: number; rout: number | null };
+  /** Vout (V) of the points with no operating point (the sweep did not converge there). */
+  failed: number[];
   /** The compliance edge (V) when it is a finite number. */
   compliance?: number;
   /** Which side of the edge is out of compliance: below it for NMOS, above it for PMOS. */
@@ -42,6 +45,7 @@ export function curvePlotData(m: MirrorReport): CurvePlotData | undefined {
       iout: m.iout / iScale.factor,
       rout: m.rout > 0 && Number.isFinite(m.rout) ? m.rout / rScale.factor : null,
     },
+    failed: points.filter((p) => !p.converged).map((p) => p.vout),
     compliance: Number.isFinite(m.compliance) ? m.compliance : undefined,
     outside: m.type === 'nmos' ? 'below' : 'above',
   };
@@ -72,12 +76,12 @@ export function histogramPlotData(m: MirrorReport): HistogramPlotData | undefine
   const spread = 3 * mc.sigma * mean;
   const marks: Mark[] = [
     { x: mean, label: 'mean', kind: 'mean' },
-    { x: mean - spread, label: '−3σ', kind: 'sigma' },
+    { x: mean - spread, label: '-3σ', kind: 'sigma' },
     { x: mean + spread, label: '+3σ', kind: 'sigma' },
   ];
   const allowed = m.require?.sigma;
   if (allowed !== undefined) {
-    marks.push({ x: mean * (1 - 3 * allowed), label: '−3σ max', kind: 'limit' },
+    marks.push({ x: mean * (1 - 3 * allowed), label: '-3σ max', kind: 'limit' },
       { x: mean * (1 + 3 * allowed), label: '+3σ max', kind: 'limit' });
   }
   if (m.require?.ratio !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });

@@ -162,6 +162,33 @@ function drawPoint(u: uPlot, x: number, y: number, scale: string, color: string)
   ctx.restore();
 }
 
+/** A cross on the x axis at each Vout with no operating point: the curve breaks there, and the
+ *  cross says why it breaks rather than letting the line stop silently. */
+function drawFailed(u: uPlot, xs: readonly number[], color: string): void {
+  if (xs.length === 0) return;
+  const { top, height, left, width } = u.bbox;
+  const r = 4 * devicePixelRatio;
+  const cy = top + height - r - 2 * devicePixelRatio;
+  const ctx = u.ctx;
+  ctx.save();
+  ctx.strokeStyle = color;
+  ctx.lineWidth = Math.max(1.5, 1.5 * devicePixelRatio);
+  ctx.beginPath();
+  for (const x of xs) {
+    const cx = u.valToPos(x, 'x', true);
+    if (!(cx >= left && cx <= left + width)) continue;
+    ctx.moveTo(cx - r, cy - r); ctx.lineTo(cx + r, cy + r);
+    ctx.moveTo(cx - r, cy + r); ctx.lineTo(cx + r, cy - r);
+  }
+  ctx.stroke();
+  ctx.restore();
+}
+
+function failedLegend(d: CurvePlotData): HTMLElement | undefined {
+  const n = d.failed.length;
+  return n === 0 ? undefined : legendItem('legend-failed', `no operating point at ${n} Vout${n === 1 ? '' : 's'}`);
+}
+
 /** Shade the out-of-compliance side of the edge so the usable output range reads at a glance. */
 function shadeOutside(u: uPlot, edge: number, side: 'below' | 'above', color: string): void {
   const x = u.valToPos(edge, 'x', true);
@@ -192,6 +219,7 @@ export function ioutPlot(m: MirrorReport): PlotHandle | undefined {
       legendItem('legend-line', 'Iout'),
       legendItem('legend-marker', `nominal ${formatSI(mr.vout, 'V')}, ${formatSI(mr.iout, 'A')}`),
       d.compliance === undefined ? undefined : legendItem('legend-edge', `compliance ${formatSI(d.compliance, 'V', 4)}`),
+      failedLegend(d),
     ],
     series: (d) => [d.x, d.iout],
     options: (p, d, width) => ({
@@ -207,6 +235,7 @@ export function ioutPlot(m: MirrorReport): PlotHandle | undefined {
           const c = d().compliance;
           if (c !== undefined) drawVertical(u, c, p.edge, [5, 4], 'compliance', p);
           drawPoint(u, d().nominal.x, d().nominal.iout, 'y', p.marker);
+          drawFailed(u, d().failed, p.edge);
         }],
       },
     }),
@@ -227,6 +256,7 @@ export function routPlot(m: MirrorReport): PlotHandle | undefined {
       legendItem('legend-line legend-accent', 'Rout (log)'),
       d.nominal.rout === null ? undefined : legendItem('legend-marker', `nominal ${formatSI(mr.rout, 'Ω')}`),
       d.compliance === undefined ? undefined : legendItem('legend-edge', `compliance ${formatSI(d.compliance, 'V', 4)}`),
+      failedLegend(d),
     ],
     series: (d) => [d.x, d.rout],
     options: (p, d, width) => ({
@@ -243,6 +273,7 @@ export function routPlot(m: MirrorReport): PlotHandle | undefined {
           if (c !== undefined) drawVertical(u, c, p.edge, [5, 4], 'compliance', p);
           const r = d().nominal.rout;
           if (r !== null) drawPoint(u, d().nominal.x, r, 'y', p.marker);
+          drawFailed(u, d().failed, p.edge);
         }],
       },
     }),

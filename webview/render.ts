@@ -96,7 +96,7 @@ function baseName(file: string): string {
 function overview(report: FileReport, selected: string | undefined, ctx: RenderContext): HTMLElement {
   const items = mirrorList(report);
   // Each row with the mirror's place in the file, so a set-aside mirror sits where it is written.
-  const placed: { at: number; row: TableRow }[] = items.map((it, k) => ({ at: fileIndex(report.mirrors[k]?.path), row: {
+  const placed: { at: number; row: TableRow }[] = items.map((it, k) => ({ at: report.mirrors[k]?.mirrorIndex ?? Number.MAX_SAFE_INTEGER, row: {
     key: `mirror:${it.name}`,
     className: it.worst ? `has-${it.worst}` : undefined,
     selected: ctx.mode === 'panel' ? it.name === selected : undefined,
@@ -130,10 +130,6 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
     { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
     { label: 'Findings', numeric: false },
   ], rows, { id: 'mirror-list' });
-}
-
-function fileIndex(path: readonly (string | number)[] | undefined): number {
-  return path && typeof path[1] === 'number' ? path[1] : Number.MAX_SAFE_INTEGER;
 }
 
 function findingCounts(counts: Record<'error' | 'warning' | 'info', number>, converged: boolean): HTMLElement {

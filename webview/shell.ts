@@ -3,7 +3,7 @@
  * browser test from the same function. It carries no data: the report arrives by postMessage.
  * Pure string building, no DOM and no vscode, so both sides can import it.
  */
-import { CAUTION } from './view-model';
+import { CAUTION } from '../src/core/text/format';
 
 export interface ShellOptions {
   /** URI of dist/webview.js as the webview may load it (`asWebviewUri`). */

@@ -7,6 +7,7 @@
  * replaces the view, keeping the selection when that file has a mirror of the same name.
  */
 import type { FileReport } from '../src/core/types';
+import { mirrorIndexOfPath } from '../src/core/mirror-at';
 import { embedReportJson, parseEmbeddedReport } from '../src/core/report/html';
 import { isFileReport, type HostMessage } from '../src/protocol/messages';
 
@@ -51,8 +52,8 @@ export function applyHostMessage(state: PanelState, message: HostMessage): Panel
       const errors = message.report.findings.filter((f) => f.severity === 'error');
       const shown = last?.mirrors.find((m) => m.name === state.selected);
       const lost = message.report.mirrors.length === 0 || (shown !== undefined &&
-        !message.report.mirrors.some((m) => m.name === shown.name || m.path[1] === shown.path[1]) &&
-        errors.some((f) => f.path[0] === 'mirrors' && f.path[1] === shown.path[1]));
+        !message.report.mirrors.some((m) => m.name === shown.name || m.mirrorIndex === shown.mirrorIndex) &&
+        errors.some((f) => mirrorIndexOfPath(f.path) === shown.mirrorIndex));
       if (message.uri === state.uri && last && last.mirrors.length > 0 && lost && errors.length > 0) {
         // The last numbers include the mirror being edited: it is not "set aside" in this view.
         const { withheld: _aside, ...rest } = message.report;

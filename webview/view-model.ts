@@ -8,11 +8,9 @@ import type {
   Anchor, CornerResult, DeviceReport, FileReport, Finding, MirrorReport, Range, Requirements,
   Severity, SpecPath,
 } from '../src/core/types';
-import { CAUTION_TEXT } from '../src/core/report/html';
 import { formatNumber, formatPercent, formatSI, formatSignedPercent } from './format';
 
 /** The caution line every view carries (design §7); one text for the panel and the report. */
-export const CAUTION = CAUTION_TEXT;
 
 const SEVERITY_RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
 

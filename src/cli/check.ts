@@ -1,7 +1,8 @@
 import type { Command } from './args';
 import type { FileReport } from '../core/types';
 import { analyzeText, type AnalyzeOptions } from '../core/analyze';
-import { renderText, CAUTION } from '../core/report/text';
+import { renderText } from '../core/report/text';
+import { CAUTION } from '../core/text/format';
 import { toSarif } from '../core/report/sarif';
 import { countBySeverity } from '../core/findings';
 import { displayName, readSpec } from './io';

@@ -3,6 +3,8 @@ import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
 import { findingLine } from '../core/report/text';
+import { escapeControls } from '../core/text/format';
+import { mirrorIndexOfPath } from '../core/mirror-at';
 import { readOne, replaceIfUnchanged } from './io';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
@@ -19,13 +21,13 @@ export function runFix(c: FixCommand): number {
   }
   // The first round checks the text just analysed: reuse that report instead of solving it again.
   const result = fixAll(read.text, name, (text) => (text === read.text ? before : analyzeText(text, name)));
-  const applied = result.applied.map((a) => `fixed ${a.code}: ${a.title}\n`).join('');
+  const applied = result.applied.map((a) => escapeControls(`fixed ${a.code}: ${a.title}`) + '\n').join('');
   if (result.text === read.text && result.withheld) {
     // A spec with errors is solved for its other mirrors, but gets no fixes until it reads
     // cleanly: list what blocks, not every finding of the file (`qpoint check` lists those).
     process.stdout.write(applied);
     const aside = new Set((before.withheld ?? []).map((w) => w.index));
-    const blocking = result.remaining.filter((f) => f.severity === 'error' && f.path[0] === 'mirrors' && typeof f.path[1] === 'number' && aside.has(f.path[1]));
+    const blocking = result.remaining.filter((f) => f.severity === 'error' && aside.has(mirrorIndexOfPath(f.path) ?? -1));
     process.stdout.write(`nothing fixed: fixes are offered once the spec has no errors; fix ${blocking.length === 1 ? 'this error' : `these ${blocking.length} errors`} first\n`);
     for (const f of blocking) process.stdout.write(findingLine(name, f) + '\n');
     const others = result.remaining.length - blocking.length;

@@ -5,15 +5,15 @@
  */
 import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
-import { parseSpec, type ParsedSpec } from './spec/index';
+import type { ParsedSpec } from './spec/index';
+import { resolveText } from './resolve';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
 import { buildAnchors } from './anchors';
-import { applyDesignTargets } from './design/auto-size';
 import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { sortFindings } from './findings';
-import { mirrorOfPath } from './mirror-at';
+import { mirrorAt } from './mirror-at';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -37,24 +37,24 @@ export interface AnalyzeHooks {
 export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}, hooks: AnalyzeHooks = {}): FileReport {
   let parsed: ParsedSpec | undefined;
   try {
-    parsed = parseSpec(text, file);
-    if (!parsed.spec) {
-      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(parsed.findings), anchors: [] };
-    }
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const { spec, sized } = applyDesignTargets(withLimitDefaults(parsed, parsed.spec, opts));
-    const withSpec: ParsedSpec = { ...parsed, spec };
+    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults });
+    parsed = resolved.parsed;
+    const spec = parsed.spec;
+    if (!spec) {
+      return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(parsed.findings), anchors: [] };
+    }
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
     const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     const findings: Finding[] = [
       ...parsed.findings,
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(withSpec, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
-      ...variationFindings(withSpec, spec, mirrors, sized, file),
+      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
+      ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
-    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(withSpec, mirrors);
+    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);
     const report: FileReport = {
       file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors,
       limits: { error: spec.limits.error, margin: spec.limits.margin },
@@ -88,18 +88,10 @@ function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
-    const mirror = mirrorOfPath(spec, r.path);
+    const mirror = mirrorAt(spec, r.mirrorIndex);
     if (!mirror) return r;
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
-    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
-    const out = mirror.outputs[j];
+    const out = mirror.outputs[r.outputIndex];
     return out ? { ...r, require: out.require } : r;
   });
-}
-
-/** The editor may supply a default margin; a margin written in the spec always wins. */
-function withLimitDefaults(parsed: ParsedSpec, spec: ResolvedSpec, opts: AnalyzeOptions): ResolvedSpec {
-  const margin = opts.limitsDefaults?.margin;
-  if (margin === undefined || parsed.source.value(['limits', 'margin']) !== undefined) return spec;
-  return { ...spec, limits: { ...spec.limits, margin } };
 }

@@ -12,14 +12,23 @@ export function mirrorAt(spec: ResolvedSpec, index: number): ResolvedMirror | un
   return spec.mirrors.find((x) => x.path[1] === index);
 }
 
-/** The mirror a report or finding path (['mirrors', i, …]) is in. */
+/** The file index of the mirror a finding's path (['mirrors', i, …]) is in, else undefined. A
+ *  report carries its own (`MirrorReport.mirrorIndex`); this is for paths alone. */
+export function mirrorIndexOfPath(path: readonly (string | number)[]): number | undefined {
+  return path[0] === 'mirrors' && typeof path[1] === 'number' ? path[1] : undefined;
+}
+
+/** The mirror a finding path (['mirrors', i, …]) is in. */
 export function mirrorOfPath(spec: ResolvedSpec, path: readonly (string | number)[]): ResolvedMirror | undefined {
-  return path[0] === 'mirrors' && typeof path[1] === 'number' ? mirrorAt(spec, path[1]) : undefined;
+  const index = mirrorIndexOfPath(path);
+  return index === undefined ? undefined : mirrorAt(spec, index);
 }
 
 /** The mirror's index in the file's list. */
 export function indexOf(mirror: ResolvedMirror): number {
-  return typeof mirror.path[1] === 'number' ? mirror.path[1] : -1;
+  // Defensive: a malformed mirror (a defect upstream) still gets a report saying so.
+  const at: unknown = Array.isArray(mirror.path) ? mirror.path[1] : undefined;
+  return typeof at === 'number' ? at : -1;
 }
 
 /** The spec with the mirror at file index `index` replaced. */

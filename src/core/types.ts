@@ -294,7 +294,12 @@ export interface MirrorReport {
   /** The measured circuit's devices; a bank output lists the shared reference and its own
    *  devices (`<output>.<role>`), not its siblings'. */
   devices: DeviceReport[];
+  /** Where the measured output is written: ['mirrors', i] or ['mirrors', i, 'outputs', j]. */
   path: SpecPath;
+  /** The mirror's index in the file's `mirrors` list (look it up with `mirrorAt`). */
+  mirrorIndex: number;
+  /** The output's index in the mirror's outputs (0 for a single-output mirror and a netlist). */
+  outputIndex: number;
   corners?: CornerResult[];
   mc?: MonteCarloResult;
   /** Iout and Rout versus Vout across the supply (for plots), when requested. */

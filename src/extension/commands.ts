@@ -8,7 +8,7 @@ import { renderHtmlReport } from '../core/report/html';
 import type { AnalysisManager } from './analysisManager';
 import type { Analyzer } from './analyzer';
 import { toDiagnostics, toWorkspaceEdit } from './convert';
-import { minimalEdit } from './edits';
+import { minimalEdit } from '../core/text/edits';
 import { countFindings } from './present';
 import { isSpecDocument, SPEC_GLOBS } from './specDocuments';
 

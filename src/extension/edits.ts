@@ -1,44 +1,9 @@
 /**
- * Text-edit plumbing for quick fixes: which edits a "fix all" applies from one report, and the
- * one minimal edit that turns a text into another (for the core's verified multi-round fix-all).
- * Pure: no `vscode`.
+ * Which edits a "fix all" applies from one report (the one minimal edit that turns a text into
+ * another is the core's `minimalEdit`, text/edits.ts). Pure: no `vscode`.
  */
-import type { Finding, Position, TextEdit } from '../core/types';
+import type { Finding, TextEdit } from '../core/types';
 import { mergeEdits } from '../core/rules/fix-all';
-
-/** LSP position of a UTF-16 offset. */
-export function positionAt(text: string, offset: number): Position {
-  let line = 0;
-  let start = 0;
-  for (;;) {
-    const nl = text.indexOf('\n', start);
-    if (nl < 0 || nl >= offset) break;
-    line++;
-    start = nl + 1;
-  }
-  return { line, character: offset - start };
-}
-
-/** One edit replacing the differing middle of `before` by that of `after`; undefined if equal.
- *  Everything outside the changed span (comments, formatting, the cursor) stays put. */
-export function minimalEdit(before: string, after: string): TextEdit | undefined {
-  if (before === after) return undefined;
-  let head = 0;
-  const max = Math.min(before.length, after.length);
-  while (head < max && before.charCodeAt(head) === after.charCodeAt(head)) head++;
-  // Do not split a surrogate pair.
-  if (head > 0 && isHighSurrogate(before.charCodeAt(head - 1))) head--;
-  let tail = 0;
-  while (tail < max - head && before.charCodeAt(before.length - 1 - tail) === after.charCodeAt(after.length - 1 - tail)) tail++;
-  if (tail > 0 && isLowSurrogate(before.charCodeAt(before.length - tail))) tail--;
-  return {
-    range: { start: positionAt(before, head), end: positionAt(before, before.length - tail) },
-    newText: after.slice(head, after.length - tail),
-  };
-}
-
-function isHighSurrogate(c: number): boolean { return c >= 0xd800 && c <= 0xdbff; }
-function isLowSurrogate(c: number): boolean { return c >= 0xdc00 && c <= 0xdfff; }
 
 /**
  * The preferred fix of every error and warning finding, as one set of non-overlapping edits

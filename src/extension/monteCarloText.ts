@@ -4,6 +4,7 @@
  */
 import type { FileReport } from '../core/types';
 import { MC_SAMPLES } from '../core/defaults';
+import { formatPercent } from '../core/text/format';
 export const MC_SEED_DEFAULT = 1;
 
 export interface MonteCarloRun { samples: number; seed: number }
@@ -54,5 +55,5 @@ export function summaryMessage(report: FileReport, run: MonteCarloRun, ms: numbe
   if (sampled.length === 0) return `${head}: nothing to sample.`;
   const worst = sampled.reduce((a, b) => (b.mc!.yield < a.mc!.yield ? b : a));
   const y = worst.mc!.yield;
-  return `${head}; lowest yield ${Number((100 * y).toFixed(2))} % (${worst.name}).`;
+  return `${head}; lowest yield ${formatPercent(y, 4)} (${worst.name}).`;
 }

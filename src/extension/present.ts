@@ -4,32 +4,12 @@
  * objects. No physics here: every number comes from the core's report.
  */
 import type { Anchor, DeviceReport, FileReport, MirrorReport, Position, Range, SpecPath } from '../core/types';
-import { formatSI } from '../core/units/format';
-import { CAUTION_TEXT } from '../core/report/html';
+import { CAUTION as CAUTION_TEXT, formatPercent, formatPlain, formatSI, formatSignedPercent } from '../core/text/format';
 
-// ───────────────────────────── number formatting ─────────────────────────────
-
-/** Plain number with `digits` significant digits, no SI prefix (ratios, IC). */
-export function formatPlain(x: number, digits = 3): string {
-  if (!Number.isFinite(x)) return Number.isNaN(x) ? 'NaN' : x < 0 ? '−∞' : '∞';
-  if (x === 0) return '0';
-  const a = Math.abs(x);
-  if (a >= 1e-3 && a < 1e6) return String(Number(x.toPrecision(digits)));
-  return x.toExponential(digits - 1).replace(/\.?0+e/, 'e');
-}
-
-/** Relative value as percent with a sign when asked: 0.0025 → "+0.25 %". */
-export function formatPercent(x: number, signed = false, digits = 3): string {
-  if (!Number.isFinite(x)) return `${formatPlain(x)} %`;
-  const p = x * 100;
-  const sign = signed && p > 0 ? '+' : '';
-  return `${sign}${formatPlain(p, digits)} %`;
-}
+export { formatPercent, formatPlain, formatSignedPercent };
 
 /** Output resistance, where an ideal source gives ∞. */
-export function formatOhm(r: number): string {
-  return formatSI(r, 'Ω', 3);
-}
+const formatOhm = (r: number): string => formatSI(r, 'Ω', 3);
 
 // ───────────────────────────── hover: what is under the cursor ─────────────────────────────
 
@@ -181,7 +161,7 @@ export function mirrorFigures(r: MirrorReport): [label: string, value: string][]
     ['Iout', formatSI(r.iout, 'A')],
     ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio, 4)],
   ];
-  if (r.error !== undefined) rows.push(['error', formatPercent(r.error, true)]);
+  if (r.error !== undefined) rows.push(['error', formatSignedPercent(r.error)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
   rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
   if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
@@ -221,7 +201,7 @@ export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): st
   ];
   for (const r of reports) {
     const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
-    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatPercent(r.error, true) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatSignedPercent(r.error) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
 }
@@ -242,7 +222,7 @@ export function lensTitle(r: MirrorReport): string {
   if (r.beyondRails) return `${r.name}: no operating point within the supply`;
   if (!r.converged) return `${r.name}: did not converge`;
   const parts = [`Iout ${formatSI(r.iout, 'A')}`];
-  if (r.error !== undefined) parts.push(`error ${formatPercent(r.error, true)}`);
+  if (r.error !== undefined) parts.push(`error ${formatSignedPercent(r.error)}`);
   parts.push(`Rout ${formatOhm(r.rout)}`, r.noCompliance ? `no compliance: ${r.noCompliance.device} out of saturation at every Vout` : `compliance ${formatSI(r.compliance, 'V')}`);
   return parts.join(' · ');
 }

@@ -3,7 +3,7 @@ import * as vscode from 'vscode';
 import type { AnalysisManager } from './analysisManager';
 import type { Analyzer } from './analyzer';
 import { FIX_ALL_KIND, toCodeLenses, toFixAllAction, toHover, toQuickFixes } from './convert';
-import { minimalEdit } from './edits';
+import { minimalEdit } from '../core/text/edits';
 import { readSettings } from './settings';
 import { SPEC_SELECTOR } from './specDocuments';
 

@@ -5,19 +5,7 @@
  */
 import { isAlias, isMap, isPair, isScalar, isSeq, parseDocument, type Node } from 'yaml';
 import type { Position, SpecPath } from '../core/types';
-
-/** UTF-16 offset of an LSP position (clamped to the text). */
-export function offsetAt(text: string, pos: Position): number {
-  let offset = 0;
-  for (let line = 0; line < pos.line; line++) {
-    const nl = text.indexOf('\n', offset);
-    if (nl < 0) return text.length;
-    offset = nl + 1;
-  }
-  const lineEnd = text.indexOf('\n', offset);
-  const end = lineEnd < 0 ? text.length : lineEnd;
-  return Math.min(offset + Math.max(pos.character, 0), end);
-}
+import { LineIndex } from '../core/text/lines';
 
 function within(node: { range?: [number, number, number] | null } | null | undefined, offset: number): boolean {
   const r = node?.range;
@@ -57,5 +45,5 @@ function walk(node: Node | null | undefined, offset: number, path: SpecPath): Sp
 export function pathAt(text: string, pos: Position): SpecPath | undefined {
   const doc = parseDocument(text, { strict: false, uniqueKeys: false });
   if (doc.errors.length > 0 || !doc.contents) return undefined;
-  return walk(doc.contents as Node, offsetAt(text, pos), []);
+  return walk(doc.contents as Node, new LineIndex(text).offset(pos), []);
 }

@@ -149,7 +149,7 @@ function isRequirements(v: unknown): v is Requirements {
   return isRecord(v) && ['ratio', 'rout', 'compliance', 'sigma'].every((k) => optional(v[k], isNumber));
 }
 
-const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iin', 'iout', 'ratio', 'rout', 'compliance'] as const;
+const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iin', 'iout', 'ratio', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
 const MIRROR_OPTIONAL_NUMBERS = ['ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias'] as const;
 
 export function isMirrorReport(v: unknown): v is MirrorReport {

@@ -12,6 +12,7 @@ import { buildTemplate } from '../../src/core/circuit/templates';
 import { buildNetlist } from '../../src/core/circuit/netlistCircuit';
 import { newChannelEval } from '../../src/core/models/core';
 import { prepareDevice } from '../../src/core/models/device';
+import { MODEL_NAMES } from '../../src/core/models/registry';
 import { evalTerminal } from '../../src/core/models/terminal';
 import type { ModelKind, NetlistMirror, Polarity, TemplateMirror } from '../../src/core/types';
 import { makeSpec, netlist, RAZAVI_N, template } from './builders';
@@ -49,7 +50,7 @@ describe('device derivatives vs finite differences', () => {
     ['reverse (VDS < 0) saturation', 1.8, -1.2, 0],
     ['moderate inversion', 0.75, 1.0, 0],
   ];
-  for (const model of ['square-law', 'ekv'] as const) {
+  for (const model of MODEL_NAMES) {
     for (const type of ['nmos', 'pmos'] as const) {
       it.each(points)(`${model} ${type}: %s`, (_name, vgs, vds, vbs) => {
         const s = type === 'pmos' ? -1 : 1;
@@ -62,7 +63,7 @@ describe('device derivatives vs finite differences', () => {
   });
   it('random operating points (fast-check, fixed seed)', () => {
     fc.assert(fc.property(
-      fc.constantFrom<ModelKind>('square-law', 'ekv'), fc.constantFrom<Polarity>('nmos', 'pmos'),
+      fc.constantFrom<ModelKind>(...MODEL_NAMES), fc.constantFrom<Polarity>('nmos', 'pmos'),
       fc.double({ min: 0, max: 3, noNaN: true }), fc.double({ min: -2, max: 3, noNaN: true }),
       fc.double({ min: -1.5, max: 0, noNaN: true }),
       (model, type, vgs, vds, vbs) => {

@@ -99,7 +99,7 @@ describe('cascode output resistance (references §3)', () => {
       expect(rel(d.gm, G)).toBeLessThan(1e-6);
       expect(rel(d.gds, 1e-5)).toBeLessThan(1e-6);
     }
-    expect(c.vbs).toBeCloseTo(-vsb2, 6);
+    expect(c.vbs).toBeCloseTo(vsb2, 6);  // reported as the magnitude VSB (design §4)
     // gmb2 to the 5 digits references §3 gives it (82.646 µS at VSB2 = 1.086 V).
     expect(rel(c.gmb, GMB2)).toBeLessThan(1e-4);
     expect(r.rout / 1e6).toBeCloseTo(6.203335, 3);             // ±0.5 kΩ (1e-4)

@@ -4,9 +4,13 @@
  * YAML structure per YAML 1.2.2 (block and flow mappings; JSON is a subset, §1.3).
  */
 import { describe, expect, it } from 'vitest';
-import { offsetAt, pathAt } from '../../src/extension/specPath';
-import { minimalEdit, positionAt, preferredEdits } from '../../src/extension/edits';
-import { applyEdits } from '../../src/core/spec/edit';
+import { pathAt } from '../../src/extension/specPath';
+import { preferredEdits } from '../../src/extension/edits';
+import { applyEdits, minimalEdit } from '../../src/core/text/edits';
+import { LineIndex } from '../../src/core/text/lines';
+
+const offsetAt = (text: string, p: { line: number; character: number }) => new LineIndex(text).offset(p);
+const positionAt = (text: string, offset: number) => new LineIndex(text).position(offset);
 import { FILE, SPEC_TEXT } from './fixture';
 
 const pos = (line: number, character: number) => ({ line, character });

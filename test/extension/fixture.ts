@@ -44,7 +44,7 @@ export const OUT = device('out', 1.5);
 export const MIRROR: MirrorReport = {
   name: 'copy', mirror: 'copy', kind: 'simple', type: 'nmos', converged: true, iterations: 6, residual: 1e-15,
   vout: 1.5, iin: REF.id, iout: OUT.id, ratio: OUT.id / REF.id, ratioIdeal: 1, error: OUT.id / REF.id - 1,
-  rout: OUT.ro, routApprox: OUT.ro, compliance: vov, nodes: {}, devices: [REF, OUT], path: ['mirrors', 0],
+  rout: OUT.ro, routApprox: OUT.ro, compliance: vov, nodes: {}, devices: [REF, OUT], path: ['mirrors', 0], mirrorIndex: 0, outputIndex: 0,
 };
 
 const r = (line: number, c0: number, c1: number) => ({ start: { line, character: c0 }, end: { line, character: c1 } });

@@ -104,7 +104,7 @@ describe('Monte Carlo in the worker', () => {
 function mirror(name: string, sigma: number | undefined, yieldFraction?: number): MirrorReport {
   return {
     name, mirror: name, kind: 'simple', type: 'nmos', converged: true, iterations: 3, residual: 0,
-    vout: 1, iin: 1e-5, iout: 1e-5, ratio: 1, rout: 1e6, compliance: 0.3, nodes: {}, devices: [], path: ['mirrors', 0],
+    vout: 1, iin: 1e-5, iout: 1e-5, ratio: 1, rout: 1e6, compliance: 0.3, nodes: {}, devices: [], path: ['mirrors', 0], mirrorIndex: 0, outputIndex: 0,
     sigma, mc: yieldFraction === undefined ? undefined : { samples: 10_000, seed: 1, mean: 1e-5, sigma: 0.01, min: 0, max: 0, yield: yieldFraction },
   };
 }

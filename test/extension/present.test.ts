@@ -6,30 +6,14 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
-  contains, deviceFigures, formatPercent, formatPlain, hoverMarkdown, hoverTarget, lensPlacements, lensTitle,
+  contains, deviceFigures, hoverMarkdown, hoverTarget, lensPlacements, lensTitle,
   mirrorHoverMarkdown, statusSummary,
 } from '../../src/extension/present';
-import { CAUTION_TEXT } from '../../src/core/report/html';
+import { CAUTION as CAUTION_TEXT } from '../../src/core/text/format';
 import type { MirrorReport } from '../../src/core/types';
 import { FILE, MIRROR, OUT, REF } from './fixture';
 
 const pos = (line: number, character: number) => ({ line, character });
-
-describe('number display', () => {
-  it('prints ratios and IC without SI prefixes', () => {
-    expect(formatPlain(1.0390935, 4)).toBe('1.039');
-    expect(formatPlain(42.95)).toBe('43');
-    expect(formatPlain(0.05)).toBe('0.05');
-    expect(formatPlain(2.5e-5)).toBe('2.5e-5');
-    expect(formatPlain(Infinity)).toBe('∞');
-  });
-
-  it('prints relative values in percent, 1 % = 0.01 (SI Brochure §5.4.7)', () => {
-    expect(formatPercent(0.0025, true)).toBe('+0.25 %');
-    expect(formatPercent(-0.0391, true)).toBe('-3.91 %');
-    expect(formatPercent(0.003)).toBe('0.3 %');
-  });
-});
 
 describe('device hover', () => {
   it('shows the ten operating-point figures of the D device with SI prefixes', () => {

@@ -15,9 +15,9 @@ import { describe, expect, it } from 'vitest';
 import { CST, Lexer, parseDocument } from 'yaml';
 import type { Finding, Fix } from '../../src/core/types';
 import { analyzeText } from '../../src/core/analyze';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { fixAll } from '../../src/core/rules/fix-all';
-import { LineIndex } from '../../src/core/spec/positions';
+import { LineIndex } from '../../src/core/text/lines';
 import { arbFaultySpec } from './faulty-specs';
 import { seedSpecs } from './inputs';
 

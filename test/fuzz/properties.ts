@@ -12,7 +12,7 @@
  */
 import type { FileReport, Range } from '../../src/core/types';
 import { analyzeText } from '../../src/core/analyze';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 
 /** Line lengths of a text, with LSP's line breaks. */
 export function lineLengths(text: string): number[] {

@@ -8,6 +8,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { parseSpec } from '../../src/core/spec/index';
+import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import { runRules } from '../../src/core/rules/index';
 import { MirrorFragments } from '../../src/core/spec/fragment';
@@ -15,9 +16,10 @@ import { HALDEN_HEADER } from '../../scripts/spec-texts';
 import { arbFaultySpec } from './faulty-specs';
 import { arbMutatedSpec, seedSpecs } from './inputs';
 
-/** Both ways; undefined when the text has no resolved spec to run rules on. */
+/** Both ways; undefined when the text has no resolved spec to run rules on. The spec is
+ *  resolved as analyzeText resolves it (design targets sized), as the whole-file re-read does. */
 function bothWays(text: string, file: string): { local: string; whole: string; fixes: number } | undefined {
-  const parsed = parseSpec(text, file);
+  const { parsed } = resolveText(text, file);
   if (!parsed.spec) return undefined;
   const reports = analyzeSpec(parsed.spec);
   const local = runRules(parsed, reports);

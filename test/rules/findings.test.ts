@@ -68,7 +68,7 @@ const rows: Row[] = [
     name: 'ratio-error: in a bias bank output, at that output\'s m token',
     text: spec(mirror('bank', 'cascode', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    outputs:', '      - name: a', '        devices: { out: { m: 2 }, outc: { m: 2 } }',
       '        output: { v: 1.2 }', '      - name: b', '        devices: { out: { m: 3 }, outc: { m: 3 } }', '        output: { v: 1.0 }', '        require: { ratio: 3.1 }'])),
-    code: 'ratio-error', at: [17, 29, 30, '3'], fix: true, message: /sizing −3\.2\d % \(geometric ratio 3\)/,
+    code: 'ratio-error', at: [17, 29, 30, '3'], fix: true, message: /sizing -3\.2\d % \(geometric ratio 3\)/,
   },
   {
     // Cascode output b at 0.75 V, below VGS_ref + VOV_outc ≈ 0.82 V: b's outc is in triode; a is fine.
@@ -81,7 +81,7 @@ const rows: Row[] = [
     // Wilson: (1+λ·VGS_d)/(1+λ·(VGS_d+VGS_out)) − 1 ≈ −5.5 % at λ = 0.08 (references §5 form).
     name: 'vds-mismatch: Wilson, at the kind value, fixed by the balanced form',
     text: spec(mirror('wil', 'wilson', 'nmos', ['    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 1.2 }'])),
-    code: 'vds-mismatch', at: [8, 10, 16, 'wilson'], fix: true, writes: 'wilson-balanced', message: /moves the ratio by −5\.\d+ %/,
+    code: 'vds-mismatch', at: [8, 10, 16, 'wilson'], fix: true, writes: 'wilson-balanced', message: /moves the ratio by -5\.\d+ %/,
   },
   {
     // ro = 1/(λ·I) with λ = 0.08·1µ/1µ at 10 µA → 1.25 MΩ (plus VDS term) < 3 MΩ.
@@ -154,7 +154,7 @@ const rows: Row[] = [
     name: 'stack-over-supply: a PMOS cascode whose two VSG exceed the supply, at the input value',
     text: spec(mirror('pc', 'cascode', 'pmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 0.3 }', '    require: { ratio: 1, compliance: 1.2 }'])),
     code: 'stack-over-supply', at: [10, 11, 14, '40u'], fix: false,
-    message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at −1\.\d+ V, below vss\)/,
+    message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at -1\.\d+ V, below vss\)/,
   },
 ];
 

@@ -3,7 +3,7 @@ import type { Finding, Fix, Range } from '../../src/core/types';
 import { parseSpec } from '../../src/core/spec/index';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import { runRules } from '../../src/core/rules/index';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 
 /** Spec findings plus design findings, as the front ends get them. */
 export function check(text: string, file = 'case.bias.yaml'): { findings: Finding[]; parsed: boolean; specErrors: Finding[] } {

@@ -8,7 +8,8 @@ import { describe, expect, it } from 'vitest';
 import { bracketedRoot, smallestScale } from '../../src/core/sizing/root';
 import { quantizeSize, roundSignificant, snapToGrid } from '../../src/core/sizing/quantize';
 import { readStyle, shortDecimal, writeLike } from '../../src/core/sizing/token-style';
-import { applyTextEdits, EditLog, lineStarts, toOffset, toPosition } from '../../src/core/rules/compose';
+import { applyEdits, EditLog } from '../../src/core/text/edits';
+import { LineIndex } from '../../src/core/text/lines';
 import type { TextEdit } from '../../src/core/types';
 
 describe('bracketedRoot', () => {
@@ -104,10 +105,10 @@ describe('token style', () => {
 describe('EditLog (composing edits back onto the original)', () => {
   it('positions round-trip with CRLF and LF', () => {
     const text = 'a: 1\r\nbb: 2\nccc: 3';
-    const st = lineStarts(text);
+    const lines = new LineIndex(text);
     for (let off = 0; off <= text.length; off++) {
-      const p = toPosition(st, off);
-      expect(toOffset(st, text.length, p)).toBe(off);
+      const p = lines.position(off);
+      expect(lines.offset(p)).toBe(off);
     }
   });
 
@@ -119,17 +120,16 @@ describe('EditLog (composing edits back onto the original)', () => {
       for (const [a, len, ins] of steps) {
         const s = direct.length === 0 ? 0 : a % (direct.length + 1);
         const e = Math.min(direct.length, s + len);
-        const st = lineStarts(direct);
-        const edit: TextEdit = { range: { start: toPosition(st, s), end: toPosition(st, e) }, newText: ins };
+        const edit: TextEdit = { range: new LineIndex(direct).range(s, e), newText: ins };
         log.apply([edit]);
         direct = direct.slice(0, s) + ins + direct.slice(e);
         expect(log.text).toBe(direct);
       }
       const edits = log.edits();
-      expect(applyTextEdits(text, edits)).toBe(direct);
+      expect(applyEdits(text, edits)).toBe(direct);
       // The composed edits do not overlap.
-      const st0 = lineStarts(text);
-      const spans = edits.map((x) => [toOffset(st0, text.length, x.range.start), toOffset(st0, text.length, x.range.end)]).sort((p, q) => p[0] - q[0]);
+      const lines0 = new LineIndex(text);
+      const spans = edits.map((x) => [lines0.offset(x.range.start), lines0.offset(x.range.end)]).sort((p, q) => p[0] - q[0]);
       for (let i = 1; i < spans.length; i++) expect(spans[i][0]).toBeGreaterThanOrEqual(spans[i - 1][1]);
     }), { numRuns: 400 });
   });

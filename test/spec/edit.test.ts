@@ -4,7 +4,8 @@
  */
 import { describe, expect, test } from 'vitest';
 import { parseSpec } from '../../src/core/spec/index';
-import { applyEdits, insertKeyEdits, replaceValueEdit } from '../../src/core/spec/edit';
+import { insertKeyEdits, replaceValueEdit } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import type { TemplateMirror } from '../../src/core/types';
 import { BASE, withText } from './helpers';
 

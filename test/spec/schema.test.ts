@@ -7,6 +7,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import Ajv from 'ajv';
 import { parse } from 'yaml';
 import schema from '../../schema/qpoint-bias.schema.json';
+import { MODEL_NAMES } from '../../src/core/models/registry';
 
 type Json = Record<string, unknown>;
 
@@ -44,6 +45,10 @@ describe('schema/qpoint-bias.schema.json', () => {
     expect(byName.get('type')!.enum).toEqual(['nmos', 'pmos']);
     expect(byName.get('model')!.enum).toEqual(['square-law', 'ekv']);
     expect(byName.get('bulk')!.enum).toEqual(['rail', 'source']);
+  });
+
+  test('process.model offers exactly the registered device models (MODEL_NAMES)', () => {
+    expect(schema.properties.process.properties.model.enum).toEqual([...MODEL_NAMES]);
   });
 
   test('values that may carry units are number or string', () => {

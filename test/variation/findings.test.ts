@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { applyEdits } from '../../src/core/spec/edit';
+import { applyEdits } from '../../src/core/text/edits';
 import { parseSpec } from '../../src/core/spec/index';
 import type { Finding, TemplateMirror } from '../../src/core/types';
 import { applyDesignTargets } from '../../src/core/variation/index';
@@ -124,7 +124,7 @@ describe('corner findings', () => {
     expect(f.length).toBe(1);
     expect(f[0]!.severity).toBe('error');
     expect(at(f[0]!)).toBe('14:6-14:9');   // `out:` under devices
-    expect(f[0]!.message).toMatch(/^sink: `out` is not saturated at corner slow \(125 °C\): margin −\d/);
+    expect(f[0]!.message).toMatch(/^sink: `out` is not saturated at corner slow \(125 °C\): margin -\d/);
     expect(f[0]!.related?.[0]?.path).toEqual(['corners', 'slow']);
     expect(at({ ...f[0]!, range: f[0]!.related![0]!.range })).toBe('18:2-18:6');
   });
@@ -188,7 +188,7 @@ describe('corner findings against requirements', () => {
     const sig = one('corner-high-sigma');
     expect(at(sig)).toBe('14:52-14:56');           // `3.5%`
     // Cold and fast: lower overdrive, higher gm/ID, larger ΔVT sensitivity (Kinget 2005, from memory).
-    expect(sig.message).toMatch(/at corner ff \(−40 °C, vdd 1\.98 V\)/);
+    expect(sig.message).toMatch(/at corner ff \(-40 °C, vdd 1\.98 V\)/);
   });
 
   it('PMOS compliance uses the top of output.range', () => {

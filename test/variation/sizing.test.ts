@@ -1,28 +1,30 @@
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
 import { applyDesignTargets } from '../../src/core/design/auto-size';
-import { aspectForTarget, gmIdFromIc, icFromGmId, icFromOverdrive } from '../../src/core/design/targets';
-import { snapLength } from '../../src/core/design/snap';
+import { gmIdFromIc, icFromGmId, icFromOverdrive } from '../../src/core/models/ekv';
+import { MODELS } from '../../src/core/models/registry';
+import { quantizeSize } from '../../src/core/sizing/quantize';
 import { BOLTZMANN, ELEMENTARY_CHARGE } from '../../src/core/defaults';
 import type { DesignTarget, DeviceReport, ResolvedSpec, TemplateKind } from '../../src/core/types';
 import { makeSpec, mirror, sz } from './builders';
 
 const UT300 = (BOLTZMANN * 300) / ELEMENTARY_CHARGE; // 25.852000 mV (references §1)
 
-describe('closed-form sizing relations (targets.ts)', () => {
+describe('closed-form sizing relations (DeviceModel.aspectForTarget)', () => {
   it('square law reproduces the Razavi set D: W/L = 10 at VOV = 0.386334 V, 100 µA', () => {
     // references §2 "D" (Razavi 0.5 µm set, from memory): VOV = sqrt(2·I/(k′·W/L)), no CLM.
-    const ctx = { model: 'square-law' as const, kp: 134e-6, n: 1.3, ut: UT300 };
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'vov', value: 0.386334 })!).toBeCloseTo(10, 4);
+    const ctx = { kp: 134e-6, n: 1.3, ut: UT300 };
+    const model = MODELS['square-law'];
+    expect(model.aspectForTarget(ctx, 100e-6, { kind: 'vov', value: 0.386334 }, 1)!).toBeCloseTo(10, 4);
     // gm/ID = 2/VOV (square law): the same device at gm/ID = 2/0.386334 V.
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'gmid', value: 2 / 0.386334 })!).toBeCloseTo(10, 4);
+    expect(model.aspectForTarget(ctx, 100e-6, { kind: 'gmid', value: 2 / 0.386334 }, 1)!).toBeCloseTo(10, 4);
   });
 
   it('EKV reproduces references §6 "D in EKV terms": IS = 2.3284 µA, IC = 42.95 at 100 µA', () => {
     // IS = 2·n·β·U_T² (Enz, Krummenacher & Vittoz 1995, from memory): W/L = 10 gives IC 42.95.
-    const ctx = { model: 'ekv' as const, kp: 134e-6, n: 1.3, ut: UT300 };
+    const ctx = { kp: 134e-6, n: 1.3, ut: UT300 };
     expect(2 * 1.3 * 134e-6 * 10 * UT300 * UT300).toBeCloseTo(2.3284e-6, 10);
-    expect(aspectForTarget(ctx, 100e-6, { kind: 'ic', value: 42.95 })!).toBeCloseTo(10, 2);
+    expect(MODELS.ekv.aspectForTarget(ctx, 100e-6, { kind: 'ic', value: 42.95 }, 1)!).toBeCloseTo(10, 2);
   });
 
   it('EKV overdrive ↔ IC follows the ln² form of references §6', () => {
@@ -45,12 +47,12 @@ describe('closed-form sizing relations (targets.ts)', () => {
     expect(icFromGmId(29.7, 1.3, UT300)).toBeGreaterThan(0);
   });
 
-  it('snaps to the grid (nearest, or up) and to 4 significant digits without one', () => {
-    expect(snapLength(1.234e-6, 10e-9)).toBe(1.23e-6);
-    expect(snapLength(1.231e-6, 10e-9, 'up')).toBe(1.24e-6);
-    expect(snapLength(1.24e-6, 10e-9, 'up')).toBe(1.24e-6);
-    expect(snapLength(12.3456e-6, undefined)).toBe(12.35e-6);
-    expect(snapLength(12.3412e-6, undefined, 'up')).toBe(12.35e-6);
+  it('snaps to the grid (nearest, or up) and to 3 significant digits without one, as fixes do', () => {
+    expect(quantizeSize(1.234e-6, 10e-9, 'nearest')).toBe(1.23e-6);
+    expect(quantizeSize(1.231e-6, 10e-9, 'up')).toBe(1.24e-6);
+    expect(quantizeSize(1.24e-6, 10e-9, 'up')).toBe(1.24e-6);
+    expect(quantizeSize(12.3456e-6, undefined, 'nearest')).toBe(12.3e-6);
+    expect(quantizeSize(12.3412e-6, undefined, 'up')).toBe(12.4e-6);
   });
 });
 

@@ -38,7 +38,7 @@ export function tailMirror(over: Partial<MirrorReport> = {}): MirrorReport {
       device('ref'), device('refc', { vbs: 0.72, vth: 0.58 }),
       device('out', { m: 4, id: 4.012e-5, sized: true }), device('outc', { m: 4, id: 4.012e-5, vds: 0.4, margin: 0.05 }),
     ],
-    path: ['mirrors', 0], require: { ratio: 4, rout: 2e7, compliance: 0.6, sigma: 0.003 },
+    path: ['mirrors', 0], mirrorIndex: 0, outputIndex: 0, require: { ratio: 4, rout: 2e7, compliance: 0.6, sigma: 0.003 },
     curve: curve(),
     corners: [
       { name: 'slow-cold', converged: true, iin: 1e-5, iout: 4.03e-5, ratio: 4.03, error: 0.0075, rout: 1.9e7, compliance: 0.66, sigma: 0.0033, minMargin: 0.02, minMarginDevice: 'outc' },
@@ -61,7 +61,7 @@ export function bankOutput(name: string, j: number, over: Partial<MirrorReport> 
       device('ref', { type: 'pmos', id: 2e-5 }),
       device(`${name}.out`, { role: 'out', type: 'pmos', id: 2.05e-5, vds: 1.0, region: j === 1 ? 'triode' : 'saturation', margin: j === 1 ? -0.05 : 0.6 }),
     ],
-    path: ['mirrors', 1, 'outputs', j], require: { ratio: 1 },
+    path: ['mirrors', 1, 'outputs', j], mirrorIndex: 1, outputIndex: j, require: { ratio: 1 },
     ...over,
   };
 }

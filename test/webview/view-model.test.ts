@@ -229,6 +229,8 @@ describe('plot data', () => {
     expect(d.x).toHaveLength(61);
     expect(d.iout[3]).toBeNull();
     expect(d.rout[3]).toBeNull();
+    // The point with no operating point is listed for the plot's cross, not dropped silently.
+    expect(d.failed).toEqual([d.x[3]]);
     expect(d.iout[60]).toBeCloseTo(40 * Math.tanh(9) * (1 + 1.8 / 25), 9);
     expect(d.nominal).toMatchObject({ x: 0.9 });
     expect(d.nominal.iout).toBeCloseTo(40.12, 9);

@@ -94,9 +94,3 @@ export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeat
   }
   return reports;
 }
-
-/** Temperature- and L-adjusted device parameters (design §3), shared with the sizing code. */
-export {
-  evalDevice, evalPrepared, gateDriveFor, prepareDevice, thermalVoltage, kpAt, lambdaAt, thresholdAt,
-  type DeviceEvaluation, type ModelDevice,
-} from '../models/index';

@@ -7,6 +7,7 @@ import { idealRatio, isBank } from '../circuit/templates';
 import { takesVbias } from '../kinds/index';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
+import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
 import { splitError } from './errorSplit';
 import { outputSigma } from './mismatch';
@@ -21,11 +22,13 @@ import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias
 export interface MeasureOptions { curve?: boolean; curvePoints?: number }
 
 /** Which output a report is about: what differs between reports of identical mirrors. */
-export interface ReportIdentity { name: string; mirror: string; output?: string; path: MirrorReport['path'] }
+export interface ReportIdentity {
+  name: string; mirror: string; output?: string; path: MirrorReport['path']; mirrorIndex: number; outputIndex: number;
+}
 
 export function reportIdentity(t: MirrorTarget): ReportIdentity {
   const m = t.mirror;
-  const id: ReportIdentity = { name: m.name, mirror: m.name, path: m.path };
+  const id: ReportIdentity = { name: m.name, mirror: m.name, path: m.path, mirrorIndex: indexOf(m), outputIndex: m.kind === 'netlist' ? 0 : t.outputIndex };
   if (m.kind !== 'netlist') {
     // Defensive: this also labels the report of a malformed mirror that made the solve throw.
     const o = Array.isArray(m.outputs) ? m.outputs[t.outputIndex] : undefined;
@@ -43,6 +46,7 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
   const r: MirrorReport = {
     name: id.name, mirror: id.mirror, kind: m.kind, type: m.type, converged: false, iterations: 0, residual: NaN,
     vout, iin: NaN, iout: NaN, ratio: NaN, rout: NaN, compliance: NaN, nodes: {}, devices: [], path: id.path,
+    mirrorIndex: id.mirrorIndex, outputIndex: id.outputIndex,
   };
   if (id.output !== undefined) r.output = id.output;
   return r;

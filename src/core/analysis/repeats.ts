@@ -44,6 +44,8 @@ function withIdentity(r: MirrorReport, id: ReportIdentity): MirrorReport {
   r.name = id.name;
   r.mirror = id.mirror;
   r.path = id.path;
+  r.mirrorIndex = id.mirrorIndex;
+  r.outputIndex = id.outputIndex;
   if (id.output !== undefined) r.output = id.output;
   else delete r.output;
   return r;

@@ -65,12 +65,13 @@ export function solveMirror(mc: MirrorCircuit, warm?: Float64Array, opts: DcOpti
     r = solveDc(c, mc.ws, { clock: opts.clock, budgetMs: opts.budgetMs, maxIterations: opts.maxIterations, polish: opts.polish, plainOnly: true });
     iterations = r.iterations;
   }
-  if (!r || !r.converged) {
+  // A warm plain-only solve is a continuation step: its caller halves the step instead.
+  if ((!r || !r.converged) && !(warm && opts.plainOnly)) {
     mc.guess();
     r = solveDc(c, mc.ws, opts);
     r.iterations += iterations;
   }
-  return r.converged ? sanity(mc, r) : r;
+  return r!.converged ? sanity(mc, r!) : r!;
 }
 
 /** A converged point with a node outside the rails means the forced currents have no physical

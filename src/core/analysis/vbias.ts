@@ -72,10 +72,8 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   // Start from the hand estimate: u_vbias = VDSsat_ref + margin + VGS_refc(VSB).
   mc.guess();
   const i = Math.abs(mc.iin());
-  const vdsat = ref.dev.model === 'ekv'
-    ? (() => { const is = 2 * ref.dev.n * ref.dev.beta * ref.dev.ut ** 2; const ic = is > 0 ? i / is : 0; return 2 * ref.dev.ut * Math.sqrt(ic + 0.25) + 3 * ref.dev.ut; })()
-    : gateDriveFor(ref.dev, i, 0) - gateDriveFor(ref.dev, 0, 0);
-  const uA = vdsat + margin;
+  const refModel = ref.dev.model;
+  const uA = refModel.saturationVoltage(ref.dev, i) + margin;
   let u0 = uA + gateDriveFor(refc.dev, i, refc.size.bulk === 'rail' ? uA : 0);
   if (!Number.isFinite(u0)) u0 = 0.5 * span;
   u0 = clamp(u0, 0, span);
@@ -85,7 +83,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   let warm: Float64Array | undefined;
   let bestX: Float64Array | undefined;
   /** g(u) and its slope dg/du from the linearized circuit: d(VDS_ref)/du − d(VDSsat_ref)/du,
-   *  where VDSsat follows the gate (square law: VOV; EKV: about VOV/n). */
+   *  where VDSsat follows the gate as the model says (saturationShift). */
   const evalAt = (u: number): { g: number; slope: number } => {
     fixed[node] = rail + sign * u;
     const r = solveMirror(mc, warm, { polish: false });
@@ -94,7 +92,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
     const dx = heldNodeResponse(mc.ws, node);
     const dA = dx && a < mc.circuit.nFree ? dx[a]! : NaN;
     const dB = dx && b < mc.circuit.nFree ? dx[b]! : NaN;
-    return { g: refExcess(mc, margin), slope: dA - (ref.dev.model === 'ekv' ? dB / ref.dev.n : dB) };
+    return { g: refExcess(mc, margin), slope: dA - refModel.saturationShift(ref.dev, dB) };
   };
 
   let u = u0;

@@ -10,9 +10,9 @@
  *   require.ratio it copies the reference's W/L per finger instead (the multiplier m carries
  *   the ratio, as with unit devices in a layout);
  * - the other output-branch roles (outc; out of a Wilson): the output current of the solve.
- * Length modulation is included: the closed forms of targets.ts take (1 + λ·VDS) from the
- * solved operating point, iterated to a fixed point, so with require.ratio the computed sizes
- * also cancel the VDS mismatch of the pair.
+ * Length modulation is included: the model's closed form (DeviceModel.aspectForTarget) takes
+ * (1 + λ·VDS) from the solved operating point, iterated to a fixed point, so with require.ratio
+ * the computed sizes also cancel the VDS mismatch of the pair.
  * One length for all `l: auto` devices of a mirror (matching): found by search on the full
  * measurement (Rout ∝ L for a simple mirror, ∝ L² for cascodes at constant overdrive).
  * Results snap to process.grid (W to nearest, L up), else to 4 significant digits; W below
@@ -25,9 +25,10 @@ import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
 import { isBank } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
 import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
-import { aspectForTarget } from './targets';
-import { snapLength } from './snap';
-import { formatSI } from '../units/format';
+import { MODELS } from '../models/registry';
+import type { DeviceModel, SizingContext } from '../models/model';
+import { quantizeSize } from '../sizing/quantize';
+import { formatSI } from '../text/format';
 import { indexOf, mirrorAt, withMirrorAt } from '../mirror-at';
 
 export interface SizedDevice {
@@ -67,7 +68,7 @@ interface Slot {
 }
 
 /** Fill every auto w/l from TemplateMirror.design (vov, gmid or ic) at the mirror's own
- *  currents (square-law or EKV relations per process.model), snapped to process.grid;
+ *  currents (the relations of process.model's device model), snapped to process.grid;
  *  `l: auto` from require.rout. Returns the sized spec and what it computed. */
 export function applyDesignTargets(spec: ResolvedSpec): { spec: ResolvedSpec; sized: SizedDevice[] } {
   let current = spec;
@@ -181,13 +182,14 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
   const params = proc[m.type];
-  const ctxT = { model: proc.model, kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
+  const model = MODELS[proc.model];
+  const ctxT: SizingContext = { kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
   const inputBranch = KINDS[m.kind].inputStack;
   const pairOut = KINDS[m.kind].pair.out;
   const bank = isBank(m);
 
   // Lengths first, so every width is computed for the length that will be written.
-  for (const s of slots) if (s.size.auto?.l === true) s.size.l = snapLength(s.size.l, proc.grid, 'up');
+  for (const s of slots) if (s.size.auto?.l === true) s.size.l = quantizeSize(s.size.l, proc.grid, 'up');
   // First pass: ideal currents (the solve with provisional sizes gives iin for a resistor input).
   let iin = m.input.kind === 'current' ? m.input.i : solveAt(ctxOf(spec, index, 0), m.outputs[0].output.v).iin;
   const ratios = m.outputs.map((_, j) => pairRatio(m, j, slots));
@@ -218,9 +220,9 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
         s.note = ref.note;
         continue;
       }
-      const aspect = aspectForTarget(ctxT, s.planned, target, target.kind === 'ic' && proc.model === 'square-law' ? 1 : s.clm);
+      const aspect = model.aspectForTarget(ctxT, s.planned, target, s.clm);
       if (aspect === undefined) {
-        s.note = unreachableNote(target, ctxT.n, ctxT.ut, proc.model);
+        s.note = unreachableNote(model, ctxT, target);
         continue;
       }
       let w = (aspect * s.size.l) / s.size.m;
@@ -228,7 +230,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
       const wmin = params.wmin;
       if (wmin !== undefined && w < wmin) {
         if (s.size.auto?.l === true) {
-          s.size.l = snapLength(s.size.l * (wmin / w), proc.grid, 'up');
+          s.size.l = quantizeSize(s.size.l * (wmin / w), proc.grid, 'up');
           s.note = `L lengthened to keep W/L at the target with W at wmin`;
         } else {
           s.note = `W raised to wmin ${formatSI(wmin, 'm')}: the target needs ${formatSI(w, 'm')}`;
@@ -254,7 +256,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     }
   }
   for (const s of slots) {
-    if (s.size.auto?.w === true) s.size.w = snapLength(s.size.w, proc.grid, 'nearest');
+    if (s.size.auto?.w === true) s.size.w = quantizeSize(s.size.w, proc.grid, 'nearest');
   }
   return withSlots(spec, index, m, slots);
 }
@@ -265,11 +267,9 @@ function ctxOf(spec: ResolvedSpec, index: number, outputIndex: number): MirrorCo
   return { spec, mirror, outputIndex };
 }
 
-function unreachableNote(target: DesignTarget, n: number, ut: number, model: string): string {
-  if (target.kind === 'gmid' && model === 'ekv') {
-    return `gm/ID ${target.value} /V is above the weak-inversion limit 1/(n·U_T) = ${(1 / (n * ut)).toFixed(1)} /V, so no width reaches it (width left as given)`;
-  }
-  return `design target ${target.kind} = ${target.value} cannot be reached (width left as given)`;
+function unreachableNote(model: DeviceModel, ctx: SizingContext, target: DesignTarget): string {
+  const limit = model.targetLimit(ctx, target) ?? `design target ${target.kind} = ${target.value} cannot be reached`;
+  return `${limit} (width left as given)`;
 }
 
 /** The shortest common L of the auto-L slots that meets every output's require.rout. */

@@ -9,12 +9,12 @@
  * Also `design-unreachable`: a target no size can meet (gm/ID above the weak-inversion limit),
  * a width raised to wmin, or a require.rout that lengthening cannot reach.
  */
-import type { Finding, Range, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../types';
+import type { Finding, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../types';
 import { parseSpec, type ParsedSpec } from '../spec/index';
-import { applyEdits, insertKeyEdits, replaceValueEdit } from '../spec/edit';
-import { formatSI } from '../units/format';
+import { insertKeyEdits, replaceValueEdit } from '../spec/edit';
+import { formatSI } from '../text/format';
 import type { SizedDevice } from './auto-size';
-import { editsBetween } from './text-diff';
+import { applyEdits, editsBetween } from '../text/edits';
 import { mirrorAt } from '../mirror-at';
 
 type Dim = 'w' | 'l';
@@ -27,20 +27,6 @@ const same = (a: number, b: number): boolean => Math.abs(a - b) <= 1e-9 * Math.m
 export function lengthText(v: number): string {
   const [scale, prefix] = v >= 1e-6 ? [1e-6, 'u'] : [1e-9, 'n'];
   return `${Number((v / scale).toPrecision(6))}${prefix}`;
-}
-
-function offsetOf(text: string, line: number, character: number): number {
-  let at = 0;
-  for (let l = 0; l < line; l++) {
-    const nl = text.indexOf('\n', at);
-    if (nl < 0) return text.length;
-    at = nl + 1;
-  }
-  return at + character;
-}
-
-function textAt(text: string, r: Range): string {
-  return text.slice(offsetOf(text, r.start.line, r.start.character), offsetOf(text, r.end.line, r.end.character));
 }
 
 function isAutoText(t: string): boolean {
@@ -57,7 +43,7 @@ function autoToken(parsed: ParsedSpec, s: SizedDevice, dim: Dim): { path: SpecPa
   for (const c of candidates) {
     const r = parsed.source.value(c.path);
     if (!r) continue;
-    const t = textAt(parsed.text, r);
+    const t = parsed.source.text(r);
     // `size:` that is a mapping is not the token; its `w`/`l` were candidates before it.
     if (c.whole && !isAutoText(t)) continue;
     return isAutoText(t) ? c : undefined;

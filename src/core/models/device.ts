@@ -5,9 +5,13 @@
  */
 import type { DeviceParams, ModelKind, Polarity } from '../types';
 import { kpAt, lambdaAt, thermalVoltage, thresholdAt } from './thermal';
+import type { DeviceModel } from './model';
+import { MODELS } from './registry';
 
 export interface ModelDevice {
-  model: ModelKind;
+  /** The process model's equations, looked up by name once here so an evaluation in the
+   *  Newton loop is a property load, not a table lookup. */
+  model: DeviceModel;
   /** +1 NMOS, −1 PMOS: terminal voltages are multiplied by it to reach the device frame. */
   sign: 1 | -1;
   /** A/V², kp(T)·m·W/L·(1 + Δβ/β). */
@@ -51,7 +55,7 @@ export function prepareDevice(
   const valid = size.w > 0 && size.l > 0 && size.m > 0 && Number.isFinite(size.w * size.l * size.m);
   const beta = valid ? (kpAt(p, proc.temperature, proc.tnom) * size.m * size.w) / size.l * (1 + dbeta) : 0;
   return {
-    model: proc.model,
+    model: MODELS[proc.model],
     sign: type === 'pmos' ? -1 : 1,
     beta: Number.isFinite(beta) && beta > 0 ? beta : 0,
     vt0: thresholdAt(p, proc.temperature, proc.tnom) + dvt,

@@ -51,20 +51,8 @@ export function evalDevice(
 }
 
 /** Gate drive VGS (device frame) that makes a saturated device carry `id` with its source at
- *  `vsb` above the bulk, ignoring length modulation. The inverse of the models, used for
- *  initial guesses and by the sizing code. */
+ *  `vsb` above the bulk, ignoring length modulation: the device's model inverted, for initial
+ *  guesses and the sizing code. */
 export function gateDriveFor(dev: ModelDevice, id: number, vsb: number): number {
-  if (dev.model === 'ekv') {
-    const is = 2 * dev.n * dev.beta * dev.ut * dev.ut;
-    if (!(is > 0) || !(id > 0)) return dev.vt0 + (dev.n - 1) * vsb;
-    const q = Math.sqrt(id / is);
-    // ln(e^q − 1): expm1 keeps small q accurate; for large q it is q itself.
-    const x = q > 30 ? q : Math.log(Math.expm1(q));
-    const vp = vsb + 2 * dev.ut * x;
-    return dev.n * vp + dev.vt0 - vsb;
-  }
-  const arg = dev.phi + vsb;
-  const vth = dev.vt0 + dev.gamma * ((arg > 0 ? Math.sqrt(arg) : 0) - Math.sqrt(dev.phi));
-  if (!(dev.beta > 0) || !(id > 0)) return vth;
-  return vth + Math.sqrt((2 * id) / dev.beta);
+  return dev.model.gateDrive(dev, id, vsb);
 }

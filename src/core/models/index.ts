@@ -1,6 +1,9 @@
-/** Device models (design §3): square law and simplified EKV, temperature and λ(L). */
+/** Device models (design §3): the model interface, its implementations by name, temperature
+ *  and λ(L), and one-device evaluation. */
 export { thermalVoltage, thresholdAt, kpAt, lambdaAt } from './thermal';
 export { prepareDevice, deviceProblem, type ModelDevice, type DeviceSizeLike, type ProcessConditions } from './device';
-export { squareLaw, ekv, evalChannel, newChannelEval, type ChannelEval } from './core';
+export { newChannelEval, type ChannelEval } from './core';
+export type { DeviceModel, SizingContext } from './model';
+export { MODELS, MODEL_NAMES } from './registry';
 export { evalFrame, evalTerminal } from './terminal';
 export { evalDevice, evalPrepared, gateDriveFor, inversionOf, type DeviceEvaluation } from './evaluate';

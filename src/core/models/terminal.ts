@@ -2,7 +2,7 @@
  * Source/drain symmetry and polarity around the forward-frame models: a device with VDS < 0
  * is evaluated with drain and source swapped, and a PMOS with every voltage negated.
  */
-import { evalChannel, type ChannelEval } from './core';
+import type { ChannelEval } from './core';
 import type { ModelDevice } from './device';
 
 /** Device-frame evaluation (voltages in the device's own polarity, any sign of VDS). On return
@@ -10,12 +10,13 @@ import type { ModelDevice } from './device';
  *  with respect to the device-frame VGS/VDS/VBS; vth, vdsat, ic, region describe the channel
  *  in whichever orientation conducts. Returns true when drain and source were swapped. */
 export function evalFrame(dev: ModelDevice, vgs: number, vds: number, vbs: number, out: ChannelEval): boolean {
+  const model = dev.model;
   if (vds >= 0) {
-    evalChannel(dev, vgs, vds, vbs, out);
+    model.channel(dev, vgs, vds, vbs, out);
     return false;
   }
   // Swapped: the terminal called drain acts as source. I = −f(VGD, VSD, VBD).
-  evalChannel(dev, vgs - vds, -vds, vbs - vds, out);
+  model.channel(dev, vgs - vds, -vds, vbs - vds, out);
   const gm = out.gm, gds = out.gds, gmb = out.gmb;
   out.id = -out.id;
   out.gm = -gm;

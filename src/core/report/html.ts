@@ -9,6 +9,7 @@
  *
  * Pure core: no Node, no DOM. The caller (CLI, extension) reads the bundle and writes the file.
  */
+import { CAUTION } from '../text/format';
 import type { FileReport } from '../types';
 import { renderStaticReport, type ReportStamp } from './static-html';
 
@@ -20,8 +21,6 @@ export const STATIC_ID = 'qpoint-static';
 /** Id of the data element the page script reads. */
 export const REPORT_DATA_ID = 'qpoint-report-data';
 
-export const CAUTION_TEXT =
-  "First-order hand-analysis models — confirm with transistor-level simulation on the foundry's models and corners before committing a design.";
 
 /** One complete HTML page. `assets.script` is the panel bundle's text; `assets.css` optional
  *  extra styles (the bundle carries its own); `stamp` what the page says about its making. */
@@ -41,7 +40,7 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     `<style>${escapeStyle(REPORT_THEME)}${assets.css ? `\n${escapeStyle(assets.css)}` : ''}</style>`,
     '</head>',
     '<body class="vscode-light qpoint-report">',
-    `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION_TEXT)}</div>`,
+    `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION)}</div>`,
     `<div id="${STATIC_ID}">${renderStaticReport(report, stamp)}</div>`,
     '<main id="qpoint-root"></main>',
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,

@@ -6,7 +6,7 @@
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
 import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
-import { formatSI } from '../units/format';
+import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
 
 /** What the page says about its own making; the caller supplies it (the core has no clock). */
@@ -22,7 +22,7 @@ export interface ReportStamp {
 const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
 const esc = (s: string): string => s.replace(/[&<>"']/g, (c) => ESC[c] ?? c);
 const si = (v: number, unit: string, digits = 3): string => (Number.isFinite(v) ? formatSI(v, unit, digits) : v === Infinity ? `∞ ${unit}` : '—');
-const pct = (x: number, signed = false): string => (Number.isFinite(x) ? `${signed && x > 0 ? '+' : ''}${Number((100 * x).toPrecision(3))} %` : '—');
+const pct = (x: number, signed = false, digits = 3): string => (Number.isFinite(x) ? (signed ? formatSignedPercent(x, digits) : formatPercent(x, digits)) : '—');
 const plain = (x: number, digits = 5): string => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : '—');
 
 function table(caption: string, head: string[], rows: string[][], cls = ''): string {
@@ -101,7 +101,7 @@ function mirrorSection(m: MirrorReport, findings: Finding[]): string {
   if (mc) {
     const failing = mc.samples - Math.round(mc.yield * mc.samples);
     out.push(`<p class="mc-static">Monte Carlo: ${mc.samples} samples (seed ${mc.seed}), mean ${si(mc.mean, 'A', 4)}, σ ${pct(mc.sigma)}, ` +
-      `${failing === 0 ? 'every sample saturated and within limits.tolerance' : `${failing} of ${mc.samples} samples fail`} (yield ${pct(mc.yield)}).</p>`);
+      `${failing === 0 ? 'every sample saturated and within limits.tolerance' : `${failing} of ${mc.samples} samples fail`} (yield ${pct(mc.yield, false, 4)}).</p>`);
     if (mc.histogram) out.push(histogramSvg(`Monte Carlo Iout — ${m.name}`, mc.histogram.edges, mc.histogram.counts, 'A'));
   }
   out.push('</section>');

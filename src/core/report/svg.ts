@@ -5,7 +5,7 @@
  * (did not converge) break the line and are marked with a cross on the x axis, never dropped
  * silently.
  */
-import { formatSI } from '../units/format';
+import { formatSI } from '../text/format';
 
 export interface LinePoint { x: number; y: number; ok: boolean }
 

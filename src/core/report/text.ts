@@ -1,16 +1,14 @@
 /**
  * The terminal report: per mirror a summary and a device table that fits 100 columns, then the
  * findings as `file:line:col: severity code: message` (1-based, the form editors and CI
- * annotators link to).
+ * annotators link to). Every line passes through `escapeControls`: titles, names and messages
+ * are the spec's text, and a YAML escape can put ESC, BEL or CR in them.
  */
 import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
-import { formatSI } from '../units/format';
-
-export const CAUTION =
-  'First-order hand-analysis models: confirm with transistor-level simulation on the foundry\'s models and corners before committing a design.';
+import { escapeControls, formatPercent, formatSI, formatSignedPercent } from '../text/format';
 
 export function findingLine(file: string, f: Finding): string {
-  return `${file}:${f.range.start.line + 1}:${f.range.start.character + 1}: ${f.severity} ${f.code}: ${f.message}`;
+  return escapeControls(`${file}:${f.range.start.line + 1}:${f.range.start.character + 1}: ${f.severity} ${f.code}: ${f.message}`);
 }
 
 export function renderText(report: FileReport, opts: { tables?: boolean } = {}): string {
@@ -19,8 +17,9 @@ export function renderText(report: FileReport, opts: { tables?: boolean } = {}):
     out.push(`${report.file}${report.title ? ` — ${report.title}` : ''}`);
     for (const m of report.mirrors) out.push(...mirrorBlock(m), '');
   }
-  for (const f of report.findings) out.push(findingLine(report.file, f));
-  return out.join('\n');
+  const lines = out.map(escapeControls);
+  for (const f of report.findings) lines.push(findingLine(report.file, f));
+  return lines.join('\n');
 }
 
 function mirrorBlock(m: MirrorReport): string[] {
@@ -30,10 +29,10 @@ function mirrorBlock(m: MirrorReport): string[] {
   const ratio = m.ratioIdeal !== undefined
     ? `ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
     : `ratio ${m.ratio.toPrecision(5)}`;
-  const err = m.error !== undefined ? `  error ${signedPercent(m.error)}` : '';
+  const err = m.error !== undefined ? `  error ${formatSignedPercent(m.error)}` : '';
   const line1 = `  Iin ${si(m.iin, 'A')}  Iout ${si(m.iout, 'A')}  ${ratio}${err}`;
   const approx = m.routApprox !== undefined ? ` (textbook ${si(m.routApprox, 'Ω')})` : '';
-  const sigma = m.sigma !== undefined ? `  σ ${(m.sigma * 100).toFixed(3)} %` : '';
+  const sigma = m.sigma !== undefined ? `  σ ${formatPercent(m.sigma)}` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const compliance = m.noCompliance ? `compliance none (${m.noCompliance.device} out of saturation at every Vout)` : `compliance ${si(m.compliance, 'V')}`;
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  ${compliance} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
@@ -44,9 +43,9 @@ function cornerLines(m: MirrorReport): string[] {
   if (!m.corners?.length) return [];
   return m.corners.map((c) => {
     if (!c.converged) return `  corner ${c.name}: did not converge`;
-    const err = Number.isFinite(c.error) ? `  error ${signedPercent(c.error)}` : '';
+    const err = Number.isFinite(c.error) ? `  error ${formatSignedPercent(c.error)}` : '';
     const margin = c.minMargin !== undefined ? `  min margin ${si(c.minMargin, 'V')}${c.minMarginDevice ? ` (${c.minMarginDevice})` : ''}` : '';
-    const sigma = c.sigma !== undefined ? `  σ ${(c.sigma * 100).toFixed(2)} %` : '';
+    const sigma = c.sigma !== undefined ? `  σ ${formatPercent(c.sigma)}` : '';
     return `  corner ${c.name}: Iout ${si(c.iout, 'A')}  ratio ${c.ratio.toPrecision(5)}${err}  Rout ${si(c.rout, 'Ω')}  compliance ${si(c.compliance, 'V')}${sigma}${margin}`;
   });
 }
@@ -54,9 +53,9 @@ function cornerLines(m: MirrorReport): string[] {
 function monteCarloLines(m: MirrorReport): string[] {
   const mc = m.mc;
   if (!mc) return [];
-  const lin = m.sigma !== undefined ? ` (linearized ${(m.sigma * 100).toFixed(2)} %)` : '';
-  return [`  Monte Carlo N=${mc.samples} seed ${mc.seed}: mean ${si(mc.mean, 'A')}  σ ${(mc.sigma * 100).toFixed(2)} %${lin}` +
-    `  range ${si(mc.min, 'A')}…${si(mc.max, 'A')}  yield ${(mc.yield * 100).toFixed(2)} %`];
+  const lin = m.sigma !== undefined ? ` (linearized ${formatPercent(m.sigma)})` : '';
+  return [`  Monte Carlo N=${mc.samples} seed ${mc.seed}: mean ${si(mc.mean, 'A')}  σ ${formatPercent(mc.sigma)}${lin}` +
+    `  range ${si(mc.min, 'A')}…${si(mc.max, 'A')}  yield ${formatPercent(mc.yield, 4)}`];
 }
 
 const COLUMNS: [string, number][] = [
@@ -94,8 +93,4 @@ function formatTable(devices: DeviceReport[]): string[] {
 
 function si(v: number, unit: string): string {
   return Number.isFinite(v) ? formatSI(v, unit, 3).replace(/ /g, '') : String(v);
-}
-
-function signedPercent(x: number): string {
-  return `${x >= 0 ? '+' : ''}${(x * 100).toFixed(3)} %`;
 }

@@ -5,9 +5,9 @@ import type { ParsedSpec } from '../spec/index';
 import { YAML_OPTIONS } from '../spec/document';
 import { insertKeyEdits, insertStyle, type InsertStyle } from '../spec/edit';
 import type { MirrorFragments } from '../spec/fragment';
-import { LineIndex } from '../spec/positions';
+import { LineIndex } from '../text/lines';
 import { YamlSourceMap } from '../spec/source-map';
-import { EditLog } from './compose';
+import { EditLog } from '../text/edits';
 
 export interface KeyInsert { parent: SpecPath; key: string; text: string }
 

@@ -8,7 +8,8 @@
  * and are never applied. At most MAX_ROUNDS rounds.
  */
 import type { Finding, Fix, Severity, TextEdit } from '../types';
-import { applyEdits } from '../spec/edit';
+import { mirrorIndexOfPath } from '../mirror-at';
+import { applyEdits } from '../text/edits';
 
 export const MAX_ROUNDS = 8;
 
@@ -106,7 +107,8 @@ function tryCandidates(text: string, cs: Candidate[], check: (text: string) => {
 
 /** Fixes of one mirror interact (widening changes the ratio): one per mirror and round. */
 function groupOf(f: Finding): string {
-  return f.path[0] === 'mirrors' && typeof f.path[1] === 'number' ? `mirrors/${f.path[1]}` : f.path.join('/');
+  const index = mirrorIndexOfPath(f.path);
+  return index !== undefined ? `mirrors/${index}` : f.path.join('/');
 }
 
 /** Greedy: keep each candidate whose edits do not clash with those already kept, one per mirror. */

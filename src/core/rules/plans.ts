@@ -16,9 +16,10 @@ import { shortDecimal } from '../sizing/token-style';
 import { replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
-import { isAutoSized, textAt, type Site } from './sites';
-import { factor, volts } from './words';
+import { isAutoSized, type Site } from './sites';
+import { formatFactor, formatSI } from '../text/format';
 import { indexOf } from '../mirror-at';
+import { MODELS, WEAK_INVERSION_MODEL } from '../models/registry';
 
 /** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
 function fixable(rc: RuleContext, mirrorIndex: number): boolean {
@@ -56,7 +57,7 @@ export function* widenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: Reso
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('widen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Widen the mirror ${factor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
+      return p && plan(mirrorIndex, `Widen the mirror ${formatFactor(kk)} (every W, ratios kept) ${purpose}: ${notesText(p.notes)}`, p.edits, 'widen');
     });
   }
 }
@@ -69,7 +70,7 @@ export function* lengthenPlans(rc: RuleContext, mirrorIndex: number, goal: (s: R
   for (const kk of [k, k * 1.03, k * 1.1]) {
     yield candidate('lengthen', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, mirrorIndex, { w: kk, l: kk }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(mirrorIndex, `Lengthen the mirror ${factor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
+      return p && plan(mirrorIndex, `Lengthen the mirror ${formatFactor(kk)} at constant W/L ${purpose}: ${notesText(p.notes)}`, p.edits, 'lengthen');
     });
   }
 }
@@ -82,7 +83,7 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
   for (const ss of [s, s * 1.03, s * 1.1]) {
     yield candidate('area', () => {
       const p = planSizeEdits(rc.parsed, rc.spec, scaleChanges(rc.spec, site.mirrorIndex, { w: ss, l: ss }, 'up'), rc.json, rc.file, rc.fragments);
-      return p && plan(site.mirrorIndex, `Scale the gate area ${factor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
+      return p && plan(site.mirrorIndex, `Scale the gate area ${formatFactor(ss * ss)} at constant W/L (σ ∝ 1/√(W·L)): ${notesText(p.notes)}`, p.edits, 'area');
     });
   }
 }
@@ -151,7 +152,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
   const path = ['mirrors', site.mirrorIndex, 'vbias'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const seen = new Set<number>();
   for (const dir of ['up', 'nearest', 'down'] as const) {
     const mv = dir === 'up' ? Math.ceil(picked * 1000 - 1e-9) : dir === 'down' ? Math.floor(picked * 1000 + 1e-9) : Math.round(picked * 1000);
@@ -160,7 +161,7 @@ export function* vbiasPlans(rc: RuleContext, site: Site, marginText: string): Ge
     seen.add(v);
     yield candidate('vbias', () => {
       const edit = replaceValueEdit(rc.parsed, path, formatValue('v', v, token, rc.json));
-      return edit && plan(site.mirrorIndex, `Set vbias to ${volts(v)} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
+      return edit && plan(site.mirrorIndex, `Set vbias to ${formatSI(v, 'V')} (qpoint's pick: \`ref\` at VDSsat + ${marginText})`, [edit], 'vbias');
     });
   }
 }
@@ -172,7 +173,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   const path = ['mirrors', site.mirrorIndex, 'kind'];
   const range = rc.parsed.source.value(path);
   if (!range) return;
-  const token = textAt(rc.parsed.text, range);
+  const token = rc.parsed.source.text(range);
   const kindEdit = replaceValueEdit(rc.parsed, path, quotedLike(token, 'wilson-balanced'));
   if (!kindEdit) return;
   const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
@@ -190,7 +191,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   }
 }
 
-/** `process.model: ekv` (whole-file scope). */
+/** `process.model:` the model that covers weak inversion (whole-file scope). */
 export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Candidate> {
   // The re-check re-solves the whole file; auto-sized mirrors are sized by another pass first.
   if (rc.spec.mirrors.some((m) => isAutoSized(rc.spec, indexOf(m)))) return;
@@ -198,18 +199,20 @@ export function* modelPlans(rc: RuleContext, mirrorIndex: number): Generator<Can
 }
 
 function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
+  const name = WEAK_INVERSION_MODEL;
+  if (name === undefined) return undefined;
   const path = ['process', 'model'];
   const range = rc.parsed.source.value(path);
   let edits: TextEdit[] | undefined;
   if (range) {
-    const token = textAt(rc.parsed.text, range);
-    const e = replaceValueEdit(rc.parsed, path, quotedLike(token, 'ekv'));
+    const token = rc.parsed.source.text(range);
+    const e = replaceValueEdit(rc.parsed, path, quotedLike(token, name));
     edits = e ? [e] : undefined;
   } else {
-    edits = buildEdits(rc.parsed, [], [{ parent: ['process'], key: 'model', text: rc.json ? '"ekv"' : 'ekv' }], rc.file);
+    edits = buildEdits(rc.parsed, [], [{ parent: ['process'], key: 'model', text: rc.json ? `"${name}"` : name }], rc.file);
   }
   if (!edits) return undefined;
-  return { title: 'Use the EKV model (`model: ekv`), valid from weak to strong inversion', edits, scope: 'spec', mirrorIndex, family: 'model' };
+  return { title: `Use the ${MODELS[name].title} (\`model: ${name}\`), valid from weak to strong inversion`, edits, scope: 'spec', mirrorIndex, family: 'model' };
 }
 
 /** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */

@@ -1,11 +1,12 @@
 /**
- * Where a report and its devices live: in the resolved spec (mirror, output, sizes) and in the
- * source (which token a size comes from). A size can be written at three levels — an output's
+ * Where a report and its devices live, for the rules and the variation findings alike: in the
+ * resolved spec (mirror, output, sizes, requirements) and in the source (which token a size comes
+ * from, which range a finding points at). A size can be written at three levels — an output's
  * own `devices:` in a bias bank, the mirror's `devices:` per role, and the mirror's `size:` unit
  * device — and the nearest one wins, exactly as the spec elaborates it.
  */
 import type {
-  DeviceReport, DeviceSize, MirrorOutput, MirrorReport, Range, Requirements, ResolvedMirror,
+  CornerSpec, DeviceReport, DeviceSize, MirrorOutput, MirrorReport, Range, Requirements, ResolvedMirror,
   ResolvedSpec, SpecPath,
 } from '../types';
 import { KINDS } from '../kinds/index';
@@ -31,10 +32,9 @@ export interface Site {
 
 export function siteOf(spec: ResolvedSpec, report: MirrorReport): Site | undefined {
   const p = report.path;
-  const mirrorIndex = typeof p[1] === 'number' ? p[1] : -1;
+  const { mirrorIndex, outputIndex } = report;
   const mirror = mirrorAt(spec, mirrorIndex);
   if (!mirror) return undefined;
-  const outputIndex = p.length >= 4 && typeof p[3] === 'number' ? p[3] : 0;
   if (mirror.kind === 'netlist') {
     return { report, mirrorIndex, outputIndex: 0, mirror, vout: mirror.output.v, range: mirror.output.range, require: mirror.require, path: p };
   }
@@ -85,7 +85,7 @@ export interface SizeToken { path: SpecPath; range: Range; text: string }
 export function sizeToken(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef, key: SizeKey): SizeToken | undefined {
   for (const path of sourceCandidates(spec, ref, key)) {
     const range = parsed.source.value(path);
-    if (range) return { path, range, text: textAt(parsed.text, range) };
+    if (range) return { path, range, text: parsed.source.text(range) };
   }
   return undefined;
 }
@@ -103,8 +103,12 @@ export function isAutoSized(spec: ResolvedSpec, mirrorIndex: number): boolean {
 }
 
 /**
- * The narrowest range for a finding about a device: its own size token (first of `keys` that is
- * written at device level), else its key under `devices:`, else the mirror's name.
+ * The one range a finding about a device points at (design §6: the value that must change, else
+ * its key): its own size token (first of `keys` that is written at device level — the keys the
+ * finding's fix would change; none for a finding without a size fix), else its key under
+ * `devices:` (the output's own in a bank, else the mirror's), else the output's or mirror's name.
+ * Hover and the panel's reveal go to the device's key instead (anchors.ts): they show the device,
+ * not a value to change.
  */
 export function deviceRange(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef, keys: SizeKey[]): { path: SpecPath; range: Range } {
   for (const key of keys) {
@@ -146,16 +150,35 @@ export function kindRange(parsed: ParsedSpec, mirrorIndex: number): { path: Spec
   return r ? { path, range: r } : mirrorRange(parsed, mirrorIndex);
 }
 
-/** The source text of a range (LSP positions). */
-export function textAt(text: string, r: Range): string {
-  const offset = (p: { line: number; character: number }): number => {
-    let at = 0;
-    for (let line = 0; line < p.line; line++) {
-      const nl = text.indexOf('\n', at);
-      if (nl < 0) return text.length;
-      at = nl + 1;
-    }
-    return Math.min(at + p.character, text.length);
-  };
-  return text.slice(offset(r.start), offset(r.end));
+/** The output's name (bank output) or the mirror's name: the fallback anchor. */
+export function nameRange(parsed: ParsedSpec, site: Site): Range {
+  const own = parsed.source.value([...site.path, 'name']);
+  return own ?? parsed.source.value(['mirrors', site.mirrorIndex, 'name']) ?? parsed.source.rangeFor(site.path);
+}
+
+/** A requirement's value, else the name. */
+export function requireRange(parsed: ParsedSpec, site: Site, key: keyof Requirements): Range {
+  return parsed.source.value([...site.path, 'require', key]) ?? nameRange(parsed, site);
+}
+
+/** The corner's key under `corners:`, for `related`. */
+export function cornerRange(parsed: ParsedSpec, corner: CornerSpec): Range {
+  return parsed.source.key(corner.path) ?? parsed.source.rangeFor(corner.path);
+}
+
+/** The output-voltage limit the mirror must still work at (absolute V), from require.compliance
+ *  and the far end of output.range: NMOS the lowest of them, PMOS the highest. */
+export function complianceLimit(site: Site): number | undefined {
+  const nmos = site.mirror.type === 'nmos';
+  const candidates: number[] = [];
+  if (site.require.compliance !== undefined) candidates.push(site.require.compliance);
+  if (site.range) candidates.push(nmos ? site.range[0] : site.range[1]);
+  if (candidates.length === 0) return undefined;
+  return nmos ? Math.min(...candidates) : Math.max(...candidates);
+}
+
+/** Whether a compliance value fails the limit (NMOS: must reach down to it, PMOS: up to it). */
+export function complianceFails(site: Site, compliance: number, limit: number): boolean {
+  if (!Number.isFinite(compliance)) return true;
+  return site.mirror.type === 'nmos' ? compliance > limit : compliance < limit;
 }

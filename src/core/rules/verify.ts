@@ -9,7 +9,8 @@
  * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
  */
 import type { MirrorReport, ResolvedSpec } from '../types';
-import { parseSpec, type ParsedSpec } from '../spec/index';
+import type { ParsedSpec } from '../spec/index';
+import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
@@ -18,7 +19,7 @@ import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
 import { measure } from '../sizing/devices';
-import { applyTextEdits } from './compose';
+import { applyEdits } from '../text/edits';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { mirrorAt } from '../mirror-at';
 
@@ -48,7 +49,7 @@ export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): Mirror
 /** Re-check the text with the plan applied: the drafts found there, or undefined when it no longer parses cleanly. */
 export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Draft[] | undefined {
   try {
-    const text = applyTextEdits(rc.parsed.text, plan.edits);
+    const text = applyEdits(rc.parsed.text, plan.edits);
     const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
     return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
   } catch {
@@ -57,15 +58,15 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
 }
 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Draft[] | undefined {
-  const parsed: ParsedSpec = parseSpec(text, rc.file);
-  if (!parsed.parsed || !parsed.spec) return undefined;
-  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
-  if (parsed.spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them.
-  const spec: ResolvedSpec = { ...parsed.spec, limits: rc.spec.limits };
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
+  const spec = parsed.spec;
+  if (!parsed.parsed || !spec) return undefined;
+  if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
+  if (spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
   const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return detect({ ...rc, parsed: { ...parsed, spec }, spec, reports, quick: true });
+  return detect({ ...rc, parsed, spec, reports, quick: true });
 }
 
 const WHOLE = Symbol('re-read the whole text');
@@ -97,7 +98,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const lineDelta = countLines(text) - countLines(rc.parsed.text);
-  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta);
+  const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta, text);
   const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
   return detect({ ...rc, parsed, spec, reports, quick: true });
 }

@@ -1,10 +1,15 @@
 /**
- * Snapping computed sizes to what a layout can draw: `process.grid` when given, else a short
- * decimal (three significant digits) so the file stays readable. The direction is chosen by the
- * caller so that rounding keeps the requirement (a width that must grow rounds up).
+ * The one rounding rule for computed sizes, used by design targets (`size: auto`, sized at
+ * resolve time) and by fixes (solved afterwards) alike, so the number written into the spec is
+ * the number that was checked: onto `process.grid` when given (never below one step), else
+ * three significant digits so the file stays readable. The direction is chosen by the caller so
+ * that rounding keeps the requirement (a width that must grow, a length kept for Rout, round up).
  */
 
 export type RoundDirection = 'up' | 'down' | 'nearest';
+
+/** Significant digits of a computed size without a grid. */
+export const SIZE_DIGITS = 3;
 
 /** Round `value` to a multiple of `grid` (m), never below one grid step. */
 export function snapToGrid(value: number, grid: number, direction: RoundDirection): number {
@@ -35,8 +40,9 @@ export function roundSignificant(value: number, digits: number, direction: Round
 }
 
 /** A size the fix will write: on the grid if there is one, else to `digits` significant digits. */
-export function quantizeSize(value: number, grid: number | undefined, direction: RoundDirection, digits = 3): number {
-  return grid !== undefined && grid > 0 ? snapToGrid(value, grid, direction) : roundSignificant(value, digits, direction);
+export function quantizeSize(value: number, grid: number | undefined, direction: RoundDirection): number {
+  if (!(value > 0) || !Number.isFinite(value)) return value;
+  return grid !== undefined && grid > 0 ? snapToGrid(value, grid, direction) : roundSignificant(value, SIZE_DIGITS, direction);
 }
 
 /** Drop binary noise (3.4000000000000003e-6 → 3.4e-6) without moving the value by more than 1e-12 relative. */

@@ -7,7 +7,7 @@ import { isAlias, isMap, isScalar, isSeq, parseDocument, visit } from 'yaml';
 import type { Document, Node } from 'yaml';
 import type { Finding } from '../types';
 import { SPEC_LIMITS } from '../defaults';
-import { LineIndex } from './positions';
+import { LineIndex } from '../text/lines';
 import { YAML_OPTIONS } from './yaml-options';
 
 export { YAML_OPTIONS } from './yaml-options';

@@ -8,7 +8,7 @@ import { isAlias, isMap, isScalar, parseDocument, Scalar } from 'yaml';
 import type { Document, YAMLMap } from 'yaml';
 import type { SpecPath, TextEdit } from '../types';
 import type { ParsedSpec } from './index';
-import { LineIndex } from './positions';
+import { LineIndex } from '../text/lines';
 import { YamlSourceMap } from './source-map';
 
 /** The source map with its YAML tree: the parsed one, or a fresh parse of p.text. */
@@ -192,21 +192,4 @@ export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string,
   const col = src.lines.position(firstKey.range[0]).character;
   const at = src.lines.lineEnd(Math.max(0, trimBack(text, lastEnd) - 1));
   return [{ range: src.lines.range(at, at), newText: blockEntry(keys, value, col, style?.step ?? indentStep(src, src.doc), style?.eol ?? eolOf(text)) }];
-}
-
-/** Apply non-overlapping edits (LSP ranges in `text`). Throws on overlapping edits. */
-export function applyEdits(text: string, edits: TextEdit[]): string {
-  const lines = new LineIndex(text);
-  const spans = edits.map((e, i) => ({ s: lines.offset(e.range.start), e: lines.offset(e.range.end), t: e.newText, i }));
-  spans.sort((a, b) => a.s - b.s || a.i - b.i);
-  for (let k = 1; k < spans.length; k++) {
-    if (spans[k].s < spans[k - 1].e) throw new Error('applyEdits: overlapping edits');
-  }
-  let out = '';
-  let pos = 0;
-  for (const sp of spans) {
-    out += text.slice(pos, sp.s) + sp.t;
-    pos = Math.max(pos, sp.e);
-  }
-  return out + text.slice(pos);
 }

@@ -1,6 +1,7 @@
 /** Collects spec findings at the narrowest range, once each. Codes: docs/findings.md. */
 import type { Finding, Range, Severity, SpecPath } from '../types';
 import { SPEC_LIMITS } from '../defaults';
+import { mirrorIndexOfPath } from '../mirror-at';
 import type { YamlSourceMap } from './source-map';
 
 /** `mirrors[0].devices.out.w` */
@@ -46,7 +47,8 @@ export class FindingSink {
     this.seen.add(key);
     if (severity === 'error') {
       this.errors++;
-      if (path[0] === 'mirrors' && typeof path[1] === 'number') this.errorMirrors.add(path[1]);
+      const mirror = mirrorIndexOfPath(path);
+      if (mirror !== undefined) this.errorMirrors.add(mirror);
       else this.errorOutsideMirrors = true;
     }
     const n = this.perCode.get(code) ?? 0;

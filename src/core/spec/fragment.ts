@@ -17,7 +17,7 @@ import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import type { ParsedSpec } from './index';
 import { duplicateKeys, YAML_OPTIONS } from './document';
-import { LineIndex } from './positions';
+import { LineIndex } from '../text/lines';
 import type { SourceMap } from './source-map';
 import { YamlSourceMap } from './source-map';
 
@@ -193,7 +193,16 @@ export class SplicedSourceMap implements SourceMap {
     /** Last line of the item in the original text, and the lines the edit added. */
     private readonly originalLast: number,
     private readonly lineDelta: number,
+    /** The edited text this map describes. */
+    private readonly edited: string,
   ) {}
+
+  private editedLines?: LineIndex;
+
+  text(range: Range): string {
+    this.editedLines ??= new LineIndex(this.edited);
+    return this.editedLines.slice(range);
+  }
 
   private inItem(path: SpecPath): boolean {
     return path.length > 2 && path[0] === 'mirrors' && path[1] === this.index;

@@ -12,9 +12,10 @@ import type { Finding, ResolvedSpec } from '../types';
 import { readDocument } from './document';
 import { elaborate } from './elaborate';
 import { FindingSink } from './findings';
-import { LineIndex, ZERO_RANGE } from './positions';
+import { LineIndex, ZERO_RANGE } from '../text/lines';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
+import { indexOf } from '../mirror-at';
 import type { SourceMap } from './source-map';
 
 export type { SourceMap } from './source-map';
@@ -66,7 +67,7 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
       const withheld = sink.mirrorsInError();
       if (withheld) {
         const setAside = new Set(withheld);
-        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(m.path[1] as number)) };
+        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(indexOf(m))) };
         out.withheld = withheld;
       }
     }

@@ -2,7 +2,7 @@
 import { BANK_KINDS, KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/index';
 import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
   Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
-import { formatSI } from '../units/format';
+import { formatSI } from '../text/format';
 import { isRecord } from './params';
 import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';

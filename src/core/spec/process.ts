@@ -1,5 +1,6 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
 import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
+import { MODEL_NAMES } from '../models/registry';
 import type { DeviceParams, Limits, ModelKind, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
 import { missing, readEnum, readMap } from './read';
@@ -95,7 +96,7 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const p = readMap(scope.sink, raw, path);
   if (!p) return undefined;
   const before = scope.sink.errorCount;
-  const model = p.model === undefined ? DEFAULTS.model : readEnum<ModelKind>(scope.sink, p.model, [...path, 'model'], ['square-law', 'ekv']);
+  const model = p.model === undefined ? DEFAULTS.model : readEnum<ModelKind>(scope.sink, p.model, [...path, 'model'], MODEL_NAMES);
   const tnom = p.tnom === undefined ? DEFAULTS.tnom : readTemperature(scope, p.tnom, [...path, 'tnom']);
   const temperature = p.temperature === undefined ? tnom : readTemperature(scope, p.temperature, [...path, 'temperature']);
   const grid = p.grid === undefined ? undefined : resolveNumber(scope, p.grid, [...path, 'grid'], 'length', { positive: true });

@@ -5,7 +5,7 @@
 import { isAlias, isMap, isScalar, isSeq, Scalar } from 'yaml';
 import type { Document, Node, Pair, YAMLMap } from 'yaml';
 import type { Range, SpecPath } from '../types';
-import { LineIndex, ZERO_RANGE } from './positions';
+import { LineIndex, ZERO_RANGE } from '../text/lines';
 
 export interface SourceMap {
   /** Range of the value node at path, or undefined. */
@@ -14,6 +14,8 @@ export interface SourceMap {
   key(path: SpecPath): Range | undefined;
   /** value(path) ?? key(path) ?? nearest ancestor's range; always defined (falls back to 0:0). */
   rangeFor(path: SpecPath): Range;
+  /** The source text of a range (of the text this map describes). */
+  text(range: Range): string;
 }
 
 /** What a path points at. */
@@ -51,6 +53,10 @@ function keyText(k: unknown): string | undefined {
 
 export class YamlSourceMap implements SourceMap {
   constructor(readonly doc: Document | undefined, readonly lines: LineIndex) {}
+
+  text(range: Range): string {
+    return this.lines.slice(range);
+  }
 
   private deref(n: unknown, depth = 0): unknown {
     if (!this.doc || depth > 50) return n;

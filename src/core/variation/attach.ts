@@ -5,7 +5,7 @@
 import type { MirrorReport, ResolvedSpec } from '../types';
 import { runCorners } from './corners';
 import { runMonteCarlo } from './montecarlo';
-import { mirrorAt, mirrorOfPath } from '../mirror-at';
+import { mirrorAt } from '../mirror-at';
 
 export interface VariationOptions {
   corners?: boolean;
@@ -19,13 +19,13 @@ export interface VariationOptions {
 export function attachVariation(spec: ResolvedSpec, reports: MirrorReport[], opts: VariationOptions): MirrorReport[] {
   if (!opts.corners && !opts.mc) return reports;
   const perOutput = opts.mc && opts.mc.samples > 0 ? Math.max(0, Math.floor(opts.mc.samples)) : 0;
-  const total = perOutput * reports.filter((r) => mirrorOfPath(spec, r.path)).length;
+  const total = perOutput * reports.filter((r) => mirrorAt(spec, r.mirrorIndex)).length;
   let before = 0;  // samples of the outputs already finished
   return reports.map((r) => {
-    const i = typeof r.path[1] === 'number' ? r.path[1] : -1;
+    const i = r.mirrorIndex;
+    const j = r.outputIndex;
     const mirror = mirrorAt(spec, i);
     if (!mirror) return r;
-    const j = r.path.length >= 4 && typeof r.path[3] === 'number' ? r.path[3] : 0;
     const out: MirrorReport = { ...r };
     if (opts.corners && spec.corners.length > 0) out.corners = runCorners(spec, i, j);
     if (opts.mc && opts.mc.samples > 0) {

@@ -4,13 +4,13 @@
  * to the nominal rule, so a designer sees each problem once. Severities follow the nominal
  * checks: a corner is a condition the chip must survive.
  */
-import type { CornerResult, CornerSpec, Finding, MirrorReport, ResolvedSpec, Severity } from '../types';
+import type { CornerResult, CornerSpec, Finding, MirrorReport, Range, ResolvedSpec, Severity } from '../types';
 import type { ParsedSpec } from '../spec/index';
-import { formatSI } from '../units/format';
+import { formatPercent, formatRatio, formatSI, formatSignedPercent } from '../text/format';
 import { ZERO_CELSIUS } from '../defaults';
 import {
-  complianceFails, complianceLimit, cornerRange, deviceRange, nameRange, requireRange, siteOf, type Site,
-} from './site';
+  complianceFails, complianceLimit, cornerRange, deviceRange, nameRange, refOf, requireRange, siteOf, type Site,
+} from '../rules/sites';
 
 /** "ss (125 °C, vdd 1.62 V)". */
 export function cornerLabel(c: CornerSpec | undefined, name: string): string {
@@ -18,17 +18,21 @@ export function cornerLabel(c: CornerSpec | undefined, name: string): string {
   const parts: string[] = [];
   if (c.temperature !== undefined) {
     const t = Number((c.temperature - ZERO_CELSIUS).toFixed(1));
-    parts.push(`${t < 0 ? '−' : ''}${Math.abs(t)} °C`);
+    parts.push(`${t} °C`);
   }
   if (c.vdd !== undefined) parts.push(`vdd ${formatSI(c.vdd, 'V')}`);
   if (c.vss !== undefined) parts.push(`vss ${formatSI(c.vss, 'V')}`);
   return parts.length ? `${name} (${parts.join(', ')})` : name;
 }
 
-const pct = (x: number): string => `${x >= 0 ? '+' : '−'}${Math.abs(100 * x).toPrecision(2)} %`;
-const mv = (x: number): string => `${x < 0 ? '−' : ''}${formatSI(Math.abs(x), 'V')}`;
 
 interface Failing { r: CornerResult; badness: number }
+
+/** A corner finding about a device points at its key (no size fix is offered for it). */
+function deviceAt(parsed: ParsedSpec, spec: ResolvedSpec, site: Site, name: string | undefined): Range {
+  const d = site.report.devices.find((x) => x.name === name);
+  return d ? deviceRange(parsed, spec, refOf(site, d), []).range : nameRange(parsed, site);
+}
 
 export function cornerFindings(parsed: ParsedSpec, spec: ResolvedSpec, reports: MirrorReport[]): Finding[] {
   const out: Finding[] = [];
@@ -72,14 +76,14 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
   if (nominal.converged && nomMargin >= 0) {
     const bad = solved.filter((r) => r.minMargin !== undefined && r.minMargin < 0).map((r) => ({ r, badness: -r.minMargin! }));
     const worst = bad.slice().sort((a, b) => b.badness - a.badness)[0];
-    emit('corner-not-saturated', 'error', bad, worst ? deviceRange(parsed, site, worst.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
-      (w, label) => `\`${w.minMarginDevice}\` is not saturated at corner ${label}: margin ${mv(w.minMargin!)}; widen it (lower VOV) or give it more VDS`);
+    emit('corner-not-saturated', 'error', bad, worst ? deviceAt(parsed, spec, site, worst.r.minMarginDevice) : nameRange(parsed, site), site.path,
+      (w, label) => `\`${w.minMarginDevice}\` is not saturated at corner ${label}: margin ${formatSI(w.minMargin!, 'V')}; widen it (lower VOV) or give it more VDS`);
     if (nomMargin >= limits.margin) {
       const low = solved.filter((r) => r.minMargin !== undefined && r.minMargin >= 0 && r.minMargin < limits.margin)
         .map((r) => ({ r, badness: limits.margin - r.minMargin! }));
       const wl = low.slice().sort((a, b) => b.badness - a.badness)[0];
-      emit('corner-low-margin', 'warning', low, wl ? deviceRange(parsed, site, wl.r.minMarginDevice ?? '') : nameRange(parsed, site), site.path,
-        (w, label) => `\`${w.minMarginDevice}\` has only ${mv(w.minMargin!)} saturation margin at corner ${label}, below limits.margin ${mv(limits.margin)}`);
+      emit('corner-low-margin', 'warning', low, wl ? deviceAt(parsed, spec, site, wl.r.minMarginDevice) : nameRange(parsed, site), site.path,
+        (w, label) => `\`${w.minMarginDevice}\` has only ${formatSI(w.minMargin!, 'V')} saturation margin at corner ${label}, below limits.margin ${formatSI(limits.margin, 'V')}`);
     }
   }
 
@@ -89,7 +93,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     const bad = solved.map((r) => ({ r, badness: Math.abs(r.ratio / target - 1) })).filter((f) => f.badness > limits.error);
     emit('corner-ratio-error', 'error', bad, site.require.ratio !== undefined ? requireRange(parsed, site, 'ratio') : nameRange(parsed, site),
       [...site.path, 'require', 'ratio'],
-      (w, label) => `ratio ${Number(w.ratio.toPrecision(4))} at corner ${label} is ${pct(w.ratio / target - 1)} from ${Number(target.toPrecision(4))}, beyond limits.error ±${Number((100 * limits.error).toPrecision(3))} %`);
+      (w, label) => `ratio ${formatRatio(w.ratio)} at corner ${label} is ${formatSignedPercent(w.ratio / target - 1)} from ${formatRatio(target)}, beyond limits.error ±${formatPercent(limits.error)}`);
   }
 
   const rout = site.require.rout;
@@ -105,19 +109,19 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
       .map((r) => ({ r, badness: Math.abs(r.compliance - limit) }));
     const which = site.require.compliance !== undefined ? 'require.compliance' : 'output.range';
     // The far end of output.range is the element that must change (NMOS the low, PMOS the high).
-    const end = site.type === 'nmos' ? 0 : 1;
+    const end = site.mirror.type === 'nmos' ? 0 : 1;
     const rangePath = [...site.path, 'output', 'range', end];
     const range = site.require.compliance !== undefined ? requireRange(parsed, site, 'compliance')
       : parsed.source.value(rangePath) ?? parsed.source.value([...site.path, 'output', 'range']) ?? nameRange(parsed, site);
     emit('corner-compliance', 'error', bad, range, which === 'require.compliance' ? [...site.path, 'require', 'compliance'] : rangePath,
-      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
+      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.mirror.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
   }
 
   const sigma = site.require.sigma;
   if (sigma !== undefined && !(nominal.sigma !== undefined && nominal.sigma > sigma)) {
     const bad = solved.filter((r) => r.sigma !== undefined && r.sigma > sigma).map((r) => ({ r, badness: r.sigma! / sigma }));
     emit('corner-high-sigma', 'error', bad, requireRange(parsed, site, 'sigma'), [...site.path, 'require', 'sigma'],
-      (w, label) => `mismatch sigma ${Number((100 * w.sigma!).toPrecision(2))} % at corner ${label} is above require.sigma ${Number((100 * sigma).toPrecision(2))} %; enlarge the devices' area`);
+      (w, label) => `mismatch sigma ${formatPercent(w.sigma!)} at corner ${label} is above require.sigma ${formatPercent(sigma)}; enlarge the devices' area`);
   }
   return findings;
 }

@@ -6,16 +6,14 @@
  */
 import type { Finding, MirrorReport, ResolvedSpec } from '../types';
 import type { ParsedSpec } from '../spec/index';
-import { formatSI } from '../units/format';
-import { nameRange, requireRange, siteOf } from './site';
+import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
+import { nameRange, requireRange, siteOf } from '../rules/sites';
 
 /** Relative disagreement between Monte Carlo and linearized sigma that counts as nonlinear. */
 export const MC_NONLINEAR = 0.15;
 
 /** Yield below which `mc-yield` warns: the two-sided 3σ fraction, 99.73 % (common practice). */
 export const MC_YIELD_TARGET = 0.9973;
-
-const pct = (x: number, digits = 3): string => `${Number((100 * x).toPrecision(digits))} %`;
 
 export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, reports: MirrorReport[]): Finding[] {
   const out: Finding[] = [];
@@ -33,7 +31,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
         out.push({
           severity: 'info', code: 'mc-nonlinear', path: [...site.path, 'require', 'sigma'],
           range: site.require.sigma !== undefined ? requireRange(parsed, site, 'sigma') : nameRange(parsed, site),
-          message: `${report.name}: Monte Carlo sigma ${pct(mc.sigma, 2)} differs from the linearized ${pct(lin, 2)} by ${diff >= 0 ? '+' : '−'}${pct(Math.abs(diff), 2)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
+          message: `${report.name}: Monte Carlo sigma ${formatPercent(mc.sigma)} differs from the linearized ${formatPercent(lin)} by ${formatSignedPercent(diff)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
         });
       }
     }
@@ -42,7 +40,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
     if (hasReq && mc.yield < MC_YIELD_TARGET) {
       const f = mc.failures;
       const parts: string[] = [];
-      if (f?.ratio) parts.push(`${f.ratio} with the ratio outside ±${pct(spec.limits.tolerance)} (limits.tolerance)`);
+      if (f?.ratio) parts.push(`${f.ratio} with the ratio outside ±${formatPercent(spec.limits.tolerance)} (limits.tolerance)`);
       if (f?.saturation) parts.push(`${f.saturation} with a device out of saturation`);
       if (f?.compliance) parts.push(`${f.compliance} not saturated at ${formatSI(req.compliance ?? NaN, 'V')}`);
       if (f?.convergence) parts.push(`${f.convergence} without a solution`);
@@ -50,7 +48,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
       out.push({
         severity: 'warning', code: 'mc-yield', path: [...site.path, 'require'],
         range: parsed.source.key([...site.path, 'require']) ?? nameRange(parsed, site),
-        message: `${report.name}: Monte Carlo yield ${pct(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
+        message: `${report.name}: Monte Carlo yield ${formatPercent(mc.yield, 4)} (N = ${mc.samples}, seed ${mc.seed}): ${failing} sample${failing === 1 ? '' : 's'} fail${failing === 1 ? 's' : ''}${parts.length ? ` — ${parts.join(', ')}` : ''}`,
       });
     }
   }

@@ -14,8 +14,8 @@
 import * as vscode from 'vscode';
 import { writeFileSync } from 'node:fs';
 import type { QpointApi } from '../../../src/extension/api';
-import { CAUTION_TEXT } from '../../../src/core/report/html';
-import { formatSI } from '../../../src/core/units/format';
+import { CAUTION as CAUTION_TEXT } from '../../../src/core/text/format';
+import { formatSI } from '../../../src/core/text/format';
 import { analyzeText } from '../../../src/core/analyze';
 import type { MonteCarloSummary } from '../../../src/extension/monteCarlo';
 
@@ -411,7 +411,7 @@ async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode
     // Derivation: at the slow corner kp is ×0.6, so VOV = dDiodeVov(0.6) ≈ 0.474 V and `out`
     // held at 0.45 V has margin 0.45 V − VOV (square law; ref is a diode, no gate current).
     const margin = 0.45 - dDiodeVov(0.6);
-    const shown = /margin −([\d.]+) mV/.exec(d.message);
+    const shown = /margin -([\d.]+) mV/.exec(d.message);
     assert(shown, `no margin in "${d.message}"`);
     near(-Number(shown[1]) * 1e-3, margin, 0.02, 'corner margin (square law)');
     const report = qp.lastReport(uri);

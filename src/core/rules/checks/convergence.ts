@@ -7,7 +7,7 @@
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { mirrorRange, valueRange, type Site } from '../sites';
-import { amps, code, signedVolts, volts } from '../words';
+import { code, formatSI } from '../../text/format';
 
 export function checkConvergence(rc: RuleContext, site: Site): Draft[] {
   const r = site.report;
@@ -34,7 +34,7 @@ function overSupply(rc: RuleContext, site: Site): Draft {
     ? valueRange(rc.parsed, m.input.kind === 'resistor' ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'])
     : mirrorRange(rc.parsed, site.mirrorIndex);
   const first = site.report.devices.find((d) => d.name === b.stack[0]);
-  const carry = first && Number.isFinite(first.id) ? ` to carry ${amps(Math.abs(first.id))}` : '';
+  const carry = first && Number.isFinite(first.id) ? ` to carry ${formatSI(Math.abs(first.id), 'A')}` : '';
   const stack = b.stack.length > 0 ? `the stack ${b.stack.map(code).join(' + ')}` : `the devices feeding node ${code(b.node)}`;
   const side = b.rail === 'vss' ? 'below vss' : 'above vdd';
   return {
@@ -43,8 +43,8 @@ function overSupply(rc: RuleContext, site: Site): Draft {
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'stack-over-supply', path: at.path, range: at.range,
-      message: `no operating point: ${stack} needs ${volts(b.need)}${carry} but the supply is ${volts(vdd - vss)} ` +
-        `(node ${code(b.node)} would sit at ${signedVolts(b.v)}, ${side}); no figures until it fits — lower VGS (wider or shorter devices), fewer stacked gate-source drops, or less current`,
+      message: `no operating point: ${stack} needs ${formatSI(b.need, 'V')}${carry} but the supply is ${formatSI(vdd - vss, 'V')} ` +
+        `(node ${code(b.node)} would sit at ${formatSI(b.v, 'V')}, ${side}); no figures until it fits — lower VGS (wider or shorter devices), fewer stacked gate-source drops, or less current`,
     },
   };
 }

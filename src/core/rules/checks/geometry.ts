@@ -6,7 +6,7 @@ import { deviceRange, sizeToken, type Site } from '../sites';
 import { allDevices, sizeOf, type DeviceRef } from '../../sizing/devices';
 import { quantizeSize } from '../../sizing/quantize';
 import { setSizePlans } from '../plans';
-import { code, metres } from '../words';
+import { code, formatSI } from '../../text/format';
 
 export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
   // Sizes belong to the mirror: check once per mirror, on its first output.
@@ -38,7 +38,7 @@ export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: code_, path: at.path, range: at.range,
-          message: `${key === 'l' ? 'L' : 'W'} ${metres(g.value)} of ${names.join(', ')} is below the ${g.type} ${key === 'l' ? 'lmin' : 'wmin'} ${metres(g.min)}`,
+          message: `${key === 'l' ? 'L' : 'W'} ${formatSI(g.value, 'm')} of ${names.join(', ')} is below the ${g.type} ${key === 'l' ? 'lmin' : 'wmin'} ${formatSI(g.min, 'm')}`,
         },
         plan: () => setSizePlans(rc, site, () => g.refs.flatMap((ref) => {
           const s = sizeOf(rc.spec, ref)!;

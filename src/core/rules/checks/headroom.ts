@@ -12,7 +12,7 @@ import { valueRange, type Site } from '../sites';
 import { solve } from '../../sizing/devices';
 import type { OperatingPoint } from '../../analysis/index';
 import { widenPlans } from '../plans';
-import { amps, code, signedVolts, volts } from '../words';
+import { code, formatSI } from '../../text/format';
 
 /** Voltage left between the input node and the opposite rail, and the stack height. */
 export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: { role: string; name: string; vds: number }[]): { room: number; stack: number } | undefined {
@@ -41,9 +41,9 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const [own, far] = m.type === 'nmos' ? ['vss', 'vdd'] : ['vdd', 'vss'];
   const side = m.type === 'nmos' ? 'above' : 'below';
   const message = resistor
-    ? `the input resistor has only ${signedVolts(got.room)} across it to ${far} (the stack ${stackNames} takes ${volts(got.stack)} ${side} ${own} of the ${volts(rc.spec.supplies.vdd - rc.spec.supplies.vss)} supply; limits.sourceHeadroom is ${volts(need)}), ` +
-      `so iin = ${amps(site.report.iin)} is set by the threshold voltage, not by the resistor`
-    : `the input node sits ${volts(got.stack)} ${side} ${own} (stack ${stackNames}), leaving ${signedVolts(got.room)} to ${far} for the input current source; it needs limits.sourceHeadroom ${volts(need)}`;
+    ? `the input resistor has only ${formatSI(got.room, 'V')} across it to ${far} (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} ${side} ${own} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
+      `so iin = ${formatSI(site.report.iin, 'A')} is set by the threshold voltage, not by the resistor`
+    : `the input node sits ${formatSI(got.stack, 'V')} ${side} ${own} (stack ${stackNames}), leaving ${formatSI(got.room, 'V')} to ${far} for the input current source; it needs limits.sourceHeadroom ${formatSI(need, 'V')}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);
     const g = op ? inputRoom(s, m.kind, op.devices) : undefined;
@@ -53,7 +53,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
     key: draftKey('input-headroom', ['mirrors', site.mirrorIndex]),
     mirrorIndex: site.mirrorIndex,
     finding: { severity: 'error', code: 'input-headroom', path: at.path, range: at.range, message },
-    plan: () => widenPlans(rc, site.mirrorIndex, goal, `for ${volts(need)} of input headroom`),
+    plan: () => widenPlans(rc, site.mirrorIndex, goal, `for ${formatSI(need, 'V')} of input headroom`),
     hint: 'lower VGS (wider devices) or use a stack with fewer gate-source drops',
   }];
 }

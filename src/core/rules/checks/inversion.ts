@@ -1,13 +1,17 @@
-/** square-law-weak-inversion (info): the square law is being trusted below IC = 1. */
+/** square-law-weak-inversion (info): a model made for strong inversion (the square law) is
+ *  being trusted below IC = 1. The code keeps its name; the model says whether it applies. */
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
 import { modelPlans } from '../plans';
-import { code } from '../words';
+import { MODELS, WEAK_INVERSION_MODEL } from '../../models/registry';
+import { code } from '../../text/format';
 import { siteDevices } from './common';
 
 export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): Draft[] {
-  if (rc.spec.process.model !== 'square-law') return [];
+  const model = MODELS[rc.spec.process.model];
+  const wide = WEAK_INVERSION_MODEL;
+  if (model.coversWeakInversion || wide === undefined) return [];
   const low = siteDevices(site).filter((d) => d.ic < 1 && !seen.has(`${site.mirrorIndex}/${d.name}`)).sort((a, b) => a.ic - b.ic);
   if (low.length === 0) return [];
   for (const d of low) seen.add(`${site.mirrorIndex}/${d.name}`);
@@ -21,7 +25,7 @@ export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): 
     finding: {
       severity: 'info', code: 'square-law-weak-inversion', path: at.path, range: at.range,
       message: `${code(worst.name)} runs at inversion coefficient ${worst.ic.toPrecision(2)} (${region} inversion)${others.length ? `, also ${others.join(', ')}` : ''}, ` +
-        'where the square law overestimates gm/ID; `model: ekv` covers it',
+        `where the ${model.title} overestimates gm/ID; \`model: ${wide}\` covers it`,
     },
     plan: () => modelPlans(rc, site.mirrorIndex),
   }];

@@ -8,7 +8,7 @@ import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, kindRange, refOf, valueRange, type DeviceRef, type Site } from '../sites';
 import { balancedPlans, ratioPlans } from '../plans';
-import { code, percent, ratioText, signedPercent, volts } from '../words';
+import { code, formatPercent, formatRatio, formatSI, formatSignedPercent } from '../../text/format';
 
 /** The ratio-setting device and its partner: the kind's mirror pair (design §4 ratioIdeal). */
 export function ratioPair(site: Site): { setter: string; partner: string } | undefined {
@@ -49,18 +49,18 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
     if (Math.abs(err) > limit) {
       const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
       const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
-      const against = required !== undefined ? `the required ${ratioText(required)}` : `the geometric ${ratioText(target)}`;
+      const against = required !== undefined ? `the required ${formatRatio(required)}` : `the geometric ${formatRatio(target)}`;
       const rel = related(rc, site, partner, `mirrored from ${code(partner?.name ?? '')}`);
       if (required !== undefined) {
         const req = valueRange(rc.parsed, [...site.path, 'require', 'ratio']);
-        rel.push({ path: req.path, range: req.range, message: `required ratio ${ratioText(required)}` });
+        rel.push({ path: req.path, range: req.range, message: `required ratio ${formatRatio(required)}` });
       }
       drafts.push({
         key: draftKey('ratio-error', site.path),
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: 'ratio-error', path: at.path, range: at.range, related: rel,
-          message: `ratio ${ratioText(r.ratio)} is ${signedPercent(err)} off ${against} (limit ±${percent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
+          message: `ratio ${formatRatio(r.ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
         },
         plan: function* () {
           yield* balancedPlans(rc, site);
@@ -86,9 +86,9 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
       mirrorIndex: site.mirrorIndex,
       finding: {
         severity: 'warning', code: 'vds-mismatch', path: at.path, range: at.range,
-        related: [...related(rc, site, setter, `VDS ${volts(setter.vds)}`), ...related(rc, site, partner, `VDS ${volts(partner.vds)}`)],
-        message: `VDS of ${code(setter.name)} (${volts(setter.vds)}) and ${code(partner.name)} (${volts(partner.vds)}) differ by ${volts(Math.abs(setter.vds - partner.vds))}: ` +
-          `length modulation moves the ratio by ${signedPercent(split.vds)} (half the ±${percent(limit)} budget is ${percent(limit / 2)})`,
+        related: [...related(rc, site, setter, `VDS ${formatSI(setter.vds, 'V')}`), ...related(rc, site, partner, `VDS ${formatSI(partner.vds, 'V')}`)],
+        message: `VDS of ${code(setter.name)} (${formatSI(setter.vds, 'V')}) and ${code(partner.name)} (${formatSI(partner.vds, 'V')}) differ by ${formatSI(Math.abs(setter.vds - partner.vds), 'V')}: ` +
+          `length modulation moves the ratio by ${formatSignedPercent(split.vds)} (half the ±${formatPercent(limit)} budget is ${formatPercent(limit / 2)})`,
       },
       plan: () => balancedPlans(rc, site),
       hint,
@@ -104,11 +104,11 @@ function causes(split: ErrorSplit | undefined, ideal: number | undefined, requir
   const parts: { text: string; size: number }[] = [];
   if (required !== undefined && ideal !== undefined && Math.abs(ideal / required - 1) > 1e-9) {
     const e = ideal / required - 1;
-    parts.push({ text: `sizing ${signedPercent(e)} (geometric ratio ${ratioText(ideal)})`, size: Math.abs(e) });
+    parts.push({ text: `sizing ${formatSignedPercent(e)} (geometric ratio ${formatRatio(ideal)})`, size: Math.abs(e) });
   }
   if (split) {
     const named: [string, number][] = [['VDS mismatch', split.vds], ['body effect', split.body], ['gate drive', split.gate ?? 0], ['geometry', split.geometry]];
-    for (const [label, v] of named) if (Math.abs(v) >= 5e-5) parts.push({ text: `${label} ${signedPercent(v)}`, size: Math.abs(v) });
+    for (const [label, v] of named) if (Math.abs(v) >= 5e-5) parts.push({ text: `${label} ${formatSignedPercent(v)}`, size: Math.abs(v) });
   }
   parts.sort((a, b) => b.size - a.size);
   return parts.length > 0 ? `: ${parts.map((p) => p.text).join(', ')}` : '';

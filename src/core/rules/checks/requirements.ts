@@ -5,7 +5,7 @@ import { draftKey } from '../model';
 import { deviceRange, kindRange, refOf, valueRange, type Site } from '../sites';
 import { measure, solve } from '../../sizing/devices';
 import { areaPlans, lengthenPlans, widenPlans } from '../plans';
-import { code, ohms, percent, signedVolts, volts } from '../words';
+import { code, formatPercent, formatSI } from '../../text/format';
 import { ratioPair } from './ratio';
 import { deviceIn } from './common';
 
@@ -31,13 +31,13 @@ export function checkRout(rc: RuleContext, site: Site): Draft[] {
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'low-rout', path: at.path, range: at.range,
-      related: [{ path: req.path, range: req.range, message: `required Rout ${ohms(need)}` }],
-      message: `Rout ${ohms(r.rout)} is below the required ${ohms(need)} (${percent(r.rout / need, 3)} of it)`,
+      related: [{ path: req.path, range: req.range, message: `required Rout ${formatSI(need, 'Ω')}` }],
+      message: `Rout ${formatSI(r.rout, 'Ω')} is below the required ${formatSI(need, 'Ω')} (${formatPercent(r.rout / need, 3)} of it)`,
     },
     plan: () => lengthenPlans(rc, site.mirrorIndex, (s: ResolvedSpec) => {
       const m = measure(s, site.mirrorIndex, site.outputIndex);
       return m && m.converged ? m.rout / need - 1 : NaN;
-    }, `for Rout ≥ ${ohms(need)}`),
+    }, `for Rout ≥ ${formatSI(need, 'Ω')}`),
     hint,
   }];
 }
@@ -73,22 +73,22 @@ export function checkCompliance(rc: RuleContext, site: Site): Draft[] {
   const at = own ? deviceRange(rc.parsed, rc.spec, refOf(site, own), ['w']) : kindRange(rc.parsed, site.mirrorIndex);
   const req = valueRange(rc.parsed, t.path);
   const dir = nmos ? 'down to' : 'up to';
-  const who = worst ? `${code(worst.name)} leaves saturation ${nmos ? 'below' : 'above'} Vout = ${volts(r.compliance)}` : `compliance is ${volts(r.compliance)}`;
+  const who = worst ? `${code(worst.name)} leaves saturation ${nmos ? 'below' : 'above'} Vout = ${formatSI(r.compliance, 'V')}` : `compliance is ${formatSI(r.compliance, 'V')}`;
   const atTarget = worst ? deviceIn(solve(rc.spec, site.mirrorIndex, site.outputIndex, t.v), worst.name) : undefined;
-  const there = atTarget ? ` (its margin there is ${signedVolts(atTarget.margin)})` : '';
+  const there = atTarget ? ` (its margin there is ${formatSI(atTarget.margin, 'V')})` : '';
   return [{
     key: draftKey('compliance', site.path),
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'compliance', path: at.path, range: at.range,
-      related: [{ path: req.path, range: req.range, message: `${t.what}: must work ${dir} ${volts(t.v)}` }],
-      message: `${who}, but ${t.what} needs the mirror to work ${dir} ${volts(t.v)}${there}`,
+      related: [{ path: req.path, range: req.range, message: `${t.what}: must work ${dir} ${formatSI(t.v, 'V')}` }],
+      message: `${who}, but ${t.what} needs the mirror to work ${dir} ${formatSI(t.v, 'V')}${there}`,
     },
     plan: () => widenPlans(rc, site.mirrorIndex, (s: ResolvedSpec) => {
       const m = measure(s, site.mirrorIndex, site.outputIndex);
       if (!m || !m.converged || !Number.isFinite(m.compliance)) return NaN;
       return nmos ? t.v - m.compliance : m.compliance - t.v;
-    }, `for compliance ${dir} ${volts(t.v)}`),
+    }, `for compliance ${dir} ${formatSI(t.v, 'V')}`),
     hint: site.mirror.kind === 'wide-swing' ? 'lower the overdrives (wider devices) or lower vbias' : 'lower the overdrives (wider devices) or use a wide-swing cascode',
   }];
 }
@@ -111,8 +111,8 @@ export function checkSigma(rc: RuleContext, site: Site): Draft[] {
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'high-sigma', path: at.path, range: at.range,
-      related: [{ path: req.path, range: req.range, message: `required σ ≤ ${percent(need)}` }],
-      message: `σ(Iout) ${percent(r.sigma)} is above the required ${percent(need)}; Pelgrom scaling (σ ∝ 1/√(W·L)) needs about ${area.toPrecision(3)}× the gate area`,
+      related: [{ path: req.path, range: req.range, message: `required σ ≤ ${formatPercent(need)}` }],
+      message: `σ(Iout) ${formatPercent(r.sigma)} is above the required ${formatPercent(need)}; Pelgrom scaling (σ ∝ 1/√(W·L)) needs about ${area.toPrecision(3)}× the gate area`,
     },
     plan: () => areaPlans(rc, site, need),
   }];

@@ -11,8 +11,7 @@ import { solve } from '../../sizing/devices';
 import { pickedVbias, withVbias } from '../../sizing/vbias';
 import { takesVbias } from '../../kinds/index';
 import { vbiasPlans, widenPlans } from '../plans';
-import { code, signedVolts, volts } from '../words';
-import { formatSI } from '../../units/format';
+import { code, formatSI } from '../../text/format';
 import { awayFromRail, crossing, deviceIn, isSaturated, marginGoal, siteDevices } from './common';
 
 /** Reference devices belong to the mirror, not to one output: one finding for all outputs. */
@@ -21,8 +20,8 @@ function subjectPath(site: Site, d: DeviceReport): SpecPath {
 }
 
 function state(d: DeviceReport): string {
-  if (d.region === 'cutoff') return `is cut off (VGS ${volts(d.vgs)} below VT ${volts(d.vth)})`;
-  return `is in triode: VDS ${volts(d.vds)} < VDSsat ${volts(d.vdsat)} (margin ${signedVolts(d.margin)})`;
+  if (d.region === 'cutoff') return `is cut off (VGS ${formatSI(d.vgs, 'V')} below VT ${formatSI(d.vth, 'V')})`;
+  return `is in triode: VDS ${formatSI(d.vds, 'V')} < VDSsat ${formatSI(d.vdsat, 'V')} (margin ${formatSI(d.margin, 'V')})`;
 }
 
 export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
@@ -47,10 +46,10 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: 'vbias-triode', path, range: rc.parsed.source.rangeFor(path),
-          message: `vbias ${volts(m.vbias)} leaves ${unsat.map((d) => code(d.name)).join(', ')} out of saturation: ${code(worst.name)} ${state(worst)}; ` +
-            `qpoint's pick is ${volts(picked)} (\`ref\` at VDSsat + ${volts(limits.margin)})`,
+          message: `vbias ${formatSI(m.vbias, 'V')} leaves ${unsat.map((d) => code(d.name)).join(', ')} out of saturation: ${code(worst.name)} ${state(worst)}; ` +
+            `qpoint's pick is ${formatSI(picked, 'V')} (\`ref\` at VDSsat + ${formatSI(limits.margin, 'V')})`,
         },
-        plan: () => vbiasPlans(rc, site, volts(limits.margin)),
+        plan: () => vbiasPlans(rc, site, formatSI(limits.margin, 'V')),
       });
       unsat = [];
     }
@@ -71,12 +70,12 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
       mirrorIndex: site.mirrorIndex,
       finding: {
         severity: 'error', code: 'not-saturated', path: at.path, range: at.range,
-        message: `${code(d.name)} ${state(d)} at Vout = ${volts(site.vout)}${where}`,
+        message: `${code(d.name)} ${state(d)} at Vout = ${formatSI(site.vout, 'V')}${where}`,
       },
       plan: function* () {
         // Full margin if the mirror can get it, else just saturation (the warning stays).
         let any = false;
-        for (const c of widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`)) { any = true; yield c; }
+        for (const c of widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${formatSI(limits.margin, 'V')} margin on ${code(d.name)}`)) { any = true; yield c; }
         if (!any) yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0.005, site.vout), `to saturate ${code(d.name)}`);
       },
       hint: 'lower its overdrive (wider devices) or move Vout away from the rail',
@@ -93,11 +92,11 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
       mirrorIndex: site.mirrorIndex,
       finding: {
         severity: 'warning', code: 'low-margin', path: at.path, range: at.range,
-        message: `${code(d.name)} has ${volts(d.margin)} of saturation margin at Vout = ${volts(site.vout)} (VDS ${volts(d.vds)}, VDSsat ${volts(d.vdsat)}); limits.margin asks for ${volts(limits.margin)}`,
+        message: `${code(d.name)} has ${formatSI(d.margin, 'V')} of saturation margin at Vout = ${formatSI(site.vout, 'V')} (VDS ${formatSI(d.vds, 'V')}, VDSsat ${formatSI(d.vdsat, 'V')}); limits.margin asks for ${formatSI(limits.margin, 'V')}`,
       },
       plan: function* () {
-        if (takesVbias(m) && m.vbias !== undefined) yield* vbiasPlans(rc, site, volts(limits.margin));
-        yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${volts(limits.margin)} margin on ${code(d.name)}`);
+        if (takesVbias(m) && m.vbias !== undefined) yield* vbiasPlans(rc, site, formatSI(limits.margin, 'V'));
+        yield* widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, limits.margin, site.vout), `for ${formatSI(limits.margin, 'V')} margin on ${code(d.name)}`);
       },
     });
   }
@@ -147,10 +146,10 @@ function rangeSide(rc: RuleContext, site: Site): Draft[] {
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: 'not-saturated', path: at.path, range: at.range,
-          message: `${code(d.name)} leaves saturation ${leaves !== undefined ? `at Vout = ${formatSI(leaves, 'V', 4)}` : `before Vout = ${volts(v)}`}, inside output.range ${volts(lo)} … ${volts(hi)} ` +
-            `(margin ${signedVolts(d.margin)} at ${volts(v)})`,
+          message: `${code(d.name)} leaves saturation ${leaves !== undefined ? `at Vout = ${formatSI(leaves, 'V', 4)}` : `before Vout = ${formatSI(v, 'V')}`}, inside output.range ${formatSI(lo, 'V')} … ${formatSI(hi, 'V')} ` +
+            `(margin ${formatSI(d.margin, 'V')} at ${formatSI(v, 'V')})`,
         },
-        plan: () => widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0, end), `to keep ${code(d.name)} saturated up to ${volts(end)}`),
+        plan: () => widenPlans(rc, site.mirrorIndex, marginGoal(site, d.name, 0, end), `to keep ${code(d.name)} saturated up to ${formatSI(end, 'V')}`),
       });
     }
     prev = v;

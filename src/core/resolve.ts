@@ -1,0 +1,38 @@
+/**
+ * The one resolve step every front end shares: text → parse → elaborate → design targets
+ * (`size: auto` sized at the mirror's own currents). `analyzeText`, the CLI's `sweep`, fix
+ * verification and the benchmark all start here, so a mirror is the same circuit whichever of
+ * them solves it.
+ */
+import type { Limits, ResolvedSpec } from './types';
+import { parseSpec, type ParsedSpec } from './spec/index';
+import { applyDesignTargets, type SizedDevice } from './design/auto-size';
+
+export interface ResolveOptions {
+  /** Fallbacks for limits the spec leaves unset (the editor's `qpoint.limits.margin`). */
+  limitsDefaults?: { margin?: number };
+  /** Limits to use whatever the spec says (a fix's re-check keeps the original's). */
+  limits?: Limits;
+}
+
+export interface ResolvedText {
+  /** The parse, with `spec` the resolved spec (design targets applied) when there is one. */
+  parsed: ParsedSpec;
+  /** What the design targets computed, for `computed-size` findings and DeviceReport.sized. */
+  sized: SizedDevice[];
+}
+
+export function resolveText(text: string, file?: string, opts: ResolveOptions = {}): ResolvedText {
+  const parsed = parseSpec(text, file);
+  if (!parsed.spec) return { parsed, sized: [] };
+  const { spec, sized } = applyDesignTargets(withLimits(parsed, parsed.spec, opts));
+  return { parsed: { ...parsed, spec }, sized };
+}
+
+/** The editor may supply a default margin; a margin written in the spec always wins. */
+function withLimits(parsed: ParsedSpec, spec: ResolvedSpec, opts: ResolveOptions): ResolvedSpec {
+  if (opts.limits) return { ...spec, limits: opts.limits };
+  const margin = opts.limitsDefaults?.margin;
+  if (margin === undefined || parsed.source.value(['limits', 'margin']) !== undefined) return spec;
+  return { ...spec, limits: { ...spec.limits, margin } };
+}

@@ -1,0 +1,83 @@
+/**
+ * Offsets ↔ LSP positions (0-based line, UTF-16 character: JS string indexes are UTF-16), the one
+ * place that does this arithmetic. A text's line starts are indexed once; each lookup is a binary
+ * search (O(log n)), so a finding on the last line of a 500 KB file costs what one on the first
+ * does.
+ *
+ * A byte-order mark (U+FEFF at offset 0) is not a column: editors strip it before they count, so
+ * line 1 is counted from the character after it, and position (0, 0) maps to the offset after it
+ * (an edit there lands behind the mark, which stays first in the file).
+ */
+import type { Position, Range } from '../types';
+
+const BOM = 0xfeff;
+
+export class LineIndex {
+  /** Offset of the first character of each line. A line ends at \n (a \r before it stays on the line). */
+  private readonly starts: number[] = [0];
+  /** 1 when the text starts with a byte-order mark, else 0. */
+  private readonly bom: number;
+
+  constructor(readonly text: string) {
+    for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) this.starts.push(i + 1);
+    this.bom = text.charCodeAt(0) === BOM ? 1 : 0;
+  }
+
+  get lineCount(): number {
+    return this.starts.length;
+  }
+
+  /** The line holding `offset` (clamped to the text). */
+  lineOf(offset: number): number {
+    const o = Math.max(0, Math.min(offset, this.text.length));
+    let lo = 0;
+    let hi = this.starts.length - 1;
+    while (lo < hi) {
+      const mid = (lo + hi + 1) >> 1;
+      if (this.starts[mid] <= o) lo = mid; else hi = mid - 1;
+    }
+    return lo;
+  }
+
+  position(offset: number): Position {
+    const o = Math.max(0, Math.min(offset, this.text.length));
+    const line = this.lineOf(o);
+    return { line, character: Math.max(0, o - this.contentStart(line)) };
+  }
+
+  range(start: number, end: number): Range {
+    return { start: this.position(start), end: this.position(Math.max(start, end)) };
+  }
+
+  /** Offset of a position; a character past the line's end is clamped to it (before the line
+   *  break, as LSP asks), a line past the last to the end of the text. */
+  offset(p: Position): number {
+    if (p.line >= this.starts.length) return this.text.length;
+    const line = Math.max(0, p.line);
+    const end = line + 1 < this.starts.length ? this.starts[line + 1] - 1 : this.text.length;
+    return Math.min(this.contentStart(line) + Math.max(0, p.character), end);
+  }
+
+  /** Offset just past the end of the line holding `offset`, before its line break. */
+  lineEnd(offset: number): number {
+    const nl = this.text.indexOf('\n', offset);
+    const end = nl < 0 ? this.text.length : nl;
+    return end > 0 && this.text[end - 1] === '\r' ? end - 1 : end;
+  }
+
+  /** Offset of the first character of the line holding `offset` (after a byte-order mark). */
+  lineStart(offset: number): number {
+    return this.contentStart(this.lineOf(offset));
+  }
+
+  /** The source text of a range. */
+  slice(r: Range): string {
+    return this.text.slice(this.offset(r.start), this.offset(r.end));
+  }
+
+  private contentStart(line: number): number {
+    return line === 0 ? this.bom : this.starts[line];
+  }
+}
+
+export const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
