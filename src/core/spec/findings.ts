@@ -25,7 +25,8 @@ const RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
 
 export class FindingSink {
   private readonly kept: Finding[] = [];
-  private readonly seen = new Set<string>();
+  /** Facts said, by path (JSON): a few per path, so no one huge set of long keys. */
+  private readonly seen = new Map<string, Set<string>>();
   private readonly perCode = new Map<string, number>();
   private readonly overflow = new Map<string, Overflow>();
   private errors = 0;
@@ -42,9 +43,11 @@ export class FindingSink {
    */
   add(severity: Severity, code: string, message: string, path: SpecPath, at?: At, once?: string): void {
     const p = JSON.stringify(path);
-    const key = `${once ?? code}@${p}`;
-    if (this.seen.has(key)) return;
-    this.seen.add(key);
+    const fact = once ?? code;
+    let facts = this.seen.get(p);
+    if (!facts) this.seen.set(p, facts = new Set());
+    else if (facts.has(fact)) return;
+    facts.add(fact);
     if (severity === 'error') {
       this.errors++;
       const mirror = mirrorIndexOfPath(path);
@@ -100,10 +103,8 @@ export class FindingSink {
 
   /** True when a finding with this fact (or, without `once`, any finding) was made at path. */
   has(path: SpecPath, once?: string): boolean {
-    const p = JSON.stringify(path);
-    if (once) return this.seen.has(`${once}@${p}`);
-    for (const k of this.seen) if (k.endsWith(`@${p}`)) return true;
-    return false;
+    const facts = this.seen.get(JSON.stringify(path));
+    return facts !== undefined && (once === undefined ? facts.size > 0 : facts.has(once));
   }
 
   get errorCount(): number {
