@@ -37,6 +37,8 @@ export const SPEC_LIMITS = {
   maxExpressionLength: 1000,
   /** YAML syntax findings reported per file; the rest are counted in the last one. */
   maxSyntaxFindings: 20,
+  /** spec findings listed per code; the rest are counted in one `more-findings` per code. */
+  maxFindingsPerCode: 100,
   /** Elements (devices, sources, resistors) of one netlist mirror; a larger netlist gets a
    *  `netlist-too-large` finding instead of a solve (its analysis would take seconds). */
   maxNetlistElements: 5000,

@@ -52,6 +52,7 @@ function drain(): void {
   if (next.done) return;
   const [key, req] = next.value;
   pending.delete(key);
+  send({ type: 'started', seq: req.seq, key: req.key });
   send(run(req));
   schedule();
 }

@@ -21,6 +21,8 @@ export interface WorkerRequest {
 }
 
 export type WorkerResponse =
+  /** The worker begins this job now (the host times each job from here). */
+  | { type: 'started'; seq: number; key: string }
   | { type: 'report'; seq: number; key: string; report: FileReport; ms: number }
   | { type: 'fixed'; seq: number; key: string; result: FixAllResult; ms: number }
   | { type: 'superseded'; seq: number; key: string }
@@ -42,6 +44,7 @@ export function isWorkerResponse(m: unknown): m is WorkerResponse {
   switch (m.type) {
     case 'report': return isRecord(m.report) && typeof m.ms === 'number';
     case 'fixed': return isRecord(m.result) && typeof m.ms === 'number';
+    case 'started':
     case 'superseded': return true;
     case 'progress': return typeof m.done === 'number' && typeof m.total === 'number';
     case 'failed': return typeof m.message === 'string';

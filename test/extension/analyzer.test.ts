@@ -1,6 +1,7 @@
 /**
  * The analysis worker client with the real worker bundle (dist/worker.js, built by `npm test`):
- * supersession by key, answers for the newest text only, recovery from a hung worker.
+ * supersession by key, answers for the newest text only, recovery from a hung worker, a time
+ * budget per job so that one hostile file never starves the others.
  * The analysed spec is the Razavi level-1 device D (docs/references.md; set from memory, numbers
  * computed there): a simple NMOS mirror, W/L = 10, IREF = 100 µA, VOUT = 1.5 V → IOUT =
  * 103.9103 µA (docs/references.md §9 "Constructed check on D").
@@ -64,6 +65,43 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     // A fresh worker is started for the next request (it hangs too, by construction).
     await expect(a.analyze('k', 'x', 'f', {})).rejects.toThrow(/longer than 300 ms/);
   });
+
+  it('keeps analysing a valid file while a hostile one is open (issue 14)', async () => {
+    // The hostile job: Monte Carlo at the editor's largest sample count (package.json,
+    // qpoint.monteCarlo.samples maximum 10^7) on a mirror with Pelgrom coefficients, which runs
+    // for minutes. Budget 4 s; the valid file is the D mirror (docs/references.md §9).
+    const a = make(WORKER, 4000);
+    const hostile = D_SPEC('100u', ', avt: 4e-9, abeta: 1e-8');
+    const slow = { mc: { samples: 10_000_000, seed: 1 } };
+    const valid = D_SPEC('100u');
+    // Round 1: the hostile file is asked first, so the valid one waits behind it in the worker's
+    // queue; it must be handed to the fresh worker when the hostile job is stopped.
+    const h1 = a.analyze('hostile', hostile, 'hostile.bias.yaml', slow);
+    const v1 = a.analyze('valid', valid, 'valid.bias.yaml', {});
+    const [hr, vr] = await Promise.all([h1, v1]);
+    expect(vr!.mirrors[0].iout).toBeCloseTo(103.9103e-6, 9);  // docs/references.md §9, to 0.1 nA
+    expect(hr!.mirrors).toEqual([]);
+    expect(hr!.findings.map((f) => [f.code, f.severity, f.range.start])).toEqual([['analysis-timeout', 'error', { line: 0, character: 0 }]]);
+    expect(hr!.findings[0].message).toMatch(/^qpoint stopped analysing this file after 4 s so that the other open specs are analysed meanwhile/);
+    // Round 2: the designer edits both; the hostile file is re-analysed (and stopped again) while
+    // the valid one is analysed twice more, each time with its own answer.
+    const h2 = a.analyze('hostile', hostile + '# edited\n', 'hostile.bias.yaml', slow);
+    const v2 = a.analyze('valid', D_SPEC('50u'), 'valid.bias.yaml', {});
+    const v2r = await v2;
+    expect(v2r!.mirrors[0].iin).toBeCloseTo(50e-6, 12);  // the ideal input source of the spec
+    const v3 = await a.analyze('valid', D_SPEC('200u'), 'valid.bias.yaml', {});
+    expect(v3!.mirrors[0].iin).toBeCloseTo(200e-6, 12);
+    expect((await h2)!.findings.map((f) => f.code)).toEqual(['analysis-timeout']);
+    // A job superseded while it runs (its first progress report says it runs) is still stopped,
+    // and the newest text of that file is analysed.
+    let progressed = (): void => undefined;
+    const running = new Promise<void>((resolve) => { progressed = resolve; });
+    const h3 = a.analyze('hostile', hostile, 'hostile.bias.yaml', slow, () => progressed());
+    await running;
+    const fixed = a.analyze('hostile', valid, 'hostile.bias.yaml', {});
+    await expect(h3).resolves.toBeUndefined();
+    expect((await fixed)!.mirrors[0].iout).toBeCloseTo(103.9103e-6, 9);
+  }, 60_000);
 
   it('resolves pending requests undefined on dispose', async () => {
     const a = make();

@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import { parseSpec } from '../../src/core/spec/index';
 import { DEFAULTS, PROVISIONAL_SIZE } from '../../src/core/defaults';
 import type { NetlistMirror, TemplateMirror } from '../../src/core/types';
-import { BASE, codes, expectErrorsBlock, withText } from './helpers';
+import { BASE, codes, expectErrorsBlock, marked, withText } from './helpers';
 
 function spec(text: string) {
   const p = parseSpec(text, 't.bias.yaml');
@@ -203,6 +203,14 @@ describe('netlist mirrors', () => {
     // The netlist is the only mirror: the spec is partial with nothing left to solve.
     expectErrorsBlock(p);
     expect(p.spec?.mirrors ?? []).toEqual([]);
+  });
+
+  test('a pair of one device twice is bad-value at its `out` (issue 14)', () => {
+    const { text, range } = marked(withText('pair: { ref: M1, out: M2 }', 'pair: { ref: M1, out: ⟦M1⟧ }', net));
+    const p = parseSpec(text);
+    expect(p.findings.map((f) => [f.code, f.range])).toEqual([['bad-value', range]]);
+    expect(p.findings[0].message).toBe('`out` is `M1`, the device already named as `ref`; a pair is two devices: the reference and the output it copies to');
+    expectErrorsBlock(p);
   });
 
   test('a gate-only node floats: an error that sets the mirror aside (no figures, no fixes)', () => {

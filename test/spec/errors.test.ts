@@ -5,7 +5,7 @@
  */
 import { describe, expect, test } from 'vitest';
 import { parseSpec } from '../../src/core/spec/index';
-import { BASE, expectErrorsBlock, marked, withText } from './helpers';
+import { BASE, codes, expectErrorsBlock, marked, withText } from './helpers';
 
 interface Row { name: string; text: string; code: string; line: number; message?: string; severity?: 'error' | 'warning' }
 
@@ -30,6 +30,11 @@ const rows: Row[] = [
   { name: 'refused expression', text: withText('w: 2u', 'w: "⟦import⟧({}, {})"'), code: 'refused-expression', line: 10, message: 'function `import` is not allowed' },
   { name: 'bad expression', text: withText('w: 2u', 'w: ⟦2*(1u⟧'), code: 'bad-expression', line: 10 },
   { name: 'param cycle at the value', text: withText('format: 1\n', 'format: 1\nparams:\n  a: b*2\n  b: ⟦a + 1u⟧\n'), code: 'param-cycle', line: 3, message: 'b → a → b' },
+  // Issue 14: a reference to a param that failed names the failure, not "no params".
+  { name: 'a reference to a param with an error of its own', text: withText('format: 1\n', 'format: 1\nparams:\n  a: 1\n  b: foo(1)\n', withText('w: 2u', 'w: ⟦b⟧')), code: 'failed-param', line: 13, message: '`w`: param `b` has no value (see its own finding under `params`)' },
+  // Issue 14: `.nan` is one fault; the schema and the elaborator say it once, at the value.
+  { name: 'a YAML .nan where a number belongs', text: withText('w: 2u', 'w: ⟦.nan⟧'), code: 'bad-value', line: 10, message: '`w` must be a finite number; got NaN' },
+  { name: 'a YAML .inf where a number belongs', text: withText('vdd: 1.8', 'vdd: ⟦-.inf⟧'), code: 'bad-value', line: 4, message: '`vdd` must be a finite number; got -Infinity' },
   { name: 'unknown name inside a param', text: withText('format: 1\n', 'format: 1\nparams:\n  a: "2*⟦bb⟧"\n'), code: 'unknown-param', line: 2, message: '`bb` is not a param' },
   { name: 'a param with a unit used for another quantity', text: withText('format: 1\n', 'format: 1\nparams: { ib: 10uA }\n', withText('w: 2u', 'w: ⟦ib⟧')), code: 'bad-unit', line: 11, message: 'param `ib` is a current (A)' },
   { name: 'duplicate mirror name at the second name', text: BASE + '  - name: ⟦m1⟧\n    kind: simple\n    type: nmos\n    input: 10u\n    size: { w: 2u, l: 1u }\n    output: { v: 0.9 }\n', code: 'duplicate-name', line: 12, message: 'already used by mirror 1' },
@@ -83,6 +88,16 @@ describe('spec findings at the narrowest range', () => {
       const same = p.findings.filter((f) => JSON.stringify(f.range) === JSON.stringify(range));
       expect(same.length, `${row.name}: ${JSON.stringify(same, null, 1)}`).toBe(1);
     }
+  });
+
+  test('a reference to a param that failed does not say the spec defines no params', () => {
+    // Issue 14: every param failing used to read as "the spec defines no `params`".
+    const p = parseSpec(withText('format: 1\n', 'format: 1\nparams:\n  b: foo(1)\n', withText('w: 2u', 'w: b')));
+    expect(codes(p.findings)).toEqual(['refused-expression', 'failed-param']);
+    expect(p.findings.map((f) => f.message).join('\n')).not.toContain('defines no');
+    // An unknown name among params that all failed is still suggested from them.
+    const q = parseSpec(withText('format: 1\n', 'format: 1\nparams:\n  wu: foo(1)\n', withText('w: 2u', 'w: wuu')));
+    expect(q.findings.find((f) => f.code === 'unknown-param')?.message).toBe('`w`: `wuu` is not a param; did you mean `wu`?');
   });
 
   test('a syntax error marks the file unparsed', () => {

@@ -1,5 +1,7 @@
 /** Collects spec findings at the narrowest range, once each. Codes: docs/findings.md. */
 import type { Finding, Range, Severity, SpecPath } from '../types';
+import { SPEC_LIMITS } from '../defaults';
+import { mirrorIndexOfPath } from '../mirror-at';
 import type { YamlSourceMap } from './source-map';
 
 /** `mirrors[0].devices.out.w` */
@@ -9,6 +11,18 @@ export function formatPath(path: SpecPath): string {
   return s || '(root)';
 }
 
+/** Findings of one code past the cap: counted, and the first of them kept for the summary. */
+interface Overflow {
+  count: number;
+  severity: Severity;
+  first: { message: string; path: SpecPath; range: Range };
+}
+
+/** Where a finding goes: a range, or 'key' for the key at its path (found only if it is listed). */
+export type At = Range | 'key';
+
+const RANK: Record<Severity, number> = { error: 0, warning: 1, info: 2 };
+
 /**
  * A did-you-mean that can be applied: `word` replaces the token at `range` (quotes kept). The
  * quick fix is made from it only once re-reading the edited text shows the finding gone
@@ -17,46 +31,102 @@ export function formatPath(path: SpecPath): string {
 export interface SpecSuggestion { finding: Finding; range: Range; word: string }
 
 export class FindingSink {
-  readonly list: Finding[] = [];
+  private readonly kept: Finding[] = [];
+  /** Did-you-means of listed findings (one past the cap is only counted, so it has none). */
   readonly suggestions: SpecSuggestion[] = [];
-  private readonly seen = new Set<string>();
+  /** Facts said, by path (JSON): a few per path, so no one huge set of long keys. */
+  private readonly seen = new Map<string, Set<string>>();
+  private readonly perCode = new Map<string, number>();
+  private readonly overflow = new Map<string, Overflow>();
   private errors = 0;
+  private readonly errorMirrors = new Set<number>();
+  private errorOutsideMirrors = false;
 
-  constructor(readonly src: YamlSourceMap) {}
+  constructor(readonly src: YamlSourceMap, private readonly maxPerCode: number = SPEC_LIMITS.maxFindingsPerCode) {}
 
   /**
    * Add a finding. `once` names the fact (e.g. 'missing-key:size'); a second finding with the same
    * fact at the same path is dropped, so the schema and the elaborator never report one thing twice.
+   * Past `maxPerCode` findings of one code the rest are only counted (`more-findings`): a file of
+   * 40 000 unknown keys would otherwise bury the editor and every report in lines.
    */
-  add(severity: Severity, code: string, message: string, path: SpecPath, range?: Range, once?: string): Finding | undefined {
-    const key = `${once ?? code}@${JSON.stringify(path)}`;
-    if (this.seen.has(key)) return undefined;
-    this.seen.add(key);
-    if (severity === 'error') this.errors++;
-    const f: Finding = { severity, code, message, path, range: range ?? this.src.narrow(path) };
-    this.list.push(f);
-    return f;
+  add(severity: Severity, code: string, message: string, path: SpecPath, at?: At, once?: string): Finding | undefined {
+    const p = JSON.stringify(path);
+    const fact = once ?? code;
+    let facts = this.seen.get(p);
+    if (!facts) this.seen.set(p, facts = new Set());
+    else if (facts.has(fact)) return undefined;
+    facts.add(fact);
+    if (severity === 'error') {
+      this.errors++;
+      const mirror = mirrorIndexOfPath(path);
+      if (mirror !== undefined) this.errorMirrors.add(mirror);
+      else this.errorOutsideMirrors = true;
+    }
+    const n = this.perCode.get(code) ?? 0;
+    this.perCode.set(code, n + 1);
+    if (n < this.maxPerCode) {
+      const f: Finding = { severity, code, message, path, range: this.range(path, at) };
+      this.kept.push(f);
+      return f;
+    }
+    const o = this.overflow.get(code);
+    if (o) {
+      o.count++;
+      if (RANK[severity] < RANK[o.severity]) o.severity = severity;
+    } else {
+      this.overflow.set(code, { count: 1, severity, first: { message, path, range: this.range(path, at) } });
+    }
+    return undefined;
   }
 
-  /** An error whose fix is a replacement word for its own token (a did-you-mean), if `word` is given. */
-  error(code: string, message: string, path: SpecPath, range?: Range, once?: string, word?: string): void {
-    const f = this.add('error', code, message, path, range, once);
+  /** An error; with `word`, a did-you-mean whose fix writes `word` over the finding's own token. */
+  error(code: string, message: string, path: SpecPath, at?: At, once?: string, word?: string): void {
+    const f = this.add('error', code, message, path, at, once);
     if (f && word !== undefined) this.suggestions.push({ finding: f, range: f.range, word });
   }
 
-  warning(code: string, message: string, path: SpecPath, range?: Range, once?: string): void {
-    this.add('warning', code, message, path, range, once);
+  warning(code: string, message: string, path: SpecPath, at?: At, once?: string): void {
+    this.add('warning', code, message, path, at, once);
+  }
+
+  private range(path: SpecPath, at: At | undefined): Range {
+    return at === 'key' ? this.src.keyOf(path) : at ?? this.src.narrow(path);
+  }
+
+  /** The findings: at most `maxPerCode` of each code, then one `more-findings` per code that had
+   *  more, at the first one left out. */
+  get list(): Finding[] {
+    const out = [...this.kept];
+    for (const [code, o] of this.overflow) {
+      const noun = o.severity === 'error' ? 'errors' : o.severity === 'warning' ? 'warnings' : 'notes';
+      out.push({
+        severity: o.severity, code: 'more-findings', path: o.first.path, range: o.first.range,
+        message: `${o.count} more \`${code}\` ${noun} are not listed (qpoint lists the first ${this.maxPerCode} of each kind); the next one: ${o.first.message}`,
+      });
+    }
+    return out;
+  }
+
+  /** True while findings of `code` are still listed (below the cap): what is only counted needs
+   *  no costly hint. */
+  listing(code: string): boolean {
+    return (this.perCode.get(code) ?? 0) < this.maxPerCode;
   }
 
   /** True when a finding with this fact (or, without `once`, any finding) was made at path. */
   has(path: SpecPath, once?: string): boolean {
-    const p = JSON.stringify(path);
-    if (once) return this.seen.has(`${once}@${p}`);
-    for (const k of this.seen) if (k.endsWith(`@${p}`)) return true;
-    return false;
+    const facts = this.seen.get(JSON.stringify(path));
+    return facts !== undefined && (once === undefined ? facts.size > 0 : facts.has(once));
   }
 
   get errorCount(): number {
     return this.errors;
+  }
+
+  /** File indices of the mirrors that hold errors (listed or counted), in order; undefined when
+   *  an error lies outside mirrors. */
+  mirrorsInError(): number[] | undefined {
+    return this.errorOutsideMirrors ? undefined : [...this.errorMirrors].sort((a, b) => a - b);
   }
 }

@@ -15,7 +15,7 @@ import { FindingSink, type SpecSuggestion } from './findings';
 import { LineIndex, ZERO_RANGE } from '../text/lines';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
-import { indexOf, mirrorIndexOfPath } from '../mirror-at';
+import { indexOf } from '../mirror-at';
 import type { SourceMap } from './source-map';
 
 export type { SourceMap } from './source-map';
@@ -44,18 +44,6 @@ export function sortSpecFindings(list: Finding[]): Finding[] {
     || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
 }
 
-/** File indices of the mirrors the errors are in, or undefined when any error is outside mirrors. */
-function mirrorsInError(findings: Finding[]): number[] | undefined {
-  const at = new Set<number>();
-  for (const f of findings) {
-    if (f.severity !== 'error') continue;
-    const index = mirrorIndexOfPath(f.path);
-    if (index === undefined) return undefined;
-    at.add(index);
-  }
-  return [...at].sort((a, b) => a - b);
-}
-
 function looksJson(text: string, file?: string): boolean {
   if (file) return /\.json$/i.test(file);
   return /^\s*\{/.test(text) && /\}\s*$/.test(text);
@@ -79,9 +67,10 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     if (sink.suggestions.length > 0) out.suggestions = sink.suggestions;
     if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
     else if (spec !== undefined) {
-      const withheld = mirrorsInError(sink.list);
+      const withheld = sink.mirrorsInError();
       if (withheld) {
-        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !withheld.includes(indexOf(m))) };
+        const setAside = new Set(withheld);
+        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(indexOf(m))) };
         out.withheld = withheld;
       }
     }

@@ -8,7 +8,7 @@ import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';
 import { buildSize, readSizeLayer } from './sizes';
 import type { SizeContext, SizeLayer } from './sizes';
-import { didYouMean, suggestion } from './suggest';
+import { askIf, suggestion } from './suggest';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
@@ -81,7 +81,7 @@ function readDesign(scope: ValueScope, raw: unknown, path: SpecPath): DesignTarg
   if (!d) return undefined;
   const keys = Object.keys(d).filter((k) => ['vov', 'gmid', 'ic'].includes(k));
   if (keys.length !== 1) {
-    scope.sink.error('bad-value', '`design` takes exactly one of vov (V), gmid (1/V), ic', path, scope.sink.src.keyOf(path), 'props');
+    scope.sink.error('bad-value', '`design` takes exactly one of vov (V), gmid (1/V), ic', path, 'key', 'props');
     return undefined;
   }
   const kind = keys[0] as DesignTarget['kind'];
@@ -99,10 +99,11 @@ function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: T
     const at = [...path, role];
     if (!allowed.includes(role)) {
       const shared = bank && KINDS[kind].roles.includes(role);
+      const word = shared ? undefined : suggestion(role, allowed);
       const msg = shared
         ? `\`${role}\` belongs to the shared reference of the bank; set it in the mirror's \`devices\``
-        : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${didYouMean(role, allowed)}`;
-      scope.sink.error('unknown-role', msg, at, scope.sink.src.keyOf(at), undefined, shared ? undefined : suggestion(role, allowed));
+        : `\`${role}\` is not a role of a ${kind} mirror (roles: ${allowed.join(', ')})${askIf(word)}`;
+      scope.sink.error('unknown-role', msg, at, 'key', undefined, word);
       continue;
     }
     const layer = readSizeLayer(scope, d[role], at);
@@ -161,7 +162,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (m.outputs !== undefined && spec.bank) {
     const op = [...path, 'outputs'];
     if (!Array.isArray(m.outputs) || m.outputs.length === 0) {
-      sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, sink.src.keyOf(op), 'type');
+      sink.error(Array.isArray(m.outputs) ? 'bad-value' : 'wrong-type', '`outputs` must be a non-empty list of { name, devices, output, require }', op, 'key', 'type');
     } else {
       const names = new Map<string, number>();
       m.outputs.forEach((item: unknown, j: number) => {
@@ -196,7 +197,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
     if (output) outputs.push({ name: head.name, devices: devs, output, require: mirrorRequire, path });
   }
   if (design && ![...Object.values(devices), ...outputs.flatMap((o) => Object.values(o.devices))].some((d) => d.auto)) {
-    sink.warning('unused-design', '`design` is set but no size is `auto`; it has no effect', [...path, 'design'], sink.src.keyOf([...path, 'design']));
+    sink.warning('unused-design', '`design` is set but no size is `auto`; it has no effect', [...path, 'design'], 'key');
   }
   if (sink.errorCount > before || !input) return undefined;
   const mirror: TemplateMirror = { kind, name: head.name, type: head.type, input, devices, outputs, path };

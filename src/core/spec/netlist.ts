@@ -8,7 +8,7 @@ import { SPEC_LIMITS } from '../defaults';
 import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
 import { readOutput, readRequire } from './mirror';
-import { didYouMean, suggestion } from './suggest';
+import { askIf, suggestion } from './suggest';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
@@ -76,7 +76,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const seen = new Map<string, string>();  // element name → its group, for duplicate-name
   const claim = (group: string, elem: string, at: SpecPath) => {
     const g = seen.get(elem);
-    if (g) sink.error('duplicate-name', `\`${elem}\` is already the name of an entry in \`${g}\`; element names must be unique in a netlist`, at, sink.src.keyOf(at));
+    if (g) sink.error('duplicate-name', `\`${elem}\` is already the name of an entry in \`${g}\`; element names must be unique in a netlist`, at, 'key');
     else seen.set(elem, group);
   };
   const uses: Uses = new Map();
@@ -86,7 +86,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const dp = [...path, 'devices'];
   if (m.devices === undefined) missing(sink, path, 'devices', ' (the MOSFETs by name)');
   const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, d, g, s, b, w, l, m }') ?? {};
-  if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, sink.src.keyOf(dp));
+  if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, 'key');
   for (const dn of Object.keys(dmap)) {
     const at = [...dp, dn];
     claim('devices', dn, at);
@@ -200,7 +200,10 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     if (im.source === undefined) missing(sink, ip, 'source');
     const src = readString(sink, im.source, [...ip, 'source']);
     if (src !== undefined) {
-      if (cmap[src] === undefined) sink.error('unknown-name', `\`${src}\` is not a current source of this netlist${didYouMean(src, Object.keys(cmap))}`, [...ip, 'source'], undefined, undefined, suggestion(src, Object.keys(cmap)));
+      if (cmap[src] === undefined) {
+        const word = suggestion(src, Object.keys(cmap));
+        sink.error('unknown-name', `\`${src}\` is not a current source of this netlist${askIf(word)}`, [...ip, 'source'], undefined, undefined, word);
+      }
       else input = { source: src };
     }
   }
@@ -215,10 +218,14 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
         if (pm[k] === undefined) { missing(sink, pp, k); continue; }
         const n = readString(sink, pm[k], [...pp, k]);
         if (n === undefined) continue;
-        if (dmap[n] === undefined) sink.error('unknown-name', `\`${n}\` is not a device of this netlist${didYouMean(n, Object.keys(dmap))}`, [...pp, k], undefined, undefined, suggestion(n, Object.keys(dmap)));
-        else names[k] = n;
+        if (dmap[n] === undefined) {
+          const word = suggestion(n, Object.keys(dmap));
+          sink.error('unknown-name', `\`${n}\` is not a device of this netlist${askIf(word)}`, [...pp, k], undefined, undefined, word);
+        } else names[k] = n;
       }
-      if (names.ref && names.out) pair = { ref: names.ref, out: names.out };
+      if (names.ref && names.out && names.ref === names.out) {
+        sink.error('bad-value', `\`out\` is \`${names.out}\`, the device already named as \`ref\`; a pair is two devices: the reference and the output it copies to`, [...pp, 'out']);
+      } else if (names.ref && names.out) pair = { ref: names.ref, out: names.out };
     }
   }
 

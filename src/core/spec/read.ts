@@ -3,7 +3,7 @@ import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import { formatPath } from './findings';
 import { isRecord } from './params';
-import { didYouMean, suggestion } from './suggest';
+import { askIf, suggestion } from './suggest';
 import { typeName } from './values';
 
 export type Data = Record<string, unknown>;
@@ -26,19 +26,18 @@ export function readString(sink: FindingSink, raw: unknown, path: SpecPath): str
 export function readEnum<T extends string>(sink: FindingSink, raw: unknown, path: SpecPath, allowed: readonly T[]): T | undefined {
   if (raw === undefined) return undefined;
   if (typeof raw === 'string' && (allowed as readonly string[]).includes(raw)) return raw as T;
-  const dym = typeof raw === 'string' ? didYouMean(raw, allowed) : '';
-  sink.error('bad-value', `\`${formatPath(path)}\` must be one of ${allowed.join(', ')}; got ${typeName(raw)}${dym}`, path, undefined, 'enum',
-    typeof raw === 'string' ? suggestion(raw, allowed) : undefined);
+  const word = typeof raw === 'string' ? suggestion(raw, allowed) : undefined;
+  sink.error('bad-value', `\`${formatPath(path)}\` must be one of ${allowed.join(', ')}; got ${typeName(raw)}${askIf(word)}`, path, undefined, 'enum', word);
   return undefined;
 }
 
 /** A missing-key finding at the parent's key. */
 export function missing(sink: FindingSink, parent: SpecPath, key: string, why = ''): void {
   const where = parent.length ? `\`${formatPath(parent)}\`` : 'the spec';
-  sink.error('missing-key', `${where} is missing \`${key}\`${why}`, parent, sink.src.keyOf(parent), `missing:${key}`);
+  sink.error('missing-key', `${where} is missing \`${key}\`${why}`, parent, 'key', `missing:${key}`);
 }
 
 /** A key that the schema allows somewhere but not in this context (e.g. `vbias` on a simple mirror). */
 export function misplaced(sink: FindingSink, path: SpecPath, message: string): void {
-  sink.error('unknown-key', message, path, sink.src.keyOf(path), 'unknown');
+  sink.error('unknown-key', message, path, 'key', 'unknown');
 }

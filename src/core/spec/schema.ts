@@ -13,8 +13,8 @@ import generatedValidator from './schema-validator.generated';
 import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import { formatPath } from './findings';
-import { didYouMean, suggestion } from './suggest';
-import { typeName } from './values';
+import { askIf, suggestion } from './suggest';
+import { nonFiniteMessage, typeName } from './values';
 
 const validator = generatedValidator as unknown as ValidateFunction;
 
@@ -24,7 +24,7 @@ function toPath(pointer: string, data: unknown): SpecPath {
   const path: SpecPath = [];
   let cur: unknown = data;
   for (const raw of pointer.split('/').slice(1)) {
-    const seg = raw.replace(/~1/g, '/').replace(/~0/g, '~');
+    const seg = raw.includes('~') ? raw.replace(/~1/g, '/').replace(/~0/g, '~') : raw;
     if (Array.isArray(cur)) {
       const i = Number(seg);
       path.push(i);
@@ -45,10 +45,17 @@ function valueAt(data: unknown, path: SpecPath): unknown {
 
 interface SchemaNode { properties?: Record<string, { description?: string }>; description?: string }
 
+const hints = new Map<string, string>();
+
 function shortHint(d: string | undefined): string {
   if (!d) return '';
-  const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
-  return s.length <= 70 ? ` (${s})` : '';
+  let hint = hints.get(d);
+  if (hint === undefined) {
+    const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
+    hint = s.length <= 70 ? ` (${s})` : '';
+    hints.set(d, hint);  // one per schema description: bounded
+  }
+  return hint;
 }
 
 function where(path: SpecPath): string {
@@ -89,22 +96,29 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
     case 'additionalProperties': {
       const key = String(p.additionalProperty);
       const known = Object.keys(parent?.properties ?? {});
-      const hint = didYouMean(key, known) || (known.length && known.length <= 16 ? `; expected one of ${known.join(', ')}` : '');
+      const word = suggestion(key, known);
+      const hint = askIf(word) || (known.length && known.length <= 16 ? `; expected one of ${known.join(', ')}` : '');
       const at = [...path, key];
-      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, sink.src.keyOf(at), 'unknown', suggestion(key, known));
+      sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, 'key', 'unknown', word);
       return;
     }
     case 'required': {
       const missing = String(p.missingProperty);
       const hint = shortHint(parent?.properties?.[missing]?.description);
-      sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, sink.src.keyOf(path), `missing:${missing}`);
+      sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, 'key', `missing:${missing}`);
       return;
     }
     case 'type':
+      // JSON Schema's numbers are finite: `.nan` and `.inf` are numbers of the wrong value, said
+      // once, as the elaborator says it (the same fact, so it is not said twice).
+      if (typeof value === 'number' && !Number.isFinite(value) && /number|integer/.test(String(p.type))) {
+        sink.error('bad-value', nonFiniteMessage(path, value), path, undefined, 'type');
+        return;
+      }
       sink.error('wrong-type', `${name} must be ${typeWords(p.type)}; got ${typeName(value)}`, path, undefined, 'type');
       return;
     case 'false schema':
-      sink.error('unknown-key', `${name} does not belong here`, path, sink.src.keyOf(path), 'unknown');
+      sink.error('unknown-key', `${name} does not belong here`, path, 'key', 'unknown');
       return;
   }
   if (sink.has(path, 'type')) return;
@@ -112,9 +126,8 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
     case 'enum': {
       const allowed = (p.allowedValues as unknown[]).map(String);
       const got = typeName(value);
-      const dym = typeof value === 'string' ? didYouMean(value, allowed) : '';
-      sink.error('bad-value', `${name} must be one of ${allowed.join(', ')}; got ${got}${dym}`, path, undefined, 'enum',
-        typeof value === 'string' ? suggestion(value, allowed) : undefined);
+      const word = typeof value === 'string' ? suggestion(value, allowed) : undefined;
+      sink.error('bad-value', `${name} must be one of ${allowed.join(', ')}; got ${got}${askIf(word)}`, path, undefined, 'enum', word);
       return;
     }
     case 'pattern':

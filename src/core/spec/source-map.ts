@@ -34,6 +34,12 @@ export interface Located {
 
 type Span = [number, number];
 
+interface KeyIndex {
+  pairs: Map<string, Pair>;
+  /** `<<` pairs, in file order. */
+  merges: Pair[];
+}
+
 function span(n: unknown): Span | undefined {
   const r = (n as { range?: [number, number, number] } | null)?.range;
   return r ? [r[0], r[1]] : undefined;
@@ -57,13 +63,30 @@ export class YamlSourceMap implements SourceMap {
     return isAlias(n) ? this.deref(n.resolve(this.doc), depth + 1) : n;
   }
 
+  /** Pairs by key text per mapping, built on a mapping's first lookup: a spec with 40 000 keys
+   *  gets 40 000 findings, and a scan of the mapping per finding would be quadratic. */
+  private readonly keyed = new WeakMap<YAMLMap, KeyIndex>();
+
+  private indexOf(map: YAMLMap): KeyIndex {
+    let ix = this.keyed.get(map);
+    if (ix) return ix;
+    ix = { pairs: new Map(), merges: [] };
+    for (const p of map.items) {
+      const k = keyText(p.key);
+      if (k === undefined) continue;
+      ix.pairs.set(k, p);  // the last pair of a key wins, as in the data
+      if (k === '<<') ix.merges.push(p);
+    }
+    this.keyed.set(map, ix);
+    return ix;
+  }
+
   /** The last pair for key in map, following `<<` merge sources (own keys win). */
   private findPair(map: YAMLMap, key: string, depth = 0): Pair | undefined {
-    let found: Pair | undefined;
-    for (const p of map.items) if (keyText(p.key) === key) found = p;
+    const ix = this.indexOf(map);
+    const found = ix.pairs.get(key);
     if (found || depth > 20) return found;
-    for (const p of map.items) {
-      if (keyText(p.key) !== '<<') continue;
+    for (const p of ix.merges) {
       const v = this.deref(p.value);
       const sources = isSeq(v) ? v.items.map((x) => this.deref(x)) : [v];
       for (const s of sources) {

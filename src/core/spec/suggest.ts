@@ -21,13 +21,20 @@ export function editDistance(a: string, b: string): number {
   return prev[n];
 }
 
+/** Candidates compared at most: a spec of 40 000 params must not cost 40 000 comparisons for each
+ *  unknown name (a designer's spec has tens). */
+export const MAX_SUGGEST_CANDIDATES = 500;
+
 /** The closest candidate within a length-dependent distance, or undefined. */
 export function closest(word: string, candidates: Iterable<string>): string | undefined {
   const w = word.toLowerCase();
   const limit = w.length <= 3 ? 1 : w.length <= 6 ? 2 : 3;
   let best: string | undefined;
   let bestD = Infinity;
+  let seen = 0;
   for (const c of candidates) {
+    if (++seen > MAX_SUGGEST_CANDIDATES) break;
+    if (Math.abs(c.length - w.length) > limit) continue;  // the distance is at least that
     const d = editDistance(w, c.toLowerCase());
     if (d < bestD && d <= limit && d < w.length) {
       best = c;
@@ -39,8 +46,12 @@ export function closest(word: string, candidates: Iterable<string>): string | un
 
 /** " — did you mean `x`?" or "". */
 export function didYouMean(word: string, candidates: Iterable<string>): string {
-  const c = suggestion(word, candidates);
-  return c !== undefined ? `; did you mean \`${c}\`?` : '';
+  return askIf(suggestion(word, candidates));
+}
+
+/** The words of a suggestion already found ("; did you mean `x`?"), or "" without one. */
+export function askIf(word: string | undefined): string {
+  return word !== undefined ? `; did you mean \`${word}\`?` : '';
 }
 
 /** The word a did-you-mean proposes (never the word itself), or undefined. */

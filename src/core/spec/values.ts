@@ -9,7 +9,7 @@ import type { Quantity } from '../units/si';
 import { prefixExponent } from '../units/prefixes';
 import { evaluateExpression } from './expression';
 import type { FindingSink } from './findings';
-import { didYouMean, suggestion } from './suggest';
+import { askIf, suggestion } from './suggest';
 
 export interface ValueScope {
   sink: FindingSink;
@@ -17,6 +17,8 @@ export interface ValueScope {
   params: ReadonlyMap<string, number>;
   /** Params written with a unit, by the quantity of that unit (to check bare references). */
   paramQuantities: ReadonlyMap<string, Quantity>;
+  /** Params the spec defines that have no value: an error of their own, a loop, or a param they use. */
+  failedParams?: ReadonlySet<string>;
 }
 
 export interface ValueOptions {
@@ -45,6 +47,11 @@ export function fieldName(path: SpecPath): string {
   return 'value';
 }
 
+/** `.nan`, `.inf`: one message wherever it is found (schema or elaborator), so the fact is said once. */
+export function nonFiniteMessage(path: SpecPath, value: number): string {
+  return `\`${fieldName(path)}\` must be a finite number; got ${String(value)}`;
+}
+
 /** Read a value; findings go to scope.sink. Undefined when the value is unusable. */
 export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q: Quantity, opts: ValueOptions = {}): number | 'auto' | undefined {
   const field = fieldName(path);
@@ -52,7 +59,7 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
   let value: number;
   if (typeof raw === 'number') {
     if (!Number.isFinite(raw)) {
-      sink.error('bad-value', `\`${field}\` must be a finite number; got ${String(raw)}`, path);
+      sink.error('bad-value', nonFiniteMessage(path, raw), path, undefined, 'type');
       return undefined;
     }
     value = raw;
@@ -71,11 +78,17 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
       if (!r.ok) {
         const lead = raw.length - raw.trimStart().length;
         const range = r.start !== undefined && r.end !== undefined ? sink.src.within(path, r.start + lead, r.end + lead) : undefined;
-        const extra = r.code === 'unknown-param' && r.name ? didYouMean(r.name, scope.params.keys()) : '';
-        const known = r.code === 'unknown-param' && scope.params.size === 0 ? ' (the spec defines no `params`)' : '';
-        // The name is replaced only where the source spells it verbatim (range found).
-        const word = r.code === 'unknown-param' && r.name && range ? suggestion(r.name, scope.params.keys()) : undefined;
-        sink.error(r.code, `\`${field}\`: ${r.message}${extra}${known}`, path, range, undefined, word);
+        const failed = scope.failedParams ?? new Set<string>();
+        if (r.code === 'unknown-param' && r.name !== undefined && failed.has(r.name)) {
+          sink.error('failed-param', `\`${field}\`: param \`${r.name}\` has no value (see its own finding under \`params\`)`, path, range);
+          return undefined;
+        }
+        const defined = scope.params.size + failed.size;
+        // A suggestion only where the finding is listed: past the cap it would be counted only.
+        const word = r.code === 'unknown-param' && r.name && sink.listing(r.code) ? suggestion(r.name, paramNames(scope)) : undefined;
+        const known = r.code === 'unknown-param' && defined === 0 ? ' (the spec defines no `params`)' : '';
+        // The fix replaces the name only where the source spells it verbatim (range found).
+        sink.error(r.code, `\`${field}\`: ${r.message}${askIf(word)}${known}`, path, range, undefined, range ? word : undefined);
         return undefined;
       }
       value = r.value;
@@ -117,6 +130,12 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
 export function resolveNumber(scope: ValueScope, raw: unknown, path: SpecPath, q: Quantity, opts: Omit<ValueOptions, 'auto'> = {}): number | undefined {
   const v = resolveValue(scope, raw, path, q, opts);
   return typeof v === 'number' ? v : undefined;
+}
+
+/** Every param the spec defines, with or without a value. */
+function* paramNames(scope: ValueScope): Iterable<string> {
+  yield* scope.params.keys();
+  if (scope.failedParams) yield* scope.failedParams;
 }
 
 const EXAMPLES: Record<Quantity, string> = {
