@@ -12,22 +12,14 @@
  *   input current flow — there is no operating point, and the sweep must say so at those points
  *   (and only those), never print a figure there.
  */
-import { beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { build } from 'esbuild';
+import { ROOT, useCli } from './harness';
 
-const ROOT = join(__dirname, '..', '..');
-const OUT = mkdtempSync(join(tmpdir(), 'qpoint-cli-sweep-'));
-const CLI = join(OUT, 'cli.js');
 const RAZAVI = readFileSync(join(ROOT, 'test/cli/fixtures/razavi-d.bias.yaml'), 'utf8');
 
-function qpoint(args: string[], input: string): { code: number; stdout: string; stderr: string } {
-  const r = spawnSync(process.execPath, [CLI, ...args], { cwd: ROOT, input, encoding: 'utf8', timeout: 60_000 });
-  return { code: r.status ?? -1, stdout: r.stdout, stderr: r.stderr };
-}
+const qpoint = useCli('sweep');
 
 function csvRows(stdout: string): { vout: string; iout: number; rout: number; converged: string }[] {
   const [head, ...lines] = stdout.trim().split('\n');
@@ -37,11 +29,6 @@ function csvRows(stdout: string): { vout: string; iout: number; rout: number; co
     return { vout: vout!, iout: Number(iout), rout: Number(rout), converged: converged! };
   });
 }
-
-beforeAll(async () => {
-  await build({ entryPoints: { cli: join(ROOT, 'src/cli/main.ts') }, bundle: true, outdir: OUT, logLevel: 'error',
-    platform: 'node', format: 'cjs', target: 'node20' });
-}, 120_000);
 
 describe('sweep uses the same resolved spec as check', () => {
   const AUTO = RAZAVI.replace('    size: { w: 10u, l: 1u }', '    size: auto\n    design: { vov: 0.2 }\n    devices: { out: { m: 4 } }');

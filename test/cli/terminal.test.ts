@@ -9,27 +9,14 @@
  * - A byte-order mark is not a column (Unicode 15 §23.8): line 1 reads the same with and without
  *   one, in the text format (1-based columns), JSON (0-based LSP positions) and SARIF (1-based).
  */
-import { beforeAll, describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { build } from 'esbuild';
+import { ROOT, useCli } from './harness';
 
-const ROOT = join(__dirname, '..', '..');
-const OUT = mkdtempSync(join(tmpdir(), 'qpoint-cli-terminal-'));
-const CLI = join(OUT, 'cli.js');
 const RAZAVI = readFileSync(join(ROOT, 'test/cli/fixtures/razavi-d.bias.yaml'), 'utf8');
 
-function qpoint(args: string[], input: string): { code: number; stdout: string; stderr: string } {
-  const r = spawnSync(process.execPath, [CLI, ...args], { cwd: ROOT, input, encoding: 'utf8', timeout: 60_000 });
-  return { code: r.status ?? -1, stdout: r.stdout, stderr: r.stderr };
-}
-
-beforeAll(async () => {
-  await build({ entryPoints: { cli: join(ROOT, 'src/cli/main.ts') }, bundle: true, outdir: OUT, logLevel: 'error',
-    platform: 'node', format: 'cjs', target: 'node20' });
-}, 120_000);
+const qpoint = useCli('terminal');
 
 // C0 controls other than LF (the line break the CLI itself writes), DEL and C1.
 // eslint-disable-next-line no-control-regex -- control characters are what this test looks for
