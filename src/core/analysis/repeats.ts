@@ -6,9 +6,15 @@
  * with its own identity. A bank's output names stay in the key: they name its devices.
  * The copy shares the first report's devices, nodes and curve: reports are values that nothing
  * changes after analysis.
+ *
+ * The same holds from one analysis to the next (the editor analyses the file on every
+ * keystroke): a `SolvedUnits` store, kept by the caller, holds each solve unit's report under
+ * its circuit and everything its solve reads besides (process, supplies, limits: `solveContext`),
+ * so an unchanged mirror is not solved again. Entries an analysis did not use are dropped after
+ * it (`sweep`), so the store holds one file's worth.
  */
 import { isBank } from '../circuit/templates';
-import type { MirrorReport, ResolvedMirror } from '../types';
+import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { reportIdentity, type ReportIdentity } from './measure';
 import type { MirrorContext } from './index';
 
@@ -22,19 +28,71 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
   return `${outputIndex}|${curve ? 1 : 0}|${JSON.stringify(what)}`;
 }
 
-export class RepeatedMirrors {
-  private readonly solved = new Map<string, MirrorReport>();
+/**
+ * What a mirror's solve reads besides the mirror itself (analysis/, circuit/ and models/ read
+ * nothing else of the spec): two mirrors with one circuit and one context have one report.
+ */
+export function solveContext(spec: ResolvedSpec): string {
+  return JSON.stringify([spec.process, spec.supplies, spec.limits]);
+}
 
-  constructor(private readonly curve: boolean) {}
+/** Solved reports kept across analyses of one file, by solve unit (see above). */
+export class SolvedUnits {
+  private readonly solved = new Map<string, { report: MirrorReport; used: number }>();
+  private generation = 0;
+  /** Of the last analysis: reports solved, and reports read back. */
+  solvedNow = 0;
+  reusedNow = 0;
+
+  /** Starts an analysis: what it does not use is dropped by the next `sweep`. */
+  begin(): void {
+    this.generation++;
+    this.solvedNow = 0;
+    this.reusedNow = 0;
+  }
+
+  get(key: string): MirrorReport | undefined {
+    const e = this.solved.get(key);
+    if (!e) return undefined;
+    e.used = this.generation;
+    this.reusedNow++;
+    return e.report;
+  }
+
+  set(key: string, report: MirrorReport): void {
+    this.solvedNow++;
+    this.solved.set(key, { report, used: this.generation });
+  }
+
+  /** Drops every report the last analysis did not use. */
+  sweep(): void {
+    for (const [k, e] of this.solved) if (e.used !== this.generation) this.solved.delete(k);
+  }
+
+  get size(): number {
+    return this.solved.size;
+  }
+}
+
+export class RepeatedMirrors {
+  private readonly solved: Map<string, MirrorReport> | SolvedUnits;
+  private readonly context: string;
+
+  /** `units`: the store kept across analyses (the spec's solve context joins each key). */
+  constructor(private readonly curve: boolean, spec?: ResolvedSpec, units?: SolvedUnits) {
+    this.solved = units ?? new Map<string, MirrorReport>();
+    this.context = units && spec ? `${solveContext(spec)}|` : '';
+  }
 
   /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after. */
   report(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
-    const key = circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    const key = this.context + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
     const known = this.solved.get(key);
     if (!known) {
       const r = measure();
       this.solved.set(key, r);
-      return r;
+      // The stored report is never handed out itself: the next analysis copies it.
+      return this.solved instanceof SolvedUnits ? withIdentity({ ...r }, reportIdentity(ctx)) : r;
     }
     return withIdentity({ ...known }, reportIdentity(ctx));
   }
