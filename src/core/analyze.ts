@@ -68,7 +68,7 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks }),
+      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units }),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {

@@ -10,7 +10,8 @@ import type { Draft, FixPlan, RuleContext } from './model';
 import { keyPath } from './model';
 import { isAutoSized, siteOf, type Site } from './sites';
 import { MirrorFragments, sharesValues } from '../spec/fragment';
-import { accepts, recheck, recheckContext, type Baseline, type Recheck, type Rechecks } from './verify';
+import { accepts, recheck, recheckContext, type Baseline, type Recheck, type Rechecks, type RecheckStore } from './verify';
+import type { SolvedUnits } from '../analysis/repeats';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
@@ -40,6 +41,8 @@ export interface RulesOptions {
   reread?: 'local' | 'whole-file';
   /** Local re-check results kept from earlier analyses of this file (the editor's worker). */
   rechecks?: Rechecks;
+  /** Solved reports kept from earlier analyses (a process fix re-solves every mirror). */
+  units?: SolvedUnits;
 }
 
 const DEFAULT_RECHECKS = 120;
@@ -47,7 +50,7 @@ const DEFAULT_BUDGET_MS = 4000;
 
 interface Budget {
   /** Where local re-checks are kept across analyses, with this file's context (verify.ts). */
-  store?: { rechecks: Rechecks; context: string };
+  store?: RecheckStore;
   left: number;
   deadline: number;
   now: () => number;
@@ -125,7 +128,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
       left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
       widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m)))),
     };
-    if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc) };
+    if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units };
     return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {
     return [];

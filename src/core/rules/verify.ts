@@ -22,6 +22,7 @@ import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
+import type { SolvedUnits } from '../analysis/repeats';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
 import { applyEdits } from '../text/edits';
@@ -60,6 +61,14 @@ export interface Untrusted { untrusted: string; ic: number }
 export interface Found { key: string; error: boolean; mirrorIndex: number }
 
 export type Recheck = Found[] | Untrusted | undefined;
+
+/** What re-checks may keep across analyses of one file: local re-checks, and solved reports. */
+export interface RecheckStore {
+  rechecks: Rechecks;
+  /** recheckContext of the file being analysed. */
+  context: string;
+  units?: SolvedUnits;
+}
 
 /** Local re-check results kept across analyses of one file; entries one analysis did not use are
  *  dropped after it (`sweep`). */
@@ -119,7 +128,7 @@ function found(drafts: Draft[]): Found[] {
  * law no longer holds for a device the fix moved (rules/trust.ts), or undefined when the text no
  * longer parses cleanly.
  */
-export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect, store?: { rechecks: Rechecks; context: string }): Recheck {
+export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect, store?: RecheckStore): Recheck {
   try {
     const key = store && localKey(rc, plan, store.context);
     const kept = key === undefined ? undefined : store!.rechecks.get(key);
@@ -127,7 +136,7 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
     const text = applyEdits(rc.parsed.text, plan.edits);
     const local = !kept && rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
     if (key !== undefined && !kept) store!.rechecks.set(key, local === WHOLE ? 'whole' : local);
-    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
+    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect, store?.units) : local;
   } catch {
     return undefined;
   }
@@ -159,7 +168,7 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
   return d ? { untrusted: d.name, ic: d.ic } : undefined;
 }
 
-function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
+function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, units?: SolvedUnits): Recheck {
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
   const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
@@ -167,7 +176,8 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
   if (spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
+  // A process edit (the EKV fix) solves every mirror in the new process: kept by solve unit too.
+  const reports = plan.scope === 'spec' ? analyzeSpec(spec, { units }) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
   return trusted(rc, spec, reports) ?? found(detect({ ...rc, parsed, spec, reports, quick: true }));
 }
