@@ -10,8 +10,9 @@
  * The same holds from one analysis to the next (the editor analyses the file on every
  * keystroke): a `SolvedUnits` store, kept by the caller, holds each solve unit's report under
  * its circuit and everything its solve reads besides (process, supplies, limits: `solveContext`),
- * so an unchanged mirror is not solved again. Entries an analysis did not use are dropped after
- * it (`sweep`), so the store holds one file's worth.
+ * so an unchanged mirror is not solved again (one whose solve needed a fallback is: its time
+ * budget, not its circuit, may have decided the result). Entries an analysis did not use are dropped after it (`sweep`), so the store
+ * holds one file's worth.
  */
 import { isBank } from '../circuit/templates';
 import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
@@ -90,12 +91,27 @@ export class RepeatedMirrors {
     const known = this.solved.get(key);
     if (!known) {
       const r = measure();
-      this.solved.set(key, r);
-      // The stored report is never handed out itself: the next analysis copies it.
-      return this.solved instanceof SolvedUnits ? withIdentity({ ...r }, reportIdentity(ctx)) : r;
+      if (!(this.solved instanceof SolvedUnits)) {
+        this.solved.set(key, r);
+        return r;
+      }
+      // Kept for later analyses only when its clock could not matter (`clockFree`). The stored
+      // report is never handed out itself: the next analysis copies it.
+      if (clockFree(r)) this.solved.set(key, r);
+      return withIdentity({ ...r }, reportIdentity(ctx));
     }
     return withIdentity({ ...known }, reportIdentity(ctx));
   }
+}
+
+/**
+ * True when the report's operating point came from the plain Newton solve, which ends by its
+ * iteration count alone. The fallbacks after it (source and gmin stepping) run against the solve's
+ * time budget (circuit/newton.ts): what they give depends on the clock, so it is not kept for
+ * another analysis (which would then differ from a fresh one).
+ */
+export function clockFree(r: MirrorReport): boolean {
+  return r.converged && r.solveNote === undefined;
 }
 
 function withIdentity(r: MirrorReport, id: ReportIdentity): MirrorReport {

@@ -22,7 +22,7 @@ import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
-import type { SolvedUnits } from '../analysis/repeats';
+import { clockFree, type SolvedUnits } from '../analysis/repeats';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
 import { applyEdits } from '../text/edits';
@@ -134,8 +134,9 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
     const kept = key === undefined ? undefined : store!.rechecks.get(key);
     if (kept && kept.found !== 'whole') return kept.found;
     const text = applyEdits(rc.parsed.text, plan.edits);
-    const local = !kept && rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
-    if (key !== undefined && !kept) store!.rechecks.set(key, local === WHOLE ? 'whole' : local);
+    const solved = { clockFree: true };
+    const local = !kept && rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect, solved) : WHOLE;
+    if (key !== undefined && !kept && solved.clockFree) store!.rechecks.set(key, local === WHOLE ? 'whole' : local);
     return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect, store?.units) : local;
   } catch {
     return undefined;
@@ -189,7 +190,7 @@ const WHOLE = Symbol('re-read the whole text');
  * spec had no error (it has a resolved spec), so the edited one is usable exactly when reading
  * the edited mirror adds none.
  */
-function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect): Recheck | typeof WHOLE {
+function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect, solved: { clockFree: boolean }): Recheck | typeof WHOLE {
   const frags = rc.fragments;
   const i = plan.mirrorIndex;
   const data = rc.parsed.data;
@@ -210,6 +211,8 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const spec = applyDesignTargets({ ...read, limits: rc.spec.limits }, i).spec;
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
+  // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).
+  solved.clockFree = reports.every(clockFree);
   const untrusted = trusted(rc, spec, reports);
   if (untrusted) return untrusted;
   const lineDelta = addedLines(rc.parsed.text, plan.edits);
