@@ -92,7 +92,8 @@ export function buildTemplate(
 
   const input = kind.inputNode;
   let iin: (v: Float64Array) => number;
-  if (m.input.kind === 'current') {
+  if (m.input.kind === 'current' || m.input.kind === 'link') {
+    // A linked input measured alone is the current that arrives (network/ solves it).
     const i = m.input.i;
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
@@ -122,7 +123,7 @@ export function buildTemplate(
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
     const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
-    if (m.input.kind === 'current') {
+    if (m.input.kind === 'current' || m.input.kind === 'link') {
       solveFor(m.input.i);
     } else {
       // Bisection on the input current: I·R = span − u_in(I).
