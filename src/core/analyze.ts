@@ -16,6 +16,7 @@ import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
 import { mirrorAt } from './mirror-at';
+import { attachNetworks } from './network/report';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -50,7 +51,8 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
     }
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
-    const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
+    const net = attachNetworks(spec, solved);
+    const mirrors: MirrorReport[] = attachVariation(spec, net.reports, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     let findings: Finding[] = [
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
@@ -68,6 +70,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       limits: { error: spec.limits.error, margin: spec.limits.margin },
     };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
+    if (net.networks.length > 0) report.networks = net.networks;
     return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.

@@ -82,6 +82,7 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
   }
   // Cycles: follow each chain upwards; one that comes back to its start is a loop (each member
   // of it gets the finding at its own `from`).
+  const looped: number[] = [];
   for (const m of mirrors) {
     const start = m.path[1] as number;
     const seen = new Set<number>();
@@ -90,7 +91,7 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
     while (at !== undefined && !seen.has(at) && !bad.has(at)) {
       if (at === start) {
         sink.error('link-cycle', `links close a loop: ${[...names, m.name].join(' ← ')}; a bias network is a tree fed from one root`, fromPath(m));
-        bad.add(start);
+        looped.push(start);
         break;
       }
       seen.add(at);
@@ -98,6 +99,7 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
       at = upstreamOf(byIndex, at);
     }
   }
+  for (const i of looped) bad.add(i);
   // A mirror fed (directly or not) by one that has errors cannot be solved yet.
   const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
   for (let k = 0; k < items.length; k++) if (!byIndex.has(k)) bad.add(k);

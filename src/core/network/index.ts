@@ -1,0 +1,130 @@
+/**
+ * Bias networks (design §9): every connected group of linked mirrors is solved as one circuit
+ * (joint.ts); then each member is handed on as the mirror it is at that solution — its input the
+ * current that arrives, each linked output held at the solved node voltage — so every later step
+ * (measurements, rules and their fixes, corners, the CLI's sweep) sees the operating point of the
+ * whole network, and measures each mirror's own figures (rout, compliance, sigma) there.
+ *
+ * `provisionalLinks` gives each linked input its intended current before design targets size
+ * anything; `solveNetworks` solves the groups and records them in `spec.networks`.
+ */
+import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
+import { solveMirror } from '../analysis/solve';
+import { deviceSigmas } from '../circuit/elements/device';
+import { outputAdjoint, outputSensitivities } from '../circuit/smallSignal';
+import { indexOf, mirrorAt } from '../mirror-at';
+import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
+import { buildJoint, key, outputCurrentOf, type JointCircuit } from './joint';
+import type { PerturbationLike } from '../circuit/templates';
+
+function templateAt(spec: ResolvedSpec) {
+  return (i: number): TemplateMirror | undefined => {
+    const m = mirrorAt(spec, i);
+    return m && m.kind !== 'netlist' ? m : undefined;
+  };
+}
+
+/** Replace mirrors by file index (new spec and mirror objects; the input is not changed). */
+function withMirrors(spec: ResolvedSpec, changed: Map<number, TemplateMirror>, networks?: SolvedNetwork[]): ResolvedSpec {
+  const mirrors: ResolvedMirror[] = spec.mirrors.map((m) => changed.get(indexOf(m)) ?? m);
+  const out: ResolvedSpec = { ...spec, mirrors };
+  if (networks) out.networks = networks;
+  return out;
+}
+
+/** Each linked input's current set to its intended value (root current × ideal ratios). */
+export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
+  const changed = new Map<number, TemplateMirror>();
+  const at = templateAt(spec);
+  for (const g of groups) {
+    const rin = g.root.input;
+    const { vdd, vss } = spec.supplies;
+    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.i;
+    for (const [i, cur] of intendedInputs(g, i0, at)) {
+      const m = at(i);
+      if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });
+    }
+  }
+  return withMirrors(spec, changed);
+}
+
+/** Solve every group of `spec` and hand on its members at the solution; `spec.networks` then
+ *  describes each group. A spec without links comes back unchanged. */
+export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): ResolvedSpec {
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
+  const changed = new Map<number, TemplateMirror>();
+  const networks: SolvedNetwork[] = [];
+  for (const g of groups) {
+    const j = buildJoint(spec, g, perturb);
+    const r = solveMirror(j.mc);
+    const net = describe(spec, g, j, r.converged);
+    if (r.note) net.solveNote = r.note;
+    networks.push(net);
+    if (!r.converged) continue;
+    for (const mem of j.members) {
+      const m = mem.mirror;
+      const outputs = m.outputs.map((o, k) => {
+        const v = net.outputs[key(mem.index, k)]?.v;
+        return v === undefined ? o : { ...o, output: { ...o.output, v } };
+      });
+      const input = m.input.kind === 'link' ? { ...m.input, i: net.outputs[key(m.input.mirror, m.input.output)]!.i } : m.input;
+      changed.set(mem.index, { ...m, input, outputs });
+    }
+  }
+  return withMirrors(spec, changed, networks);
+}
+
+/** The network's figures at the joint solution (design §9.3). */
+function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean): SolvedNetwork {
+  const { ws, circuit: c } = j.mc;
+  const outputs: Record<string, SolvedNetworkOutput> = {};
+  for (const [k, node] of j.linkNode) outputs[k] = { i: outputCurrentOf(j, k), v: ws.v[node]! };
+  // Leaf outputs: iout from the held node; chainSigma from the joint adjoint over the devices of
+  // every mirror on the path from the root.
+  const parentOf = (i: number): number | undefined => g.parent.get(i)?.mirror;
+  const saved = { node: c.outNode, sign: c.outSign };
+  let toVdd = 0, toVss = 0;
+  for (const mem of j.members) {
+    mem.mirror.outputs.forEach((_, o) => {
+      const k = key(mem.index, o);
+      const node = j.leafNode.get(k);
+      if (node === undefined) return;
+      const iout = mem.sign * ws.F[node]!;
+      const out: SolvedNetworkOutput = { i: iout };
+      // A leaf's current flows through its load between the rails.
+      if (mem.sign > 0) toVdd += iout; else toVss += iout;
+      if (converged) {
+        const path = new Set<number>();
+        for (let at: number | undefined = mem.index; at !== undefined; at = parentOf(at)) path.add(at);
+        c.outNode = node; c.outSign = mem.sign;
+        const lam = outputAdjoint(c, ws);
+        if (lam) {
+          const sens = outputSensitivities(c, ws, lam);
+          let sum = 0, any = false;
+          for (const p of j.members) {
+            if (!path.has(p.index)) continue;
+            for (let d = p.first; d < p.first + p.wired.deviceNames.length; d++) {
+              const s = deviceSigmas(c.devices[d]!);
+              if (!s) continue;
+              any = true;
+              const a = sens.vt[d]! / iout, b = sens.beta[d]! / iout;
+              sum += a * a * s[0] * s[0] + b * b * s[1] * s[1];
+            }
+          }
+          if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);
+        }
+      }
+      outputs[k] = out;
+    });
+  }
+  c.outNode = saved.node; c.outSign = saved.sign;
+  const { vdd, vss } = spec.supplies;
+  const supplyCurrent = { vdd: ws.F[j.vddNode]! + toVdd, vss: -ws.F[j.vssNode]! + toVss };
+  return {
+    root: indexOf(g.root), members: g.members.map(indexOf), converged,
+    rootCurrent: j.rootCurrent(), supplyCurrent, power: (vdd - vss) * 0.5 * (supplyCurrent.vdd + supplyCurrent.vss), outputs,
+  };
+}
