@@ -18,6 +18,7 @@ import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
+import { carryLinks } from '../network/index';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -108,15 +109,15 @@ export class Rechecks {
 
 /**
  * Everything outside the mirror items that a local re-check reads: the data beside `mirrors`,
- * the resolved process, supplies, limits and params, every mirror's name, kind and polarities
+ * the resolved process, supplies, limits and params, the solved networks, every mirror's name, kind and polarities
  * (elaboration checks names and the polarities the process must describe), the file's kind.
  */
 export function recheckContext(rc: RuleContext): string {
   const data = rc.parsed.data;
   const root = isRecord(data) ? { ...data, mirrors: undefined } : undefined;
   const mirrors = rc.spec.mirrors.map((m) => [m.name, m.kind, m.kind === 'netlist' ? m.devices.map((d) => d.type) : m.type]);
-  const { process, supplies, limits, params } = rc.spec;
-  return JSON.stringify([root, process, supplies, limits, params, mirrors, rc.json, rc.file]);
+  const { process, supplies, limits, params, networks } = rc.spec;
+  return JSON.stringify([root, process, supplies, limits, params, networks ?? null, mirrors, rc.json, rc.file]);
 }
 
 function found(drafts: Draft[]): Found[] {
@@ -152,7 +153,10 @@ function localKey(rc: RuleContext, plan: FixPlan, context: string): string | und
   const frags = rc.fragments;
   if (!frags || plan.scope !== 'mirror' || !localPossible(rc) || !frags.holds(plan.mirrorIndex, plan.edits)) return undefined;
   const item = frags.itemTexts(plan.mirrorIndex, plan.edits);
-  return item && `${plan.mirrorIndex}\u0000${item.original}\u0000${item.edited}\u0000${context}`;
+  // The mirror as resolved: in a network it carries what the joint solve handed it (the current
+  // that arrives, its linked outputs' voltages), which the re-check keeps (carryLinks).
+  const resolved = JSON.stringify(mirrorAt(rc.spec, plan.mirrorIndex) ?? null);
+  return item && `${plan.mirrorIndex}\u0000${item.original}\u0000${item.edited}\u0000${resolved}\u0000${context}`;
 }
 
 /** The original spec reads without error and its data lists every mirror: the preconditions of a local re-read. */
@@ -208,7 +212,9 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const spec = applyDesignTargets({ ...read, limits: rc.spec.limits }, i).spec;
+  // A linked mirror is re-checked as it was measured: with the current that arrives and its
+  // linked outputs at their solved voltages (the link fixes of network/ re-solve the network).
+  const spec = applyDesignTargets(carryLinks({ ...read, limits: rc.spec.limits }, rc.spec, i), i).spec;
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).
