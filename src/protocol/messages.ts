@@ -150,7 +150,7 @@ function isRequirements(v: unknown): v is Requirements {
 }
 
 const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iin', 'iout', 'ratio', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
-const MIRROR_OPTIONAL_NUMBERS = ['ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias'] as const;
+const MIRROR_OPTIONAL_NUMBERS = ['ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias', 'intended', 'chainError', 'chainSigma', 'linkV', 'headroom'] as const;
 
 export function isMirrorReport(v: unknown): v is MirrorReport {
   return isRecord(v) && isString(v.name) && isString(v.mirror) && optional(v.output, isString) &&
@@ -158,6 +158,7 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     MIRROR_NUMBERS.every((k) => isNumber(v[k])) &&
     MIRROR_OPTIONAL_NUMBERS.every((k) => optional(v[k], isNumber)) &&
     optional(v.solveNote, isString) && optional(v.vbiasPicked, isBoolean) &&
+    optional(v.feeds, isString) && optional(v.fedBy, isString) && optional(v.network, isString) &&
     optional(v.noCompliance, (c) => isRecord(c) && isString(c.device)) &&
     optional(v.beyondRails, (b) => isRecord(b) && isString(b.node) && isNumber(b.v) && oneOf(b.rail, ['vdd', 'vss'] as const) &&
       arrayOf(b.stack, isString) && isNumber(b.need)) &&
@@ -173,7 +174,14 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
 export function isFileReport(v: unknown): v is FileReport {
   return isRecord(v) && isString(v.file) && isBoolean(v.parsed) && optional(v.title, isString) &&
     arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor) &&
-    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin));
+    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin)) &&
+    optional(v.networks, (n) => arrayOf(n, isNetworkReport));
+}
+
+function isNetworkReport(v: unknown): boolean {
+  return isRecord(v) && isString(v.root) && isNumber(v.rootIndex) && arrayOf(v.members, isString) && isBoolean(v.converged) &&
+    isRecord(v.supplyCurrent) && isNumber(v.supplyCurrent.vdd) && isNumber(v.supplyCurrent.vss) && isNumber(v.power) &&
+    arrayOf(v.leaves, isString) && optional(v.worstLeaf, isString);
 }
 
 // ───────────────────────────── primitives ─────────────────────────────
