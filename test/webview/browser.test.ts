@@ -19,11 +19,11 @@ const EXAMPLE = join(ROOT, 'examples', 'sensor-afe.bias.yaml');
 const URI = pathToFileURL(EXAMPLE).toString();
 const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
 
-/** Real core reports of the example spec, before and after an edit a designer makes (the lna
- *  output of the tail bank goes from 4 to 5 parallel devices). */
+/** Real core reports of the example spec, before and after an edit a designer makes (the root
+ *  of the bias network, the first mirror listed, goes from 10 µA to 12 µA). */
 function reports(): { main: FileReport; updated: FileReport; faulty: FileReport } {
   const text = readFileSync(EXAMPLE, 'utf8');
-  const edited = text.replace('out:  { m: 4 }', 'out:  { m: 5 }');
+  const edited = text.replace('input: 10u               # the root', 'input: 12u               # the root');
   // A deliberate fault: the lna output cannot reach 2 GΩ, so the core reports low-rout there.
   const wrong = text.replace('rout: 20M', 'rout: 2G');
   expect(edited).not.toBe(text);
@@ -189,8 +189,11 @@ describe('the bias panel page', () => {
     const { main } = core();
     const { page, probe } = await openPanel();
     await post(page, { type: 'report', uri: URI, report: main, version: 1 });
-    const m = main.mirrors[0];
+    // The first output whose devices are written in the spec (a device anchor to reveal).
+    const m = main.mirrors.find((x) => main.anchors.some((a) => a.kind === 'device' && a.report === x.name))!;
     await page.locator('article.mirror').waitFor();
+    await page.locator(`#mirror-list tr[data-key="mirror:${m.name}"]`).click();
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(m.name);
     const anchor = main.anchors.find((a) => a.kind === 'device' && a.report === m.name)!;
     await page.locator(`table.devices tr[data-key="dev:${m.name}:${anchor.device}"]`).click();
     await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
