@@ -8,10 +8,11 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
-import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
+import type { DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
-import { CircuitBuilder, type MosInstance } from './circuit';
+import { CircuitBuilder, type MosDescription, type MosInstance } from './circuit';
+import { channelCurrent } from './elements/device';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
@@ -43,7 +44,6 @@ export function buildTemplate(
   const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
   const rail = sign > 0 ? vss : vdd;
   const other = sign > 0 ? vdd : vss;
-  const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
@@ -55,16 +55,22 @@ export function buildTemplate(
 
   let count = 0;
   const byRole: Record<string, number> = {};
-  const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean): number => {
-    const problem = deviceProblem(params, size);
+  const T = sign > 0 ? 'vdd' : 'vss';
+  const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean, startup = false): number => {
+    // A reference's closing mirror is of the other polarity, its bulk on the other rail.
+    const type: Polarity = conn.other ? (m.type === 'nmos' ? 'pmos' : 'nmos') : m.type;
+    const p = type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    const problem = deviceProblem(p, size);
     if (problem) b.problems.push(`device ${name}: ${problem}`);
-    const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
+    const dev = prepareDevice(p, size, type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    b.mos({ name, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
+    const desc: MosDescription = { name, role, type, size, params: p, dev, measured };
+    if (startup) desc.startup = true;
+    b.mos(desc, d, g, s, size.bulk === 'source' ? s : conn.other ? T : R);
     return count++;   // index into circuit.devices
   };
 
-  const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
+  const refMap = (n: string): string => (n === 'R' ? R : n === 'T' ? T : n === 'vbias' ? 'vbias' : b.node(n));
   for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
@@ -90,9 +96,20 @@ export function buildTemplate(
     }
   });
 
+  const loop = kind.loop;
+  if (loop) {
+    const r = m.resistor ?? NaN;
+    for (const [name, ends] of Object.entries(loop.resistors)) b.resistor(name, refMap(ends.a), refMap(ends.b), r);
+    if (m.startup) add('startup', 'startup', m.startup, loop.startup, refMap, false, true);
+  }
+
   const input = kind.inputNode;
   let iin: (v: Float64Array) => number;
-  if (m.input.kind === 'current') {
+  if (m.input.kind === 'self') {
+    // The loop current: what the device the reference is named after carries.
+    const k = byRole[kind.pair.ref];
+    iin = (v) => (k === undefined ? NaN : channelCurrent(devices[k]!, v));
+  } else if (m.input.kind === 'current') {
     const i = m.input.i;
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
@@ -104,6 +121,7 @@ export function buildTemplate(
   const measuredOut = outNodes[outputIndex] ?? 'out';
   if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
   const c = b.build(measuredOut, sign, vss, vdd);
+  const devices = c.devices;
   const ws = makeWorkspace(c);
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;
@@ -114,15 +132,17 @@ export function buildTemplate(
   const vbIdx = kind.vbias ? index('vbias') : -1;
   const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
   const freeNames = c.nodeNames.slice(0, c.nFree);
-  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {} };
   const span = Math.abs(other - rail);
+  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
 
   const guess = (): void => {
     // Node voltages in the polarity frame u = sign·(v − rail), then mapped back.
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
     const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
-    if (m.input.kind === 'current') {
+    if (m.input.kind === 'self') {
+      guessNodes(g, loopCurrent(g, span, m.resistor ?? NaN));
+    } else if (m.input.kind === 'current') {
       solveFor(m.input.i);
     } else {
       // Bisection on the input current: I·R = span − u_in(I).
@@ -161,6 +181,31 @@ interface GuessContext {
   cNodes: (string | undefined)[];
   /** Result: polarity-frame voltage per node name. */
   u: Record<string, number>;
+  /** V, the supply span (the other rail in the polarity frame). */
+  span: number;
+}
+
+/** A, the loop current of a reference with every device saturated, by bisection on the loop's
+ *  own equation (body effect and the model included): beta multiplier VGS_ref − VGS_wide(VSB =
+ *  I·R) = I·R; VGS over a resistor VGS_ref = I·R. */
+function loopCurrent(g: GuessContext, span: number, r: number): number {
+  const dev = (name: string): MosInstance | undefined => g.devByName.get(name);
+  const ref = dev('ref');
+  if (!(r > 0) || !ref) return 0;
+  const excess = (i: number): number => {
+    const vr = i * r;
+    if (g.m.kind === 'beta-multiplier') {
+      const wide = dev('wide');
+      return diodeDrive(ref, i, 0) - drive(wide, i, wide?.size.bulk === 'rail' ? vr : 0, span / 2) - vr;
+    }
+    return diodeDrive(ref, i, 0) - vr;
+  };
+  let lo = 0, hi = span / r;
+  for (let k = 0; k < 50; k++) {
+    const mid = 0.5 * (lo + hi);
+    if (excess(mid) > 0) lo = mid; else hi = mid;
+  }
+  return 0.5 * (lo + hi);
 }
 
 /** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it. */
@@ -226,6 +271,19 @@ function guessNodes(g: GuessContext, i: number): void {
       if (m.kind === 'wilson-balanced') {
         u.z = sourceBelow(dev('bal'), i, u.x, u.x, 0, u.x);
       }
+      break;
+    }
+    case 'beta-multiplier': {
+      u.x = diodeDrive(dev('ref'), i, 0);
+      u.s = i * (g.m.resistor ?? 0);
+      u.y = g.span - diodeDrive(dev('topd'), i, 0);
+      break;
+    }
+    case 'vgs-resistor': {
+      u.a = i * (g.m.resistor ?? 0);
+      const follow = dev('follow');
+      u.b = u.a + drive(follow, i, vsbOf(follow, u.a), g.span / 2);
+      u.y = g.span - diodeDrive(dev('topd'), i, 0);
       break;
     }
     default:

@@ -47,9 +47,9 @@ function findingsTable(file: string, findings: Finding[]): string {
 
 function summaryRows(m: MirrorReport): string[][] {
   const rows: [string, string][] = [
-    ['Iin', si(m.iin, 'A', 4)], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
-    ['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)],
+    ['Iin', m.iin !== undefined ? si(m.iin, 'A', 4) : 'none (self-biased)'], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
   ];
+  if (m.ratio !== undefined) rows.push(['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)]);
   if (m.error !== undefined) {
     const s = m.errorSplit;
     const split = s ? ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})` : '';

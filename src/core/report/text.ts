@@ -26,11 +26,12 @@ function mirrorBlock(m: MirrorReport): string[] {
   // A node outside the rails is no operating point: its numbers describe nothing, so none are shown.
   if (m.beyondRails) return [`${m.name}  ${m.kind} ${m.type}  (no operating point within the supply)`];
   const head = `${m.name}  ${m.kind} ${m.type}${m.converged ? '' : '  (did not converge)'}`;
-  const ratio = m.ratioIdeal !== undefined
-    ? `ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
-    : `ratio ${m.ratio.toPrecision(5)}`;
+  const ratio = m.ratio === undefined ? '' : m.ratioIdeal !== undefined
+    ? `  ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
+    : `  ratio ${m.ratio.toPrecision(5)}`;
   const err = m.error !== undefined ? `  error ${formatSignedPercent(m.error)}` : '';
-  const line1 = `  Iin ${si(m.iin, 'A')}  Iout ${si(m.iout, 'A')}  ${ratio}${err}`;
+  const iin = m.iin !== undefined ? `  Iin ${si(m.iin, 'A')}` : '';
+  const line1 = `${iin}  Iout ${si(m.iout, 'A')}${ratio}${err}`;
   const approx = m.routApprox !== undefined ? ` (textbook ${si(m.routApprox, 'Ω')})` : '';
   const sigma = m.sigma !== undefined ? `  σ ${formatPercent(m.sigma)}` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';

@@ -89,7 +89,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
 
   // Ratio against require.ratio, else the geometric ratio.
   const target = site.require.ratio ?? nominal.ratioIdeal;
-  if (target !== undefined && target > 0 && Math.abs(nominal.ratio / target - 1) <= limits.error) {
+  if (target !== undefined && target > 0 && nominal.ratio !== undefined && Math.abs(nominal.ratio / target - 1) <= limits.error) {
     const bad = solved.map((r) => ({ r, badness: Math.abs(r.ratio / target - 1) })).filter((f) => f.badness > limits.error);
     emit('corner-ratio-error', 'error', bad, site.require.ratio !== undefined ? requireRange(parsed, site, 'ratio') : nameRange(parsed, site),
       [...site.path, 'require', 'ratio'],
