@@ -6,6 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
+import { applyEdits } from '../../src/core/text/edits';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
@@ -80,5 +81,123 @@ describe('beta multiplier with body effect and length modulation (references §1
   it('λn 0.1, λp 0.2, γn 0.45: 13.808808 µA; at VDD 3.3 V 15.025120 µA', () => {
     expect(rel(only(spec(beta(), { gn: 0.45, ln: 0.1, lp: 0.2 })).m.reference!.current, 13.808808e-6)).toBeLessThan(1e-5);
     expect(rel(only(spec(beta(), { gn: 0.45, ln: 0.1, lp: 0.2, vdd: 3.3 })).m.reference!.current, 15.02512e-6)).toBeLessThan(1e-5);
+  });
+});
+
+describe('VGS over a resistor (references §11)', () => {
+  const vgs = (startup = ''): string => `  - name: vr
+    kind: vgs-resistor
+    type: nmos
+    size: { w: 10u, l: 1u }
+    resistor: 50k
+    devices: { top: { w: 20u }, topd: { w: 20u } }${startup}
+    output: { v: 1.5 }
+`;
+  // Square law: I·R = VT0 + √(2I/β) with β = 134 µA/V²·10, R = 50 kΩ gives I = 17.204934 µA,
+  // VOV 0.160247 V; the loop gain, the follower-and-mirror path over ref's own, is 1/(gm_ref·R) =
+  // VOV/(2·I·R) = 0.0931400 (derived, references §11).
+  it('I·R = VGS of ref at I: 17.204934 µA, a at 0.860247 V; loop gain 1/(gm_ref·R) = 0.09314', () => {
+    const { m } = only(spec(vgs()));
+    expect(m.converged).toBe(true);
+    expect(rel(m.reference!.current, 17.204934e-6)).toBeLessThan(1e-6);
+    expect(m.nodes.a).toBeCloseTo(0.860247, 5);
+    expect(m.reference!.loopGain!).toBeCloseTo(0.09314, 5);
+    expect(rel(m.iout, 17.204934e-6)).toBeLessThan(1e-6);
+  });
+  it('without a start-up element: the zero-current state is found, no-startup', () => {
+    const { file, m } = only(spec(vgs()));
+    expect(m.reference!.startup.zeroState).toBe(true);
+    expect(codes(file)).toContain('no-startup');
+  });
+  it('with one (diode from y into b) at VDD 2.4 V: it conducts at zero current and is off at the operating point', () => {
+    const { file, m } = only(spec(vgs('\n    startup: { w: 1u, l: 4u }'), { vdd: 2.4 }));
+    expect(m.reference!.startup).toMatchObject({ zeroState: true, element: true, conducts: true });
+    expect(m.reference!.startup.current!).toBeLessThan(m.reference!.startup.limit!);
+    expect(codes(file).filter((c) => c.startsWith('startup') || c === 'no-startup')).toEqual([]);
+  });
+});
+
+describe('the start-up check of a beta multiplier (references §11, zero-current state)', () => {
+  it('without a start-up element: the zero-current state is consistent, no-startup at the kind', () => {
+    const { file, m } = only(spec(beta()));
+    expect(m.reference!.startup).toEqual({ zeroState: true, element: false });
+    const f = file.findings.find((x) => x.code === 'no-startup')!;
+    expect(f.severity).toBe('error');
+    expect(f.path).toEqual(['mirrors', 0, 'kind']);
+    expect(f.range.start).toEqual({ line: 8, character: 10 });
+  });
+  it('with one at VDD 2.4 V: conducts in the zero-current state, off at the operating point, no finding', () => {
+    const { file, m } = only(spec(beta({ startup: '{ w: 1u, l: 4u }' }), { vdd: 2.4 }));
+    expect(m.reference!.startup).toMatchObject({ zeroState: true, element: true, conducts: true });
+    expect(m.reference!.startup.current!).toBeLessThan(m.reference!.startup.limit!);
+    // Off: the current stays the textbook 14.925373 µA (square law, λ = 0, no body effect).
+    expect(rel(m.reference!.current, 14.925373e-6)).toBeLessThan(1e-5);
+    expect(codes(file)).not.toContain('no-startup');
+    expect(codes(file)).not.toContain('startup-leak');
+  });
+  it('at VDD 3 V the same device stays on (VDD − VSG − VGS > VT): startup-leak, fixed by a longer device', () => {
+    const text = spec(beta({ startup: '{ w: 1u, l: 4u }' }));
+    const { file, m } = only(text);
+    const s = m.reference!.startup;
+    expect(s.current!).toBeGreaterThan(s.limit!);
+    const f = file.findings.find((x) => x.code === 'startup-leak')!;
+    expect(f.severity).toBe('warning');
+    expect(f.path).toEqual(['mirrors', 0, 'startup', 'l']);
+    const fix = f.fixes![0]!;
+    const fixed = applyEdits(text, fix.edits);
+    expect(codes(analyzeText(fixed, 'ref.bias.yaml'))).not.toContain('startup-leak');
+  });
+});
+
+describe('the start-up check of a netlist beta multiplier (design §14; references §11)', () => {
+  /** The full netlist check of references §11 (no `input`: self-biased). */
+  const net = (startup = ''): string => `  - name: bmn
+    kind: netlist
+    type: nmos
+    devices:
+      m1: { type: nmos, d: x, g: x, s: 0, w: 10u, l: 1u }
+      m2: { type: nmos, d: y, g: x, s: s, w: 40u, l: 1u }
+      m3: { type: pmos, d: x, g: y, s: vdd, w: 20u, l: 1u }
+      m4: { type: pmos, d: y, g: y, s: vdd, w: 20u, l: 1u }
+      mo: { type: nmos, d: out, g: x, s: 0, w: 10u, l: 1u }
+    resistors:
+      rs: { a: s, b: 0, r: 5k }${startup}
+    output: { node: out, v: 1.5 }
+`;
+  it('without a start-up device: the zero-current state is found, no-startup; iin, ratio and error are absent', () => {
+    const { file, m } = only(spec(net(), { gn: 0.45, ln: 0.1, lp: 0.2 }));
+    expect(m.converged).toBe(true);
+    expect(m.reference!.startup).toEqual({ zeroState: true, element: false });
+    expect(codes(file)).toContain('no-startup');
+    expect(m.iin).toBeUndefined();
+    expect(m.ratio).toBeUndefined();
+    expect(m.error).toBeUndefined();
+    // The operating point is the full netlist check's: S = 0.069044 V, I(rs) = 13.808808 µA.
+    expect(m.nodes.s).toBeCloseTo(0.069044, 5);
+  });
+  it('with a start-up device (diode from y into x) at VDD 2.4 V: accepted', () => {
+    const { file, m } = only(spec(net('\n    startup:\n      ms: { type: nmos, d: y, g: y, s: x, w: 1u, l: 4u }'), { vdd: 2.4 }));
+    expect(m.reference!.startup).toMatchObject({ zeroState: true, element: true, conducts: true });
+    expect(m.reference!.startup.current!).toBeLessThan(m.reference!.startup.limit!);
+    expect(codes(file).filter((c) => c.startsWith('startup') || c === 'no-startup')).toEqual([]);
+  });
+  it('a start-up device that cannot conduct at zero current (gate on the rail it sits on): startup-inactive', () => {
+    const { file } = only(spec(net('\n    startup:\n      ms: { type: nmos, d: y, g: 0, s: x, w: 1u, l: 4u }'), { vdd: 2.4 }));
+    expect(codes(file)).toContain('startup-inactive');
+  });
+  it('a netlist fed by an input current has no zero-current state to test', () => {
+    const text = spec(`  - name: simple
+    kind: netlist
+    devices:
+      m1: { type: nmos, d: a, g: a, s: 0, w: 10u, l: 1u }
+      m2: { type: nmos, d: out, g: a, s: 0, w: 10u, l: 1u }
+    currents:
+      iin: { from: vdd, to: a, i: 10u }
+    input: { source: iin }
+    output: { node: out, v: 1.5 }
+`);
+    const { file, m } = only(text);
+    expect(m.reference).toBeUndefined();
+    expect(codes(file)).not.toContain('no-startup');
   });
 });

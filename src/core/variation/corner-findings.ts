@@ -72,7 +72,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     nameRange(parsed, site), site.path, (_w, label) => `the operating point does not converge at corner ${label}; the mirror may have no working point there`);
 
   // Saturation: worst device margin per corner.
-  const nomMargin = Math.min(...nominal.devices.map((d) => d.margin));
+  const nomMargin = Math.min(...nominal.devices.filter((d) => d.role !== 'startup').map((d) => d.margin));
   if (nominal.converged && nomMargin >= 0) {
     const bad = solved.filter((r) => r.minMargin !== undefined && r.minMargin < 0).map((r) => ({ r, badness: -r.minMargin! }));
     const worst = bad.slice().sort((a, b) => b.badness - a.badness)[0];
