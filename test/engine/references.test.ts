@@ -125,6 +125,12 @@ describe('the start-up check of a beta multiplier (references §11, zero-current
     expect(f.severity).toBe('error');
     expect(f.path).toEqual(['mirrors', 0, 'kind']);
     expect(f.range.start).toEqual({ line: 8, character: 10 });
+    // The fix adds one; the zero-current state is then started.
+    const fixed = applyEdits(spec(beta()), f.fixes![0]!.edits);
+    expect(fixed).toContain('startup:');
+    const after = only(fixed);
+    expect(after.m.reference!.startup.conducts).toBe(true);
+    expect(codes(after.file)).not.toContain('no-startup');
   });
   it('with one at VDD 2.4 V: conducts in the zero-current state, off at the operating point, no finding', () => {
     const { file, m } = only(spec(beta({ startup: '{ w: 1u, l: 4u }' }), { vdd: 2.4 }));

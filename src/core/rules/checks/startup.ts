@@ -11,6 +11,7 @@ import { draftKey } from '../model';
 import { kindRange, valueRange, type Site } from '../sites';
 import { replaceValueEdit } from '../../spec/edit';
 import { formatValue } from '../size-edits';
+import { buildEdits } from '../build-edits';
 import { quantizeSize } from '../../sizing/quantize';
 import { code, formatPercent, formatSI } from '../../text/format';
 import { isTemplateKind, KINDS } from '../../kinds/index';
@@ -49,6 +50,30 @@ export function checkStartup(rc: RuleContext, site: Site): Draft[] {
       finding: {
         severity: 'error', code: 'no-startup', path: at.path, range: at.range,
         message: `the loop has a zero-current state: with every device off no branch conducts and nothing starts it (the solver finds only the operating point); add ${startupWhere(site)}`,
+      },
+      plan: function* () {
+        // A narrow, long start-up device: it conducts at zero current whatever its size, and a
+        // weak one leaks least once the loop runs (the startup-leak check judges that next).
+        const m = site.mirror;
+        if (m.kind === 'netlist' || !KINDS[m.kind].loop) return;
+        const p = m.type === 'nmos' ? rc.spec.process.nmos : rc.spec.process.pmos;
+        const grid = rc.spec.process.grid;
+        const unit = m.devices.ref;
+        const w = quantizeSize(Math.max(p.wmin ?? 0, (unit?.w ?? 1e-6) / 4), grid, 'up');
+        const l = quantizeSize(Math.max(p.lmin ?? 0, 4 * (unit?.l ?? 1e-6)), grid, 'up');
+        const parent: SpecPath = ['mirrors', i, 'startup'];
+        yield {
+          family: 'startup-add',
+          build: () => {
+            const edits = buildEdits(rc.parsed, [], [
+              { parent, key: 'w', text: formatValue('w', w, undefined, rc.json) },
+              { parent, key: 'l', text: formatValue('l', l, undefined, rc.json) },
+            ], rc.file, rc.fragments);
+            return edits ? {
+              title: `Add a start-up device (W ${formatSI(w, 'm')}, L ${formatSI(l, 'm')})`, edits, scope: 'mirror', mirrorIndex: i, family: 'startup-add',
+            } : undefined;
+          },
+        };
       },
     });
     return drafts;
