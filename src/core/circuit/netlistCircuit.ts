@@ -62,20 +62,8 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
   const iin = inputIndex >= 0 ? m.currents[inputIndex]!.i : NaN;
   const railIndex = { vdd: c.nodeNames.indexOf('vdd'), vss: c.nodeNames.indexOf('vss') };
 
-  // A self-biased netlist: a node hung on a rail by a resistor (a degeneration resistor) starts
-  // at that rail, where the loop's small resistor drop leaves it.
-  const railTied: [number, number][] = [];
-  if (!input) {
-    for (const e of c.elements) {
-      if (e.kind !== 'resistor') continue;
-      for (const [k, o] of [[e.a, e.b], [e.b, e.a]] as const) {
-        if (k < c.nFree && (o === railIndex.vss || o === railIndex.vdd)) railTied.push([k, o]);
-      }
-    }
-  }
   const guess = (): void => {
     for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
-    for (const [k, o] of railTied) ws.v[k] = c.fixedV[o]!;
     for (const x of c.devices) {
       if (x.d !== x.g || x.d >= c.nFree) continue;
       const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;

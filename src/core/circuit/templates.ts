@@ -36,41 +36,73 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   return Number.isFinite(r) ? r : undefined;
 }
 
-export function buildTemplate(
-  spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
-  vbias: number | undefined, perturb?: PerturbationLike,
-): MirrorCircuit {
+/** How one template mirror is wired into a builder that may hold other mirrors too (a linked
+ *  network, src/core/network/): node and device names carry `ns` in front, and a linked input or
+ *  output uses the shared node named by the network instead of an input source or a held voltage. */
+export interface TemplateWiring {
+  /** Prefix of every node and device name of this mirror ('' when it is alone). */
+  ns: string;
+  /** The measured output (its devices count for compliance and the report); −1: none. */
+  outputIndex: number;
+  /** V, held voltage of the measured output. */
+  vout: number;
+  vbias: number | undefined;
+  perturb?: PerturbationLike;
+  /** The network's node that is this mirror's input node (no input source is added then). */
+  inputNode?: string;
+  /** The network's free node an output drives (a linked output), else undefined: held at its v. */
+  outNode?: (j: number) => string | undefined;
+}
+
+/** What wiring a mirror left in the builder, for the guess and the measurements. */
+export interface WiredTemplate {
+  /** Node names of each output, of each output's cascode node, and of the input. */
+  outNodes: string[];
+  cNodes: (string | undefined)[];
+  inputNode: string;
+  /** Local device names (without `ns`) in the order they were added, and their roles' indices
+   *  (relative to the first device this mirror added). */
+  deviceNames: string[];
+  byRole: Record<string, number>;
+  /** The input resistor, when the input is one. */
+  inputResistor?: ReturnType<CircuitBuilder['resistor']>;
+}
+
+/** Add mirror `m`'s devices (and its input source unless linked) to `b`; the rails are held
+ *  by the caller. */
+export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateMirror, w: TemplateWiring): WiredTemplate {
   const { vdd, vss } = spec.supplies;
   const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
-  const rail = sign > 0 ? vss : vdd;
-  const other = sign > 0 ? vdd : vss;
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
-  const b = new CircuitBuilder();
-  b.hold('vdd', vdd);
-  b.hold('vss', vss);
+  const ns = w.ns;
   const R = sign > 0 ? 'vss' : 'vdd';
-  if (kind.vbias) b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
+  const vbiasName = `${ns}vbias`;
+  if (kind.vbias) b.hold(vbiasName, w.vbias ?? 0.5 * (vdd + vss));
 
-  let count = 0;
+  const names: string[] = [];
   const byRole: Record<string, number> = {};
   const T = sign > 0 ? 'vdd' : 'vss';
   const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean, startup = false): number => {
     // A reference's closing mirror is of the other polarity, its bulk on the other rail.
     const type: Polarity = conn.other ? (m.type === 'nmos' ? 'pmos' : 'nmos') : m.type;
-    const p = type === 'pmos' ? spec.process.pmos : spec.process.nmos;
-    const problem = deviceProblem(p, size);
-    if (problem) b.problems.push(`device ${name}: ${problem}`);
-    const dev = prepareDevice(p, size, type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
+    const params = type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    const problem = deviceProblem(params, size);
+    if (problem) b.problems.push(`device ${ns}${name}: ${problem}`);
+    const full = `${ns}${name}`;
+    const dev = prepareDevice(params, size, type, proc, w.perturb?.dvt[full] ?? 0, w.perturb?.dbeta[full] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    const desc: MosDescription = { name, role, type, size, params: p, dev, measured };
+    const desc: MosDescription = { name: full, role, type, size, params, dev, measured };
     if (startup) desc.startup = true;
     b.mos(desc, d, g, s, size.bulk === 'source' ? s : conn.other ? T : R);
-    return count++;   // index into circuit.devices
+    names.push(name);
+    return names.length - 1;
   };
 
-  const refMap = (n: string): string => (n === 'R' ? R : n === 'T' ? T : n === 'vbias' ? 'vbias' : b.node(n));
+  const input = kind.inputNode;
+  const inputNode = w.inputNode ?? `${ns}${input}`;
+  const refMap = (n: string): string => (n === 'R' ? R : n === 'T' ? T : n === 'vbias' ? vbiasName : n === input ? b.node(inputNode) : b.node(`${ns}${n}`));
   for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
@@ -81,47 +113,68 @@ export function buildTemplate(
   const cNodes: (string | undefined)[] = [];
   m.outputs.forEach((o: MirrorOutput, j) => {
     const prefix = bank ? `${o.name}.` : '';
-    const outName = `${prefix}out`;
-    b.hold(outName, j === outputIndex ? vout : o.output.v);
+    const linked = w.outNode?.(j);
+    const outName = linked ?? `${ns}${prefix}out`;
+    if (linked !== undefined) b.node(linked);
+    else b.hold(outName, j === w.outputIndex ? w.vout : o.output.v);
     outNodes.push(outName);
-    cNodes.push(Object.values(kind.output).some((x) => x.d === 'C' || x.s === 'C') ? `${prefix}c` : undefined);
+    cNodes.push(Object.values(kind.output).some((x) => x.d === 'C' || x.s === 'C') ? `${ns}${prefix}c` : undefined);
     const map = (n: string): string =>
-      n === 'O' ? outName : n === 'C' ? b.node(`${prefix}c`) : refMap(n);
+      n === 'O' ? outName : n === 'C' ? b.node(`${ns}${prefix}c`) : refMap(n);
     for (const role of kind.outputRoles) {
       const conn = kind.output[role];
       const size = o.devices[role] ?? m.devices[role];
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
-      const k = add(`${prefix}${role}`, role, size, conn, map, j === outputIndex);
-      if (j === outputIndex) byRole[role] = k;
+      const k = add(`${prefix}${role}`, role, size, conn, map, j === w.outputIndex);
+      if (j === w.outputIndex) byRole[role] = k;
     }
   });
 
   const loop = kind.loop;
   if (loop) {
     const r = m.resistor ?? NaN;
-    for (const [name, ends] of Object.entries(loop.resistors)) b.resistor(name, refMap(ends.a), refMap(ends.b), r);
+    for (const [name, ends] of Object.entries(loop.resistors)) b.resistor(`${ns}${name}`, refMap(ends.a), refMap(ends.b), r);
     if (m.startup) add('startup', 'startup', m.startup, loop.startup, refMap, false, true);
   }
 
-  const input = kind.inputNode;
-  let iin: (v: Float64Array) => number;
-  if (m.input.kind === 'self') {
-    // The loop current: what the device the reference is named after carries.
-    const k = byRole[kind.pair.ref];
-    iin = (v) => (k === undefined ? NaN : channelCurrent(devices[k]!, v));
-  } else if (m.input.kind === 'current') {
+  const out: WiredTemplate = { outNodes, cNodes, inputNode, deviceNames: names, byRole };
+  if (w.inputNode !== undefined || m.input.kind === 'self') return out;
+  if (m.input.kind === 'current' || m.input.kind === 'link') {
+    // A linked input measured alone is the current that arrives (network/ solves it).
     const i = m.input.i;
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
-    if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
-    iin = () => i;
+    if (sign > 0) b.current(`${ns}input`, 'vdd', inputNode, i); else b.current(`${ns}input`, inputNode, 'vss', i);
   } else {
-    const r = sign > 0 ? b.resistor('input', 'vdd', input, m.input.r) : b.resistor('input', input, 'vss', m.input.r);
-    iin = (v) => resistorCurrent(r, v);
+    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, m.input.r) : b.resistor(`${ns}input`, inputNode, 'vss', m.input.r);
   }
+  return out;
+}
+
+export function buildTemplate(
+  spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
+  vbias: number | undefined, perturb?: PerturbationLike,
+): MirrorCircuit {
+  const { vdd, vss } = spec.supplies;
+  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const rail = sign > 0 ? vss : vdd;
+  const other = sign > 0 ? vdd : vss;
+  const bank = isBank(m);
+  const kind = KINDS[m.kind];
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
+  const { outNodes, cNodes, byRole } = wired;
+  const input = kind.inputNode;
+  const res = wired.inputResistor;
+  const loopRef = m.input.kind === 'self' ? byRole[kind.pair.ref] : undefined;
+  const iin: (v: Float64Array) => number = res ? (v) => resistorCurrent(res, v)
+    // A reference: the loop current of the device it is named after (the taps copy it).
+    : loopRef !== undefined ? (v) => channelCurrent(c.devices[loopRef]!, v)
+      : () => (m.input.kind === 'resistor' || m.input.kind === 'self' ? NaN : m.input.i);
   const measuredOut = outNodes[outputIndex] ?? 'out';
   if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
   const c = b.build(measuredOut, sign, vss, vdd);
-  const devices = c.devices;
   const ws = makeWorkspace(c);
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;
@@ -141,8 +194,8 @@ export function buildTemplate(
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
     const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
     if (m.input.kind === 'self') {
-      guessNodes(g, loopCurrent(g, span, m.resistor ?? NaN));
-    } else if (m.input.kind === 'current') {
+      guessNodes(g, 0);   // a reference finds its own loop current
+    } else if (m.input.kind === 'current' || m.input.kind === 'link') {
       solveFor(m.input.i);
     } else {
       // Bisection on the input current: I·R = span − u_in(I).
@@ -170,7 +223,7 @@ export function buildTemplate(
   };
 }
 
-interface GuessContext {
+export interface GuessContext {
   m: TemplateMirror;
   devByName: Map<string, MosInstance>;
   bank: boolean;
@@ -181,8 +234,8 @@ interface GuessContext {
   cNodes: (string | undefined)[];
   /** Result: polarity-frame voltage per node name. */
   u: Record<string, number>;
-  /** V, the supply span (the other rail in the polarity frame). */
-  span: number;
+  /** V, the supply span (the other rail in the polarity frame); references need it. */
+  span?: number;
 }
 
 /** A, the loop current of a reference with every device saturated, by bisection on the loop's
@@ -215,7 +268,7 @@ function drive(x: MosInstance | undefined, i: number, vsb: number, vds: number):
 }
 
 /** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
-function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
+export function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
   let v = drive(x, i, vsb, 0);
   v = drive(x, i, vsb, v);
   return drive(x, i, vsb, v);
@@ -231,7 +284,7 @@ function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrai
 }
 
 /** Polarity-frame node voltages assuming every device saturated. */
-function guessNodes(g: GuessContext, i: number): void {
+export function guessNodes(g: GuessContext, i: number): void {
   const { m, devByName, ratios, uOuts, uVb, cNodes, u } = g;
   const dev = (name: string): MosInstance | undefined => devByName.get(name);
   const prefix = (j: number): string => (g.bank ? `${m.outputs[j]!.name}.` : '');
@@ -273,17 +326,21 @@ function guessNodes(g: GuessContext, i: number): void {
       }
       break;
     }
-    case 'beta-multiplier': {
-      u.x = diodeDrive(dev('ref'), i, 0);
-      u.s = i * (g.m.resistor ?? 0);
-      u.y = g.span - diodeDrive(dev('topd'), i, 0);
-      break;
-    }
+    case 'beta-multiplier':
     case 'vgs-resistor': {
-      u.a = i * (g.m.resistor ?? 0);
-      const follow = dev('follow');
-      u.b = u.a + drive(follow, i, vsbOf(follow, u.a), g.span / 2);
-      u.y = g.span - diodeDrive(dev('topd'), i, 0);
+      // A reference sets its own current: `i` is not used.
+      const span = g.span ?? 0;
+      const r = m.resistor ?? 0;
+      const loop = loopCurrent(g, span, r);
+      if (m.kind === 'beta-multiplier') {
+        u.x = diodeDrive(dev('ref'), loop, 0);
+        u.s = loop * r;
+      } else {
+        u.a = loop * r;
+        const follow = dev('follow');
+        u.b = u.a + drive(follow, loop, vsbOf(follow, u.a), span / 2);
+      }
+      u.y = span - diodeDrive(dev('topd'), loop, 0);
       break;
     }
     default:
