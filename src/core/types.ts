@@ -101,6 +101,7 @@ export interface DeviceSize {
 export type InputSource =
   | { kind: 'current'; i: number }            // A, ideal
   | { kind: 'resistor'; r: number }           // Ω, to the opposite rail
+  | { kind: 'self' }                          // a self-biased reference: its loop sets the current
   | LinkInput;                                // fed by another mirror's output (design §9.1)
 
 /** `input: { from: PATH }`: this mirror's input node is the named output's node. `i` is the current
@@ -159,6 +160,10 @@ export interface TemplateMirror {
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;
   design?: DesignTarget;
+  /** Reference kinds: the loop resistor (Ω, `resistor:`). */
+  resistor?: number;
+  /** Reference kinds: the start-up device (`startup:`), absent when none is written. */
+  startup?: DeviceSize;
   outputs: MirrorOutput[];
   path: SpecPath;  // ['mirrors', i]
 }
@@ -184,8 +189,11 @@ export interface NetlistMirror {
   resistors: NetlistResistor[];
   /** The measured output: node held at v by an ideal source. */
   output: { node: string; v: number; range?: [number, number] };
-  /** The current source whose current is iin. */
-  input: { source: string };
+  /** The current source whose current is iin; absent for a self-biased netlist (then iin,
+   *  ratio and error are absent). */
+  input?: { source: string };
+  /** Extra devices judged as the start-up element (`startup:`), in the netlist's device format. */
+  startup?: NetlistDevice[];
   /** Optional mirror pair for ratioIdeal: names of the reference and output devices. */
   pair?: { ref: string; out: string };
   require: Requirements;
@@ -304,6 +312,33 @@ export interface MonteCarloResult {
   failures?: { convergence: number; saturation: number; ratio: number; compliance: number };
 }
 
+/** The start-up check of a self-biased circuit (design §9.2, analysis/startup.ts). */
+export interface StartupReport {
+  /** An all-off state is consistent without the start-up element: every loop device can sit in
+   *  cutoff with zero current in every branch. */
+  zeroState: boolean;
+  /** A start-up element is written. */
+  element: boolean;
+  /** With an element: it conducts in every zero-current state (so that state is no longer
+   *  consistent and the loop is started). */
+  conducts?: boolean;
+  /** With an element: A, its current at the operating point, and the limit it must stay below
+   *  (1 % of the smallest branch current of the loop). */
+  current?: number;
+  limit?: number;
+}
+
+/** What a self-biased reference (a reference kind, or a netlist without input) reports. */
+export interface ReferenceReport {
+  /** A, the loop current: a reference kind's resistor current (the current the loop sets; iin
+   *  is `ref`'s, which the taps copy); a netlist's smallest branch current. */
+  current: number;
+  /** Loop gain at the operating point (< 1: the operating point is stable), from the return
+   *  difference of the loop's breaking device; absent for a netlist. */
+  loopGain?: number;
+  startup: StartupReport;
+}
+
 export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
 
 export interface MirrorReport {
@@ -323,9 +358,10 @@ export interface MirrorReport {
    *  voltage (V) that chain takes to carry its current, against the supply. */
   beyondRails?: { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number };
   vout: number;        // V, nominal output voltage (absolute)
-  iin: number;
+  /** Absent for a self-biased netlist (it has no input). */
+  iin?: number;
   iout: number;
-  ratio: number;
+  ratio?: number;
   ratioIdeal?: number;
   error?: number;
   errorSplit?: ErrorSplit;
@@ -337,6 +373,8 @@ export interface MirrorReport {
    *  figure then; `compliance` holds the far rail only as design §4's placeholder. */
   noCompliance?: { device: string };
   sigma?: number;
+  /** A self-biased reference: its current, loop gain and start-up check. */
+  reference?: ReferenceReport;
   /** Wide-swing: the cascode gate voltage used (V, absolute) and whether qpoint picked it. */
   vbias?: number;
   vbiasPicked?: boolean;

@@ -157,9 +157,9 @@ export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): st
 /** The measured figures of one output, textbook Rout beside the exact one. */
 export function mirrorFigures(r: MirrorReport): [label: string, value: string][] {
   const rows: [string, string][] = [
-    ['Iin', formatSI(r.iin, 'A')],
+    ['Iin', formatSI(r.iin ?? NaN, 'A')],
     ['Iout', formatSI(r.iout, 'A')],
-    ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio, 4)],
+    ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio ?? NaN, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio ?? NaN, 4)],
   ];
   if (r.error !== undefined) rows.push(['error', formatSignedPercent(r.error)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
@@ -201,7 +201,7 @@ export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): st
   ];
   for (const r of reports) {
     const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
-    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatSignedPercent(r.error) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio ?? NaN, 4)} | ${r.error !== undefined ? formatSignedPercent(r.error) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
 }

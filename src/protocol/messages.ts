@@ -149,8 +149,15 @@ function isRequirements(v: unknown): v is Requirements {
   return isRecord(v) && ['ratio', 'rout', 'compliance', 'sigma'].every((k) => optional(v[k], isNumber));
 }
 
-const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iin', 'iout', 'ratio', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
-const MIRROR_OPTIONAL_NUMBERS = ['ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias', 'intended', 'chainError', 'chainSigma', 'linkV', 'headroom'] as const;
+const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iout', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
+/** `iin` and `ratio` are absent for a self-biased netlist (it has no input). */
+const MIRROR_OPTIONAL_NUMBERS = ['iin', 'ratio', 'ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias', 'intended', 'chainError', 'chainSigma', 'linkV', 'headroom'] as const;
+
+function isReferenceReport(v: unknown): boolean {
+  return isRecord(v) && isNumber(v.current) && optional(v.loopGain, isNumber) &&
+    isRecord(v.startup) && isBoolean(v.startup.zeroState) && isBoolean(v.startup.element) &&
+    optional(v.startup.conducts, isBoolean) && optional(v.startup.current, isNumber) && optional(v.startup.limit, isNumber);
+}
 
 export function isMirrorReport(v: unknown): v is MirrorReport {
   return isRecord(v) && isString(v.name) && isString(v.mirror) && optional(v.output, isString) &&
@@ -162,6 +169,7 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     optional(v.noCompliance, (c) => isRecord(c) && isString(c.device)) &&
     optional(v.beyondRails, (b) => isRecord(b) && isString(b.node) && isNumber(b.v) && oneOf(b.rail, ['vdd', 'vss'] as const) &&
       arrayOf(b.stack, isString) && isNumber(b.need)) &&
+    optional(v.reference, isReferenceReport) &&
     optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.vds) && isNumber(s.body) && isNumber(s.geometry) && optional(s.gate, isNumber)) &&
     isRecord(v.nodes) && Object.values(v.nodes).every(isNumber) &&
     arrayOf(v.devices, isDeviceReport) && isSpecPath(v.path) &&

@@ -471,13 +471,13 @@ async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'
     expect(Math.abs(got - want)).toBeLessThanOrEqual(Math.abs(want) * 0.5 * 10 ** (1 - digits) + floor);
   };
   const val = (key: string) => shown.figures[key]?.value;
-  close(val('iin'), 'A', m.iin, 4);
+  close(val('iin'), 'A', m.iin!, 4);
   close(val('iout'), 'A', m.iout, 4);
   close(val('rout'), 'Ω', m.rout, 3);
   close(val('compliance'), 'V', m.compliance, 4);
   if (m.error !== undefined) close(val('error'), '%', m.error, 3);
   if (m.sigma !== undefined) close(val('sigma'), '%', m.sigma, 3);
-  expect(Number(val('ratio'))).toBeCloseTo(m.ratio, 4);
+  expect(Number(val('ratio'))).toBeCloseTo(m.ratio!, 4);
   if (m.routApprox !== undefined) close(shown.figures.rout.detail.replace(/^textbook /, ''), 'Ω', m.routApprox, 3);
   // A bank output lists its own devices (`<output>.<role>`) and the shared reference.
   const listed = m.output === undefined ? m.devices : m.devices.filter((d) => d.name.startsWith(`${m.output}.`) || !d.name.includes('.'));

@@ -8,6 +8,7 @@
 import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
+import { referenceText } from './text';
 
 /** What the page says about its own making; the caller supplies it (the core has no clock). */
 export interface ReportStamp {
@@ -47,14 +48,15 @@ function findingsTable(file: string, findings: Finding[]): string {
 
 function summaryRows(m: MirrorReport): string[][] {
   const rows: [string, string][] = [
-    ['Iin', si(m.iin, 'A', 4)], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
-    ['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)],
+    ['Iin', m.iin !== undefined ? si(m.iin, 'A', 4) : 'none (self-biased)'], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
   ];
+  if (m.ratio !== undefined) rows.push(['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)]);
   if (m.error !== undefined) {
     const s = m.errorSplit;
     const split = s ? ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})` : '';
     rows.push(['Error', `${pct(m.error, true)}${split}`]);
   }
+  if (m.reference) rows.push(['Reference', esc(referenceText(m.reference, (v, u) => si(v, u, 4)).replace(/^reference /, ''))]);
   rows.push(['Rout', m.routApprox !== undefined ? `${si(m.rout, 'Ω')} (textbook ${si(m.routApprox, 'Ω')})` : si(m.rout, 'Ω')]);
   rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
     : `${si(m.compliance, 'V', 4)} (${m.type === 'nmos' ? 'works down to' : 'works up to'})`]);

@@ -75,11 +75,12 @@ export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;
     for (const d of r.devices) {
+      if (d.role === 'startup') continue;   // off by design at the operating point
       if (minMargin === undefined || d.margin < minMargin) { minMargin = d.margin; minMarginDevice = d.name; }
     }
     results.push({
       name: corner.name, converged: r.converged,
-      iin: r.iin, iout: r.iout, ratio: r.ratio, error: r.error ?? Number.NaN,
+      iin: r.iin ?? NaN, iout: r.iout, ratio: r.ratio ?? NaN, error: r.error ?? Number.NaN,
       rout: r.rout, compliance: r.compliance, sigma: r.sigma,
       minMargin, minMarginDevice,
     });

@@ -8,6 +8,8 @@ import { refOf } from '../sites';
 /** Devices of this output: the shared reference roles and this output's own roles. */
 export function siteDevices(site: Site): DeviceReport[] {
   return site.report.devices.filter((d) => {
+    // A start-up element is off by design at the operating point: the start-up check judges it.
+    if (d.role === 'startup') return false;
     const ref = refOf(site, d);
     return ref.output === undefined || ref.output === site.outputIndex;
   });
