@@ -1,0 +1,148 @@
+/**
+ * One mirror output as a circuit to draw: parts with pins on nets, read from the report and
+ * its kind's template (kinds/), or from a netlist's own wiring. No geometry here: layout.ts
+ * places it. A kind needs nothing drawing-specific: its connections say everything.
+ */
+import { KINDS, isTemplateKind } from '../kinds';
+import type { Connection } from '../kinds';
+import { DEFAULTS } from '../defaults';
+import type { DeviceReport, FileReport, MirrorReport } from '../types';
+import type { SymbolKind } from './model';
+
+/** Where a pin sits on its symbol: `top` and `bottom` carry the branch current, `ctl` is the
+ *  gate or base (on the left). */
+export type PinSide = 'top' | 'bottom' | 'ctl';
+
+export interface CircuitPin { side: PinSide; net: string }
+
+export interface CircuitPart {
+  id: string;
+  symbol: SymbolKind;
+  pins: CircuitPin[];
+  /** Text beside the symbol, first line the name. */
+  lines: string[];
+  device?: DeviceReport;
+  short?: 'margin' | 'region';
+  tip?: string;
+}
+
+export interface CircuitNet {
+  name: string;
+  /** Node voltage (V), when known. */
+  v?: number;
+  /** Held by an ideal source: the output, vbias, a netlist's voltage source. */
+  held?: string;
+  rail?: 'vdd' | 'vss';
+  /** More words for a held node (the output's current). */
+  note?: string;
+}
+
+export interface Circuit { parts: CircuitPart[]; nets: Map<string, CircuitNet> }
+
+/** A device's polarity as a symbol: MOSFETs by type, bipolar devices (npn/pnp) as they come. */
+export function symbolOf(d: { type: string }): SymbolKind {
+  const t = d.type;
+  if (t === 'npn' || t === 'pnp' || t === 'pmos') return t;
+  return 'nmos';
+}
+
+function isBipolar(s: SymbolKind): boolean {
+  return s === 'npn' || s === 'pnp';
+}
+
+/** Pins of a transistor symbol from its d/g/s (c/b/e) nets: the current enters at the top for
+ *  NMOS and NPN, leaves at the top for PMOS and PNP. */
+function transistorPins(symbol: SymbolKind, conn: Connection): CircuitPin[] {
+  const sourceOnTop = symbol === 'pmos' || symbol === 'pnp';
+  return [
+    { side: 'top', net: sourceOnTop ? conn.s : conn.d },
+    { side: 'ctl', net: conn.g },
+    { side: 'bottom', net: sourceOnTop ? conn.d : conn.s },
+  ];
+}
+
+export type SI = (v: number, unit: string, digits?: number) => string;
+
+function deviceLines(d: DeviceReport, si: SI, short: CircuitPart['short']): string[] {
+  const area = (d as DeviceReport & { area?: number }).area;
+  const size = area !== undefined && isBipolar(symbolOf(d)) ? `${si(area, 'm²')}·${d.m}` : `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}`;
+  const state = short === 'region' ? `✗ ${d.region}` : short === 'margin' ? `⚠ margin ${si(d.margin, 'V')}` : d.region;
+  return [d.name, size, `ID ${si(d.id, 'A')}`, state];
+}
+
+function deviceTip(d: DeviceReport, si: SI): string {
+  const ctl = isBipolar(symbolOf(d)) ? ['VBE', 'VCE', 'VCEsat'] : ['VGS', 'VDS', 'VDSsat'];
+  return [`${d.name} (${d.role}), ${d.region}`, `ID ${si(d.id, 'A')}`, `${ctl[0]} ${si(d.vgs, 'V')}`, `${ctl[1]} ${si(d.vds, 'V')}`,
+    `${ctl[2]} ${si(d.vdsat, 'V')}`, `margin ${si(d.margin, 'V')}`, `gm/ID ${d.gmId.toPrecision(3)} /V`].join('\n');
+}
+
+function shortOf(d: DeviceReport, margin: number): CircuitPart['short'] {
+  // Bipolar devices report their forward-active region as `active`.
+  if (d.region !== 'saturation' && (d.region as string) !== 'active') return 'region';
+  return d.margin < margin ? 'margin' : undefined;
+}
+
+/** The circuit of one output: its template kind's devices and input, or its netlist. */
+export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit {
+  const wiring = report.wiring?.find((w) => w.mirrorIndex === m.mirrorIndex);
+  const margin = report.limits?.margin ?? DEFAULTS.margin;
+  const nets = new Map<string, CircuitNet>();
+  const net = (name: string): string => {
+    if (!nets.has(name)) {
+      const rail = name === 'vdd' ? 'vdd' : name === 'vss' || name === 'gnd' || name === '0' ? 'vss' : undefined;
+      const v = m.nodes[name] ?? (rail ? m.nodes[rail] : undefined);
+      nets.set(name, { name, ...(v !== undefined ? { v } : {}), ...(rail ? { rail } : {}) });
+    }
+    return name;
+  };
+  const parts: CircuitPart[] = [];
+  const addDevice = (d: DeviceReport, conn: Connection): void => {
+    const symbol = symbolOf(d);
+    const short = shortOf(d, margin);
+    const c = { d: net(conn.d), g: net(conn.g), s: net(conn.s) };
+    parts.push({ id: `dev:${d.name}`, symbol, pins: transistorPins(symbol, c), lines: deviceLines(d, si, short), device: d,
+      tip: deviceTip(d, si), ...(short ? { short } : {}) });
+  };
+  const top = m.type === 'pmos' ? 'vdd' : 'vss';
+  const far = top === 'vdd' ? 'vss' : 'vdd';
+  if (isTemplateKind(m.kind)) {
+    const kind = KINDS[m.kind];
+    const prefix = m.output !== undefined && m.name.endsWith(`.${m.output}`) && m.devices.some((d) => d.name.startsWith(`${m.output}.`)) ? `${m.output}.` : '';
+    const map = (n: string): string => (n === 'R' ? top : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
+    for (const d of m.devices) {
+      const conn = kind.reference[d.role] ?? kind.output[d.role];
+      if (conn) addDevice(d, { d: map(conn.d), g: map(conn.g), s: map(conn.s) });
+    }
+    const vb = nets.get('vbias');
+    if (vb) { vb.held = 'vbias'; if (m.vbias !== undefined) vb.v = m.vbias; }
+    const input = wiring?.input;
+    const node = net(map(kind.inputNode));
+    // The input hangs from the far rail: current flows down through it into the stack.
+    const [hi, lo] = m.type === 'pmos' ? [node, net(far)] : [net(far), node];
+    const pins: CircuitPin[] = [{ side: 'top', net: hi }, { side: 'bottom', net: lo }];
+    if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(m.iin, 'A')}`] });
+    else parts.push({ id: 'input', symbol: 'isrc', pins, lines: ['Iin', si(m.iin, 'A')] });
+    const out = nets.get(net(map('O')))!;
+    out.held = 'out';
+    out.note = `Iout ${si(m.iout, 'A')}`;
+  } else if (wiring?.netlist) {
+    const nl = wiring.netlist;
+    for (const d of m.devices) {
+      const w = nl.devices.find((x) => x.name === d.name);
+      if (w) addDevice(d, w);
+    }
+    for (const c of nl.currents) {
+      const lines = [c.name, si(c.i, 'A')];
+      // A current source draws its arrow down: the pin it takes current from on top.
+      parts.push({ id: `src:${c.name}`, symbol: 'isrc', pins: [{ side: 'top', net: net(c.from) }, { side: 'bottom', net: net(c.to) }], lines });
+    }
+    for (const r of nl.resistors) {
+      const [a, b] = (m.nodes[r.a] ?? 0) >= (m.nodes[r.b] ?? 0) ? [r.a, r.b] : [r.b, r.a];
+      parts.push({ id: `res:${r.name}`, symbol: 'res', pins: [{ side: 'top', net: net(a) }, { side: 'bottom', net: net(b) }], lines: [r.name, si(r.r, 'Ω')] });
+    }
+    for (const s of nl.voltages) { const n = nets.get(net(s.node))!; n.held = s.name; n.v = s.v; }
+    const out = nets.get(net(nl.output));
+    if (out) { out.held ??= 'out'; out.note = `Iout ${si(m.iout, 'A')}`; }
+  }
+  return { parts, nets };
+}
