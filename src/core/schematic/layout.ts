@@ -1,13 +1,12 @@
 /**
- * Places a circuit with ELK's layered algorithm (elkjs, its pure-JS build: no worker needed)
- * and orthogonal wire routing, current flowing down: parts whose bottom pin feeds a node sit
+ * Places a circuit with ELK's layered algorithm (elkjs; the front end hands in its pure-JS
+ * build, which runs without a worker, so only the commands that draw load it) and orthogonal wire routing, current flowing down: parts whose bottom pin feeds a node sit
  * above it, parts fed at their top or gate below it. Each rail pin gets its own rail symbol,
  * as on paper; a node of two or more pins becomes a junction, dotted when three or more meet.
  * Labels are part of the boxes ELK places (a part's text beside its symbol, a node's voltage
  * on one of its wires), so ELK keeps them apart. Deterministic: the same circuit gives the same
  * drawing (fixed seed, model order kept).
  */
-import ELK from 'elkjs/lib/elk.bundled.js';
 import type { ElkExtendedEdge, ElkLabel, ElkNode, ElkPort } from 'elkjs/lib/elk-api';
 import type { Circuit, CircuitPart, PinSide, SI } from './circuit';
 import type { Box, Point, Schematic, SchematicLabel, SchematicPart, SchematicWire, SymbolKind } from './model';
@@ -118,12 +117,13 @@ function graphOf(c: Circuit, si: SI): { graph: ElkNode; placed: Map<string, Plac
   return { graph: { id: 'root', layoutOptions: { ...OPTIONS, ...layering }, children, edges }, placed };
 }
 
-const elk = new ELK();
+/** What layout needs of ELK: `new ELK()` of `elkjs/lib/elk.bundled.js`. */
+export interface LayoutEngine { layout(graph: ElkNode): Promise<ElkNode> }
 
 /** Lays the circuit out: the drawing model, in px. */
-export async function layoutCircuit(name: string, c: Circuit, si: SI): Promise<Schematic> {
+export async function layoutCircuit(engine: LayoutEngine, name: string, c: Circuit, si: SI): Promise<Schematic> {
   const { graph, placed } = graphOf(c, si);
-  const out = await elk.layout(graph);
+  const out = await engine.layout(graph);
   const parts: SchematicPart[] = [];
   const labels: SchematicLabel[] = [];
   for (const n of out.children ?? []) {
