@@ -38,4 +38,11 @@ export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => (['nmo
   '    input: 10u',
   '    size: { w: 8u, l: 1u }',
   '    output: { v: 0.05 }',
+  // Saturated, but within limits.margin of the edge.
+  '  - name: tight',
+  '    kind: simple',
+  '    type: nmos',
+  '    input: 10u',
+  '    size: { w: 8u, l: 1u }',
+  '    output: { v: 0.15 }',
 ]));

@@ -66,7 +66,8 @@ export type SI = (v: number, unit: string, digits?: number) => string;
 function deviceLines(d: DeviceReport, si: SI, short: CircuitPart['short']): string[] {
   const area = (d as DeviceReport & { area?: number }).area;
   const size = area !== undefined && isBipolar(symbolOf(d)) ? `${si(area, 'm²')}·${d.m}` : `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}`;
-  const state = short === 'region' ? `✗ ${d.region}` : short === 'margin' ? `⚠ margin ${si(d.margin, 'V')}` : d.region;
+  // In words (no symbol glyphs: a font without them would draw something else).
+  const state = short === 'region' ? `${d.region}, not saturated` : short === 'margin' ? `short: margin ${si(d.margin, 'V')}` : d.region;
   return [d.name, size, `ID ${si(d.id, 'A')}`, state];
 }
 
