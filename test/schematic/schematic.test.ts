@@ -11,7 +11,7 @@ import { TEMPLATE_KINDS } from '../../src/core/kinds';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
-import type { FileReport } from '../../src/core/types';
+import type { FileReport, MirrorReport } from '../../src/core/types';
 import { EXAMPLE, everyKindText, exampleText } from './fixtures';
 
 const engine = new ELK();
@@ -105,6 +105,18 @@ describe('schematics of every kind', () => {
           if (i !== j) expect(overlap(s.labels[i]!, boxes[j]!), `${s.name}: ${s.labels[i]!.lines[0]} / ${j}`).toBe(false);
         }
       }
+    }
+  });
+
+  it('draws bipolar devices with the NPN and PNP symbols, labelled with area·m (a hand-made report until bipolar kinds land)', async () => {
+    for (const [name, type] of [['simple_nmos', 'npn'], ['simple_pmos', 'pnp']] as const) {
+      const m = kinds.mirrors.find((x) => x.name === name)!;
+      // The same operating point, its devices as bipolar transistors of 10 µm² emitter area.
+      const bipolar = { ...m, devices: m.devices.map((d) => ({ ...d, type, area: 10e-12 })) } as unknown as MirrorReport;
+      const s = (await schematicOf(engine, kinds, bipolar))!;
+      expect(s.parts.filter((p) => p.device).map((p) => p.symbol)).toEqual([type, type]);
+      // 10e-12 m² is 10 µm² by definition.
+      expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10 µm²·1');
     }
   });
 

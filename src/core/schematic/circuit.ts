@@ -6,6 +6,7 @@
 import { KINDS, isTemplateKind } from '../kinds';
 import type { Connection } from '../kinds';
 import { DEFAULTS } from '../defaults';
+import { formatPlain } from '../text/format';
 import type { DeviceReport, FileReport, MirrorReport } from '../types';
 import type { SymbolKind } from './model';
 
@@ -65,7 +66,8 @@ export type SI = (v: number, unit: string, digits?: number) => string;
 
 function deviceLines(d: DeviceReport, si: SI, short: CircuitPart['short']): string[] {
   const area = (d as DeviceReport & { area?: number }).area;
-  const size = area !== undefined && isBipolar(symbolOf(d)) ? `${si(area, 'm²')}·${d.m}` : `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}`;
+  // An emitter area (m²) reads in µm², as layouts give it: an SI prefix would scale m, not m².
+  const size = area !== undefined && isBipolar(symbolOf(d)) ? `${formatPlain(area * 1e12)} µm²·${d.m}` : `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}`;
   // In words (no symbol glyphs: a font without them would draw something else).
   const state = short === 'region' ? `${d.region}, not saturated` : short === 'margin' ? `short: margin ${si(d.margin, 'V')}` : d.region;
   return [d.name, size, `ID ${si(d.id, 'A')}`, state];
