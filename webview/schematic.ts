@@ -13,6 +13,9 @@ import { h } from './components';
 const SVG_NS = 'http://www.w3.org/2000/svg';
 let engine: LayoutEngine | undefined;
 const cache = new WeakMap<FileReport, Map<string, Promise<Schematic | undefined>>>();
+// The last drawing of each output: shown while a newer report's layout runs, so an edit in the
+// spec does not blank the figure.
+const lastDrawn = new Map<string, Element>();
 
 function layout(report: FileReport, m: MirrorReport): Promise<Schematic | undefined> {
   engine ??= new ELK();
@@ -33,9 +36,11 @@ function build(e: SvgElement): Element {
 /** The figure that will hold the schematic of `m`; filled when its layout is done. */
 export function schematicFigure(report: FileReport, m: MirrorReport, onDevice: (device: string) => void): HTMLElement {
   const fig = h('figure', { class: 'schematic-figure', 'data-schematic-of': m.name, 'aria-busy': 'true' });
+  const previous = lastDrawn.get(m.name);
+  if (previous) fig.append(previous.cloneNode(true));
   void layout(report, m).then((s) => {
     fig.removeAttribute('aria-busy');
-    if (!s) { fig.remove(); return; }
+    if (!s) { lastDrawn.delete(m.name); fig.remove(); return; }
     const svg = build(drawSchematic(s));
     for (const g of svg.querySelectorAll<SVGGElement>('.sch-device')) {
       const name = g.dataset.device ?? '';
@@ -44,6 +49,7 @@ export function schematicFigure(report: FileReport, m: MirrorReport, onDevice: (
         if (e.key === 'Enter' || e.key === ' ') { e.preventDefault(); onDevice(name); }
       });
     }
+    lastDrawn.set(m.name, svg.cloneNode(true) as Element);
     fig.replaceChildren(h('div', { class: 'scroll-x' }, svg), h('figcaption', {}, `Schematic of ${m.name} at its operating point`));
   });
   return fig;
