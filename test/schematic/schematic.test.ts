@@ -111,10 +111,18 @@ describe('schematics of every kind', () => {
   it('draws bipolar devices with the NPN and PNP symbols, labelled with area·m (a hand-made report until bipolar kinds land)', async () => {
     for (const [name, type] of [['simple_nmos', 'npn'], ['simple_pmos', 'pnp']] as const) {
       const m = kinds.mirrors.find((x) => x.name === name)!;
-      // The same operating point, its devices as bipolar transistors of 10 µm² emitter area.
-      const bipolar = { ...m, devices: m.devices.map((d) => ({ ...d, type, area: 10e-12 })) } as unknown as MirrorReport;
+      // The same currents and voltages, its devices reported as bipolar transistors of 10 µm²
+      // emitter area in the forward-active region (the bipolar report's own field names).
+      const bipolar = { ...m, type, devices: m.devices.map((d) => ({
+        name: d.name, role: d.role, type, area: 10e-12, m: d.m, ic: d.id, ib: d.id / 100, vbe: d.vgs, vce: d.vds, vcesat: 0.2,
+        margin: d.vds - 0.2, region: 'forward-active', gm: d.gm, rpi: 100 / d.gm, ro: d.ro, gds: d.gds, beta: 100,
+      })) } as unknown as MirrorReport;
       const s = (await schematicOf(engine, kinds, bipolar))!;
       expect(s.parts.filter((p) => p.device).map((p) => p.symbol)).toEqual([type, type]);
+      expect(s.parts.filter((p) => p.short)).toEqual([]);
+      const ref = m.devices.find((d) => d.name === 'ref')!;
+      expect(s.labels.find((l) => l.device === 'ref')?.lines.slice(2)).toEqual([`IC ${formatSI(ref.id, 'A')}`, 'forward-active']);
+      expect(s.parts.find((p) => p.device === 'ref')?.tip).toContain(`VCE ${formatSI(ref.vds, 'V')}`);
       // 10e-12 m² is 10 µm² by definition.
       expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10 µm²·1');
     }

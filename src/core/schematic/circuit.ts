@@ -64,24 +64,39 @@ function transistorPins(symbol: SymbolKind, conn: Connection): CircuitPin[] {
 
 export type SI = (v: number, unit: string, digits?: number) => string;
 
-function deviceLines(d: DeviceReport, si: SI, short: CircuitPart['short']): string[] {
-  const area = (d as DeviceReport & { area?: number }).area;
-  // An emitter area (m²) reads in µm², as layouts give it: an SI prefix would scale m, not m².
-  const size = area !== undefined && isBipolar(symbolOf(d)) ? `${formatPlain(area * 1e12)} µm²·${d.m}` : `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}`;
+/** A device's figures, MOSFET or bipolar: the bipolar report names them ic, vbe, vce, vcesat
+ *  and area where a MOSFET's are id, vgs, vds, vdsat and w/l (its `ic` is then the inversion
+ *  coefficient, never a current), so each is read by the device's own names. */
+interface Figures { i: number; vc: number; vo: number; vsat: number; size: string; good: string; goodWord: string; names: [string, string, string, string] }
+
+function figuresOf(d: DeviceReport, si: SI): Figures {
+  const x = d as unknown as Partial<Record<'id' | 'ic' | 'vgs' | 'vbe' | 'vds' | 'vce' | 'vdsat' | 'vcesat' | 'w' | 'l' | 'area', number>>;
+  const num = (v: number | undefined): number => v ?? NaN;
+  if (isBipolar(symbolOf(d))) {
+    // An emitter area (m²) reads in µm², as layouts give it: an SI prefix would scale m, not m².
+    const size = x.area !== undefined ? `${formatPlain(x.area * 1e12)} µm²·${d.m}` : `·${d.m}`;
+    return { i: num(x.ic), vc: num(x.vbe), vo: num(x.vce), vsat: num(x.vcesat), size, good: 'forward-active', goodWord: 'forward-active', names: ['IC', 'VBE', 'VCE', 'VCEsat'] };
+  }
+  return { i: num(x.id), vc: num(x.vgs), vo: num(x.vds), vsat: num(x.vdsat), size: `${si(num(x.w), 'm')}/${si(num(x.l), 'm')}·${d.m}`,
+    good: 'saturation', goodWord: 'saturated', names: ['ID', 'VGS', 'VDS', 'VDSsat'] };
+}
+
+function deviceLines(d: DeviceReport, f: Figures, si: SI, short: CircuitPart['short']): string[] {
   // In words (no symbol glyphs: a font without them would draw something else).
-  const state = short === 'region' ? `${d.region}, not saturated` : short === 'margin' ? `short: margin ${si(d.margin, 'V')}` : d.region;
-  return [d.name, size, `ID ${si(d.id, 'A')}`, state];
+  const state = short === 'region' ? `${d.region}, not ${f.goodWord}` : short === 'margin' ? `short: margin ${si(d.margin, 'V')}` : d.region;
+  return [d.name, f.size, `${f.names[0]} ${si(f.i, 'A')}`, state];
 }
 
-function deviceTip(d: DeviceReport, si: SI): string {
-  const ctl = isBipolar(symbolOf(d)) ? ['VBE', 'VCE', 'VCEsat'] : ['VGS', 'VDS', 'VDSsat'];
-  return [`${d.name} (${d.role}), ${d.region}`, `ID ${si(d.id, 'A')}`, `${ctl[0]} ${si(d.vgs, 'V')}`, `${ctl[1]} ${si(d.vds, 'V')}`,
-    `${ctl[2]} ${si(d.vdsat, 'V')}`, `margin ${si(d.margin, 'V')}`, `gm/ID ${d.gmId.toPrecision(3)} /V`].join('\n');
+function deviceTip(d: DeviceReport, f: Figures, si: SI): string {
+  const [i, vc, vo, vsat] = f.names;
+  return [`${d.name} (${d.role}), ${d.region}`, `${i} ${si(f.i, 'A')}`, `${vc} ${si(f.vc, 'V')}`, `${vo} ${si(f.vo, 'V')}`,
+    `${vsat} ${si(f.vsat, 'V')}`, `margin ${si(d.margin, 'V')}`, `gm ${si(d.gm, 'S')}`, `ro ${si(d.ro, 'Ω')}`].join('\n');
 }
 
-function shortOf(d: DeviceReport, margin: number): CircuitPart['short'] {
-  // Bipolar devices report their forward-active region as `active`.
-  if (d.region !== 'saturation' && (d.region as string) !== 'active') return 'region';
+/** Out of its working region (saturation for a MOSFET, forward-active for a bipolar device), or
+ *  in it within limits.margin of the edge. */
+function shortOf(d: DeviceReport, f: Figures, margin: number): CircuitPart['short'] {
+  if (d.region !== f.good) return 'region';
   return d.margin < margin ? 'margin' : undefined;
 }
 
@@ -101,10 +116,11 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
   const parts: CircuitPart[] = [];
   const addDevice = (d: DeviceReport, conn: Connection): void => {
     const symbol = symbolOf(d);
-    const short = shortOf(d, margin);
+    const f = figuresOf(d, si);
+    const short = shortOf(d, f, margin);
     const c = { d: net(conn.d), g: net(conn.g), s: net(conn.s) };
-    parts.push({ id: `dev:${d.name}`, symbol, pins: transistorPins(symbol, c), lines: deviceLines(d, si, short), device: d,
-      tip: deviceTip(d, si), ...(short ? { short } : {}) });
+    parts.push({ id: `dev:${d.name}`, symbol, pins: transistorPins(symbol, c), lines: deviceLines(d, f, si, short), device: d,
+      tip: deviceTip(d, f, si), ...(short ? { short } : {}) });
   };
   const top = m.type === 'pmos' ? 'vdd' : 'vss';
   const far = top === 'vdd' ? 'vss' : 'vdd';
