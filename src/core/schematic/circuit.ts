@@ -47,6 +47,8 @@ export function symbolOf(d: { type: string }): SymbolKind {
   return 'nmos';
 }
 
+const P_TYPES: ReadonlySet<string> = new Set(['pmos', 'pnp']);
+
 function isBipolar(s: SymbolKind): boolean {
   return s === 'npn' || s === 'pnp';
 }
@@ -122,12 +124,16 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     parts.push({ id: `dev:${d.name}`, symbol, pins: transistorPins(symbol, c), lines: deviceLines(d, f, si, short), device: d,
       tip: deviceTip(d, f, si), ...(short ? { short } : {}) });
   };
-  const top = m.type === 'pmos' ? 'vdd' : 'vss';
+  // The mirror's own rail: vdd for p-type (PMOS, PNP) mirrors, vss for n-type ones.
+  const pType = P_TYPES.has(m.type);
+  const top = pType ? 'vdd' : 'vss';
   const far = top === 'vdd' ? 'vss' : 'vdd';
   if (isTemplateKind(m.kind)) {
     const kind = KINDS[m.kind];
     const prefix = m.output !== undefined && m.name.endsWith(`.${m.output}`) && m.devices.some((d) => d.name.startsWith(`${m.output}.`)) ? `${m.output}.` : '';
-    const map = (n: string): string => (n === 'R' ? top : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
+    // `S` and `T` name the opposite supply in kinds that reach it (a helper's collector, a
+    // reference's closing mirror).
+    const map = (n: string): string => (n === 'R' ? top : n === 'S' || n === 'T' ? far : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
     for (const d of m.devices) {
       const conn = kind.reference[d.role] ?? kind.output[d.role];
       if (conn) addDevice(d, { d: map(conn.d), g: map(conn.g), s: map(conn.s) });
@@ -137,7 +143,7 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     const input = wiring?.input;
     const node = net(map(kind.inputNode));
     // The input hangs from the far rail: current flows down through it into the stack.
-    const [hi, lo] = m.type === 'pmos' ? [node, net(far)] : [net(far), node];
+    const [hi, lo] = pType ? [node, net(far)] : [net(far), node];
     const pins: CircuitPin[] = [{ side: 'top', net: hi }, { side: 'bottom', net: lo }];
     if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(m.iin, 'A')}`] });
     else parts.push({ id: 'input', symbol: 'isrc', pins, lines: ['Iin', si(m.iin, 'A')] });
