@@ -148,6 +148,20 @@ describe('the example', () => {
     }
   });
 
+  it('draws a link of the bias network as the wire it is: dist.tail feeds tail, whose input is that node', () => {
+    const feeder = example.mirrors.find((m) => m.name === 'dist.tail')!;
+    const fed = example.mirrors.find((m) => m.name === 'tail.lna')!;
+    expect(feeder.feeds).toBe('tail');
+    expect(fed.fedBy).toBe('dist.tail');
+    const out = exampleDrawn.get('dist.tail')!;
+    expect(out.parts.some((p) => p.symbol === 'link-bottom')).toBe(true);   // PMOS: the link below its output
+    expect(text(out)).toContain('to tail');
+    const input = exampleDrawn.get('tail.lna')!;
+    expect(input.parts.find((p) => p.id === 'input')?.symbol).toBe('link-top');   // NMOS: fed from above
+    expect(text(input)).toContain('from dist.tail');
+    expect(text(input)).toContain(`Iin ${formatSI(fed.iin, 'A')}`);
+  });
+
   it('the static report carries one schematic per output, named by data-schematic', () => {
     const html = renderHtmlReport(example, { script: '' }, undefined, exampleDrawn);
     for (const m of example.mirrors) expect(html).toContain(`data-schematic="${m.name}"`);

@@ -36,6 +36,8 @@ export interface CircuitNet {
   rail?: 'vdd' | 'vss';
   /** More words for a held node (the output's current). */
   note?: string;
+  /** The node is a link to another mirror of the network (it feeds that mirror's input). */
+  link?: string;
 }
 
 export interface Circuit { parts: CircuitPart[]; nets: Map<string, CircuitNet> }
@@ -145,11 +147,20 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     // The input hangs from the far rail: current flows down through it into the stack.
     const [hi, lo] = pType ? [node, net(far)] : [net(far), node];
     const pins: CircuitPin[] = [{ side: 'top', net: hi }, { side: 'bottom', net: lo }];
-    if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(m.iin, 'A')}`] });
+    if (m.fedBy !== undefined || input?.kind === 'link') {
+      // Fed by another mirror's output: the input node is that output's node, drawn as a link.
+      const from = m.fedBy ?? (input?.kind === 'link' ? input.from : '');
+      parts.push({ id: 'input', symbol: pType ? 'link-bottom' : 'link-top', pins: [{ side: pType ? 'top' : 'bottom', net: node }],
+        lines: [`from ${from}`, `Iin ${si(m.iin, 'A')}`] });
+    } else if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(m.iin, 'A')}`] });
     else parts.push({ id: 'input', symbol: 'isrc', pins, lines: ['Iin', si(m.iin, 'A')] });
     const out = nets.get(net(map('O')))!;
     out.held = 'out';
     out.note = `Iout ${si(m.iout, 'A')}`;
+    if (m.feeds !== undefined) {
+      out.link = m.feeds;
+      if (m.linkV !== undefined) out.v = m.linkV;
+    }
   } else if (wiring?.netlist) {
     const nl = wiring.netlist;
     for (const d of m.devices) {

@@ -25,6 +25,8 @@ const STROKES: Record<SymbolKind, () => SvgElement[]> = {
   res: () => [path('M12,0V10M12,38V48'), el('rect', { class: 'sch-sym', x: 6, y: 10, width: 12, height: 28 })],
   'held-top': () => [el('circle', { class: 'sch-sym', cx: 6, cy: 5, r: 4 }), path('M6,9V26')],
   'held-bottom': () => [path('M6,0V17'), el('circle', { class: 'sch-sym', cx: 6, cy: 21, r: 4 })],
+  'link-top': () => [path('M1,1H13V9L7,14L1,9Z'), path('M7,14V26')],
+  'link-bottom': () => [path('M7,0V12'), path('M7,12L13,17V25H1V17Z')],
   'rail-top': () => [path('M0,2H20', 'sch-sym sch-rail'), path('M10,2V14')],
   'rail-bottom': () => [path('M10,0V12'), path('M0,12H20', 'sch-sym sch-rail')],
 };

@@ -100,9 +100,13 @@ function graphOf(c: Circuit, si: SI): { graph: ElkNode; placed: Map<string, Plac
     if (net?.held) {
       // The holding terminal sits on the free side: below a node only fed from above.
       const h = `held:${name}`;
-      const lines = [`${name} ${volts} held`.trim(), ...(net.note ? [net.note] : [])];
-      if (pins.every(above)) { add(h, 'held-bottom', lines, { kind: 'held' }); edge(j, `${h}#top`); }
-      else { add(h, 'held-top', lines, { kind: 'held' }); edge(`${h}#bottom`, j); }
+      // A linked output is not held by a source: its node is the fed mirror's input.
+      const lines = net.link !== undefined
+        ? [`${name} ${volts}`.trim(), `to ${net.link}`, ...(net.note ? [net.note] : [])]
+        : [`${name} ${volts} held`.trim(), ...(net.note ? [net.note] : [])];
+      const [topSym, bottomSym] = net.link !== undefined ? ['link-top', 'link-bottom'] as const : ['held-top', 'held-bottom'] as const;
+      if (pins.every(above)) { add(h, bottomSym, lines, { kind: 'held' }); edge(j, `${h}#top`); }
+      else { add(h, topSym, lines, { kind: 'held' }); edge(`${h}#bottom`, j); }
     }
     for (const pin of [...pins].sort((a, b) => Number(!above(a)) - Number(!above(b)))) {
       if (above(pin)) edge(`${pin.part}#${pin.side}`, j, label);
@@ -135,7 +139,7 @@ export async function layoutCircuit(engine: LayoutEngine, name: string, c: Circu
     const h = n.height ?? s.h;
     // A symbol taller than its text fills the node; a shorter one (a held terminal, a rail)
     // keeps its pin on the node's edge.
-    const box: Box = { x, y: p.symbol === 'rail-bottom' || p.symbol === 'held-bottom' ? y : y + h - s.h, w: s.w, h: s.h };
+    const box: Box = { x, y: p.symbol!.endsWith('-bottom') ? y : y + h - s.h, w: s.w, h: s.h };
     const part = p.part;
     parts.push({ id: n.id, symbol: p.symbol!, box, ...(p.device ? { device: p.device } : {}),
       ...(part?.short ? { short: part.short } : {}), ...(part?.tip ? { tip: part.tip } : {}) });

@@ -7,7 +7,7 @@
 /** Symbols qpoint draws. Transistors hang between a top and a bottom pin with a control pin on
  *  the left: NMOS drain over source, PMOS source over drain (the mirror image), NPN collector
  *  over emitter, PNP emitter over collector. */
-export type SymbolKind = 'nmos' | 'pmos' | 'npn' | 'pnp' | 'isrc' | 'res' | 'held-top' | 'held-bottom' | 'rail-top' | 'rail-bottom';
+export type SymbolKind = 'nmos' | 'pmos' | 'npn' | 'pnp' | 'isrc' | 'res' | 'held-top' | 'held-bottom' | 'link-top' | 'link-bottom' | 'rail-top' | 'rail-bottom';
 
 export interface Point { x: number; y: number }
 export interface Box { x: number; y: number; w: number; h: number }

@@ -24,6 +24,10 @@ export const SYMBOLS: Record<SymbolKind, SymbolShape> = {
   // A node held at a voltage: an open terminal on a stem, above its node or below it.
   'held-top': { w: 12, h: 26, pins: { bottom: { x: 6, y: 26 } } },
   'held-bottom': { w: 12, h: 26, pins: { top: { x: 6, y: 0 } } },
+  // A link to another mirror of the network (this input fed by it, this output feeding it):
+  // a tag on a stem, above its node or below it.
+  'link-top': { w: 14, h: 26, pins: { bottom: { x: 7, y: 26 } } },
+  'link-bottom': { w: 14, h: 26, pins: { top: { x: 7, y: 0 } } },
   // A rail above the part it feeds (pin at the bottom) or below it (pin at the top).
   'rail-top': { w: 20, h: 14, pins: { bottom: { x: 10, y: 14 } } },
   'rail-bottom': { w: 20, h: 14, pins: { top: { x: 10, y: 0 } } },
