@@ -6,6 +6,7 @@
 import type { FileReport, MirrorReport, Range } from '../src/core/types';
 import { badge, button, divider, figures, h, section, severityLabel, table, tag, type TableRow } from './components';
 import { cssId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
+import { markSchematicDevice, schematicFigure } from './schematic';
 import type { PanelState } from './state';
 import {
   CORNER_COLUMNS, cornerRows, deviceColumns, deviceRow, fileFindings, findingRows, findingsFor,
@@ -158,9 +159,24 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
       h('p', { class: 'solve-note severity-error' }, `No operating point within the supply${m.solveNote ? `: ${m.solveNote}` : ''}.`),
       section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'note' }, 'No findings.')));
   }
+  // A device clicked in the schematic: its row selected, and revealed in the spec.
+  const onDevice = (name: string): void => {
+    const table = document.querySelector(`table.devices[data-mirror="${CSS.escape(m.name)}"]`);
+    const key = `dev:${m.name}:${name}`;
+    for (const tr of table?.querySelectorAll<HTMLElement>('tr[data-key]') ?? []) {
+      const on = tr.dataset.key === key;
+      tr.classList.toggle('selected', on);
+      tr.setAttribute('aria-selected', String(on));
+      if (on) tr.scrollIntoView({ block: 'nearest' });
+    }
+    markSchematicDevice(document, m.name, name);
+    const d = m.devices.find((x) => x.name === name);
+    const reveal = d ? deviceRow(report, m, d, own).reveal : undefined;
+    if (reveal && ctx.mode === 'panel') ctx.onReveal(reveal);
+  };
   const body: (HTMLElement | undefined)[] = [
     m.converged ? undefined : h('p', { class: 'solve-note severity-error' }, `The DC solve did not converge${m.solveNote ? `: ${m.solveNote}` : ''}.`),
-    figures(summaryFigures(m), { 'data-figures': 'summary' }),
+    h('div', { class: 'figures-schematic' }, figures(summaryFigures(m), { 'data-figures': 'summary' }), schematicFigure(report, m, onDevice)),
   ];
   const reqs = requirementViews(m, own);
   if (reqs.length > 0) {

@@ -3,7 +3,7 @@
  * FileReport. Every front end (extension worker, CLI, tests) calls this one function, so what a
  * designer sees in the editor, the panel and CI is computed once, the same way.
  */
-import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
+import type { Anchor, FileReport, Finding, MirrorReport, MirrorWiring, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
 import type { ParsedSpec } from './spec/index';
 import { resolveText } from './resolve';
@@ -15,7 +15,7 @@ import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
-import { mirrorAt } from './mirror-at';
+import { indexOf, mirrorAt } from './mirror-at';
 import { attachNetworks } from './network/report';
 import { networkFindings } from './network/findings';
 
@@ -81,6 +81,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
     if (net.networks.length > 0) report.networks = net.networks;
+    report.wiring = wiringOf(spec);
     return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.
@@ -104,6 +105,20 @@ function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[
     const range = parsed.source.value(['mirrors', index, 'name']) ?? parsed.source.rangeFor(['mirrors', index]);
     return name === undefined ? { index, range } : { index, name, range };
   });
+}
+
+/** Each mirror's wiring for its schematic: what the figures do not say. */
+function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
+  const out: MirrorWiring[] = [];
+  spec.mirrors.forEach((m) => {
+    const mirrorIndex = indexOf(m);
+    if (m.kind !== 'netlist') { out.push({ mirrorIndex, input: m.input }); return; }
+    out.push({ mirrorIndex, netlist: {
+      devices: m.devices.map((d) => ({ name: d.name, d: d.d, g: d.g, s: d.s })),
+      currents: m.currents, voltages: m.voltages, resistors: m.resistors, output: m.output.node,
+    } });
+  });
+  return out;
 }
 
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */

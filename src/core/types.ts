@@ -442,8 +442,26 @@ export interface FileReport {
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];
+  /** What a schematic needs beyond the figures, per mirror: how a template's input is driven
+   *  and a netlist's own wiring (src/core/schematic/). Not part of the CLI's JSON. */
+  wiring?: MirrorWiring[];
   /** Linked groups of mirrors (design §9.3), root first; absent without links. */
   networks?: NetworkReport[];
+}
+
+/** One mirror's wiring for its schematic: a template kind's input source, or a netlist's parts
+ *  on their nodes. */
+export interface MirrorWiring {
+  mirrorIndex: number;
+  input?: InputSource;
+  netlist?: {
+    devices: { name: string; d: string; g: string; s: string }[];
+    currents: NetlistCurrentSource[];
+    voltages: NetlistVoltageSource[];
+    resistors: NetlistResistor[];
+    /** The measured output node. */
+    output: string;
+  };
 }
 
 /** One bias network: a root and the mirrors it feeds, solved as one circuit. */

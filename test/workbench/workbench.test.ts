@@ -14,7 +14,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { ensureCodeServer } from '../../scripts/workbench/install';
@@ -196,6 +196,33 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     }
     expect(await body.innerText()).not.toContain('15 µA');
     await shot(page, '5-panel');
+
+    // The selected output's schematic, in the light, dark and high-contrast themes: set as the
+    // workspace's colour theme, which the workbench applies live; the drawing's wires take the
+    // theme's editor foreground each time.
+    const wire = frame.locator('svg[data-schematic] .sch-wire').first();
+    await wire.waitFor({ state: 'attached', timeout: 30_000 });
+    await frame.locator('svg[data-schematic]').first().scrollIntoViewIfNeeded();
+    const strokes = new Set<string>();
+    const themeClass = { light: 'vs', dark: 'vs-dark', 'high-contrast': 'hc-black' } as const;
+    const themeOf = async (): Promise<string | undefined> => (await page.locator('.monaco-workbench').first().getAttribute('class'))
+      ?.split(/\s+/).find((c) => ['vs', 'vs-dark', 'hc-black', 'hc-light'].includes(c));
+    const initial = await themeOf();
+    const settingsDir = join(ws.dir, '.vscode');
+    mkdirSync(settingsDir, { recursive: true });
+    for (const [name, theme] of [['light', 'Default Light Modern'], ['dark', 'Default Dark Modern'], ['high-contrast', 'Default High Contrast']] as const) {
+      writeFileSync(join(settingsDir, 'settings.json'), JSON.stringify({ 'workbench.colorTheme': theme }));
+      await page.locator(`.monaco-workbench.${themeClass[name]}`).waitFor({ timeout: 20_000 });
+      const previous = [...strokes].at(-1) ?? '';
+      await expect.poll(() => wire.evaluate((e) => getComputedStyle(e).stroke), { timeout: 10_000 }).not.toBe(previous);
+      strokes.add(await wire.evaluate((e) => getComputedStyle(e).stroke));
+      await stableScreenshot(page, 5_000);
+      await shot(page, `5-schematic-${name}`);
+    }
+    expect(strokes.size).toBe(3);
+    // Back to the theme the run started in, for the screenshots that follow.
+    rmSync(settingsDir, { recursive: true, force: true });
+    await expect.poll(themeOf, { timeout: 20_000 }).toBe(initial);
 
     // Edit the tail bank's input current in the editor, as a designer types it: go to the
     // value `10u` of `input:` and overtype `10` with `15`.

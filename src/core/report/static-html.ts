@@ -1,6 +1,7 @@
 /**
  * The report's static body: every mirror's figures, devices, findings, corners and Monte Carlo
- * as HTML tables, and its Iout/Rout sweep and histogram as inline SVG (svg.ts). It reads without
+ * as HTML tables, its schematic with the operating point and its Iout/Rout sweep and histogram
+ * as inline SVG (schematic/, svg.ts; schematics are laid out beforehand, `schematicsOf`). It reads without
  * JavaScript, prints, and archives: the file states the tool version, when it was written and a
  * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
@@ -9,6 +10,7 @@ import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
 import { referenceText } from './text';
+import { schematicSvg, type Schematic } from '../schematic';
 
 /** What the page says about its own making; the caller supplies it (the core has no clock). */
 export interface ReportStamp {
@@ -80,13 +82,14 @@ function deviceRow(d: DeviceReport): string[] {
   ];
 }
 
-function mirrorSection(m: MirrorReport, findings: Finding[]): string {
+function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schematic | undefined): string {
   const out: string[] = [`<section class="mirror-static" data-mirror="${esc(m.name)}"><h2>${esc(m.name)} <small>${m.kind} ${m.type.toUpperCase()}</small></h2>`];
   if (m.beyondRails || !m.converged) {
     out.push(`<p class="solve-note severity-error">${m.beyondRails ? 'No operating point within the supply' : 'The DC solve did not converge'}${m.solveNote ? `: ${esc(m.solveNote)}` : ''}.</p>`);
   }
   if (!m.beyondRails) {
-    out.push(table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures'));
+    const figures = table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures');
+    out.push(schematic ? `<div class="figures-schematic">${figures}<figure class="schematic-figure">${schematicSvg(schematic)}<figcaption>Schematic of ${esc(m.name)} at its operating point</figcaption></figure></div>` : figures);
     out.push(table(`Devices of ${m.name}`, ['Device', 'W/L·m', 'ID', 'VGS', 'VDS', 'VDSsat', 'Margin', 'Region', 'gm/ID', 'IC', 'ro'], m.devices.map(deviceRow), 'devices'));
   }
   const own = findings.filter((f) => f.message.startsWith(`${m.name}: `) || f.message.startsWith(`${m.mirror}: `));
@@ -118,12 +121,12 @@ function mirrorSection(m: MirrorReport, findings: Finding[]): string {
 }
 
 /** The whole static body. */
-export function renderStaticReport(report: FileReport, stamp?: ReportStamp): string {
+export function renderStaticReport(report: FileReport, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>): string {
   const parts = [
     `<h1>${esc(report.title ?? report.file)}</h1>`,
     stampLine(report, stamp),
     findingsTable(report.file, report.findings),
-    ...report.mirrors.map((m) => mirrorSection(m, report.findings)),
+    ...report.mirrors.map((m) => mirrorSection(m, report.findings, schematics?.get(m.name))),
   ];
   if (report.networks?.length) {
     parts.push(table('Bias networks', ['Root', 'Members', 'Supply current', 'Power', 'Worst leaf'], report.networks.map((n) => [
