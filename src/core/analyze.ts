@@ -5,7 +5,7 @@
  */
 import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
-import type { ParsedSpec } from './spec/index';
+import type { ParsedSpec, TableTexts } from './spec/index';
 import { resolveText } from './resolve';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
@@ -30,6 +30,9 @@ export interface AnalyzeOptions {
   anchors?: boolean;
   /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
   cornerFixes?: boolean;
+  /** Characterisation-table texts by the name the spec writes (`table:`), read by the front end
+   *  (relative to the spec, inside its folder, size-capped): the core reads no file. */
+  tables?: TableTexts;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -43,7 +46,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
   try {
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults });
+    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults, ...(opts.tables ? { tables: opts.tables } : {}) });
     parsed = resolved.parsed;
     const spec = parsed.spec;
     if (!spec) {
@@ -59,7 +62,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
-      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
     }
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);

@@ -45,7 +45,22 @@ export interface Finding {
 export type Polarity = 'nmos' | 'pmos';
 /** The kinds are described once, in src/core/kinds/. */
 export type { MirrorKind, TemplateKind };
-export type ModelKind = 'square-law' | 'ekv';
+export type ModelKind = 'square-law' | 'ekv' | 'table';
+
+/** A characterisation table as read (design §11): every axis ascending, a full grid. Not
+ *  JSON-serialisable (a typed array); it stays inside the core. */
+export interface DeviceTable {
+  /** The `table:` value as written (a file name relative to the spec). */
+  file: string;
+  l: number[];       // m
+  vgs: number[];     // V (magnitudes for PMOS)
+  vds: number[];     // V
+  vsb: number[];     // V
+  /** K, when the table has a temperature column (or several files, one per temperature). */
+  temperature?: number[];
+  /** A per metre of width at [t][l][vsb][vds][vgs] (vgs fastest); 0 on a vds = 0 row. */
+  id: Float64Array;
+}
 
 /** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
 export interface DeviceParams {
@@ -62,7 +77,13 @@ export interface DeviceParams {
   abeta?: number;    // m, Pelgrom current-factor coefficient (pair, relative)
   lmin?: number;     // m
   wmin?: number;     // m
+  /** The device's characterisation table: its devices follow the table model (kp and vt0 are
+   *  then not read). */
+  table?: DeviceTable;
 }
+
+/** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
+export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
 
 export interface ProcessSpec {
   model: ModelKind;
@@ -179,8 +200,10 @@ export type ParamDelta = { add: number } | { scale: number };  // scale: multipl
 
 export interface CornerSpec {
   name: string;
-  nmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
-  pmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  nmos: Partial<Record<NumericParam, ParamDelta>>;
+  pmos: Partial<Record<NumericParam, ParamDelta>>;
+  /** Tables the corner puts in place of the process's (a foundry's ss/ff characterisation). */
+  tables?: { nmos?: DeviceTable; pmos?: DeviceTable };
   temperature?: number;  // K
   vdd?: number;
   vss?: number;

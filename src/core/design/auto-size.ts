@@ -24,8 +24,9 @@ import type {
 import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
 import { isBank } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
-import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
-import { MODELS } from '../models/registry';
+import { lambdaAt } from '../models/thermal';
+import { MODELS, modelKindOf } from '../models/registry';
+import { sizingContextOf } from '../models/device';
 import type { DeviceModel, SizingContext } from '../models/model';
 import { quantizeSize } from '../sizing/quantize';
 import { formatSI } from '../text/format';
@@ -184,8 +185,9 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
   const params = proc[m.type];
-  const model = MODELS[proc.model];
-  const ctxT: SizingContext = { kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
+  const model = MODELS[modelKindOf(params, proc.model)];
+  // A table device reads its target off its own table at its length, so the context is per slot.
+  const ctxAt = (l: number): SizingContext => sizingContextOf(params, proc, l);
   const inputBranch = KINDS[m.kind].inputStack;
   const pairOut = KINDS[m.kind].pair.out;
   const bank = isBank(m);
@@ -222,6 +224,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
         s.note = ref.note;
         continue;
       }
+      const ctxT = ctxAt(s.size.l);
       const aspect = model.aspectForTarget(ctxT, s.planned, target, s.clm);
       if (aspect === undefined) {
         s.note = unreachableNote(model, ctxT, target);

@@ -12,7 +12,8 @@ import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
 import { readLimits, readProcess, readSupplies } from './process';
 import { missing, readEnum, readMap, readString } from './read';
-import { typeName } from './values';
+import { typeName, type ValueScope } from './values';
+import type { TableTexts } from './tables';
 
 /**
  * Mirrors already elaborated from the same items: a re-check after a fix to mirror `except` reads
@@ -25,7 +26,7 @@ export interface ElaborateReuse {
 }
 
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
-export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse): ResolvedSpec | undefined {
+export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse, tables?: TableTexts): ResolvedSpec | undefined {
   if (!isRecord(data)) {
     sink.error('wrong-type', `a bias spec is a mapping (\`format: 1\`, \`process\`, \`supplies\`, \`mirrors\`); got ${typeName(data)}`, [], undefined, 'type');
     return undefined;
@@ -38,7 +39,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     formatOk = false;
   }
   const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
-  const scope = resolveParams(data.params, sink);
+  const scope: ValueScope = { ...resolveParams(data.params, sink), ...(tables ? { tables } : {}) };
   const proc = readProcess(scope, data.process);
   const supplies = readSupplies(scope, data.supplies);
   const limits = readLimits(scope, data.limits);

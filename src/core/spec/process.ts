@@ -1,17 +1,18 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
 import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
 import { MODEL_NAMES } from '../models/registry';
-import type { DeviceParams, Limits, ModelKind, Polarity, SpecPath, Supplies } from '../types';
+import type { DeviceParams, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
 import { missing, readEnum, readMap } from './read';
 import type { Data } from './read';
 import { resolveNumber } from './values';
+import { readTableValue } from './tables';
 import type { ValueOptions, ValueScope } from './values';
 
 interface ParamRule { q: Quantity; opts?: ValueOptions }
 
 /** Quantity and sign rule of each device parameter. */
-export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
+export const DEVICE_PARAM_RULES: Record<NumericParam, ParamRule> = {
   kp: { q: 'transconductanceParam', opts: { positive: true } },
   vt0: { q: 'voltage' },
   lambda: { q: 'inverseVoltage', opts: { nonNegative: true } },
@@ -27,7 +28,7 @@ export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
   wmin: { q: 'length', opts: { positive: true } },
 };
 
-export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as (keyof DeviceParams)[];
+export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as NumericParam[];
 
 /** A temperature in kelvin; a bare number is °C, and one that looks like kelvin gets a warning. */
 export function readTemperature(scope: ValueScope, raw: unknown, path: SpecPath): number | undefined {
@@ -47,7 +48,8 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
   const d = readMap(scope.sink, raw, path);
   if (!d) return undefined;
   const before = scope.sink.errorCount;
-  const got: Partial<Record<keyof DeviceParams, number>> = {};
+  if (d.table !== undefined) return readTableDevice(scope, d, path);
+  const got: Partial<Record<NumericParam, number>> = {};
   for (const key of DEVICE_PARAM_KEYS) {
     if (d[key] === undefined) continue;
     const rule = DEVICE_PARAM_RULES[key];
@@ -72,6 +74,34 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
     n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex,
   };
   for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
+  return out;
+}
+
+/** Keys a table device reads: the rest are in the table. */
+const TABLE_DEVICE_KEYS: readonly NumericParam[] = ['n', 'avt', 'abeta', 'lmin', 'wmin'];
+
+/** A device given by its characterisation table (design §11): its current comes from the
+ *  table, so kp, vt0, λ, γ and the temperature laws are not read (a warning says so); kp = 1
+ *  and vt0 = 0 are stored so a corner's `kp: -10%` scales the table's current and `vt0: +50m`
+ *  shifts its gate. */
+function readTableDevice(scope: ValueScope, d: Data, path: SpecPath): DeviceParams | undefined {
+  const before = scope.sink.errorCount;
+  const table = readTableValue(scope.sink, scope.tables, d.table, [...path, 'table']);
+  const got: Partial<Record<NumericParam, number>> = {};
+  for (const key of DEVICE_PARAM_KEYS) {
+    if (d[key] === undefined) continue;
+    if (!TABLE_DEVICE_KEYS.includes(key)) {
+      scope.sink.warning('table-ignores', `\`${key}\` is not used: this device's current comes from its table`, [...path, key], 'key');
+      continue;
+    }
+    const rule = DEVICE_PARAM_RULES[key];
+    const v = resolveNumber(scope, d[key], [...path, key], rule.q, rule.opts);
+    if (v !== undefined) got[key] = v;
+  }
+  if (scope.sink.errorCount > before || !table) return undefined;
+  const dd = DEFAULTS.device;
+  const out: DeviceParams = { kp: 1, vt0: 0, lambda: 0, gamma: 0, phi: dd.phi, n: got.n ?? dd.n, tcv: 0, bex: 0, table };
+  for (const k of ['avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
   return out;
 }
 
@@ -109,8 +139,17 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
     const d = readDevice(scope, p[type], [...path, type], type);
     if (d) out[type] = d;
   }
+  if (out.model === 'table') {
+    for (const type of written) {
+      if (isTableless(p[type])) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; \`process.${type}\` is missing \`table\``, [...path, type], 'key', 'missing:table');
+    }
+  }
   out.ok = scope.sink.errorCount === before;
   return out;
+}
+
+function isTableless(raw: unknown): boolean {
+  return typeof raw === 'object' && raw !== null && (raw as Data).table === undefined;
 }
 
 export function readSupplies(scope: ValueScope, raw: unknown): Supplies | undefined {

@@ -12,19 +12,19 @@
  *   `vbias` that qpoint picks is picked again at each corner by the same rule (the reference at
  *   VDSsat + limits.margin): it models a bias generator that tracks the process.
  */
-import type { CornerResult, CornerSpec, DeviceParams, ParamDelta, ResolvedSpec } from '../types';
+import type { CornerResult, CornerSpec, DeviceParams, NumericParam, ParamDelta, ResolvedSpec } from '../types';
 import { measureMirror } from '../analysis/index';
 import { mirrorAt } from '../mirror-at';
 
-type NumericKey = { [K in keyof DeviceParams]-?: DeviceParams[K] extends number | undefined ? K : never }[keyof DeviceParams];
 
 export function applyDelta(value: number, delta: ParamDelta): number {
   return 'add' in delta ? value + delta.add : value * (1 + delta.scale);
 }
 
-function shiftParams(p: DeviceParams, deltas: CornerSpec['nmos']): DeviceParams {
+function shiftParams(p: DeviceParams, deltas: CornerSpec['nmos'], table: DeviceParams['table']): DeviceParams {
   const out: DeviceParams = { ...p };
-  for (const key of Object.keys(deltas) as NumericKey[]) {
+  if (table) out.table = table;
+  for (const key of Object.keys(deltas) as NumericParam[]) {
     const delta = deltas[key];
     const value = out[key];
     // A parameter the process leaves unset (e.g. lref, avt) has nothing to shift.
@@ -42,8 +42,8 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
     process: {
       ...spec.process,
       temperature: corner.temperature ?? spec.process.temperature,
-      nmos: shiftParams(spec.process.nmos, corner.nmos),
-      pmos: shiftParams(spec.process.pmos, corner.pmos),
+      nmos: shiftParams(spec.process.nmos, corner.nmos, corner.tables?.nmos),
+      pmos: shiftParams(spec.process.pmos, corner.pmos, corner.tables?.pmos),
     },
     supplies: { vdd: corner.vdd ?? spec.supplies.vdd, vss: corner.vss ?? spec.supplies.vss },
   };
