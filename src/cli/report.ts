@@ -6,6 +6,7 @@ import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
 import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
+import { readTables } from './tables';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -23,7 +24,7 @@ export function runReport(c: ReportCommand): number {
   if (!read) return 2;
   const name = read.name;
   // The page carries what a review needs: curves, every named corner, and Monte Carlo on request.
-  const report = analyzeText(read.text, name, { curve: true, corners: true, ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
+  const report = analyzeText(read.text, name, { curve: true, corners: true, tables: readTables(c.file, read.text), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
   try {
     mkdirSync(dirname(c.html), { recursive: true });
     const stamp = { version: VERSION, date: new Date().toISOString(), inputHash: `sha256:${createHash('sha256').update(read.text).digest('hex')}` };

@@ -18,6 +18,7 @@ import { checkCompliance, checkRout, checkSigma } from './checks/requirements';
 import { checkHeadroom } from './checks/headroom';
 import { checkInversion } from './checks/inversion';
 import { checkGeometry } from './checks/geometry';
+import { checkTableRange } from './checks/table-range';
 import { indexOf } from '../mirror-at';
 
 export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
@@ -84,6 +85,7 @@ export function detect(rc: RuleContext): Draft[] {
     run(() => checkHeadroom(rc, site));
     run(() => checkGeometry(rc, site));
     run(() => checkInversion(rc, site, inversionSeen));
+    run(() => checkTableRange(rc, site));
   }
   return drafts;
 }

@@ -12,20 +12,27 @@
  * - Mismatch: a Monte Carlo ΔVT shifts the gate (vt0 holds ΔVT), Δβ/β scales the current
  *   (beta holds m·W·(1 + Δβ/β)), so Pelgrom's coefficients act as on the other models.
  * - Design targets are read off the table's gm/ID curve at the device's length, vsb = 0 and
- *   the reference VDS (half the table's largest vds).
+ *   the reference VDS (half the table's largest vds); gate drives for a current (initial
+ *   guesses, VDSsat for a current) at the table's largest vds.
  */
 import type { ChannelEval } from '../core';
 import type { ModelDevice } from '../device';
 import type { DeviceModel, SizingContext } from '../model';
-import { gmIdFromIc } from '../ekv';
 import type { DesignTarget } from '../../types';
 import { evalSlice, type SlicePoint, type TableSlice } from './slice';
 
 const pt: SlicePoint = { id: 0, gm: 0, gds: 0, dvsb: 0 };
 
-/** V, the VDS at which design targets and gate drives are read: half the table's largest vds. */
+/** V, the VDS at which design targets are read: half the table's largest vds (where gm/ID
+ *  tables are commonly read, mid-supply). */
 export function referenceVds(s: TableSlice): number {
   return 0.5 * s.vds.x[s.vds.x.length - 1]!;
+}
+
+/** V, the VDS of a gate drive "in saturation": the table's largest vds, so even a device at a
+ *  large overdrive is saturated there. */
+function saturatedVds(s: TableSlice): number {
+  return s.vds.x[s.vds.x.length - 1]!;
 }
 
 /** The inversion coefficient named by gm/ID (see the file comment). */
@@ -54,15 +61,19 @@ function vgsForGmId(s: TableSlice, g: number): number | 'above' | 'below' {
   let lo = x[0]!, hi = x[x.length - 1]!;
   if (g > gmIdAt(s, lo, vds)) return 'above';
   if (g < gmIdAt(s, hi, vds)) return 'below';
-  for (let k = 0; k < 100 && hi - lo > 1e-9; k++) {
+  for (let k = 0; k < 100 && hi - lo > 1e-14; k++) {
     const mid = 0.5 * (lo + hi);
     if (gmIdAt(s, mid, vds) > g) lo = mid; else hi = mid;
   }
   return 0.5 * (lo + hi);
 }
 
+/** gm/ID of a target: VOV as 2/(gm/ID) and IC through the same interpolation the channel
+ *  reports IC with, so a device sized for its own reported IC keeps its size. */
 function gmIdTarget(ctx: SizingContext, target: DesignTarget): number {
-  return target.kind === 'gmid' ? target.value : target.kind === 'vov' ? 2 / target.value : gmIdFromIc(target.value, ctx.n, ctx.ut);
+  if (target.kind === 'gmid') return target.value;
+  if (target.kind === 'vov') return 2 / target.value;
+  return 1 / (ctx.n * ctx.ut * (0.5 + Math.sqrt(0.25 + target.value)));
 }
 
 export const TABLE: DeviceModel = {
@@ -88,10 +99,10 @@ export const TABLE: DeviceModel = {
   /** Bisection on the table's own curve at the reference VDS. */
   gateDrive(dev, id, vsb): number {
     const s = sliceOf(dev);
-    const x = s.vgs, vds = referenceVds(s);
+    const x = s.vgs, vds = saturatedVds(s);
     let lo = x[0]! - 0.5, hi = x[x.length - 1]! + 0.5;
     if (!(id > 0) || !(dev.beta > 0)) return lo + dev.vt0;
-    for (let k = 0; k < 60; k++) {
+    for (let k = 0; k < 64; k++) {
       const mid = 0.5 * (lo + hi);
       evalSlice(s, mid, vds, vsb, pt);
       if (dev.beta * pt.id < id) lo = mid; else hi = mid;
@@ -102,7 +113,7 @@ export const TABLE: DeviceModel = {
   saturationVoltage(dev, id): number {
     const s = sliceOf(dev);
     const vgs = TABLE.gateDrive(dev, id, 0) - dev.vt0;
-    const g = gmIdAt(s, vgs, referenceVds(s));
+    const g = gmIdAt(s, vgs, saturatedVds(s));
     return Math.max(g > 0 ? 2 / g : 0, 4 * dev.ut);
   },
 

@@ -1,5 +1,5 @@
 /** Small helpers shared by the checks. */
-import type { DeviceReport, ResolvedSpec } from '../../types';
+import type { DeviceParams, DeviceReport, ResolvedSpec } from '../../types';
 import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
@@ -11,6 +11,11 @@ export function siteDevices(site: Site): DeviceReport[] {
     const ref = refOf(site, d);
     return ref.output === undefined || ref.output === site.outputIndex;
   });
+}
+
+/** The process parameters a reported device was solved with. */
+export function paramsOfDevice(spec: ResolvedSpec, _site: Site, d: DeviceReport): DeviceParams {
+  return spec.process[d.type];
 }
 
 export function isSaturated(d: DeviceReport): boolean {
