@@ -85,6 +85,9 @@ export interface DeviceParams {
 /** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
 export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
 
+/** A named device flavour of the process (`process.devices`): thin- or thick-oxide, low-VT… */
+export interface DeviceFlavour { type: Polarity; params: DeviceParams }
+
 export interface ProcessSpec {
   model: ModelKind;
   tnom: number;         // K
@@ -92,6 +95,8 @@ export interface ProcessSpec {
   grid?: number;        // m
   nmos: DeviceParams;
   pmos: DeviceParams;
+  /** Device flavours by name; a template mirror picks one with `device:`. */
+  devices?: Record<string, DeviceFlavour>;
 }
 
 export interface Supplies { vdd: number; vss: number }
@@ -160,6 +165,8 @@ export interface TemplateMirror {
   devices: Record<string, DeviceSize>;
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;
+  /** The process device flavour its devices are (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
   design?: DesignTarget;
   outputs: MirrorOutput[];
   path: SpecPath;  // ['mirrors', i]

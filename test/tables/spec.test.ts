@@ -98,3 +98,23 @@ describe('a clean table spec', () => {
     expect(Math.abs(ref.gmId / 14 - 1)).toBeLessThan(0.03);
   });
 });
+
+describe('device flavours: process.devices and a mirror\'s device:', () => {
+  const LVT = tableCsv(modelChannel({ ...N, vt0: 0.3 }, 'ekv'), G);
+  const text = `format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\n  pmos: { kp: 70u, vt0: 0.45 }\n  devices:\n    lvt: { type: nmos, table: lvt.csv }\nsupplies: { vdd: 1.8 }\nmirrors:\n  - name: a\n    kind: simple\n    type: nmos\n    input: 10u\n    size: { w: 4u, l: 1u }\n    output: { v: 0.9 }\n  - name: b\n    kind: simple\n    type: nmos\n    device: lvt\n    input: 10u\n    size: { w: 4u, l: 1u }\n    output: { v: 0.9 }\n`;
+  it('a mirror with device: lvt runs on the lvt table, the others on process.nmos', () => {
+    const r = analyzeText(text, 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    const [a, b] = r.mirrors.map((m) => m.devices.find((d) => d.name === 'ref')!.vgs);
+    // square law, VT 0.45 V: VGS = VT + sqrt(2·ID/β) = 0.45 + sqrt(2·10µ/(280µ·4)) = 0.584 V (design §3)
+    expect(a).toBeCloseTo(0.5836, 3);
+    // the lvt table (VT0 0.3 V) needs a smaller gate drive
+    expect(b).toBeLessThan(a! - 0.1);
+  });
+  it('a flavour that does not exist is unknown-name at the device: value', () => {
+    const m = marked(text.replace('device: lvt', 'device: ⟦hvt⟧'));
+    const r = analyzeText(m.text, 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    const f = r.findings.find((x) => x.code === 'unknown-name');
+    expect(f?.message).toMatch(/no device flavour `hvt` in `process.devices` \(it has `lvt`\)/);
+    expect(f?.range).toEqual(m.range);
+  });
+});

@@ -8,6 +8,7 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { paramsOf } from '../flavours';
 import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
@@ -43,7 +44,7 @@ export function buildTemplate(
   const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
   const rail = sign > 0 ? vss : vdd;
   const other = sign > 0 ? vdd : vss;
-  const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+  const params = paramsOf(spec.process, m.type, m.device);
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];

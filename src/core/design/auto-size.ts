@@ -27,6 +27,7 @@ import { KINDS } from '../kinds/index';
 import { lambdaAt } from '../models/thermal';
 import { MODELS, modelKindOf } from '../models/registry';
 import { sizingContextOf } from '../models/device';
+import { paramsOf } from '../flavours';
 import type { DeviceModel, SizingContext } from '../models/model';
 import { quantizeSize } from '../sizing/quantize';
 import { formatSI } from '../text/format';
@@ -94,7 +95,7 @@ function hasAuto(m: TemplateMirror): boolean {
 function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, target: DesignTarget):
   { spec: ResolvedSpec; sized: SizedDevice[] } {
   const slots = collectSlots(mirror);
-  const params = spec.process[mirror.type];
+  const params = paramsOf(spec.process, mirror.type, mirror.device);
   const autoL = slots.filter((s) => s.size.auto?.l === true);
   const routOutputs = mirror.outputs
     .map((o, j) => ({ j, rout: o.require.rout ?? 0 }))
@@ -184,7 +185,7 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
  *  currents and length-modulation factors settle. Mutates the slots; returns the sized spec. */
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
-  const params = proc[m.type];
+  const params = paramsOf(proc, m.type, m.device);
   const model = MODELS[modelKindOf(params, proc.model)];
   // A table device reads its target off its own table at its length, so the context is per slot.
   const ctxAt = (l: number): SizingContext => sizingContextOf(params, proc, l);

@@ -3,14 +3,14 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
+import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
-import { readLimits, readProcess, readSupplies } from './process';
+import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
 import { missing, readEnum, readMap, readString } from './read';
 import { typeName, type ValueScope } from './values';
 import type { TableTexts } from './tables';
@@ -23,6 +23,26 @@ export interface ElaborateReuse {
   items: readonly unknown[];
   mirrors: readonly ResolvedMirror[];
   except: number;
+}
+
+/** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
+ *  when not given, null when it names no such flavour (a finding says so). */
+function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: Polarity): string | null | undefined {
+  if (raw === undefined) return undefined;
+  const name = readString(sink, raw, path);
+  if (name === undefined) return null;
+  if (!proc?.flavourNames.has(name)) {
+    const known = [...(proc?.flavourNames ?? [])];
+    sink.error('unknown-name', `no device flavour \`${name}\` in \`process.devices\`${known.length ? ` (it has ${known.map((k) => `\`${k}\``).join(', ')})` : ''}`, path);
+    return null;
+  }
+  const f = proc.devices?.[name];
+  if (!f) return null;   // the flavour has its own error
+  if (f.type !== type) {
+    sink.error('bad-value', `device flavour \`${name}\` is ${f.type}, but this mirror is ${type}`, path);
+    return null;
+  }
+  return name;
 }
 
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
@@ -57,7 +77,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [known.type];
+      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : known.device ? [] : [known.type];
       for (const t of types) if (!used.has(t)) used.set(t, known.name);
       mirrors.push(known);
       return;
@@ -85,8 +105,11 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       return;
     }
     if (!type) return;
-    if (!used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, proc?.[type], supplies);
+    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
+    if (flavour === null) return;
+    if (!flavour && !used.has(type)) used.set(type, name);
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, flavour ? proc?.devices?.[flavour]?.params : proc?.[type], supplies);
+    if (tm && flavour) tm.device = flavour;
     if (tm) mirrors.push(tm);
   });
 
@@ -97,11 +120,13 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     for (const [type, mirror] of used) {
       if (!proc.written.has(type)) missing(sink, ['process'], type, ` (mirror \`${mirror}\` uses ${type} devices)`);
     }
-    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos);
-    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos);
-    if (!proc.written.has('nmos') && !proc.written.has('pmos')) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
+    const anyFlavour = proc.devices ? Object.values(proc.devices)[0]?.params : undefined;
+    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos ?? anyFlavour);
+    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos ?? anyFlavour);
+    if (!proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
     if (nmos && pmos && proc.ok) {
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
+      if (proc.devices) process.devices = proc.devices;
       if (proc.grid !== undefined) process.grid = proc.grid;
     }
   }

@@ -1,7 +1,7 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
 import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
 import { MODEL_NAMES } from '../models/registry';
-import type { DeviceParams, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
+import type { DeviceFlavour, DeviceParams, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
 import { missing, readEnum, readMap } from './read';
 import type { Data } from './read';
@@ -112,6 +112,10 @@ export interface ProcessRead {
   grid?: number;
   nmos?: DeviceParams;
   pmos?: DeviceParams;
+  /** Device flavours (`process.devices`) read without errors. */
+  devices?: Record<string, DeviceFlavour>;
+  /** Flavour names written (possibly with errors), for the mirrors' `device:`. */
+  flavourNames: Set<string>;
   /** Polarities written in the spec (possibly with errors). */
   written: Set<Polarity>;
   ok: boolean;
@@ -131,13 +135,26 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const temperature = p.temperature === undefined ? tnom : readTemperature(scope, p.temperature, [...path, 'temperature']);
   const grid = p.grid === undefined ? undefined : resolveNumber(scope, p.grid, [...path, 'grid'], 'length', { positive: true });
   const written = new Set<Polarity>();
-  const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, ok: true };
+  const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, flavourNames: new Set(), ok: true };
   if (grid !== undefined) out.grid = grid;
   for (const type of ['nmos', 'pmos'] as const) {
     if (p[type] === undefined) continue;
     written.add(type);
     const d = readDevice(scope, p[type], [...path, type], type);
     if (d) out[type] = d;
+  }
+  const flavours = readMap(scope.sink, p.devices, [...path, 'devices'], 'a mapping of device-flavour names to { type, table | kp, vt0, … }');
+  for (const [name, raw] of Object.entries(flavours ?? {})) {
+    out.flavourNames.add(name);
+    const at = [...path, 'devices', name];
+    const d = readMap(scope.sink, raw, at);
+    if (!d) continue;
+    if (d.type === undefined) missing(scope.sink, at, 'type', ' (nmos or pmos)');
+    const type = d.type === undefined ? undefined : readEnum<Polarity>(scope.sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
+    const { type: _type, ...rest } = d;
+    const params = type ? readDevice(scope, rest, at, type) : undefined;
+    if (type && params) (out.devices ??= {})[name] = { type, params };
+    if (out.model === 'table' && isTableless(d)) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; device \`${name}\` is missing \`table\``, at, 'key', 'missing:table');
   }
   if (out.model === 'table') {
     for (const type of written) {

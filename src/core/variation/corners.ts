@@ -44,6 +44,10 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
       temperature: corner.temperature ?? spec.process.temperature,
       nmos: shiftParams(spec.process.nmos, corner.nmos, corner.tables?.nmos),
       pmos: shiftParams(spec.process.pmos, corner.pmos, corner.tables?.pmos),
+      // A corner's nmos/pmos changes move every flavour of that type (a slow corner is slow for
+      // thin and thick oxide alike); a corner table replaces the base table only.
+      ...(spec.process.devices ? { devices: Object.fromEntries(Object.entries(spec.process.devices).map(([k, f]) =>
+        [k, { type: f.type, params: shiftParams(f.params, corner[f.type], undefined) }])) } : {}),
     },
     supplies: { vdd: corner.vdd ?? spec.supplies.vdd, vss: corner.vss ?? spec.supplies.vss },
   };

@@ -4,6 +4,7 @@ import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
 import { refOf } from '../sites';
+import { mirrorParams } from '../../flavours';
 
 /** Devices of this output: the shared reference roles and this output's own roles. */
 export function siteDevices(site: Site): DeviceReport[] {
@@ -14,8 +15,8 @@ export function siteDevices(site: Site): DeviceReport[] {
 }
 
 /** The process parameters a reported device was solved with. */
-export function paramsOfDevice(spec: ResolvedSpec, _site: Site, d: DeviceReport): DeviceParams {
-  return spec.process[d.type];
+export function paramsOfDevice(spec: ResolvedSpec, site: Site, d: DeviceReport): DeviceParams {
+  return mirrorParams(spec.process, site.mirror, d.type);
 }
 
 export function isSaturated(d: DeviceReport): boolean {
