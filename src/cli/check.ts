@@ -6,7 +6,7 @@ import { CAUTION } from '../core/text/format';
 import { toSarif } from '../core/report/sarif';
 import { countBySeverity } from '../core/findings';
 import { displayName, readSpec } from './io';
-import { readTables } from './tables';
+import { readTables } from '../node/tables';
 import { DOCS_URL, VERSION } from './version';
 
 type CheckCommand = Extract<Command, { cmd: 'check' }>;

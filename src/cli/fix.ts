@@ -6,7 +6,7 @@ import { findingLine } from '../core/report/text';
 import { escapeControls } from '../core/text/format';
 import { mirrorIndexOfPath } from '../core/mirror-at';
 import { readOne, replaceIfUnchanged } from './io';
-import { readTables } from './tables';
+import { readTables } from '../node/tables';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
 

@@ -6,7 +6,7 @@ import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
 import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
-import { readTables } from './tables';
+import { readTables } from '../node/tables';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 

@@ -5,7 +5,7 @@ import { sweepVout } from '../core/analysis/index';
 import { escapeControls, formatSI } from '../core/text/format';
 import { findingLine } from '../core/report/text';
 import { readOne } from './io';
-import { readTables } from './tables';
+import { readTables } from '../node/tables';
 
 type SweepCommand = Extract<Command, { cmd: 'sweep' }>;
 

@@ -252,6 +252,9 @@ export interface DeviceReport {
   gm: number; gds: number; gmb: number;
   ro: number;
   gmId: number;            // gm/ID, 1/V
+  /** The characterisation table the device's figures come from (its `table:` value), when
+   *  it is a table device. */
+  table?: string;
 }
 
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
