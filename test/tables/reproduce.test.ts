@@ -9,6 +9,7 @@ import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import type { DeviceParams, MirrorReport, ModelKind, ResolvedSpec } from '../../src/core/types';
 import { KINDS } from '../../src/core/kinds/index';
+import { exampleTables } from '../example-tables';
 import { modelChannel, span, tableOf, type Grid } from './make-table';
 
 const EXAMPLE = readFileSync(new URL('../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
@@ -25,7 +26,7 @@ function tabled(p: DeviceParams, model: ModelKind, tnom: number): DeviceParams {
 }
 
 function solveBoth(model: ModelKind): { analytic: MirrorReport[]; table: MirrorReport[] } {
-  const spec = resolveText(EXAMPLE.replace('model: square-law', `model: ${model}`), 'example.bias.yaml').parsed.spec!;
+  const spec = resolveText(EXAMPLE.replace('model: square-law', `model: ${model}`), 'example.bias.yaml', { tables: exampleTables() }).parsed.spec!;
   const p = spec.process;
   const tableSpec: ResolvedSpec = { ...spec, process: { ...p, nmos: tabled(p.nmos, model, p.tnom), pmos: tabled(p.pmos, model, p.tnom) } };
   return { analytic: analyzeSpec(spec), table: analyzeSpec(tableSpec) };

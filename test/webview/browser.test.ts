@@ -14,10 +14,11 @@ import {
 } from './browser-harness';
 import { fixtureReport } from './fixtures';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 
 const EXAMPLE = join(ROOT, 'examples', 'sensor-afe.bias.yaml');
 const URI = pathToFileURL(EXAMPLE).toString();
-const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
+const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 }, tables: exampleTables() };
 
 /** Real core reports of the example spec, before and after an edit a designer makes (the lna
  *  output of the tail bank goes from 4 to 5 parallel devices). */
