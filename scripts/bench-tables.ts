@@ -29,11 +29,9 @@ function tabled(p: DeviceParams, spec: ResolvedSpec): DeviceParams {
 function bigTable(mb: number): string {
   const rows = ['l,vgs,vds,vsb,id'];
   let size = 0;
-  const vgs = span(0, 1.8, 181), vds = span(0, 1.8, 91);
-  // Whole grids of 4 vsb × 91 vds × 181 vgs per length, lengths added until the text reaches mb.
-  const perLength = 4 * vds.length * vgs.length * 40;
-  const lengths = Math.max(1, Math.round((mb * 1e6) / perLength));
-  for (let li = 0; li < lengths; li++) {
+  const vgs = span(0, 1.8, 181), vds = span(0, 1.8, 46);
+  // Whole grids of 4 vsb × 46 vds × 181 vgs (about 1 MB) per length, until the text reaches mb.
+  for (let li = 0; size < mb * 1e6; li++) {
     const l = (1 + li) * 1e-7;
     for (const vsb of [0, 0.3, 0.6, 0.9]) for (const d of vds) for (const g of vgs) {
       const v = Math.max(g - 0.45 - 0.2 * vsb, 0);
