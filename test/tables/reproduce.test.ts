@@ -14,8 +14,8 @@ import { modelChannel, span, tableOf, type Grid } from './make-table';
 
 const EXAMPLE = readFileSync(new URL('../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
 
-/** Cover the example's supplies (1.8 V) and its lengths (1, 4, 20 µm) as grid points. */
-const GRID: Grid = { l: [1e-6, 4e-6, 20e-6], vgs: span(0, 1.8, 181), vds: span(0, 1.8, 73), vsb: span(0, 1, 21) };
+/** Cover the example's supplies (1.8 V) and its lengths (1, 4, 12, 16, 20 µm) as grid points. */
+const GRID: Grid = { l: [1e-6, 4e-6, 12e-6, 16e-6, 20e-6], vgs: span(0, 1.8, 181), vds: span(0, 1.8, 73), vsb: span(0, 1, 21) };
 
 /** The channel of `params` under `model`, floored where a strong-inversion model has no current
  *  (ln id is interpolated; a table needs a positive current wherever vds > 0). */
