@@ -211,7 +211,7 @@ export function deviceRow(report: FileReport, mirror: MirrorReport, d: DeviceRep
   return {
     name: d.name,
     cells: [
-      { text: d.name, title: d.role === d.name ? undefined : `role ${d.role}` },
+      { text: d.name, title: [d.role === d.name ? '' : `role ${d.role}`, d.table ? `from table ${d.table}` : ''].filter(Boolean).join('; ') || undefined },
       size(formatSI(d.w, 'm')),
       size(formatSI(d.l, 'm')),
       { text: formatNumber(d.m, 4) },

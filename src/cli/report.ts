@@ -7,6 +7,7 @@ import { renderHtmlReport } from '../core/report/html';
 import { schematicsOf } from '../core/schematic';
 import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
+import { readTables } from '../node/tables';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -24,7 +25,7 @@ export async function runReport(c: ReportCommand): Promise<number> {
   if (!read) return 2;
   const name = read.name;
   // The page carries what a review needs: curves, every named corner, and Monte Carlo on request.
-  const report = analyzeText(read.text, name, { curve: true, corners: true, ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
+  const report = analyzeText(read.text, name, { curve: true, corners: true, tables: readTables(c.file, read.text), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
   // ELK is loaded only here: `check` and `fix` never pay for it.
   const { default: ELK } = await import('elkjs/lib/elk.bundled.js');
   const schematics = await schematicsOf(new ELK(), report);

@@ -5,7 +5,7 @@
  */
 import type { Anchor, FileReport, Finding, MirrorReport, MirrorWiring, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
-import type { ParsedSpec } from './spec/index';
+import type { ParsedSpec, TableTexts } from './spec/index';
 import { resolveText } from './resolve';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
@@ -32,6 +32,9 @@ export interface AnalyzeOptions {
   anchors?: boolean;
   /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
   cornerFixes?: boolean;
+  /** Characterisation-table texts by the name the spec writes (`table:`), read by the front end
+   *  (relative to the spec, inside its folder, size-capped): the core reads no file. */
+  tables?: TableTexts;
   /** Fixes for `link-saturation`, each verified by analysing the edited text (default true). */
   linkFixes?: boolean;
   /** Fixes for design findings (default true; a link fix's re-check needs findings only). */
@@ -49,7 +52,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
   try {
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults });
+    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults, ...(opts.tables ? { tables: opts.tables } : {}) });
     parsed = resolved.parsed;
     const spec = parsed.spec;
     if (!spec) {
@@ -66,12 +69,12 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
-      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ruleFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ruleFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       const reanalyze = opts.linkFixes === false ? undefined : (t: string) => analyzeText(t, file, again);
       findings.push(...networkFindings(parsed, spec, mirrors, net.networks, findings, reanalyze));
     }
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
-      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
     }
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);

@@ -45,7 +45,22 @@ export interface Finding {
 export type Polarity = 'nmos' | 'pmos';
 /** The kinds are described once, in src/core/kinds/. */
 export type { MirrorKind, TemplateKind };
-export type ModelKind = 'square-law' | 'ekv';
+export type ModelKind = 'square-law' | 'ekv' | 'table';
+
+/** A characterisation table as read (design §11): every axis ascending, a full grid. Not
+ *  JSON-serialisable (a typed array); it stays inside the core. */
+export interface DeviceTable {
+  /** The `table:` value as written (a file name relative to the spec). */
+  file: string;
+  l: number[];       // m
+  vgs: number[];     // V (magnitudes for PMOS)
+  vds: number[];     // V
+  vsb: number[];     // V
+  /** K, when the table has a temperature column (or several files, one per temperature). */
+  temperature?: number[];
+  /** A per metre of width at [t][l][vsb][vds][vgs] (vgs fastest); 0 on a vds = 0 row. */
+  id: Float64Array;
+}
 
 /** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
 export interface DeviceParams {
@@ -62,7 +77,16 @@ export interface DeviceParams {
   abeta?: number;    // m, Pelgrom current-factor coefficient (pair, relative)
   lmin?: number;     // m
   wmin?: number;     // m
+  /** The device's characterisation table: its devices follow the table model (kp and vt0 are
+   *  then not read). */
+  table?: DeviceTable;
 }
+
+/** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
+export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
+
+/** A named device flavour of the process (`process.devices`): thin- or thick-oxide, low-VT… */
+export interface DeviceFlavour { type: Polarity; params: DeviceParams }
 
 export interface ProcessSpec {
   model: ModelKind;
@@ -71,6 +95,8 @@ export interface ProcessSpec {
   grid?: number;        // m
   nmos: DeviceParams;
   pmos: DeviceParams;
+  /** Device flavours by name; a template mirror picks one with `device:`. */
+  devices?: Record<string, DeviceFlavour>;
 }
 
 export interface Supplies { vdd: number; vss: number }
@@ -159,6 +185,8 @@ export interface TemplateMirror {
   devices: Record<string, DeviceSize>;
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;
+  /** The process device flavour its devices are (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
   design?: DesignTarget;
   /** Reference kinds: the loop resistor (Ω, `resistor:`). */
   resistor?: number;
@@ -206,8 +234,10 @@ export type ParamDelta = { add: number } | { scale: number };  // scale: multipl
 
 export interface CornerSpec {
   name: string;
-  nmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
-  pmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  nmos: Partial<Record<NumericParam, ParamDelta>>;
+  pmos: Partial<Record<NumericParam, ParamDelta>>;
+  /** Tables the corner puts in place of the process's (a foundry's ss/ff characterisation). */
+  tables?: { nmos?: DeviceTable; pmos?: DeviceTable };
   temperature?: number;  // K
   vdd?: number;
   vss?: number;
@@ -281,6 +311,9 @@ export interface DeviceReport {
   gm: number; gds: number; gmb: number;
   ro: number;
   gmId: number;            // gm/ID, 1/V
+  /** The characterisation table the device's figures come from (its `table:` value), when
+   *  it is a table device. */
+  table?: string;
 }
 
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */

@@ -136,7 +136,7 @@ function pairTable(rows: [string, string][]): string {
 /** One title line, five table rows, the caution: short enough that the editor's hover shows it
  *  whole, below a diagnostic or two, without scrolling. */
 export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
-  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}`;
+  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}${d.table ? ` · from table ${escapeMd(d.table)}` : ''}`;
   const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
   return `${head}${note}\n\n${pairTable(deviceFigures(d))}\n\n${CAUTION}`;
 }

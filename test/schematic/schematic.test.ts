@@ -54,7 +54,7 @@ describe('schematics of every kind', () => {
         if (own) expect(words, `${m.name} ${node}`).toContain(formatSI(v, 'V'));
       }
       expect(words).toContain(`Iout ${formatSI(m.iout, 'A')}`);
-      expect(words).toContain(formatSI(m.iin, 'A'));
+      expect(words).toContain(formatSI(m.iin!, 'A'));
     }
   });
 
@@ -159,7 +159,7 @@ describe('the example', () => {
     const input = exampleDrawn.get('tail.lna')!;
     expect(input.parts.find((p) => p.id === 'input')?.symbol).toBe('link-top');   // NMOS: fed from above
     expect(text(input)).toContain('from dist.tail');
-    expect(text(input)).toContain(`Iin ${formatSI(fed.iin, 'A')}`);
+    expect(text(input)).toContain(`Iin ${formatSI(fed.iin!, 'A')}`);
   });
 
   it('the static report carries one schematic per output, named by data-schematic', () => {

@@ -14,10 +14,11 @@ import {
 } from './browser-harness';
 import { fixtureReport } from './fixtures';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 
 const EXAMPLE = join(ROOT, 'examples', 'sensor-afe.bias.yaml');
 const URI = pathToFileURL(EXAMPLE).toString();
-const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
+const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 }, tables: exampleTables() };
 
 /** Real core reports of the example spec, before and after an edit a designer makes (the root
  *  of the bias network, the first mirror listed, goes from 10 µA to 12 µA). */

@@ -8,6 +8,7 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { paramsOf } from '../flavours';
 import type { DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
@@ -87,7 +88,8 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
   const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean, startup = false): number => {
     // A reference's closing mirror is of the other polarity, its bulk on the other rail.
     const type: Polarity = conn.other ? (m.type === 'nmos' ? 'pmos' : 'nmos') : m.type;
-    const params = type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    // A mirror's device flavour (`device:`) is of its own polarity; the other rail's devices use the process's.
+    const params = paramsOf(spec.process, type, m.device);
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${ns}${name}: ${problem}`);
     const full = `${ns}${name}`;

@@ -77,6 +77,12 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Use `model: ekv` in process (offered as a quick fix when the whole file still checks clean with it).',
   },
   {
+    code: 'table-range', severity: 'warning',
+    summary: 'A device given by a characterisation table operates outside the table\'s grid (vgs, vds, vsb, l or temperature).',
+    why: 'Outside the grid qpoint clamps: the interpolant continues along its end tangent, so the figures are not from the designer\'s data.',
+    fix: 'Extend the table\'s grid to cover the operating point (or move the device into it: another length, another overdrive). No quick fix.',
+  },
+  {
     code: 'below-lmin', severity: 'error', fixFirst: true,
     summary: 'A drawn length is below the process lmin.',
     why: 'The process cannot draw it, and the models are not valid there.',

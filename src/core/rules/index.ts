@@ -19,6 +19,7 @@ import { checkHeadroom } from './checks/headroom';
 import { checkInversion } from './checks/inversion';
 import { checkGeometry } from './checks/geometry';
 import { checkStartup } from './checks/startup';
+import { checkTableRange } from './checks/table-range';
 import { indexOf } from '../mirror-at';
 
 export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
@@ -87,6 +88,7 @@ export function detect(rc: RuleContext): Draft[] {
     run(() => checkHeadroom(rc, site));
     run(() => checkGeometry(rc, site));
     run(() => checkInversion(rc, site, inversionSeen));
+    run(() => checkTableRange(rc, site));
   }
   return drafts;
 }

@@ -79,7 +79,7 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
-  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) });
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
@@ -112,7 +112,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   validateSchema({ ...data, mirrors: [frag.data] }, sink);
   if (sink.errorCount > 0) return undefined;
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
-  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
+  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it.
   const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec);

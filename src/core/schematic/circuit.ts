@@ -147,13 +147,16 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     // The input hangs from the far rail: current flows down through it into the stack.
     const [hi, lo] = pType ? [node, net(far)] : [net(far), node];
     const pins: CircuitPin[] = [{ side: 'top', net: hi }, { side: 'bottom', net: lo }];
-    if (m.fedBy !== undefined || input?.kind === 'link') {
+    const iin = m.iin;
+    if (iin === undefined) {
+      // A self-biased reference has no input: its current is set by its own loop.
+    } else if (m.fedBy !== undefined || input?.kind === 'link') {
       // Fed by another mirror's output: the input node is that output's node, drawn as a link.
       const from = m.fedBy ?? (input?.kind === 'link' ? input.from : '');
       parts.push({ id: 'input', symbol: pType ? 'link-bottom' : 'link-top', pins: [{ side: pType ? 'top' : 'bottom', net: node }],
-        lines: [`from ${from}`, `Iin ${si(m.iin, 'A')}`] });
-    } else if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(m.iin, 'A')}`] });
-    else parts.push({ id: 'input', symbol: 'isrc', pins, lines: ['Iin', si(m.iin, 'A')] });
+        lines: [`from ${from}`, `Iin ${si(iin, 'A')}`] });
+    } else if (input?.kind === 'resistor') parts.push({ id: 'input', symbol: 'res', pins, lines: ['Rin', si(input.r, 'Ω'), `Iin ${si(iin, 'A')}`] });
+    else parts.push({ id: 'input', symbol: 'isrc', pins, lines: ['Iin', si(iin, 'A')] });
     const out = nets.get(net(map('O')))!;
     out.held = 'out';
     out.note = `Iout ${si(m.iout, 'A')}`;
