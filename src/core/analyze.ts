@@ -17,6 +17,7 @@ import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
 import { mirrorAt } from './mirror-at';
 import { attachNetworks } from './network/report';
+import { networkFindings } from './network/findings';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -31,6 +32,8 @@ export interface AnalyzeOptions {
   anchors?: boolean;
   /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
   cornerFixes?: boolean;
+  /** Fixes for `link-saturation`, each verified by analysing the edited text (default true). */
+  linkFixes?: boolean;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -60,6 +63,11 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
+    if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
+      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const reanalyze = opts.linkFixes === false ? undefined : (t: string) => analyzeText(t, file, again);
+      findings.push(...networkFindings(parsed, spec, mirrors, net.networks, findings, reanalyze));
+    }
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
       const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);

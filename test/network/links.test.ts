@@ -114,6 +114,25 @@ describe('linked mirrors against the same circuit as one netlist (1e-4 in curren
   });
 });
 
+describe('Monte Carlo and corners act on the whole group', () => {
+  it("a leaf's Monte Carlo spread includes every device above it: near chainSigma, above its own sigma", () => {
+    const r = analyzeText(CHAIN, 'chain.bias.yaml', { mc: { samples: 4000, seed: 7 } });
+    const d = report(r, 'dist');
+    // 4 000 samples: the sample sigma's own 1σ is about 1.1 %; 6 % leaves room for the
+    // linearization (common practice for a Monte Carlo against a linear estimate).
+    expect(rel(d.mc!.sigma, d.chainSigma!)).toBeLessThan(0.06);
+    expect(d.mc!.sigma).toBeGreaterThan(1.3 * d.sigma!);
+  });
+  it('a corner re-solves the group: the leaf\'s corner iin is the corner current that arrives', () => {
+    const text = `${CHAIN}corners:\n  slow: { nmos: { vt0: +50m, kp: -10% }, pmos: { vt0: +50m, kp: -10% } }\n`;
+    const r = analyzeText(text, 'chain.bias.yaml', { corners: true });
+    const a = report(r, 'root.a').corners![0]!, d = report(r, 'dist').corners![0]!;
+    expect(d.converged).toBe(true);
+    expect(rel(d.iin, a.iout)).toBeLessThan(1e-9);
+    expect(rel(d.iin, report(r, 'dist').iin)).toBeGreaterThan(1e-4);   // it moved with the corner
+  });
+});
+
 /** Three stages with a cascode at the end: NMOS root → PMOS bank → NMOS cascode leaf. */
 const THREE = header([
   '  - name: root',
@@ -262,5 +281,57 @@ describe('link findings at the `from` value', () => {
     const f = analyzeText(text, 'x.bias.yaml').findings.find((x) => x.code === 'link-output-v')!;
     expect(f.severity).toBe('warning');
     expect(textOf(text, f.range)).toBe('v');
+  });
+});
+
+describe('network findings', () => {
+  /** A cascode root feeding a narrow PMOS diode: the diode's VSG pulls the link node down to
+   *  31 mV inside the cascode output's compliance limit (limits.margin 100 mV). */
+  const SAT = `${header([
+    '  - name: root',
+    '    kind: cascode',
+    '    type: nmos',
+    '    input: 10u',
+    '    size: { w: 8u, l: 1u }',
+    '  - name: dist',
+    '    kind: simple',
+    '    type: pmos',
+    '    input: { from: ⟦root⟧ }',
+    '    size: { w: 0.6u, l: 1u }',
+    '    output: { v: 0.4 }',
+  ])}limits: { supplyCurrent: 30u, error: 5% }\n`;
+  const { text, range } = marked(SAT);
+  const r = analyzeText(text, 'sat.bias.yaml');
+  const sat = r.findings.find((f) => f.code === 'link-saturation')!;
+
+  it('link-saturation at the `from` value, with fixes on either side', () => {
+    expect(sat.severity).toBe('error');
+    expect(sat.range).toEqual(range);
+    expect(report(r, 'root').headroom!).toBeLessThan(0.1);
+    expect(sat.fixes!.map((f) => f.title)).toEqual([
+      'Widen dist for a lower input VGS (w 0.6u→1.2u), verified by re-solving the network',
+      'Widen root for a lower VDSsat of root (w 8u→32u), verified by re-solving the network',
+    ]);
+  });
+  it.each([0, 1])('fix %i leaves the link saturated when the whole network is solved again', (k) => {
+    const after = analyzeText(applyEdits(text, sat.fixes![k]!.edits), 'sat.bias.yaml');
+    expect(after.findings.find((f) => f.code === 'link-saturation')).toBeUndefined();
+    expect(report(after, 'root').headroom!).toBeGreaterThanOrEqual(0.1);
+  });
+  it('supply-budget: the whole spec draws more than limits.supplyCurrent', () => {
+    const f = r.findings.find((x) => x.code === 'supply-budget')!;
+    expect(f.severity).toBe('error');
+    expect(textOf(text, f.range)).toBe('30u');
+    // 10 µA reference + 10 µA into the link + the leaf's current, solved.
+    expect(rel(r.networks![0]!.supplyCurrent.vdd, 20e-6 + report(r, 'dist').iout)).toBeLessThan(1e-3);
+    const roomy = analyzeText(text.replace('supplyCurrent: 30u', 'supplyCurrent: 31u'), 'sat.bias.yaml');
+    expect(roomy.findings.find((x) => x.code === 'supply-budget')).toBeUndefined();
+  });
+  it('chain-error names the stage that contributes most', () => {
+    const tight = analyzeText(text.replace('error: 5%', 'error: 1%'), 'sat.bias.yaml');
+    const f = tight.findings.find((x) => x.code === 'chain-error')!;
+    expect(f.message).toContain('`dist` contributes most');
+    expect(f.path).toEqual(['mirrors', 1]);
+    expect(r.findings.find((x) => x.code === 'chain-error')).toBeUndefined();
   });
 });

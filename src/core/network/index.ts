@@ -77,6 +77,26 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): R
   return withMirrors(spec, changed, networks);
 }
 
+/** For Monte Carlo on a leaf output of a network (design §9.1: one draw per device per sample,
+ *  so a leaf's spread includes every device above it): the whole group's circuit measured at that
+ *  output, and the devices to draw (every device of every mirror on the path from the root).
+ *  Undefined when the output is in no network or feeds another mirror. */
+export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): { mc: JointCircuit['mc']; draw: Set<number> } | undefined {
+  if (!spec.networks) return undefined;
+  const g = networkGroups(spec).find((x) => x.members.some((m) => indexOf(m) === mirrorIndex));
+  const m = g?.members.find((x) => indexOf(x) === mirrorIndex);
+  if (!g || !m || m.outputs[outputIndex]?.feeds !== undefined) return undefined;
+  const j = buildJoint(spec, g, undefined, { mirror: mirrorIndex, output: outputIndex });
+  const path = new Set<number>();
+  for (let at: number | undefined = mirrorIndex; at !== undefined; at = g.parent.get(at)?.mirror) path.add(at);
+  const draw = new Set<number>();
+  for (const mem of j.members) {
+    if (!path.has(mem.index)) continue;
+    for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) draw.add(d);
+  }
+  return { mc: j.mc, draw };
+}
+
 /** The network's figures at the joint solution (design §9.3). */
 function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean): SolvedNetwork {
   const { ws, circuit: c } = j.mc;

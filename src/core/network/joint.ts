@@ -12,6 +12,7 @@ import { deviceReport } from '../circuit/elements/device';
 import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
+import { vbiasFor } from '../analysis/measure';
 import type { NetworkGroup } from './groups';
 
 export interface JointMember {
@@ -40,8 +41,10 @@ export interface JointCircuit {
 
 export const key = (mirror: number, output: number): string => `${mirror}:${output}`;
 
-/** Build the group's circuit; `perturb` is keyed by joint device names (`mirror/device`). */
-export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike): JointCircuit {
+/** Build the group's circuit; `perturb` is keyed by joint device names (`mirror/device`). With
+ *  `measure` (a leaf output), that output's node is the circuit's output, only its mirror's
+ *  devices count as measured, and `mc.iin` is the current arriving at that mirror. */
+export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }): JointCircuit {
   const { vdd, vss } = spec.supplies;
   const b = new CircuitBuilder();
   b.hold('vdd', vdd);
@@ -57,15 +60,19 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
     const i = indexOf(m);
     const ns = `${m.name}/`;
     const inputNode = m === g.root ? undefined : `${ns}${KINDS[m.kind].inputNode}`;
+    const own = measure?.mirror === i;
     const wired = wireTemplate(b, spec, m, {
-      ns, outputIndex: -1, vout: 0, vbias: m.vbias, perturb,
+      ns, outputIndex: own ? measure!.output : -1, vout: own ? m.outputs[measure!.output]?.output.v ?? 0 : 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb,
       ...(inputNode ? { inputNode } : {}),
       outNode: (j) => fedBy.get(key(i, j)),
     });
     const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
     members.push({ mirror: m, index: i, ns, wired, first, sign });
     first += wired.deviceNames.length;
-    wired.outNodes.forEach((n, j) => { if (measured === undefined && !fedBy.has(key(i, j))) { measured = n; measuredSign = sign; } });
+    wired.outNodes.forEach((n, j) => {
+      const pick = measure ? own && j === measure.output : measured === undefined;
+      if (pick && !fedBy.has(key(i, j))) { measured = n; measuredSign = sign; }
+    });
   }
   const rootSign: 1 | -1 = g.root.type === 'pmos' ? -1 : 1;
   const c = b.build(measured ?? 'vss', measuredSign, vss, vdd);
@@ -81,13 +88,29 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       outDevices.set(key(mem.index, j), devs);
     });
   }
+  if (measure) {
+    for (const mem of members) {
+      if (mem.index === measure.mirror) continue;
+      for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) c.devices[d]!.measured = false;
+    }
+  }
   const rootRes = members[0]!.wired.inputResistor;
   const rootIn = g.root.input;
   const rootCurrent = (): number => (rootRes ? resistorCurrent(rootRes, ws.v) : rootIn.kind === 'resistor' ? NaN : rootIn.i);
   const rail = rootSign > 0 ? vss : vdd;
   const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices);
   const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
-  return { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
+  const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
+  const fed = measure ? g.parent.get(measure.mirror) : undefined;
+  if (fed) {
+    const k = key(fed.mirror, fed.output);
+    mc.iin = () => outputCurrentOf(joint, k);
+  }
+  if (measure) {
+    const mem = members.find((x) => x.index === measure.mirror);
+    if (mem) { mc.sign = mem.sign; mc.rail = mem.sign > 0 ? vss : vdd; }
+  }
+  return joint;
 }
 
 /** A, the current output `k` delivers at ws.v (a magnitude, as iout). */

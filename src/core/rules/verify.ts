@@ -14,6 +14,7 @@ import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
+import { provisionalLinks, solveNetworks } from '../network/index';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -113,7 +114,8 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const spec = applyDesignTargets({ ...read, limits: rc.spec.limits }, i).spec;
+  // A linked mirror is re-solved with its whole network, as the analysis solves it (network/).
+  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec);
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const untrusted = trusted(rc, spec, reports);
