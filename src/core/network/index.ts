@@ -10,8 +10,8 @@
  */
 import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
 import { solveMirror } from '../analysis/solve';
-import { deviceSigmas } from '../circuit/elements/device';
-import { outputAdjoint, outputSensitivities } from '../circuit/smallSignal';
+import { currentNodes, deviceMismatchDerivatives, deviceSigmas } from '../circuit/elements/device';
+import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
 import { buildJoint, key, outputCurrentOf, type JointCircuit } from './joint';
@@ -48,6 +48,21 @@ export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
     }
   }
   return withMirrors(spec, changed);
+}
+
+/** Mirror `i` of `read` (read again after an edit) given the solved link values of `solved`:
+ *  the current that arrives at its input and the voltage of each output it feeds with. */
+export function carryLinks(read: ResolvedSpec, solved: ResolvedSpec, i: number): ResolvedSpec {
+  const m = mirrorAt(read, i), was = mirrorAt(solved, i);
+  if (!m || !was || m.kind === 'netlist' || was.kind === 'netlist') return { ...read, ...(solved.networks ? { networks: solved.networks } : {}) };
+  const input = m.input.kind === 'link' && was.input.kind === 'link' ? { ...m.input, i: was.input.i } : m.input;
+  const outputs = m.outputs.map((o, j) => {
+    const w = was.outputs[j];
+    return o.feeds !== undefined && w && w.feeds !== undefined ? { ...o, output: { ...o.output, v: w.output.v } } : o;
+  });
+  const out = withMirrors(read, new Map([[i, { ...m, input, outputs }]]));
+  if (solved.networks) out.networks = solved.networks;
+  return out;
 }
 
 /** Solve every group of `spec` and hand on its members at the solution; `spec.networks` then
@@ -97,6 +112,33 @@ export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIn
   return { mc: j.mc, draw };
 }
 
+const der = new Float64Array(2);
+
+/** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
+ *  row given as (column, value index) pairs). */
+function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[]): Float64Array | undefined {
+  if (!factorAtSolution(ws)) return undefined;
+  const lam = new Float64Array(ws.n);
+  for (let k = 0; k < row.length; k += 2) lam[row[k]!] = ws.G[row[k + 1]!]!;
+  ws.solver.solveTranspose(lam);
+  return lam;
+}
+
+/** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
+ *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
+ *  network). */
+function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], lam: Float64Array, d: number, iout: number): [number, number] {
+  const dev = c.devices[d]!;
+  deviceMismatchDerivatives(dev, ws.v, ws.ch, der);
+  const [from, to] = currentNodes(dev);
+  let w = 0;
+  if (from === c.outNode) w += 1;
+  if (to === c.outNode) w -= 1;
+  if (from < ws.n) w -= lam[from]!;
+  if (to < ws.n) w += lam[to]!;
+  return [c.outSign * w * der[0]! / iout, c.outSign * w * der[1]! / iout];
+}
+
 /** The network's figures at the joint solution (design §9.3). */
 function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean): SolvedNetwork {
   const { ws, circuit: c } = j.mc;
@@ -106,6 +148,16 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
   // every mirror on the path from the root.
   const parentOf = (i: number): number | undefined => g.parent.get(i)?.mirror;
   const saved = { node: c.outNode, sign: c.outSign };
+  // Each leaf's row of the Jacobian (its free columns), gathered in one pass over the pattern:
+  // the adjoint's right-hand side without a search per entry.
+  const rows = new Map<number, number[]>();
+  for (const node of j.leafNode.values()) rows.set(node, []);
+  if (converged && factorAtSolution(ws)) {
+    const { colPtr, rowIdx } = ws.pattern;
+    for (let col = 0; col < ws.n; col++) {
+      for (let p = colPtr[col]!; p < colPtr[col + 1]!; p++) rows.get(rowIdx[p]!)?.push(col, p);
+    }
+  }
   let toVdd = 0, toVss = 0;
   for (const mem of j.members) {
     mem.mirror.outputs.forEach((_, o) => {
@@ -120,9 +172,8 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
         const path = new Set<number>();
         for (let at: number | undefined = mem.index; at !== undefined; at = parentOf(at)) path.add(at);
         c.outNode = node; c.outSign = mem.sign;
-        const lam = outputAdjoint(c, ws);
+        const lam = leafAdjoint(ws, rows.get(node) ?? []);
         if (lam) {
-          const sens = outputSensitivities(c, ws, lam);
           let sum = 0, any = false;
           for (const p of j.members) {
             if (!path.has(p.index)) continue;
@@ -130,8 +181,8 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
               const s = deviceSigmas(c.devices[d]!);
               if (!s) continue;
               any = true;
-              const a = sens.vt[d]! / iout, b = sens.beta[d]! / iout;
-              sum += a * a * s[0] * s[0] + b * b * s[1] * s[1];
+              const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
+              sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
             }
           }
           if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);

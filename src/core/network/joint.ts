@@ -135,9 +135,10 @@ function jointGuess(
   const rootIn = g.root.input;
   const root0 = rootIn.kind === 'resistor' ? Math.max(span - 0.7, 0.1 * span) / rootIn.r : rootIn.i;
   current.set(members[0]!.index, root0);
+  const byIndex = new Map(members.map((x) => [x.index, x] as const));
   for (const mem of members.slice(1)) {
     const p = g.parent.get(mem.index)!;
-    const up = members.find((x) => x.index === p.mirror)!;
+    const up = byIndex.get(p.mirror)!;
     current.set(mem.index, (current.get(p.mirror) ?? root0) * (idealRatio(up.mirror, p.output) ?? 1));
   }
   for (let n = members.length - 1; n >= 0; n--) {

@@ -64,8 +64,12 @@ export function linkPaths(targets: readonly LinkTarget[]): string[] {
 
 /** Resolve `path` among `targets`. A mirror name may itself hold dots: the whole path is tried as
  *  a mirror name first, then split at its last dot. */
+const indexes = new WeakMap<readonly LinkTarget[], Map<string, LinkTarget>>();
+
 export function resolveLinkPath(path: string, targets: readonly LinkTarget[], suggest?: (word: string, candidates: string[]) => string | undefined): LinkResolution {
-  const byName = new Map(targets.map((t) => [t.name, t] as const));
+  // One name index per target list: a file of a thousand links resolves in linear time.
+  let byName = indexes.get(targets);
+  if (!byName) indexes.set(targets, byName = new Map(targets.map((t) => [t.name, t] as const)));
   const fail = (message: string): LinkResolution => {
     const word = suggest?.(path, linkPaths(targets));
     return word === undefined ? { ok: false, message } : { ok: false, message, word };

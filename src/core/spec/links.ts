@@ -109,7 +109,7 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
       const link = linkOf(m);
       const i = m.path[1] as number;
       if (!link || bad.has(i) || link.mirror < 0 || !bad.has(link.mirror)) continue;
-      const up = targets.find((t) => t.index === link.mirror)?.name ?? `mirror ${link.mirror + 1}`;
+      const up = byIndex.get(link.mirror)?.name ?? targets.find((t) => t.index === link.mirror)?.name ?? `mirror ${link.mirror + 1}`;
       sink.error('link-upstream', `fed by \`${up}\`, which has errors: this mirror is solved once they are fixed`, fromPath(m));
       bad.add(i);
       changed = true;
