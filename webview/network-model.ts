@@ -122,7 +122,8 @@ export function networkTrees(report: FileReport): NetworkTree[] {
 }
 
 /** The mirror list's groups: each network's members (root first, in the network's order), then
- *  the mirrors in no network. Without networks: one unnamed group in file order. */
+ *  the mirrors in no network, in file order (a mirror set aside for its errors is solved in no
+ *  network, so it sits there, where it is written). Without networks: one unnamed group. */
 export function mirrorGroups(report: FileReport): { network?: string; mirrors: string[] }[] {
   const nets = report.networks ?? [];
   if (nets.length === 0) return [{ mirrors: [...new Set(report.mirrors.map((m) => m.mirror))] }];
