@@ -34,6 +34,8 @@ export interface AnalyzeOptions {
   cornerFixes?: boolean;
   /** Fixes for `link-saturation`, each verified by analysing the edited text (default true). */
   linkFixes?: boolean;
+  /** Fixes for design findings (default true; a link fix's re-check needs findings only). */
+  ruleFixes?: boolean;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -60,11 +62,11 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
+      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : {}),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
-      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ruleFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
       const reanalyze = opts.linkFixes === false ? undefined : (t: string) => analyzeText(t, file, again);
       findings.push(...networkFindings(parsed, spec, mirrors, net.networks, findings, reanalyze));
     }
