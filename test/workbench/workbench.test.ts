@@ -308,6 +308,53 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     await page.close();
   }, 240_000);
 
+  it('bias networks: F12 on a from value jumps to the output; the panel draws the tree, a click reveals the mirror', async () => {
+    const ws = freshWorkspace(ROOT, OUT, 'network-workspace');
+    const page = await browser!.newPage();
+    await openWorkbench(page, server!.url({ folder: ws.dir, extensionDevelopmentPath: ROOT }));
+    const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: 'network.bias.yaml' });
+    await row.waitFor({ state: 'visible', timeout: 30_000 });
+    await row.click();
+    await page.locator('.statusbar-item', { hasText: 'qpoint:' }).first().waitFor({ state: 'visible', timeout: 30_000 });
+    const lines = readFileSync(join(ws.dir, 'network.bias.yaml'), 'utf8').split('\n');
+    const fromLine = lines.findIndex((l) => l.includes('from: ref_bank.p_amp'));
+    const outputLine = lines.findIndex((l) => l.includes('- name: p_amp'));
+    const tailLine = lines.findIndex((l) => l.includes('- name: tail'));
+    expect(Math.min(fromLine, outputLine, tailLine)).toBeGreaterThan(0);
+    const cursor = page.locator('.statusbar-item[id="status.editor.selection"]');
+    await runCommand(page, 'Go to Line/Column...');
+    await page.keyboard.type(`${fromLine + 1}:${lines[fromLine]!.indexOf('p_amp') + 2}`);
+    await page.keyboard.press('Enter');
+    await expect.poll(() => cursor.innerText(), { timeout: 10_000 }).toMatch(new RegExp(`Ln ${fromLine + 1},`));
+    await page.keyboard.press('F12');
+    try {
+      await expect.poll(() => cursor.innerText(), { timeout: 15_000 }).toMatch(new RegExp(`Ln ${outputLine + 1}, Col ${lines[outputLine]!.indexOf('p_amp') + 1}\\b`));
+    } catch (e) {
+      await shot(page, 'fail-definition');
+      throw e;
+    }
+    await shot(page, '10-go-to-definition');
+
+    await runCommand(page, 'qpoint: Open Bias Panel');
+    const frame = page.frameLocator('iframe.webview.ready').frameLocator('#active-frame');
+    const tail = frame.locator('svg.net-tree .net-node[data-node="tail"]');
+    try {
+      await tail.waitFor({ state: 'visible', timeout: 30_000 });
+    } catch (e) {
+      await shot(page, 'fail-network-tree');
+      throw new Error(`the panel drew no network tree: ${(e as Error).message}${panelWarnings()}`);
+    }
+    expect(await frame.locator('svg.net-tree .net-node').count()).toBe(8);
+    expect(await frame.locator('svg.net-tree .net-link.trouble').count()).toBe(1);
+    expect(await frame.locator('#mirror-list tr.group').innerText()).toBe('Network of ref_bank');
+    await frame.locator('#networks').scrollIntoViewIfNeeded();
+    await stableScreenshot(page, 5_000);
+    await shot(page, '11-network-tree');
+    await tail.click();
+    await expect.poll(() => cursor.innerText(), { timeout: 15_000 }).toMatch(new RegExp(`Ln ${tailLine + 1},`));
+    await page.close();
+  }, 180_000);
+
   it('installs the packed vsix into a fresh workbench, where it works on the example', async () => {
     // `npm run package` in small: vsce packs the built dist/ (allow-list .vscodeignore), then
     // code-server installs the file exactly as a user's `--install-extension` would.
