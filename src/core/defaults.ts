@@ -19,6 +19,9 @@ export const DEFAULTS = {
   device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5 },
   /** m parallel count of a device. */
   m: 1,
+  /** relative: a start-up element counts as off at the operating point below this fraction of
+   *  the smallest branch current of its loop (design §14). */
+  startupLimit: 0.01,
 } as const;
 
 /** Limits that keep reading an untrusted spec fast and bounded (design §2, spec findings). */

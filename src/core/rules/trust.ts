@@ -23,7 +23,9 @@ export function untrustedMove(before: readonly MirrorReport[], after: readonly M
     if (!r.converged) continue;
     let own: Map<string, number> | undefined;
     for (const d of r.devices) {
-      if (!(d.ic < SQUARE_LAW_MIN_IC)) continue;
+      // A start-up element is meant to sit near cutoff at the operating point: its figure there
+      // is the start-up check's, not a square-law operating point.
+      if (d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
       own ??= was.get(pathKey(r));
       const ic = own?.get(d.name);
       if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
