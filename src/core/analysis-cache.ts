@@ -1,9 +1,13 @@
 /**
  * What one file's analyses keep from one to the next (the editor analyses on every keystroke):
- * the solved report of each solve unit (analysis/repeats.ts: a mirror's circuit and what its
- * solve reads — process, supplies, limits) and each local fix re-check (rules/verify.ts: the
- * mirror's text before and after the fix, and everything outside the mirrors). A keystroke in one
- * mirror thus solves and re-checks that mirror again, and reads the others' results back.
+ * the solved report of each solve unit (analysis/repeats.ts: a mirror's circuit, the resolved
+ * spec but its mirrors — process with its flavours and tables, supplies, limits, params,
+ * corners —, the analysis settings, and for a linked mirror every member of its network and the
+ * joint solution) and each local fix re-check (rules/verify.ts: the mirror's text before and after
+ * the fix, the mirror as resolved with its network, and everything outside the mirrors). Each
+ * part is serialised whole (canonical.ts; a table by the digest of its text), so what the spec
+ * gains later is in the keys without an edit. A keystroke in one mirror thus solves and
+ * re-checks that mirror (and its network) again, and reads the others' results back.
  *
  * Every key holds all that its result depends on, so an analysis with a cache equals one without
  * (test/core/incremental.test.ts). After each analysis the entries it did not use are dropped:

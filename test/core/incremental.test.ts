@@ -2,15 +2,18 @@
  * Incremental analysis (src/core/analysis-cache.ts): a file analysed again after an edit, with
  * the cache its earlier analyses filled, must give exactly the report a fresh analysis gives —
  * every figure, finding, message, fix and edit — whatever the edit touched: a number inside one
- * mirror, a mirror's name, the process, a param, a line added above everything, or a keystroke
- * that breaks the YAML for a moment. The fresh analysis is the reference.
+ * mirror, a mirror's name, the process, a param, a line added above everything, a keystroke
+ * that breaks the YAML for a moment, a member of a bias network, or the text of a
+ * characterisation table the front end hands in. The fresh analysis is the reference.
  */
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { analyzeText, type AnalyzeOptions } from '../../src/core/analyze';
 import { AnalysisCache } from '../../src/core/analysis-cache';
 import type { FileReport } from '../../src/core/types';
-import { faultySpecText } from '../../scripts/spec-texts';
+import { faultySpecText, networkTreeText } from '../../scripts/spec-texts';
+import { readFileSync } from 'node:fs';
+import { EXAMPLE_PATH, exampleTables } from '../example-tables';
 import { arbFaultySpec } from '../fuzz/faulty-specs';
 
 /** One edit as a designer makes it: replace [at, at + del) of the text by `ins`. */
@@ -41,6 +44,13 @@ let skipped = 0;
 /** A solve of this report ran out of its time budget. */
 function clockBound(r: FileReport): boolean {
   return r.mirrors.some((m) => m.solveNote?.includes('time budget'));
+}
+
+const EXAMPLE = readFileSync(EXAMPLE_PATH, 'utf8');
+
+/** A table's text with every current (the last column) times `k`: another device, the same grid. */
+function scaleTable(csv: string, k: number): string {
+  return k === 1 ? csv : csv.replace(/^([^#\n][^,\n]*,[^,\n]*,[^,\n]*,[^,\n]*,)([0-9.e+-]+)$/gm, (_, head: string, id: string) => `${head}${Number(id) * k}`);
 }
 
 function same(text: string, cache: AnalysisCache, opts: AnalyzeOptions = {}): FileReport {
@@ -107,5 +117,68 @@ describe('incremental analysis', () => {
     expect(after.unitsReused).toBeGreaterThanOrEqual(29 - failed);
     expect(after.rechecksReused).toBeGreaterThan(0);
     expect(after.rechecksRun).toBeLessThan(first.rechecksRun);
+  });
+
+  it('equals a fresh analysis after random edits of the example (a bias network, references, a table flavour) and of its table', () => {
+    const tables = exampleTables();
+    const [name, csv] = Object.entries(tables)[0]!;
+    // A number in the text made another (a digit added after a digit), or the table's currents scaled.
+    const arbStep = fc.oneof(
+      fc.record({ at: fc.double({ min: 0, max: 1, noNaN: true, maxExcluded: true }), del: fc.constant(0), ins: fc.constantFrom('1', '5', '0', '2') }),
+      fc.constantFrom(1, 1.02, 0.97),
+    );
+    let reused = 0;
+    fc.assert(fc.property(fc.array(arbStep, { minLength: 1, maxLength: 4 }), (steps) => {
+      const cache = new AnalysisCache();
+      let text = EXAMPLE;
+      let opts: AnalyzeOptions = { tables };
+      same(text, cache, opts);
+      for (const step of steps) {
+        if (typeof step === 'number') opts = { tables: { ...tables, [name]: scaleTable(csv as string, step) } };
+        else text = apply(text, step);
+        same(text, cache, opts);
+        reused += cache.stats.unitsReused;
+      }
+    }), { numRuns: 6, seed: 1919 });
+    // Most edits leave most of the example's mirrors as they were: their reports were read back.
+    expect(reused).toBeGreaterThan(0);
+  });
+
+  it('solves a table device again when the table text changes under the same name, and equals a fresh analysis', () => {
+    const tables = exampleTables();
+    const [name, csv] = Object.entries(tables)[0]!;
+    expect(typeof csv).toBe('string');
+    const cache = new AnalysisCache();
+    same(EXAMPLE, cache, { tables });
+    const before = cache.stats.unitsSolved;
+    same(EXAMPLE, cache, { tables });
+    expect(cache.stats.unitsSolved).toBe(0);
+    // Every current of the table 2 % higher: a process with another low-threshold device.
+    const scaled = scaleTable(csv as string, 1.02);
+    expect(scaled).not.toBe(csv);
+    const r = same(EXAMPLE, cache, { tables: { ...tables, [name]: scaled } });
+    // The process (its flavours' tables) is in every unit's key: the whole file is solved again.
+    expect(cache.stats.unitsSolved).toBe(before);
+    expect(cache.stats.unitsReused).toBe(0);
+    expect(r.mirrors.some((m) => m.devices.some((d) => d.table === name))).toBe(true);
+  });
+
+  it('solves every member of a bias network again after an edit of one member, and reads the other mirrors back', () => {
+    const cache = new AnalysisCache();
+    // A linked tree of 7 mirrors beside 5 unlinked ones.
+    const loose = Array.from({ length: 5 }, (_, k) => `  - { name: u${k}, kind: simple, type: nmos, input: ${10 + k}u, size: { w: 8u, l: 4u }, output: { v: 0.9 } }\n`);
+    const a = networkTreeText(7) + loose.join('');
+    same(a, cache);
+    // The root's size: a member of the network.
+    const text = a.replace(/(name: t0, .*?size: \{ w: )8u/, '$110u');
+    expect(text).not.toBe(a);
+    const r = same(text, cache);
+    const members = new Set((r.networks ?? []).flatMap((n) => n.members));
+    expect(members.size).toBe(7);
+    const memberReports = r.mirrors.filter((m) => members.has(m.mirror)).length;
+    expect(memberReports).toBe(14);
+    // Every member's report is solved again (its network's key changed), the loose ones read back.
+    expect(cache.stats.unitsSolved).toBe(memberReports);
+    expect(cache.stats.unitsReused).toBe(r.mirrors.length - memberReports);
   });
 });

@@ -84,7 +84,9 @@ export function sweepVout(ctx: MirrorContext, vouts: number[]): CurvePoint[] {
  *  solved by an earlier analysis in the same context is not solved again. */
 export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeats?: boolean; units?: SolvedUnits }): MirrorReport[] {
   const reports: MirrorReport[] = [];
-  const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true, spec, opts?.units);
+  // The settings a report is computed with join its key in the store (every option but the store's own).
+  const { units, repeats: _, ...settings } = opts ?? {};
+  const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true, spec, units, settings);
   for (const mirror of spec.mirrors ?? []) {
     const outputs = mirror.kind === 'netlist' ? undefined : mirror.outputs;
     const n = Array.isArray(outputs) ? Math.max(1, outputs.length) : 1;

@@ -8,13 +8,19 @@
  * changes after analysis.
  *
  * The same holds from one analysis to the next (the editor analyses the file on every
- * keystroke): a `SolvedUnits` store, kept by the caller, holds each solve unit's report under
- * its circuit and everything its solve reads besides (process, supplies, limits: `solveContext`),
- * so an unchanged mirror is not solved again (one whose solve needed a fallback is: its time
- * budget, not its circuit, may have decided the result). Entries an analysis did not use are dropped after it (`sweep`), so the store
- * holds one file's worth.
+ * keystroke): a `SolvedUnits` store, kept by the caller, holds each solve unit's report under a
+ * key of everything it was computed from, each part serialised whole (canonical.ts), so a field
+ * the spec gains later is in the key without an edit here: the mirror's circuit, the resolved
+ * spec but its mirrors (process with its flavours and tables, supplies, limits, params, corners
+ * and whatever else it holds: `solveContext`), the analysis settings, and for a linked mirror
+ * every member of its network and the joint solution (`linkedInputs`). An unchanged mirror is not
+ * solved again (one whose solve needed a fallback is: its time budget, not its circuit, may have
+ * decided the result). Entries an analysis did not use are dropped after it (`sweep`), so the
+ * store holds one file's worth.
  */
 import { isBank } from '../circuit/templates';
+import { canonicalJson, digest } from '../canonical';
+import { indexOf, mirrorAt } from '../mirror-at';
 import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { reportIdentity, type ReportIdentity } from './measure';
 import type { MirrorContext } from './index';
@@ -26,16 +32,36 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
     const bank = isBank(mirror);
     what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
   }
-  return `${outputIndex}|${curve ? 1 : 0}|${JSON.stringify(what)}`;
+  return `${outputIndex}|${curve ? 1 : 0}|${canonicalJson(what)}`;
 }
 
 /**
- * What a mirror's solve reads besides the mirror itself (analysis/, circuit/ and models/ read
- * nothing else of the spec): two mirrors with one circuit and one context have one report.
+ * What a mirror's solve may read besides the mirror itself, as one digest: the resolved spec
+ * without its mirrors (each its own unit) and networks (`linkedInputs`), and the settings the
+ * analysis was asked for. Two mirrors with one circuit and one context have one report.
  */
-export function solveContext(spec: ResolvedSpec): string {
-  return JSON.stringify([spec.process, spec.supplies, spec.limits]);
+export function solveContext(spec: ResolvedSpec, settings: object = {}): string {
+  return digest(canonicalJson([{ ...spec, mirrors: undefined, networks: undefined }, settings]));
 }
+
+/**
+ * For each linked mirror (by file index), the digest of its network as solved: every member as
+ * resolved and the joint solution. A member's report reads what the joint solve handed it; the
+ * whole group is keyed so that an edit of any member solves its network's members again.
+ * Computed once per spec.
+ */
+export function linkedInputs(spec: ResolvedSpec): ReadonlyMap<number, string> {
+  let known = linkedBySpec.get(spec);
+  if (known) return known;
+  known = new Map();
+  for (const n of spec.networks ?? []) {
+    const d = digest(canonicalJson([n, n.members.map((i) => mirrorAt(spec, i) ?? null)]));
+    for (const i of n.members) known.set(i, d);
+  }
+  linkedBySpec.set(spec, known);
+  return known;
+}
+const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
 
 /** Solved reports kept across analyses of one file, by solve unit (see above). */
 export class SolvedUnits {
@@ -78,16 +104,20 @@ export class SolvedUnits {
 export class RepeatedMirrors {
   private readonly solved: Map<string, MirrorReport> | SolvedUnits;
   private readonly context: string;
+  private readonly linked: ReadonlyMap<number, string> | undefined;
 
-  /** `units`: the store kept across analyses (the spec's solve context joins each key). */
-  constructor(private readonly curve: boolean, spec?: ResolvedSpec, units?: SolvedUnits) {
+  /** `units`: the store kept across analyses (the spec's solve context, the analysis `settings`
+   *  and a linked mirror's network join each key). */
+  constructor(private readonly curve: boolean, spec?: ResolvedSpec, units?: SolvedUnits, settings: object = { curve }) {
     this.solved = units ?? new Map<string, MirrorReport>();
-    this.context = units && spec ? `${solveContext(spec)}|` : '';
+    this.context = units && spec ? `${solveContext(spec, settings)}|` : '';
+    this.linked = units && spec ? linkedInputs(spec) : undefined;
   }
 
   /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after. */
   report(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
-    const key = this.context + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    const group = this.linked?.get(indexOf(ctx.mirror));
+    const key = this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
     const known = this.solved.get(key);
     if (!known) {
       const r = measure();

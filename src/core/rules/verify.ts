@@ -9,7 +9,7 @@
  * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
  *
  * What a local re-check finds depends only on the mirror's item before and after the edit and on
- * what lies outside every item (`recheckContext`): a `Rechecks` store kept across analyses of
+ * what lies outside every item (`recheckContext`), and for a linked mirror on its network: a `Rechecks` store kept across analyses of
  * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
 import type { MirrorReport, ResolvedSpec, TextEdit } from '../types';
@@ -23,7 +23,8 @@ import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
-import { clockFree, type SolvedUnits } from '../analysis/repeats';
+import { clockFree, linkedInputs, type SolvedUnits } from '../analysis/repeats';
+import { canonicalJson, digest } from '../canonical';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
 import { applyEdits } from '../text/edits';
@@ -108,16 +109,17 @@ export class Rechecks {
 }
 
 /**
- * Everything outside the mirror items that a local re-check reads: the data beside `mirrors`,
- * the resolved process, supplies, limits and params, the solved networks, every mirror's name, kind and polarities
- * (elaboration checks names and the polarities the process must describe), the file's kind.
+ * Everything outside the mirror items that a local re-check reads, as one digest: the data beside
+ * `mirrors`, the resolved spec but its mirrors (process with its flavours and tables, supplies,
+ * limits, params, corners, the solved networks, and whatever else it holds, serialised whole:
+ * canonical.ts), every mirror's name, kind and polarities (elaboration checks names and the
+ * polarities the process must describe), the file's kind and name.
  */
 export function recheckContext(rc: RuleContext): string {
   const data = rc.parsed.data;
   const root = isRecord(data) ? { ...data, mirrors: undefined } : undefined;
   const mirrors = rc.spec.mirrors.map((m) => [m.name, m.kind, m.kind === 'netlist' ? m.devices.map((d) => d.type) : m.type]);
-  const { process, supplies, limits, params, networks } = rc.spec;
-  return JSON.stringify([root, process, supplies, limits, params, networks ?? null, mirrors, rc.json, rc.file]);
+  return digest(canonicalJson([root, { ...rc.spec, mirrors: undefined }, mirrors, rc.json, rc.file]));
 }
 
 function found(drafts: Draft[]): Found[] {
@@ -153,10 +155,11 @@ function localKey(rc: RuleContext, plan: FixPlan, context: string): string | und
   const frags = rc.fragments;
   if (!frags || plan.scope !== 'mirror' || !localPossible(rc) || !frags.holds(plan.mirrorIndex, plan.edits)) return undefined;
   const item = frags.itemTexts(plan.mirrorIndex, plan.edits);
-  // The mirror as resolved: in a network it carries what the joint solve handed it (the current
-  // that arrives, its linked outputs' voltages), which the re-check keeps (carryLinks).
-  const resolved = JSON.stringify(mirrorAt(rc.spec, plan.mirrorIndex) ?? null);
-  return item && `${plan.mirrorIndex}\u0000${item.original}\u0000${item.edited}\u0000${resolved}\u0000${context}`;
+  // The mirror as resolved, and for a linked one every member of its network as resolved and the
+  // joint solution: the re-check solves that network again with this mirror edited.
+  const resolved = canonicalJson(mirrorAt(rc.spec, plan.mirrorIndex) ?? null);
+  const linked = linkedInputs(rc.spec).get(plan.mirrorIndex) ?? '';
+  return item && `${plan.mirrorIndex}\u0000${item.original}\u0000${item.edited}\u0000${resolved}\u0000${linked}\u0000${context}`;
 }
 
 /** The original spec reads without error and its data lists every mirror: the preconditions of a local re-read. */
