@@ -482,12 +482,12 @@ async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'
   for (const [i, d] of listed.entries()) {
     const cells = shown.rows[i];
     expect(cells[0]).toBe(d.name);
-    close(cells[1], 'm', d.w, 3);
-    close(cells[2], 'm', d.l, 3);
-    close(cells[4], 'A', d.id, 4);
-    close(cells[5], 'V', d.vgs, 4);
-    close(cells[6], 'V', d.vds, 4);
-    close(cells[7], 'V', d.vdsat, 4);
+    close(cells[1], 'm', d.w!, 3);
+    close(cells[2], 'm', d.l!, 3);
+    close(cells[4], 'A', d.id!, 4);
+    close(cells[5], 'V', d.vgs!, 4);
+    close(cells[6], 'V', d.vds!, 4);
+    close(cells[7], 'V', d.vdsat!, 4);
     close(cells[8], 'V', d.margin, 3);
     expect(cells[9]).toBe(d.region);
     close(cells[12], 'Ω', d.ro, 3);

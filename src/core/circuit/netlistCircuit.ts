@@ -5,6 +5,8 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
+import { isBipolarDevice, polaritySign } from '../device-types';
 import type { NetlistMirror, ResolvedSpec } from '../types';
 import { CircuitBuilder } from './circuit';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
@@ -20,7 +22,7 @@ export function railName(node: string): string {
 
 export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number, perturb?: PerturbationLike): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
-  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const sign = polaritySign(m.type);
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const b = new CircuitBuilder();
   b.hold('vdd', vdd);
@@ -35,6 +37,16 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
   else b.hold(out, vout);
 
   for (const d of m.devices) {
+    if (isBipolarDevice(d)) {
+      const params = spec.process[d.type];
+      if (!params) { b.problems.push(`device ${d.name}: no ${d.type} parameters`); continue; }
+      const size = { w: 0, l: 0, m: d.m, bulk: 'rail' as const, area: d.area };
+      const problem = bipolarProblem(params, { area: d.area, m: d.m });
+      if (problem) b.problems.push(`device ${d.name}: ${problem}`);
+      const dev = prepareBipolar(params, { area: d.area, m: d.m }, d.type, proc.temperature, proc.tnom, perturb?.dvt[d.name] ?? 0, perturb?.dbeta[d.name] ?? 0);
+      b.bjt({ name: d.name, role: d.name, type: d.type, size, params, dev, measured: true }, railName(d.c), railName(d.b), railName(d.e));
+      continue;
+    }
     const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
     const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
     const problem = deviceProblem(params, size);
@@ -59,11 +71,12 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
   const guess = (): void => {
     for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
     for (const x of c.devices) {
-      if (x.d !== x.g || x.d >= c.nFree) continue;
+      const [top, ctl, bottom] = x.kind === 'mos' ? [x.d, x.g, x.s] : [x.c, x.b, x.e];
+      if (top !== ctl || top >= c.nFree) continue;
       const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;
-      if (x.s !== ownRail) continue;
-      const drive = gateDriveFor(x.dev, Math.abs(iin), 0);
-      if (Number.isFinite(drive)) ws.v[x.d] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
+      if (bottom !== ownRail) continue;
+      const drive = x.kind === 'mos' ? gateDriveFor(x.dev, Math.abs(iin), 0) : vbeFor(x.dev, Math.abs(iin));
+      if (Number.isFinite(drive)) ws.v[top] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
     }
   };
 

@@ -8,10 +8,13 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
 import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
+import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
-import { CircuitBuilder, type MosInstance } from './circuit';
+import { CircuitBuilder } from './circuit';
+import type { DeviceElement } from './elements/element';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
@@ -22,7 +25,8 @@ export function isBank(m: TemplateMirror): boolean {
   return m.outputs.length > 1 || (m.outputs[0] !== undefined && m.outputs[0].path.length > m.path.length);
 }
 
-function area(s: DeviceSize): number { return s.m * s.w / s.l; }
+/** What a device contributes to a mirror ratio: m·W/L, or area·m for a bipolar device. */
+export function sizeWeight(s: DeviceSize): number { return s.area !== undefined ? s.area * s.m : s.m * s.w / s.l; }
 
 /** Ideal ratio of the pair for output j. */
 export function idealRatio(m: TemplateMirror, j: number): number | undefined {
@@ -31,7 +35,7 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   const sa = m.devices[a] ?? out?.devices[a];
   const sb = out?.devices[b] ?? m.devices[b];
   if (!sa || !sb) return undefined;
-  const r = area(sb) / area(sa);
+  const r = sizeWeight(sb) / sizeWeight(sa);
   return Number.isFinite(r) ? r : undefined;
 }
 
@@ -40,10 +44,13 @@ export function buildTemplate(
   vbias: number | undefined, perturb?: PerturbationLike,
 ): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
-  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const sign = polaritySign(m.type);
   const rail = sign > 0 ? vss : vdd;
   const other = sign > 0 ? vdd : vss;
-  const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+  const type = m.type;
+  const params = type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+  const bipolar = isBipolarType(type) ? spec.process[type] : undefined;
+  if (isBipolarType(type) && !bipolar) throw new Error(`no ${type} parameters`);
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
@@ -51,20 +58,30 @@ export function buildTemplate(
   b.hold('vdd', vdd);
   b.hold('vss', vss);
   const R = sign > 0 ? 'vss' : 'vdd';
+  const S = sign > 0 ? 'vdd' : 'vss';
   if (kind.vbias) b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
 
   let count = 0;
   const byRole: Record<string, number> = {};
   const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean): number => {
-    const problem = deviceProblem(params, size);
-    if (problem) b.problems.push(`device ${name}: ${problem}`);
-    const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    b.mos({ name, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
+    const d1 = perturb?.dvt[name] ?? 0, d2 = perturb?.dbeta[name] ?? 0;
+    if (bipolar && isBipolarType(type)) {
+      const bsize = { area: size.area ?? 1, m: size.m };
+      const problem = bipolarProblem(bipolar, bsize);
+      if (problem) b.problems.push(`device ${name}: ${problem}`);
+      const dev = prepareBipolar(bipolar, bsize, type, proc.temperature, proc.tnom, d1, d2);
+      b.bjt({ name, role, type, size, params: bipolar, dev, measured }, d, g, s);
+    } else if (!isBipolarType(type)) {
+      const problem = deviceProblem(params, size);
+      if (problem) b.problems.push(`device ${name}: ${problem}`);
+      const dev = prepareDevice(params, size, type, proc, d1, d2);
+      b.mos({ name, role, type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
+    }
     return count++;   // index into circuit.devices
   };
 
-  const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
+  const refMap = (n: string): string => (n === 'R' ? R : n === 'S' ? S : n === 'vbias' ? 'vbias' : b.node(n));
   for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
@@ -87,6 +104,11 @@ export function buildTemplate(
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
       const k = add(`${prefix}${role}`, role, size, conn, map, j === outputIndex);
       if (j === outputIndex) byRole[role] = k;
+    }
+    if (kind.degeneration !== undefined) {
+      const r = m.degeneration;
+      if (r === undefined) b.problems.push('no degeneration resistor');
+      else b.resistor('degeneration', map(kind.degeneration), R, r);
     }
   });
 
@@ -152,7 +174,7 @@ export function buildTemplate(
 
 interface GuessContext {
   m: TemplateMirror;
-  devByName: Map<string, MosInstance>;
+  devByName: Map<string, DeviceElement>;
   bank: boolean;
   ratios: number[];
   /** Polarity-frame voltages of every output node and of vbias. */
@@ -163,23 +185,25 @@ interface GuessContext {
   u: Record<string, number>;
 }
 
-/** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it. */
-function drive(x: MosInstance | undefined, i: number, vsb: number, vds: number): number {
+/** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it;
+ *  for a bipolar device its VBE at VCE = vds. */
+function drive(x: DeviceElement | undefined, i: number, vsb: number, vds: number): number {
   if (!x) return 0;
+  if (x.kind === 'bjt') return vbeFor(x.dev, i, Math.max(vds, 0));
   return gateDriveFor(x.dev, i / (1 + x.dev.lambda * Math.max(vds, 0)), vsb);
 }
 
 /** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
-function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
+function diodeDrive(x: DeviceElement | undefined, i: number, vsb: number): number {
   let v = drive(x, i, vsb, 0);
   v = drive(x, i, vsb, v);
   return drive(x, i, vsb, v);
 }
 
 /** Solve x = uGate − VGS(I, VSB(x)) for a cascode's source node by a few fixed-point steps. */
-function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrain: number, lo: number, hi: number): number {
+function sourceBelow(x: DeviceElement | undefined, i: number, uGate: number, uDrain: number, lo: number, hi: number): number {
   if (!x) return lo;
-  const bodyToRail = x.size.bulk === 'rail';
+  const bodyToRail = x.kind === 'mos' && x.size.bulk === 'rail';
   let v = uGate - drive(x, i, 0, uDrain - uGate);
   for (let k = 0; k < 4; k++) v = uGate - drive(x, i, bodyToRail ? Math.max(v, 0) : 0, uDrain - v);
   return Math.min(Math.max(v, lo), Math.max(hi, lo));
@@ -188,9 +212,9 @@ function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrai
 /** Polarity-frame node voltages assuming every device saturated. */
 function guessNodes(g: GuessContext, i: number): void {
   const { m, devByName, ratios, uOuts, uVb, cNodes, u } = g;
-  const dev = (name: string): MosInstance | undefined => devByName.get(name);
+  const dev = (name: string): DeviceElement | undefined => devByName.get(name);
   const prefix = (j: number): string => (g.bank ? `${m.outputs[j]!.name}.` : '');
-  const vsbOf = (x: MosInstance | undefined, us: number): number => (x && x.size.bulk === 'rail' ? us : 0);
+  const vsbOf = (x: DeviceElement | undefined, us: number): number => (x && x.kind === 'mos' && x.size.bulk === 'rail' ? us : 0);
   switch (m.kind) {
     case 'simple':
       u.a = diodeDrive(dev('ref'), i, 0);
@@ -226,6 +250,29 @@ function guessNodes(g: GuessContext, i: number): void {
       if (m.kind === 'wilson-balanced') {
         u.z = sourceBelow(dev('bal'), i, u.x, u.x, 0, u.x);
       }
+      break;
+    }
+    case 'beta-helper': {
+      u.b = drive(dev('ref'), i, 0, u.b ?? 0);
+      let total = 1;
+      for (const r of ratios) total += r;
+      const helper = dev('helper');
+      const beta = helper && helper.kind === 'bjt' ? helper.dev.bf : 100;
+      u.a = u.b + drive(helper, (total * i) / beta, 0, 0);
+      u.b = drive(dev('ref'), i, 0, u.a);
+      break;
+    }
+    case 'widlar': {
+      u.a = diodeDrive(dev('ref'), i, 0);
+      const out = dev('out');
+      const r = m.degeneration ?? 0;
+      // IOUT·R + VBE_out(IOUT) = VBE_ref: bisection on IOUT (the left side rises with it).
+      let lo = 0, hi = i * (ratios[0] ?? 1) * 2;
+      for (let k = 0; k < 60; k++) {
+        const mid = 0.5 * (lo + hi);
+        if (mid * r + drive(out, mid, 0, (uOuts[0] ?? 0) - mid * r) > u.a) hi = mid; else lo = mid;
+      }
+      u.e = 0.5 * (lo + hi) * r;
       break;
     }
     default:

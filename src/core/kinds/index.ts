@@ -4,6 +4,7 @@
  * a compile error. Everything else that differs by kind reads this table, or switches over the
  * kind and ends in `assertNever`, so the compiler names each place a new kind must be handled.
  */
+import { betaHelper } from './beta-helper';
 import { cascode } from './cascode';
 import type { KindSpec } from './kind';
 import { TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
@@ -11,10 +12,13 @@ import { simple } from './simple';
 import { wideSwing } from './wide-swing';
 import { wilson } from './wilson';
 import { wilsonBalanced } from './wilson-balanced';
-import type { ResolvedMirror, TemplateMirror } from '../types';
+import { widlar } from './widlar';
+import type { DeviceType, ResolvedMirror, TemplateMirror } from '../types';
+import type { DeviceFamily, RoutFormula } from './kind';
+import { isBipolarType } from '../device-types';
 
 export { MIRROR_KINDS, TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
-export type { Connection, DeviceFamily, KindSpec, SmallSignal } from './kind';
+export type { Connection, DeviceFamily, KindSpec, RoutContext, RoutFormula, SmallSignal } from './kind';
 
 export const KINDS = {
   simple,
@@ -22,6 +26,8 @@ export const KINDS = {
   'wide-swing': wideSwing,
   wilson,
   'wilson-balanced': wilsonBalanced,
+  'beta-helper': betaHelper,
+  widlar,
 } satisfies Record<TemplateKind, KindSpec>;
 
 export function isTemplateKind(kind: MirrorKind): kind is TemplateKind {
@@ -42,4 +48,22 @@ export function takesVbias(m: ResolvedMirror): m is TemplateMirror {
 export function referenceRoles(kind: TemplateKind): string[] {
   const { roles, outputRoles } = KINDS[kind];
   return roles.filter((r) => !outputRoles.includes(r));
+}
+
+/** The device family of a type. */
+export function familyOf(type: DeviceType): DeviceFamily {
+  return isBipolarType(type) ? 'bipolar' : 'mosfet';
+}
+
+/** Whether a kind may be built from devices of this type. */
+export function kindTakes(kind: TemplateKind, type: DeviceType): boolean {
+  return KINDS[kind].families.includes(familyOf(type));
+}
+
+/** The kind's textbook Rout for the family of `type`, if it has one. */
+export function routFormula(kind: TemplateKind, type: DeviceType): RoutFormula | undefined {
+  const k = KINDS[kind];
+  const family = familyOf(type);
+  if (k.families[0] === family) return k.rout;
+  return family === 'bipolar' ? k.bipolarRout : undefined;
 }

@@ -11,9 +11,13 @@ export const simple: KindSpec = {
   pair: { ref: 'ref', out: 'out' },
   bank: true,
   vbias: false,
-  families: ['mosfet'],
+  families: ['mosfet', 'bipolar'],
   rout: {
     formula: '1/gds_out',
+    value: ({ out }) => ro(out),
+  },
+  bipolarRout: {
+    formula: 'ro_out',
     value: ({ out }) => ro(out),
   },
 };

@@ -39,14 +39,14 @@ function scaleChanges(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number; 
   return out;
 }
 
-function plan(mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
+export function plan(mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
   return edits && edits.length > 0 ? { title, edits, scope: 'mirror', mirrorIndex, family } : undefined;
 }
 
 /** A lazily built fix: solvers run when the generator advances, edits when `build` is called. */
 export interface Candidate { family: string; build: () => FixPlan | undefined }
 
-function candidate(family: string, build: () => FixPlan | undefined): Candidate {
+export function candidate(family: string, build: () => FixPlan | undefined): Candidate {
   return { family, build };
 }
 
@@ -264,7 +264,7 @@ function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
 }
 
 /** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
-function quotedLike(token: string, word: string): string {
+export function quotedLike(token: string, word: string): string {
   const q = token.trim()[0];
   return q === '"' || q === "'" ? `${q}${word}${q}` : word;
 }

@@ -1,5 +1,6 @@
 /** Small helpers shared by the checks. */
 import type { DeviceReport, ResolvedSpec } from '../../types';
+import { inWorkingRegion, sinksCurrent } from '../../device-types';
 import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
@@ -13,8 +14,9 @@ export function siteDevices(site: Site): DeviceReport[] {
   });
 }
 
+/** In its working region (MOSFET saturation, bipolar forward-active) with a margin ≥ 0. */
 export function isSaturated(d: DeviceReport): boolean {
-  return d.region === 'saturation' && d.margin >= 0;
+  return inWorkingRegion(d);
 }
 
 export function deviceIn(op: OperatingPoint | undefined, name: string): DeviceReport | undefined {
@@ -31,7 +33,7 @@ export function marginGoal(site: Site, name: string, target: number, vout: numbe
 
 /** Vout on the supply side of nominal (away from the compliance rail): NMOS above, PMOS below. */
 export function awayFromRail(site: Site, spec: ResolvedSpec): { from: number; to: number } {
-  return site.mirror.type === 'nmos' ? { from: site.vout, to: spec.supplies.vdd } : { from: site.vout, to: spec.supplies.vss };
+  return sinksCurrent(site.mirror.type) ? { from: site.vout, to: spec.supplies.vdd } : { from: site.vout, to: spec.supplies.vss };
 }
 
 /**

@@ -19,6 +19,7 @@ export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
       const s = sizeOf(rc.spec, ref);
       if (!s || (s.auto && s.auto[key === 'l' ? 'l' : 'w'])) continue;
       const type = m.kind === 'netlist' ? m.devices.find((d) => d.name === ref.role)?.type ?? m.type : m.type;
+      if (type !== 'nmos' && type !== 'pmos') continue;   // a bipolar device has an area, no W or L
       const min = key === 'l' ? rc.spec.process[type].lmin : rc.spec.process[type].wmin;
       if (min === undefined || s[key] >= min * (1 - 1e-9)) continue;
       const tok = sizeToken(rc.parsed, rc.spec, ref, key);
