@@ -10,7 +10,9 @@ import { replaceValueEdit } from '../spec/edit';
 import { resized, sameRef, sizeOf, type DeviceRef } from '../sizing/devices';
 import { ratioAt } from '../sizing/ratio';
 import { quantizeSize } from '../sizing/quantize';
-import { candidate, plan, quotedLike, setSizePlans, type Candidate } from './plans';
+import { candidate, devicePlan, fixable, plan, quotedLike, type Candidate } from './plans';
+import type { KeyInsert } from './build-edits';
+import { shortDecimal } from '../sizing/token-style';
 import type { Site } from './sites';
 import { formatRatio } from '../text/format';
 
@@ -50,11 +52,15 @@ export function areaForRatio(rc: RuleContext, site: Site, device: DeviceRef, tar
   return b;
 }
 
-/** Set the output device's `area` for the target ratio. */
-export function* areaRatioPlans(rc: RuleContext, site: Site, device: DeviceRef, target: number): Generator<Candidate> {
+/** Set the output device's `area` for the target ratio. `stateRatio`: also write
+ *  `require.ratio` (the intent was the geometric ratio, which the new area no longer shows). */
+export function* areaRatioPlans(rc: RuleContext, site: Site, device: DeviceRef, target: number, stateRatio: boolean): Generator<Candidate> {
+  if (!fixable(rc, site.mirrorIndex)) return;
   const area = areaForRatio(rc, site, device, target);
   if (area === undefined || !(area > 0)) return;
   const value = quantizeSize(area, undefined, 'nearest');
-  yield* setSizePlans(rc, site, () => [{ ref: device, key: 'area', value }],
-    (notes) => `Set the emitter area for ratio ${formatRatio(target)}: ${notes}`, 'area');
+  const extra: KeyInsert[] = stateRatio ? [{ parent: [...site.path, 'require'], key: 'ratio', text: shortDecimal(target, 6) }] : [];
+  const stated = stateRatio ? ` and state require.ratio ${shortDecimal(target, 6)}` : '';
+  yield candidate('area', () => devicePlan(rc, site, [{ ref: device, key: 'area', value }], extra,
+    (notes) => `Set the emitter area for ratio ${formatRatio(target)}: ${notes}${stated}`, 'area'));
 }

@@ -26,6 +26,7 @@ export function formatValue(key: SizeKey | 'v', value: number, token: string | u
   const unit = key === 'v' ? 'V' : UNIT[key];
   const style = token !== undefined ? readStyle(token, unit) : insertedStyle(json);
   if (key === 'm') return writeLike(Math.round(value), { ...style, prefixed: false });
+  if (key === 'area') return writeLike(value, { ...style, prefixed: false });
   return writeLike(value, style);
 }
 

@@ -47,7 +47,10 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   const setter = pair ? findRole(site, pair.setter) : undefined;
   const partner = pair ? findRole(site, pair.partner) : undefined;
 
-  if (target !== undefined && target > 0 && Number.isFinite(r.ratio)) {
+  // A degenerated pair (the Widlar) runs at a ratio far from its area ratio by design: it is
+  // judged against require.ratio only.
+  const degenerated = site.mirror.kind !== 'netlist' && KINDS[site.mirror.kind].degeneration !== undefined;
+  if (target !== undefined && target > 0 && Number.isFinite(r.ratio) && !(degenerated && required === undefined)) {
     const err = r.ratio / target - 1;
     if (Math.abs(err) > limit) {
       const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
@@ -70,7 +73,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
           // then trims what is left.
           const split = r.errorSplit;
           if (split && isBipolarSplit(split) && baseDominated(split)) yield* betaHelperPlans(rc, site);
-          if (setterRef) yield* areaRatioPlans(rc, site, setterRef, target);
+          if (setterRef) yield* areaRatioPlans(rc, site, setterRef, target, required === undefined);
         } : function* () {
           // A VDS mismatch is removed at its cause (the balanced Wilson, a longer channel, a
           // cascode); an integer m keeps the unit cell. A W trim is right at one Vout, one corner
