@@ -46,7 +46,7 @@ describe('transport model: analytic derivatives against central differences', ()
     for (const kind of ['simple', 'cascode', 'wilson', 'wilson-balanced', 'beta-helper', 'widlar']) {
       for (const type of ['npn', 'pnp']) {
         const s = resolveText(spec([{ kind, type, vout: type === 'npn' ? 3 : 2 }]), 'j.bias.yaml').parsed.spec!;
-        const mc = buildMirror({ spec: s, mirror: s.mirrors[0]!, outputIndex: 0 }, type === 'npn' ? 3 : 2);
+        const mc = buildMirror({ spec: s, mirror: s.mirrors[0]!, outputIndex: 0 }, type === 'npn' ? 3 : 2, undefined);
         mc.guess();
         const c = mc.circuit, ws = mc.ws;
         for (let k = c.nFree; k < ws.nt; k++) ws.v[k] = c.fixedV[k]!;            // the held nodes

@@ -5,7 +5,7 @@
  * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
-import type { BipolarDeviceReport, DeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
+import type { BipolarDeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
 import { isBipolarReport, isBipolarSplit, sinksCurrent } from '../device-types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
