@@ -9,7 +9,7 @@ import type {
   Severity, SpecPath,
 } from '../src/core/types';
 import { formatNumber, formatPercent, formatSI, formatSignedPercent } from './format';
-import { isBipolarReport, isBipolarSplit, isBipolarType, workingRegion } from '../src/core/device-types';
+import { isBipolarReport, isBipolarSplit, isBipolarType, sinksCurrent, workingRegion } from '../src/core/device-types';
 
 /** The caution line every view carries (design §7); one text for the panel and the report. */
 
@@ -112,7 +112,7 @@ function requirementText(mirror: MirrorReport, key: RequirementKey, target: numb
   switch (key) {
     case 'ratio': return `= ${formatNumber(target, 4)}`;
     case 'rout': return `≥ ${formatSI(target, 'Ω')}`;
-    case 'compliance': return `${mirror.type === 'nmos' ? '≤' : '≥'} ${formatSI(target, 'V')}`;
+    case 'compliance': return `${sinksCurrent(mirror.type) ? '≤' : '≥'} ${formatSI(target, 'V')}`;
     case 'sigma': return `≤ ${formatPercent(target)}`;
   }
 }
@@ -161,7 +161,7 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
     detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });
   figures.push(m.noCompliance
     ? { key: 'compliance', label: 'Compliance', value: 'none', detail: `${m.noCompliance.device} out of saturation at every Vout` }
-    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
+    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: sinksCurrent(m.type) ? 'works down to' : 'works up to' });
   if (m.sigma !== undefined) figures.push({ key: 'sigma', label: 'σ(Iout)', value: formatPercent(m.sigma), detail: 'Pelgrom, 1σ' });
   if (m.vbias !== undefined) {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
@@ -358,7 +358,7 @@ export function cornerRows(mirror: MirrorReport, limits?: { error: number }): Co
   const corners = mirror.corners ?? [];
   const ok = corners.filter((c) => c.converged);
   const req = mirror.require ?? {};
-  const nmos = mirror.type === 'nmos';
+  const nmos = sinksCurrent(mirror.type);
   const worst = (pick: (c: CornerResult) => number | undefined, better: (a: number, b: number) => boolean): CornerResult | undefined => {
     let w: CornerResult | undefined;
     for (const c of ok) {

@@ -9,6 +9,10 @@ export const MOS_TYPES = ['nmos', 'pmos'] as const satisfies readonly Polarity[]
 export const BIPOLAR_TYPES = ['npn', 'pnp'] as const satisfies readonly BipolarType[];
 export const DEVICE_TYPES = [...MOS_TYPES, ...BIPOLAR_TYPES] as const satisfies readonly DeviceType[];
 
+export function isDeviceType(t: string): t is DeviceType {
+  return (DEVICE_TYPES as readonly string[]).includes(t);
+}
+
 export function isBipolarType(t: DeviceType): t is BipolarType {
   return t === 'npn' || t === 'pnp';
 }
