@@ -49,7 +49,22 @@ export type BipolarType = 'npn' | 'pnp';
 export type DeviceType = Polarity | BipolarType;
 /** The kinds are described once, in src/core/kinds/. */
 export type { MirrorKind, TemplateKind };
-export type ModelKind = 'square-law' | 'ekv';
+export type ModelKind = 'square-law' | 'ekv' | 'table';
+
+/** A characterisation table as read (design §11): every axis ascending, a full grid. Not
+ *  JSON-serialisable (a typed array); it stays inside the core. */
+export interface DeviceTable {
+  /** The `table:` value as written (a file name relative to the spec). */
+  file: string;
+  l: number[];       // m
+  vgs: number[];     // V (magnitudes for PMOS)
+  vds: number[];     // V
+  vsb: number[];     // V
+  /** K, when the table has a temperature column (or several files, one per temperature). */
+  temperature?: number[];
+  /** A per metre of width at [t][l][vsb][vds][vgs] (vgs fastest); 0 on a vds = 0 row. */
+  id: Float64Array;
+}
 
 /** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
 export interface DeviceParams {
@@ -66,6 +81,9 @@ export interface DeviceParams {
   abeta?: number;    // m, Pelgrom current-factor coefficient (pair, relative)
   lmin?: number;     // m
   wmin?: number;     // m
+  /** The device's characterisation table: its devices follow the table model (kp and vt0 are
+   *  then not read). */
+  table?: DeviceTable;
 }
 
 /** Bipolar process parameters of one type (design §10), every default filled. */
@@ -81,6 +99,11 @@ export interface BipolarParams {
   ais?: number;      // relative, σ(ΔIS/IS) of a pair of unit-area devices
   abf?: number;      // relative, σ(Δβ/β) of a pair of unit-area devices
 }
+/** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
+export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
+
+/** A named device flavour of the process (`process.devices`): thin- or thick-oxide, low-VT… */
+export interface DeviceFlavour { type: Polarity; params: DeviceParams }
 
 export interface ProcessSpec {
   model: ModelKind;
@@ -92,6 +115,8 @@ export interface ProcessSpec {
   /** Present when the spec gives them (a mirror or a netlist device of that type needs them). */
   npn?: BipolarParams;
   pnp?: BipolarParams;
+  /** Device flavours by name; a template mirror picks one with `device:`. */
+  devices?: Record<string, DeviceFlavour>;
 }
 
 export interface Supplies { vdd: number; vss: number }
@@ -124,6 +149,7 @@ export interface DeviceSize {
 export type InputSource =
   | { kind: 'current'; i: number }            // A, ideal
   | { kind: 'resistor'; r: number }           // Ω, to the opposite rail
+  | { kind: 'self' }                          // a self-biased reference: its loop sets the current
   | LinkInput;                                // fed by another mirror's output (design §9.1)
 
 /** `input: { from: PATH }`: this mirror's input node is the named output's node. `i` is the current
@@ -181,9 +207,15 @@ export interface TemplateMirror {
   devices: Record<string, DeviceSize>;
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;
+  /** The process device flavour its devices are (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
   design?: DesignTarget;
   /** Widlar only: the resistor in the output device's emitter (Ω). */
   degeneration?: number;
+  /** Reference kinds: the loop resistor (Ω, `resistor:`). */
+  resistor?: number;
+  /** Reference kinds: the start-up device (`startup:`), absent when none is written. */
+  startup?: DeviceSize;
   outputs: MirrorOutput[];
   path: SpecPath;  // ['mirrors', i]
 }
@@ -217,8 +249,11 @@ export interface NetlistMirror {
   resistors: NetlistResistor[];
   /** The measured output: node held at v by an ideal source. */
   output: { node: string; v: number; range?: [number, number] };
-  /** The current source whose current is iin. */
-  input: { source: string };
+  /** The current source whose current is iin; absent for a self-biased netlist (then iin,
+   *  ratio and error are absent). */
+  input?: { source: string };
+  /** Extra devices judged as the start-up element (`startup:`), in the netlist's device format. */
+  startup?: NetlistDevice[];
   /** Optional mirror pair for ratioIdeal: names of the reference and output devices. */
   pair?: { ref: string; out: string };
   require: Requirements;
@@ -231,8 +266,10 @@ export type ParamDelta = { add: number } | { scale: number };  // scale: multipl
 
 export interface CornerSpec {
   name: string;
-  nmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
-  pmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  nmos: Partial<Record<NumericParam, ParamDelta>>;
+  pmos: Partial<Record<NumericParam, ParamDelta>>;
+  /** Tables the corner puts in place of the process's (a foundry's ss/ff characterisation). */
+  tables?: { nmos?: DeviceTable; pmos?: DeviceTable };
   temperature?: number;  // K
   vdd?: number;
   vss?: number;
@@ -310,6 +347,9 @@ export interface MosDeviceReport {
   gmId: number;            // gm/ID, 1/V
   // A bipolar device's own fields never appear on a MOSFET's report (the union reads by key).
   area?: never; ib?: never; vbe?: never; vce?: never; vcesat?: never; rpi?: never; beta?: never;
+  /** The characterisation table the device's figures come from (its `table:` value), when
+   *  it is a table device. */
+  table?: string;
 }
 
 /** Operating point of one bipolar device (design §10). Voltages are magnitudes in the device's
@@ -333,7 +373,7 @@ export interface BipolarDeviceReport {
   beta: number;            // IC/IB
   // A MOSFET's own fields never appear on a bipolar report.
   w?: never; l?: never; sized?: never; id?: never; vgs?: never; vds?: never; vbs?: never; vth?: never;
-  vov?: never; vdsat?: never; inversion?: never; gmb?: never; gmId?: never;
+  vov?: never; vdsat?: never; inversion?: never; gmb?: never; gmId?: never; table?: never;
 }
 
 export type DeviceReport = MosDeviceReport | BipolarDeviceReport;
@@ -371,6 +411,33 @@ export interface MonteCarloResult {
   failures?: { convergence: number; saturation: number; ratio: number; compliance: number };
 }
 
+/** The start-up check of a self-biased circuit (design §9.2, analysis/startup.ts). */
+export interface StartupReport {
+  /** An all-off state is consistent without the start-up element: every loop device can sit in
+   *  cutoff with zero current in every branch. */
+  zeroState: boolean;
+  /** A start-up element is written. */
+  element: boolean;
+  /** With an element: it conducts in every zero-current state (so that state is no longer
+   *  consistent and the loop is started). */
+  conducts?: boolean;
+  /** With an element: A, its current at the operating point, and the limit it must stay below
+   *  (1 % of the smallest branch current of the loop). */
+  current?: number;
+  limit?: number;
+}
+
+/** What a self-biased reference (a reference kind, or a netlist without input) reports. */
+export interface ReferenceReport {
+  /** A, the loop current: a reference kind's resistor current (the current the loop sets; iin
+   *  is `ref`'s, which the taps copy); a netlist's smallest branch current. */
+  current: number;
+  /** Loop gain at the operating point (< 1: the operating point is stable), from the return
+   *  difference of the loop's breaking device; absent for a netlist. */
+  loopGain?: number;
+  startup: StartupReport;
+}
+
 export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
 
 export interface MirrorReport {
@@ -390,9 +457,10 @@ export interface MirrorReport {
    *  voltage (V) that chain takes to carry its current, against the supply. */
   beyondRails?: { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number };
   vout: number;        // V, nominal output voltage (absolute)
-  iin: number;
+  /** Absent for a self-biased netlist (it has no input). */
+  iin?: number;
   iout: number;
-  ratio: number;
+  ratio?: number;
   ratioIdeal?: number;
   error?: number;
   errorSplit?: ErrorSplit;
@@ -404,6 +472,8 @@ export interface MirrorReport {
    *  figure then; `compliance` holds the far rail only as design §4's placeholder. */
   noCompliance?: { device: string };
   sigma?: number;
+  /** A self-biased reference: its current, loop gain and start-up check. */
+  reference?: ReferenceReport;
   /** Wide-swing: the cascode gate voltage used (V, absolute) and whether qpoint picked it. */
   vbias?: number;
   vbiasPicked?: boolean;
@@ -471,8 +541,28 @@ export interface FileReport {
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];
+  /** What a schematic needs beyond the figures, per mirror: how a template's input is driven
+   *  and a netlist's own wiring (src/core/schematic/). Not part of the CLI's JSON. */
+  wiring?: MirrorWiring[];
   /** Linked groups of mirrors (design §9.3), root first; absent without links. */
   networks?: NetworkReport[];
+}
+
+/** One mirror's wiring for its schematic: a template kind's input source, or a netlist's parts
+ *  on their nodes. */
+export interface MirrorWiring {
+  mirrorIndex: number;
+  input?: InputSource;
+  /** A Widlar's emitter resistor (Ω), drawn from its kind's degeneration node to the rail. */
+  degeneration?: number;
+  netlist?: {
+    devices: { name: string; d: string; g: string; s: string }[];
+    currents: NetlistCurrentSource[];
+    voltages: NetlistVoltageSource[];
+    resistors: NetlistResistor[];
+    /** The measured output node. */
+    output: string;
+  };
 }
 
 /** One bias network: a root and the mirrors it feeds, solved as one circuit. */

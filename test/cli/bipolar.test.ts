@@ -1,7 +1,7 @@
 /**
  * Every bipolar kind in both polarities end to end through the CLI (design §10): each solves in
  * forward-active, reports its devices in the bipolar fields, and the text report prints them in
- * their own table (VBE, VCE for NPN; magnitudes for PNP). Check values: docs/references.md §11.
+ * their own table (VBE, VCE for NPN; magnitudes for PNP). Check values: docs/references.md §12.
  */
 import { describe, expect, it } from 'vitest';
 import { useCli } from './harness';

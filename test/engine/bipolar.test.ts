@@ -2,7 +2,7 @@
  * The bipolar transistor (design §10) and the bipolar mirrors: the transport model's analytic
  * derivatives against finite differences in every region, its temperature laws, and the
  * mirrors' figures through the whole solver against the published and derived values of
- * docs/references.md §11 (the check device DB: IS = 1e-16 A, βF = 100, VAF = 100 V, 300 K).
+ * docs/references.md §12 (the check device DB: IS = 1e-16 A, βF = 100, VAF = 100 V, 300 K).
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
@@ -73,7 +73,7 @@ describe('transport model: analytic derivatives against central differences', ()
   });
 });
 
-describe('temperature laws (docs/references.md §11, IS(T) and βF(T); values computed)', () => {
+describe('temperature laws (docs/references.md §12, IS(T) and βF(T); values computed)', () => {
   it('IS(T)/IS(Tnom) and VBE(T) at 100 µA, EG 1.11 eV, XTI 3, Tnom 300.15 K', () => {
     const table: [number, number, number][] = [
       [233.15, 2.065164e-6, 0.818145], [273.15, 1.083667e-2, 0.756892], [300.15, 1, 0.714674],
@@ -127,7 +127,7 @@ function reports(text: string): MirrorReport[] {
 const one = (m: MirrorText, npn?: string, pnp?: string): MirrorReport => reports(spec([m], npn, pnp))[0]!;
 const dev = (r: MirrorReport, name: string): BipolarDeviceReport => r.devices.find((d) => d.name === name) as BipolarDeviceReport;
 
-describe('ratios with β = 100 and no Early effect (docs/references.md §11; formulas derived, values computed)', () => {
+describe('ratios with β = 100 and no Early effect (docs/references.md §12; formulas derived, values computed)', () => {
   const noEarly = 'is: 1e-16, bf: 100';
   it('simple 1:1: 1/(1 + 2/β) = 0.980392; 1:4: 4/(1 + 5/β) = 3.80952381', () => {
     expect(one({ kind: 'simple', type: 'npn', vout: 3 }, noEarly).ratio).toBeCloseTo(1 / 1.02, 7);
@@ -153,7 +153,7 @@ describe('ratios with β = 100 and no Early effect (docs/references.md §11; for
   });
 });
 
-describe('full DC solve with the Early effect on IC only (docs/references.md §11, convention C; computed)', () => {
+describe('full DC solve with the Early effect on IC only (docs/references.md §12, convention C; computed)', () => {
   const cases: [string, number, number][] = [
     ['simple', 2, 0.993052], ['simple', 3, 1.002788], ['simple', 5, 1.022260],
     ['wilson', 2, 0.992950], ['wilson', 3, 0.993141], ['wilson', 5, 0.993514],
@@ -161,7 +161,7 @@ describe('full DC solve with the Early effect on IC only (docs/references.md §1
     ['cascode', 2, 0.961729], ['cascode', 3, 0.961912], ['cascode', 5, 0.962267],
   ];
   it.each(cases)('%s at Vout %s V: IO/IIN = %s (to 1e-4 in current)', (kind, vout, ratio) => {
-    expect(rel(one({ kind, type: 'npn', vout }).ratio, ratio)).toBeLessThan(1e-4);
+    expect(rel(one({ kind, type: 'npn', vout }).ratio!, ratio)).toBeLessThan(1e-4);
   });
   it('node voltages at Vout 3 V: simple VBE 0.713625 V; Wilson X 1.427253 V, Y 0.713699 V; cascode A 0.713381 V, B 1.427014 V', () => {
     expect(dev(one({ kind: 'simple', type: 'npn', vout: 3 }), 'ref').vbe).toBeCloseTo(0.713625, 5);
@@ -180,14 +180,14 @@ describe('full DC solve with the Early effect on IC only (docs/references.md §1
   });
   it('PNP simple (DBP), VEC of out 2 V: ratio 0.986475, VEB 0.712951 V, Rout 527.13 kΩ', () => {
     const r = one({ kind: 'simple', type: 'pnp', vout: 3 });
-    expect(rel(r.ratio, 0.986475)).toBeLessThan(1e-4);
+    expect(rel(r.ratio!, 0.986475)).toBeLessThan(1e-4);
     expect(dev(r, 'ref').vbe).toBeCloseTo(0.712951, 5);
     expect(dev(r, 'out').vce).toBeCloseTo(2, 9);   // reported as the magnitude VEC
     expect(rel(r.rout, 527.13e3)).toBeLessThan(5e-3);
   });
 });
 
-describe('Rout limits: β·ro/2 for the Wilson and the self-biased cascode (docs/references.md §11)', () => {
+describe('Rout limits: β·ro/2 for the Wilson and the self-biased cascode (docs/references.md §12)', () => {
   it('the textbook β·ro/2 is within 6 % of the exact Rout, far below the MOSFET-like gm·ro² a base current with an Early factor would give', () => {
     for (const kind of ['wilson', 'wilson-balanced', 'cascode']) {
       const r = one({ kind, type: 'npn', vout: 3 });
@@ -209,7 +209,7 @@ describe('Rout limits: β·ro/2 for the Wilson and the self-biased cascode (docs
   });
 });
 
-describe('Widlar: IOUT·R = UT·ln(IIN/IOUT) (Gray et al. §4.4.1; docs/references.md §11, Lambert-W values computed)', () => {
+describe('Widlar: IOUT·R = UT·ln(IIN/IOUT) (Gray et al. §4.4.1; docs/references.md §12, Lambert-W values computed)', () => {
   const huge = 'is: 1e-16, bf: 1e12';
   it('IIN 100 µA, R 5 kΩ: 11.281736 µA without base currents; 11.166114 µA with β = 100', () => {
     expect(rel(one({ kind: 'widlar', type: 'npn', vout: 3 }, huge).iout, 11.281736e-6)).toBeLessThan(1e-5);
@@ -231,7 +231,7 @@ describe('Widlar: IOUT·R = UT·ln(IIN/IOUT) (Gray et al. §4.4.1; docs/referenc
   });
 });
 
-describe('mismatch: the area law from ais and abf (docs/references.md §11)', () => {
+describe('mismatch: the area law from ais and abf (docs/references.md §12)', () => {
   it('1:1 mirror, ais 1 %, abf 5 %, β = 100: σ = 0.99141 % (sensitivity (β + 1)/(β + 2) to IS, 1/(β + 2) to β)', () => {
     const r = one({ kind: 'simple', type: 'npn', vout: 3 }, 'is: 1e-16, bf: 100, ais: 1%, abf: 5%');
     expect(rel(r.sigma!, 0.0099141)).toBeLessThan(1e-4);

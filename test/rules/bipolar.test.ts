@@ -20,7 +20,7 @@ describe('bipolar ratio-error', () => {
     expect(f.fixes![0]!.title).toContain('beta-helper');
     const after = analyzeText(applyEdits(text, f.fixes![0]!.edits), 'b.bias.yaml');
     expect(after.findings.filter((x) => x.code === 'ratio-error')).toEqual([]);
-    // 1/(1 + 2/(β(β + 1))) = 0.999216301 at β = 50 (docs/references.md §11, computed)
+    // 1/(1 + 2/(β(β + 1))) = 0.999216301 at β = 50 (docs/references.md §12, computed)
     expect(after.mirrors[0]!.ratio).toBeCloseTo(0.999216301, 8);
   });
   it('a cascode NPN mirror is trimmed by the emitter area of out, with require.ratio written', () => {

@@ -9,6 +9,7 @@ import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
+import { referenceReport } from './reference';
 import { splitBipolarError, splitError } from './errorSplit';
 import { sizeWeight } from '../circuit/templates';
 import { isBipolarReport } from '../device-types';
@@ -51,6 +52,7 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
     mirrorIndex: id.mirrorIndex, outputIndex: id.outputIndex,
   };
   if (id.output !== undefined) r.output = id.output;
+  if (m.kind === 'netlist' && m.input === undefined) { delete r.iin; delete r.ratio; }
   return r;
 }
 
@@ -89,21 +91,26 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   }
   const sol = solveMirror(mc, warm);
   const devices = deviceReports(mc);
+  // A self-biased netlist has no input: no iin, ratio or error (design §14).
+  const noInput = m.kind === 'netlist' && m.input === undefined;
   const iin = mc.iin();
   const iout = outputCurrent(mc);
   const ratio = iin !== 0 ? iout / iin : NaN;
   const base = blankReport(t, vout);
   base.converged = sol.converged; base.iterations = sol.iterations; base.residual = sol.residual;
-  base.iin = iin; base.iout = iout; base.ratio = ratio;
+  base.iout = iout;
+  if (noInput) { delete base.iin; delete base.ratio; } else { base.iin = iin; base.ratio = ratio; }
   base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
   if (sol.note) base.solveNote = sol.note;
   if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
   const ideal = ratioIdealOf(t, mc);
   if (ideal !== undefined) base.ratioIdeal = ideal;
+  const reference = referenceReport(m, mc, devices, sol.converged);
+  if (reference) base.reference = reference;
   if (!sol.converged) return base;
 
-  if (ideal !== undefined && Number.isFinite(ratio)) {
+  if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
     const a = mc.pair && mc.circuit.devices[mc.pair.ref], b = mc.pair && mc.circuit.devices[mc.pair.out];
     if (a && b && a.kind === 'mos' && b.kind === 'mos') base.errorSplit = splitError(a, b, ideal, mc.ws.v);

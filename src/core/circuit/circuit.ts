@@ -129,6 +129,7 @@ export class CircuitBuilder {
             kind: 'mos', name: m.name, role: m.role, type: m.type, size: m.size, params: m.params, dev: m.dev,
             measured: m.measured, d: at(d), g: at(g), s: at(s), b: at(b), slot: 0,
           };
+          if (m.startup) e.startup = true;
           elements.push(e);
           devices.push(e);
           break;
@@ -140,6 +141,7 @@ export class CircuitBuilder {
             kind: 'bjt', name: q.name, role: q.role, type: q.type, size: q.size, params: q.params, dev: q.dev,
             measured: q.measured, c: at(c), b: at(b), e: at(e), slot: 0,
           };
+          if (q.startup) el.startup = true;
           elements.push(el);
           devices.push(el);
           break;

@@ -20,15 +20,17 @@
  * Results snap to process.grid (W to nearest, L up), else to 4 significant digits; W below
  * wmin is raised to wmin (lengthening L at the same W/L when L is auto too).
  */
-import { isBipolarReport } from '../device-types';
+import { isBipolarReport, isBipolarType } from '../device-types';
 import type {
   DesignTarget, DeviceParams, DeviceSize, ResolvedSpec, SpecPath, TemplateMirror,
 } from '../types';
 import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
 import { isBank } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
-import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
-import { MODELS } from '../models/registry';
+import { lambdaAt } from '../models/thermal';
+import { MODELS, modelKindOf } from '../models/registry';
+import { sizingContextOf } from '../models/device';
+import { paramsOf } from '../flavours';
 import type { DeviceModel, SizingContext } from '../models/model';
 import { quantizeSize } from '../sizing/quantize';
 import { formatSI } from '../text/format';
@@ -97,7 +99,8 @@ function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, t
   { spec: ResolvedSpec; sized: SizedDevice[] } {
   const slots = collectSlots(mirror);
   // Design targets are read for MOSFET mirrors only (the spec reader refuses them on bipolar ones).
-  const params = mirror.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+  if (isBipolarType(mirror.type)) throw new Error(`design targets size MOSFET mirrors; ${mirror.name} is ${mirror.type}`);
+  const params = paramsOf(spec.process, mirror.type, mirror.device);
   const autoL = slots.filter((s) => s.size.auto?.l === true);
   const routOutputs = mirror.outputs
     .map((o, j) => ({ j, rout: o.require.rout ?? 0 }))
@@ -187,9 +190,11 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
  *  currents and length-modulation factors settle. Mutates the slots; returns the sized spec. */
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
-  const params = m.type === 'pmos' ? proc.pmos : proc.nmos;
-  const model = MODELS[proc.model];
-  const ctxT: SizingContext = { kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
+  if (isBipolarType(m.type)) throw new Error(`design targets size MOSFET mirrors; ${m.name} is ${m.type}`);
+  const params = paramsOf(proc, m.type, m.device);
+  const model = MODELS[modelKindOf(params, proc.model)];
+  // A table device reads its target off its own table at its length, so the context is per slot.
+  const ctxAt = (l: number): SizingContext => sizingContextOf(params, proc, l);
   const inputBranch = KINDS[m.kind].inputStack;
   const pairOut = KINDS[m.kind].pair.out;
   const bank = isBank(m);
@@ -230,6 +235,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
         s.note = ref.note;
         continue;
       }
+      const ctxT = ctxAt(s.size.l);
       const aspect = model.aspectForTarget(ctxT, s.planned, target, s.clm);
       if (aspect === undefined) {
         s.note = unreachableNote(model, ctxT, target);

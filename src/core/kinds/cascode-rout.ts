@@ -14,7 +14,7 @@ export const cascodeRout: RoutFormula = {
 
 /** The self-biased bipolar cascode mirror: the cascode's signal base current returns through the
  *  input diodes and is mirrored into its emitter, so Rout ≈ β·ro/2, not β·ro (docs/references.md
- *  §11; Gray, Hurst, Lewis and Meyer, Analysis and Design of Analog Integrated Circuits, 5th ed.,
+ *  §12; Gray, Hurst, Lewis and Meyer, Analysis and Design of Analog Integrated Circuits, 5th ed.,
  *  §4.2.5, from memory). */
 export const bipolarCascodeRout: RoutFormula = {
   formula: 'β_outc·ro_outc/2',

@@ -3,7 +3,7 @@
  * resistor `degeneration:` in its emitter, so VBE_ref − VBE_out = IOUT·R: a small output current
  * from a large input, IOUT·R = UT·ln(IIN/IOUT) for equal devices without base currents. The
  * emitter resistor raises Rout to ro·(1 + gm·(RE ∥ rπ)) (Gray, Hurst, Lewis and Meyer, Analysis
- * and Design of Analog Integrated Circuits, 5th ed., §4.4.1, from memory; docs/references.md §11).
+ * and Design of Analog Integrated Circuits, 5th ed., §4.4.1, from memory; docs/references.md §12).
  */
 import { ro, type KindSpec } from './kind';
 

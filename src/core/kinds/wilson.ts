@@ -15,7 +15,7 @@ export function wilsonRout(out: SmallSignal | undefined, inDev: SmallSignal | un
 }
 
 /** The bipolar Wilson (three or four devices): the output device's signal base current is
- *  what the feedback cannot hold, so Rout ≈ β·ro/2 (docs/references.md §11; Sedra and Smith,
+ *  what the feedback cannot hold, so Rout ≈ β·ro/2 (docs/references.md §12; Sedra and Smith,
  *  Microelectronic Circuits, the Wilson mirror, from memory). */
 export const bipolarWilsonRout: RoutFormula = {
   formula: 'β_out·ro_out/2',

@@ -24,8 +24,10 @@ export function untrustedMove(before: readonly MirrorReport[], after: readonly M
   for (const r of after) {
     if (!r.converged) continue;
     for (const d of r.devices) {
-      // A bipolar device's `ic` is its collector current, and its model holds at any current.
-      if (isBipolarReport(d) || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
+      // A bipolar device's `ic` is its collector current, and its model holds at any current. A
+      // start-up element is meant to sit near cutoff at the operating point: its figure there is
+      // the start-up check's, not a square-law operating point.
+      if (isBipolarReport(d) || d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
       const ic = was.get(`${r.path.join('/')}|${d.name}`);
       if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
     }

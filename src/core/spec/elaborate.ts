@@ -3,7 +3,7 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
+import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
 import { DEFAULTS } from '../defaults';
 import { DEVICE_TYPES, isBipolarType } from '../device-types';
 import { familyOf, KINDS } from '../kinds/index';
@@ -14,9 +14,10 @@ import { readTemplateMirror } from './mirror';
 import { checkLinks, fedOutputs } from './links';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
-import { readLimits, readProcess, readSupplies } from './process';
+import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
 import { missing, readEnum, readMap, readString } from './read';
-import { typeName } from './values';
+import { typeName, type ValueScope } from './values';
+import type { TableTexts } from './tables';
 
 /**
  * Mirrors already elaborated from the same items: a re-check after a fix to mirror `except` reads
@@ -28,8 +29,28 @@ export interface ElaborateReuse {
   except: number;
 }
 
+/** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
+ *  when not given, null when it names no such flavour (a finding says so). */
+function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: DeviceType): string | null | undefined {
+  if (raw === undefined) return undefined;
+  const name = readString(sink, raw, path);
+  if (name === undefined) return null;
+  if (!proc?.flavourNames.has(name)) {
+    const known = [...(proc?.flavourNames ?? [])];
+    sink.error('unknown-name', `no device flavour \`${name}\` in \`process.devices\`${known.length ? ` (it has ${known.map((k) => `\`${k}\``).join(', ')})` : ''}`, path);
+    return null;
+  }
+  const f = proc.devices?.[name];
+  if (!f) return null;   // the flavour has its own error
+  if (f.type !== type) {
+    sink.error('bad-value', `device flavour \`${name}\` is ${f.type}, but this mirror is ${type}`, path);
+    return null;
+  }
+  return name;
+}
+
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
-export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse): ResolvedSpec | undefined {
+export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse, tables?: TableTexts): ResolvedSpec | undefined {
   if (!isRecord(data)) {
     sink.error('wrong-type', `a bias spec is a mapping (\`format: 1\`, \`process\`, \`supplies\`, \`mirrors\`); got ${typeName(data)}`, [], undefined, 'type');
     return undefined;
@@ -42,7 +63,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     formatOk = false;
   }
   const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
-  const scope = resolveParams(data.params, sink);
+  const scope: ValueScope = { ...resolveParams(data.params, sink), ...(tables ? { tables } : {}) };
   const proc = readProcess(scope, data.process);
   const supplies = readSupplies(scope, data.supplies);
   const limits = readLimits(scope, data.limits);
@@ -61,7 +82,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [known.type];
+      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : known.device ? [] : [known.type];
       for (const t of types) if (!used.has(t)) used.set(t, known.name);
       mirrors.push(known);
       return;
@@ -95,8 +116,12 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       sink.error('bad-value', `a ${kind} mirror is built from ${families.join(' or ')} devices: \`type\` is one of ${types.join(', ')}; got ${type}`, [...path, 'type']);
       return;
     }
-    if (!used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined, supplies, (j) => fed.has(`${i}:${j}`));
+    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
+    if (flavour === null) return;
+    if (!flavour && !used.has(type)) used.set(type, name);
+    const params = flavour ? proc?.devices?.[flavour]?.params : type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined;
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, params, supplies, (j) => fed.has(`${i}:${j}`));
+    if (tm && flavour) tm.device = flavour;
     if (tm) mirrors.push(tm);
   });
 
@@ -110,15 +135,17 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       if (!proc.written.has(type)) missing(sink, ['process'], type, ` (mirror \`${mirror}\` uses ${type} devices)`);
     }
     // A spec of bipolar devices only needs no MOSFET parameters: a placeholder nothing reads.
-    const bipolarOnly = !proc.written.has('nmos') && !proc.written.has('pmos') && (proc.written.has('npn') || proc.written.has('pnp'))
-      && ![...used.keys()].some((t) => !isBipolarType(t));
-    const placeholder: DeviceParams | undefined = bipolarOnly ? { kp: 1e-4, vt0: 0.5, ...DEFAULTS.device } : undefined;
+    const bipolarOnly = !proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0
+      && (proc.written.has('npn') || proc.written.has('pnp')) && ![...used.keys()].some((t) => !isBipolarType(t));
+    const anyFlavour = proc.devices ? Object.values(proc.devices)[0]?.params : undefined;
+    const placeholder: DeviceParams | undefined = anyFlavour ?? (bipolarOnly ? { kp: 1e-4, vt0: 0.5, ...DEFAULTS.device } : undefined);
     const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos ?? placeholder);
     const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos ?? placeholder);
-    if (!proc.written.has('nmos') && !proc.written.has('pmos') && !bipolarOnly) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
+    if (!proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0 && !bipolarOnly) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
     const bipolarReady = (['npn', 'pnp'] as const).every((t) => !used.has(t) || proc[t] !== undefined);
     if (nmos && pmos && proc.ok && bipolarReady) {
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
+      if (proc.devices) process.devices = proc.devices;
       if (proc.grid !== undefined) process.grid = proc.grid;
       if (proc.npn) process.npn = proc.npn;
       if (proc.pnp) process.pnp = proc.pnp;

@@ -4,9 +4,11 @@
  * respect to them (mismatch sigma, Monte Carlo). Exhaustive switches: a new device kind is named
  * here by the compiler.
  */
-import type { ChannelEval } from '../../models/core';
+import { newChannelEval, type ChannelEval } from '../../models/core';
+import { evalTerminal } from '../../models/terminal';
 import type { DeviceReport } from '../../types';
-import { bjtMargin, bjtMismatchCurrents, bjtReport, bjtSigmas } from './bjt';
+import { evalBipolar, newBipolarEval, vbeFor } from '../../models/bipolar';
+import { bjtFrame, bjtMargin, bjtMismatchCurrents, bjtReport, bjtSigmas } from './bjt';
 import { assertNever, type DeviceElement } from './element';
 import { mosMargin, mosMismatchDerivatives, mosReport, mosSigmas } from './mosfet';
 
@@ -90,4 +92,66 @@ export function currentNodes(d: DeviceElement): [number, number] {
 export function carriesNode(d: DeviceElement, k: number): boolean {
   const [a, b] = currentNodes(d);
   return a === k || b === k;
+}
+
+const evalScratch = newChannelEval();
+const bjtScratch = newBipolarEval();
+
+/** A, the device's main current in its own polarity (positive when it conducts as wired: drain
+ *  to source for NMOS, source to drain for PMOS) at node voltages v. */
+export function channelCurrent(d: DeviceElement, v: Float64Array): number {
+  switch (d.kind) {
+    case 'mos': {
+      const vs = v[d.s]!;
+      evalTerminal(d.dev, v[d.g]! - vs, v[d.d]! - vs, v[d.b]! - vs, evalScratch);
+      return d.dev.sign * evalScratch.id;
+    }
+    case 'bjt': {
+      const [vbe, vbc] = bjtFrame(d, v);
+      evalBipolar(d.dev, vbe, vbc, bjtScratch);
+      return bjtScratch.ic;
+    }
+    default: return assertNever(d);
+  }
+}
+
+/**
+ * The device's controlled source as the nodal equations see it: the current from `from` to `to`
+ * (currentNodes) grows by `g`·(v_ctrl − v_ref) (MOSFET: gm, gate over source; bipolar: gm, base
+ * over emitter). The loop gain is
+ * the return difference of this one term (analysis/loop-gain.ts).
+ */
+export function controlledSource(d: DeviceElement, v: Float64Array): { g: number; ctrl: number; ref: number } {
+  switch (d.kind) {
+    case 'mos': {
+      const vs = v[d.s]!;
+      evalTerminal(d.dev, v[d.g]! - vs, v[d.d]! - vs, v[d.b]! - vs, evalScratch);
+      return { g: evalScratch.gm, ctrl: d.g, ref: d.s };
+    }
+    case 'bjt': {
+      const [vbe, vbc] = bjtFrame(d, v);
+      evalBipolar(d.dev, vbe, vbc, bjtScratch);
+      return { g: bjtScratch.dicVbe, ctrl: d.b, ref: d.e };
+    }
+    default: return assertNever(d);
+  }
+}
+
+/**
+ * The device's cutoff condition, linear in node voltages, for the zero-current state test
+ * (analysis/startup.ts): it is off while v[ctrl] − v[ref] ≤ `bound` (MOSFET: VGS ≤ VT0 for NMOS,
+ * VSG ≤ |VT0| for PMOS; VT0 without body effect, the lowest threshold a bulk at its rail gives, so
+ * a state found off here is off for every body bias).
+ */
+export function cutoffBound(d: DeviceElement): { ctrl: number; ref: number; bound: number } {
+  switch (d.kind) {
+    case 'mos':
+      return d.dev.sign > 0 ? { ctrl: d.g, ref: d.s, bound: d.dev.vt0 } : { ctrl: d.s, ref: d.g, bound: d.dev.vt0 };
+    case 'bjt': {
+      // A junction has no threshold: off below the VBE at which it carries 1 pA.
+      const bound = vbeFor(d.dev, 1e-12);
+      return d.dev.sign > 0 ? { ctrl: d.b, ref: d.e, bound } : { ctrl: d.e, ref: d.b, bound };
+    }
+    default: return assertNever(d);
+  }
 }

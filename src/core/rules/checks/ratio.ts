@@ -50,8 +50,9 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   // A degenerated pair (the Widlar) runs at a ratio far from its area ratio by design: it is
   // judged against require.ratio only.
   const degenerated = site.mirror.kind !== 'netlist' && KINDS[site.mirror.kind].degeneration !== undefined;
-  if (target !== undefined && target > 0 && Number.isFinite(r.ratio) && !(degenerated && required === undefined)) {
-    const err = r.ratio / target - 1;
+  if (target !== undefined && target > 0 && r.ratio !== undefined && Number.isFinite(r.ratio) && !(degenerated && required === undefined)) {
+    const ratio = r.ratio;
+    const err = ratio / target - 1;
     if (Math.abs(err) > limit) {
       const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
       const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, isBipolarType(site.mirror.type) ? ['area', 'm'] : ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
@@ -66,7 +67,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: 'ratio-error', path: at.path, range: at.range, related: rel,
-          message: `ratio ${formatRatio(r.ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
+          message: `ratio ${formatRatio(ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
         },
         plan: isBipolarType(site.mirror.type) ? function* () {
           // Base currents are removed at their cause (a helper returns them); an area ratio
@@ -95,7 +96,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
 
   // A VDS mismatch already compensated by sizing (the required ratio is met within half the
   // budget, e.g. an auto-sized or fixed output W) needs no warning: the designer has dealt with it.
-  const compensated = required !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
+  const compensated = required !== undefined && r.ratio !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
   const split = r.errorSplit;
   if (split && !isBipolarSplit(split) && setter && partner && !isBipolarReport(setter) && !isBipolarReport(partner) && !compensated && Math.abs(split.vds) >= limit / 2) {
     const at = kindRange(rc.parsed, site.mirrorIndex);

@@ -1,4 +1,5 @@
 /** The mirror's stated requirements: low-rout, compliance, high-sigma. */
+import { mirrorParams } from '../../flavours';
 import type { ResolvedSpec, SpecPath } from '../../types';
 import { inWorkingRegion, sinksCurrent } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
@@ -24,10 +25,9 @@ export function checkRout(rc: RuleContext, site: Site): Draft[] {
   const at = outputDeviceRange(rc, site, ['l', 'w']);
   const req = valueRange(rc.parsed, [...site.path, 'require', 'rout']);
   const mt = site.mirror.type;
-  const type = mt === 'pmos' ? rc.spec.process.pmos : rc.spec.process.nmos;
   const hint = mt === 'npn' || mt === 'pnp'
     ? (site.mirror.kind === 'simple' || site.mirror.kind === 'beta-helper' ? 'emitter degeneration (a Widlar) or a cascode or Wilson (Rout ≈ β·ro/2)' : 'emitter degeneration, or a larger Early voltage')
-    : type.lref === undefined
+    : mirrorParams(rc.spec.process, site.mirror, mt).lref === undefined
     ? 'this process gives λ without lref, so L does not change ro: use a cascode'
     : site.mirror.kind === 'simple' ? 'lengthen the devices, or use a cascode (Rout ≈ gm·ro²)' : 'lengthen the devices';
   return [{
