@@ -12,15 +12,17 @@ import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
 import type { FileReport, MirrorReport } from '../../src/core/types';
-import { EXAMPLE, everyKindText, exampleText } from './fixtures';
+import { EXAMPLE, everyKindText, exampleText, typesOf } from './fixtures';
+import { isBipolarReport, sinksCurrent } from '../../src/core/device-types';
+import { exampleTables } from '../example-tables';
 
 const engine = new ELK();
 let kinds: FileReport, example: FileReport;
 let drawn: Map<string, Schematic>, exampleDrawn: Map<string, Schematic>;
 
 beforeAll(async () => {
-  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', {});
-  example = analyzeText(exampleText, EXAMPLE, {});
+  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', { tables: exampleTables() });
+  example = analyzeText(exampleText, EXAMPLE, { tables: exampleTables() });
   drawn = await schematicsOf(engine, kinds);
   exampleDrawn = await schematicsOf(engine, example);
 });
@@ -32,7 +34,7 @@ describe('schematics of every kind', () => {
   it('the spec of every kind in both polarities solves (its ratio findings do not matter here)', () => {
     expect(kinds.findings.filter((f) => f.severity === 'error' && !f.code.startsWith('ratio') && !f.message.startsWith('starved: ') && !f.message.startsWith('tight: '))).toEqual([]);
     expect(kinds.mirrors.every((m) => m.converged)).toBe(true);
-    expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => ['nmos', 'pmos'].map((t) => `${k.replace('-', '_')}_${t}`))));
+    expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => typesOf(k).map((t) => `${k.replace('-', '_')}_${t}`))));
   });
 
   it('draws each device with its symbol, name, size and region, each node with its voltage', () => {
@@ -41,10 +43,16 @@ describe('schematics of every kind', () => {
       expect(s, m.name).toBeDefined();
       const words = text(s!);
       for (const d of m.devices) {
+        if (d.role === 'startup') continue;   // the schematic does not draw a reference's start-up device yet
         const part = s!.parts.find((p) => p.device === d.name);
-        expect(part?.symbol, `${m.name}.${d.name}`).toBe(m.type);
+        expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);   // a reference's closing mirror is of the other polarity
         const label = s!.labels.find((l) => l.device === d.name)!;
         expect(label.lines[0]).toBe(d.name);
+        if (isBipolarReport(d)) {
+          expect(label.lines[1]).toBe(`${d.area}·${d.m}`);
+          expect(label.lines[2]).toBe(`IC ${formatSI(d.ic, 'A')}`);
+          continue;
+        }
         expect(label.lines[1]).toBe(`${formatSI(d.w!, 'm')}/${formatSI(d.l!, 'm')}·${d.m}`);
         expect(label.lines[2]).toBe(`ID ${formatSI(d.id!, 'A')}`);
       }
@@ -58,13 +66,13 @@ describe('schematics of every kind', () => {
     }
   });
 
-  it('NMOS hangs from the input current down to vss, PMOS is its mirror image', () => {
+  it('NMOS (NPN) hangs from the input current down to vss, PMOS (PNP) is its mirror image', () => {
     for (const m of kinds.mirrors.filter((x) => x.name.startsWith('simple_'))) {
       const s = drawn.get(m.name)!;
       const ref = s.parts.find((p) => p.device === 'ref')!.box;
       const input = s.parts.find((p) => p.id === 'input')!.box;
       // The input source sits above the NMOS reference and below the PMOS one.
-      if (m.type === 'nmos') expect(input.y + input.h).toBeLessThan(ref.y);
+      if (sinksCurrent(m.type)) expect(input.y + input.h).toBeLessThan(ref.y);
       else expect(input.y).toBeGreaterThan(ref.y + ref.h);
     }
   });
@@ -111,10 +119,10 @@ describe('schematics of every kind', () => {
   it('draws bipolar devices with the NPN and PNP symbols, labelled with area·m (a hand-made report until bipolar kinds land)', async () => {
     for (const [name, type] of [['simple_nmos', 'npn'], ['simple_pmos', 'pnp']] as const) {
       const m = kinds.mirrors.find((x) => x.name === name)!;
-      // The same currents and voltages, its devices reported as bipolar transistors of 10 µm²
-      // emitter area in the forward-active region (the bipolar report's own field names).
+      // The same currents and voltages, its devices reported as bipolar transistors of 10 unit
+      // emitter areas in the forward-active region (the bipolar report's own field names).
       const bipolar = { ...m, type, devices: m.devices.map((d) => ({
-        name: d.name, role: d.role, type, area: 10e-12, m: d.m, ic: d.id!, ib: d.id! / 100, vbe: d.vgs!, vce: d.vds!, vcesat: 0.2,
+        name: d.name, role: d.role, type, area: 10, m: d.m, ic: d.id!, ib: d.id! / 100, vbe: d.vgs!, vce: d.vds!, vcesat: 0.2,
         margin: d.vds! - 0.2, region: 'forward-active', gm: d.gm, rpi: 100 / d.gm, ro: d.ro, gds: d.gds, beta: 100,
       })) } as unknown as MirrorReport;
       const s = (await schematicOf(engine, kinds, bipolar))!;
@@ -123,8 +131,8 @@ describe('schematics of every kind', () => {
       const ref = m.devices.find((d) => d.name === 'ref')!;
       expect(s.labels.find((l) => l.device === 'ref')?.lines.slice(2)).toEqual([`IC ${formatSI(ref.id!, 'A')}`, 'forward-active']);
       expect(s.parts.find((p) => p.device === 'ref')?.tip).toContain(`VCE ${formatSI(ref.vds!, 'V')}`);
-      // 10e-12 m² is 10 µm² by definition.
-      expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10 µm²·1');
+      // The emitter area is a multiple of the unit device (design §10): area·m.
+      expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10·1');
     }
   });
 

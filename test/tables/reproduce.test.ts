@@ -9,13 +9,14 @@ import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import type { DeviceParams, MirrorReport, ModelKind, ResolvedSpec } from '../../src/core/types';
 import { KINDS } from '../../src/core/kinds/index';
+import { mainCurrent } from '../../src/core/device-types';
 import { exampleTables } from '../example-tables';
 import { modelChannel, span, tableOf, type Grid } from './make-table';
 
 const EXAMPLE = readFileSync(new URL('../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
 
-/** Cover the example's supplies (1.8 V) and its lengths (1, 4, 12, 16, 20 µm) as grid points. */
-const GRID: Grid = { l: [1e-6, 4e-6, 12e-6, 16e-6, 20e-6], vgs: span(0, 1.8, 181), vds: span(0, 1.8, 73), vsb: span(0, 1, 21) };
+/** Cover the example's supplies (1.8 V) and its lengths (1, 2, 4, 12, 16, 20 µm) as grid points. */
+const GRID: Grid = { l: [1e-6, 2e-6, 4e-6, 12e-6, 16e-6, 20e-6], vgs: span(0, 1.8, 181), vds: span(0, 1.8, 73), vsb: span(0, 1, 21) };
 
 /** The channel of `params` under `model`, floored where a strong-inversion model has no current
  *  (ln id is interpolated; a table needs a positive current wherever vds > 0). */
@@ -37,10 +38,10 @@ const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 describe.each(['square-law', 'ekv'] as const)('a table of the %s equations reproduces them (issue 17 check values)', (model) => {
   const { analytic, table } = solveBoth(model);
 
-  it('covers every kind of the example, NMOS and PMOS', () => {
+  it('covers every kind of the example, NMOS and PMOS (and its NPN mirrors, which keep their own model)', () => {
     const kinds = new Set(analytic.map((r) => r.kind));
     for (const k of [...Object.keys(KINDS), 'netlist']) expect(kinds.has(k as never), k).toBe(true);
-    expect(new Set(analytic.map((r) => r.type))).toEqual(new Set(['nmos', 'pmos']));
+    expect(new Set(analytic.map((r) => r.type))).toEqual(new Set(['nmos', 'pmos', 'npn']));
   });
 
   it('operating points to 0.1 % in current, gm to 1 %, device by device', () => {
@@ -52,7 +53,7 @@ describe.each(['square-law', 'ekv'] as const)('a table of the %s equations repro
       a.devices.forEach((d, j) => {
         const e = t.devices[j]!;
         expect(e.name).toBe(d.name);
-        expect(rel(e.id!, d.id!), `${a.name} ${d.name} id`).toBeLessThan(1e-3);
+        expect(rel(mainCurrent(e), mainCurrent(d)), `${a.name} ${d.name} id`).toBeLessThan(1e-3);
         expect(rel(e.gm, d.gm), `${a.name} ${d.name} gm`).toBeLessThan(1e-2);
       });
     });

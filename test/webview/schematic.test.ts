@@ -15,6 +15,7 @@ import type { FileReport } from '../../src/core/types';
 import { OUT, ROOT, applyTheme, ensureBundle, instrument, launch, until, writePanelPage, type ThemeKind } from './browser-harness';
 import { deviceRow, findingsFor } from '../../webview/view-model';
 import { EXAMPLE, everyKindText, exampleText } from '../schematic/fixtures';
+import { exampleTables } from '../example-tables';
 
 let browser: Browser;
 let kinds: FileReport, example: FileReport;
@@ -23,8 +24,8 @@ const files: Record<string, string> = {};
 beforeAll(async () => {
   await ensureBundle();
   browser = await launch();
-  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', {});
-  example = analyzeText(exampleText, EXAMPLE, { curve: true });
+  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', { tables: exampleTables() });
+  example = analyzeText(exampleText, EXAMPLE, { curve: true, tables: exampleTables() });
   mkdirSync(OUT, { recursive: true });
   const script = readFileSync(join(ROOT, 'dist', 'webview.js'), 'utf8');
   for (const [name, report] of [['kinds', kinds], ['example', example]] as const) {

@@ -77,8 +77,8 @@ function figuresOf(d: DeviceReport, si: SI): Figures {
   const x = d as unknown as Partial<Record<'id' | 'ic' | 'vgs' | 'vbe' | 'vds' | 'vce' | 'vdsat' | 'vcesat' | 'w' | 'l' | 'area', number>>;
   const num = (v: number | undefined): number => v ?? NaN;
   if (isBipolar(symbolOf(d))) {
-    // An emitter area (m²) reads in µm², as layouts give it: an SI prefix would scale m, not m².
-    const size = x.area !== undefined ? `${formatPlain(x.area * 1e12)} µm²·${d.m}` : `·${d.m}`;
+    // The emitter area is a multiple of the process's unit device (design §10), as area·m.
+    const size = x.area !== undefined ? `${formatPlain(x.area)}·${d.m}` : `·${d.m}`;
     return { i: num(x.ic), vc: num(x.vbe), vo: num(x.vce), vsat: num(x.vcesat), size, good: 'forward-active', goodWord: 'forward-active', names: ['IC', 'VBE', 'VCE', 'VCEsat'] };
   }
   return { i: num(x.id), vc: num(x.vgs), vo: num(x.vds), vsat: num(x.vdsat), size: `${si(num(x.w), 'm')}/${si(num(x.l), 'm')}·${d.m}`,
