@@ -9,7 +9,7 @@
  * anything; `solveNetworks` solves the groups and records them in `spec.networks`.
  */
 import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
-import { solveMirror } from '../analysis/solve';
+import { outputCurrent, solveMirror } from '../analysis/solve';
 import { currentNodes, deviceMismatchDerivatives, deviceSigmas } from '../circuit/elements/device';
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
@@ -93,24 +93,27 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): R
   return withMirrors(spec, changed, networks);
 }
 
-/** For Monte Carlo on a leaf output of a network (design §9.1: one draw per device per sample,
- *  so a leaf's spread includes every device above it): the whole group's circuit measured at that
- *  output, and the devices to draw (every device of every mirror on the path from the root).
- *  Undefined when the output is in no network or feeds another mirror. */
-export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): { mc: JointCircuit['mc']; draw: Set<number> } | undefined {
+/** The whole group's circuit measured at one of its outputs, for Monte Carlo (design §9.1: one
+ *  draw per device per sample over the whole group, so the spread of a leaf and of an
+ *  intermediate output includes every device above it, and an intermediate output's also the
+ *  devices below that set its node's voltage). `draw` is every device of the group; `iout` the
+ *  measured output's current at ws.v; `linked` when that output feeds another mirror (its node
+ *  is solved, not held, so it has no compliance to test). Undefined when the output is in no
+ *  network. */
+export interface JointMeasure { mc: JointCircuit['mc']; draw: Set<number>; iout: () => number; linked: boolean }
+
+export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): JointMeasure | undefined {
   if (!spec.networks) return undefined;
   const g = networkGroups(spec).find((x) => x.members.some((m) => indexOf(m) === mirrorIndex));
   const m = g?.members.find((x) => indexOf(x) === mirrorIndex);
-  if (!g || !m || m.outputs[outputIndex]?.feeds !== undefined) return undefined;
+  if (!g || !m || !m.outputs[outputIndex]) return undefined;
   const j = buildJoint(spec, g, undefined, { mirror: mirrorIndex, output: outputIndex });
-  const path = new Set<number>();
-  for (let at: number | undefined = mirrorIndex; at !== undefined; at = g.parent.get(at)?.mirror) path.add(at);
   const draw = new Set<number>();
-  for (const mem of j.members) {
-    if (!path.has(mem.index)) continue;
-    for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) draw.add(d);
-  }
-  return { mc: j.mc, draw };
+  for (let d = 0; d < j.mc.circuit.devices.length; d++) draw.add(d);
+  const k = key(mirrorIndex, outputIndex);
+  const linked = j.linkNode.has(k);
+  const iout = linked ? () => outputCurrentOf(j, k) : () => outputCurrent(j.mc);
+  return { mc: j.mc, draw, iout, linked };
 }
 
 const der = new Float64Array(2);
