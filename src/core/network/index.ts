@@ -14,6 +14,7 @@ import { currentNodes, deviceMismatchDerivatives, deviceSigmas } from '../circui
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
+import { rootStartCurrent } from './root-current';
 import { buildJoint, key, outputCurrentOf, type JointCircuit } from './joint';
 import type { PerturbationLike } from '../circuit/templates';
 
@@ -39,10 +40,7 @@ export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
   const changed = new Map<number, TemplateMirror>();
   const at = templateAt(spec);
   for (const g of groups) {
-    const rin = g.root.input;
-    const { vdd, vss } = spec.supplies;
-    // A reference root sets its own current: its children start from a typical 10 µA.
-    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.kind === 'self' ? 10e-6 : rin.i;
+    const i0 = rootStartCurrent(spec, g.root);
     for (const [i, cur] of intendedInputs(g, i0, at)) {
       const m = at(i);
       if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });
