@@ -139,7 +139,7 @@ function linkSaturation(parsed: ParsedSpec, spec: ResolvedSpec, fed: TemplateMir
   // The upstream kind changed where that lowers its compliance limit: a standard cascode's
   // output needs VT + 2·VDSsat, a wide-swing cascode's 2·VDSsat with the same output resistance.
   const kindPath = ['mirrors', up.mirrorIndex, 'kind'];
-  const kindRange = upMirror?.kind === 'cascode' ? parsed.source.value(kindPath) : undefined;
+  const kindRange = upMirror?.kind === 'cascode' && isMos(upMirror) ? parsed.source.value(kindPath) : undefined;
   const kindEdit = kindRange ? replaceValueEdit(parsed, kindPath, quotedLike(parsed.source.text(kindRange), 'wide-swing')) : undefined;
   const edited = kindEdit ? applySafe(parsed.text, [kindEdit]) : undefined;
   if (kindEdit && edited !== undefined) {
@@ -154,11 +154,15 @@ function linkSaturation(parsed: ParsedSpec, spec: ResolvedSpec, fed: TemplateMir
   return f;
 }
 
+/** MOS only: the wide-swing kind has no bipolar form (kinds/wide-swing.ts). */
+const isMos = (m: ResolvedMirror): boolean => m.type === 'nmos' || m.type === 'pmos';
+
 /** The cascode remedy in words: a standard cascode upstream can be made wide-swing; a simple or
  *  wide-swing output is not helped by cascoding, which adds at least a VDSsat at the link node. */
 function cascodeAdvice(up: ResolvedMirror | undefined): string {
-  if (up?.kind === 'cascode') return `, or make ${up.name} a wide-swing cascode (2·VDSsat instead of VT + 2·VDSsat)`;
-  if (up?.kind === 'simple' || up?.kind === 'wide-swing') return ` (a cascode on ${up.name} would not help: it needs at least one VDSsat more at the link node)`;
+  if (!up || !isMos(up)) return '';
+  if (up.kind === 'cascode') return `, or make ${up.name} a wide-swing cascode (2·VDSsat instead of VT + 2·VDSsat)`;
+  if (up.kind === 'simple' || up.kind === 'wide-swing') return ` (a cascode on ${up.name} would not help: it needs at least one VDSsat more at the link node)`;
   return '';
 }
 
