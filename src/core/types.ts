@@ -201,6 +201,8 @@ export interface NetlistDevice {
   type: Polarity;
   d: string; g: string; s: string; b: string;
   w: number; l: number; m: number;
+  /** The process device flavour it is (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
 }
 export interface NetlistCurrentSource { name: string; from: string; to: string; i: number }
 export interface NetlistVoltageSource { name: string; node: string; v: number }

@@ -4,6 +4,7 @@
  * its own rail starts at the gate drive for the input current; every other node at mid-supply.
  */
 import { gateDriveFor } from '../models/evaluate';
+import { paramsOf } from '../flavours';
 import { deviceProblem, prepareDevice } from '../models/device';
 import type { NetlistMirror, ResolvedSpec } from '../types';
 import { CircuitBuilder, type MosDescription } from './circuit';
@@ -36,7 +37,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
 
   const startup = new Set((m.startup ?? []).map((d) => d.name));
   for (const d of [...m.devices, ...(m.startup ?? [])]) {
-    const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    const params = paramsOf(spec.process, d.type, d.device);
     const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${d.name}: ${problem}`);

@@ -9,6 +9,7 @@ import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
 import { checkLinks, fedOutputs } from './links';
+import { readFlavour } from './flavour';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
 import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
@@ -24,26 +25,6 @@ export interface ElaborateReuse {
   items: readonly unknown[];
   mirrors: readonly ResolvedMirror[];
   except: number;
-}
-
-/** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
- *  when not given, null when it names no such flavour (a finding says so). */
-function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: Polarity): string | null | undefined {
-  if (raw === undefined) return undefined;
-  const name = readString(sink, raw, path);
-  if (name === undefined) return null;
-  if (!proc?.flavourNames.has(name)) {
-    const known = [...(proc?.flavourNames ?? [])];
-    sink.error('unknown-name', `no device flavour \`${name}\` in \`process.devices\`${known.length ? ` (it has ${known.map((k) => `\`${k}\``).join(', ')})` : ''}`, path);
-    return null;
-  }
-  const f = proc.devices?.[name];
-  if (!f) return null;   // the flavour has its own error
-  if (f.type !== type) {
-    sink.error('bad-value', `device flavour \`${name}\` is ${f.type}, but this mirror is ${type}`, path);
-    return null;
-  }
-  return name;
 }
 
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
@@ -99,15 +80,15 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     }
     if (!name || !kind) return;
     if (kind === 'netlist') {
-      const nm = readNetlistMirror(scope, m, i, name, type, supplies);
+      const nm = readNetlistMirror(scope, m, i, name, type, supplies, proc);
       if (nm) {
-        for (const d of nm.devices) if (!used.has(d.type)) used.set(d.type, name);
+        for (const d of nm.devices) if (d.device === undefined && !used.has(d.type)) used.set(d.type, name);
         mirrors.push(nm);
       }
       return;
     }
     if (!type) return;
-    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
+    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type, 'mirror');
     if (flavour === null) return;
     if (!flavour && !used.has(type)) used.set(type, name);
     const tm = readTemplateMirror(scope, m, i, { name, kind, type }, flavour ? proc?.devices?.[flavour]?.params : proc?.[type], supplies, (j) => fed.has(`${i}:${j}`));
