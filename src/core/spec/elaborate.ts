@@ -3,7 +3,7 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
+import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
@@ -12,7 +12,7 @@ import { checkLinks, fedOutputs } from './links';
 import { readFlavour } from './flavour';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
-import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
+import { readLimits, readProcess, readSupplies } from './process';
 import { missing, readEnum, readMap, readString } from './read';
 import { typeName, type ValueScope } from './values';
 import type { TableTexts } from './tables';
