@@ -316,6 +316,19 @@ export interface DeviceReport {
   /** The characterisation table the device's figures come from (its `table:` value), when
    *  it is a table device. */
   table?: string;
+  /** A table device's gm/ID view (with the report's curves only): its table's gm/ID and ID/W
+   *  versus VGS at its length, VDS and VSB. */
+  tableCurve?: TableCurve;
+}
+
+/** The table's gm/ID and ID/W versus VGS at one device's length, VDS and VSB (device frame:
+ *  magnitudes for PMOS), at the table's own vgs points. */
+export interface TableCurve {
+  table: string;
+  /** m, V, V: where the curve is read. */
+  l: number; vds: number; vsb: number;
+  /** V; 1/V; A/m (= µA/µm). */
+  vgs: number[]; gmId: number[]; idW: number[];
 }
 
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
