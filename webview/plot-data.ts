@@ -4,6 +4,7 @@
  * (unconverged solves, Rout ≤ 0 or infinite on a log axis), lists the Vouts with no operating
  * point so the plot marks them instead of stopping silently, and chooses axis prefixes.
  */
+import { isBipolarReport, sinksCurrent } from '../src/core/device-types';
 import type { DeviceReport, MirrorReport } from '../src/core/types';
 import { axisScale } from './format';
 
@@ -47,7 +48,7 @@ export function curvePlotData(m: MirrorReport): CurvePlotData | undefined {
     },
     failed: points.filter((p) => !p.converged).map((p) => p.vout),
     compliance: Number.isFinite(m.compliance) ? m.compliance : undefined,
-    outside: m.type === 'nmos' ? 'below' : 'above',
+    outside: sinksCurrent(m.type) ? 'below' : 'above',
   };
 }
 
@@ -102,8 +103,8 @@ export interface GmIdPlotData {
 /** A table device's gm/ID view (DeviceReport.tableCurve, computed by the core), or undefined
  *  for an analytic device or a report without curves. */
 export function gmIdPlotData(d: DeviceReport | undefined): GmIdPlotData | undefined {
-  const c = d?.tableCurve;
-  if (!d || !c || c.vgs.length < 2) return undefined;
+  if (!d || isBipolarReport(d) || !d.tableCurve || d.tableCurve.vgs.length < 2) return undefined;
+  const c = d.tableCurve;
   return {
     x: c.vgs, gmId: c.gmId, idW: c.idW,
     op: { x: d.vgs, gmId: d.gmId, idW: d.m * d.w > 0 ? d.id / (d.m * d.w) : NaN },

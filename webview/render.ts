@@ -250,7 +250,7 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
   body.push(section(`plots-${id}`, 'Plots', plotList.length > 0
     ? h('div', { class: 'plots' }, ...plotList.map((p) => p.element))
     : h('p', { class: 'note' }, 'No Iout/Rout sweep in this report.')));
-  const gmIdList = m.devices.filter((d) => d.tableCurve).map((d) => plots.gmId(m, d.name)).filter((p): p is PlotHandle => p !== undefined);
+  const gmIdList = m.devices.filter((d) => 'tableCurve' in d).map((d) => plots.gmId(m, d.name)).filter((p): p is PlotHandle => p !== undefined);
   if (gmIdList.length > 0) {
     body.push(section(`gmid-${id}`, 'gm/ID (characterisation table)', h('div', { class: 'plots' }, ...gmIdList.map((p) => p.element)),
       h('p', { class: 'note' }, 'Each table device\'s table read at its own L, VDS and VSB; the marker is its operating point.')));

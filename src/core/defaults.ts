@@ -17,6 +17,10 @@ export const DEFAULTS = {
   vss: 0,
   /** Device parameters not given in the spec. */
   device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5 },
+  /** Bipolar parameters not given in the spec (design §10). */
+  bipolar: { br: 1, eg: 1.11, xti: 3, xtb: 0, vcesat: 0.2 },
+  /** Emitter-area multiple of a bipolar device. */
+  area: 1,
   /** m parallel count of a device. */
   m: 1,
   /** relative: a start-up element counts as off at the operating point below this fraction of

@@ -5,6 +5,7 @@
  * Every place that needs a device's parameters asks here, so a flavour is honoured everywhere.
  */
 import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror } from './types';
+import { isBipolarDevice } from './device-types';
 
 export function paramsOf(process: ProcessSpec, type: Polarity, device?: string): DeviceParams {
   const f = device === undefined ? undefined : process.devices?.[device];
@@ -21,5 +22,5 @@ export function mirrorParams(process: ProcessSpec, m: ResolvedMirror, type: Pola
 export function deviceParams(process: ProcessSpec, m: ResolvedMirror, name: string, type: Polarity): DeviceParams {
   if (m.kind !== 'netlist') return paramsOf(process, type, m.device);
   const d = m.devices.find((x) => x.name === name) ?? m.startup?.find((x) => x.name === name);
-  return paramsOf(process, type, d?.device);
+  return paramsOf(process, type, d && !isBipolarDevice(d) ? d.device : undefined);
 }

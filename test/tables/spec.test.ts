@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import { readTable } from '../../src/core/models/table/read';
+import type { MosDeviceReport } from '../../src/core/types';
 import { modelChannel, span, tableCsv } from './make-table';
 import { marked } from '../spec/helpers';
 
@@ -85,7 +86,7 @@ describe('a clean table spec', () => {
     const at = (tC: number) => tableCsv(modelChannel(N, 'ekv'), { ...G, temperature: [tC] });
     const tt = { 'n27.csv': at(27), 'n127.csv': at(127), 'p.csv': PCSV };
     const vgsAt = (temp: string) => analyzeText(spec('{ table: [n27.csv, n127.csv] }').replace('model: ekv', `model: ekv\n  temperature: ${temp}`), 'a.bias.yaml', { tables: tt })
-      .mirrors[0]!.devices.find((d) => d.name === 'ref')!.vgs;
+      .mirrors[0]!.devices.find((d) => d.name === 'ref')!.vgs!;
     const v27 = vgsAt('27 C'), v127 = vgsAt('127 C'), v77 = vgsAt('77 C');
     expect(v27).toBeGreaterThan(v127 + 0.05);      // tcv = −1 mV/K moves VGS by ≈ −0.1 V
     expect(v77).toBeLessThan(v27);
@@ -95,7 +96,7 @@ describe('a clean table spec', () => {
     const text = spec('{ table: n.csv }', '', '    size: auto\n    design: { gmid: 14 }\n    output: { v: 1.2 }\n');
     const r = analyzeText(text, 'a.bias.yaml', { tables });
     const ref = r.mirrors[0]!.devices.find((d) => d.name === 'ref')!;
-    expect(Math.abs(ref.gmId / 14 - 1)).toBeLessThan(0.03);
+    expect(Math.abs(ref.gmId! / 14 - 1)).toBeLessThan(0.03);
   });
 });
 
@@ -125,7 +126,7 @@ describe('a netlist device names its own flavour (`device:`)', () => {
   it('m2 with device: lvt runs on the lvt table, m1 on process.nmos; the report names the table', () => {
     const r = analyzeText(netlist('device: lvt, '), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
     expect(r.findings.filter((f) => f.severity === 'error')).toEqual([]);
-    const devs = r.mirrors[0]!.devices;
+    const devs = r.mirrors[0]!.devices as MosDeviceReport[];
     const m1 = devs.find((d) => d.name === 'm1')!, m2 = devs.find((d) => d.name === 'm2')!;
     // square law, VT 0.45 V: VGS = VT + sqrt(2·ID/β) = 0.45 + sqrt(2·10µ/(280µ·4)) = 0.584 V (design §3)
     expect(m1.vgs).toBeCloseTo(0.5836, 3);
@@ -136,7 +137,7 @@ describe('a netlist device names its own flavour (`device:`)', () => {
   });
   it('a flavour of parameters: m2 on `thick` (VT 0.7 V) needs 0.25 V more gate drive', () => {
     const r = analyzeText(netlist('device: thick, '), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
-    const m2 = r.mirrors[0]!.devices.find((d) => d.name === 'm2')!;
+    const m2 = (r.mirrors[0]!.devices as MosDeviceReport[]).find((d) => d.name === 'm2')!;
     // square law: VGS = 0.7 + sqrt(2·10µ/(200µ·4)) = 0.858 V (design §3)
     expect(m2.vgs).toBeCloseTo(0.8581, 3);
   });

@@ -5,7 +5,8 @@ import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
-import type { FileReport, MirrorReport } from '../../src/core/types';
+import type { FileReport, MirrorReport, MosDeviceReport } from '../../src/core/types';
+import { isBipolarReport, isBipolarType } from '../../src/core/device-types';
 import type { HostMessage } from '../../src/protocol/messages';
 import { STATIC_ID, renderHtmlReport } from '../../src/core/report/html';
 import {
@@ -324,7 +325,8 @@ describe('the bias panel page', () => {
 describe('the gm/ID view of a table device', () => {
   it('appears for the example\'s table mirror, one per device, drawn and captioned with its operating point; not for an analytic mirror', async () => {
     const { main } = core();
-    const table = main.mirrors.find((m) => m.devices.some((d) => d.tableCurve))!;
+    const table = main.mirrors.find((m) => m.devices.some((d) => 'tableCurve' in d))!;
+    const tableDevs = table.devices as MosDeviceReport[];
     const analytic = main.mirrors.find((m) => m.devices.every((d) => d.table === undefined))!;
     expect(table.name).toBe('res_bias');
     const { page, probe } = await openPanel();
@@ -340,7 +342,7 @@ describe('the gm/ID view of a table device', () => {
       return r.length === table.devices.length && r.every((c) => c.inked > 1000 && c.colour > 50) ? r : undefined;
     });
     expect(ink.length).toBe(table.devices.length);
-    for (const d of table.devices) {
+    for (const d of tableDevs) {
       const caption = await page.locator(`.plot[id="plot-gmid-${table.name}-${d.name}"] figcaption`).innerText();
       expect(caption).toContain(`gm/ID of ${d.name}`);
       expect(caption).toContain(d.tableCurve!.table);
@@ -369,7 +371,7 @@ describe('the gm/ID view of a table device', () => {
     await page.goto(pathToFileURL(file).toString());
     for (const m of main.mirrors) {
       const views = page.locator(`#${STATIC_ID} section[data-mirror="${m.name}"] .gmid-static`);
-      const tableDevices = m.devices.filter((d) => d.tableCurve).length;
+      const tableDevices = m.devices.filter((d) => 'tableCurve' in d).length;
       expect(await views.count(), m.name).toBe(tableDevices);
       if (tableDevices > 0) {
         expect(await views.locator('svg.plot-svg polyline').count()).toBe(2 * tableDevices);
@@ -550,12 +552,24 @@ async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'
   for (const [i, d] of listed.entries()) {
     const cells = shown.rows[i];
     expect(cells[0]).toBe(d.name);
-    close(cells[1], 'm', d.w, 3);
-    close(cells[2], 'm', d.l, 3);
-    close(cells[4], 'A', d.id, 4);
-    close(cells[5], 'V', d.vgs, 4);
-    close(cells[6], 'V', d.vds, 4);
-    close(cells[7], 'V', d.vdsat, 4);
+    if (isBipolarReport(d)) {
+      // A bipolar mirror's own columns (view-model.ts); in a MOSFET netlist, the MOSFET columns'
+      // bipolar counterparts.
+      const own = isBipolarType(m.type);
+      close(cells[own ? 3 : 4], 'A', d.ic, 4);
+      close(cells[5], 'V', d.vbe, 4);
+      close(cells[6], 'V', d.vce, 4);
+      close(cells[own ? 7 : 8], 'V', d.margin, 3);
+      expect(cells[own ? 8 : 9]).toBe(d.region);
+      close(cells[12], 'Ω', d.ro, 3);
+      continue;
+    }
+    close(cells[1], 'm', d.w!, 3);
+    close(cells[2], 'm', d.l!, 3);
+    close(cells[4], 'A', d.id!, 4);
+    close(cells[5], 'V', d.vgs!, 4);
+    close(cells[6], 'V', d.vds!, 4);
+    close(cells[7], 'V', d.vdsat!, 4);
     close(cells[8], 'V', d.margin, 3);
     expect(cells[9]).toBe(d.region);
     close(cells[12], 'Ω', d.ro, 3);

@@ -10,7 +10,9 @@ import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
 import { referenceReport } from './reference';
-import { splitError } from './errorSplit';
+import { splitBipolarError, splitError } from './errorSplit';
+import { sizeWeight } from '../circuit/templates';
+import { isBipolarReport } from '../device-types';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
@@ -62,8 +64,7 @@ export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
   if (!mc.pair) return undefined;
-  const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
-  const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
+  const r = sizeWeight(mc.circuit.devices[mc.pair.out]!.size) / sizeWeight(mc.circuit.devices[mc.pair.ref]!.size);
   return Number.isFinite(r) ? r : undefined;
 }
 
@@ -112,9 +113,9 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
-    if (mc.pair) {
-      base.errorSplit = splitError(mc.circuit.devices[mc.pair.ref]!, mc.circuit.devices[mc.pair.out]!, ideal, mc.ws.v);
-    }
+    const a = mc.pair && mc.circuit.devices[mc.pair.ref], b = mc.pair && mc.circuit.devices[mc.pair.out];
+    if (a && b && a.kind === 'mos' && b.kind === 'mos') base.errorSplit = splitError(a, b, ideal, mc.ws.v);
+    else if (a && b && a.kind === 'bjt' && b.kind === 'bjt') base.errorSplit = splitBipolarError(a, b, ideal, ratio, mc.ws.v);
   }
   const lam = outputAdjoint(mc.circuit, mc.ws);
   if (lam) {
@@ -126,9 +127,10 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const byRole: Record<string, SmallSignal | undefined> = {};
   for (const role in mc.byRole) {
     const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.devices[k]!;
-    byRole[role] = { gm: d.gm, gds: d.gds, gmb: m.b === m.s ? 0 : d.gmb };
+    byRole[role] = isBipolarReport(d) ? { gm: d.gm, gds: d.gds, gmb: 0, rpi: d.rpi, beta: d.beta }
+      : { gm: d.gm, gds: d.gds, gmb: m.kind === 'mos' && m.b === m.s ? 0 : d.gmb };
   }
-  const approx = routApprox(t.mirror.kind, byRole);
+  const approx = routApprox(t.mirror.kind, t.mirror.type, byRole, t.mirror.kind !== 'netlist' && t.mirror.degeneration !== undefined ? { degeneration: t.mirror.degeneration } : {});
   if (approx !== undefined) base.routApprox = approx;
 
   const xNom = mc.ws.v.slice();
@@ -144,7 +146,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     // operating point lies on the curve).
     mc.circuit.devices.forEach((x, k) => {
       const r = devices[k];
-      if (!r || !x.dev.table || !base.devices.includes(r)) return;
+      if (x.kind !== 'mos' || !x.dev.table || !r || isBipolarReport(r) || !base.devices.includes(r)) return;
       const curve = tableCurve(x.dev, Math.abs(r.vds), Math.max(0, -r.vbs), r.m * r.w);
       if (curve) r.tableCurve = curve;
     });

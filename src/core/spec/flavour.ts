@@ -3,7 +3,7 @@
  * mirror (every device of it) or on one netlist device. One reader for both, so both say the
  * same thing about a name that is not there.
  */
-import type { Polarity, SpecPath } from '../types';
+import type { DeviceType, SpecPath } from '../types';
 import type { FindingSink } from './findings';
 import type { ProcessRead } from './process';
 import { readString } from './read';
@@ -13,7 +13,7 @@ import { askIf, suggestion } from './suggest';
  *  (a finding says so, with a did-you-mean the editor offers as a quick fix). With `type`
  *  undefined, any flavour is taken (a netlist device without `type` takes its flavour's). */
 export function readFlavour(
-  sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: Polarity | undefined,
+  sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: DeviceType | undefined,
   whose: 'mirror' | 'device',
 ): string | null | undefined {
   if (raw === undefined) return undefined;
