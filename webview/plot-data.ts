@@ -4,8 +4,8 @@
  * (unconverged solves, Rout ≤ 0 or infinite on a log axis), lists the Vouts with no operating
  * point so the plot marks them instead of stopping silently, and chooses axis prefixes.
  */
-import { sinksCurrent } from '../src/core/device-types';
-import type { MirrorReport } from '../src/core/types';
+import { isBipolarReport, sinksCurrent } from '../src/core/device-types';
+import type { DeviceReport, MirrorReport } from '../src/core/types';
 import { axisScale } from './format';
 
 export interface Scaled { factor: number; unit: string }
@@ -87,4 +87,27 @@ export function histogramPlotData(m: MirrorReport): HistogramPlotData | undefine
   }
   if (m.require?.ratio !== undefined && m.iin !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });
   return { x, counts: [...h.counts], width, scale, marks };
+}
+
+export interface GmIdPlotData {
+  /** VGS (V) at the table's vgs points, ascending. */
+  x: number[];
+  /** gm/ID (1/V) and ID/W (A/m, log axis) of the table at the device's L, VDS and VSB. */
+  gmId: number[];
+  idW: number[];
+  /** The device's operating point on both curves. */
+  op: { x: number; gmId: number; idW: number };
+  table: string; l: number; vds: number; vsb: number;
+}
+
+/** A table device's gm/ID view (DeviceReport.tableCurve, computed by the core), or undefined
+ *  for an analytic device or a report without curves. */
+export function gmIdPlotData(d: DeviceReport | undefined): GmIdPlotData | undefined {
+  if (!d || isBipolarReport(d) || !d.tableCurve || d.tableCurve.vgs.length < 2) return undefined;
+  const c = d.tableCurve;
+  return {
+    x: c.vgs, gmId: c.gmId, idW: c.idW,
+    op: { x: d.vgs, gmId: d.gmId, idW: d.m * d.w > 0 ? d.id / (d.m * d.w) : NaN },
+    table: c.table, l: c.l, vds: c.vds, vsb: c.vsb,
+  };
 }

@@ -7,7 +7,7 @@ import uPlot from 'uplot';
 import type { MirrorReport } from '../src/core/types';
 import { formatNumber, formatSI } from './format';
 import { h } from './components';
-import { curvePlotData, histogramPlotData, type CurvePlotData, type HistogramPlotData, type Mark } from './plot-data';
+import { curvePlotData, gmIdPlotData, histogramPlotData, type CurvePlotData, type GmIdPlotData, type HistogramPlotData, type Mark } from './plot-data';
 
 const HEIGHT = 220;
 
@@ -319,11 +319,55 @@ export function histogramPlot(m: MirrorReport): PlotHandle | undefined {
   });
 }
 
+/** A table device's gm/ID view: the table's gm/ID (left axis) and ID/W (right, log) versus VGS
+ *  at the device's L, VDS and VSB, the operating point marked on both. */
+export function gmIdPlot(m: MirrorReport, device: string): PlotHandle | undefined {
+  return makePlot<GmIdPlotData>(m, {
+    id: gmIdPlotId(m, device),
+    caption: `gm/ID of ${device}`,
+    data: (mr) => gmIdPlotData(mr.devices.find((d) => d.name === device)),
+    shape: (d) => d.table,
+    legend: (_mr, d) => [
+      legendItem('legend-line', 'gm/ID'),
+      legendItem('legend-line legend-accent', 'ID/W (log)'),
+      legendItem('legend-marker', `operating point ${formatSI(d.op.x, 'V')}, ${formatNumber(d.op.gmId, 3)} /V, ${formatSI(d.op.idW, 'A/m')}`),
+      h('span', { class: 'legend-item gmid-where' }, `${d.table}, L ${formatSI(d.l, 'm')}, VDS ${formatSI(d.vds, 'V')}, VSB ${formatSI(d.vsb, 'V')}`),
+    ],
+    series: (d) => [d.x, d.gmId, d.idW],
+    options: (p, d, width) => ({
+      width, height: HEIGHT,
+      legend: { show: false },
+      cursor: { drag: { x: false, y: false } },
+      scales: { x: { time: false }, gmid: { range: (_u, _min, max) => [0, max * 1.05] }, idw: { distr: 3, log: 10 } },
+      axes: [
+        axis(p, 'VGS (V)', (v) => formatNumber(v)),
+        { ...axis(p, 'gm/ID (1/V)', (v) => formatNumber(v)), scale: 'gmid' },
+        { ...axis(p, 'ID/W (A/m)', (v) => formatSI(v, ''), true), scale: 'idw', side: 1, grid: { show: false } },
+      ],
+      series: [{}, { label: 'gm/ID', scale: 'gmid', stroke: p.line, width: 2, points: { show: false } },
+        { label: 'ID/W', scale: 'idw', stroke: p.accent, width: 2, points: { show: false } }],
+      hooks: {
+        draw: [(u) => {
+          const op = d().op;
+          drawVertical(u, op.x, p.marker, [5, 4], 'operating point', p);
+          drawPoint(u, op.x, op.gmId, 'gmid', p.marker);
+          if (op.idW > 0) drawPoint(u, op.x, op.idW, 'idw', p.marker);
+        }],
+      },
+    }),
+  });
+}
+
 export type PlotKind = 'iout' | 'rout' | 'mc';
 
 /** Element id of a mirror's plot; also the key a re-render uses to reuse the plot. */
 export function plotId(kind: PlotKind, m: MirrorReport): string {
   return `plot-${kind}-${cssId(m.name)}`;
+}
+
+/** Element id of a device's gm/ID view. */
+export function gmIdPlotId(m: MirrorReport, device: string): string {
+  return `plot-gmid-${cssId(m.name)}-${cssId(device)}`;
 }
 
 export function cssId(name: string): string {

@@ -5,7 +5,7 @@
  */
 import type { FileReport, MirrorReport, Range } from '../src/core/types';
 import { badge, button, divider, figures, h, section, severityLabel, table, tag, type TableRow } from './components';
-import { cssId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
+import { cssId, gmIdPlot, gmIdPlotId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
 import { markSchematicDevice, schematicFigure } from './schematic';
 import type { PanelState } from './state';
 import { networkFigures } from './network-tree';
@@ -67,7 +67,13 @@ class PlotSet {
     this.old = new Map(previous.map((p) => [p.id, p]));
   }
   get(kind: PlotKind, m: MirrorReport): PlotHandle | undefined {
-    const id = plotId(kind, m);
+    return this.take(plotId(kind, m), m, () => MAKERS[kind](m));
+  }
+  /** The gm/ID view of table device `device` of `m`. */
+  gmId(m: MirrorReport, device: string): PlotHandle | undefined {
+    return this.take(gmIdPlotId(m, device), m, () => gmIdPlot(m, device));
+  }
+  private take(id: string, m: MirrorReport, make: () => PlotHandle | undefined): PlotHandle | undefined {
     const old = this.old.get(id);
     this.old.delete(id);
     if (old?.update(m)) {
@@ -75,7 +81,7 @@ class PlotSet {
       return old;
     }
     old?.destroy();
-    const fresh = MAKERS[kind](m);
+    const fresh = make();
     if (fresh) this.shown.push(fresh);
     return fresh;
   }
@@ -244,6 +250,11 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
   body.push(section(`plots-${id}`, 'Plots', plotList.length > 0
     ? h('div', { class: 'plots' }, ...plotList.map((p) => p.element))
     : h('p', { class: 'note' }, 'No Iout/Rout sweep in this report.')));
+  const gmIdList = m.devices.filter((d) => 'tableCurve' in d).map((d) => plots.gmId(m, d.name)).filter((p): p is PlotHandle => p !== undefined);
+  if (gmIdList.length > 0) {
+    body.push(section(`gmid-${id}`, 'gm/ID (characterisation table)', h('div', { class: 'plots' }, ...gmIdList.map((p) => p.element)),
+      h('p', { class: 'note' }, 'Each table device\'s table read at its own L, VDS and VSB; the marker is its operating point.')));
+  }
   const runMc = ctx.mode === 'panel' && ctx.onRunMonteCarlo && m.sigma !== undefined
     ? button(m.mc ? 'Run Monte Carlo again' : 'Run Monte Carlo', () => ctx.onRunMonteCarlo?.(), { appearance: 'secondary', 'data-key': `mc-run:${m.name}` })
     : undefined;

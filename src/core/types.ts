@@ -225,6 +225,8 @@ export interface NetlistMosDevice {
   type: Polarity;
   d: string; g: string; s: string; b: string;
   w: number; l: number; m: number;
+  /** The process device flavour it is (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
 }
 /** A bipolar device of a netlist (BiCMOS): collector, base, emitter, emitter-area multiple. */
 export interface NetlistBipolarDevice {
@@ -350,6 +352,19 @@ export interface MosDeviceReport {
   /** The characterisation table the device's figures come from (its `table:` value), when
    *  it is a table device. */
   table?: string;
+  /** A table device's gm/ID view (with the report's curves only): its table's gm/ID and ID/W
+   *  versus VGS at its length, VDS and VSB. */
+  tableCurve?: TableCurve;
+}
+
+/** The table's gm/ID and ID/W versus VGS at one device's length, VDS and VSB (device frame:
+ *  magnitudes for PMOS), at the table's own vgs points. */
+export interface TableCurve {
+  table: string;
+  /** m, V, V: where the curve is read. */
+  l: number; vds: number; vsb: number;
+  /** V; 1/V; A/m (= µA/µm). */
+  vgs: number[]; gmId: number[]; idW: number[];
 }
 
 /** Operating point of one bipolar device (design §10). Voltages are magnitudes in the device's

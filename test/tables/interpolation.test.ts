@@ -6,6 +6,9 @@ import { describe, expect, it } from 'vitest';
 import { evalSlice, sliceAt, type SlicePoint } from '../../src/core/models/table/slice';
 import { thermalVoltage } from '../../src/core/models/thermal';
 import { modelChannel, span, tableOf } from './make-table';
+import { numberAt } from '../../src/core/models/table/read';
+import { TABLE } from '../../src/core/models/table/model';
+import type { ModelDevice } from '../../src/core/models/device';
 
 const T = 300.15;
 /** An EKV NMOS (references §2 "D" values, n = 1.3, no length modulation). */
@@ -110,5 +113,43 @@ describe('EKV universal gm/ID curve from a table', () => {
       seen++;
     }
     expect(seen).toBeGreaterThan(20);
+  });
+});
+
+describe('the gate drive for a current inverts the interpolant', () => {
+  const s = sliceAt(tableOf(ch, grid(0.05)), L, T);
+  const dev = (beta: number): ModelDevice => ({ model: TABLE, sign: 1, beta, vt0: 0.02, gamma: 0, phi: 0.7, lambda: 0, n: 1.3, ut: thermalVoltage(T), table: s });
+  it.each([1e-9, 1e-7, 1e-5, 1e-3])('id %s A: the channel at the returned VGS carries it to 1e-9 (weak to strong inversion, body effect)', (id) => {
+    for (const vsb of [0, 0.37]) {
+      const d = dev(4e-6);
+      const vgs = TABLE.gateDrive(d, id, vsb);
+      const p = at(s, vgs - d.vt0, s.vds.x[s.vds.x.length - 1]!, vsb);
+      expect(Math.abs((d.beta * p.id) / id - 1)).toBeLessThan(1e-9);
+    }
+  });
+  it('a current beyond the grid clamps to 0.5 V past its end, as the search bracket says', () => {
+    const d = dev(4e-6);
+    expect(TABLE.gateDrive(d, 1e3, 0)).toBeCloseTo(1.8 + 0.5 + d.vt0, 9);
+  });
+});
+
+describe('table numbers read as JavaScript reads them', () => {
+  // The reference is ECMAScript's own Number conversion: every form a simulator writes,
+  // the fast path's edges (15 digits, 10^±22) and what it hands on (hex, Infinity, junk).
+  const fixed = ['0', '-0', '1', '+2.5', '.5', '5.', '1e-6', '1E-06', '2.000e-6', '0.000012', '-3.25e+2', ' 7 ', '\t8\r',
+    '123456789012345', '1234567890123456', '0.1234567890123456789', '1e22', '1e23', '3e-22', '4e-23', '1e308', '1e-320',
+    '0x10', 'Infinity', '', ' ', '.', 'e5', '1e', '1.2.3', '1,5', 'abc', '--1', '1e+'];
+  it.each(fixed)('%j', (t) => {
+    expect(Object.is(numberAt(t, 0, t.length), t.trim() === '' ? NaN : Number(t))).toBe(true);
+  });
+  it('ten thousand values written with toPrecision and toExponential read back to the same double', () => {
+    let x = 0.123456789;
+    for (let k = 0; k < 10_000; k++) {
+      x = (x * 9301 + 49297) % 233280 / 233280;   // a fixed linear congruential sequence
+      const v = (x - 0.5) * 10 ** ((k % 40) - 20);
+      for (const t of [v.toPrecision(1 + (k % 17)), v.toExponential(k % 15), String(v)]) {
+        expect(numberAt(t, 0, t.length), t).toBe(Number(t));
+      }
+    }
   });
 });

@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import { readTable } from '../../src/core/models/table/read';
+import type { MosDeviceReport } from '../../src/core/types';
 import { modelChannel, span, tableCsv } from './make-table';
 import { marked } from '../spec/helpers';
 
@@ -116,5 +117,47 @@ describe('device flavours: process.devices and a mirror\'s device:', () => {
     const f = r.findings.find((x) => x.code === 'unknown-name');
     expect(f?.message).toMatch(/no device flavour `hvt` in `process.devices` \(it has `lvt`\)/);
     expect(f?.range).toEqual(m.range);
+  });
+});
+
+describe('a netlist device names its own flavour (`device:`)', () => {
+  const LVT = tableCsv(modelChannel({ ...N, vt0: 0.3 }, 'ekv'), G);
+  const netlist = (m2: string, mirrorExtra = '') => `format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\n  pmos: { kp: 70u, vt0: 0.45 }\n  devices:\n    lvt: { type: nmos, table: lvt.csv }\n    thick: { type: nmos, kp: 200u, vt0: 0.7 }\nsupplies: { vdd: 1.8 }\nmirrors:\n  - name: n\n    kind: netlist\n    type: nmos\n${mirrorExtra}    devices:\n      m1: { d: a, g: a, s: vss, w: 4u, l: 1u }\n      m2: { ${m2}d: a2, g: a2, s: vss, w: 4u, l: 1u }\n      m3: { d: o, g: a, s: vss, w: 4u, l: 1u }\n    currents:\n      i1: { from: vdd, to: a, i: 10u }\n      i2: { from: vdd, to: a2, i: 10u }\n    input: { source: i1 }\n    output: { node: o, v: 0.5 }\n`;
+  it('m2 with device: lvt runs on the lvt table, m1 on process.nmos; the report names the table', () => {
+    const r = analyzeText(netlist('device: lvt, '), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    expect(r.findings.filter((f) => f.severity === 'error')).toEqual([]);
+    const devs = r.mirrors[0]!.devices as MosDeviceReport[];
+    const m1 = devs.find((d) => d.name === 'm1')!, m2 = devs.find((d) => d.name === 'm2')!;
+    // square law, VT 0.45 V: VGS = VT + sqrt(2·ID/β) = 0.45 + sqrt(2·10µ/(280µ·4)) = 0.584 V (design §3)
+    expect(m1.vgs).toBeCloseTo(0.5836, 3);
+    expect(m1.table).toBeUndefined();
+    expect(m2.table).toBe('lvt.csv');
+    // the lvt table (EKV, VT0 0.3 V) needs a smaller gate drive for the same current
+    expect(m2.vgs).toBeLessThan(m1.vgs - 0.1);
+  });
+  it('a flavour of parameters: m2 on `thick` (VT 0.7 V) needs 0.25 V more gate drive', () => {
+    const r = analyzeText(netlist('device: thick, '), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    const m2 = (r.mirrors[0]!.devices as MosDeviceReport[]).find((d) => d.name === 'm2')!;
+    // square law: VGS = 0.7 + sqrt(2·10µ/(200µ·4)) = 0.858 V (design §3)
+    expect(m2.vgs).toBeCloseTo(0.8581, 3);
+  });
+  it('an unknown flavour is unknown-name at the device\'s `device:` value, with a did-you-mean and its quick fix', () => {
+    const m = marked(netlist('device: ⟦lvtt⟧, '));
+    const r = analyzeText(m.text, 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    const f = r.findings.find((x) => x.code === 'unknown-name');
+    expect(f?.message).toMatch(/no device flavour `lvtt` in `process.devices` \(it has `lvt`, `thick`\); did you mean `lvt`\?/);
+    expect(f?.range).toEqual(m.range);
+    expect(f?.fixes?.[0]?.title).toBe('Change `lvtt` to `lvt`');
+  });
+  it('a flavour of the other type is bad-value at the value', () => {
+    const m = marked(netlist('type: pmos, device: ⟦lvt⟧, '));
+    const r = analyzeText(m.text, 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    const f = r.findings.find((x) => x.code === 'bad-value' && /flavour/.test(x.message));
+    expect(f?.message).toMatch(/device flavour `lvt` is nmos, but this device is pmos/);
+    expect(f?.range).toEqual(m.range);
+  });
+  it('`device` on the netlist mirror itself is misplaced, pointing at the per-device spelling', () => {
+    const r = analyzeText(netlist('', '    device: lvt\n'), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
+    expect(r.findings.find((x) => x.code === 'unknown-key')?.message).toMatch(/written per device/);
   });
 });

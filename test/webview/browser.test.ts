@@ -5,7 +5,7 @@ import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
-import type { FileReport, MirrorReport } from '../../src/core/types';
+import type { FileReport, MirrorReport, MosDeviceReport } from '../../src/core/types';
 import { isBipolarReport, isBipolarType } from '../../src/core/device-types';
 import type { HostMessage } from '../../src/protocol/messages';
 import { STATIC_ID, renderHtmlReport } from '../../src/core/report/html';
@@ -319,6 +319,67 @@ describe('the bias panel page', () => {
     expect(await page.locator('#qpoint-caution').innerText()).toContain('confirm with transistor-level simulation');
     await cleanPage(page, probe);
     await page.close();
+  });
+});
+
+describe('the gm/ID view of a table device', () => {
+  it('appears for the example\'s table mirror, one per device, drawn and captioned with its operating point; not for an analytic mirror', async () => {
+    const { main } = core();
+    const table = main.mirrors.find((m) => m.devices.some((d) => 'tableCurve' in d))!;
+    const tableDevs = table.devices as MosDeviceReport[];
+    const analytic = main.mirrors.find((m) => m.devices.every((d) => d.table === undefined))!;
+    expect(table.name).toBe('res_bias');
+    const { page, probe } = await openPanel();
+    await post(page, { type: 'report', uri: URI, report: main, version: 1 });
+    await page.locator(`#mirror-list tr[data-key="mirror:${table.name}"]`).press('Enter');
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(table.name);
+    const views = page.locator('.plot[id^="plot-gmid-"]');
+    await expect.poll(() => views.count()).toBe(table.devices.length);
+    await applyTheme(page, 'light');
+    const blue = hexToRgb(THEMES.light.vars['--vscode-charts-blue']);
+    const ink = await until('the gm/ID views drawn', async () => {
+      const r = await canvasInk(page, '.plot[id^="plot-gmid-"]', blue);
+      return r.length === table.devices.length && r.every((c) => c.inked > 1000 && c.colour > 50) ? r : undefined;
+    });
+    expect(ink.length).toBe(table.devices.length);
+    for (const d of tableDevs) {
+      const caption = await page.locator(`.plot[id="plot-gmid-${table.name}-${d.name}"] figcaption`).innerText();
+      expect(caption).toContain(`gm/ID of ${d.name}`);
+      expect(caption).toContain(d.tableCurve!.table);
+      // The operating point in the caption is the core's: VGS and gm/ID (3 significant digits).
+      const op = /operating point ([\d.]+ m?V), ([\d.]+) \/V/.exec(caption)!;
+      expect(readSI(op[1]!, 'V') / d.vgs).toBeCloseTo(1, 2);
+      expect(Number(op[2]) / d.gmId).toBeCloseTo(1, 2);
+    }
+    await page.locator(`#gmid-${table.name}`).screenshot({ path: ensureDir(join(OUT, 'gmid-view.png')) });
+
+    await page.locator(`#mirror-list tr[data-key="mirror:${analytic.name}"]`).press('Enter');
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(analytic.name);
+    expect(await page.locator('.plot[id^="plot-gmid-"]').count()).toBe(0);
+    expect(await page.locator(`#gmid-${analytic.name}`).count()).toBe(0);
+    await cleanPage(page, probe);
+    await page.close();
+  });
+
+  it('the HTML report draws it as SVG without JavaScript, the operating point marked', async () => {
+    const { main } = core();
+    const file = join(OUT, 'report-gmid.html');
+    mkdirSync(OUT, { recursive: true });
+    writeFileSync(file, renderHtmlReport(main, { script: '' }, { version: '0.0.0-test', date: '2026-01-01T00:00:00.000Z', inputHash: 'sha256:test' }));
+    const context = await browser.newContext({ viewport: { width: 1200, height: 900 }, javaScriptEnabled: false });
+    const page = await context.newPage();
+    await page.goto(pathToFileURL(file).toString());
+    for (const m of main.mirrors) {
+      const views = page.locator(`#${STATIC_ID} section[data-mirror="${m.name}"] .gmid-static`);
+      const tableDevices = m.devices.filter((d) => 'tableCurve' in d).length;
+      expect(await views.count(), m.name).toBe(tableDevices);
+      if (tableDevices > 0) {
+        expect(await views.locator('svg.plot-svg polyline').count()).toBe(2 * tableDevices);
+        expect(await views.locator('circle.operating-point').count()).toBe(2 * tableDevices);
+        await views.first().screenshot({ path: join(OUT, 'report-gmid.png') });
+      }
+    }
+    await context.close();
   });
 });
 

@@ -20,6 +20,7 @@ import {
   type MirrorTarget,
 } from './solve';
 import { linspace, sweepCircuit } from './sweep';
+import { tableCurve } from '../models/table/curve';
 import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias';
 
 export interface MeasureOptions { curve?: boolean; curvePoints?: number }
@@ -141,6 +142,14 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   if (opts.curve) {
     const { vdd, vss } = t.spec.supplies;
     base.curve = sweepCircuit(mc, linspace(vss, vdd, opts.curvePoints ?? 61), vout, xNom);
+    // A table device's gm/ID view at its operating point (the solve's own device, so the
+    // operating point lies on the curve).
+    mc.circuit.devices.forEach((x, k) => {
+      const r = devices[k];
+      if (x.kind !== 'mos' || !x.dev.table || !r || isBipolarReport(r) || !base.devices.includes(r)) return;
+      const curve = tableCurve(x.dev, Math.abs(r.vds), Math.max(0, -r.vbs), r.m * r.w);
+      if (curve) r.tableCurve = curve;
+    });
   }
   return base;
 }

@@ -4,6 +4,7 @@
  * its own rail starts at the gate drive for the input current; every other node at mid-supply.
  */
 import { gateDriveFor } from '../models/evaluate';
+import { paramsOf } from '../flavours';
 import { deviceProblem, prepareDevice } from '../models/device';
 import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
 import { isBipolarDevice, polaritySign } from '../device-types';
@@ -52,7 +53,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
       b.bjt(q, railName(d.c), railName(d.b), railName(d.e));
       continue;
     }
-    const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
+    const params = paramsOf(spec.process, d.type, d.device);
     const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${d.name}: ${problem}`);

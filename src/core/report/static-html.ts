@@ -6,7 +6,7 @@
  * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
-import type { BipolarDeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
+import type { BipolarDeviceReport, DeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
 import { isBipolarReport, isBipolarSplit, sinksCurrent } from '../device-types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
@@ -118,6 +118,7 @@ function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schemati
         points: m.curve.map((p) => ({ x: p.vout, y: p.rout, ok: p.converged })) }),
       '</div>');
   }
+  if (!m.beyondRails) out.push(...m.devices.flatMap((d) => gmIdPlots(m, d)));
   if (m.corners && m.corners.length > 0) {
     out.push(table(`Corners of ${m.name}`, ['Corner', 'Iout', 'Ratio', 'Error', 'Rout', 'Compliance', 'σ', 'Min margin'], m.corners.map((c) => (c.converged ? [
       esc(c.name), si(c.iout, 'A', 4), plain(c.ratio), pct(c.error, true), si(c.rout, 'Ω'), si(c.compliance, 'V', 4),
@@ -133,6 +134,23 @@ function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schemati
   }
   out.push('</section>');
   return out.join('\n');
+}
+
+/** A table device's gm/ID view: gm/ID and ID/W (log) versus VGS at its L, VDS and VSB, the
+ *  operating point marked. */
+function gmIdPlots(m: MirrorReport, d: DeviceReport): string[] {
+  if (isBipolarReport(d) || !d.tableCurve) return [];
+  const c = d.tableCurve;
+  const who = `${d.name} of ${m.name}`;
+  const marker = { x: d.vgs, label: 'operating point' };
+  const pts = (ys: number[]) => c.vgs.map((x: number, k: number) => ({ x, y: ys[k]!, ok: true }));
+  return [
+    `<p class="gmid-where">gm/ID view of ${esc(who)}: table ${esc(c.table)} at L ${si(c.l, 'm')}, VDS ${si(c.vds, 'V')}, VSB ${si(c.vsb, 'V')}; the dot is the operating point.</p>`,
+    `<div class="plots-static gmid-static" data-device="${esc(d.name)}">`,
+    linePlotSvg({ title: `gm/ID versus VGS — ${who}`, xUnit: 'V', yUnit: '/V', marker, point: { x: d.vgs, y: d.gmId }, points: pts(c.gmId) }),
+    linePlotSvg({ title: `ID/W versus VGS — ${who}`, xUnit: 'V', yUnit: 'A/m', logY: true, marker, point: { x: d.vgs, y: d.id / (d.m * d.w) }, points: pts(c.idW) }),
+    '</div>',
+  ];
 }
 
 /** The whole static body. */

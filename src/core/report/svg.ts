@@ -17,6 +17,8 @@ export interface LinePlot {
   logY?: boolean;
   /** A vertical marker (the nominal output voltage). */
   marker?: { x: number; label: string };
+  /** A dot on the plot (the operating point). */
+  point?: { x: number; y: number };
 }
 
 const W = 560, H = 240;
@@ -93,6 +95,10 @@ export function linePlotSvg(p: LinePlot): string {
     const x = num(px(p.marker.x));
     body.push(`<line x1="${x}" y1="${PAD.top}" x2="${x}" y2="${H - PAD.bottom}" style="stroke: var(--vscode-charts-orange); stroke-width: 1"/>`,
       `<text x="${x}" y="${PAD.top - 3}" text-anchor="middle" style="${label}">${esc(p.marker.label)}</text>`);
+  }
+  const q = p.point;
+  if (q && q.x >= x0 && q.x <= x1 && Number.isFinite(q.y) && (!p.logY || q.y > 0)) {
+    body.push(`<circle class="operating-point" cx="${num(px(q.x))}" cy="${num(py(q.y))}" r="4" style="fill: var(--vscode-charts-orange)"/>`);
   }
   return frame(p.title, body);
 }

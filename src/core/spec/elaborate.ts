@@ -3,18 +3,19 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
+import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
 import { DEFAULTS } from '../defaults';
-import { DEVICE_TYPES, isBipolarType } from '../device-types';
+import { DEVICE_TYPES, isBipolarDevice, isBipolarType } from '../device-types';
 import { familyOf, KINDS } from '../kinds/index';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
 import { checkLinks, fedOutputs } from './links';
+import { readFlavour } from './flavour';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
-import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
+import { readLimits, readProcess, readSupplies } from './process';
 import { missing, readEnum, readMap, readString } from './read';
 import { typeName, type ValueScope } from './values';
 import type { TableTexts } from './tables';
@@ -27,26 +28,6 @@ export interface ElaborateReuse {
   items: readonly unknown[];
   mirrors: readonly ResolvedMirror[];
   except: number;
-}
-
-/** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
- *  when not given, null when it names no such flavour (a finding says so). */
-function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: DeviceType): string | null | undefined {
-  if (raw === undefined) return undefined;
-  const name = readString(sink, raw, path);
-  if (name === undefined) return null;
-  if (!proc?.flavourNames.has(name)) {
-    const known = [...(proc?.flavourNames ?? [])];
-    sink.error('unknown-name', `no device flavour \`${name}\` in \`process.devices\`${known.length ? ` (it has ${known.map((k) => `\`${k}\``).join(', ')})` : ''}`, path);
-    return null;
-  }
-  const f = proc.devices?.[name];
-  if (!f) return null;   // the flavour has its own error
-  if (f.type !== type) {
-    sink.error('bad-value', `device flavour \`${name}\` is ${f.type}, but this mirror is ${type}`, path);
-    return null;
-  }
-  return name;
 }
 
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
@@ -102,9 +83,9 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     }
     if (!name || !kind) return;
     if (kind === 'netlist') {
-      const nm = readNetlistMirror(scope, m, i, name, type, supplies);
+      const nm = readNetlistMirror(scope, m, i, name, type, supplies, proc);
       if (nm) {
-        for (const d of nm.devices) if (!used.has(d.type)) used.set(d.type, name);
+        for (const d of nm.devices) if ((isBipolarDevice(d) || d.device === undefined) && !used.has(d.type)) used.set(d.type, name);
         mirrors.push(nm);
       }
       return;
@@ -116,7 +97,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       sink.error('bad-value', `a ${kind} mirror is built from ${families.join(' or ')} devices: \`type\` is one of ${types.join(', ')}; got ${type}`, [...path, 'type']);
       return;
     }
-    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
+    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type, 'mirror');
     if (flavour === null) return;
     if (!flavour && !used.has(type)) used.set(type, name);
     const params = flavour ? proc?.devices?.[flavour]?.params : type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined;

@@ -10,6 +10,8 @@ import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
 import { readOutput, readRequire } from './mirror';
 import { askIf, suggestion } from './suggest';
+import { readFlavour } from './flavour';
+import type { ProcessRead } from './process';
 import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
@@ -69,11 +71,14 @@ function tooLarge(scope: ValueScope, m: Data, path: SpecPath): boolean {
   return true;
 }
 
-export function readNetlistMirror(scope: ValueScope, m: Data, index: number, name: string, type: DeviceType | undefined, supplies: Supplies | undefined): NetlistMirror | undefined {
+export function readNetlistMirror(
+  scope: ValueScope, m: Data, index: number, name: string, type: DeviceType | undefined, supplies: Supplies | undefined, proc?: ProcessRead,
+): NetlistMirror | undefined {
   const path: SpecPath = ['mirrors', index];
   const sink = scope.sink;
   const before = sink.errorCount;
   for (const k of TEMPLATE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to template kinds; a netlist gives w, l and m per device`);
+  if (m.device !== undefined) misplaced(sink, [...path, 'device'], '`device` on a netlist is written per device: `devices: { m1: { device: lvt, d: …, g: …, s: …, w: …, l: … } }`');
   const seen = new Map<string, string>();  // element name → its group, for duplicate-name
   const claim = (group: string, elem: string, at: SpecPath) => {
     const g = seen.get(elem);
@@ -90,10 +95,13 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     for (const dn of Object.keys(dmap)) {
       const at = [...dp, dn];
       claim(section, dn, at);
-      const d = readMap(sink, dmap[dn], at, 'a mapping { type, d, g, s, b, w, l, m }');
+      const d = readMap(sink, dmap[dn], at, 'a mapping { type, device, d, g, s, b, w, l, m }');
       if (!d) continue;
-      const dtype = d.type === undefined ? type : readEnum<DeviceType>(sink, d.type, [...at, 'type'], DEVICE_TYPES);
-      if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos, pmos, npn or pnp; or give the mirror a `type`)');
+      const written = d.type === undefined ? undefined : readEnum<DeviceType>(sink, d.type, [...at, 'type'], DEVICE_TYPES);
+      // `device:` names a flavour of process.devices; without `type` the device is its flavour's type.
+      const flavour = readFlavour(sink, d.device, [...at, 'device'], proc, written, 'device');
+      const dtype: DeviceType | undefined = d.type !== undefined ? written : flavour ? proc?.devices?.[flavour]?.type : type;
+      if (d.type === undefined && !type && d.device === undefined) missing(sink, at, 'type', ' (nmos, pmos, npn or pnp; or give the mirror a `type`)');
       if (dtype && isBipolarType(dtype)) {
         // A bipolar device (BiCMOS): collector, base, emitter; sized by area and m.
         for (const k of ['d', 'g', 's', 'w', 'l']) {
@@ -128,17 +136,19 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
       if (d.l === undefined) missing(sink, at, 'l', ' (length, m)');
       const mm = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
       if (dtype && !isBipolarType(dtype) && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
-        list.push({ name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm });
+        const dev: NetlistDevice = { name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm };
+        if (flavour) dev.device = flavour;
+        list.push(dev);
       }
     }
     return list;
   };
   const dp = [...path, 'devices'];
   if (m.devices === undefined) missing(sink, path, 'devices', ' (the MOSFETs by name)');
-  const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, d, g, s, b, w, l, m }') ?? {};
+  const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, device, d, g, s, b, w, l, m }') ?? {};
   if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, 'key');
   const devices = readDevices('devices', dmap);
-  const smap = m.startup === undefined ? undefined : readMap(sink, m.startup, [...path, 'startup'], 'a mapping of start-up device names to { type, d, g, s, b, w, l, m }');
+  const smap = m.startup === undefined ? undefined : readMap(sink, m.startup, [...path, 'startup'], 'a mapping of start-up device names to { type, device, d, g, s, b, w, l, m }');
   const startup = smap ? readDevices('startup', smap) : undefined;
 
   const currents: NetlistCurrentSource[] = [];

@@ -19,7 +19,7 @@ import type { ChannelEval } from '../core';
 import type { ModelDevice } from '../device';
 import type { DeviceModel, SizingContext } from '../model';
 import type { DesignTarget } from '../../types';
-import { evalSlice, type SlicePoint, type TableSlice } from './slice';
+import { evalSlice, vgsNear, type SlicePoint, type TableSlice } from './slice';
 
 const pt: SlicePoint = { id: 0, gm: 0, gds: 0, dvsb: 0 };
 
@@ -96,18 +96,30 @@ export const TABLE: DeviceModel = {
     out.region = vds >= out.vdsat ? 2 : 1;
   },
 
-  /** Bisection on the table's own curve at the reference VDS. */
+  /** Newton on ln(id) along the table's own curve at its largest VDS, from the grid's own
+   *  crossing (`vgsNear`) and kept inside a bracket (bisection when a step leaves it): a few
+   *  evaluations where a 64-step bisection stood (the self-biased references' loop-current
+   *  search calls this hundreds of times per analysis). Beyond the table's vgs range by more
+   *  than 0.5 V the answer is that end. */
   gateDrive(dev, id, vsb): number {
     const s = sliceOf(dev);
     const x = s.vgs, vds = saturatedVds(s);
     let lo = x[0]! - 0.5, hi = x[x.length - 1]! + 0.5;
     if (!(id > 0) || !(dev.beta > 0)) return lo + dev.vt0;
-    for (let k = 0; k < 64; k++) {
-      const mid = 0.5 * (lo + hi);
-      evalSlice(s, mid, vds, vsb, pt);
-      if (dev.beta * pt.id < id) lo = mid; else hi = mid;
+    const goal = Math.log(id / dev.beta);
+    let v = vgsNear(s, goal, vsb);
+    for (let k = 0; k < 100; k++) {
+      evalSlice(s, v, vds, vsb, pt);
+      const r = pt.id > 0 ? Math.log(pt.id) - goal : -Infinity;
+      if (r === 0) break;
+      if (r < 0) lo = v; else hi = v;
+      const slope = pt.id > 0 ? pt.gm / pt.id : 0;
+      const dv = slope > 0 ? -r / slope : NaN;
+      if (Math.abs(dv) < 1e-13) { v += dv; break; }
+      v = v + dv > lo && v + dv < hi ? v + dv : 0.5 * (lo + hi);
+      if (hi - lo < 1e-13) break;
     }
-    return 0.5 * (lo + hi) + dev.vt0;
+    return v + dev.vt0;
   },
 
   saturationVoltage(dev, id): number {

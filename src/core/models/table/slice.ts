@@ -66,12 +66,12 @@ function makeSlice(table: DeviceTable, l: number, temperature: number): TableSli
   const zero = new Uint8Array(nD);
   table.vds.forEach((v, j) => { zero[j] = v > 0 ? 0 : 1; });
   const ln = new Float64Array(per);
-  for (let p = 0; p < per; p++) {
-    const j = Math.floor(p / nG) % nD;
-    if (zero[j]) continue;
-    let sum = 0;
-    for (const [base, w] of planes) sum += w * Math.log(table.id[base + p]!);
-    ln[p] = sum;
+  const id = table.id;
+  for (let line = 0; line < nS * nD; line++) {
+    if (zero[line % nD]) continue;
+    for (const [base, w] of planes) {
+      for (let p = line * nG, end = p + nG; p < end; p++) ln[p]! += w * Math.log(id[base + p]!);
+    }
   }
   const vgs = Float64Array.from(table.vgs);
   const slope = new Float64Array(per);
@@ -86,6 +86,9 @@ export interface SlicePoint { id: number; gm: number; gds: number; dvsb: number 
 
 const wD: Weights = newWeights();
 const wS: Weights = newWeights();
+/** The axes and voltages wD and wS were last filled for: a gate-drive search and the Newton
+ *  loop's repeated calls at one VDS and VSB skip recomputing them. */
+let lastD: Axis | undefined, lastVds = NaN, lastS: Axis | undefined, lastVsb = NaN;
 
 /**
  * id/W and its derivatives at (vgs, vds, vsb). Beyond the grid along vgs the curve continues
@@ -106,8 +109,8 @@ export function evalSlice(s: TableSlice, vgs: number, vds: number, vsb: number, 
     h00 = 2 * t3 - 3 * t2 + 1; h10 = (t3 - 2 * t2 + t) * h; h01 = -2 * t3 + 3 * t2; h11 = (t3 - t2) * h;
     d00 = (6 * t2 - 6 * t) / h; d10 = 3 * t2 - 4 * t + 1; d01 = (-6 * t2 + 6 * t) / h; d11 = 3 * t2 - 2 * t;
   }
-  weightsAt(s.vds, vds, wD);
-  weightsAt(s.vsb, vsb, wS);
+  if (s.vds !== lastD || vds !== lastVds) { weightsAt(s.vds, vds, wD); lastD = s.vds; lastVds = vds; }
+  if (s.vsb !== lastS || vsb !== lastVsb) { weightsAt(s.vsb, vsb, wS); lastS = s.vsb; lastVsb = vsb; }
   let id = 0, gm = 0, gds = 0, dsb = 0;
   for (let a = 0; a < wD.count; a++) {
     const j = wD.first + a;
@@ -136,4 +139,24 @@ export function evalSlice(s: TableSlice, vgs: number, vds: number, vsb: number, 
     id += wj * e; gm += wj * e * Lg; dsb += wj * e * Ls; gds += dwj * e;
   }
   out.id = id; out.gm = gm; out.gds = gds; out.dvsb = dsb;
+}
+
+/** VGS where ln(id/W) on the grid at the largest vds crosses `lnId`, linear between the vgs
+ *  nodes and between the two nearest vsb lines: a starting point for a gate-drive search,
+ *  within a fraction of a grid step of the interpolant's own crossing. */
+export function vgsNear(s: TableSlice, lnId: number, vsb: number): number {
+  const x = s.vgs, nG = x.length, nD = s.vds.x.length, sb = s.vsb.x, nS = sb.length;
+  const k = nS > 1 ? intervalOf(sb, vsb) : 0;
+  const a = nS > 1 ? Math.min(Math.max((vsb - sb[k]!) / (sb[k + 1]! - sb[k]!), 0), 1) : 0;
+  const b0 = (k * nD + nD - 1) * nG, b1 = nS > 1 ? ((k + 1) * nD + nD - 1) * nG : b0;
+  const at = (i: number): number => (1 - a) * s.ln[b0 + i]! + a * s.ln[b1 + i]!;
+  if (lnId <= at(0)) return x[0]!;
+  if (lnId >= at(nG - 1)) return x[nG - 1]!;
+  let lo = 0, hi = nG - 1;
+  while (hi - lo > 1) {
+    const mid = (lo + hi) >> 1;
+    if (at(mid) <= lnId) lo = mid; else hi = mid;
+  }
+  const l0 = at(lo), l1 = at(hi);
+  return l1 > l0 ? x[lo]! + ((lnId - l0) / (l1 - l0)) * (x[hi]! - x[lo]!) : x[lo]!;
 }

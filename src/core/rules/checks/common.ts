@@ -5,7 +5,7 @@ import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
 import { refOf } from '../sites';
-import { mirrorParams } from '../../flavours';
+import { deviceParams } from '../../flavours';
 
 /** Devices of this output: the shared reference roles and this output's own roles. */
 export function siteDevices(site: Site): DeviceReport[] {
@@ -19,7 +19,7 @@ export function siteDevices(site: Site): DeviceReport[] {
 
 /** The process parameters a reported MOSFET was solved with. */
 export function paramsOfDevice(spec: ResolvedSpec, site: Site, d: MosDeviceReport): DeviceParams {
-  return mirrorParams(spec.process, site.mirror, d.type);
+  return deviceParams(spec.process, site.mirror, d.name, d.type);
 }
 
 /** In its working region (MOSFET saturation, bipolar forward-active) with a margin ≥ 0. */

@@ -7,7 +7,7 @@ import { allDevices, sizeOf, type DeviceRef } from '../../sizing/devices';
 import { quantizeSize } from '../../sizing/quantize';
 import { setSizePlans } from '../plans';
 import { code, formatSI } from '../../text/format';
-import { mirrorParams } from '../../flavours';
+import { deviceParams } from '../../flavours';
 
 export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
   // Sizes belong to the mirror: check once per mirror, on its first output.
@@ -21,7 +21,7 @@ export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
       if (!s || (s.auto && s.auto[key === 'l' ? 'l' : 'w'])) continue;
       const type = m.kind === 'netlist' ? m.devices.find((d) => d.name === ref.role)?.type ?? m.type : m.type;
       if (type !== 'nmos' && type !== 'pmos') continue;   // a bipolar device has an area, no W or L
-      const p = mirrorParams(rc.spec.process, m, type);
+      const p = deviceParams(rc.spec.process, m, ref.role, type);
       const min = key === 'l' ? p.lmin : p.wmin;
       if (min === undefined || s[key] >= min * (1 - 1e-9)) continue;
       const tok = sizeToken(rc.parsed, rc.spec, ref, key);
