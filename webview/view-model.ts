@@ -58,7 +58,7 @@ export function countSeverities(findings: readonly Finding[]): Record<Severity, 
 // ───────────────────────────── requirements ─────────────────────────────
 
 export type RequirementKey = keyof Requirements;
-export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma'];
+export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma', 'noise', 'tc', 'supplySensitivity'];
 
 /** Words in a finding code that name a requirement (codes are kebab-case, e.g. `rout-low`). */
 const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
@@ -66,6 +66,9 @@ const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
   rout: ['rout'],
   compliance: ['compliance'],
   sigma: ['sigma', 'mismatch'],
+  noise: ['noise'],
+  tc: ['tc'],
+  supplySensitivity: ['sensitivity'],
 };
 
 /** A finding speaks about requirement `key` when it (or a related location) points at
@@ -105,6 +108,7 @@ export function requirementViews(mirror: MirrorReport, findings: readonly Findin
 
 const FIGURE_LABEL: Record<RequirementKey, string> = {
   ratio: 'Ratio', rout: 'Output resistance', compliance: 'Compliance', sigma: 'Mismatch σ',
+  noise: 'Noise density', tc: 'Temperature coefficient', supplySensitivity: 'Supply sensitivity',
 };
 
 function requirementText(mirror: MirrorReport, key: RequirementKey, target: number): string {
@@ -113,6 +117,9 @@ function requirementText(mirror: MirrorReport, key: RequirementKey, target: numb
     case 'rout': return `≥ ${formatSI(target, 'Ω')}`;
     case 'compliance': return `${mirror.type === 'nmos' ? '≤' : '≥'} ${formatSI(target, 'V')}`;
     case 'sigma': return `≤ ${formatPercent(target)}`;
+    case 'noise': return `≤ ${formatSI(target, 'A/√Hz')}`;
+    case 'tc': return `≤ ${formatNumber(target, 3)} ppm/°C`;
+    case 'supplySensitivity': return `≤ ${formatNumber(target, 3)}`;
   }
 }
 
@@ -122,6 +129,9 @@ function actualText(mirror: MirrorReport, key: RequirementKey): string {
     case 'rout': return formatSI(mirror.rout, 'Ω');
     case 'compliance': return formatSI(mirror.compliance, 'V', 4);
     case 'sigma': return mirror.sigma === undefined ? '—' : formatPercent(mirror.sigma);
+    case 'noise': return mirror.noise === undefined ? '—' : formatSI(mirror.noise.density, 'A/√Hz');
+    case 'tc': return mirror.tc === undefined ? '—' : `${formatNumber(mirror.tc, 3)} ppm/°C`;
+    case 'supplySensitivity': return mirror.supplySensitivity === undefined ? '—' : formatNumber(mirror.supplySensitivity, 3);
   }
 }
 

@@ -9,6 +9,8 @@ import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
+import { boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient } from './drift';
+import { DEFAULT_ANALYSIS, outputNoise } from './noise';
 import { splitError } from './errorSplit';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
@@ -114,6 +116,12 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     base.rout = g !== 0 ? 1 / g : Infinity;
     const sigma = outputSigma(mc.circuit.devices, outputSensitivities(mc.circuit, mc.ws, lam), iout);
     if (sigma !== undefined) base.sigma = sigma;
+    const s = supplySensitivity(mc, lam, iout, t.spec.supplies.vdd);
+    if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;
+    const tc = temperatureCoefficient(t, mc, lam, iout, vout, vb?.vbias);
+    if (tc !== undefined) base.tc = tc;
+    const noise = outputNoise(mc.circuit, mc.ws, lam, t.spec.process.temperature, t.spec.analysis ?? DEFAULT_ANALYSIS, opts.curve === true);
+    if (noise) base.noise = noise;
   }
   const byRole: Record<string, SmallSignal | undefined> = {};
   for (const role in mc.byRole) {
@@ -125,6 +133,13 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
+  const trange = t.spec.process.trange;
+  if (trange) {
+    const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
+    base.drift = drift;
+    const box = boxCoefficient(drift, iout);
+    if (box !== undefined) base.tcBox = box;
+  }
   const comp = findCompliance(mc, uNom, xNom);
   base.compliance = comp.compliance;
   if (!comp.found && comp.limiter !== undefined) base.noCompliance = { device: mc.circuit.devices[comp.limiter]!.name };

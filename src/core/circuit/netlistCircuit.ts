@@ -7,6 +7,7 @@ import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
 import type { NetlistMirror, ResolvedSpec } from '../types';
 import { CircuitBuilder } from './circuit';
+import { resistanceAt } from './resistance';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { PerturbationLike } from './templates';
 
@@ -47,7 +48,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
     if (!Number.isFinite(s.i)) b.problems.push(`current source ${s.name}: ${s.i} A is not a number`);
     b.current(s.name, railName(s.from), railName(s.to), s.i);
   }
-  for (const r of m.resistors) b.resistor(r.name, railName(r.a), railName(r.b), r.r);
+  for (const r of m.resistors) b.resistor(r.name, railName(r.a), railName(r.b), resistanceAt(r.r, r, spec.process));
   const inputIndex = m.currents.findIndex((s) => s.name === m.input.source);
   if (inputIndex < 0) b.problems.push(`input source ${m.input.source} is not a current source of this netlist`);
 

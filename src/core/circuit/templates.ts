@@ -12,8 +12,12 @@ import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
 import { CircuitBuilder, type MosInstance } from './circuit';
+import { resistanceAt } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
+
+/** Suffix of a filtered gate line's node (`a~f` is node a seen through the filter). */
+const FILTERED = '~f';
 
 export interface PerturbationLike { dvt: Record<string, number>; dbeta: Record<string, number> }
 
@@ -71,6 +75,18 @@ export function buildTemplate(
     byRole[role] = add(role, role, size, conn, refMap, true);
   }
 
+  // A gate filter: each reference node an output gate sits on reaches those gates through r,
+  // with c from the filtered line to the mirror's own rail (no DC current flows in r).
+  const filtered = new Map<string, string>();
+  const gateLine = (n: string): string => {
+    if (!m.filter) return n;
+    let f = filtered.get(n);
+    if (f === undefined) {
+      f = b.node(`${n}${FILTERED}`);
+      filtered.set(n, f);
+    }
+    return f;
+  };
   const outNodes: string[] = [];
   const cNodes: (string | undefined)[] = [];
   m.outputs.forEach((o: MirrorOutput, j) => {
@@ -85,11 +101,23 @@ export function buildTemplate(
       const conn = kind.output[role];
       const size = o.devices[role] ?? m.devices[role];
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
-      const k = add(`${prefix}${role}`, role, size, conn, map, j === outputIndex);
+      const g = conn.g;
+      const onLine = g !== 'O' && g !== 'C' && g !== 'R' && g !== 'vbias';
+      const wired = onLine && m.filter ? { ...conn, g: `${g}${FILTERED}` } : conn;
+      if (onLine) gateLine(g);
+      const k = add(`${prefix}${role}`, role, size, wired, map, j === outputIndex);
       if (j === outputIndex) byRole[role] = k;
     }
   });
 
+  if (m.filter) {
+    const lines = [...filtered.keys()];
+    for (const n of lines) {
+      const name = lines.length === 1 ? 'filter' : `filter.${n}`;
+      b.resistor(name, n, filtered.get(n)!, m.filter.r);
+      b.capacitor(`${name}.c`, filtered.get(n)!, R, m.filter.c);
+    }
+  }
   const input = kind.inputNode;
   let iin: (v: Float64Array) => number;
   if (m.input.kind === 'current') {
@@ -98,7 +126,8 @@ export function buildTemplate(
     if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
     iin = () => i;
   } else {
-    const r = sign > 0 ? b.resistor('input', 'vdd', input, m.input.r) : b.resistor('input', input, 'vss', m.input.r);
+    const ohms = resistanceAt(m.input.r, m.input, spec.process);
+    const r = sign > 0 ? b.resistor('input', 'vdd', input, ohms) : b.resistor('input', input, 'vss', ohms);
     iin = (v) => resistorCurrent(r, v);
   }
   const measuredOut = outNodes[outputIndex] ?? 'out';
@@ -135,7 +164,9 @@ export function buildTemplate(
       solveFor(0.5 * (lo + hi));
     }
     for (let k = 0; k < c.nFree; k++) {
-      const uk = g.u[freeNames[k]!];
+      const name = freeNames[k]!;
+      // A filtered gate line sits at its reference node (no DC current in the filter).
+      const uk = g.u[name.endsWith(FILTERED) ? name.slice(0, -FILTERED.length) : name];
       ws.v[k] = rail + sign * (uk !== undefined && Number.isFinite(uk) ? uk : 0.5 * span);
     }
   };

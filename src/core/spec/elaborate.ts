@@ -3,6 +3,7 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
+import { readAnalysis } from './drift';
 import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
@@ -102,11 +103,13 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     if (nmos && pmos && proc.ok) {
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
       if (proc.grid !== undefined) process.grid = proc.grid;
+      if (proc.trange !== undefined) process.trange = proc.trange;
     }
   }
   const corners = data.corners === undefined ? [] : readCorners(scope, data.corners, process, supplies);
+  const analysis = readAnalysis(scope, data.analysis);
   if (!formatOk || !process || !supplies || !limits) return undefined;
-  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors, corners };
+  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors, corners, analysis };
   if (title !== undefined) spec.title = title;
   return spec;
 }

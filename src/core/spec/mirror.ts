@@ -3,6 +3,7 @@ import { BANK_KINDS, KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/inde
 import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
   Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
 import { formatSI } from '../text/format';
+import { readFilter, readResistorDrift } from './drift';
 import { isRecord } from './params';
 import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';
@@ -25,7 +26,8 @@ export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): Inpu
       return undefined;
     }
     const r = resolveNumber(scope, raw.resistor, [...path, 'resistor'], 'resistance', { positive: true });
-    return r === undefined ? undefined : { kind: 'resistor', r };
+    const drift = readResistorDrift(scope, raw, path);
+    return r === undefined ? undefined : { kind: 'resistor', r, ...drift };
   }
   const i = resolveNumber(scope, raw, path, 'current', { positive: true });
   return i === undefined ? undefined : { kind: 'current', i };
@@ -61,7 +63,7 @@ export function readOutput(scope: ValueScope, raw: unknown, path: SpecPath, supp
 }
 
 export function readRequire(scope: ValueScope, raw: unknown, path: SpecPath): Requirements | undefined {
-  const r = readMap(scope.sink, raw, path, 'a mapping { ratio, rout, compliance, sigma }');
+  const r = readMap(scope.sink, raw, path, 'a mapping { ratio, rout, compliance, sigma, noise, tc, supplySensitivity }');
   if (!r) return undefined;
   const out: Requirements = {};
   const read = (key: keyof Requirements, q: Parameters<typeof resolveNumber>[3], positive: boolean) => {
@@ -73,6 +75,9 @@ export function readRequire(scope: ValueScope, raw: unknown, path: SpecPath): Re
   read('rout', 'resistance', true);
   read('compliance', 'voltage', false);
   read('sigma', 'ratio', true);
+  read('noise', 'noiseDensity', true);
+  read('tc', 'plain', true);
+  read('supplySensitivity', 'plain', true);
   return out;
 }
 
@@ -139,6 +144,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
 
   const input = readInput(scope, m.input, [...path, 'input']);
   const design = m.design === undefined ? undefined : readDesign(scope, m.design, [...path, 'design']);
+  const filter = m.filter === undefined ? undefined : readFilter(scope, m.filter, [...path, 'filter']);
   const vbias = m.vbias === undefined || !spec.vbias ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
   if (m.size === undefined) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
   const unit = m.size === undefined ? undefined : readSizeLayer(scope, m.size, [...path, 'size']);
@@ -203,5 +209,6 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   const mirror: TemplateMirror = { kind, name: head.name, type: head.type, input, devices, outputs, path };
   if (vbias !== undefined) mirror.vbias = vbias;
   if (design) mirror.design = design;
+  if (filter) mirror.filter = filter;
   return mirror;
 }

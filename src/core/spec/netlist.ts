@@ -2,6 +2,7 @@
  * `kind: netlist` → NetlistMirror. Node names are identifiers; `vdd`, `vss`, `gnd` and `0` are the
  * rails (any letter case), resolved to `vdd` / `vss`. A device's bulk defaults to its type's rail.
  */
+import { readResistorDrift } from './drift';
 import type { NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
   Polarity, SpecPath, Supplies } from '../types';
 import { SPEC_LIMITS } from '../defaults';
@@ -169,7 +170,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     use(uses, a, [...at, 'a'], true);
     use(uses, b, [...at, 'b'], true);
     if (a && b && a === b) sink.error('bad-value', `resistor \`${rn}\` has both ends on \`${a}\``, [...at, 'b']);
-    else if (a && b && ohms !== undefined) resistors.push({ name: rn, a, b, r: ohms });
+    else if (a && b && ohms !== undefined) resistors.push({ name: rn, a, b, r: ohms, ...readResistorDrift(scope, r, at) });
   }
 
   // Output: a free node that something connects to, not held by a voltage source.

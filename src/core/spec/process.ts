@@ -25,6 +25,9 @@ export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
   abeta: { q: 'lengthUnit', opts: { nonNegative: true } },
   lmin: { q: 'length', opts: { positive: true } },
   wmin: { q: 'length', opts: { positive: true } },
+  gn: { q: 'plain', opts: { positive: true } },
+  kf: { q: 'plain', opts: { nonNegative: true } },
+  cox: { q: 'capacitancePerArea', opts: { positive: true } },
 };
 
 export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as (keyof DeviceParams)[];
@@ -71,7 +74,7 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
     lambda: got.lambda ?? dd.lambda, gamma: got.gamma ?? dd.gamma, phi: got.phi ?? dd.phi,
     n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex,
   };
-  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
+  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin', 'gn', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
   return out;
 }
 
@@ -80,6 +83,7 @@ export interface ProcessRead {
   tnom: number;
   temperature: number;
   grid?: number;
+  trange?: [number, number];
   nmos?: DeviceParams;
   pmos?: DeviceParams;
   /** Polarities written in the spec (possibly with errors). */
@@ -103,6 +107,10 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const written = new Set<Polarity>();
   const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, ok: true };
   if (grid !== undefined) out.grid = grid;
+  if (p.trange !== undefined) {
+    const tr = readTrange(scope, p.trange, [...path, 'trange']);
+    if (tr) out.trange = tr;
+  }
   for (const type of ['nmos', 'pmos'] as const) {
     if (p[type] === undefined) continue;
     written.add(type);
@@ -111,6 +119,22 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   }
   out.ok = scope.sink.errorCount === before;
   return out;
+}
+
+/** `trange: [tmin, tmax]`, two temperatures, tmin below tmax. */
+function readTrange(scope: ValueScope, raw: unknown, path: SpecPath): [number, number] | undefined {
+  if (!Array.isArray(raw) || raw.length !== 2) {
+    scope.sink.error('wrong-type', '`trange` is a list of two temperatures [tmin, tmax]', path, undefined, 'type');
+    return undefined;
+  }
+  const lo = readTemperature(scope, raw[0], [...path, 0]);
+  const hi = readTemperature(scope, raw[1], [...path, 1]);
+  if (lo === undefined || hi === undefined) return undefined;
+  if (!(hi > lo)) {
+    scope.sink.error('bad-value', `\`trange\` must go from a lower to a higher temperature; got ${(lo - ZERO_CELSIUS).toFixed(2)} °C to ${(hi - ZERO_CELSIUS).toFixed(2)} °C`, path);
+    return undefined;
+  }
+  return [lo, hi];
 }
 
 export function readSupplies(scope: ValueScope, raw: unknown): Supplies | undefined {

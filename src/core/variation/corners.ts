@@ -44,6 +44,7 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
       temperature: corner.temperature ?? spec.process.temperature,
       nmos: shiftParams(spec.process.nmos, corner.nmos),
       pmos: shiftParams(spec.process.pmos, corner.pmos),
+      ...(corner.resistors ? { resistors: corner.resistors } : {}),
     },
     supplies: { vdd: corner.vdd ?? spec.supplies.vdd, vss: corner.vss ?? spec.supplies.vss },
   };
