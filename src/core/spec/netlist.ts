@@ -74,6 +74,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const sink = scope.sink;
   const before = sink.errorCount;
   for (const k of TEMPLATE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to template kinds; a netlist gives w, l and m per device`);
+  if (m.filter !== undefined) misplaced(sink, [...path, 'filter'], '`filter` applies to template kinds (the gate lines from the reference to the outputs)');
   const seen = new Map<string, string>();  // element name → its group, for duplicate-name
   const claim = (group: string, elem: string, at: SpecPath) => {
     const g = seen.get(elem);
