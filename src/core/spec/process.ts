@@ -72,9 +72,9 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
   const out: DeviceParams = {
     kp: got.kp, vt0: got.vt0,
     lambda: got.lambda ?? dd.lambda, gamma: got.gamma ?? dd.gamma, phi: got.phi ?? dd.phi,
-    n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex,
+    n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex, gn: got.gn ?? dd.gn,
   };
-  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin', 'gn', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
+  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
   return out;
 }
 
