@@ -6,6 +6,7 @@
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
 import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
+import { ZERO_CELSIUS } from '../defaults';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
 
@@ -23,6 +24,7 @@ const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"
 const esc = (s: string): string => s.replace(/[&<>"']/g, (c) => ESC[c] ?? c);
 const si = (v: number, unit: string, digits = 3): string => (Number.isFinite(v) ? formatSI(v, unit, digits) : v === Infinity ? `∞ ${unit}` : '—');
 const pct = (x: number, signed = false, digits = 3): string => (Number.isFinite(x) ? (signed ? formatSignedPercent(x, digits) : formatPercent(x, digits)) : '—');
+const ppm = (x: number): string => (Number.isFinite(x) ? `${x >= 0 ? '+' : '−'}${Math.abs(x).toPrecision(3)} ppm/°C` : '—');
 const plain = (x: number, digits = 5): string => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : '—');
 
 function table(caption: string, head: string[], rows: string[][], cls = ''): string {
@@ -59,6 +61,14 @@ function summaryRows(m: MirrorReport): string[][] {
   rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
     : `${si(m.compliance, 'V', 4)} (${m.type === 'nmos' ? 'works down to' : 'works up to'})`]);
   if (m.sigma !== undefined) rows.push(['σ(Iout)', `${pct(m.sigma)} (Pelgrom, 1σ)`]);
+  if (m.supplySensitivity !== undefined) rows.push(['Supply sensitivity', `${plain(m.supplySensitivity, 3)} ((vdd/Iout)·∂Iout/∂vdd)`]);
+  if (m.tc !== undefined) rows.push(['Temperature coefficient', `${ppm(m.tc)}${m.tcBox !== undefined ? ` (box ${ppm(m.tcBox)} over process.trange)` : ''}`]);
+  if (m.noise) {
+    const n = m.noise;
+    const shares = Object.entries(n.shares).sort((a, b) => b[1] - a[1]).map(([k, v]) => `${esc(k)} ${pct(v)}`).join(', ');
+    rows.push(['Noise', `${si(n.density, 'A/√Hz')} at ${si(n.f, 'Hz')} (${shares}); ${si(n.integrated, 'A')} rms over ${si(n.band[0], 'Hz')}…${si(n.band[1], 'Hz')}` +
+      `${n.corner !== undefined ? `; flicker corner ${si(n.corner, 'Hz')}` : ''}`]);
+  }
   if (m.vbias !== undefined) rows.push(['Vbias', `${si(m.vbias, 'V', 4)}${m.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
   return rows.map(([k, v]) => [esc(k), v]);
 }
@@ -91,6 +101,7 @@ function mirrorSection(m: MirrorReport, findings: Finding[]): string {
         points: m.curve.map((p) => ({ x: p.vout, y: p.rout, ok: p.converged })) }),
       '</div>');
   }
+  if (!m.beyondRails) out.push(...driftPlots(m));
   if (m.corners && m.corners.length > 0) {
     out.push(table(`Corners of ${m.name}`, ['Corner', 'Iout', 'Ratio', 'Error', 'Rout', 'Compliance', 'σ', 'Min margin'], m.corners.map((c) => (c.converged ? [
       esc(c.name), si(c.iout, 'A', 4), plain(c.ratio), pct(c.error, true), si(c.rout, 'Ω'), si(c.compliance, 'V', 4),
@@ -106,6 +117,29 @@ function mirrorSection(m: MirrorReport, findings: Finding[]): string {
   }
   out.push('</section>');
   return out.join('\n');
+}
+
+/** The noise density versus frequency (each element's part, the flicker corner) and Iout versus
+ *  temperature over process.trange, when the report carries them. */
+function driftPlots(m: MirrorReport): string[] {
+  const plots: string[] = [];
+  const sp = m.noise?.spectrum;
+  if (sp && sp.f.length > 1) {
+    const corner = m.noise!.corner;
+    plots.push(linePlotSvg({
+      title: `Noise density (A/√Hz) versus frequency — ${m.name}`, xUnit: 'Hz', yUnit: '', logX: true, logY: true,
+      points: sp.f.map((f, k) => ({ x: f, y: sp.total[k]!, ok: true })),
+      extra: Object.entries(sp.parts).map(([label, ys]) => ({ label, points: sp.f.map((f, k) => ({ x: f, y: ys[k]!, ok: true })) })),
+      marker: corner !== undefined ? { x: corner, label: 'flicker corner' } : undefined,
+    }));
+  }
+  if (m.drift && m.drift.length > 1) {
+    plots.push(linePlotSvg({
+      title: `Iout (A) versus temperature — ${m.name}`, xUnit: '°C', yUnit: '',
+      points: m.drift.map((p) => ({ x: p.t - ZERO_CELSIUS, y: p.iout, ok: p.converged })),
+    }));
+  }
+  return plots.length ? ['<div class="plots-static">', ...plots, '</div>'] : [];
 }
 
 /** The whole static body. */
