@@ -174,6 +174,18 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
       detail: m.vbiasPicked ? 'picked by qpoint' : 'from the spec' });
   }
+  if (m.supplySensitivity !== undefined) {
+    figures.push({ key: 'supplySensitivity', label: 'Supply sensitivity', value: formatNumber(m.supplySensitivity, 3), detail: '(vdd/Iout)·∂Iout/∂vdd' });
+  }
+  if (m.tc !== undefined) {
+    figures.push({ key: 'tc', label: 'TC', value: `${formatNumber(m.tc, 3)} ppm/°C`,
+      detail: m.tcBox !== undefined ? `box ${formatNumber(m.tcBox, 3)} ppm/°C over trange` : 'at the operating temperature' });
+  }
+  if (m.noise) {
+    const top = Object.entries(m.noise.shares).sort((a, b) => b[1] - a[1])[0];
+    figures.push({ key: 'noise', label: `Noise at ${formatSI(m.noise.f, 'Hz')}`, value: formatSI(m.noise.density, 'A/√Hz'),
+      detail: `${formatSI(m.noise.integrated, 'A')} rms in band${top ? ` · ${top[0]} ${formatPercent(top[1])}` : ''}` });
+  }
   return figures;
 }
 
