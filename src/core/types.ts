@@ -371,7 +371,8 @@ export interface MirrorReport {
   tc?: number;
   /** ppm/°C, (max − min)/(iout·Δt) over process.trange, from re-solves. */
   tcBox?: number;
-  /** Iout at temperatures across process.trange (re-solves), when process.trange is given. */
+  /** Iout at temperatures across process.trange (re-solves), when process.trange is given and
+   *  curves are requested (for plots). */
   drift?: TemperaturePoint[];
   noise?: NoiseReport;
   /** The requirements this output is checked against (design §2 `require`), for the panel and

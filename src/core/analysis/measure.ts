@@ -136,7 +136,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const trange = t.spec.process.trange;
   if (trange) {
     const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
-    base.drift = drift;
+    if (opts.curve) base.drift = drift;
     const box = boxCoefficient(drift, iout);
     if (box !== undefined) base.tcBox = box;
   }

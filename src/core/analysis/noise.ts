@@ -104,7 +104,8 @@ export function outputNoise(
   const s = psd(sources, transfer(f), f, parts);
   if (!Number.isFinite(s)) return undefined;
   const shares: Record<string, number> = {};
-  for (const [name, p] of parts) shares[name] = s > 0 ? p / s : 0;
+  // Elements that cannot reach this output (a bank's other outputs) are left out.
+  for (const [name, p] of parts) if (p > 0) shares[name] = s > 0 ? p / s : 0;
 
   let integrated: number;
   const [f1, f2] = band;
@@ -131,11 +132,11 @@ export function outputNoise(
     const fs = logGrid(f1, f2, DRIFT.spectrumPerDecade);
     const total: number[] = [];
     const byName: Record<string, number[]> = {};
-    for (const name of parts.keys()) byName[name] = [];
+    for (const name of Object.keys(shares)) byName[name] = [];
     for (const x of fs) {
       const pm = new Map<string, number>();
       total.push(Math.sqrt(psd(sources, transfer(x), x, pm)));
-      for (const [name, p] of pm) byName[name]!.push(Math.sqrt(p));
+      for (const [name, p] of pm) byName[name]?.push(Math.sqrt(p));
     }
     report.spectrum = { f: fs, total, parts: byName };
   }
