@@ -105,3 +105,9 @@ describe('spec findings at the narrowest range', () => {
     expect(p.parsed).toBe(false);
   });
 });
+
+test('a missing-key hint keeps its example whole: an "e.g." does not end the schema sentence', () => {
+  const text = withText('input: 10u', 'input: { i: 10u }');
+  const f = parseSpec(text).findings.find((x) => x.code === 'missing-key');
+  expect(f?.message).toContain('is missing `resistor` (Resistor from the input node to the opposite rail, Ω (e.g. `120k`))');
+});

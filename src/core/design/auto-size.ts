@@ -6,10 +6,12 @@
  * Currents a device is sized for:
  * - input-stack roles (ref, refc, in, bal): the input current, from the solve (so a resistor
  *   input is handled like an ideal one);
- * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin; without
- *   require.ratio it copies the reference's W/L per finger instead (the multiplier m carries
- *   the ratio, as with unit devices in a layout);
- * - the other output-branch roles (outc; out of a Wilson): the output current of the solve.
+ * - the output device of the mirror pair (out; diode in a Wilson): require.ratio × iin;
+ * - the other output-branch roles (outc; out of a Wilson): the output current of the solve;
+ * - without require.ratio, every output-side device that shares its gate with an input-side
+ *   device (out with ref, outc with refc, the balanced Wilson's out with bal) copies that
+ *   device's W/L per finger instead: one unit cell per matched pair, the multiplier m carries
+ *   the ratio, as with unit devices in a layout.
  * Length modulation is included: the model's closed form (DeviceModel.aspectForTarget) takes
  * (1 + λ·VDS) from the solved operating point, iterated to a fixed point, so with require.ratio
  * the computed sizes also cancel the VDS mismatch of the pair.
@@ -200,15 +202,19 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     s.planned = inputBranch.includes(s.role) ? iin : ratios[j] * iin;
     s.clm = 1;
   }
-  // Without require.ratio the output device of the pair copies the reference's W/L per finger
-  // (the multiplier m carries the ratio, as with unit devices in a layout).
-  const pairRef = KINDS[m.kind].pair.ref;
+  // Without require.ratio every output-branch device copies the W/L per finger of the input-side
+  // device whose gate it shares (one unit cell per matched pair, the multiplier m carries the
+  // ratio, as with unit devices in a layout): ref for out, refc for outc, bal for the balanced
+  // Wilson's out, in for the Wilson's diode. The input side meets the target at the input
+  // current; its copies differ from the target only by their own current's error.
+  const unitOf = unitCells(m.kind);
   const copiesRef = (s: Slot): Slot | undefined => {
-    if (s.role !== pairOut || (m.outputs[s.output ?? 0]?.require.ratio ?? 0) > 0) return undefined;
-    return slots.find((x) => x.role === pairRef && (x.output === undefined || x.output === s.output));
+    const source = unitOf.get(s.role);
+    if (source === undefined || (m.outputs[s.output ?? 0]?.require.ratio ?? 0) > 0) return undefined;
+    return slots.find((x) => x.role === source && (x.output === undefined || x.output === s.output));
   };
-  // Pair outputs last, so a copy sees this round's reference width.
-  const order = [...slots.filter((s) => s.role !== pairOut), ...slots.filter((s) => s.role === pairOut)];
+  // Copies last, so a copy sees this round's input-side width.
+  const order = [...slots.filter((s) => !unitOf.has(s.role)), ...slots.filter((s) => unitOf.has(s.role))];
   let sized = spec;
   for (let round = 0; round < MAX_ROUNDS; round++) {
     let change = 0;
@@ -261,6 +267,20 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
     if (s.size.auto?.w === true) s.size.w = quantizeSize(s.size.w, proc.grid, 'nearest');
   }
   return withSlots(spec, index, m, slots);
+}
+
+/** Output-side role → the input-side role whose unit cell it copies: the pair's output device
+ *  copies the pair's reference, and any other device copies the input-stack device whose gate
+ *  node it shares (the matched pairs of the kind's template). */
+function unitCells(kind: TemplateMirror['kind']): Map<string, string> {
+  const spec = KINDS[kind];
+  const cells = new Map<string, string>([[spec.pair.out, spec.pair.ref]]);
+  for (const [role, c] of Object.entries(spec.output)) {
+    if (cells.has(role)) continue;
+    const twin = spec.inputStack.find((r) => spec.reference[r]?.g === c.g);
+    if (twin !== undefined) cells.set(role, twin);
+  }
+  return cells;
 }
 
 /**

@@ -51,7 +51,8 @@ function shortHint(d: string | undefined): string {
   if (!d) return '';
   let hint = hints.get(d);
   if (hint === undefined) {
-    const s = d.split(/(?<=[.;])\s/)[0].replace(/[.;]$/, '');
+    // The first sentence; an abbreviation's full stop (e.g., i.e.) does not end it.
+    const s = d.split(/(?<!\b(?:e\.g|i\.e)\.)(?<=[.;])\s/)[0].replace(/[.;]$/, '');
     hint = s.length <= 70 ? ` (${s})` : '';
     hints.set(d, hint);  // one per schema description: bounded
   }
