@@ -24,7 +24,7 @@ const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"
 const esc = (s: string): string => s.replace(/[&<>"']/g, (c) => ESC[c] ?? c);
 const si = (v: number, unit: string, digits = 3): string => (Number.isFinite(v) ? formatSI(v, unit, digits) : v === Infinity ? `∞ ${unit}` : '—');
 const pct = (x: number, signed = false, digits = 3): string => (Number.isFinite(x) ? (signed ? formatSignedPercent(x, digits) : formatPercent(x, digits)) : '—');
-const ppm = (x: number): string => (Number.isFinite(x) ? `${x >= 0 ? '+' : '−'}${Math.abs(x).toPrecision(3)} ppm/°C` : '—');
+const ppm = (x: number): string => (Number.isFinite(x) ? `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C` : '—');
 const plain = (x: number, digits = 5): string => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : '—');
 
 function table(caption: string, head: string[], rows: string[][], cls = ''): string {

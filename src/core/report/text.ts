@@ -59,7 +59,7 @@ function driftLines(m: MirrorReport): string[] {
 }
 
 function ppm(x: number): string {
-  return `${x >= 0 ? '+' : '−'}${Math.abs(x).toPrecision(3)} ppm/°C`;
+  return `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 }
 
 function cornerLines(m: MirrorReport): string[] {

@@ -12,7 +12,7 @@ import { lengthenPlans, widenPlans } from '../plans';
 import { replaceValueEdit } from '../../spec/edit';
 import { code, formatPercent, formatSI } from '../../text/format';
 
-const ppm = (x: number): string => `${x >= 0 ? '+' : '−'}${Math.abs(x).toPrecision(3)} ppm/°C`;
+const ppm = (x: number): string => `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 
 /** Where a share's element is written: a device's size, the input resistor, the filter. */
 function elementRange(rc: RuleContext, site: Site, name: string): { path: SpecPath; range: Range } {
