@@ -9,7 +9,7 @@ import { apply, check, header, owner, preferred, textOf } from '../rules/helpers
 const FLICKER = ', kf: 1e-25, cox: 8.5m';
 /** The Halden header with flicker constants on nmos and an `analysis:` block (lines 0–8). */
 function text(lines: string[], analysis = '{ noise: { f: 1k } }'): string {
-  const head = header().replace(/(  nmos: \{[^}]*)\}/, `$1${FLICKER} }`).replace('mirrors:', `analysis: ${analysis}\nmirrors:`);
+  const head = header().replace(/( {2}nmos: \{[^}]*)\}/, `$1${FLICKER} }`).replace('mirrors:', `analysis: ${analysis}\nmirrors:`);
   return `${head}\n${lines.join('\n')}\n`;
 }
 

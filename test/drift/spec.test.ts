@@ -13,7 +13,7 @@ const withProcess = (extra: string, tail = ''): string => `${header(1.8, extra)}
 describe('reading', () => {
   it('trange, analysis.noise, gn/kf/cox, the filter, resistor tc1 and tolerance, the new requirements', () => {
     const text = withProcess('\n  trange: [-40 C, 125 C]', 'analysis: { noise: { f: 10k, band: [10, 1M] } }\n')
-      .replace(/(  nmos: \{[^}]*)\}/, '$1, gn: 1, kf: 1e-25, cox: 8.5 mF/m² }');
+      .replace(/( {2}nmos: \{[^}]*)\}/, '$1, gn: 1, kf: 1e-25, cox: 8.5 mF/m² }');
     const p = parseSpec(text, 'a.bias.yaml');
     expect(p.findings.filter((f) => f.severity === 'error')).toEqual([]);
     const s = p.spec!;
