@@ -21,7 +21,13 @@ import {
 import { linspace, sweepCircuit } from './sweep';
 import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias';
 
-export interface MeasureOptions { curve?: boolean; curvePoints?: number }
+export interface MeasureOptions {
+  curve?: boolean; curvePoints?: number;
+  /** false: leave out supply sensitivity, tc, tcBox and noise (a corner's table shows none);
+   *  'required': the linearized figures and noise, but tcBox (eleven re-solves) only for an
+   *  output that requires a tc — what a fix search or its verification needs. */
+  drift?: boolean | 'required';
+}
 
 /** Which output a report is about: what differs between reports of identical mirrors. */
 export interface ReportIdentity {
@@ -116,6 +122,8 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     base.rout = g !== 0 ? 1 / g : Infinity;
     const sigma = outputSigma(mc.circuit.devices, outputSensitivities(mc.circuit, mc.ws, lam), iout);
     if (sigma !== undefined) base.sigma = sigma;
+  }
+  if (lam && opts.drift !== false) {
     const s = supplySensitivity(mc, lam, iout, t.spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;
     const tc = temperatureCoefficient(t, mc, lam, iout, vout, vb?.vbias);
@@ -134,7 +142,8 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
   const trange = t.spec.process.trange;
-  if (trange) {
+  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
+  if (trange && opts.drift !== false && (opts.drift !== 'required' || req?.tc !== undefined)) {
     const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
     if (opts.curve) base.drift = drift;
     const box = boxCoefficient(drift, iout);

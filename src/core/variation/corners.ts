@@ -57,7 +57,7 @@ export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   if (!mirror) return results;
   for (const corner of spec.corners) {
     const cs = applyCorner(spec, corner);
-    const r = measureMirror({ spec: cs, mirror, outputIndex });
+    const r = measureMirror({ spec: cs, mirror, outputIndex }, { drift: false });
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;
     for (const d of r.devices) {
