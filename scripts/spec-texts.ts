@@ -83,3 +83,26 @@ export function faultyExampleText(example: string): string {
   t = swap(t, /vbias: [0-9.]+/, 'vbias: 0.62');
   return t;
 }
+
+/**
+ * A bias network of `n` simple mirrors as a binary tree, polarity alternating level by level:
+ * every mirror is a two-output bank whose outputs feed the next level's mirrors; the last level's
+ * outputs are leaves held at their own voltage. With `linked: false` the same mirrors are
+ * written unlinked: each with the ideal input current it gets in the tree and its outputs held
+ * at a fixed voltage (the CLI's cost of the same mirrors without a network).
+ */
+export function networkTreeText(n: number, opts: { linked?: boolean } = {}): string {
+  const linked = opts.linked !== false;
+  const lines: string[] = [HALDEN_HEADER];
+  for (let i = 0; i < n; i++) {
+    const level = Math.floor(Math.log2(i + 1));
+    const type = level % 2 === 0 ? 'nmos' : 'pmos';
+    const size = type === 'nmos' ? '{ w: 8u, l: 4u }' : '{ w: 32u, l: 4u }';
+    const parent = (i - 1) >> 1;
+    const input = i === 0 || !linked ? '10u' : `{ from: t${parent}.${i % 2 === 1 ? 'a' : 'b'} }`;
+    const leafV = type === 'nmos' ? 0.9 : 0.9;
+    const out = (k: number) => (2 * i + 1 + k < n && linked ? `{ name: ${k === 0 ? 'a' : 'b'} }` : `{ name: ${k === 0 ? 'a' : 'b'}, output: { v: ${leafV} } }`);
+    lines.push(`  - { name: t${i}, kind: simple, type: ${type}, input: ${input}, size: ${size}, outputs: [${out(0)}, ${out(1)}] }`);
+  }
+  return lines.join('\n') + '\n';
+}

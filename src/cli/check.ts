@@ -28,7 +28,7 @@ export function runCheck(c: CheckCommand): number {
     reports.push(report);
   }
   if (c.format === 'json') {
-    const files = reports.map((r) => ({ file: r.file, parsed: r.parsed, title: r.title, mirrors: r.mirrors, findings: r.findings }));
+    const files = reports.map((r) => ({ file: r.file, parsed: r.parsed, title: r.title, mirrors: r.mirrors, findings: r.findings, ...(r.networks ? { networks: r.networks } : {}) }));
     process.stdout.write(JSON.stringify({ format: 1, tool: { name: 'qpoint', version: VERSION }, files }, null, 2) + '\n');
   } else if (c.format === 'sarif') {
     process.stdout.write(JSON.stringify(toSarif(reports, { version: VERSION, rulesDoc: DOCS_URL }), null, 2) + '\n');

@@ -16,6 +16,8 @@ import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
 import { mirrorAt } from './mirror-at';
+import { attachNetworks } from './network/report';
+import { networkFindings } from './network/findings';
 
 export interface AnalyzeOptions {
   /** Compute Iout/Rout versus Vout for plots (the panel and the HTML report). */
@@ -30,6 +32,8 @@ export interface AnalyzeOptions {
   anchors?: boolean;
   /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
   cornerFixes?: boolean;
+  /** Fixes for `link-saturation`, each verified by analysing the edited text (default true). */
+  linkFixes?: boolean;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -50,7 +54,8 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
     }
     const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
-    const mirrors: MirrorReport[] = attachVariation(spec, solved, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
+    const net = attachNetworks(spec, solved);
+    const mirrors: MirrorReport[] = attachVariation(spec, net.reports, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     let findings: Finding[] = [
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
@@ -58,6 +63,11 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
+    if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
+      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const reanalyze = opts.linkFixes === false ? undefined : (t: string) => analyzeText(t, file, again);
+      findings.push(...networkFindings(parsed, spec, mirrors, net.networks, findings, reanalyze));
+    }
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
       const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
@@ -68,6 +78,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       limits: { error: spec.limits.error, margin: spec.limits.margin },
     };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
+    if (net.networks.length > 0) report.networks = net.networks;
     return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.

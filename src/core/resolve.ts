@@ -7,6 +7,7 @@
 import type { Limits, ResolvedSpec } from './types';
 import { parseSpec, type ParsedSpec } from './spec/index';
 import { applyDesignTargets, type SizedDevice } from './design/auto-size';
+import { provisionalLinks, solveNetworks } from './network/index';
 
 export interface ResolveOptions {
   /** Fallbacks for limits the spec leaves unset (the editor's `qpoint.limits.margin`). */
@@ -25,8 +26,10 @@ export interface ResolvedText {
 export function resolveText(text: string, file?: string, opts: ResolveOptions = {}): ResolvedText {
   const parsed = parseSpec(text, file);
   if (!parsed.spec) return { parsed, sized: [] };
-  const { spec, sized } = applyDesignTargets(withLimits(parsed, parsed.spec, opts));
-  return { parsed: { ...parsed, spec }, sized };
+  // Linked inputs start from their intended currents; once sized, each linked group is solved
+  // as one circuit and its mirrors handed on at that solution (network/).
+  const { spec, sized } = applyDesignTargets(provisionalLinks(withLimits(parsed, parsed.spec, opts)));
+  return { parsed: { ...parsed, spec: solveNetworks(spec) }, sized };
 }
 
 /** The editor may supply a default margin; a margin written in the spec always wins. */

@@ -92,6 +92,8 @@ export interface Limits {
   /** relative: allowed total (systematic + random) ratio deviation of one Monte Carlo sample;
    *  the Monte Carlo yield counts the samples within it. */
   tolerance: number;
+  /** A, optional budget for the current the whole spec draws from the supply (`supply-budget`). */
+  supplyCurrent?: number;
 }
 
 export type BulkTie = 'rail' | 'source';
@@ -108,7 +110,21 @@ export interface DeviceSize {
 
 export type InputSource =
   | { kind: 'current'; i: number }            // A, ideal
-  | ({ kind: 'resistor'; r: number } & ResistorDrift);  // Ω at tnom, to the opposite rail
+  | ({ kind: 'resistor'; r: number } & ResistorDrift)  // Ω at tnom, to the opposite rail
+  | LinkInput;                                // fed by another mirror's output (design §9.1)
+
+/** `input: { from: PATH }`: this mirror's input node is the named output's node. `i` is the current
+ *  that arrives (A): the intended current until the network is solved (src/core/network/), the
+ *  solved link current after; a mirror measured alone sees it as an ideal input. */
+export interface LinkInput {
+  kind: 'link';
+  /** The path as written: `mirror` or `mirror.output`. */
+  from: string;
+  /** File index of the feeding mirror and the index of its output. */
+  mirror: number;
+  output: number;
+  i: number;
+}
 
 /** A resistor's temperature coefficient and tolerance (design §12, §14). */
 export interface ResistorDrift {
@@ -161,6 +177,9 @@ export interface MirrorOutput {
   require: Requirements;
   /** ['mirrors', i] or ['mirrors', i, 'outputs', j]. */
   path: SpecPath;
+  /** File index of the mirror whose input this output feeds; its `output.v` is then the solved
+   *  node voltage (the supplies' midpoint until the network is solved), not a written one. */
+  feeds?: number;
 }
 
 export interface TemplateMirror {
@@ -234,6 +253,38 @@ export interface ResolvedSpec {
   corners: CornerSpec[];
   /** Absent: DEFAULTS.noise. */
   analysis?: AnalysisSpec;
+  /** Linked groups of mirrors, solved as one circuit each (src/core/network/); absent when the
+   *  spec has no links. */
+  networks?: SolvedNetwork[];
+}
+
+/** One connected group of linked mirrors after its joint solve. */
+export interface SolvedNetwork {
+  /** File index of the root mirror (its input is a current or a resistor) and of every member,
+   *  root first, each after the mirror that feeds it. */
+  root: number;
+  members: number[];
+  converged: boolean;
+  solveNote?: string;
+  /** A, the root's input current at the joint solution. */
+  rootCurrent: number;
+  /** A, the current each supply delivers, each leaf output's current counted as flowing
+   *  between the rails through its load. */
+  supplyCurrent: { vdd: number; vss: number };
+  /** W. */
+  power: number;
+  /** Per output of every member, by `mirrorIndex:outputIndex`. */
+  outputs: Record<string, SolvedNetworkOutput>;
+}
+
+export interface SolvedNetworkOutput {
+  /** A, the output's current in the joint circuit. */
+  i: number;
+  /** V, the solved voltage of a linked output's node. */
+  v?: number;
+  /** Relative 1σ of the output's current from every device on its path, joint linearized
+   *  circuit (leaf outputs); absent when the process has no Pelgrom coefficients. */
+  chainSigma?: number;
 }
 
 // ───────────────────────────── reports ─────────────────────────────
@@ -378,6 +429,24 @@ export interface MirrorReport {
   /** The requirements this output is checked against (design §2 `require`), for the panel and
    *  reports; whether each is met follows from the findings on this output. */
   require?: Requirements;
+  // ── bias networks (design §9.3): present on outputs of linked mirrors ──
+  /** The mirror this output feeds (its name). */
+  feeds?: string;
+  /** The output feeding this mirror's input, as `mirror` or `mirror.output` (report name). */
+  fedBy?: string;
+  /** A, the root current times the ideal ratios along the path (a resistor-fed root starts from
+   *  its solved input current). */
+  intended?: number;
+  /** iout/intended − 1: every stage's systematic error compounded. */
+  chainError?: number;
+  /** Relative 1σ of iout from every device on the path from the root. */
+  chainSigma?: number;
+  /** V, the solved node voltage of a linked output (the fed mirror's input node). */
+  linkV?: number;
+  /** V, how far linkV lies inside the output's own compliance limit (< 0: out of saturation). */
+  headroom?: number;
+  /** The root mirror's name of the network this output belongs to. */
+  network?: string;
 }
 
 /** Where a mirror, output or device sits in the source, for hover and the panel's reveal. */
@@ -406,6 +475,26 @@ export interface FileReport {
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];
+  /** Linked groups of mirrors (design §9.3), root first; absent without links. */
+  networks?: NetworkReport[];
+}
+
+/** One bias network: a root and the mirrors it feeds, solved as one circuit. */
+export interface NetworkReport {
+  /** Root mirror's name and file index. */
+  root: string;
+  rootIndex: number;
+  /** Member mirrors' names, root first, each after the mirror feeding it. */
+  members: string[];
+  converged: boolean;
+  /** A, the current drawn from each supply (each leaf's current counted through its load). */
+  supplyCurrent: { vdd: number; vss: number };
+  /** W. */
+  power: number;
+  /** Report names (`MirrorReport.name`) of the leaf outputs, and the one with the largest
+   *  |chainError|. */
+  leaves: string[];
+  worstLeaf?: string;
 }
 
 /** A mirror set aside for its errors: its place in the file and where its name is written. */

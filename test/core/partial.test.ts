@@ -39,14 +39,15 @@ mirrors:
 describe('a typo in one mirror', () => {
   it('leaves that mirror out and solves the others with the same figures', () => {
     const clean = analyzeText(example, 'sensor-afe.bias.yaml');
-    const typo = analyzeText(replaceOnce(example, 'kind: wilson\n', 'kind: wilsn\n'), 'sensor-afe.bias.yaml');
+    // A mirror outside the example's bias network: a linked one would also change what feeds it.
+    const typo = analyzeText(replaceOnce(example, 'kind: wilson-balanced\n', 'kind: wilson-balancd\n'), 'sensor-afe.bias.yaml');
     const err = typo.findings.find((f) => f.severity === 'error');
-    expect(err?.path.slice(0, 2)).toEqual(['mirrors', 3]);
+    expect(err?.path.slice(0, 2)).toEqual(['mirrors', 6]);
     // Set aside with where its `name` is written (the editor's CodeLens on it goes there).
-    expect(typo.withheld).toEqual([{ index: 3, name: 'wilson_ref', range: typo.withheld![0]!.range }]);
-    expect(typo.withheld![0]!.range.start.line).toBe(example.split('\n').findIndex((l) => l.includes('name: wilson_ref')));
+    expect(typo.withheld).toEqual([{ index: 6, name: 'wilson_p', range: typo.withheld![0]!.range }]);
+    expect(typo.withheld![0]!.range.start.line).toBe(example.split('\n').findIndex((l) => l.includes('name: wilson_p')));
     expect(clean.withheld).toBeUndefined();
-    expect(typo.mirrors.map((m) => m.name)).toEqual(clean.mirrors.map((m) => m.name).filter((n) => n !== 'wilson_ref'));
+    expect(typo.mirrors.map((m) => m.name)).toEqual(clean.mirrors.map((m) => m.name).filter((n) => n !== 'wilson_p'));
     for (const r of typo.mirrors) {
       const same = clean.mirrors.find((c) => c.name === r.name)!;
       expect(r.iout).toBe(same.iout);
@@ -54,7 +55,7 @@ describe('a typo in one mirror', () => {
       expect(r.path).toEqual(same.path);
     }
     // Hover anchors still point at the right mirrors (paths are file indices, not list positions).
-    expect(typo.anchors.find((a) => a.kind === 'mirror' && a.report === 'wilson_p')?.path).toEqual(['mirrors', 4]);
+    expect(typo.anchors.find((a) => a.kind === 'mirror' && a.report === 'res_bias')?.path).toEqual(['mirrors', 7]);
   });
 
   it('keeps the other mirrors\' design findings, without fixes until the error is fixed', () => {

@@ -1,13 +1,14 @@
 /** Shared pieces of the rules tests: the parse → solve → rules pipeline and the Halden 180 header. */
 import type { Finding, Fix, Range } from '../../src/core/types';
-import { parseSpec } from '../../src/core/spec/index';
+import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import { runRules } from '../../src/core/rules/index';
 import { applyEdits } from '../../src/core/text/edits';
 
 /** Spec findings plus design findings, as the front ends get them. */
 export function check(text: string, file = 'case.bias.yaml'): { findings: Finding[]; parsed: boolean; specErrors: Finding[] } {
-  const parsed = parseSpec(text, file);
+  // Resolved as the front ends resolve it: design targets sized, linked groups solved.
+  const { parsed } = resolveText(text, file);
   const specErrors = parsed.findings.filter((f) => f.severity === 'error');
   if (!parsed.spec) return { findings: parsed.findings, parsed: parsed.parsed, specErrors };
   return { findings: [...parsed.findings, ...runRules(parsed, analyzeSpec(parsed.spec))], parsed: true, specErrors };

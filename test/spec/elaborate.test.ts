@@ -256,7 +256,7 @@ describe('the shipped example', () => {
     expect(p.findings).toEqual([]);
     const kinds = p.spec!.mirrors.map((m) => m.kind);
     expect(new Set(kinds)).toEqual(new Set(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist']));
-    const bank = p.spec!.mirrors[0] as TemplateMirror;
+    const bank = p.spec!.mirrors.find((m) => m.name === 'tail') as TemplateMirror;
     expect(bank.outputs).toHaveLength(3);
     expect(p.spec!.process.nmos.avt).toBeCloseTo(4e-9, 20);
     expect(p.spec!.process.nmos.abeta).toBeCloseTo(1e-8, 20);

@@ -39,36 +39,68 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   return Number.isFinite(r) ? r : undefined;
 }
 
-export function buildTemplate(
-  spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
-  vbias: number | undefined, perturb?: PerturbationLike,
-): MirrorCircuit {
+/** How one template mirror is wired into a builder that may hold other mirrors too (a linked
+ *  network, src/core/network/): node and device names carry `ns` in front, and a linked input or
+ *  output uses the shared node named by the network instead of an input source or a held voltage. */
+export interface TemplateWiring {
+  /** Prefix of every node and device name of this mirror ('' when it is alone). */
+  ns: string;
+  /** The measured output (its devices count for compliance and the report); −1: none. */
+  outputIndex: number;
+  /** V, held voltage of the measured output. */
+  vout: number;
+  vbias: number | undefined;
+  perturb?: PerturbationLike;
+  /** The network's node that is this mirror's input node (no input source is added then). */
+  inputNode?: string;
+  /** The network's free node an output drives (a linked output), else undefined: held at its v. */
+  outNode?: (j: number) => string | undefined;
+}
+
+/** What wiring a mirror left in the builder, for the guess and the measurements. */
+export interface WiredTemplate {
+  /** Node names of each output, of each output's cascode node, and of the input. */
+  outNodes: string[];
+  cNodes: (string | undefined)[];
+  inputNode: string;
+  /** Local device names (without `ns`) in the order they were added, and their roles' indices
+   *  (relative to the first device this mirror added). */
+  deviceNames: string[];
+  byRole: Record<string, number>;
+  /** The input resistor, when the input is one. */
+  inputResistor?: ReturnType<CircuitBuilder['resistor']>;
+}
+
+/** Add mirror `m`'s devices (and its input source unless linked) to `b`; the rails are held
+ *  by the caller. */
+export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateMirror, w: TemplateWiring): WiredTemplate {
   const { vdd, vss } = spec.supplies;
   const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
-  const rail = sign > 0 ? vss : vdd;
-  const other = sign > 0 ? vdd : vss;
   const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
-  const b = new CircuitBuilder();
-  b.hold('vdd', vdd);
-  b.hold('vss', vss);
+  const ns = w.ns;
   const R = sign > 0 ? 'vss' : 'vdd';
-  if (kind.vbias) b.hold('vbias', vbias ?? 0.5 * (vdd + vss));
+  const vbiasName = `${ns}vbias`;
+  if (kind.vbias) b.hold(vbiasName, w.vbias ?? 0.5 * (vdd + vss));
 
-  let count = 0;
+  const names: string[] = [];
   const byRole: Record<string, number> = {};
   const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean): number => {
     const problem = deviceProblem(params, size);
-    if (problem) b.problems.push(`device ${name}: ${problem}`);
-    const dev = prepareDevice(params, size, m.type, proc, perturb?.dvt[name] ?? 0, perturb?.dbeta[name] ?? 0);
+    if (problem) b.problems.push(`device ${ns}${name}: ${problem}`);
+    const full = `${ns}${name}`;
+    const dev = prepareDevice(params, size, m.type, proc, w.perturb?.dvt[full] ?? 0, w.perturb?.dbeta[full] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    b.mos({ name, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
-    return count++;   // index into circuit.devices
+    b.mos({ name: full, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
+    names.push(name);
+    return names.length - 1;
   };
 
-  const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? 'vbias' : b.node(n));
+  const input = kind.inputNode;
+  const inputNode = w.inputNode ?? `${ns}${input}`;
+  const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? vbiasName : n === input ? b.node(inputNode) : b.node(`${ns}${n}`));
   for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
@@ -77,59 +109,75 @@ export function buildTemplate(
 
   // A gate filter: each reference node an output gate sits on reaches those gates through r,
   // with c from the filtered line to the mirror's own rail (no DC current flows in r).
-  const filtered = new Map<string, string>();
-  const gateLine = (n: string): string => {
-    if (!m.filter) return n;
-    let f = filtered.get(n);
-    if (f === undefined) {
-      f = b.node(`${n}${FILTERED}`);
-      filtered.set(n, f);
-    }
-    return f;
-  };
+  // Kind-local names of the reference nodes an output gate sits on (their filtered twins are
+  // `<node>~f`, mapped like every other node).
+  const filtered = new Set<string>();
   const outNodes: string[] = [];
   const cNodes: (string | undefined)[] = [];
   m.outputs.forEach((o: MirrorOutput, j) => {
     const prefix = bank ? `${o.name}.` : '';
-    const outName = `${prefix}out`;
-    b.hold(outName, j === outputIndex ? vout : o.output.v);
+    const linked = w.outNode?.(j);
+    const outName = linked ?? `${ns}${prefix}out`;
+    if (linked !== undefined) b.node(linked);
+    else b.hold(outName, j === w.outputIndex ? w.vout : o.output.v);
     outNodes.push(outName);
-    cNodes.push(Object.values(kind.output).some((x) => x.d === 'C' || x.s === 'C') ? `${prefix}c` : undefined);
+    cNodes.push(Object.values(kind.output).some((x) => x.d === 'C' || x.s === 'C') ? `${ns}${prefix}c` : undefined);
     const map = (n: string): string =>
-      n === 'O' ? outName : n === 'C' ? b.node(`${prefix}c`) : refMap(n);
+      n === 'O' ? outName : n === 'C' ? b.node(`${ns}${prefix}c`) : refMap(n);
     for (const role of kind.outputRoles) {
       const conn = kind.output[role];
       const size = o.devices[role] ?? m.devices[role];
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
       const g = conn.g;
-      const onLine = g !== 'O' && g !== 'C' && g !== 'R' && g !== 'vbias';
-      const wired = onLine && m.filter ? { ...conn, g: `${g}${FILTERED}` } : conn;
-      if (onLine) gateLine(g);
-      const k = add(`${prefix}${role}`, role, size, wired, map, j === outputIndex);
-      if (j === outputIndex) byRole[role] = k;
+      const onLine = m.filter !== undefined && g !== 'O' && g !== 'C' && g !== 'R' && g !== 'vbias';
+      if (onLine) filtered.add(g);
+      const wired = onLine ? { ...conn, g: `${g}${FILTERED}` } : conn;
+      const k = add(`${prefix}${role}`, role, size, wired, map, j === w.outputIndex);
+      if (j === w.outputIndex) byRole[role] = k;
     }
   });
 
   if (m.filter) {
-    const lines = [...filtered.keys()];
+    const lines = [...filtered];
     for (const n of lines) {
-      const name = lines.length === 1 ? 'filter' : `filter.${n}`;
-      b.resistor(name, n, filtered.get(n)!, m.filter.r);
-      b.capacitor(`${name}.c`, filtered.get(n)!, R, m.filter.c);
+      const name = `${ns}${lines.length === 1 ? 'filter' : `filter.${n}`}`;
+      b.resistor(name, refMap(n), refMap(`${n}${FILTERED}`), m.filter.r);
+      b.capacitor(`${name}.c`, refMap(`${n}${FILTERED}`), R, m.filter.c);
     }
   }
-  const input = kind.inputNode;
-  let iin: (v: Float64Array) => number;
-  if (m.input.kind === 'current') {
+
+  const out: WiredTemplate = { outNodes, cNodes, inputNode, deviceNames: names, byRole };
+  if (w.inputNode !== undefined) return out;
+  if (m.input.kind === 'current' || m.input.kind === 'link') {
+    // A linked input measured alone is the current that arrives (network/ solves it).
     const i = m.input.i;
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
-    if (sign > 0) b.current('input', 'vdd', input, i); else b.current('input', input, 'vss', i);
-    iin = () => i;
+    if (sign > 0) b.current(`${ns}input`, 'vdd', inputNode, i); else b.current(`${ns}input`, inputNode, 'vss', i);
   } else {
     const ohms = resistanceAt(m.input.r, m.input, spec.process);
-    const r = sign > 0 ? b.resistor('input', 'vdd', input, ohms) : b.resistor('input', input, 'vss', ohms);
-    iin = (v) => resistorCurrent(r, v);
+    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms) : b.resistor(`${ns}input`, inputNode, 'vss', ohms);
   }
+  return out;
+}
+
+export function buildTemplate(
+  spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
+  vbias: number | undefined, perturb?: PerturbationLike,
+): MirrorCircuit {
+  const { vdd, vss } = spec.supplies;
+  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const rail = sign > 0 ? vss : vdd;
+  const other = sign > 0 ? vdd : vss;
+  const bank = isBank(m);
+  const kind = KINDS[m.kind];
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
+  const { outNodes, cNodes, byRole } = wired;
+  const input = kind.inputNode;
+  const res = wired.inputResistor;
+  const iin: (v: Float64Array) => number = res ? (v) => resistorCurrent(res, v) : () => (m.input.kind === 'resistor' ? NaN : m.input.i);
   const measuredOut = outNodes[outputIndex] ?? 'out';
   if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
   const c = b.build(measuredOut, sign, vss, vdd);
@@ -151,7 +199,7 @@ export function buildTemplate(
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
     const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
-    if (m.input.kind === 'current') {
+    if (m.input.kind === 'current' || m.input.kind === 'link') {
       solveFor(m.input.i);
     } else {
       // Bisection on the input current: I·R = span − u_in(I).
@@ -181,7 +229,7 @@ export function buildTemplate(
   };
 }
 
-interface GuessContext {
+export interface GuessContext {
   m: TemplateMirror;
   devByName: Map<string, MosInstance>;
   bank: boolean;
@@ -201,7 +249,7 @@ function drive(x: MosInstance | undefined, i: number, vsb: number, vds: number):
 }
 
 /** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
-function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
+export function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
   let v = drive(x, i, vsb, 0);
   v = drive(x, i, vsb, v);
   return drive(x, i, vsb, v);
@@ -217,7 +265,7 @@ function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrai
 }
 
 /** Polarity-frame node voltages assuming every device saturated. */
-function guessNodes(g: GuessContext, i: number): void {
+export function guessNodes(g: GuessContext, i: number): void {
   const { m, devByName, ratios, uOuts, uVb, cNodes, u } = g;
   const dev = (name: string): MosInstance | undefined => devByName.get(name);
   const prefix = (j: number): string => (g.bank ? `${m.outputs[j]!.name}.` : '');

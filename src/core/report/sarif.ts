@@ -4,7 +4,7 @@
  * units as the core's LSP ranges, so the conversion is +1 on both; endColumn is the column after
  * the last character, which is exactly LSP's exclusive end + 1.
  */
-import type { Finding, Range, Severity, TextEdit } from '../types';
+import type { Finding, NetworkReport, Range, Severity, TextEdit } from '../types';
 import { DESIGN_RULES, type RuleInfo } from '../rules/catalog';
 
 export interface SarifTool {
@@ -22,7 +22,7 @@ const LEVEL: Record<Severity, 'error' | 'warning' | 'note'> = { error: 'error', 
 
 export const SARIF_SCHEMA_URI = 'https://json.schemastore.org/sarif-2.1.0.json';
 
-export function toSarif(files: { file: string; findings: Finding[] }[], tool: SarifTool): object {
+export function toSarif(files: { file: string; findings: Finding[]; networks?: NetworkReport[] }[], tool: SarifTool): object {
   const known = new Map<string, RuleInfo>();
   for (const r of [...DESIGN_RULES, ...(tool.rules ?? [])]) known.set(r.code, r);
   // The rule table: every design check, plus every other code that occurs in this log.
@@ -36,10 +36,13 @@ export function toSarif(files: { file: string; findings: Finding[] }[], tool: Sa
   const results = files.flatMap((f, fileIndex) =>
     f.findings.map((finding) => sarifResult(finding, toUri(f.file), fileIndex, ruleIndex.get(finding.code) ?? 0)));
 
+  // Bias networks (design §9.3) ride along as the run's properties: root, members, supply current.
+  const networks = files.flatMap((f) => (f.networks ?? []).map((n) => ({ file: toUri(f.file), ...n })));
   return {
     $schema: SARIF_SCHEMA_URI,
     version: '2.1.0',
     runs: [{
+      ...(networks.length > 0 ? { properties: { networks } } : {}),
       tool: {
         driver: {
           name: 'qpoint',

@@ -70,6 +70,13 @@ function summaryRows(m: MirrorReport): string[][] {
       `${n.corner !== undefined ? `; flicker corner ${si(n.corner, 'Hz')}` : ''}`]);
   }
   if (m.vbias !== undefined) rows.push(['Vbias', `${si(m.vbias, 'V', 4)}${m.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
+  if (m.network !== undefined) {
+    rows.push(['Network', m.fedBy !== undefined ? `fed by ${esc(m.fedBy)} (network ${esc(m.network)})` : `root of ${esc(m.network)}`]);
+    if (m.feeds !== undefined) rows.push(['Feeds', `${esc(m.feeds)} at ${si(m.linkV ?? NaN, 'V', 4)}${m.headroom !== undefined ? ` (headroom ${si(m.headroom, 'V')} to the compliance limit)` : ''}`]);
+    if (m.intended !== undefined) rows.push(['Intended', si(m.intended, 'A', 4)]);
+    if (m.chainError !== undefined) rows.push(['Chain error', pct(m.chainError, true)]);
+    if (m.chainSigma !== undefined) rows.push(['Chain σ', `${pct(m.chainSigma)} (every device from the root, 1σ)`]);
+  }
   return rows.map(([k, v]) => [esc(k), v]);
 }
 
@@ -150,6 +157,11 @@ export function renderStaticReport(report: FileReport, stamp?: ReportStamp): str
     findingsTable(report.file, report.findings),
     ...report.mirrors.map((m) => mirrorSection(m, report.findings)),
   ];
+  if (report.networks?.length) {
+    parts.push(table('Bias networks', ['Root', 'Members', 'Supply current', 'Power', 'Worst leaf'], report.networks.map((n) => [
+      esc(n.root), esc(n.members.join(', ')), n.converged ? si(n.supplyCurrent.vdd, 'A', 4) : 'did not converge', si(n.power, 'W'), esc(n.worstLeaf ?? ''),
+    ]), 'networks'));
+  }
   if (report.withheld?.length) {
     parts.push(`<p class="note">Not solved until their errors are fixed: ${report.withheld.map((w) => esc(w.name ?? `mirror ${w.index + 1}`)).join(', ')}.</p>`);
   }

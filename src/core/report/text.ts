@@ -4,7 +4,7 @@
  * annotators link to). Every line passes through `escapeControls`: titles, names and messages
  * are the spec's text, and a YAML escape can put ESC, BEL or CR in them.
  */
-import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
+import type { DeviceReport, FileReport, Finding, MirrorReport, NetworkReport } from '../types';
 import { escapeControls, formatPercent, formatSI, formatSignedPercent } from '../text/format';
 
 export function findingLine(file: string, f: Finding): string {
@@ -16,6 +16,7 @@ export function renderText(report: FileReport, opts: { tables?: boolean } = {}):
   if (opts.tables !== false && report.mirrors.length > 0) {
     out.push(`${report.file}${report.title ? ` — ${report.title}` : ''}`);
     for (const m of report.mirrors) out.push(...mirrorBlock(m), '');
+    for (const n of report.networks ?? []) out.push(...networkBlock(n), '');
   }
   const lines = out.map(escapeControls);
   for (const f of report.findings) lines.push(findingLine(report.file, f));
@@ -36,7 +37,29 @@ function mirrorBlock(m: MirrorReport): string[] {
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const compliance = m.noCompliance ? `compliance none (${m.noCompliance.device} out of saturation at every Vout)` : `compliance ${si(m.compliance, 'V')}`;
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  ${compliance} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
-  return [head, line1, line2, ...driftLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
+  return [head, line1, line2, ...linkLines(m), ...driftLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
+}
+
+/** A network member's place in it (design §9.3): what feeds it, what it feeds, the chain figures. */
+function linkLines(m: MirrorReport): string[] {
+  if (m.network === undefined) return [];
+  const from = m.fedBy !== undefined ? `fed by ${m.fedBy}` : `root of ${m.network}`;
+  const to = m.feeds !== undefined
+    ? `  feeds ${m.feeds} at ${si(m.linkV ?? NaN, 'V')}${m.headroom !== undefined ? ` (headroom ${si(m.headroom, 'V')})` : ''}`
+    : '';
+  const chain = m.intended !== undefined ? `  intended ${si(m.intended, 'A')}` : '';
+  const err = m.chainError !== undefined ? `  chain error ${formatSignedPercent(m.chainError)}` : '';
+  const sigma = m.chainSigma !== undefined ? `  chain σ ${formatPercent(m.chainSigma)}` : '';
+  return [`  ${from}${to}${chain}${err}${sigma}`];
+}
+
+function networkBlock(n: NetworkReport): string[] {
+  const state = n.converged ? '' : '  (did not converge)';
+  const worst = n.worstLeaf !== undefined ? `  worst leaf ${n.worstLeaf}` : '';
+  return [
+    `network ${n.root}${state}: ${n.members.join(', ')}`,
+    `  supply ${si(n.supplyCurrent.vdd, 'A')}  power ${si(n.power, 'W')}  leaves ${n.leaves.join(', ')}${worst}`,
+  ];
 }
 
 /** Supply sensitivity, temperature coefficient and noise (design §12), when computed. */

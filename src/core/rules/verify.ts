@@ -14,6 +14,7 @@ import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
+import { carryLinks } from '../network/index';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -113,7 +114,9 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const spec = applyDesignTargets({ ...read, limits: rc.spec.limits }, i).spec;
+  // A linked mirror is re-checked as it was measured: with the current that arrives and its
+  // linked outputs at their solved voltages (the link fixes of network/ re-solve the network).
+  const spec = applyDesignTargets(carryLinks({ ...read, limits: rc.spec.limits }, rc.spec, i), i).spec;
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const untrusted = trusted(rc, spec, reports);

@@ -9,6 +9,7 @@ import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
+import { checkLinks, fedOutputs } from './links';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
 import { readLimits, readProcess, readSupplies } from './process';
@@ -50,6 +51,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
   const list = data.mirrors === undefined ? [] : Array.isArray(data.mirrors) ? data.mirrors : undefined;
   if (!list) sink.error('wrong-type', `\`mirrors\` must be a list; got ${typeName(data.mirrors)}`, ['mirrors'], undefined, 'type');
   const names = new Map<string, number>();
+  const fed = fedOutputs(data);
   (list ?? []).forEach((item: unknown, i: number) => {
     const path = ['mirrors', i];
     const known = reuse && i !== reuse.except && reuse.items[i] === item ? reuse.mirrors[i] : undefined;
@@ -86,9 +88,11 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     }
     if (!type) return;
     if (!used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, proc?.[type], supplies);
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, proc?.[type], supplies, (j) => fed.has(`${i}:${j}`));
     if (tm) mirrors.push(tm);
   });
+
+  const linked = checkLinks(data, mirrors, sink);
 
   // Each polarity a mirror uses must have parameters; an unused one borrows the other's so the
   // resolved process is complete (nothing reads it).
@@ -109,7 +113,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
   const corners = data.corners === undefined ? [] : readCorners(scope, data.corners, process, supplies);
   const analysis = readAnalysis(scope, data.analysis);
   if (!formatOk || !process || !supplies || !limits) return undefined;
-  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors, corners, analysis };
+  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors: linked, corners, analysis };
   if (title !== undefined) spec.title = title;
   return spec;
 }

@@ -21,6 +21,12 @@ export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): Inpu
     return undefined;
   }
   if (isRecord(raw)) {
+    if (raw.from !== undefined) {
+      const from = readString(scope.sink, raw.from, [...path, 'from']);
+      if (raw.resistor !== undefined) misplaced(scope.sink, [...path, 'resistor'], 'an input is either `from` (a link) or `resistor`, not both');
+      // Resolved against the other mirrors once all are read (spec/links.ts).
+      return from === undefined ? undefined : { kind: 'link', from, mirror: -1, output: -1, i: NaN };
+    }
     if (raw.resistor === undefined) {
       missing(scope.sink, path, 'resistor');
       return undefined;
@@ -117,8 +123,9 @@ function readRoleLayers(scope: ValueScope, raw: unknown, path: SpecPath, kind: T
   return layers;
 }
 
-function completeOutput(scope: ValueScope, own: Partial<OutputSpec> | undefined, inherited: Partial<OutputSpec> | undefined, path: SpecPath, ownWritten: boolean): OutputSpec | undefined {
-  const v = own?.v ?? inherited?.v;
+function completeOutput(scope: ValueScope, own: Partial<OutputSpec> | undefined, inherited: Partial<OutputSpec> | undefined, path: SpecPath, ownWritten: boolean, fed: boolean, supplies: Supplies | undefined): OutputSpec | undefined {
+  // A linked output's node is solved (network/): until then it sits at the supplies' midpoint.
+  const v = fed ? (supplies ? 0.5 * (supplies.vdd + supplies.vss) : 0) : own?.v ?? inherited?.v;
   if (v === undefined) {
     if (ownWritten) missing(scope.sink, [...path, 'output'], 'v', ' (nominal output voltage, V)');
     else missing(scope.sink, path, 'output', ' ({ v: nominal output voltage })');
@@ -132,7 +139,8 @@ function completeOutput(scope: ValueScope, own: Partial<OutputSpec> | undefined,
 
 export interface MirrorHeader { name: string; kind: TemplateKind; type: Polarity }
 
-export function readTemplateMirror(scope: ValueScope, m: Data, index: number, head: MirrorHeader, params: DeviceParams | undefined, supplies: Supplies | undefined): TemplateMirror | undefined {
+/** `fed(j)`: whether output j feeds another mirror's input (a link names it). */
+export function readTemplateMirror(scope: ValueScope, m: Data, index: number, head: MirrorHeader, params: DeviceParams | undefined, supplies: Supplies | undefined, fed: (j: number) => boolean = () => false): TemplateMirror | undefined {
   const path: SpecPath = ['mirrors', index];
   const { kind } = head;
   const sink = scope.sink;
@@ -183,7 +191,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
         }
         const layers = readRoleLayers(scope, o.devices, [...ip, 'devices'], kind, outRoles, true);
         const own = o.output === undefined ? undefined : readOutput(scope, o.output, [...ip, 'output'], supplies);
-        const output = completeOutput(scope, own, mirrorOutput, ip, o.output !== undefined);
+        const output = completeOutput(scope, own, mirrorOutput, ip, o.output !== undefined, fed(j), supplies);
         const req = o.require === undefined ? {} : readRequire(scope, o.require, [...ip, 'require']) ?? {};
         const devs: Record<string, DeviceSize> = {};
         for (const role of outRoles) {
@@ -194,7 +202,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
       });
     }
   } else {
-    const output = completeOutput(scope, mirrorOutput, undefined, path, m.output !== undefined);
+    const output = completeOutput(scope, mirrorOutput, undefined, path, m.output !== undefined, fed(0), supplies);
     const devs: Record<string, DeviceSize> = {};
     for (const role of outRoles) {
       const s = size(role);

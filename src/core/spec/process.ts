@@ -168,6 +168,11 @@ export function readLimits(scope: ValueScope, raw: unknown): Limits | undefined 
     : resolveNumber(scope, l.sourceHeadroom, [...path, 'sourceHeadroom'], 'voltage', { nonNegative: true });
   const tolerance = l.tolerance === undefined ? DEFAULTS.tolerance
     : resolveNumber(scope, l.tolerance, [...path, 'tolerance'], 'ratio', { positive: true });
+  const supplyCurrent = l.supplyCurrent === undefined ? undefined
+    : resolveNumber(scope, l.supplyCurrent, [...path, 'supplyCurrent'], 'current', { positive: true });
   if (margin === undefined || error === undefined || sourceHeadroom === undefined || tolerance === undefined) return undefined;
-  return { margin, error, sourceHeadroom, tolerance };
+  if (l.supplyCurrent !== undefined && supplyCurrent === undefined) return undefined;
+  const out: Limits = { margin, error, sourceHeadroom, tolerance };
+  if (supplyCurrent !== undefined) out.supplyCurrent = supplyCurrent;
+  return out;
 }

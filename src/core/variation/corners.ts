@@ -15,6 +15,20 @@
 import type { CornerResult, CornerSpec, DeviceParams, ParamDelta, ResolvedSpec } from '../types';
 import { measureMirror } from '../analysis/index';
 import { mirrorAt } from '../mirror-at';
+import { solveNetworks } from '../network/index';
+
+/** Corner specs with their linked groups re-solved, per spec and corner: every output of a
+ *  network sees the same corner solution of the whole group (design §9.1). */
+const cornerSpecs = new WeakMap<ResolvedSpec, Map<CornerSpec, ResolvedSpec>>();
+
+function cornerSpec(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpec {
+  if (!spec.networks) return applyCorner(spec, corner);
+  let byCorner = cornerSpecs.get(spec);
+  if (!byCorner) cornerSpecs.set(spec, byCorner = new Map());
+  let cs = byCorner.get(corner);
+  if (!cs) byCorner.set(corner, cs = solveNetworks(applyCorner(spec, corner)));
+  return cs;
+}
 
 type NumericKey = { [K in keyof DeviceParams]-?: DeviceParams[K] extends number | undefined ? K : never }[keyof DeviceParams];
 
@@ -53,10 +67,11 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
 /** Every corner of the spec solved for one output of one mirror, in the order of `corners:`. */
 export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): CornerResult[] {
   const results: CornerResult[] = [];
-  const mirror = mirrorAt(spec, mirrorIndex);
-  if (!mirror) return results;
+  if (!mirrorAt(spec, mirrorIndex)) return results;
   for (const corner of spec.corners) {
-    const cs = applyCorner(spec, corner);
+    const cs = cornerSpec(spec, corner);
+    const mirror = mirrorAt(cs, mirrorIndex);
+    if (!mirror) continue;
     const r = measureMirror({ spec: cs, mirror, outputIndex }, { drift: false });
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;

@@ -26,6 +26,7 @@ import { deviceSigmas, mismatchBase, setMismatch } from '../circuit/elements/dev
 import { buildMirror, nominalVout, outputCurrent, solveMirror, worstMargin } from '../analysis/solve';
 import type { MonteCarloResult, Requirements } from '../types';
 import { Xoshiro128 } from './prng';
+import { jointForOutput } from '../network/index';
 
 export interface MonteCarloOptions {
   /** Histogram bins (default: √N clamped to 10…60). */
@@ -48,8 +49,11 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     failures: { convergence: n, saturation: 0, ratio: 0, compliance: 0 },
   };
   let mc;
+  // A leaf of a bias network: the whole group is one circuit and every device on the path draws.
+  let joint: ReturnType<typeof jointForOutput>;
   try {
-    mc = buildMirror(ctx, nominalVout(ctx), vbiasFor(ctx)?.vbias);
+    joint = jointForOutput(ctx.spec, ctx.mirror.path[1] as number, ctx.outputIndex);
+    mc = joint?.mc ?? buildMirror(ctx, nominalVout(ctx), vbiasFor(ctx)?.vbias);
   } catch {
     return fail;
   }
@@ -73,7 +77,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
 
   const perturbed: Perturbed[] = [];
   c.devices.forEach((d, k) => {
-    if (!d.measured) return;
+    if (joint ? !joint.draw.has(k) : !d.measured) return;
     const s = deviceSigmas(d);
     if (!s || (s[0] === 0 && s[1] === 0)) return;
     perturbed.push({ k, base: mismatchBase(d), sVt: s[0], sBeta: s[1] });

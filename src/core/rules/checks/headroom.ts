@@ -27,7 +27,8 @@ export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: { rol
 
 export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const m = site.mirror;
-  if (m.kind === 'netlist') return [];
+  // A linked input hangs from another mirror's output, not a source: `link-saturation` judges it.
+  if (m.kind === 'netlist' || m.input.kind === 'link') return [];
   // The input belongs to the mirror: check it once, on its first output.
   if (site.outputIndex !== 0) return [];
   const need = rc.spec.limits.sourceHeadroom;

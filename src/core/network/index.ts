@@ -1,0 +1,201 @@
+/**
+ * Bias networks (design §9): every connected group of linked mirrors is solved as one circuit
+ * (joint.ts); then each member is handed on as the mirror it is at that solution — its input the
+ * current that arrives, each linked output held at the solved node voltage — so every later step
+ * (measurements, rules and their fixes, corners, the CLI's sweep) sees the operating point of the
+ * whole network, and measures each mirror's own figures (rout, compliance, sigma) there.
+ *
+ * `provisionalLinks` gives each linked input its intended current before design targets size
+ * anything; `solveNetworks` solves the groups and records them in `spec.networks`.
+ */
+import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
+import { solveMirror } from '../analysis/solve';
+import { currentNodes, deviceMismatchDerivatives, deviceSigmas } from '../circuit/elements/device';
+import { factorAtSolution } from '../circuit/smallSignal';
+import { indexOf, mirrorAt } from '../mirror-at';
+import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
+import { buildJoint, key, outputCurrentOf, type JointCircuit } from './joint';
+import type { PerturbationLike } from '../circuit/templates';
+
+function templateAt(spec: ResolvedSpec) {
+  return (i: number): TemplateMirror | undefined => {
+    const m = mirrorAt(spec, i);
+    return m && m.kind !== 'netlist' ? m : undefined;
+  };
+}
+
+/** Replace mirrors by file index (new spec and mirror objects; the input is not changed). */
+function withMirrors(spec: ResolvedSpec, changed: Map<number, TemplateMirror>, networks?: SolvedNetwork[]): ResolvedSpec {
+  const mirrors: ResolvedMirror[] = spec.mirrors.map((m) => changed.get(indexOf(m)) ?? m);
+  const out: ResolvedSpec = { ...spec, mirrors };
+  if (networks) out.networks = networks;
+  return out;
+}
+
+/** Each linked input's current set to its intended value (root current × ideal ratios). */
+export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
+  const changed = new Map<number, TemplateMirror>();
+  const at = templateAt(spec);
+  for (const g of groups) {
+    const rin = g.root.input;
+    const { vdd, vss } = spec.supplies;
+    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.i;
+    for (const [i, cur] of intendedInputs(g, i0, at)) {
+      const m = at(i);
+      if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });
+    }
+  }
+  return withMirrors(spec, changed);
+}
+
+/** Mirror `i` of `read` (read again after an edit) given the solved link values of `solved`:
+ *  the current that arrives at its input and the voltage of each output it feeds with. */
+export function carryLinks(read: ResolvedSpec, solved: ResolvedSpec, i: number): ResolvedSpec {
+  const m = mirrorAt(read, i), was = mirrorAt(solved, i);
+  if (!m || !was || m.kind === 'netlist' || was.kind === 'netlist') return { ...read, ...(solved.networks ? { networks: solved.networks } : {}) };
+  const input = m.input.kind === 'link' && was.input.kind === 'link' ? { ...m.input, i: was.input.i } : m.input;
+  const outputs = m.outputs.map((o, j) => {
+    const w = was.outputs[j];
+    return o.feeds !== undefined && w && w.feeds !== undefined ? { ...o, output: { ...o.output, v: w.output.v } } : o;
+  });
+  const out = withMirrors(read, new Map([[i, { ...m, input, outputs }]]));
+  if (solved.networks) out.networks = solved.networks;
+  return out;
+}
+
+/** Solve every group of `spec` and hand on its members at the solution; `spec.networks` then
+ *  describes each group. A spec without links comes back unchanged. */
+export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): ResolvedSpec {
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
+  const changed = new Map<number, TemplateMirror>();
+  const networks: SolvedNetwork[] = [];
+  for (const g of groups) {
+    const j = buildJoint(spec, g, perturb);
+    const r = solveMirror(j.mc);
+    const net = describe(spec, g, j, r.converged);
+    if (r.note) net.solveNote = r.note;
+    networks.push(net);
+    if (!r.converged) continue;
+    for (const mem of j.members) {
+      const m = mem.mirror;
+      const outputs = m.outputs.map((o, k) => {
+        const v = net.outputs[key(mem.index, k)]?.v;
+        return v === undefined ? o : { ...o, output: { ...o.output, v } };
+      });
+      const input = m.input.kind === 'link' ? { ...m.input, i: net.outputs[key(m.input.mirror, m.input.output)]!.i } : m.input;
+      changed.set(mem.index, { ...m, input, outputs });
+    }
+  }
+  return withMirrors(spec, changed, networks);
+}
+
+/** For Monte Carlo on a leaf output of a network (design §9.1: one draw per device per sample,
+ *  so a leaf's spread includes every device above it): the whole group's circuit measured at that
+ *  output, and the devices to draw (every device of every mirror on the path from the root).
+ *  Undefined when the output is in no network or feeds another mirror. */
+export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): { mc: JointCircuit['mc']; draw: Set<number> } | undefined {
+  if (!spec.networks) return undefined;
+  const g = networkGroups(spec).find((x) => x.members.some((m) => indexOf(m) === mirrorIndex));
+  const m = g?.members.find((x) => indexOf(x) === mirrorIndex);
+  if (!g || !m || m.outputs[outputIndex]?.feeds !== undefined) return undefined;
+  const j = buildJoint(spec, g, undefined, { mirror: mirrorIndex, output: outputIndex });
+  const path = new Set<number>();
+  for (let at: number | undefined = mirrorIndex; at !== undefined; at = g.parent.get(at)?.mirror) path.add(at);
+  const draw = new Set<number>();
+  for (const mem of j.members) {
+    if (!path.has(mem.index)) continue;
+    for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) draw.add(d);
+  }
+  return { mc: j.mc, draw };
+}
+
+const der = new Float64Array(2);
+
+/** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
+ *  row given as (column, value index) pairs). */
+function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[]): Float64Array | undefined {
+  if (!factorAtSolution(ws)) return undefined;
+  const lam = new Float64Array(ws.n);
+  for (let k = 0; k < row.length; k += 2) lam[row[k]!] = ws.G[row[k + 1]!]!;
+  ws.solver.solveTranspose(lam);
+  return lam;
+}
+
+/** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
+ *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
+ *  network). */
+function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], lam: Float64Array, d: number, iout: number): [number, number] {
+  const dev = c.devices[d]!;
+  deviceMismatchDerivatives(dev, ws.v, ws.ch, der);
+  const [from, to] = currentNodes(dev);
+  let w = 0;
+  if (from === c.outNode) w += 1;
+  if (to === c.outNode) w -= 1;
+  if (from < ws.n) w -= lam[from]!;
+  if (to < ws.n) w += lam[to]!;
+  return [c.outSign * w * der[0]! / iout, c.outSign * w * der[1]! / iout];
+}
+
+/** The network's figures at the joint solution (design §9.3). */
+function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean): SolvedNetwork {
+  const { ws, circuit: c } = j.mc;
+  const outputs: Record<string, SolvedNetworkOutput> = {};
+  for (const [k, node] of j.linkNode) outputs[k] = { i: outputCurrentOf(j, k), v: ws.v[node]! };
+  // Leaf outputs: iout from the held node; chainSigma from the joint adjoint over the devices of
+  // every mirror on the path from the root.
+  const parentOf = (i: number): number | undefined => g.parent.get(i)?.mirror;
+  const saved = { node: c.outNode, sign: c.outSign };
+  // Each leaf's row of the Jacobian (its free columns), gathered in one pass over the pattern:
+  // the adjoint's right-hand side without a search per entry.
+  const rows = new Map<number, number[]>();
+  for (const node of j.leafNode.values()) rows.set(node, []);
+  if (converged && factorAtSolution(ws)) {
+    const { colPtr, rowIdx } = ws.pattern;
+    for (let col = 0; col < ws.n; col++) {
+      for (let p = colPtr[col]!; p < colPtr[col + 1]!; p++) rows.get(rowIdx[p]!)?.push(col, p);
+    }
+  }
+  let toVdd = 0, toVss = 0;
+  for (const mem of j.members) {
+    mem.mirror.outputs.forEach((_, o) => {
+      const k = key(mem.index, o);
+      const node = j.leafNode.get(k);
+      if (node === undefined) return;
+      const iout = mem.sign * ws.F[node]!;
+      const out: SolvedNetworkOutput = { i: iout };
+      // A leaf's current flows through its load between the rails.
+      if (mem.sign > 0) toVdd += iout; else toVss += iout;
+      if (converged) {
+        const path = new Set<number>();
+        for (let at: number | undefined = mem.index; at !== undefined; at = parentOf(at)) path.add(at);
+        c.outNode = node; c.outSign = mem.sign;
+        const lam = leafAdjoint(ws, rows.get(node) ?? []);
+        if (lam) {
+          let sum = 0, any = false;
+          for (const p of j.members) {
+            if (!path.has(p.index)) continue;
+            for (let d = p.first; d < p.first + p.wired.deviceNames.length; d++) {
+              const s = deviceSigmas(c.devices[d]!);
+              if (!s) continue;
+              any = true;
+              const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
+              sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
+            }
+          }
+          if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);
+        }
+      }
+      outputs[k] = out;
+    });
+  }
+  c.outNode = saved.node; c.outSign = saved.sign;
+  const { vdd, vss } = spec.supplies;
+  const supplyCurrent = { vdd: ws.F[j.vddNode]! + toVdd, vss: -ws.F[j.vssNode]! + toVss };
+  return {
+    root: indexOf(g.root), members: g.members.map(indexOf), converged,
+    rootCurrent: j.rootCurrent(), supplyCurrent, power: (vdd - vss) * 0.5 * (supplyCurrent.vdd + supplyCurrent.vss), outputs,
+  };
+}

@@ -1,0 +1,170 @@
+/**
+ * One linked group as one circuit (design §9.1): every member's devices in one builder, each
+ * linked output's node being the fed mirror's input node (no source there, no held voltage),
+ * every leaf output held at its own `output.v`. Solved as one Newton system — the sparse LU of
+ * circuit/ for a big group — from a starting guess built leaf to root with each kind's own guess.
+ */
+import { KINDS } from '../kinds/index';
+import { CircuitBuilder, type MosInstance } from '../circuit/circuit';
+import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
+import { resistorCurrent } from '../circuit/elements/resistor';
+import { deviceReport } from '../circuit/elements/device';
+import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
+import type { ResolvedSpec, TemplateMirror } from '../types';
+import { indexOf } from '../mirror-at';
+import { vbiasFor } from '../analysis/measure';
+import type { NetworkGroup } from './groups';
+
+export interface JointMember {
+  mirror: TemplateMirror;
+  index: number;
+  ns: string;
+  wired: WiredTemplate;
+  /** Index into circuit.devices of this member's first device. */
+  first: number;
+  sign: 1 | -1;
+}
+
+export interface JointCircuit {
+  mc: MirrorCircuit;
+  members: JointMember[];
+  /** Held node index of each leaf output (`mirror:output`), and the node of each linked one. */
+  leafNode: Map<string, number>;
+  linkNode: Map<string, number>;
+  /** Device indices on each output's node (the current it delivers), by `mirror:output`. */
+  outDevices: Map<string, number[]>;
+  vddNode: number;
+  vssNode: number;
+  /** A, the root's input current at ws.v. */
+  rootCurrent(): number;
+}
+
+export const key = (mirror: number, output: number): string => `${mirror}:${output}`;
+
+/** Build the group's circuit; `perturb` is keyed by joint device names (`mirror/device`). With
+ *  `measure` (a leaf output), that output's node is the circuit's output, only its mirror's
+ *  devices count as measured, and `mc.iin` is the current arriving at that mirror. */
+export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }): JointCircuit {
+  const { vdd, vss } = spec.supplies;
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  // The node a linked output drives is the fed mirror's input node.
+  const fedBy = new Map<string, string>();
+  for (const m of g.members.slice(1)) fedBy.set(key(g.parent.get(indexOf(m))!.mirror, g.parent.get(indexOf(m))!.output), `${m.name}/${KINDS[m.kind].inputNode}`);
+  const members: JointMember[] = [];
+  let first = 0;
+  let measured: string | undefined;
+  let measuredSign: 1 | -1 = 1;
+  for (const m of g.members) {
+    const i = indexOf(m);
+    const ns = `${m.name}/`;
+    const inputNode = m === g.root ? undefined : `${ns}${KINDS[m.kind].inputNode}`;
+    const own = measure?.mirror === i;
+    const wired = wireTemplate(b, spec, m, {
+      ns, outputIndex: own ? measure!.output : -1, vout: own ? m.outputs[measure!.output]?.output.v ?? 0 : 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb,
+      ...(inputNode ? { inputNode } : {}),
+      outNode: (j) => fedBy.get(key(i, j)),
+    });
+    const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+    members.push({ mirror: m, index: i, ns, wired, first, sign });
+    first += wired.deviceNames.length;
+    wired.outNodes.forEach((n, j) => {
+      const pick = measure ? own && j === measure.output : measured === undefined;
+      if (pick && !fedBy.has(key(i, j))) { measured = n; measuredSign = sign; }
+    });
+  }
+  const rootSign: 1 | -1 = g.root.type === 'pmos' ? -1 : 1;
+  const c = b.build(measured ?? 'vss', measuredSign, vss, vdd);
+  const ws = makeWorkspace(c);
+  const index = new Map(c.nodeNames.map((n, k) => [n, k] as const));
+  const leafNode = new Map<string, number>(), linkNode = new Map<string, number>(), outDevices = new Map<string, number[]>();
+  for (const mem of members) {
+    mem.wired.outNodes.forEach((n, j) => {
+      const k = index.get(n)!;
+      (fedBy.has(key(mem.index, j)) ? linkNode : leafNode).set(key(mem.index, j), k);
+      const devs: number[] = [];
+      for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) if (c.devices[d]!.d === k) devs.push(d);
+      outDevices.set(key(mem.index, j), devs);
+    });
+  }
+  if (measure) {
+    for (const mem of members) {
+      if (mem.index === measure.mirror) continue;
+      for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) c.devices[d]!.measured = false;
+    }
+  }
+  const rootRes = members[0]!.wired.inputResistor;
+  const rootIn = g.root.input;
+  const rootCurrent = (): number => (rootRes ? resistorCurrent(rootRes, ws.v) : rootIn.kind === 'resistor' ? NaN : rootIn.i);
+  const rail = rootSign > 0 ? vss : vdd;
+  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices);
+  const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
+  const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
+  const fed = measure ? g.parent.get(measure.mirror) : undefined;
+  if (fed) {
+    const k = key(fed.mirror, fed.output);
+    mc.iin = () => outputCurrentOf(joint, k);
+  }
+  if (measure) {
+    const mem = members.find((x) => x.index === measure.mirror);
+    if (mem) { mc.sign = mem.sign; mc.rail = mem.sign > 0 ? vss : vdd; }
+  }
+  return joint;
+}
+
+/** A, the current output `k` delivers at ws.v (a magnitude, as iout). */
+export function outputCurrentOf(j: JointCircuit, k: string): number {
+  const v = j.mc.ws.v;
+  let sum = 0;
+  for (const d of j.outDevices.get(k) ?? []) sum += deviceReport(j.mc.circuit.devices[d]!, v).id;
+  return sum;
+}
+
+/** Node voltages assuming every device saturated, leaf mirrors first: a linked output's node is
+ *  the fed mirror's input node, whose guess is known by the time its feeding mirror is guessed. */
+function jointGuess(
+  spec: ResolvedSpec, g: NetworkGroup, members: JointMember[], names: string[], index: Map<string, number>,
+  fixedV: Float64Array, nFree: number, v: Float64Array, devices: MosInstance[] | readonly unknown[],
+): void {
+  const { vdd, vss } = spec.supplies;
+  const span = vdd - vss;
+  for (let k = 0; k < nFree; k++) v[k] = NaN;
+  // Currents: the root's (a resistor root: its current at a typical diode drop), then the ideal ratios.
+  const current = new Map<number, number>();
+  const rootIn = g.root.input;
+  const root0 = rootIn.kind === 'resistor' ? Math.max(span - 0.7, 0.1 * span) / rootIn.r : rootIn.i;
+  current.set(members[0]!.index, root0);
+  const byIndex = new Map(members.map((x) => [x.index, x] as const));
+  for (const mem of members.slice(1)) {
+    const p = g.parent.get(mem.index)!;
+    const up = byIndex.get(p.mirror)!;
+    current.set(mem.index, (current.get(p.mirror) ?? root0) * (idealRatio(up.mirror, p.output) ?? 1));
+  }
+  for (let n = members.length - 1; n >= 0; n--) {
+    const mem = members[n]!;
+    const m = mem.mirror;
+    const rail = mem.sign > 0 ? vss : vdd;
+    const devByName = new Map<string, MosInstance>();
+    mem.wired.deviceNames.forEach((local, d) => devByName.set(local, devices[mem.first + d] as MosInstance));
+    const uOuts = mem.wired.outNodes.map((nm) => {
+      const k = index.get(nm)!;
+      const abs = k >= nFree ? fixedV[k]! : Number.isFinite(v[k]!) ? v[k]! : rail + mem.sign * 0.5 * span;
+      return mem.sign * (abs - rail);
+    });
+    const vbK = index.get(`${mem.ns}vbias`);
+    const ctx: GuessContext = {
+      m, devByName, bank: isBank(m), ratios: m.outputs.map((_, j) => idealRatio(m, j) ?? 1), uOuts,
+      uVb: vbK !== undefined ? mem.sign * (fixedV[vbK]! - rail) : 0, cNodes: mem.wired.cNodes, u: {},
+    };
+    guessNodes(ctx, current.get(mem.index) ?? root0);
+    const input = KINDS[m.kind].inputNode;
+    for (const [local, u] of Object.entries(ctx.u)) {
+      const name = local === input ? mem.wired.inputNode : index.has(`${mem.ns}${local}`) ? `${mem.ns}${local}` : local;
+      const k = index.get(name);
+      if (k !== undefined && k < nFree && Number.isFinite(u)) v[k] = rail + mem.sign * u;
+    }
+  }
+  for (let k = 0; k < nFree; k++) if (!Number.isFinite(v[k]!)) v[k] = 0.5 * (vdd + vss);
+  void names;
+}

@@ -1,0 +1,75 @@
+/**
+ * What a network reports (design §9.3), attached to the measured outputs: feeds / fedBy,
+ * intended (root current × ideal ratios along the path), chainError, chainSigma, the linked
+ * node's voltage and its headroom; and one NetworkReport per group (root, members, supply
+ * currents, power, leaves and the worst of them).
+ *
+ * chainSigma: a leaf's comes from the joint linearized circuit (network/index.ts); a linked
+ * output's compounds its own sigma with its mirror's input: sqrt(chainSigma_in² + sigma²).
+ */
+import type { MirrorReport, NetworkReport, ResolvedSpec, TemplateMirror } from '../types';
+import { idealRatio } from '../circuit/templates';
+import { mirrorAt } from '../mirror-at';
+import { key } from './joint';
+
+export interface NetworkFigures { reports: MirrorReport[]; networks: NetworkReport[] }
+
+export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): NetworkFigures {
+  const nets = spec.networks;
+  if (!nets || nets.length === 0) return { reports, networks: [] };
+  const byKey = new Map<string, MirrorReport>();
+  const out = reports.map((r) => { const c = { ...r }; byKey.set(key(r.mirrorIndex, r.outputIndex), c); return c; });
+  const at = (i: number): TemplateMirror | undefined => { const m = mirrorAt(spec, i); return m && m.kind !== 'netlist' ? m : undefined; };
+  const networks: NetworkReport[] = [];
+  for (const net of nets) {
+    const root = at(net.root);
+    if (!root) continue;
+    const intendedIn = new Map<number, number>([[net.root, net.rootCurrent]]);
+    const chainIn = new Map<number, number>([[net.root, 0]]);
+    const leaves: string[] = [];
+    let worst: { name: string; e: number } | undefined;
+    for (const i of net.members) {
+      const m = at(i);
+      if (!m) continue;
+      const fedBy = m.input.kind === 'link' ? m.input : undefined;
+      if (fedBy) {
+        const up = at(fedBy.mirror);
+        intendedIn.set(i, (intendedIn.get(fedBy.mirror) ?? NaN) * (up ? idealRatio(up, fedBy.output) ?? 1 : 1));
+        chainIn.set(i, byKey.get(key(fedBy.mirror, fedBy.output))?.chainSigma ?? NaN);
+      }
+      m.outputs.forEach((o, j) => {
+        const r = byKey.get(key(i, j));
+        if (!r) return;
+        r.network = root.name;
+        if (fedBy) r.fedBy = byKey.get(key(fedBy.mirror, fedBy.output))?.name ?? fedBy.from;
+        const intended = (intendedIn.get(i) ?? NaN) * (idealRatio(m, j) ?? NaN);
+        if (Number.isFinite(intended)) {
+          r.intended = intended;
+          if (r.converged && net.converged) r.chainError = r.iout / intended - 1;
+        }
+        const solved = net.outputs[key(i, j)];
+        if (o.feeds !== undefined) {
+          const fed = at(o.feeds);
+          if (fed) r.feeds = fed.name;
+          if (solved?.v !== undefined) {
+            r.linkV = solved.v;
+            if (Number.isFinite(r.compliance) && !r.noCompliance) r.headroom = m.type === 'nmos' ? solved.v - r.compliance : r.compliance - solved.v;
+          }
+          const up = chainIn.get(i) ?? 0;
+          if (r.sigma !== undefined && Number.isFinite(up)) r.chainSigma = Math.sqrt(up * up + r.sigma * r.sigma);
+        } else {
+          if (solved?.chainSigma !== undefined && net.converged) r.chainSigma = solved.chainSigma;
+          leaves.push(r.name);
+          if (r.chainError !== undefined && (!worst || Math.abs(r.chainError) > Math.abs(worst.e))) worst = { name: r.name, e: r.chainError };
+        }
+      });
+    }
+    const report: NetworkReport = {
+      root: root.name, rootIndex: net.root, members: net.members.map((i) => at(i)?.name ?? `mirror ${i + 1}`),
+      converged: net.converged, supplyCurrent: net.supplyCurrent, power: net.power, leaves,
+    };
+    if (worst) report.worstLeaf = worst.name;
+    networks.push(report);
+  }
+  return { reports: out, networks };
+}

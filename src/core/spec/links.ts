@@ -1,0 +1,143 @@
+/**
+ * Link checks (design §9.1, findings in docs/findings.md), run once every mirror is read: each
+ * `input: { from: PATH }` must name an existing template output (`link-unknown`, with a
+ * did-you-mean) of the other polarity (`link-polarity`), not its own mirror (`link-self`), not
+ * an output another link already takes (`link-shared`), and no chain of links may close on
+ * itself (`link-cycle`). A mirror fed by a mirror that has errors waits for them (`link-upstream`).
+ * A linked output's written `output.v` is not used (`link-output-v`).
+ */
+import type { LinkInput, ResolvedMirror, TemplateMirror } from '../types';
+import { isRecord } from './params';
+import type { FindingSink } from './findings';
+import { linkPathOf, linkTargets, resolveLinkPath } from '../network/paths';
+import { suggestion } from './suggest';
+
+/** `mirrorIndex:outputIndex` of every output some mirror's `from` names (for `output.v` being
+ *  optional there), from the plain data alone. */
+export function fedOutputs(data: unknown): Set<string> {
+  const targets = linkTargets(data);
+  const fed = new Set<string>();
+  const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
+  for (let i = 0; i < items.length; i++) {
+    const from = linkPathOf(data, i);
+    if (from === undefined) continue;
+    const r = resolveLinkPath(from, targets);
+    if (r.ok && r.link.mirror !== i) fed.add(`${r.link.mirror}:${r.link.output}`);
+  }
+  return fed;
+}
+
+function linkOf(m: ResolvedMirror): LinkInput | undefined {
+  return m.kind !== 'netlist' && m.input.kind === 'link' ? m.input : undefined;
+}
+
+/** Check and resolve every link of `mirrors` (read from `data`); findings to `sink`. Returns the
+ *  mirrors with links resolved and fed outputs marked, as new objects where anything changes (a
+ *  re-check after a fix reuses the mirror objects of the first reading). */
+export function checkLinks(data: unknown, given: ResolvedMirror[], sink: FindingSink): ResolvedMirror[] {
+  const mirrors = given.map((m): ResolvedMirror => {
+    if (m.kind === 'netlist') return m;
+    const outputs = m.outputs.map((o) => { if (o.feeds === undefined) return o; const c = { ...o }; delete c.feeds; return c; });
+    return { ...m, input: m.input.kind === 'link' ? { ...m.input, mirror: -1, output: -1 } : m.input, outputs };
+  });
+  const targets = linkTargets(data);
+  const byIndex = new Map<number, ResolvedMirror>(mirrors.map((m) => [m.path[1] as number, m]));
+  const bad = new Set<number>();
+  const taken = new Map<string, number>();
+  const fromPath = (m: ResolvedMirror) => [...m.path, 'input', 'from'];
+  for (const m of mirrors) {
+    const link = linkOf(m);
+    if (!link) continue;
+    const i = m.path[1] as number;
+    const r = resolveLinkPath(link.from, targets, (w, c) => (sink.listing('link-unknown') ? suggestion(w, c) : undefined));
+    if (!r.ok) {
+      sink.error('link-unknown', r.message + (r.word !== undefined ? `; did you mean \`${r.word}\`?` : ''), fromPath(m), undefined, undefined, r.word);
+      bad.add(i);
+      continue;
+    }
+    const { mirror: up, output } = r.link;
+    if (up === i) {
+      sink.error('link-self', `mirror \`${m.name}\` cannot feed its own input`, fromPath(m));
+      bad.add(i);
+      continue;
+    }
+    const upType = r.link.target.type;
+    if (upType === m.type) {
+      const role = m.type === 'nmos' ? 'sinks' : 'sources';
+      sink.error('link-polarity', `\`${link.from}\` is a ${upType} output: it ${role} current, as this ${m.type} mirror's input does; a link joins an output to an input of the other polarity`, fromPath(m));
+      bad.add(i);
+      continue;
+    }
+    const key = `${up}:${output}`;
+    const first = taken.get(key);
+    if (first !== undefined) {
+      const other = byIndex.get(first)?.name ?? `mirror ${first + 1}`;
+      sink.error('link-shared', `\`${link.from}\` already feeds \`${other}\`; one output feeds one input (give \`${r.link.target.name}\` another output)`, fromPath(m));
+      bad.add(i);
+      continue;
+    }
+    taken.set(key, i);
+    link.mirror = up;
+    link.output = output;
+  }
+  // Cycles: follow each chain upwards; one that comes back to its start is a loop (each member
+  // of it gets the finding at its own `from`).
+  const looped: number[] = [];
+  for (const m of mirrors) {
+    const start = m.path[1] as number;
+    const seen = new Set<number>();
+    const names: string[] = [m.name];
+    let at = upstreamOf(byIndex, start);
+    while (at !== undefined && !seen.has(at) && !bad.has(at)) {
+      if (at === start) {
+        sink.error('link-cycle', `links close a loop: ${[...names, m.name].join(' ← ')}; a bias network is a tree fed from one root`, fromPath(m));
+        looped.push(start);
+        break;
+      }
+      seen.add(at);
+      names.push(byIndex.get(at)?.name ?? `mirror ${at + 1}`);
+      at = upstreamOf(byIndex, at);
+    }
+  }
+  for (const i of looped) bad.add(i);
+  // A mirror fed (directly or not) by one that has errors cannot be solved yet.
+  const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
+  for (let k = 0; k < items.length; k++) if (!byIndex.has(k)) bad.add(k);
+  for (let changed = true; changed;) {
+    changed = false;
+    for (const m of mirrors) {
+      const link = linkOf(m);
+      const i = m.path[1] as number;
+      if (!link || bad.has(i) || link.mirror < 0 || !bad.has(link.mirror)) continue;
+      const up = byIndex.get(link.mirror)?.name ?? targets.find((t) => t.index === link.mirror)?.name ?? `mirror ${link.mirror + 1}`;
+      sink.error('link-upstream', `fed by \`${up}\`, which has errors: this mirror is solved once they are fixed`, fromPath(m));
+      bad.add(i);
+      changed = true;
+    }
+  }
+  // Mark the fed outputs; a written voltage on one is not used.
+  for (const m of mirrors) {
+    const link = linkOf(m);
+    if (!link || bad.has(m.path[1] as number)) continue;
+    const up = byIndex.get(link.mirror) as TemplateMirror | undefined;
+    const out = up?.outputs[link.output];
+    if (!up || !out) continue;
+    out.feeds = m.path[1] as number;
+    if (writtenV(items[link.mirror], out.path.length > up.path.length ? link.output : undefined)) {
+      sink.warning('link-output-v', `\`output.v\` is not used: this output feeds \`${m.name}\`, so its voltage is the solved input voltage of that mirror`, [...out.path, 'output', 'v'], 'key');
+    }
+  }
+  return mirrors;
+}
+
+function upstreamOf(byIndex: Map<number, ResolvedMirror>, i: number): number | undefined {
+  const m = byIndex.get(i);
+  const l = m ? linkOf(m) : undefined;
+  return l && l.mirror >= 0 ? l.mirror : undefined;
+}
+
+function writtenV(item: unknown, output: number | undefined): boolean {
+  if (!isRecord(item)) return false;
+  const holder: unknown = output === undefined ? item : Array.isArray(item.outputs) ? item.outputs[output] : undefined;
+  return isRecord(holder) && isRecord(holder.output) && holder.output.v !== undefined;
+}
