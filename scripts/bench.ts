@@ -11,6 +11,8 @@
  *            alternating): its joint solve and every mirror's analysis in process ≤ 100 ms; through
  *            the CLI no dearer than the same mirrors written unlinked
  *   bundle   dist/extension.js minified (--production) ≤ 1.5 MB
+ *   tables   the example with every device from a characterisation table ≤ 3× its square-law
+ *            analysis; a 5 MB table read in < 200 ms
  * plus the parse time of a file at the size limit (512 KiB, < 1 s).
  *
  *   npm run bench                          # build, then node dist/bench.js
@@ -35,6 +37,8 @@ import { resolveText } from '../src/core/resolve';
 import { runRules } from '../src/core/rules/index';
 import { SPEC_LIMITS } from '../src/core/defaults';
 import { benchVariation } from './bench-variation';
+import { benchTables } from './bench-tables';
+import { readTables } from '../src/node/tables';
 import { cleanSpecText, faultyExampleText, HALDEN_NMOS, HALDEN_PMOS, networkTreeText } from './spec-texts';
 import { provisionalLinks, solveNetworks } from '../src/core/network/index';
 import { attachNetworks } from '../src/core/network/report';
@@ -288,28 +292,31 @@ function main(): void {
 
   // ---- the example and texts (parse + solve + rules with verified fixes) ----
   const exampleText = readFileSync(join(root, 'examples/sensor-afe.bias.yaml'), 'utf8');
+  // The example's characterisation table, read as the CLI reads it.
+  const tables = readTables(join(root, 'examples/sensor-afe.bias.yaml'), exampleText);
   const faultyText = faultyExampleText(exampleText);
   const rulesFaulty = readFileSync(join(root, 'test/rules/fixtures/faulty.bias.yaml'), 'utf8');
   const big500Text = cleanSpecText(500);
   const textCold = {
-    example: cold(() => analyzeText(exampleText, 'sensor-afe.bias.yaml')),
-    faultyExample: cold(() => analyzeText(faultyText, 'faulty.bias.yaml')),
+    example: cold(() => analyzeText(exampleText, 'sensor-afe.bias.yaml', { tables })),
+    faultyExample: cold(() => analyzeText(faultyText, 'faulty.bias.yaml', { tables })),
   };
-  const exampleSpec = resolveText(exampleText, 'sensor-afe.bias.yaml').parsed.spec!;
+  const exampleSpec = resolveText(exampleText, 'sensor-afe.bias.yaml', { tables }).parsed.spec!;
   const textRuns = Math.max(10, runs >> 2);
-  const faultyParsed = resolveText(faultyText, 'faulty.bias.yaml').parsed;
+  const faultyParsed = resolveText(faultyText, 'faulty.bias.yaml', { tables }).parsed;
   const faultyReports = analyzeSpec(faultyParsed.spec!);
   const texts = {
     exampleEngine: timeFn(textRuns * 2, 20, () => analyzeSpec(structuredClone(exampleSpec), { repeats: false })),
-    exampleParse: timeFn(textRuns, 10, () => parseSpec(exampleText, 'sensor-afe.bias.yaml')),
-    example: timeFn(textRuns, 10, () => analyzeText(exampleText, 'sensor-afe.bias.yaml')),
-    faultyExample: timeFn(textRuns, 5, () => analyzeText(faultyText, 'faulty.bias.yaml')),
+    exampleParse: timeFn(textRuns, 10, () => parseSpec(exampleText, 'sensor-afe.bias.yaml', { tables })),
+    example: timeFn(textRuns, 10, () => analyzeText(exampleText, 'sensor-afe.bias.yaml', { tables })),
+    faultyExample: timeFn(textRuns, 5, () => analyzeText(faultyText, 'faulty.bias.yaml', { tables })),
     faultyRules: timeFn(textRuns, 5, () => runRules(faultyParsed, faultyReports)),
     faultyRulesWholeFile: timeFn(textRuns, 5, () => runRules(faultyParsed, faultyReports, { reread: 'whole-file' })),
     rulesFaulty: timeFn(textRuns, 5, () => analyzeText(rulesFaulty, 'faulty.bias.yaml')),
     clean500: timeFn(Math.max(5, textRuns >> 2), 2, () => analyzeText(big500Text, 'big.bias.yaml')),
   };
-  const faultyReport = analyzeText(faultyText, 'faulty.bias.yaml');
+  const faultyReport = analyzeText(faultyText, 'faulty.bias.yaml', { tables });
+  const tableBench = benchTables(exampleSpec, timeFn, textRuns * 2);
   const faults = { findings: faultyReport.findings.length, fixes: faultyReport.findings.reduce((n, f) => n + (f.fixes?.length ?? 0), 0) };
 
   // A file at the size limit: one-line flow mirrors up to SPEC_LIMITS.maxChars.
@@ -383,6 +390,8 @@ function main(): void {
     network1000Ms: netOk && network.median <= 100,
     extensionBundleBytes: bundles.extensionProduction !== undefined && bundles.extensionProduction <= 1.5e6,
     limitParseMs: limit.parse.median < 1000,
+    tablesVsSquareLaw: tableBench.ratio <= 3,
+    tableRead5MbMs: tableBench.readMs < 200,
   };
   const result = {
     machine: { node: process.version, cpus: cpus().length, cpu: cpus()[0]?.model, loadAverageStart: load0, loadAverageEnd: load1 },
@@ -402,8 +411,9 @@ function main(): void {
     variationMs: variation,
     bundleBytes: bundles,
     targets: {
-      perMirrorUs: 50, mirrors500Ms: 50, exampleEngineMs: 5, cli500Ms: 150, monteCarlo10kMs: 100, network1000Ms: 100, extensionBundleBytes: 1.5e6, limitParseMs: 1000,
+      perMirrorUs: 50, mirrors500Ms: 50, exampleEngineMs: 5, cli500Ms: 150, monteCarlo10kMs: 100, network1000Ms: 100, extensionBundleBytes: 1.5e6, limitParseMs: 1000, tablesVsSquareLaw: 3, tableRead5MbMs: 200,
     },
+    tables: tableBench,
     met: checks,
     pass: Object.values(checks).every(Boolean),
     runs,
@@ -437,6 +447,9 @@ function main(): void {
   console.log(`       rules fixture with faults        ${t(texts.rulesFaulty)}`);
   console.log(`       clean 500 mirrors (${(big500Text.length / 1024).toFixed(0)} KiB)      ${t(texts.clean500)}`);
   console.log(`  ${ok(checks.limitParseMs)} parse at the size limit (${(limit.chars / 1024).toFixed(0)} KiB)  ${t(limit.parse)}   (cold ${limit.parseCold.toFixed(0)} ms; < 1000 ms); analyzeText median ${limit.analyzeText.median.toFixed(0)} ms`);
+  console.log('tables (design §11)');
+  console.log(`  ${ok(checks.tablesVsSquareLaw)} example, every device from a table  median ${f(tableBench.tablesMs)} ms against ${f(tableBench.squareLawMs)} ms on the square law: ${tableBench.ratio.toFixed(2)}× (≤ 3×)`);
+  console.log(`  ${ok(checks.tableRead5MbMs)} read a ${tableBench.tableMB.toFixed(1)} MB table         median ${f(tableBench.readMs)} ms   (< 200 ms)`);
   if (cliResult) {
     console.log(`cli (spawned, wall clock, ${cliRuns} runs each)`);
     console.log(`       node -e 0 (Node start-up)        ${t(cliResult.nodeStart)}`);

@@ -95,6 +95,8 @@ export interface TableRow {
   /** Marks the row for focus restoring across re-renders. */
   key?: string;
   selected?: boolean;
+  /** A heading row over the rows that follow (a group), spanning every column; `cells` unused. */
+  group?: string;
 }
 
 export function table(caption: string, columns: readonly TableColumn[], rows: readonly TableRow[], attrs: Attrs = {}): HTMLTableElement {
@@ -105,6 +107,9 @@ export function table(caption: string, columns: readonly TableColumn[], rows: re
 }
 
 function tableRow(columns: readonly TableColumn[], row: TableRow): HTMLTableRowElement {
+  if (row.group !== undefined) {
+    return h('tr', { class: 'group', 'data-key': row.key }, h('th', { scope: 'colgroup', colspan: columns.length }, row.group));
+  }
   const tr = h('tr', {
     class: [row.className, row.onActivate ? 'action' : undefined, row.selected ? 'selected' : undefined].filter(Boolean).join(' ') || undefined,
     tabindex: row.onActivate ? 0 : undefined,

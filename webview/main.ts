@@ -6,6 +6,7 @@
  */
 import css from './styles.css';
 import uplotCss from 'uplot/dist/uPlot.min.css';
+import { SCHEMATIC_CSS } from '../src/core/schematic/draw';
 import type { Range } from '../src/core/types';
 import { REPORT_DATA_ID, STATIC_ID, parseEmbeddedReport } from '../src/core/report/html';
 import { describeMessage, fromWire, isFileReport, isHostMessage, type PageMessage } from '../src/protocol/messages';
@@ -25,7 +26,7 @@ const vscodeGlobal = globalThis as unknown as { acquireVsCodeApi?: () => VsCodeA
 
 function adoptStyles(): void {
   // Constructed stylesheets need no 'unsafe-inline' under the panel's CSP.
-  const sheets = [uplotCss, css].map((text) => {
+  const sheets = [uplotCss, css, SCHEMATIC_CSS].map((text) => {
     const sheet = new CSSStyleSheet();
     sheet.replaceSync(text);
     return sheet;

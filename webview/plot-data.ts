@@ -85,7 +85,7 @@ export function histogramPlotData(m: MirrorReport): HistogramPlotData | undefine
     marks.push({ x: mean * (1 - 3 * allowed), label: '-3σ max', kind: 'limit' },
       { x: mean * (1 + 3 * allowed), label: '+3σ max', kind: 'limit' });
   }
-  if (m.require?.ratio !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });
+  if (m.require?.ratio !== undefined && m.iin !== undefined) marks.push({ x: (m.require.ratio * m.iin) / scale.factor, label: 'target', kind: 'limit' });
   return { x, counts: [...h.counts], width, scale, marks };
 }
 

@@ -6,7 +6,10 @@
 import type { FileReport, MirrorReport, Range } from '../src/core/types';
 import { badge, button, divider, figures, h, section, severityLabel, table, tag, type TableRow } from './components';
 import { cssId, driftPlot, histogramPlot, ioutPlot, noisePlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
+import { markSchematicDevice, schematicFigure } from './schematic';
 import type { PanelState } from './state';
+import { networkFigures } from './network-tree';
+import { mirrorGroups } from './network-model';
 import {
   CORNER_COLUMNS, cornerRows, deviceColumns, deviceRow, fileFindings, findingRows, findingsFor,
   mirrorAnchor, mirrorList, monteCarloFigures, requirementViews, summaryFigures, type FindingRowView,
@@ -38,6 +41,13 @@ export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderCont
       content.append(h('p', { class: 'notice', id: 'notice' }, report.parsed ? 'This spec has no mirrors yet.' : 'The spec could not be read; see the findings above.'));
     } else {
       content.append(section('mirrors', 'Mirrors', h('div', { class: 'scroll-x' }, overview(report, state.selected, ctx))));
+      if (report.networks?.length) {
+        content.append(section('networks', 'Bias networks', ...networkFigures(report, (select, reveal) => {
+          if (ctx.mode !== 'panel') return;
+          ctx.onSelect(select);
+          if (reveal) ctx.onReveal(reveal);
+        }), h('p', { class: 'note' }, 'Each edge: the current it carries and its chain error (every stage compounded from the root). ⚠ and a dashed line in the error colour mark a link in trouble; a dotted line in the warning colour, a leaf whose chain error is over the limit. Click a mirror to show it in the spec.')));
+      }
       const shown = ctx.mode === 'report' ? report.mirrors : report.mirrors.filter((m) => m.name === state.selected);
       for (const m of shown) content.append(mirrorDetail(report, m, ctx, plots));
     }
@@ -96,7 +106,7 @@ function baseName(file: string): string {
 function overview(report: FileReport, selected: string | undefined, ctx: RenderContext): HTMLElement {
   const items = mirrorList(report);
   // Each row with the mirror's place in the file, so a set-aside mirror sits where it is written.
-  const placed: { at: number; row: TableRow }[] = items.map((it, k) => ({ at: report.mirrors[k]?.mirrorIndex ?? Number.MAX_SAFE_INTEGER, row: {
+  const placed: Placed[] = items.map((it, k) => ({ at: report.mirrors[k]?.mirrorIndex ?? Number.MAX_SAFE_INTEGER, mirror: report.mirrors[k]?.mirror, row: {
     key: `mirror:${it.name}`,
     className: it.worst ? `has-${it.worst}` : undefined,
     selected: ctx.mode === 'panel' ? it.name === selected : undefined,
@@ -123,13 +133,34 @@ function overview(report: FileReport, selected: string | undefined, ctx: RenderC
       ],
     } });
   }
-  const rows = placed.sort((a, b) => a.at - b.at).map((p) => p.row);  // stable: a bank's outputs keep their order
+  placed.sort((a, b) => a.at - b.at);  // stable: a bank's outputs keep their order
+  const rows = grouped(report, placed);
   return table('Mirrors of this spec', [
     // Kind and polarity share a column: the list must fit an editor split in two.
     { label: 'Mirror', numeric: false }, { label: 'Kind', numeric: false },
     { label: 'Iout', numeric: true }, { label: 'Error', numeric: true }, { label: 'Compliance', numeric: true },
     { label: 'Findings', numeric: false },
   ], rows, { id: 'mirror-list' });
+}
+
+interface Placed { at: number; row: TableRow; mirror?: string }
+
+/** With bias networks, the rows under one heading per network (its members in network order),
+ *  then the mirrors in no network and those set aside; without, the rows as they are. */
+function grouped(report: FileReport, placed: Placed[]): TableRow[] {
+  const groups = mirrorGroups(report);
+  if (groups.length === 1 && groups[0]!.network === undefined) return placed.map((p) => p.row);
+  const out: TableRow[] = [];
+  for (const g of groups) {
+    const order = new Map(g.mirrors.map((m, i) => [m, i] as const));
+    const mine = placed.filter((p) => (p.mirror !== undefined && order.has(p.mirror)) || (g.network === undefined && p.mirror === undefined));
+    // Network order (root first, each after its feeder); a bank's outputs keep theirs (stable sort).
+    if (g.network !== undefined) mine.sort((a, b) => order.get(a.mirror!)! - order.get(b.mirror!)!);
+    if (mine.length === 0) continue;
+    out.push({ key: `group:${g.network ?? ''}`, group: g.network !== undefined ? `Network of ${g.network}` : 'Not in a network', cells: [] });
+    out.push(...mine.map((p) => p.row));
+  }
+  return out;
 }
 
 function findingCounts(counts: Record<'error' | 'warning' | 'info', number>, converged: boolean): HTMLElement {
@@ -158,9 +189,24 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
       h('p', { class: 'solve-note severity-error' }, `No operating point within the supply${m.solveNote ? `: ${m.solveNote}` : ''}.`),
       section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'note' }, 'No findings.')));
   }
+  // A device clicked in the schematic: its row selected, and revealed in the spec.
+  const onDevice = (name: string): void => {
+    const table = document.querySelector(`table.devices[data-mirror="${CSS.escape(m.name)}"]`);
+    const key = `dev:${m.name}:${name}`;
+    for (const tr of table?.querySelectorAll<HTMLElement>('tr[data-key]') ?? []) {
+      const on = tr.dataset.key === key;
+      tr.classList.toggle('selected', on);
+      tr.setAttribute('aria-selected', String(on));
+      if (on) tr.scrollIntoView({ block: 'nearest' });
+    }
+    markSchematicDevice(document, m.name, name);
+    const d = m.devices.find((x) => x.name === name);
+    const reveal = d ? deviceRow(report, m, d, own).reveal : undefined;
+    if (reveal && ctx.mode === 'panel') ctx.onReveal(reveal);
+  };
   const body: (HTMLElement | undefined)[] = [
     m.converged ? undefined : h('p', { class: 'solve-note severity-error' }, `The DC solve did not converge${m.solveNote ? `: ${m.solveNote}` : ''}.`),
-    figures(summaryFigures(m), { 'data-figures': 'summary' }),
+    h('div', { class: 'figures-schematic' }, figures(summaryFigures(m), { 'data-figures': 'summary' }), schematicFigure(report, m, onDevice)),
   ];
   const reqs = requirementViews(m, own);
   if (reqs.length > 0) {

@@ -125,7 +125,7 @@ function requirementText(mirror: MirrorReport, key: RequirementKey, target: numb
 
 function actualText(mirror: MirrorReport, key: RequirementKey): string {
   switch (key) {
-    case 'ratio': return formatNumber(mirror.ratio, 4);
+    case 'ratio': return formatNumber(mirror.ratio ?? NaN, 4);
     case 'rout': return formatSI(mirror.rout, 'Ω');
     case 'compliance': return formatSI(mirror.compliance, 'V', 4);
     case 'sigma': return mirror.sigma === undefined ? '—' : formatPercent(mirror.sigma);
@@ -154,9 +154,9 @@ function splitText(split: NonNullable<MirrorReport['errorSplit']>): string {
 
 export function summaryFigures(m: MirrorReport): FigureView[] {
   const figures: FigureView[] = [
-    { key: 'iin', label: 'Iin', value: formatSI(m.iin, 'A', 4), detail: 'input branch' },
+    { key: 'iin', label: 'Iin', value: m.iin !== undefined ? formatSI(m.iin, 'A', 4) : '–', detail: 'input branch' },
     { key: 'iout', label: 'Iout', value: formatSI(m.iout, 'A', 4), detail: `at Vout = ${formatSI(m.vout, 'V')}` },
-    { key: 'ratio', label: 'Ratio', value: formatNumber(m.ratio, 5),
+    { key: 'ratio', label: 'Ratio', value: formatNumber(m.ratio ?? NaN, 5),
       detail: m.ratioIdeal === undefined ? undefined : `ideal ${formatNumber(m.ratioIdeal, 5)}` },
   ];
   if (m.error !== undefined) {
@@ -233,7 +233,7 @@ export function deviceRow(report: FileReport, mirror: MirrorReport, d: DeviceRep
   return {
     name: d.name,
     cells: [
-      { text: d.name, title: d.role === d.name ? undefined : `role ${d.role}` },
+      { text: d.name, title: [d.role === d.name ? '' : `role ${d.role}`, d.table ? `from table ${d.table}` : ''].filter(Boolean).join('; ') || undefined },
       size(formatSI(d.w, 'm')),
       size(formatSI(d.l, 'm')),
       { text: formatNumber(d.m, 4) },

@@ -6,6 +6,7 @@ import { CAUTION } from '../core/text/format';
 import { toSarif } from '../core/report/sarif';
 import { countBySeverity } from '../core/findings';
 import { displayName, readSpec } from './io';
+import { readTables } from '../node/tables';
 import { DOCS_URL, VERSION } from './version';
 
 type CheckCommand = Extract<Command, { cmd: 'check' }>;
@@ -23,7 +24,7 @@ export function runCheck(c: CheckCommand): number {
       reports.push('tooLarge' in read ? { file: name, parsed: false, mirrors: [], anchors: [], findings: [read.tooLarge] } : unreadableReport(name, read.reason));
       continue;
     }
-    const report = analyzeText(read.text, name, opts);
+    const report = analyzeText(read.text, name, { ...opts, tables: readTables(file, read.text) });
     if (!report.parsed) unreadable = true;
     reports.push(report);
   }

@@ -6,6 +6,7 @@ import { findingLine } from '../core/report/text';
 import { escapeControls } from '../core/text/format';
 import { mirrorIndexOfPath } from '../core/mirror-at';
 import { readOne, replaceIfUnchanged } from './io';
+import { readTables } from '../node/tables';
 
 type FixCommand = Extract<Command, { cmd: 'fix' }>;
 
@@ -16,7 +17,8 @@ export function runFix(c: FixCommand): number {
   const name = read.name;
   // --corners: corner findings count (and get fixes verified at every corner), and a fix that
   // breaks a corner does not count as progress.
-  const opts = c.corners ? { corners: true } : {};
+  // Tables are read once: a fix edits the spec, never a table.
+  const opts = { ...(c.corners ? { corners: true } : {}), tables: readTables(c.file, read.text) };
   const before = analyzeText(read.text, name, opts);
   if (!before.parsed) {
     for (const f of before.findings) process.stderr.write(findingLine(name, f) + '\n');

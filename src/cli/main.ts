@@ -10,7 +10,8 @@ import { runReport } from './report';
 import { runSweep } from './sweep';
 import { VERSION } from './version';
 
-function main(argv: string[]): number {
+/** The exit code; `report` answers later (its schematics are laid out asynchronously). */
+function main(argv: string[]): number | Promise<number> {
   const parsed = parseCommandLine(argv);
   if (!parsed.ok) {
     process.stderr.write(`qpoint: ${parsed.error}\n(see qpoint --help)\n`);
@@ -33,10 +34,16 @@ process.stdout.on('error', (err: NodeJS.ErrnoException) => {
   throw err;
 });
 
-try {
-  process.exitCode = main(process.argv.slice(2));
-} catch (err) {
-  // Only a defect in qpoint lands here; say so plainly instead of a stack trace.
+// Only a defect in qpoint lands here; say so plainly instead of a stack trace.
+const internalError = (err: unknown): void => {
   process.stderr.write(`qpoint: internal error: ${(err as Error).message}\n`);
   process.exitCode = 2;
+};
+
+try {
+  const code = main(process.argv.slice(2));
+  if (typeof code === 'number') process.exitCode = code;
+  else code.then((c) => { process.exitCode = c; }, internalError);
+} catch (err) {
+  internalError(err);
 }

@@ -4,8 +4,10 @@ import { dirname, join } from 'node:path';
 import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
+import { schematicsOf } from '../core/schematic';
 import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
+import { readTables } from '../node/tables';
 
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
@@ -14,7 +16,7 @@ export function webviewAssets(): { script: string } {
   return { script: readFileSync(join(__dirname, 'webview.js'), 'utf8') };
 }
 
-export function runReport(c: ReportCommand): number {
+export async function runReport(c: ReportCommand): Promise<number> {
   if (isSameFile(c.file, c.html)) {
     process.stderr.write(`qpoint: --html ${c.html} is the spec itself; name another file for the page\n`);
     return 2;
@@ -23,11 +25,14 @@ export function runReport(c: ReportCommand): number {
   if (!read) return 2;
   const name = read.name;
   // The page carries what a review needs: curves, every named corner, and Monte Carlo on request.
-  const report = analyzeText(read.text, name, { curve: true, corners: true, ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
+  const report = analyzeText(read.text, name, { curve: true, corners: true, tables: readTables(c.file, read.text), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
+  // ELK is loaded only here: `check` and `fix` never pay for it.
+  const { default: ELK } = await import('elkjs/lib/elk.bundled.js');
+  const schematics = await schematicsOf(new ELK(), report);
   try {
     mkdirSync(dirname(c.html), { recursive: true });
     const stamp = { version: VERSION, date: new Date().toISOString(), inputHash: `sha256:${createHash('sha256').update(read.text).digest('hex')}` };
-    writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp));
+    writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp, schematics));
   } catch (err) {
     process.stderr.write(`qpoint: cannot write ${c.html}: ${reasonOf(err)}\n`);
     return 2;

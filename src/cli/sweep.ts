@@ -5,6 +5,7 @@ import { sweepVout } from '../core/analysis/index';
 import { escapeControls, formatSI } from '../core/text/format';
 import { findingLine } from '../core/report/text';
 import { readOne } from './io';
+import { readTables } from '../node/tables';
 
 type SweepCommand = Extract<Command, { cmd: 'sweep' }>;
 
@@ -14,7 +15,7 @@ export function runSweep(c: SweepCommand): number {
   const read = readOne(c.file);
   if (!read) return 2;
   const name = read.name;
-  const { parsed } = resolveText(read.text, name);
+  const { parsed } = resolveText(read.text, name, { tables: readTables(c.file, read.text) });
   if (!parsed.spec) {
     for (const f of parsed.findings) process.stderr.write(findingLine(name, f) + '\n');
     return 2;

@@ -3,9 +3,9 @@
  * FileReport. Every front end (extension worker, CLI, tests) calls this one function, so what a
  * designer sees in the editor, the panel and CI is computed once, the same way.
  */
-import type { Anchor, FileReport, Finding, MirrorReport, ResolvedSpec, WithheldMirror } from './types';
+import type { Anchor, FileReport, Finding, MirrorReport, MirrorWiring, ResolvedSpec, WithheldMirror } from './types';
 import { isRecord } from './spec/params';
-import type { ParsedSpec } from './spec/index';
+import type { ParsedSpec, TableTexts } from './spec/index';
 import { resolveText } from './resolve';
 import { analyzeSpec } from './analysis/index';
 import { runRules } from './rules/index';
@@ -15,7 +15,7 @@ import { attachVariation } from './variation/attach';
 import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
-import { mirrorAt } from './mirror-at';
+import { indexOf, mirrorAt } from './mirror-at';
 import { attachNetworks } from './network/report';
 import { networkFindings } from './network/findings';
 
@@ -32,8 +32,13 @@ export interface AnalyzeOptions {
   anchors?: boolean;
   /** With `corners`: fixes for corner findings, each verified by analysing the edited text at every corner (default true). */
   cornerFixes?: boolean;
+  /** Characterisation-table texts by the name the spec writes (`table:`), read by the front end
+   *  (relative to the spec, inside its folder, size-capped): the core reads no file. */
+  tables?: TableTexts;
   /** Fixes for `link-saturation`, each verified by analysing the edited text (default true). */
   linkFixes?: boolean;
+  /** Fixes for design findings (default true; a link fix's re-check needs findings only). */
+  ruleFixes?: boolean;
 }
 
 /** Callbacks of one in-process analysis (not options: they cannot cross to a worker thread). */
@@ -47,7 +52,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
   try {
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults });
+    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults, ...(opts.tables ? { tables: opts.tables } : {}) });
     parsed = resolved.parsed;
     const spec = parsed.spec;
     if (!spec) {
@@ -60,16 +65,16 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld ? { maxRechecks: 0 } : {}),
+      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : {}),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
-      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { anchors: false, linkFixes: false, ruleFixes: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       const reanalyze = opts.linkFixes === false ? undefined : (t: string) => analyzeText(t, file, again);
       findings.push(...networkFindings(parsed, spec, mirrors, net.networks, findings, reanalyze));
     }
     if (opts.corners && opts.cornerFixes !== false && !parsed.withheld) {
-      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}) };
+      const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
     }
     const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);
@@ -79,6 +84,7 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     };
     if (parsed.withheld) report.withheld = withheldMirrors(parsed, parsed.withheld);
     if (net.networks.length > 0) report.networks = net.networks;
+    report.wiring = wiringOf(spec);
     return report;
   } catch (err) {
     // A defect in qpoint must not cost the designer their diagnostics: report it as a finding.
@@ -102,6 +108,20 @@ function withheldMirrors(parsed: ParsedSpec, indices: number[]): WithheldMirror[
     const range = parsed.source.value(['mirrors', index, 'name']) ?? parsed.source.rangeFor(['mirrors', index]);
     return name === undefined ? { index, range } : { index, name, range };
   });
+}
+
+/** Each mirror's wiring for its schematic: what the figures do not say. */
+function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
+  const out: MirrorWiring[] = [];
+  spec.mirrors.forEach((m) => {
+    const mirrorIndex = indexOf(m);
+    if (m.kind !== 'netlist') { out.push({ mirrorIndex, input: m.input }); return; }
+    out.push({ mirrorIndex, netlist: {
+      devices: m.devices.map((d) => ({ name: d.name, d: d.d, g: d.g, s: d.s })),
+      currents: m.currents, voltages: m.voltages, resistors: m.resistors, output: m.output.node,
+    } });
+  });
+  return out;
 }
 
 /** Each report carries the requirements it is checked against, for the panel's "met" column. */

@@ -21,6 +21,9 @@ export const DEFAULTS = {
   noise: { f: 1e3, band: [1, 1e6] as [number, number] },
   /** m parallel count of a device. */
   m: 1,
+  /** relative: a start-up element counts as off at the operating point below this fraction of
+   *  the smallest branch current of its loop (design §14). */
+  startupLimit: 0.01,
 } as const;
 
 /** Limits that keep reading an untrusted spec fast and bounded (design §2, spec findings). */

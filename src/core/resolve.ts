@@ -5,7 +5,7 @@
  * them solves it.
  */
 import type { Limits, ResolvedSpec } from './types';
-import { parseSpec, type ParsedSpec } from './spec/index';
+import { parseSpec, type ParsedSpec, type TableTexts } from './spec/index';
 import { applyDesignTargets, type SizedDevice } from './design/auto-size';
 import { provisionalLinks, solveNetworks } from './network/index';
 
@@ -14,6 +14,8 @@ export interface ResolveOptions {
   limitsDefaults?: { margin?: number };
   /** Limits to use whatever the spec says (a fix's re-check keeps the original's). */
   limits?: Limits;
+  /** Characterisation-table texts by the name the spec writes (design §11). */
+  tables?: TableTexts;
 }
 
 export interface ResolvedText {
@@ -24,7 +26,7 @@ export interface ResolvedText {
 }
 
 export function resolveText(text: string, file?: string, opts: ResolveOptions = {}): ResolvedText {
-  const parsed = parseSpec(text, file);
+  const parsed = parseSpec(text, file, opts.tables ? { tables: opts.tables } : {});
   if (!parsed.spec) return { parsed, sized: [] };
   // Linked inputs start from their intended currents; once sized, each linked group is solved
   // as one circuit and its mirrors handed on at that solution (network/).

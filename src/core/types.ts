@@ -45,7 +45,22 @@ export interface Finding {
 export type Polarity = 'nmos' | 'pmos';
 /** The kinds are described once, in src/core/kinds/. */
 export type { MirrorKind, TemplateKind };
-export type ModelKind = 'square-law' | 'ekv';
+export type ModelKind = 'square-law' | 'ekv' | 'table';
+
+/** A characterisation table as read (design §11): every axis ascending, a full grid. Not
+ *  JSON-serialisable (a typed array); it stays inside the core. */
+export interface DeviceTable {
+  /** The `table:` value as written (a file name relative to the spec). */
+  file: string;
+  l: number[];       // m
+  vgs: number[];     // V (magnitudes for PMOS)
+  vds: number[];     // V
+  vsb: number[];     // V
+  /** K, when the table has a temperature column (or several files, one per temperature). */
+  temperature?: number[];
+  /** A per metre of width at [t][l][vsb][vds][vgs] (vgs fastest); 0 on a vds = 0 row. */
+  id: Float64Array;
+}
 
 /** Process parameters of one device type, every default filled. PMOS vt0 is a magnitude. */
 export interface DeviceParams {
@@ -68,7 +83,16 @@ export interface DeviceParams {
   kf?: number;
   /** F/m², gate capacitance per area (the flicker form's Cox). */
   cox?: number;
+  /** The device's characterisation table: its devices follow the table model (kp and vt0 are
+   *  then not read). */
+  table?: DeviceTable;
 }
+
+/** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
+export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
+
+/** A named device flavour of the process (`process.devices`): thin- or thick-oxide, low-VT… */
+export interface DeviceFlavour { type: Polarity; params: DeviceParams }
 
 export interface ProcessSpec {
   model: ModelKind;
@@ -81,6 +105,8 @@ export interface ProcessSpec {
   resistors?: ResistorCorner;
   nmos: DeviceParams;
   pmos: DeviceParams;
+  /** Device flavours by name; a template mirror picks one with `device:`. */
+  devices?: Record<string, DeviceFlavour>;
 }
 
 export interface Supplies { vdd: number; vss: number }
@@ -111,6 +137,7 @@ export interface DeviceSize {
 export type InputSource =
   | { kind: 'current'; i: number }            // A, ideal
   | ({ kind: 'resistor'; r: number } & ResistorDrift)  // Ω at tnom, to the opposite rail
+  | { kind: 'self' }                          // a self-biased reference: its loop sets the current
   | LinkInput;                                // fed by another mirror's output (design §9.1)
 
 /** `input: { from: PATH }`: this mirror's input node is the named output's node. `i` is the current
@@ -191,9 +218,15 @@ export interface TemplateMirror {
   devices: Record<string, DeviceSize>;
   /** Wide-swing only: the cascode gate voltage (absolute V); absent = picked by qpoint. */
   vbias?: number;
+  /** The process device flavour its devices are (`process.devices`); absent = process.nmos/pmos. */
+  device?: string;
   design?: DesignTarget;
   /** RC filter on the gate lines from the reference to the output devices. */
   filter?: GateFilter;
+  /** Reference kinds: the loop resistor (Ω, `resistor:`). */
+  resistor?: number;
+  /** Reference kinds: the start-up device (`startup:`), absent when none is written. */
+  startup?: DeviceSize;
   outputs: MirrorOutput[];
   path: SpecPath;  // ['mirrors', i]
 }
@@ -219,8 +252,11 @@ export interface NetlistMirror {
   resistors: NetlistResistor[];
   /** The measured output: node held at v by an ideal source. */
   output: { node: string; v: number; range?: [number, number] };
-  /** The current source whose current is iin. */
-  input: { source: string };
+  /** The current source whose current is iin; absent for a self-biased netlist (then iin,
+   *  ratio and error are absent). */
+  input?: { source: string };
+  /** Extra devices judged as the start-up element (`startup:`), in the netlist's device format. */
+  startup?: NetlistDevice[];
   /** Optional mirror pair for ratioIdeal: names of the reference and output devices. */
   pair?: { ref: string; out: string };
   require: Requirements;
@@ -233,8 +269,10 @@ export type ParamDelta = { add: number } | { scale: number };  // scale: multipl
 
 export interface CornerSpec {
   name: string;
-  nmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
-  pmos: Partial<Record<keyof DeviceParams, ParamDelta>>;
+  nmos: Partial<Record<NumericParam, ParamDelta>>;
+  pmos: Partial<Record<NumericParam, ParamDelta>>;
+  /** Tables the corner puts in place of the process's (a foundry's ss/ff characterisation). */
+  tables?: { nmos?: DeviceTable; pmos?: DeviceTable };
   temperature?: number;  // K
   vdd?: number;
   vss?: number;
@@ -311,6 +349,9 @@ export interface DeviceReport {
   gm: number; gds: number; gmb: number;
   ro: number;
   gmId: number;            // gm/ID, 1/V
+  /** The characterisation table the device's figures come from (its `table:` value), when
+   *  it is a table device. */
+  table?: string;
 }
 
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
@@ -340,6 +381,33 @@ export interface MonteCarloResult {
    *  converge, a device out of saturation at the nominal output, ratio outside limits.error,
    *  not saturated at require.compliance. */
   failures?: { convergence: number; saturation: number; ratio: number; compliance: number };
+}
+
+/** The start-up check of a self-biased circuit (design §9.2, analysis/startup.ts). */
+export interface StartupReport {
+  /** An all-off state is consistent without the start-up element: every loop device can sit in
+   *  cutoff with zero current in every branch. */
+  zeroState: boolean;
+  /** A start-up element is written. */
+  element: boolean;
+  /** With an element: it conducts in every zero-current state (so that state is no longer
+   *  consistent and the loop is started). */
+  conducts?: boolean;
+  /** With an element: A, its current at the operating point, and the limit it must stay below
+   *  (1 % of the smallest branch current of the loop). */
+  current?: number;
+  limit?: number;
+}
+
+/** What a self-biased reference (a reference kind, or a netlist without input) reports. */
+export interface ReferenceReport {
+  /** A, the loop current: a reference kind's resistor current (the current the loop sets; iin
+   *  is `ref`'s, which the taps copy); a netlist's smallest branch current. */
+  current: number;
+  /** Loop gain at the operating point (< 1: the operating point is stable), from the return
+   *  difference of the loop's breaking device; absent for a netlist. */
+  loopGain?: number;
+  startup: StartupReport;
 }
 
 export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
@@ -384,9 +452,10 @@ export interface MirrorReport {
    *  voltage (V) that chain takes to carry its current, against the supply. */
   beyondRails?: { node: string; v: number; rail: 'vdd' | 'vss'; stack: string[]; need: number };
   vout: number;        // V, nominal output voltage (absolute)
-  iin: number;
+  /** Absent for a self-biased netlist (it has no input). */
+  iin?: number;
   iout: number;
-  ratio: number;
+  ratio?: number;
   ratioIdeal?: number;
   error?: number;
   errorSplit?: ErrorSplit;
@@ -398,6 +467,8 @@ export interface MirrorReport {
    *  figure then; `compliance` holds the far rail only as design §4's placeholder. */
   noCompliance?: { device: string };
   sigma?: number;
+  /** A self-biased reference: its current, loop gain and start-up check. */
+  reference?: ReferenceReport;
   /** Wide-swing: the cascode gate voltage used (V, absolute) and whether qpoint picked it. */
   vbias?: number;
   vbiasPicked?: boolean;
@@ -475,8 +546,26 @@ export interface FileReport {
   /** Mirrors left unsolved because they have errors (the rest are solved); fixes are offered
    *  once there are none. Not part of the CLI's JSON. */
   withheld?: WithheldMirror[];
+  /** What a schematic needs beyond the figures, per mirror: how a template's input is driven
+   *  and a netlist's own wiring (src/core/schematic/). Not part of the CLI's JSON. */
+  wiring?: MirrorWiring[];
   /** Linked groups of mirrors (design §9.3), root first; absent without links. */
   networks?: NetworkReport[];
+}
+
+/** One mirror's wiring for its schematic: a template kind's input source, or a netlist's parts
+ *  on their nodes. */
+export interface MirrorWiring {
+  mirrorIndex: number;
+  input?: InputSource;
+  netlist?: {
+    devices: { name: string; d: string; g: string; s: string }[];
+    currents: NetlistCurrentSource[];
+    voltages: NetlistVoltageSource[];
+    resistors: NetlistResistor[];
+    /** The measured output node. */
+    output: string;
+  };
 }
 
 /** One bias network: a root and the mirrors it feeds, solved as one circuit. */

@@ -8,7 +8,7 @@
  * status bar, CodeLens) listen to `onDidUpdate`.
  */
 import * as vscode from 'vscode';
-import type { AnalyzeOptions } from '../core/analyze';
+import type { HostAnalyzeOptions } from './workerProtocol';
 import type { FileReport } from '../core/types';
 import type { Analyzer } from './analyzer';
 import { toDiagnostics } from './convert';
@@ -64,6 +64,9 @@ export class AnalysisManager implements vscode.Disposable {
       // A workspace check leaves diagnostics on files that are not open: drop them with the file.
       vscode.workspace.onDidDeleteFiles((e) => { for (const u of e.files) this.forgetUnder(u); }),
       vscode.workspace.onDidRenameFiles((e) => { for (const f of e.files) this.forgetUnder(f.oldUri); }),
+      // A characterisation table changed on disk: every open spec is analysed again (the worker
+      // reads a table again only when its size or time changed).
+      ...this.watchTables(),
     );
     for (const d of vscode.workspace.textDocuments) this.open(d);
     this.activeChanged(vscode.window.activeTextEditor);
@@ -113,9 +116,10 @@ export class AnalysisManager implements vscode.Disposable {
   }
 
   /** Options for the core from the settings (the fallback margin, corners on or off). */
-  optionsFor(uri: vscode.Uri, curve: boolean): AnalyzeOptions {
+  optionsFor(uri: vscode.Uri, curve: boolean): HostAnalyzeOptions {
     const s = readSettings(uri);
-    return { curve, corners: s.corners, limitsDefaults: { margin: s.margin } };
+    // A spec on disk: the worker reads the tables it names beside it (design §11).
+    return { curve, corners: s.corners, limitsDefaults: { margin: s.margin }, ...(uri.scheme === 'file' ? { specPath: uri.fsPath } : {}) };
   }
 
   /** A report computed on purpose for exactly `version` of `doc` (Monte Carlo): it becomes the
@@ -195,6 +199,12 @@ export class AnalysisManager implements vscode.Disposable {
     if (!e) this.open(doc);
     else if (!e.hasCurve && !e.timer && panelIsOpen()) void this.run(doc, e, true);
     else if (e.report) this.emitter.fire({ uri: e.uri, report: e.report, version: e.reportVersion ?? doc.version });
+  }
+
+  private watchTables(): vscode.Disposable[] {
+    const w = vscode.workspace.createFileSystemWatcher('**/*.{csv,CSV}');
+    const again = (): void => this.reanalyzeAll();
+    return [w, w.onDidChange(again), w.onDidCreate(again), w.onDidDelete(again)];
   }
 
   private reanalyzeAll(): void {

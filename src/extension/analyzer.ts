@@ -10,7 +10,7 @@
  * No `vscode` here, so it is tested with the real worker bundle.
  */
 import { Worker } from 'node:worker_threads';
-import type { AnalyzeOptions } from '../core/analyze';
+import type { HostAnalyzeOptions } from './workerProtocol';
 import type { FileReport } from '../core/types';
 import type { FixAllResult } from '../core/rules/fix-all';
 import { isWorkerResponse, type Job, type WorkerRequest, type WorkerResponse } from './workerProtocol';
@@ -18,9 +18,9 @@ import { isWorkerResponse, type Job, type WorkerRequest, type WorkerResponse } f
 export interface Analyzer {
   /** Resolves undefined when a newer request for `key` superseded this one. `onProgress` hears a
    *  Monte Carlo job's samples done of total while it runs. */
-  analyze(key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined>;
+  analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined>;
   /** The core's verified multi-round fix-all, off the main thread. */
-  fixAll(key: string, text: string, file: string, opts: AnalyzeOptions): Promise<FixAllResult | undefined>;
+  fixAll(key: string, text: string, file: string, opts: HostAnalyzeOptions): Promise<FixAllResult | undefined>;
   dispose(): void;
 }
 
@@ -85,17 +85,17 @@ export class WorkerAnalyzer implements Analyzer {
     this.log = opts.log ?? (() => undefined);
   }
 
-  async analyze(key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined> {
+  async analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined> {
     const r = await this.request('analyze', key, text, file, opts, onProgress);
     return r?.type === 'report' ? r.report : undefined;
   }
 
-  async fixAll(key: string, text: string, file: string, opts: AnalyzeOptions): Promise<FixAllResult | undefined> {
+  async fixAll(key: string, text: string, file: string, opts: HostAnalyzeOptions): Promise<FixAllResult | undefined> {
     const r = await this.request('fixAll', `fix:${key}`, text, file, opts);
     return r?.type === 'fixed' ? r.result : undefined;
   }
 
-  private request(job: Job, key: string, text: string, file: string, opts: AnalyzeOptions, onProgress?: Progress): Promise<WorkerResponse | undefined> {
+  private request(job: Job, key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<WorkerResponse | undefined> {
     if (this.disposed) return Promise.resolve(undefined);
     const seq = ++this.seq;
     const older = this.latest.get(key);

@@ -6,6 +6,8 @@ import * as vscode from 'vscode';
 import type { FileReport, Finding, Fix, Position, Range, Severity, TextEdit } from '../core/types';
 import { hoverMarkdown, hoverTarget, lensPlacements } from './present';
 import { pathAt } from './specPath';
+import type { LinkSites } from '../core/network/link-sites';
+import { linkHoverAt } from './linkNav';
 
 export const DIAGNOSTIC_SOURCE = 'qpoint';
 export const FIX_ALL_KIND = vscode.CodeActionKind.SourceFixAll.append('qpoint');
@@ -100,11 +102,13 @@ export function toFixAllAction(uri: vscode.Uri, edit: TextEdit | undefined, appl
   return a;
 }
 
-export function toHover(report: FileReport, text: string, pos: vscode.Position): vscode.Hover | undefined {
+export function toHover(report: FileReport, text: string, pos: vscode.Position, sites?: LinkSites): vscode.Hover | undefined {
   const p = fromPosition(pos);
-  const target = hoverTarget(report, p, pathAt(text, p));
-  if (!target) return undefined;
-  const md = new vscode.MarkdownString(hoverMarkdown(target));
+  const onLink = sites ? linkHoverAt(report, sites, p) : undefined;
+  const target = onLink === undefined ? hoverTarget(report, p, pathAt(text, p)) : undefined;
+  const markdown = onLink ?? (target ? hoverMarkdown(target) : undefined);
+  if (markdown === undefined) return undefined;
+  const md = new vscode.MarkdownString(markdown);
   md.supportThemeIcons = false;
   md.isTrusted = false;
   return new vscode.Hover(md);

@@ -3,7 +3,7 @@
  * Pure (no `vscode`), so it is tested without an editor; convert.ts wraps the results in vscode
  * objects. No physics here: every number comes from the core's report.
  */
-import type { Anchor, DeviceReport, FileReport, MirrorReport, Position, Range, SpecPath } from '../core/types';
+import type { Anchor, DeviceReport, FileReport, MirrorReport, NetworkReport, Position, Range, SpecPath } from '../core/types';
 import { CAUTION as CAUTION_TEXT, formatPercent, formatPlain, formatSI, formatSignedPercent } from '../core/text/format';
 
 export { formatPercent, formatPlain, formatSignedPercent };
@@ -136,7 +136,7 @@ function pairTable(rows: [string, string][]): string {
 /** One title line, five table rows, the caution: short enough that the editor's hover shows it
  *  whole, below a diagnostic or two, without scrolling. */
 export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
-  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}`;
+  const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}${d.table ? ` · from table ${escapeMd(d.table)}` : ''}`;
   const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
   return `${head}${note}\n\n${pairTable(deviceFigures(d))}\n\n${CAUTION}`;
 }
@@ -157,9 +157,9 @@ export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): st
 /** The measured figures of one output, textbook Rout beside the exact one. */
 export function mirrorFigures(r: MirrorReport): [label: string, value: string][] {
   const rows: [string, string][] = [
-    ['Iin', formatSI(r.iin, 'A')],
+    ['Iin', formatSI(r.iin ?? NaN, 'A')],
     ['Iout', formatSI(r.iout, 'A')],
-    ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio, 4)],
+    ['ratio', r.ratioIdeal !== undefined ? `${formatPlain(r.ratio ?? NaN, 4)} (ideal ${formatPlain(r.ratioIdeal, 4)})` : formatPlain(r.ratio ?? NaN, 4)],
   ];
   if (r.error !== undefined) rows.push(['error', formatSignedPercent(r.error)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
@@ -207,7 +207,7 @@ export function mirrorHoverMarkdown(mirror: string, reports: MirrorReport[]): st
   ];
   for (const r of reports) {
     const rout = r.routApprox !== undefined ? `${formatOhm(r.rout)} (${formatOhm(r.routApprox)})` : formatOhm(r.rout);
-    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio, 4)} | ${r.error !== undefined ? formatSignedPercent(r.error) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
+    lines.push(`| ${escapeMd(r.output ?? r.name)} | ${formatSI(r.iout, 'A')} | ${formatPlain(r.ratio ?? NaN, 4)} | ${r.error !== undefined ? formatSignedPercent(r.error) : '–'} | ${rout} | ${complianceText(r)} | ${r.sigma !== undefined ? formatPercent(r.sigma) : '–'} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
 }
@@ -251,7 +251,53 @@ export function lensPlacements(file: FileReport): { range: Range; report?: Mirro
       out.push({ range: a.range, report, title: lensTitle(report) });
     }
   }
+  // A network's root gets one more lens on its name: the whole network's figures.
+  for (const n of file.networks ?? []) {
+    const a = file.anchors.find((x) => x.kind === 'mirror' && x.path[1] === n.rootIndex);
+    if (a) out.push({ range: a.range, title: networkLensTitle(n, file) });
+  }
   return out;
+}
+
+// ───────────────────────────── bias networks (design §9.3) ─────────────────────────────
+
+/** The report of output `output` of the mirror at file index `mirror`. */
+export function reportAt(file: FileReport, mirror: number, output: number): MirrorReport | undefined {
+  return file.mirrors.find((m) => m.mirrorIndex === mirror && m.outputIndex === output);
+}
+
+/** The upstream output's device whose VDS the link sets: the output-side device (role `out…`)
+ *  with the least margin. */
+export function linkDevice(r: MirrorReport): DeviceReport | undefined {
+  const outs = r.devices.filter((d) => /^out/.test(d.role));
+  return (outs.length > 0 ? outs : r.devices).reduce<DeviceReport | undefined>((a, d) => (!a || d.margin < a.margin ? d : a), undefined);
+}
+
+/** Hover on a `from` value: what arrives through the link, from the upstream output's report. */
+export function linkHoverMarkdown(up: MirrorReport, fed: MirrorReport | undefined): string {
+  const rows: [string, string][] = [['current that arrives', formatSI(up.iout, 'A')]];
+  if (up.intended !== undefined) rows.push(['intended', formatSI(up.intended, 'A')]);
+  if (up.chainError !== undefined) rows.push(['chain error', formatSignedPercent(up.chainError)]);
+  if (up.chainSigma !== undefined) rows.push(['chain sigma', formatPercent(up.chainSigma)]);
+  if (up.linkV !== undefined) rows.push(['node voltage', formatSI(up.linkV, 'V')]);
+  if (up.headroom !== undefined) rows.push(['headroom', formatSI(up.headroom, 'V')]);
+  const d = linkDevice(up);
+  if (d) rows.push([`margin of ${escapeMd(d.name)}`, `${formatSI(d.margin, 'V')} (${regionText(d)})`]);
+  const table = ['| | |', '|:--|--:|', ...rows.map(([k, v]) => `| **${k}** | ${v} |`)].join('\n');
+  const into = fed ? ` → input of **${escapeMd(fed.mirror)}**` : '';
+  return `Link from **${escapeMd(up.name)}** · ${kindLine(up)}${into}${convergenceNote([up])}\n\n${table}\n\n${CAUTION}`;
+}
+
+/** One line above a network's root: what the network draws and its worst leaf. */
+export function networkLensTitle(n: NetworkReport, file: FileReport): string {
+  if (!n.converged) return `network ${n.root}: did not converge`;
+  const { vdd, vss } = n.supplyCurrent;
+  const supply = Math.abs(vdd - vss) <= 1e-9 * Math.max(Math.abs(vdd), Math.abs(vss))
+    ? `supply ${formatSI(vdd, 'A')}` : `supply ${formatSI(vdd, 'A')} from vdd, ${formatSI(vss, 'A')} into vss`;
+  const parts = [`network of ${n.members.length}`, supply, `${formatSI(n.power, 'W')}`];
+  const worst = n.worstLeaf !== undefined ? file.mirrors.find((m) => m.name === n.worstLeaf) : undefined;
+  if (worst?.chainError !== undefined) parts.push(`worst leaf ${worst.name}: chain error ${formatSignedPercent(worst.chainError)}`);
+  return parts.join(' · ');
 }
 
 export interface Counts { mirrors: number; errors: number; warnings: number; infos: number }

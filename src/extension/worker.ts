@@ -4,9 +4,10 @@
  * key; only the newest per key is analysed, the older ones are answered `superseded`.
  */
 import { parentPort } from 'node:worker_threads';
-import { analyzeText } from '../core/analyze';
+import { analyzeText, type AnalyzeOptions } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
 import { isWorkerRequest, type WorkerRequest, type WorkerResponse } from './workerProtocol';
+import { readTables, type TableCache } from '../node/tables';
 
 const port = parentPort;
 if (!port) throw new Error('qpoint worker: must run in a worker thread');
@@ -18,9 +19,19 @@ function send(m: WorkerResponse): void {
   port!.postMessage(m);
 }
 
+/** Table texts by path, kept while their files are unchanged. */
+const tableCache: TableCache = new Map();
+
+/** The core's options of a request: the tables read beside the spec, the spec's path dropped. */
+function coreOptions(req: WorkerRequest): AnalyzeOptions {
+  const { specPath, ...opts } = req.opts;
+  return specPath ? { ...opts, tables: readTables(specPath, req.text, tableCache) } : opts;
+}
+
 function run(req: WorkerRequest): WorkerResponse {
   const t0 = performance.now();
   try {
+    req = { ...req, opts: coreOptions(req) };
     if (req.job === 'fixAll') {
       const result = fixAll(req.text, req.file, (text) => analyzeText(text, req.file, req.opts));
       return { type: 'fixed', seq: req.seq, key: req.key, result, ms: performance.now() - t0 };

@@ -10,6 +10,10 @@ import type { FixAllResult } from '../core/rules/fix-all';
 
 export type Job = 'analyze' | 'fixAll';
 
+/** What the host asks of an analysis: the core's options and, for a spec on disk, its path, so
+ *  the worker reads the characterisation tables it names (design §11) beside it. */
+export type HostAnalyzeOptions = AnalyzeOptions & { specPath?: string };
+
 export interface WorkerRequest {
   job: Job;
   seq: number;
@@ -17,7 +21,7 @@ export interface WorkerRequest {
   key: string;
   text: string;
   file: string;
-  opts: AnalyzeOptions;
+  opts: HostAnalyzeOptions;
 }
 
 export type WorkerResponse =

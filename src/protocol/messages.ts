@@ -8,7 +8,7 @@
  */
 import type {
   Anchor, CornerResult, CurvePoint, DeviceReport, FileReport, Finding, MirrorReport,
-  MonteCarloResult, Position, Range, Requirements, SpecPath,
+  MonteCarloResult, NetworkReport, Position, Range, Requirements, SpecPath,
 } from '../core/types';
 import { MIRROR_KINDS } from '../core/kinds/names';
 
@@ -149,18 +149,29 @@ function isRequirements(v: unknown): v is Requirements {
   return isRecord(v) && ['ratio', 'rout', 'compliance', 'sigma'].every((k) => optional(v[k], isNumber));
 }
 
-const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iin', 'iout', 'ratio', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
-const MIRROR_OPTIONAL_NUMBERS = ['ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias'] as const;
+const MIRROR_NUMBERS = ['iterations', 'residual', 'vout', 'iout', 'rout', 'compliance', 'mirrorIndex', 'outputIndex'] as const;
+/** `iin` and `ratio` are absent for a self-biased netlist (it has no input). */
+const MIRROR_OPTIONAL_NUMBERS = ['iin', 'ratio', 'ratioIdeal', 'error', 'routApprox', 'sigma', 'vbias', 'intended', 'chainError', 'chainSigma', 'linkV', 'headroom'] as const;
+
+function isReferenceReport(v: unknown): boolean {
+  return isRecord(v) && isNumber(v.current) && optional(v.loopGain, isNumber) &&
+    isRecord(v.startup) && isBoolean(v.startup.zeroState) && isBoolean(v.startup.element) &&
+    optional(v.startup.conducts, isBoolean) && optional(v.startup.current, isNumber) && optional(v.startup.limit, isNumber);
+}
+/** Bias networks (design §9.3): the names an output's links and network go by. */
+const MIRROR_OPTIONAL_STRINGS = ['feeds', 'fedBy', 'network'] as const;
 
 export function isMirrorReport(v: unknown): v is MirrorReport {
   return isRecord(v) && isString(v.name) && isString(v.mirror) && optional(v.output, isString) &&
     oneOf(v.kind, KINDS) && oneOf(v.type, POLARITIES) && isBoolean(v.converged) &&
     MIRROR_NUMBERS.every((k) => isNumber(v[k])) &&
     MIRROR_OPTIONAL_NUMBERS.every((k) => optional(v[k], isNumber)) &&
+    MIRROR_OPTIONAL_STRINGS.every((k) => optional(v[k], isString)) &&
     optional(v.solveNote, isString) && optional(v.vbiasPicked, isBoolean) &&
     optional(v.noCompliance, (c) => isRecord(c) && isString(c.device)) &&
     optional(v.beyondRails, (b) => isRecord(b) && isString(b.node) && isNumber(b.v) && oneOf(b.rail, ['vdd', 'vss'] as const) &&
       arrayOf(b.stack, isString) && isNumber(b.need)) &&
+    optional(v.reference, isReferenceReport) &&
     optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.vds) && isNumber(s.body) && isNumber(s.geometry) && optional(s.gate, isNumber)) &&
     isRecord(v.nodes) && Object.values(v.nodes).every(isNumber) &&
     arrayOf(v.devices, isDeviceReport) && isSpecPath(v.path) &&
@@ -170,10 +181,17 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     optional(v.require, isRequirements);
 }
 
+export function isNetworkReport(v: unknown): v is NetworkReport {
+  return isRecord(v) && isString(v.root) && isCount(v.rootIndex) && arrayOf(v.members, isString) &&
+    isBoolean(v.converged) && isRecord(v.supplyCurrent) && isNumber(v.supplyCurrent.vdd) && isNumber(v.supplyCurrent.vss) &&
+    isNumber(v.power) && arrayOf(v.leaves, isString) && optional(v.worstLeaf, isString);
+}
+
 export function isFileReport(v: unknown): v is FileReport {
   return isRecord(v) && isString(v.file) && isBoolean(v.parsed) && optional(v.title, isString) &&
     arrayOf(v.mirrors, isMirrorReport) && arrayOf(v.findings, isFinding) && arrayOf(v.anchors, isAnchor) &&
-    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin));
+    optional(v.limits, (l) => isRecord(l) && isNumber(l.error) && isNumber(l.margin)) &&
+    optional(v.networks, (n) => arrayOf(n, isNetworkReport));
 }
 
 // ───────────────────────────── primitives ─────────────────────────────

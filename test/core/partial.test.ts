@@ -6,6 +6,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 import { fixAll } from '../../src/core/rules/fix-all';
 
 const example = readFileSync(join(__dirname, '../../examples/sensor-afe.bias.yaml'), 'utf8');
@@ -38,9 +39,9 @@ mirrors:
 
 describe('a typo in one mirror', () => {
   it('leaves that mirror out and solves the others with the same figures', () => {
-    const clean = analyzeText(example, 'sensor-afe.bias.yaml');
+    const clean = analyzeText(example, 'sensor-afe.bias.yaml', { tables: exampleTables() });
     // A mirror outside the example's bias network: a linked one would also change what feeds it.
-    const typo = analyzeText(replaceOnce(example, 'kind: wilson-balanced\n', 'kind: wilson-balancd\n'), 'sensor-afe.bias.yaml');
+    const typo = analyzeText(replaceOnce(example, 'kind: wilson-balanced\n', 'kind: wilson-balancd\n'), 'sensor-afe.bias.yaml', { tables: exampleTables() });
     const err = typo.findings.find((f) => f.severity === 'error');
     expect(err?.path.slice(0, 2)).toEqual(['mirrors', 6]);
     // Set aside with where its `name` is written (the editor's CodeLens on it goes there).

@@ -1,6 +1,6 @@
 /**
  * Output current noise (design §12) against the computed check values of docs/references.md
- * §11 (set D: k′ = 134 µA/V², W/L = 10, 100 µA, gm = 517.687 µS, T = 300 K, γ = 2/3).
+ * §12 (set D: k′ = 134 µA/V², W/L = 10, 100 µA, gm = 517.687 µS, T = 300 K, γ = 2/3).
  */
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
@@ -20,7 +20,7 @@ function mirrorD(f = 1e3, extra: Partial<TemplateMirror> = {}, flicker = false):
   return spec;
 }
 
-describe('simple 1:1 mirror (references §11)', () => {
+describe('simple 1:1 mirror (references §12)', () => {
   it('thermal output noise 8kTγgm = 1.143591e-23 A²/Hz (both devices, half each)', () => {
     const r = run(mirrorD());
     expect(rel(psd(r), 1.143591e-23)).toBeLessThan(1e-5);
@@ -51,7 +51,7 @@ describe('simple 1:1 mirror (references §11)', () => {
   });
 });
 
-describe('cascode: the cascode device’s own noise is suppressed by about (gm·ro)² (references §11)', () => {
+describe('cascode: the cascode device’s own noise is suppressed by about (gm·ro)² (references §12)', () => {
   it('outc reaches the output through 1/(1 + (gm + gmb + gds)·ro_out)', () => {
     const spec = makeSpec([template('cascode', { input: 100e-6, size: sz(10e-6, 1e-6), vout: 2.5 })], { tnom: 300 });
     const r = run(spec);
@@ -63,7 +63,7 @@ describe('cascode: the cascode device’s own noise is suppressed by about (gm·
   });
 });
 
-describe('RC gate filter r = 1 MΩ, c = 10 pF on the 1:1 mirror (references §11)', () => {
+describe('RC gate filter r = 1 MΩ, c = 10 pF on the 1:1 mirror (references §12)', () => {
   const filter = { filter: { r: 1e6, c: 10e-12 } };
   it.each([
     [1e3, 4.4341e-21],

@@ -120,7 +120,7 @@ describe('PMOS compliance mirrors NMOS: vdd − compliance', () => {
     expect(Math.abs(p.compliance - (3.3 - n.compliance))).toBeLessThan(2e-5);
     expect(p.iout).toBeCloseTo(n.iout, 12);
     expect(p.rout / n.rout).toBeCloseTo(1, 6);
-    expect(p.ratio).toBeCloseTo(n.ratio, 9);
+    expect(p.ratio).toBeCloseTo(n.ratio!, 9);
     checkEdge(p, { type: 'pmos', vout: 0.8 }, kind, s);
   });
 });

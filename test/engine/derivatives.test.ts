@@ -16,11 +16,12 @@ import { MODEL_NAMES } from '../../src/core/models/registry';
 import { evalTerminal } from '../../src/core/models/terminal';
 import type { ModelKind, NetlistMirror, Polarity, TemplateMirror } from '../../src/core/types';
 import { makeSpec, netlist, RAZAVI_N, template } from './builders';
+import { forModel } from '../tables/make-table';
 
 const H = 1e-6;
 
 function fdCheck(model: ModelKind, type: Polarity, vgs: number, vds: number, vbs: number): void {
-  const dev = prepareDevice({ ...RAZAVI_N, lambda: 0.08 }, { w: 10e-6, l: 1e-6, m: 1 }, type,
+  const dev = prepareDevice(forModel(model, { ...RAZAVI_N, lambda: 0.08 }), { w: 10e-6, l: 1e-6, m: 1 }, type,
     { model, temperature: 300, tnom: 300 });
   const at = newChannelEval();
   const id = (g: number, d: number, b: number): number => { evalTerminal(dev, g, d, b, at); return at.id; };

@@ -69,8 +69,8 @@ describe('resistor input', () => {
   it('iin = (vdd − VGS)/R for a simple NMOS mirror, and the diode carries it', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { input: { resistor: 22e3 }, vout: 2 })])));
     expect(r.converged).toBe(true);
-    expect(rel(r.iin, (3.3 - r.nodes.a!) / 22e3)).toBeLessThan(1e-12);
-    expect(rel(r.devices[0]!.id, r.iin)).toBeLessThan(1e-7);
+    expect(rel(r.iin!, (3.3 - r.nodes.a!) / 22e3)).toBeLessThan(1e-12);
+    expect(rel(r.devices[0]!.id, r.iin!)).toBeLessThan(1e-7);
     // Closed form: β/2·(VGS − VT)²·(1 + λVGS) = (vdd − VGS)/R.
     const vgs = r.nodes.a!;
     expect(rel(((134e-6 * 10) / 2) * (vgs - 0.7) ** 2 * (1 + 0.1 * vgs), (3.3 - vgs) / 22e3)).toBeLessThan(1e-7);
@@ -78,7 +78,7 @@ describe('resistor input', () => {
   it('PMOS: the resistor runs from the input node to vss', () => {
     const r = measureMirror(ctxOf(makeSpec([template('cascode', { type: 'pmos', input: { resistor: 50e3 }, vout: 1 })])));
     expect(r.converged).toBe(true);
-    expect(rel(r.iin, r.nodes.b! / 50e3)).toBeLessThan(1e-12);
+    expect(rel(r.iin!, r.nodes.b! / 50e3)).toBeLessThan(1e-12);
     expect(r.iout).toBeGreaterThan(0);
   });
 });
@@ -185,12 +185,12 @@ describe('EKV mirrors', () => {
   it.each(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'] as const)('%s converges and mirrors within a few per cent', (kind) => {
     const r = measureMirror(ctxOf(makeSpec([template(kind, { vout: 2.5 })], { model: 'ekv' })));
     expect(r.converged).toBe(true);
-    expect(Math.abs(r.ratio - 1)).toBeLessThan(kind === 'simple' || kind === 'wilson' ? 0.15 : 0.01);
+    expect(Math.abs(r.ratio! - 1)).toBeLessThan(kind === 'simple' || kind === 'wilson' ? 0.15 : 0.01);
     expect(r.devices.every((d) => d.region === 'saturation')).toBe(true);
   });
   it('simple EKV mirror: ratio = (1 + λVout)/(1 + λVGS) in saturation (IR negligible)', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { vout: 2.5 })], { model: 'ekv' })));
-    expect(rel(r.ratio, (1 + 0.1 * 2.5) / (1 + 0.1 * r.nodes.a!))).toBeLessThan(1e-6);
+    expect(rel(r.ratio!, (1 + 0.1 * 2.5) / (1 + 0.1 * r.nodes.a!))).toBeLessThan(1e-6);
   });
   it('weak inversion: gm/ID of the devices approaches 1/(n·U_T)', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { input: 1e-9, vout: 1.5 })], { model: 'ekv' })));

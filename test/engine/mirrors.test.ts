@@ -44,7 +44,7 @@ describe('simple mirror (references §9, constructed check on D)', () => {
     const r = measure('simple', { vout });
     expect(rel(r.iout, iout)).toBeLessThan(1e-6);
     // ratio = (1 + λ·VDS,out)/(1 + λ·VDS,ref) exactly in the square law.
-    expect(rel(r.ratio, (1 + 0.1 * vout) / (1 + 0.1 * 1.067234))).toBeLessThan(1e-6);
+    expect(rel(r.ratio!, (1 + 0.1 * vout) / (1 + 0.1 * 1.067234))).toBeLessThan(1e-6);
     expect(r.ratioIdeal).toBe(1);
     // The whole error is VDS mismatch; the pair shares VGS and VBS, and the same L.
     // The split comes from model currents; the error also sees gmin (1e-12 S) leakage: 1e-7.
@@ -132,7 +132,7 @@ describe('Wilson mirror (references §5, D, VOUT = 3 V)', () => {
     expect(r.ratio).toBeCloseTo(0.914146, 6);
     expect(r.ratioIdeal).toBe(1);
     // ratio = (1 + λVDS,d)/(1 + λVDS,in), all of it VDS mismatch.
-    expect(rel(r.ratio, (1 + 0.1 * dev(r, 'diode').vds) / (1 + 0.1 * dev(r, 'in').vds))).toBeLessThan(1e-7);
+    expect(rel(r.ratio!, (1 + 0.1 * dev(r, 'diode').vds) / (1 + 0.1 * dev(r, 'in').vds))).toBeLessThan(1e-7);
     expect(r.errorSplit!.vds).toBeCloseTo(r.error!, 7);
   });
   it('with body effect on out: VGS_out = 1.236385 V, ratio 0.899358, input node ≈ 2.285 V', () => {

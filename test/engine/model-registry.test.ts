@@ -7,7 +7,8 @@ import { describe, expect, expectTypeOf, it } from 'vitest';
 import { MODELS, MODEL_NAMES, WEAK_INVERSION_MODEL } from '../../src/core/models/registry';
 import type { DeviceModel } from '../../src/core/models/model';
 import { newChannelEval } from '../../src/core/models/core';
-import { prepareDevice } from '../../src/core/models/device';
+import { prepareDevice, sizingContextOf } from '../../src/core/models/device';
+import { forModel } from '../tables/make-table';
 import { thermalVoltage } from '../../src/core/models/thermal';
 import { parseSpec } from '../../src/core/spec/index';
 import type { ModelKind } from '../../src/core/types';
@@ -24,19 +25,23 @@ describe('MODELS: one implementation per model name', () => {
   });
 
   it('a model name without an implementation does not compile', () => {
-    type WithTable = ModelKind | 'table';
-    // @ts-expect-error 'table' has no entry in MODELS, so the table is not total over the names
-    const registry: Record<WithTable, DeviceModel> = MODELS;
+    type WithSpline = ModelKind | 'spline';
+    // @ts-expect-error 'spline' has no entry in MODELS, so the table is not total over the names
+    const registry: Record<WithSpline, DeviceModel> = MODELS;
     expect(Object.keys(registry)).toEqual([...MODEL_NAMES]);
   });
 
-  it('names the two models of design §2 (process.model: square-law | ekv)', () => {
-    expect(MODEL_NAMES).toEqual(['square-law', 'ekv']);
+  it('names the models of design §2 and §11 (process.model: square-law | ekv | table)', () => {
+    expect(MODEL_NAMES).toEqual(['square-law', 'ekv', 'table']);
   });
 
   it('the spec reader accepts every registered name and lists them when one is wrong', () => {
     for (const name of MODEL_NAMES) {
-      const r = parseSpec(withText('process:\n', `process:\n  model: ${name}\n`), 'a.bias.yaml');
+      // The table model takes every device from a table (design §11).
+      const text = name === 'table'
+        ? withText('  nmos: { kp: 280u, vt0: 0.45 }\n  pmos: { kp: 70u, vt0: 0.48 }\n', '  model: table\n  nmos: { table: n.csv }\n  pmos: { table: n.csv }\n')
+        : withText('process:\n', `process:\n  model: ${name}\n`);
+      const r = parseSpec(text, 'a.bias.yaml', { tables: { 'n.csv': 'l,vgs,vds,vsb,id\n1e-6,0,1,0,1e-9\n1e-6,1,1,0,1e-3\n1e-6,0,2,0,1e-9\n1e-6,1,2,0,1e-3\n' } });
       expect(r.spec?.process.model).toBe(name);
     }
     const bad = parseSpec(withText('process:\n', 'process:\n  model: level3\n', BASE), 'a.bias.yaml');
@@ -47,13 +52,16 @@ describe('MODELS: one implementation per model name', () => {
   it('the square law is valid in strong inversion only; EKV from weak to strong (design §3)', () => {
     expect(MODELS['square-law'].coversWeakInversion).toBe(false);
     expect(MODELS.ekv.coversWeakInversion).toBe(true);
+    expect(MODELS.table.coversWeakInversion).toBe(true);
+    // the suggestion for weak inversion is a model, never the table (it needs the designer's data)
     expect(WEAK_INVERSION_MODEL).toBe('ekv');
   });
 });
 
 describe.each(MODEL_NAMES)('%s: the model answers agree with its channel equations (design §3)', (name) => {
   const model = MODELS[name];
-  const dev = prepareDevice({ ...RAZAVI_N, lambda: 0 }, D_SIZE, 'nmos', { model: name, temperature: 300, tnom: 300 });
+  const params = forModel(name, { ...RAZAVI_N, lambda: 0 });
+  const dev = prepareDevice(params, D_SIZE, 'nmos', { model: name, temperature: 300, tnom: 300 });
   const ch = newChannelEval();
 
   it('saturationVoltage(ID) is the channel VDSsat at the gate drive for ID', () => {
@@ -73,13 +81,14 @@ describe.each(MODEL_NAMES)('%s: the model answers agree with its channel equatio
     const up = ch.vdsat;
     model.channel(dev, vgs - h, 3, 0, ch);
     const slope = (up - ch.vdsat) / (2 * h);
-    expect(rel(model.saturationShift(dev, 1), slope)).toBeLessThan(name === 'ekv' ? 2e-3 : 1e-9);
+    // The table's VDSsat = 2/(gm/ID) of an EKV table follows the gate within 2 % there.
+    expect(rel(model.saturationShift(dev, 1), slope)).toBeLessThan(name === 'ekv' ? 2e-3 : name === 'table' ? 2e-2 : 1e-9);
   });
 
   it('aspectForTarget at a device\'s own IC gives back its size (W/L = 10)', () => {
     const id = 1e-4;
     model.channel(dev, model.gateDrive(dev, id, 0), 3, 0, ch);
-    const ctx = { kp: RAZAVI_N.kp, n: RAZAVI_N.n, ut: thermalVoltage(300) };
+    const ctx = sizingContextOf(params, { model: name, temperature: 300, tnom: 300 }, D_SIZE.l);
     expect(model.aspectForTarget(ctx, ch.id, { kind: 'ic', value: ch.ic }, 1)!).toBeCloseTo(10, 9);
   });
 });

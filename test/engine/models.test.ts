@@ -6,6 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { evalDevice, gateDriveFor, inversionOf, prepareDevice, thermalVoltage } from '../../src/core/models/index';
 import { newChannelEval } from '../../src/core/models/core';
 import { MODEL_NAMES } from '../../src/core/models/registry';
+import { forModel } from '../tables/make-table';
 import { evalTerminal } from '../../src/core/models/terminal';
 import { RAZAVI_N, RAZAVI_P } from './builders';
 
@@ -164,11 +165,12 @@ describe('EKV (references §6: Enz, Krummenacher & Vittoz 1995 from memory; ln²
 describe('gateDriveFor inverts the saturation models', () => {
   const proc = { temperature: 300, tnom: 300 };
   it.each(MODEL_NAMES)('%s: ID(gateDriveFor(I)) = I', (model) => {
-    const dev = prepareDevice({ ...RAZAVI_N, lambda: 0 }, D_SIZE, 'nmos', { ...proc, model });
+    const params = forModel(model, { ...RAZAVI_N, lambda: 0 });
+    const dev = prepareDevice(params, D_SIZE, 'nmos', { ...proc, model });
     for (const i of [1e-9, 1e-6, 1e-4, 1e-2]) {
       for (const vsb of [0, 0.5]) {
         const vgs = gateDriveFor(dev, i, vsb);
-        const e = evalDevice({ ...RAZAVI_N, lambda: 0 }, D_SIZE, vgs, 10, -vsb, 300, model, 300);
+        const e = evalDevice(params, D_SIZE, vgs, 10, -vsb, 300, model, 300);
         expect(rel(e.id, i)).toBeLessThan(1e-9);
       }
     }

@@ -71,7 +71,7 @@ describe('linked mirrors against the same circuit as one netlist (1e-4 in curren
     expect(rel(report(linked, 'dist').iout, net.iout)).toBeLessThan(1e-4);
   });
   it("the downstream mirror's iin is the current that arrives (the netlist's M2 drain current)", () => {
-    expect(rel(report(linked, 'dist').iin, dev('M2').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'dist').iin!, dev('M2').id)).toBeLessThan(1e-4);
     expect(rel(report(linked, 'root.a').iout, dev('M2').id)).toBeLessThan(1e-4);
   });
   it('the linked node voltage is the netlist node x, its headroom measured to the compliance limit', () => {
@@ -129,7 +129,7 @@ describe('Monte Carlo and corners act on the whole group', () => {
     const a = report(r, 'root.a').corners![0]!, d = report(r, 'dist').corners![0]!;
     expect(d.converged).toBe(true);
     expect(rel(d.iin, a.iout)).toBeLessThan(1e-9);
-    expect(rel(d.iin, report(r, 'dist').iin)).toBeGreaterThan(1e-4);   // it moved with the corner
+    expect(rel(d.iin!, report(r, 'dist').iin!)).toBeGreaterThan(1e-4);   // it moved with the corner
   });
 });
 
@@ -189,15 +189,15 @@ describe('three stages, resistor-fed root, PMOS bank, NMOS cascode leaf (against
   const dev = (name: string) => net.devices.find((d) => d.name === name)!;
   it('every current matches', () => {
     expect(net.converged).toBe(true);
-    expect(rel(report(linked, 'root').iin, dev('M1').id)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'pbank.tail').iin, dev('M2').id)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'tail').iin, dev('P2').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'root').iin!, dev('M1').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'pbank.tail').iin!, dev('M2').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'tail').iin!, dev('P2').id)).toBeLessThan(1e-4);
     expect(rel(report(linked, 'tail').iout, net.iout)).toBeLessThan(1e-4);
     expect(rel(report(linked, 'pbank.spare').iout, dev('P3').id)).toBeLessThan(1e-4);
   });
   it('a resistor-fed root: intended starts from its solved iin', () => {
     const root = report(linked, 'root');
-    expect(report(linked, 'tail').intended).toBeCloseTo(root.iin, 15);
+    expect(report(linked, 'tail').intended).toBeCloseTo(root.iin!, 15);
     expect(report(linked, 'tail').fedBy).toBe('pbank.tail');
   });
 });

@@ -6,7 +6,7 @@
  * related locations and fixes), relative and absolute file names, a spec error.
  */
 import { spawnSync } from 'node:child_process';
-import { accessSync, chmodSync, constants, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { accessSync, chmodSync, constants, copyFileSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
@@ -60,6 +60,8 @@ const example = readFileSync(join(root, 'examples/sensor-afe.bias.yaml'), 'utf8'
 
 describe('SARIF through the SARIF SDK validator', () => {
   it('the example, a faulty copy (absolute path) and a spec error give no error and no warning', () => {
+    // The copies sit in a temporary folder: their characterisation table goes with them.
+    copyFileSync(join(root, 'examples/halden180-nlvt.devtable.csv'), join(dir, 'halden180-nlvt.devtable.csv'));
     const faulty = join(dir, 'faulty.bias.yaml');
     // The plain Wilson's VDS mismatch: findings with fixes and related locations.
     writeFileSync(faulty, example.replace('kind: wilson-balanced', 'kind: wilson'));

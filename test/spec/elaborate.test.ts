@@ -6,6 +6,7 @@
 import { describe, expect, test } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parseSpec } from '../../src/core/spec/index';
+import { exampleTables } from '../example-tables';
 import { DEFAULTS, PROVISIONAL_SIZE } from '../../src/core/defaults';
 import type { NetlistMirror, TemplateMirror } from '../../src/core/types';
 import { BASE, codes, expectErrorsBlock, marked, withText } from './helpers';
@@ -252,10 +253,10 @@ describe('corners', () => {
 describe('the shipped example', () => {
   test('examples/sensor-afe.bias.yaml reads with no findings and every kind', () => {
     const text = readFileSync(new URL('../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
-    const p = parseSpec(text, 'sensor-afe.bias.yaml');
+    const p = parseSpec(text, 'sensor-afe.bias.yaml', { tables: exampleTables() });
     expect(p.findings).toEqual([]);
     const kinds = p.spec!.mirrors.map((m) => m.kind);
-    expect(new Set(kinds)).toEqual(new Set(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist']));
+    expect(new Set(kinds)).toEqual(new Set(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'beta-multiplier', 'vgs-resistor', 'netlist']));
     const bank = p.spec!.mirrors.find((m) => m.name === 'tail') as TemplateMirror;
     expect(bank.outputs).toHaveLength(3);
     expect(p.spec!.process.nmos.avt).toBeCloseTo(4e-9, 20);

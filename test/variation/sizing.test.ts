@@ -140,7 +140,7 @@ describe('auto sizing, square law', () => {
     const spec = makeSpec([mirror('simple', { vout: 1.2, size: AUTO_W, design: { kind: 'vov', value: 0.2 }, require: { ratio: 3 } })], { grid: 10e-9 });
     const r = applyDesignTargets(spec);
     const rep = measureMirror({ spec: r.spec, mirror: r.spec.mirrors[0]!, outputIndex: 0 });
-    expect(Math.abs(rep.ratio / 3 - 1)).toBeLessThan(0.002);
+    expect(Math.abs(rep.ratio! / 3 - 1)).toBeLessThan(0.002);
     expect(rep.ratioIdeal!).toBeLessThan(2.96);
   });
 
@@ -165,8 +165,8 @@ describe('auto sizing, square law', () => {
     const r = applyDesignTargets(spec);
     const a = measureMirror({ spec: r.spec, mirror: r.spec.mirrors[0]!, outputIndex: 0 });
     const b = measureMirror({ spec: r.spec, mirror: r.spec.mirrors[0]!, outputIndex: 1 });
-    expect(Math.abs(a.ratio - 1)).toBeLessThan(0.003);
-    expect(Math.abs(b.ratio / 4 - 1)).toBeLessThan(0.003);
+    expect(Math.abs(a.ratio! - 1)).toBeLessThan(0.003);
+    expect(Math.abs(b.ratio! / 4 - 1)).toBeLessThan(0.003);
     for (const d of [...a.devices, ...b.devices]) expect(Math.abs(d.vov / 0.2 - 1), d.name).toBeLessThan(0.01);
     expect(r.sized.map((s) => s.device).sort()).toEqual(['a.out', 'a.outc', 'b.out', 'b.outc', 'ref', 'refc']);
     // Resistor input: iin = (vdd − VGS_refc − VGS_ref)/R ≈ (3.3 − 2·(0.7 + 0.2) − body)/120 kΩ.

@@ -14,16 +14,17 @@ import {
 } from './browser-harness';
 import { fixtureReport } from './fixtures';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 
 const EXAMPLE = join(ROOT, 'examples', 'sensor-afe.bias.yaml');
 const URI = pathToFileURL(EXAMPLE).toString();
-const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 } };
+const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 }, tables: exampleTables() };
 
-/** Real core reports of the example spec, before and after an edit a designer makes (the lna
- *  output of the tail bank goes from 4 to 5 parallel devices). */
+/** Real core reports of the example spec, before and after an edit a designer makes (the root
+ *  of its bias network, `master`, goes from 10 to 12 µA: every mirror of the network moves). */
 function reports(): { main: FileReport; updated: FileReport; faulty: FileReport } {
   const text = readFileSync(EXAMPLE, 'utf8');
-  const edited = text.replace('out:  { m: 4 }', 'out:  { m: 5 }');
+  const edited = text.replace('input: 10u               # the root', 'input: 12u               # the root');
   // A deliberate fault: the lna output cannot reach 2 GΩ, so the core reports low-rout there.
   const wrong = text.replace('rout: 20M', 'rout: 2G');
   expect(edited).not.toBe(text);
@@ -89,11 +90,13 @@ describe('the bias panel page', () => {
     await post(page, { type: 'report', uri: URI, report: main, version: 1 });
     await page.locator('article.mirror').waitFor();
 
-    // Overview: one row per output, Iout as the core computed it (4 significant digits).
-    const rows = page.locator('#mirror-list tbody tr');
+    // Overview: one row per output, Iout as the core computed it (4 significant digits). The
+    // example is a bias network: its members sit under one heading, the other mirrors under a second.
+    const rows = page.locator('#mirror-list tbody tr[data-key^="mirror:"]');
     await expect.poll(() => rows.count()).toBe(main.mirrors.length);
-    for (const [i, m] of main.mirrors.entries()) {
-      const cells = rows.nth(i).locator('th, td');
+    expect(await page.locator('#mirror-list tbody tr.group').allInnerTexts()).toEqual([`Network of ${main.networks![0]!.root}`, 'Not in a network']);
+    for (const m of main.mirrors) {
+      const cells = page.locator(`#mirror-list tbody tr[data-key="mirror:${m.name}"]`).locator('th, td');
       expect(await cells.nth(0).innerText()).toBe(m.name);
       expect(await cells.nth(1).innerText()).toBe(`${m.kind} ${m.type}`);
       expect(Math.abs(readSI(await cells.nth(2).innerText(), 'A') / m.iout - 1)).toBeLessThan(5e-4);
@@ -189,8 +192,11 @@ describe('the bias panel page', () => {
     const { main } = core();
     const { page, probe } = await openPanel();
     await post(page, { type: 'report', uri: URI, report: main, version: 1 });
-    const m = main.mirrors[0];
     await page.locator('article.mirror').waitFor();
+    // The first output with a device key written in the spec (the network's root has none), shown.
+    const m = main.mirrors.find((x) => main.anchors.some((a) => a.kind === 'device' && a.report === x.name))!;
+    await page.locator(`#mirror-list tr[data-key="mirror:${m.name}"]`).click();
+    await expect.poll(() => page.locator('article.mirror').getAttribute('data-mirror')).toBe(m.name);
     const anchor = main.anchors.find((a) => a.kind === 'device' && a.report === m.name)!;
     await page.locator(`table.devices tr[data-key="dev:${m.name}:${anchor.device}"]`).click();
     await expect.poll(async () => (await posted(page)).filter((x) => x.type === 'reveal').at(-1))
@@ -236,10 +242,11 @@ describe('the bias panel page', () => {
     const row = page.locator(`#mirror-list tr[data-key="aside:${aside!.index}"]`);
     await expect.poll(() => row.innerText()).toMatch(/wilson_ref[\s\S]*not solved: fix its errors/);
     expect(await page.locator('#mirror-list tr[data-key^="mirror:"]').count()).toBe(partial.mirrors.length);
-    // In file order: between the wide-swing mirror and the balanced Wilson, where it is written.
+    // Not solved, so in no network: among the mirrors outside the network, in file order where it
+    // is written (between the PMOS load and the balanced Wilson).
     const keys = await page.locator('#mirror-list tr[data-key]').evaluateAll((rows) => rows.map((r) => (r as HTMLElement).dataset.key));
     expect(keys.slice(keys.indexOf(`aside:${aside!.index}`) - 1, keys.indexOf(`aside:${aside!.index}`) + 2))
-      .toEqual(['mirror:ws_bias', `aside:${aside!.index}`, 'mirror:wilson_p']);
+      .toEqual(['mirror:load_p', `aside:${aside!.index}`, 'mirror:wilson_p']);
     ensureDir(OUT);
     await page.screenshot({ path: join(OUT, 'panel-typo.png') });
     await row.click();
@@ -266,7 +273,7 @@ describe('the bias panel page', () => {
     // A reloaded page (VS Code restores it from getState) shows the same view before any message.
     const again = await openPanel(saved);
     await expect.poll(() => again.page.locator('article.mirror').getAttribute('data-mirror')).toBe(second.name);
-    expect(await again.page.locator('#mirror-list tbody tr').count()).toBe(updated.mirrors.length);
+    expect(await again.page.locator('#mirror-list tbody tr[data-key^="mirror:"]').count()).toBe(updated.mirrors.length);
     await cleanPage(again.page, again.probe);
     await again.page.close();
   });
@@ -280,7 +287,7 @@ describe('the bias panel page', () => {
     // not asserted: a wall-clock figure on a shared machine is no test (speed: npm run bench).
     const latency = await page.evaluate(async (msg) => {
       const start = performance.now();
-      const cell = () => document.querySelector('#mirror-list tbody tr th')?.parentElement?.children[2]?.textContent;  // Iout
+      const cell = () => document.querySelector('#mirror-list tbody tr[data-key^="mirror:"] th')?.parentElement?.children[2]?.textContent;  // Iout
       const before = cell();
       window.postMessage(msg, '*');
       return new Promise<number>((resolve, reject) => {
@@ -468,13 +475,13 @@ async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'
     expect(Math.abs(got - want)).toBeLessThanOrEqual(Math.abs(want) * 0.5 * 10 ** (1 - digits) + floor);
   };
   const val = (key: string) => shown.figures[key]?.value;
-  close(val('iin'), 'A', m.iin, 4);
+  close(val('iin'), 'A', m.iin!, 4);
   close(val('iout'), 'A', m.iout, 4);
   close(val('rout'), 'Ω', m.rout, 3);
   close(val('compliance'), 'V', m.compliance, 4);
   if (m.error !== undefined) close(val('error'), '%', m.error, 3);
   if (m.sigma !== undefined) close(val('sigma'), '%', m.sigma, 3);
-  expect(Number(val('ratio'))).toBeCloseTo(m.ratio, 4);
+  expect(Number(val('ratio'))).toBeCloseTo(m.ratio!, 4);
   if (m.routApprox !== undefined) close(shown.figures.rout.detail.replace(/^textbook /, ''), 'Ω', m.routApprox, 3);
   // A bank output lists its own devices (`<output>.<role>`) and the shared reference.
   const listed = m.output === undefined ? m.devices : m.devices.filter((d) => d.name.startsWith(`${m.output}.`) || !d.name.includes('.'));

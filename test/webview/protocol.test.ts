@@ -67,6 +67,31 @@ describe('host → page messages', () => {
     }
   });
 
+  it('accepts the bias-network fields (design §9.3) and rejects them malformed', () => {
+    const networked = (): ReturnType<typeof fixtureReport> => {
+      const r = fixtureReport();
+      Object.assign(r.mirrors[0], { feeds: 'dist', network: 'tail', intended: 4e-5, chainError: 0.003, chainSigma: 0.004, linkV: 0.8, headroom: 0.2 });
+      Object.assign(r.mirrors[1], { fedBy: 'tail', network: 'tail' });
+      r.networks = [{ root: 'tail', rootIndex: 0, members: ['tail', 'load'], converged: true, supplyCurrent: { vdd: 1e-4, vss: 1e-4 }, power: 1.8e-4, leaves: ['load.a'], worstLeaf: 'load.a' }];
+      return r;
+    };
+    expect(isFileReport(networked())).toBe(true);
+    const cases: ((r: ReturnType<typeof fixtureReport>) => void)[] = [
+      (r) => { (r.mirrors[0] as unknown as Record<string, unknown>).chainError = '0.3%'; },
+      (r) => { (r.mirrors[0] as unknown as Record<string, unknown>).feeds = 3; },
+      (r) => { (r.mirrors[1] as unknown as Record<string, unknown>).fedBy = null; },
+      (r) => { (r.networks![0] as unknown as Record<string, unknown>).rootIndex = -1; },
+      (r) => { (r.networks![0].supplyCurrent as unknown as Record<string, unknown>).vdd = undefined; },
+      (r) => { (r.networks![0] as unknown as Record<string, unknown>).members = 'tail'; },
+      (r) => { (r as unknown as Record<string, unknown>).networks = {}; },
+    ];
+    for (const mutate of cases) {
+      const report = networked();
+      mutate(report);
+      expect(isFileReport(report)).toBe(false);
+    }
+  });
+
   it('rejects a report with any required field of a mirror removed (property)', () => {
     const required = ['name', 'mirror', 'kind', 'type', 'converged', 'iterations', 'residual', 'vout', 'iin',
       'iout', 'ratio', 'rout', 'compliance', 'nodes', 'devices', 'path'];

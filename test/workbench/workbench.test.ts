@@ -14,7 +14,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { ensureCodeServer } from '../../scripts/workbench/install';
@@ -197,6 +197,33 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     expect(await body.innerText()).not.toContain('15 µA');
     await shot(page, '5-panel');
 
+    // The selected output's schematic, in the light, dark and high-contrast themes: set as the
+    // workspace's colour theme, which the workbench applies live; the drawing's wires take the
+    // theme's editor foreground each time.
+    const wire = frame.locator('svg[data-schematic] .sch-wire').first();
+    await wire.waitFor({ state: 'attached', timeout: 30_000 });
+    await frame.locator('svg[data-schematic]').first().scrollIntoViewIfNeeded();
+    const strokes = new Set<string>();
+    const themeClass = { light: 'vs', dark: 'vs-dark', 'high-contrast': 'hc-black' } as const;
+    const themeOf = async (): Promise<string | undefined> => (await page.locator('.monaco-workbench').first().getAttribute('class'))
+      ?.split(/\s+/).find((c) => ['vs', 'vs-dark', 'hc-black', 'hc-light'].includes(c));
+    const initial = await themeOf();
+    const settingsDir = join(ws.dir, '.vscode');
+    mkdirSync(settingsDir, { recursive: true });
+    for (const [name, theme] of [['light', 'Default Light Modern'], ['dark', 'Default Dark Modern'], ['high-contrast', 'Default High Contrast']] as const) {
+      writeFileSync(join(settingsDir, 'settings.json'), JSON.stringify({ 'workbench.colorTheme': theme }));
+      await page.locator(`.monaco-workbench.${themeClass[name]}`).waitFor({ timeout: 20_000 });
+      const previous = [...strokes].at(-1) ?? '';
+      await expect.poll(() => wire.evaluate((e) => getComputedStyle(e).stroke), { timeout: 10_000 }).not.toBe(previous);
+      strokes.add(await wire.evaluate((e) => getComputedStyle(e).stroke));
+      await stableScreenshot(page, 5_000);
+      await shot(page, `5-schematic-${name}`);
+    }
+    expect(strokes.size).toBe(3);
+    // Back to the theme the run started in, for the screenshots that follow.
+    rmSync(settingsDir, { recursive: true, force: true });
+    await expect.poll(themeOf, { timeout: 20_000 }).toBe(initial);
+
     // Edit the tail bank's input current in the editor, as a designer types it: go to the
     // value `10u` of `input:` and overtype `10` with `15`.
     const lines = readFileSync(join(ws.dir, 'faulty.bias.yaml'), 'utf8').split('\n');
@@ -280,6 +307,53 @@ describe.skipIf(process.env.QPOINT_SKIP_WORKBENCH === '1')('qpoint in a real VS 
     await lens.first().waitFor({ state: 'detached', timeout: 20_000 });
     await page.close();
   }, 240_000);
+
+  it('bias networks: F12 on a from value jumps to the output; the panel draws the tree, a click reveals the mirror', async () => {
+    const ws = freshWorkspace(ROOT, OUT, 'network-workspace');
+    const page = await browser!.newPage();
+    await openWorkbench(page, server!.url({ folder: ws.dir, extensionDevelopmentPath: ROOT }));
+    const row = page.locator('.explorer-folders-view .monaco-list-row', { hasText: 'network.bias.yaml' });
+    await row.waitFor({ state: 'visible', timeout: 30_000 });
+    await row.click();
+    await page.locator('.statusbar-item', { hasText: 'qpoint:' }).first().waitFor({ state: 'visible', timeout: 30_000 });
+    const lines = readFileSync(join(ws.dir, 'network.bias.yaml'), 'utf8').split('\n');
+    const fromLine = lines.findIndex((l) => l.includes('from: ref_bank.p_amp'));
+    const outputLine = lines.findIndex((l) => l.includes('- name: p_amp'));
+    const tailLine = lines.findIndex((l) => l.includes('- name: tail'));
+    expect(Math.min(fromLine, outputLine, tailLine)).toBeGreaterThan(0);
+    const cursor = page.locator('.statusbar-item[id="status.editor.selection"]');
+    await runCommand(page, 'Go to Line/Column...');
+    await page.keyboard.type(`${fromLine + 1}:${lines[fromLine]!.indexOf('p_amp') + 2}`);
+    await page.keyboard.press('Enter');
+    await expect.poll(() => cursor.innerText(), { timeout: 10_000 }).toMatch(new RegExp(`Ln ${fromLine + 1},`));
+    await page.keyboard.press('F12');
+    try {
+      await expect.poll(() => cursor.innerText(), { timeout: 15_000 }).toMatch(new RegExp(`Ln ${outputLine + 1}, Col ${lines[outputLine]!.indexOf('p_amp') + 1}\\b`));
+    } catch (e) {
+      await shot(page, 'fail-definition');
+      throw e;
+    }
+    await shot(page, '10-go-to-definition');
+
+    await runCommand(page, 'qpoint: Open Bias Panel');
+    const frame = page.frameLocator('iframe.webview.ready').frameLocator('#active-frame');
+    const tail = frame.locator('svg.net-tree .net-node[data-node="tail"]');
+    try {
+      await tail.waitFor({ state: 'visible', timeout: 30_000 });
+    } catch (e) {
+      await shot(page, 'fail-network-tree');
+      throw new Error(`the panel drew no network tree: ${(e as Error).message}${panelWarnings()}`);
+    }
+    expect(await frame.locator('svg.net-tree .net-node').count()).toBe(8);
+    expect(await frame.locator('svg.net-tree .net-link.trouble').count()).toBe(1);
+    expect(await frame.locator('#mirror-list tr.group').innerText()).toBe('Network of ref_bank');
+    await frame.locator('#networks').scrollIntoViewIfNeeded();
+    await stableScreenshot(page, 5_000);
+    await shot(page, '11-network-tree');
+    await tail.click();
+    await expect.poll(() => cursor.innerText(), { timeout: 15_000 }).toMatch(new RegExp(`Ln ${tailLine + 1},`));
+    await page.close();
+  }, 180_000);
 
   it('installs the packed vsix into a fresh workbench, where it works on the example', async () => {
     // `npm run package` in small: vsce packs the built dist/ (allow-list .vscodeignore), then

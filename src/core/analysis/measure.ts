@@ -11,6 +11,7 @@ import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
 import { boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient } from './drift';
 import { DEFAULT_ANALYSIS, outputNoise } from './noise';
+import { referenceReport } from './reference';
 import { splitError } from './errorSplit';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
@@ -57,6 +58,7 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
     mirrorIndex: id.mirrorIndex, outputIndex: id.outputIndex,
   };
   if (id.output !== undefined) r.output = id.output;
+  if (m.kind === 'netlist' && m.input === undefined) { delete r.iin; delete r.ratio; }
   return r;
 }
 
@@ -96,21 +98,26 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   }
   const sol = solveMirror(mc, warm);
   const devices = deviceReports(mc);
+  // A self-biased netlist has no input: no iin, ratio or error (design §14).
+  const noInput = m.kind === 'netlist' && m.input === undefined;
   const iin = mc.iin();
   const iout = outputCurrent(mc);
   const ratio = iin !== 0 ? iout / iin : NaN;
   const base = blankReport(t, vout);
   base.converged = sol.converged; base.iterations = sol.iterations; base.residual = sol.residual;
-  base.iin = iin; base.iout = iout; base.ratio = ratio;
+  base.iout = iout;
+  if (noInput) { delete base.iin; delete base.ratio; } else { base.iin = iin; base.ratio = ratio; }
   base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
   if (sol.note) base.solveNote = sol.note;
   if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
   const ideal = ratioIdealOf(t, mc);
   if (ideal !== undefined) base.ratioIdeal = ideal;
+  const reference = referenceReport(m, mc, devices, sol.converged);
+  if (reference) base.reference = reference;
   if (!sol.converged) return base;
 
-  if (ideal !== undefined && Number.isFinite(ratio)) {
+  if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
     if (mc.pair) {
       base.errorSplit = splitError(mc.circuit.devices[mc.pair.ref]!, mc.circuit.devices[mc.pair.out]!, ideal, mc.ws.v);

@@ -143,7 +143,7 @@ export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
 /** The devices a report shows: the shared reference and the measured output's devices (a
  *  bank's other outputs are in the circuit but belong to their own reports). */
 export function shownDevices(mc: MirrorCircuit, all: DeviceReport[]): DeviceReport[] {
-  return all.filter((_, k) => mc.circuit.devices[k]!.measured);
+  return all.filter((_, k) => { const d = mc.circuit.devices[k]!; return d.measured || d.startup === true; });
 }
 
 const scratch = newChannelEval();

@@ -129,6 +129,7 @@ export class CircuitBuilder {
             kind: 'mos', name: m.name, role: m.role, type: m.type, size: m.size, params: m.params, dev: m.dev,
             measured: m.measured, d: at(d), g: at(g), s: at(s), b: at(b), slot: 0,
           };
+          if (m.startup) e.startup = true;
           elements.push(e);
           devices.push(e);
           break;

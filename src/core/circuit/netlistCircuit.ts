@@ -6,7 +6,7 @@
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
 import type { NetlistMirror, ResolvedSpec } from '../types';
-import { CircuitBuilder } from './circuit';
+import { CircuitBuilder, type MosDescription } from './circuit';
 import { resistanceAt } from './resistance';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { PerturbationLike } from './templates';
@@ -35,26 +35,32 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
   if (out === 'vdd' || out === 'vss') b.problems.push(`output node ${m.output.node} is a supply rail`);
   else b.hold(out, vout);
 
-  for (const d of m.devices) {
+  const startup = new Set((m.startup ?? []).map((d) => d.name));
+  for (const d of [...m.devices, ...(m.startup ?? [])]) {
     const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
     const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${d.name}: ${problem}`);
     const dev = prepareDevice(params, size, d.type, proc, perturb?.dvt[d.name] ?? 0, perturb?.dbeta[d.name] ?? 0);
-    b.mos({ name: d.name, role: d.name, type: d.type, size, params, dev, measured: true },
-      railName(d.d), railName(d.g), railName(d.s), railName(d.b));
+    // A start-up device is judged by the start-up check, not counted for compliance.
+    const desc: MosDescription = { name: d.name, role: startup.has(d.name) ? 'startup' : d.name, type: d.type, size, params, dev, measured: !startup.has(d.name) };
+    if (startup.has(d.name)) desc.startup = true;
+    b.mos(desc, railName(d.d), railName(d.g), railName(d.s), railName(d.b));
   }
   for (const s of m.currents) {
     if (!Number.isFinite(s.i)) b.problems.push(`current source ${s.name}: ${s.i} A is not a number`);
     b.current(s.name, railName(s.from), railName(s.to), s.i);
   }
   for (const r of m.resistors) b.resistor(r.name, railName(r.a), railName(r.b), resistanceAt(r.r, r, spec.process));
-  const inputIndex = m.currents.findIndex((s) => s.name === m.input.source);
-  if (inputIndex < 0) b.problems.push(`input source ${m.input.source} is not a current source of this netlist`);
+  const input = m.input;
+  const inputIndex = input ? m.currents.findIndex((s) => s.name === input.source) : -1;
+  if (input && inputIndex < 0) b.problems.push(`input source ${input.source} is not a current source of this netlist`);
 
   const c = b.build(out === 'vdd' || out === 'vss' ? `${out}` : out, sign, vss, vdd);
   const ws = makeWorkspace(c);
-  const iin = inputIndex >= 0 ? m.currents[inputIndex]!.i : 0;
+  // A self-biased netlist has no input: its diodes start a fifth of the way from VT to the
+  // supply, on (the loop's zero-current state is tested apart, analysis/zero-state.ts).
+  const iin = inputIndex >= 0 ? m.currents[inputIndex]!.i : NaN;
   const railIndex = { vdd: c.nodeNames.indexOf('vdd'), vss: c.nodeNames.indexOf('vss') };
 
   const guess = (): void => {
@@ -63,7 +69,7 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
       if (x.d !== x.g || x.d >= c.nFree) continue;
       const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;
       if (x.s !== ownRail) continue;
-      const drive = gateDriveFor(x.dev, Math.abs(iin), 0);
+      const drive = Number.isFinite(iin) ? gateDriveFor(x.dev, Math.abs(iin), 0) : x.dev.vt0 + 0.2 * (vdd - vss - x.dev.vt0);
       if (Number.isFinite(drive)) ws.v[x.d] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
     }
   };

@@ -8,10 +8,12 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
-import type { DeviceSize, MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
+import { paramsOf } from '../flavours';
+import type { DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
 import { KINDS, type Connection } from '../kinds/index';
-import { CircuitBuilder, type MosInstance } from './circuit';
+import { CircuitBuilder, type MosDescription, type MosInstance } from './circuit';
+import { channelCurrent } from './elements/device';
 import { resistanceAt } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
@@ -76,7 +78,6 @@ export interface WiredTemplate {
 export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateMirror, w: TemplateWiring): WiredTemplate {
   const { vdd, vss } = spec.supplies;
   const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
-  const params = m.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
@@ -87,20 +88,27 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
 
   const names: string[] = [];
   const byRole: Record<string, number> = {};
-  const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean): number => {
+  const T = sign > 0 ? 'vdd' : 'vss';
+  const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean, startup = false): number => {
+    // A reference's closing mirror is of the other polarity, its bulk on the other rail.
+    const type: Polarity = conn.other ? (m.type === 'nmos' ? 'pmos' : 'nmos') : m.type;
+    // A mirror's device flavour (`device:`) is of its own polarity; the other rail's devices use the process's.
+    const params = paramsOf(spec.process, type, m.device);
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${ns}${name}: ${problem}`);
     const full = `${ns}${name}`;
-    const dev = prepareDevice(params, size, m.type, proc, w.perturb?.dvt[full] ?? 0, w.perturb?.dbeta[full] ?? 0);
+    const dev = prepareDevice(params, size, type, proc, w.perturb?.dvt[full] ?? 0, w.perturb?.dbeta[full] ?? 0);
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    b.mos({ name: full, role, type: m.type, size, params, dev, measured }, d, g, s, size.bulk === 'source' ? s : R);
+    const desc: MosDescription = { name: full, role, type, size, params, dev, measured };
+    if (startup) desc.startup = true;
+    b.mos(desc, d, g, s, size.bulk === 'source' ? s : conn.other ? T : R);
     names.push(name);
     return names.length - 1;
   };
 
   const input = kind.inputNode;
   const inputNode = w.inputNode ?? `${ns}${input}`;
-  const refMap = (n: string): string => (n === 'R' ? R : n === 'vbias' ? vbiasName : n === input ? b.node(inputNode) : b.node(`${ns}${n}`));
+  const refMap = (n: string): string => (n === 'R' ? R : n === 'T' ? T : n === 'vbias' ? vbiasName : n === input ? b.node(inputNode) : b.node(`${ns}${n}`));
   for (const [role, conn] of Object.entries(kind.reference)) {
     const size = m.devices[role] ?? m.outputs[0]?.devices[role];
     if (!size) { b.problems.push(`no size for role ${role}`); continue; }
@@ -145,9 +153,15 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
       b.capacitor(`${name}.c`, refMap(`${n}${FILTERED}`), R, m.filter.c);
     }
   }
+  const loop = kind.loop;
+  if (loop) {
+    const r = m.resistor ?? NaN;
+    for (const [name, ends] of Object.entries(loop.resistors)) b.resistor(`${ns}${name}`, refMap(ends.a), refMap(ends.b), r);
+    if (m.startup) add('startup', 'startup', m.startup, loop.startup, refMap, false, true);
+  }
 
   const out: WiredTemplate = { outNodes, cNodes, inputNode, deviceNames: names, byRole };
-  if (w.inputNode !== undefined) return out;
+  if (w.inputNode !== undefined || m.input.kind === 'self') return out;
   if (m.input.kind === 'current' || m.input.kind === 'link') {
     // A linked input measured alone is the current that arrives (network/ solves it).
     const i = m.input.i;
@@ -177,7 +191,11 @@ export function buildTemplate(
   const { outNodes, cNodes, byRole } = wired;
   const input = kind.inputNode;
   const res = wired.inputResistor;
-  const iin: (v: Float64Array) => number = res ? (v) => resistorCurrent(res, v) : () => (m.input.kind === 'resistor' ? NaN : m.input.i);
+  const loopRef = m.input.kind === 'self' ? byRole[kind.pair.ref] : undefined;
+  const iin: (v: Float64Array) => number = res ? (v) => resistorCurrent(res, v)
+    // A reference: the loop current of the device it is named after (the taps copy it).
+    : loopRef !== undefined ? (v) => channelCurrent(c.devices[loopRef]!, v)
+      : () => (m.input.kind === 'resistor' || m.input.kind === 'self' ? NaN : m.input.i);
   const measuredOut = outNodes[outputIndex] ?? 'out';
   if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
   const c = b.build(measuredOut, sign, vss, vdd);
@@ -191,15 +209,17 @@ export function buildTemplate(
   const vbIdx = kind.vbias ? index('vbias') : -1;
   const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
   const freeNames = c.nodeNames.slice(0, c.nFree);
-  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {} };
   const span = Math.abs(other - rail);
+  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
 
   const guess = (): void => {
     // Node voltages in the polarity frame u = sign·(v − rail), then mapped back.
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;
     const solveFor = (i: number): number => { guessNodes(g, i); return g.u[input] ?? 0; };
-    if (m.input.kind === 'current' || m.input.kind === 'link') {
+    if (m.input.kind === 'self') {
+      guessNodes(g, 0);   // a reference finds its own loop current
+    } else if (m.input.kind === 'current' || m.input.kind === 'link') {
       solveFor(m.input.i);
     } else {
       // Bisection on the input current: I·R = span − u_in(I).
@@ -240,6 +260,31 @@ export interface GuessContext {
   cNodes: (string | undefined)[];
   /** Result: polarity-frame voltage per node name. */
   u: Record<string, number>;
+  /** V, the supply span (the other rail in the polarity frame); references need it. */
+  span?: number;
+}
+
+/** A, the loop current of a reference with every device saturated, by bisection on the loop's
+ *  own equation (body effect and the model included): beta multiplier VGS_ref − VGS_wide(VSB =
+ *  I·R) = I·R; VGS over a resistor VGS_ref = I·R. */
+function loopCurrent(g: GuessContext, span: number, r: number): number {
+  const dev = (name: string): MosInstance | undefined => g.devByName.get(name);
+  const ref = dev('ref');
+  if (!(r > 0) || !ref) return 0;
+  const excess = (i: number): number => {
+    const vr = i * r;
+    if (g.m.kind === 'beta-multiplier') {
+      const wide = dev('wide');
+      return diodeDrive(ref, i, 0) - drive(wide, i, wide?.size.bulk === 'rail' ? vr : 0, span / 2) - vr;
+    }
+    return diodeDrive(ref, i, 0) - vr;
+  };
+  let lo = 0, hi = span / r;
+  for (let k = 0; k < 50; k++) {
+    const mid = 0.5 * (lo + hi);
+    if (excess(mid) > 0) lo = mid; else hi = mid;
+  }
+  return 0.5 * (lo + hi);
 }
 
 /** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it. */
@@ -305,6 +350,23 @@ export function guessNodes(g: GuessContext, i: number): void {
       if (m.kind === 'wilson-balanced') {
         u.z = sourceBelow(dev('bal'), i, u.x, u.x, 0, u.x);
       }
+      break;
+    }
+    case 'beta-multiplier':
+    case 'vgs-resistor': {
+      // A reference sets its own current: `i` is not used.
+      const span = g.span ?? 0;
+      const r = m.resistor ?? 0;
+      const loop = loopCurrent(g, span, r);
+      if (m.kind === 'beta-multiplier') {
+        u.x = diodeDrive(dev('ref'), loop, 0);
+        u.s = loop * r;
+      } else {
+        u.a = loop * r;
+        const follow = dev('follow');
+        u.b = u.a + drive(follow, loop, vsbOf(follow, u.a), span / 2);
+      }
+      u.y = span - diodeDrive(dev('topd'), loop, 0);
       break;
     }
     default:

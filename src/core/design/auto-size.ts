@@ -26,8 +26,10 @@ import type {
 import { measureMirror, solveAt, type MirrorContext } from '../analysis/index';
 import { isBank } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
-import { kpAt, lambdaAt, thermalVoltage } from '../models/thermal';
-import { MODELS } from '../models/registry';
+import { lambdaAt } from '../models/thermal';
+import { MODELS, modelKindOf } from '../models/registry';
+import { sizingContextOf } from '../models/device';
+import { paramsOf } from '../flavours';
 import type { DeviceModel, SizingContext } from '../models/model';
 import { quantizeSize } from '../sizing/quantize';
 import { formatSI } from '../text/format';
@@ -95,7 +97,7 @@ function hasAuto(m: TemplateMirror): boolean {
 function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, target: DesignTarget):
   { spec: ResolvedSpec; sized: SizedDevice[] } {
   const slots = collectSlots(mirror);
-  const params = spec.process[mirror.type];
+  const params = paramsOf(spec.process, mirror.type, mirror.device);
   const autoL = slots.filter((s) => s.size.auto?.l === true);
   const routOutputs = mirror.outputs
     .map((o, j) => ({ j, rout: o.require.rout ?? 0 }))
@@ -185,9 +187,10 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
  *  currents and length-modulation factors settle. Mutates the slots; returns the sized spec. */
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
-  const params = proc[m.type];
-  const model = MODELS[proc.model];
-  const ctxT: SizingContext = { kp: kpAt(params, proc.temperature, proc.tnom), n: params.n, ut: thermalVoltage(proc.temperature) };
+  const params = paramsOf(proc, m.type, m.device);
+  const model = MODELS[modelKindOf(params, proc.model)];
+  // A table device reads its target off its own table at its length, so the context is per slot.
+  const ctxAt = (l: number): SizingContext => sizingContextOf(params, proc, l);
   const inputBranch = KINDS[m.kind].inputStack;
   const pairOut = KINDS[m.kind].pair.out;
   const bank = isBank(m);
@@ -228,6 +231,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
         s.note = ref.note;
         continue;
       }
+      const ctxT = ctxAt(s.size.l);
       const aspect = model.aspectForTarget(ctxT, s.planned, target, s.clm);
       if (aspect === undefined) {
         s.note = unreachableNote(model, ctxT, target);

@@ -147,7 +147,7 @@ function freezeFix(parsed: ParsedSpec, t: Token, file?: string): TextEdit[] | un
   try {
     text = applyEdits(parsed.text, [first]);
     for (const ins of inserts) {
-      const p = parseSpec(text, file);
+      const p = parseSpec(text, file, parsed.tables ? { tables: parsed.tables } : {});
       const edits = insertKeyEdits(p, ins.path, ins.key, ins.text);
       if (edits.length === 0) return undefined;
       text = applyEdits(text, edits);
@@ -156,7 +156,7 @@ function freezeFix(parsed: ParsedSpec, t: Token, file?: string): TextEdit[] | un
     return undefined;
   }
   // Verify: the file now reads exactly the computed sizes, no longer `auto`, for every user.
-  const after = parseSpec(text, file);
+  const after = parseSpec(text, file, parsed.tables ? { tables: parsed.tables } : {});
   if (!after.spec) return undefined;
   for (const u of t.uses) {
     const size = sizeIn(after.spec, u.s);

@@ -4,17 +4,19 @@
  * a compile error. Everything else that differs by kind reads this table, or switches over the
  * kind and ends in `assertNever`, so the compiler names each place a new kind must be handled.
  */
+import { betaMultiplier } from './beta-multiplier';
 import { cascode } from './cascode';
 import type { KindSpec } from './kind';
 import { TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
 import { simple } from './simple';
+import { vgsResistor } from './vgs-resistor';
 import { wideSwing } from './wide-swing';
 import { wilson } from './wilson';
 import { wilsonBalanced } from './wilson-balanced';
 import type { ResolvedMirror, TemplateMirror } from '../types';
 
 export { MIRROR_KINDS, TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
-export type { Connection, DeviceFamily, KindSpec, SmallSignal } from './kind';
+export type { Connection, DeviceFamily, KindSpec, ReferenceLoop, SmallSignal } from './kind';
 
 export const KINDS = {
   simple,
@@ -22,6 +24,8 @@ export const KINDS = {
   'wide-swing': wideSwing,
   wilson,
   'wilson-balanced': wilsonBalanced,
+  'beta-multiplier': betaMultiplier,
+  'vgs-resistor': vgsResistor,
 } satisfies Record<TemplateKind, KindSpec>;
 
 export function isTemplateKind(kind: MirrorKind): kind is TemplateKind {
@@ -37,6 +41,9 @@ export const VBIAS_KINDS: readonly TemplateKind[] = TEMPLATE_KINDS.filter((k) =>
 export function takesVbias(m: ResolvedMirror): m is TemplateMirror {
   return isTemplateKind(m.kind) && KINDS[m.kind].vbias;
 }
+
+/** Self-biased reference kinds (they take `resistor:` and `startup:`, no `input`), in list order. */
+export const REFERENCE_KINDS: readonly TemplateKind[] = TEMPLATE_KINDS.filter((k) => KINDS[k].loop !== undefined);
 
 /** Roles of the shared reference (every role but the output roles), in role order. */
 export function referenceRoles(kind: TemplateKind): string[] {

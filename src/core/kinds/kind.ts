@@ -9,11 +9,29 @@
 export type DeviceFamily = 'mosfet' | 'bipolar';
 
 /**
- * Drain, gate and source of one role, on named nodes. `R` is the mirror's own rail, `O` the
- * output node and `C` the output's internal cascode node (both one per output of a bias bank),
- * `vbias` the held cascode gate; any other name is an internal node of the shared reference.
+ * Drain, gate and source of one role, on named nodes. `R` is the mirror's own rail, `T` the
+ * opposite rail, `O` the output node and `C` the output's internal cascode node (both one per
+ * output of a bias bank), `vbias` the held cascode gate; any other name is an internal node of
+ * the shared reference. `other` marks a device of the opposite polarity (a reference's closing
+ * mirror), its bulk on the opposite rail.
  */
-export interface Connection { d: string; g: string; s: string }
+export interface Connection { d: string; g: string; s: string; other?: true }
+
+/** The self-biased loop of a reference kind (design §9.2): no input, the loop sets its current. */
+export interface ReferenceLoop {
+  /** Resistors of the loop by name, between two nodes; their value is the mirror's `resistor`. */
+  resistors: Readonly<Record<string, { a: string; b: string }>>;
+  /** The device whose transconductance the loop gain is measured through (Bode's return
+   *  difference of its gm: any controlled source of a single loop gives the same figure). */
+  breakAt: string;
+  /** Role scaled by `k:` (its width is K times the unit's), when the kind takes `k`. */
+  scaled?: string;
+  /** Where the start-up device sits: diode-connected from the closing mirror's gate line into
+   *  the loop (conducts while the loop sits at zero current, off once it runs). */
+  startup: Connection;
+  /** The textbook loop current, as the docs print it. */
+  current: string;
+}
 
 /** Small-signal parameters of one device as the circuit sees them: gmb is zero for a device
  *  whose bulk is tied to its own source (the model's ∂ID/∂VBS exists, but VBS cannot move). */
@@ -33,7 +51,10 @@ export interface KindSpec {
   reference: Readonly<Record<string, Connection>>;
   /** Output-side connections, one set per output. */
   output: Readonly<Record<string, Connection>>;
-  /** The node the input current flows into. */
+  /** Self-biased references: the loop that sets the current (the mirror takes no `input`). */
+  loop?: ReferenceLoop;
+  /** The node the input current flows into (a reference: the node of the device whose current
+   *  is reported as iin, the loop current). */
   inputNode: string;
   /** Devices between the source rail and the input node, rail first: they carry the input
    *  current and their VDS add up to the input node's voltage. */

@@ -5,8 +5,9 @@
  */
 import type { DeviceParams, ModelKind, Polarity } from '../types';
 import { kpAt, lambdaAt, thermalVoltage, thresholdAt } from './thermal';
-import type { DeviceModel } from './model';
-import { MODELS } from './registry';
+import type { DeviceModel, SizingContext } from './model';
+import { MODELS, modelKindOf } from './registry';
+import { sliceAt, type TableSlice } from './table/slice';
 
 export interface ModelDevice {
   /** The process model's equations, looked up by name once here so an evaluation in the
@@ -26,6 +27,10 @@ export interface ModelDevice {
   n: number;
   /** V, thermal voltage k·T/q. */
   ut: number;
+  /** A table device's table at its length and the operating temperature; its `beta` is then
+   *  kp·m·W·(1 + Δβ/β) (m, scaling A/m; kp is 1 unless a corner scales it) and `vt0` the
+   *  gate shift vt0 + ΔVT (vt0 is 0 unless a corner moves it). */
+  table?: TableSlice;
 }
 
 export interface DeviceSizeLike { w: number; l: number; m: number }
@@ -37,6 +42,7 @@ export function deviceProblem(p: DeviceParams, size: DeviceSizeLike): string | u
   if (!(size.w > 0) || !Number.isFinite(size.w)) return `W = ${size.w} m is not a positive length`;
   if (!(size.l > 0) || !Number.isFinite(size.l)) return `L = ${size.l} m is not a positive length`;
   if (!(size.m > 0) || !Number.isFinite(size.m)) return `m = ${size.m} is not a positive count`;
+  if (p.table) return undefined;
   if (!(p.kp > 0) || !Number.isFinite(p.kp)) return `kp = ${p.kp} A/V² is not positive`;
   for (const key of ['vt0', 'lambda', 'gamma', 'phi', 'n', 'tcv', 'bex'] as const) {
     if (!Number.isFinite(p[key])) return `${key} = ${p[key]} is not a finite number`;
@@ -52,10 +58,11 @@ export function prepareDevice(
   p: DeviceParams, size: DeviceSizeLike, type: Polarity, proc: ProcessConditions,
   dvt = 0, dbeta = 0,
 ): ModelDevice {
+  if (p.table) return prepareTableDevice(p, p.table, size, type, proc, dvt, dbeta);
   const valid = size.w > 0 && size.l > 0 && size.m > 0 && Number.isFinite(size.w * size.l * size.m);
   const beta = valid ? (kpAt(p, proc.temperature, proc.tnom) * size.m * size.w) / size.l * (1 + dbeta) : 0;
   return {
-    model: MODELS[proc.model],
+    model: MODELS[modelKindOf(p, proc.model)],
     sign: type === 'pmos' ? -1 : 1,
     beta: Number.isFinite(beta) && beta > 0 ? beta : 0,
     vt0: thresholdAt(p, proc.temperature, proc.tnom) + dvt,
@@ -65,4 +72,30 @@ export function prepareDevice(
     n: p.n > 0 ? p.n : 1,
     ut: thermalVoltage(proc.temperature),
   };
+}
+
+function prepareTableDevice(
+  p: DeviceParams, table: NonNullable<DeviceParams['table']>, size: DeviceSizeLike, type: Polarity,
+  proc: ProcessConditions, dvt: number, dbeta: number,
+): ModelDevice {
+  const valid = size.w > 0 && size.l > 0 && size.m > 0 && Number.isFinite(size.w * size.l * size.m);
+  const scale = valid ? p.kp * size.m * size.w * (1 + dbeta) : 0;
+  return {
+    model: MODELS.table,
+    sign: type === 'pmos' ? -1 : 1,
+    beta: Number.isFinite(scale) && scale > 0 ? scale : 0,
+    vt0: p.vt0 + dvt,
+    gamma: 0, phi: p.phi > 0 ? p.phi : 0.7, lambda: 0,
+    n: p.n > 0 ? p.n : 1,
+    ut: thermalVoltage(proc.temperature),
+    table: sliceAt(table, valid ? size.l : table.l[0]!, proc.temperature),
+  };
+}
+
+/** What design-target sizing needs of a device of length l (m): kp, n, U_T, and for a table
+ *  device its table at that length. */
+export function sizingContextOf(p: DeviceParams, proc: ProcessConditions, l: number): SizingContext {
+  const ctx: SizingContext = { kp: kpAt(p, proc.temperature, proc.tnom), n: p.n, ut: thermalVoltage(proc.temperature) };
+  if (p.table) ctx.slice = sliceAt(p.table, l, proc.temperature);
+  return ctx;
 }

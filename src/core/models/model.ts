@@ -7,10 +7,15 @@
 import type { DesignTarget } from '../types';
 import type { ChannelEval } from './core';
 import type { ModelDevice } from './device';
+import type { TableSlice } from './table/slice';
 
 /** Process values a design target is sized with: kp at the operating temperature (A/V²), the
  *  slope factor n and the thermal voltage U_T (V). */
-export interface SizingContext { kp: number; n: number; ut: number }
+export interface SizingContext {
+  kp: number; n: number; ut: number;
+  /** A table device's table at the device's length and the operating temperature. */
+  slice?: TableSlice;
+}
 
 export interface DeviceModel {
   /** Name in messages ("the square law", "the EKV model"). */

@@ -50,7 +50,7 @@ function unlinkedDraw(reports: MirrorReport[], networks: NetworkReport[]): numbe
   const inputs = new Set<number>();
   for (const r of reports) {
     if (inNetwork.has(r.mirror) || !r.converged) continue;
-    if (!inputs.has(r.mirrorIndex)) { inputs.add(r.mirrorIndex); sum += Math.abs(r.iin); }
+    if (!inputs.has(r.mirrorIndex)) { inputs.add(r.mirrorIndex); sum += Math.abs(r.iin ?? 0); }
     sum += Math.abs(r.iout);
   }
   return sum;

@@ -41,7 +41,8 @@ export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
   for (const g of groups) {
     const rin = g.root.input;
     const { vdd, vss } = spec.supplies;
-    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.i;
+    // A reference root sets its own current: its children start from a typical 10 µA.
+    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.kind === 'self' ? 10e-6 : rin.i;
     for (const [i, cur] of intendedInputs(g, i0, at)) {
       const m = at(i);
       if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });

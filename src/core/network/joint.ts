@@ -8,7 +8,7 @@ import { KINDS } from '../kinds/index';
 import { CircuitBuilder, type MosInstance } from '../circuit/circuit';
 import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
 import { resistorCurrent } from '../circuit/elements/resistor';
-import { deviceReport } from '../circuit/elements/device';
+import { channelCurrent, deviceReport } from '../circuit/elements/device';
 import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
@@ -96,7 +96,11 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
   }
   const rootRes = members[0]!.wired.inputResistor;
   const rootIn = g.root.input;
-  const rootCurrent = (): number => (rootRes ? resistorCurrent(rootRes, ws.v) : rootIn.kind === 'resistor' ? NaN : rootIn.i);
+  // A reference root: the loop current of its `ref`, which its taps copy.
+  const rootRef = rootIn.kind === 'self' ? members[0]!.wired.byRole[KINDS[g.root.kind].pair.ref] : undefined;
+  const rootCurrent = (): number => (rootRes ? resistorCurrent(rootRes, ws.v)
+    : rootRef !== undefined ? channelCurrent(c.devices[members[0]!.first + rootRef]!, ws.v)
+      : rootIn.kind === 'resistor' || rootIn.kind === 'self' ? NaN : rootIn.i);
   const rail = rootSign > 0 ? vss : vdd;
   const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices);
   const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
@@ -133,7 +137,9 @@ function jointGuess(
   // Currents: the root's (a resistor root: its current at a typical diode drop), then the ideal ratios.
   const current = new Map<number, number>();
   const rootIn = g.root.input;
-  const root0 = rootIn.kind === 'resistor' ? Math.max(span - 0.7, 0.1 * span) / rootIn.r : rootIn.i;
+  // A reference root sets its own current (its guess finds it); its taps' mirrors start from a
+  // typical bias current, 10 µA, and Newton takes them from there.
+  const root0 = rootIn.kind === 'resistor' ? Math.max(span - 0.7, 0.1 * span) / rootIn.r : rootIn.kind === 'self' ? 10e-6 : rootIn.i;
   current.set(members[0]!.index, root0);
   const byIndex = new Map(members.map((x) => [x.index, x] as const));
   for (const mem of members.slice(1)) {
@@ -155,7 +161,7 @@ function jointGuess(
     const vbK = index.get(`${mem.ns}vbias`);
     const ctx: GuessContext = {
       m, devByName, bank: isBank(m), ratios: m.outputs.map((_, j) => idealRatio(m, j) ?? 1), uOuts,
-      uVb: vbK !== undefined ? mem.sign * (fixedV[vbK]! - rail) : 0, cNodes: mem.wired.cNodes, u: {},
+      uVb: vbK !== undefined ? mem.sign * (fixedV[vbK]! - rail) : 0, cNodes: mem.wired.cNodes, u: {}, span,
     };
     guessNodes(ctx, current.get(mem.index) ?? root0);
     const input = KINDS[m.kind].inputNode;

@@ -12,6 +12,7 @@
 import { CAUTION } from '../text/format';
 import type { FileReport } from '../types';
 import { renderStaticReport, type ReportStamp } from './static-html';
+import { SCHEMATIC_CSS, type Schematic } from '../schematic';
 
 export type { ReportStamp } from './static-html';
 
@@ -23,8 +24,9 @@ export const REPORT_DATA_ID = 'qpoint-report-data';
 
 
 /** One complete HTML page. `assets.script` is the panel bundle's text; `assets.css` optional
- *  extra styles (the bundle carries its own); `stamp` what the page says about its making. */
-export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }, stamp?: ReportStamp): string {
+ *  extra styles (the bundle carries its own); `stamp` what the page says about its making;
+ *  `schematics` each output's drawing by name (`schematicsOf`, laid out beforehand). */
+export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>): string {
   const title = `qpoint report — ${report.title ?? baseName(report.file)}`;
   return [
     '<!DOCTYPE html>',
@@ -41,7 +43,7 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     '</head>',
     '<body class="vscode-light qpoint-report">',
     `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION)}</div>`,
-    `<div id="${STATIC_ID}">${renderStaticReport(report, stamp)}</div>`,
+    `<div id="${STATIC_ID}">${renderStaticReport(report, stamp, schematics)}</div>`,
     '<main id="qpoint-root"></main>',
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,
     `<script>${escapeScript(assets.script)}</script>`,
@@ -203,6 +205,10 @@ const REPORT_THEME = [
   `#${STATIC_ID} .stamp { color: var(--vscode-descriptionForeground); }`,
   `#${STATIC_ID} svg { max-width: 100%; height: auto; margin: 4px 16px 8px 0; }`,
   `#${STATIC_ID} section { break-inside: avoid-page; }`,
+  `#${STATIC_ID} .figures-schematic { display: flex; flex-wrap: wrap; gap: 0 24px; align-items: flex-start; }`,
+  `#${STATIC_ID} .schematic-figure { margin: 8px 0 16px; }`,
+  `#${STATIC_ID} .schematic-figure figcaption { color: var(--vscode-descriptionForeground); font-size: 90%; }`,
+  SCHEMATIC_CSS,
   // Printing and archiving use the static body, whatever the script drew on screen.
   `@media print { #${STATIC_ID} { display: block !important; } #qpoint-root { display: none !important; } }`,
 ].join('\n');

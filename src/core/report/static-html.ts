@@ -1,6 +1,7 @@
 /**
  * The report's static body: every mirror's figures, devices, findings, corners and Monte Carlo
- * as HTML tables, and its Iout/Rout sweep and histogram as inline SVG (svg.ts). It reads without
+ * as HTML tables, its schematic with the operating point and its Iout/Rout sweep and histogram
+ * as inline SVG (schematic/, svg.ts; schematics are laid out beforehand, `schematicsOf`). It reads without
  * JavaScript, prints, and archives: the file states the tool version, when it was written and a
  * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
@@ -9,6 +10,8 @@ import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
 import { ZERO_CELSIUS } from '../defaults';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
+import { referenceText } from './text';
+import { schematicSvg, type Schematic } from '../schematic';
 
 /** What the page says about its own making; the caller supplies it (the core has no clock). */
 export interface ReportStamp {
@@ -49,14 +52,15 @@ function findingsTable(file: string, findings: Finding[]): string {
 
 function summaryRows(m: MirrorReport): string[][] {
   const rows: [string, string][] = [
-    ['Iin', si(m.iin, 'A', 4)], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
-    ['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)],
+    ['Iin', m.iin !== undefined ? si(m.iin, 'A', 4) : 'none (self-biased)'], ['Iout', `${si(m.iout, 'A', 4)} at Vout = ${si(m.vout, 'V')}`],
   ];
+  if (m.ratio !== undefined) rows.push(['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)]);
   if (m.error !== undefined) {
     const s = m.errorSplit;
     const split = s ? ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})` : '';
     rows.push(['Error', `${pct(m.error, true)}${split}`]);
   }
+  if (m.reference) rows.push(['Reference', esc(referenceText(m.reference, (v, u) => si(v, u, 4)).replace(/^reference /, ''))]);
   rows.push(['Rout', m.routApprox !== undefined ? `${si(m.rout, 'Ω')} (textbook ${si(m.routApprox, 'Ω')})` : si(m.rout, 'Ω')]);
   rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
     : `${si(m.compliance, 'V', 4)} (${m.type === 'nmos' ? 'works down to' : 'works up to'})`]);
@@ -88,13 +92,14 @@ function deviceRow(d: DeviceReport): string[] {
   ];
 }
 
-function mirrorSection(m: MirrorReport, findings: Finding[]): string {
+function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schematic | undefined): string {
   const out: string[] = [`<section class="mirror-static" data-mirror="${esc(m.name)}"><h2>${esc(m.name)} <small>${m.kind} ${m.type.toUpperCase()}</small></h2>`];
   if (m.beyondRails || !m.converged) {
     out.push(`<p class="solve-note severity-error">${m.beyondRails ? 'No operating point within the supply' : 'The DC solve did not converge'}${m.solveNote ? `: ${esc(m.solveNote)}` : ''}.</p>`);
   }
   if (!m.beyondRails) {
-    out.push(table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures'));
+    const figures = table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures');
+    out.push(schematic ? `<div class="figures-schematic">${figures}<figure class="schematic-figure">${schematicSvg(schematic)}<figcaption>Schematic of ${esc(m.name)} at its operating point</figcaption></figure></div>` : figures);
     out.push(table(`Devices of ${m.name}`, ['Device', 'W/L·m', 'ID', 'VGS', 'VDS', 'VDSsat', 'Margin', 'Region', 'gm/ID', 'IC', 'ro'], m.devices.map(deviceRow), 'devices'));
   }
   const own = findings.filter((f) => f.message.startsWith(`${m.name}: `) || f.message.startsWith(`${m.mirror}: `));
@@ -150,12 +155,12 @@ function driftPlots(m: MirrorReport): string[] {
 }
 
 /** The whole static body. */
-export function renderStaticReport(report: FileReport, stamp?: ReportStamp): string {
+export function renderStaticReport(report: FileReport, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>): string {
   const parts = [
     `<h1>${esc(report.title ?? report.file)}</h1>`,
     stampLine(report, stamp),
     findingsTable(report.file, report.findings),
-    ...report.mirrors.map((m) => mirrorSection(m, report.findings)),
+    ...report.mirrors.map((m) => mirrorSection(m, report.findings, schematics?.get(m.name))),
   ];
   if (report.networks?.length) {
     parts.push(table('Bias networks', ['Root', 'Members', 'Supply current', 'Power', 'Worst leaf'], report.networks.map((n) => [

@@ -4,7 +4,7 @@
  * annotators link to). Every line passes through `escapeControls`: titles, names and messages
  * are the spec's text, and a YAML escape can put ESC, BEL or CR in them.
  */
-import type { DeviceReport, FileReport, Finding, MirrorReport, NetworkReport } from '../types';
+import type { DeviceReport, FileReport, Finding, MirrorReport, NetworkReport, ReferenceReport } from '../types';
 import { escapeControls, formatPercent, formatSI, formatSignedPercent } from '../text/format';
 
 export function findingLine(file: string, f: Finding): string {
@@ -23,21 +23,37 @@ export function renderText(report: FileReport, opts: { tables?: boolean } = {}):
   return lines.join('\n');
 }
 
+/** A self-biased reference in one line: its current, loop gain and start-up check. */
+export function referenceText(r: ReferenceReport, si: (v: number, unit: string) => string): string {
+  const s = r.startup;
+  const lg = r.loopGain !== undefined ? `  loop gain ${r.loopGain.toPrecision(3)}` : '';
+  let start: string;
+  if (!s.element) start = s.zeroState ? 'zero-current state, no start-up element' : 'no zero-current state';
+  else {
+    const there = s.conducts ? 'conducts at zero current' : 'off at zero current';
+    const op = s.current !== undefined && s.limit !== undefined ? `, ${si(s.current, 'A')} at the operating point (limit ${si(s.limit, 'A')})` : '';
+    start = `${there}${op}`;
+  }
+  return `reference ${si(r.current, 'A')}${lg}  start-up: ${start}`;
+}
+
 function mirrorBlock(m: MirrorReport): string[] {
   // A node outside the rails is no operating point: its numbers describe nothing, so none are shown.
   if (m.beyondRails) return [`${m.name}  ${m.kind} ${m.type}  (no operating point within the supply)`];
   const head = `${m.name}  ${m.kind} ${m.type}${m.converged ? '' : '  (did not converge)'}`;
-  const ratio = m.ratioIdeal !== undefined
-    ? `ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
-    : `ratio ${m.ratio.toPrecision(5)}`;
+  const ratio = m.ratio === undefined ? '' : m.ratioIdeal !== undefined
+    ? `  ratio ${m.ratio.toPrecision(5)} (ideal ${+m.ratioIdeal.toPrecision(6)})`
+    : `  ratio ${m.ratio.toPrecision(5)}`;
   const err = m.error !== undefined ? `  error ${formatSignedPercent(m.error)}` : '';
-  const line1 = `  Iin ${si(m.iin, 'A')}  Iout ${si(m.iout, 'A')}  ${ratio}${err}`;
+  const iin = m.iin !== undefined ? `  Iin ${si(m.iin, 'A')}` : '';
+  const line1 = `${iin}  Iout ${si(m.iout, 'A')}${ratio}${err}`;
   const approx = m.routApprox !== undefined ? ` (textbook ${si(m.routApprox, 'Ω')})` : '';
   const sigma = m.sigma !== undefined ? `  σ ${formatPercent(m.sigma)}` : '';
   const vb = m.vbias !== undefined ? `  vbias ${si(m.vbias, 'V')}${m.vbiasPicked ? ' (picked)' : ''}` : '';
   const compliance = m.noCompliance ? `compliance none (${m.noCompliance.device} out of saturation at every Vout)` : `compliance ${si(m.compliance, 'V')}`;
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  ${compliance} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
-  return [head, line1, line2, ...linkLines(m), ...driftLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
+  const ref = m.reference ? [`  ${referenceText(m.reference, (v, u) => si(v, u))}`] : [];
+  return [head, line1, line2, ...ref, ...linkLines(m), ...driftLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
 }
 
 /** A network member's place in it (design §9.3): what feeds it, what it feeds, the chain figures. */

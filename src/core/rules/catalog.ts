@@ -101,6 +101,12 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Use `model: ekv` in process (offered as a quick fix when the whole file still checks clean with it).',
   },
   {
+    code: 'table-range', severity: 'warning',
+    summary: 'A device given by a characterisation table operates outside the table\'s grid (vgs, vds, vsb, l or temperature).',
+    why: 'Outside the grid qpoint clamps: the interpolant continues along its end tangent, so the figures are not from the designer\'s data.',
+    fix: 'Extend the table\'s grid to cover the operating point (or move the device into it: another length, another overdrive). No quick fix.',
+  },
+  {
     code: 'below-lmin', severity: 'error', fixFirst: true,
     summary: 'A drawn length is below the process lmin.',
     why: 'The process cannot draw it, and the models are not valid there.',
@@ -129,6 +135,24 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     summary: 'The DC solve of the mirror did not converge; the message says what was tried.',
     why: 'No operating point, no checks: the other figures of this mirror are not reported.',
     fix: 'Check supplies, currents and sizes for something the circuit cannot carry (a current larger than the devices pass at the supply, a floating node in a netlist).',
+  },
+  {
+    code: 'no-startup', severity: 'error',
+    summary: 'A self-biased circuit (a reference kind, or a netlist without input) has a consistent zero-current state and no start-up element.',
+    why: 'Every self-biased loop can also rest with no current in any branch; the solver never shows that state (gmin and weak-inversion current hide it), but a powered-up chip may sit there.',
+    fix: 'Add a start-up element that conducts while the loop is off. For the reference kinds the quick fix adds `startup: { w, l }`, a narrow long device diode-connected from the closing mirror\'s gate line into the loop.',
+  },
+  {
+    code: 'startup-inactive', severity: 'error',
+    summary: 'The start-up element stays off in the zero-current state.',
+    why: 'A start-up element that does not conduct when every loop device is off leaves the zero-current state consistent: the loop is not started.',
+    fix: 'Connect it across nodes that sit at opposite rails while the loop is off, or raise the supply above |VTp| + VTn + its own threshold. No quick fix.',
+  },
+  {
+    code: 'startup-leak', severity: 'warning',
+    summary: 'The start-up element carries more than 1 % of the smallest loop branch current at the operating point.',
+    why: 'A start-up element that stays on adds its current to the loop and moves the reference current.',
+    fix: 'A longer start-up device (offered as a quick fix, verified by re-solving), or a connection whose gate drive falls below its threshold once the loop runs.',
   },
 ];
 

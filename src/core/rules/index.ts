@@ -19,6 +19,8 @@ import { checkFilterNoise, checkNoise, checkSupplySensitivity, checkTc } from '.
 import { checkHeadroom } from './checks/headroom';
 import { checkInversion } from './checks/inversion';
 import { checkGeometry } from './checks/geometry';
+import { checkStartup } from './checks/startup';
+import { checkTableRange } from './checks/table-range';
 import { indexOf } from '../mirror-at';
 
 export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
@@ -75,6 +77,8 @@ export function detect(rc: RuleContext): Draft[] {
         // A check that fails on odd numbers must not cost the other findings.
       }
     };
+    // The zero-current state is judged without an operating point: before the convergence gate.
+    run(() => checkStartup(rc, site));
     const conv = checkConvergence(rc, site);
     if (conv.length > 0) { run(() => conv); continue; }
     run(() => checkSaturation(rc, site));
@@ -89,6 +93,7 @@ export function detect(rc: RuleContext): Draft[] {
     run(() => checkHeadroom(rc, site));
     run(() => checkGeometry(rc, site));
     run(() => checkInversion(rc, site, inversionSeen));
+    run(() => checkTableRange(rc, site));
   }
   return drafts;
 }

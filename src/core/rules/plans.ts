@@ -226,7 +226,7 @@ export function* balancedPlans(rc: RuleContext, site: Site): Generator<Candidate
   if (!kindEdit) return;
   const title = 'Switch to the balanced Wilson (its `bal` diode equalises VDS of `in` and `diode`)';
   yield candidate('balanced', () => plan(site.mirrorIndex, title, [kindEdit], 'balanced'));
-  const ratio = site.report.ratioIdeal ?? site.report.ratio;
+  const ratio = site.report.ratioIdeal ?? site.report.ratio ?? NaN;
   const bal = balancedBalSize(m, ratio);
   if (bal && fixable(rc, site.mirrorIndex)) {
     const w = quantizeSize(bal.w, rc.spec.process.grid, 'nearest');

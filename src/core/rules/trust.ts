@@ -23,7 +23,9 @@ export function untrustedMove(before: readonly MirrorReport[], after: readonly M
   for (const r of after) {
     if (!r.converged) continue;
     for (const d of r.devices) {
-      if (!(d.ic < SQUARE_LAW_MIN_IC)) continue;
+      // A start-up element is meant to sit near cutoff at the operating point: its figure there
+      // is the start-up check's, not a square-law operating point.
+      if (d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
       const ic = was.get(`${r.path.join('/')}|${d.name}`);
       if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
     }

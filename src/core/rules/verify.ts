@@ -14,7 +14,7 @@ import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
-import { carryLinks } from '../network/index';
+import { provisionalLinks, solveNetworks } from '../network/index';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -79,7 +79,7 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
-  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits });
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) });
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
@@ -112,11 +112,10 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   validateSchema({ ...data, mirrors: [frag.data] }, sink);
   if (sink.errorCount > 0) return undefined;
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
-  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i });
+  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  // A linked mirror is re-checked as it was measured: with the current that arrives and its
-  // linked outputs at their solved voltages (the link fixes of network/ re-solve the network).
-  const spec = applyDesignTargets(carryLinks({ ...read, limits: rc.spec.limits }, rc.spec, i), i).spec;
+  // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it.
+  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec);
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const untrusted = trusted(rc, spec, reports);

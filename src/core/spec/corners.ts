@@ -4,16 +4,17 @@
  * percentage scales it (`kp: -10%` → {scale: -0.10}, i.e. kp·0.9). `temperature`, `vdd`, `vss`
  * replace the nominal values.
  */
-import type { CornerSpec, DeviceParams, ParamDelta, Polarity, ProcessSpec, SpecPath, Supplies } from '../types';
+import type { CornerSpec, NumericParam, ParamDelta, Polarity, ProcessSpec, SpecPath, Supplies } from '../types';
 import { readQuantity } from '../units/si';
 import { DEVICE_PARAM_KEYS, DEVICE_PARAM_RULES, readTemperature } from './process';
 import { readMap } from './read';
+import { readTableValue } from './tables';
 import { resolveNumber } from './values';
 import type { ValueScope } from './values';
 
 const PERCENT = /^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*%\s*$/;
 
-function readDelta(scope: ValueScope, raw: unknown, path: SpecPath, key: keyof DeviceParams): ParamDelta | undefined {
+function readDelta(scope: ValueScope, raw: unknown, path: SpecPath, key: NumericParam): ParamDelta | undefined {
   if (typeof raw === 'string') {
     const pm = PERCENT.exec(raw);
     if (pm) {
@@ -42,6 +43,13 @@ export function readCorners(scope: ValueScope, raw: unknown, process: ProcessSpe
     for (const type of ['nmos', 'pmos'] as Polarity[]) {
       const dm = readMap(scope.sink, c[type], [...path, type]);
       if (!dm) continue;
+      if (dm.table !== undefined) {
+        const t = readTableValue(scope.sink, scope.tables, dm.table, [...path, type, 'table']);
+        if (t) (corner.tables ??= {})[type] = t;
+        if (t && process && !process[type].table) {
+          scope.sink.error('bad-value', `corner \`${name}\` names a ${type} table, but \`process.${type}\` has none to replace`, [...path, type, 'table']);
+        }
+      }
       for (const key of DEVICE_PARAM_KEYS) {
         if (dm[key] === undefined) continue;
         const at = [...path, type, key];

@@ -4,7 +4,7 @@
  * value becomes a finding at that value, never an exception.
  */
 import { readAnalysis } from './drift';
-import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
+import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
@@ -12,9 +12,10 @@ import { readTemplateMirror } from './mirror';
 import { checkLinks, fedOutputs } from './links';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
-import { readLimits, readProcess, readSupplies } from './process';
+import { readLimits, readProcess, readSupplies, type ProcessRead } from './process';
 import { missing, readEnum, readMap, readString } from './read';
-import { typeName } from './values';
+import { typeName, type ValueScope } from './values';
+import type { TableTexts } from './tables';
 
 /**
  * Mirrors already elaborated from the same items: a re-check after a fix to mirror `except` reads
@@ -26,8 +27,28 @@ export interface ElaborateReuse {
   except: number;
 }
 
+/** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
+ *  when not given, null when it names no such flavour (a finding says so). */
+function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: Polarity): string | null | undefined {
+  if (raw === undefined) return undefined;
+  const name = readString(sink, raw, path);
+  if (name === undefined) return null;
+  if (!proc?.flavourNames.has(name)) {
+    const known = [...(proc?.flavourNames ?? [])];
+    sink.error('unknown-name', `no device flavour \`${name}\` in \`process.devices\`${known.length ? ` (it has ${known.map((k) => `\`${k}\``).join(', ')})` : ''}`, path);
+    return null;
+  }
+  const f = proc.devices?.[name];
+  if (!f) return null;   // the flavour has its own error
+  if (f.type !== type) {
+    sink.error('bad-value', `device flavour \`${name}\` is ${f.type}, but this mirror is ${type}`, path);
+    return null;
+  }
+  return name;
+}
+
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
-export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse): ResolvedSpec | undefined {
+export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse, tables?: TableTexts): ResolvedSpec | undefined {
   if (!isRecord(data)) {
     sink.error('wrong-type', `a bias spec is a mapping (\`format: 1\`, \`process\`, \`supplies\`, \`mirrors\`); got ${typeName(data)}`, [], undefined, 'type');
     return undefined;
@@ -40,7 +61,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     formatOk = false;
   }
   const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
-  const scope = resolveParams(data.params, sink);
+  const scope: ValueScope = { ...resolveParams(data.params, sink), ...(tables ? { tables } : {}) };
   const proc = readProcess(scope, data.process);
   const supplies = readSupplies(scope, data.supplies);
   const limits = readLimits(scope, data.limits);
@@ -59,7 +80,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [known.type];
+      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : known.device ? [] : [known.type];
       for (const t of types) if (!used.has(t)) used.set(t, known.name);
       mirrors.push(known);
       return;
@@ -87,8 +108,11 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       return;
     }
     if (!type) return;
-    if (!used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, proc?.[type], supplies, (j) => fed.has(`${i}:${j}`));
+    const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
+    if (flavour === null) return;
+    if (!flavour && !used.has(type)) used.set(type, name);
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, flavour ? proc?.devices?.[flavour]?.params : proc?.[type], supplies, (j) => fed.has(`${i}:${j}`));
+    if (tm && flavour) tm.device = flavour;
     if (tm) mirrors.push(tm);
   });
 
@@ -101,11 +125,13 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     for (const [type, mirror] of used) {
       if (!proc.written.has(type)) missing(sink, ['process'], type, ` (mirror \`${mirror}\` uses ${type} devices)`);
     }
-    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos);
-    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos);
-    if (!proc.written.has('nmos') && !proc.written.has('pmos')) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
+    const anyFlavour = proc.devices ? Object.values(proc.devices)[0]?.params : undefined;
+    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos ?? anyFlavour);
+    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos ?? anyFlavour);
+    if (!proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
     if (nmos && pmos && proc.ok) {
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
+      if (proc.devices) process.devices = proc.devices;
       if (proc.grid !== undefined) process.grid = proc.grid;
       if (proc.trange !== undefined) process.trange = proc.trange;
     }

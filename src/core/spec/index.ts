@@ -16,6 +16,9 @@ import { LineIndex, ZERO_RANGE } from '../text/lines';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
 import { indexOf } from '../mirror-at';
+import { tableNames, type TableTexts } from './tables';
+
+export type { TableTexts } from './tables';
 import type { SourceMap } from './source-map';
 
 export type { SourceMap } from './source-map';
@@ -34,6 +37,23 @@ export interface ParsedSpec {
   withheld?: number[];
   /** Did-you-means that can be applied to their token (not yet verified: spec/suggestion-fixes.ts). */
   suggestions?: SpecSuggestion[];
+  /** The table texts the spec was read with (a re-read of an edited text reuses them). */
+  tables?: TableTexts;
+}
+
+export interface ParseOptions {
+  /** Characterisation-table texts by the name the spec writes (front ends read the files). */
+  tables?: TableTexts;
+}
+
+/** The table files a spec names (`table:` values), for the front end to read before analysing. */
+export function tableFiles(text: string): string[] {
+  try {
+    const read = readDocument(typeof text === 'string' ? text : '', new LineIndex(text));
+    return read.parsed ? tableNames(read.data) : [];
+  } catch {
+    return [];
+  }
 }
 
 const SEVERITY_ORDER = { error: 0, warning: 1, info: 2 } as const;
@@ -49,7 +69,7 @@ function looksJson(text: string, file?: string): boolean {
   return /^\s*\{/.test(text) && /\}\s*$/.test(text);
 }
 
-export function parseSpec(text: string, file?: string): ParsedSpec {
+export function parseSpec(text: string, file?: string, opts: ParseOptions = {}): ParsedSpec {
   const src = typeof text === 'string' ? text : '';
   const lines = new LineIndex(src);
   let source = new YamlSourceMap(undefined, lines);
@@ -62,8 +82,9 @@ export function parseSpec(text: string, file?: string): ParsedSpec {
     for (const f of read.findings) sink.add(f.severity, f.code, f.message, f.path, f.range, `${f.code}:${f.range.start.line}:${f.range.start.character}`);
     if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
     validateSchema(read.data, sink);
-    const spec = elaborate(read.data, sink);
+    const spec = elaborate(read.data, sink, undefined, opts.tables);
     const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
+    if (opts.tables) out.tables = opts.tables;
     if (sink.suggestions.length > 0) out.suggestions = sink.suggestions;
     if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
     else if (spec !== undefined) {

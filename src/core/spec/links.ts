@@ -80,39 +80,52 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
     link.mirror = up;
     link.output = output;
   }
-  // Cycles: follow each chain upwards; one that comes back to its start is a loop (each member
-  // of it gets the finding at its own `from`).
+  // Cycles: follow each chain upwards, marking what is done, so a file of long chains costs
+  // linear time; a chain that meets itself is a loop (each member gets the finding at its `from`).
   const looped: number[] = [];
+  const state = new Map<number, 1 | 2>();   // 1: on the chain being followed, 2: done
   for (const m of mirrors) {
-    const start = m.path[1] as number;
-    const seen = new Set<number>();
-    const names: string[] = [m.name];
-    let at = upstreamOf(byIndex, start);
-    while (at !== undefined && !seen.has(at) && !bad.has(at)) {
-      if (at === start) {
-        sink.error('link-cycle', `links close a loop: ${[...names, m.name].join(' ← ')}; a bias network is a tree fed from one root`, fromPath(m));
-        looped.push(start);
-        break;
-      }
-      seen.add(at);
-      names.push(byIndex.get(at)?.name ?? `mirror ${at + 1}`);
+    const chain: number[] = [];
+    let at: number | undefined = m.path[1] as number;
+    while (at !== undefined && !state.has(at)) {
+      state.set(at, 1);
+      chain.push(at);
       at = upstreamOf(byIndex, at);
     }
+    if (at !== undefined && state.get(at) === 1) {
+      const loop = chain.slice(chain.indexOf(at));
+      for (let k = 0; k < loop.length; k++) {
+        const here = byIndex.get(loop[k]!)!;
+        // Upwards from here: the mirrors that feed it, back to itself.
+        const names = [...loop.slice(k), ...loop.slice(0, k)].map((x) => byIndex.get(x)?.name ?? `mirror ${x + 1}`);
+        sink.error('link-cycle', `links close a loop: ${[...names, here.name].join(' ← ')}; a bias network is a tree fed from one root`, fromPath(here));
+        looped.push(loop[k]!);
+      }
+    }
+    for (const x of chain) state.set(x, 2);
   }
   for (const i of looped) bad.add(i);
   // A mirror fed (directly or not) by one that has errors cannot be solved yet.
   const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
   for (let k = 0; k < items.length; k++) if (!byIndex.has(k)) bad.add(k);
-  for (let changed = true; changed;) {
-    changed = false;
-    for (const m of mirrors) {
-      const link = linkOf(m);
+  const fedFrom = new Map<number, ResolvedMirror[]>();
+  for (const m of mirrors) {
+    const link = linkOf(m);
+    if (!link || link.mirror < 0) continue;
+    const list = fedFrom.get(link.mirror) ?? [];
+    list.push(m);
+    fedFrom.set(link.mirror, list);
+  }
+  const queue = [...bad];
+  while (queue.length > 0) {
+    const up = queue.pop()!;
+    for (const m of fedFrom.get(up) ?? []) {
       const i = m.path[1] as number;
-      if (!link || bad.has(i) || link.mirror < 0 || !bad.has(link.mirror)) continue;
-      const up = byIndex.get(link.mirror)?.name ?? targets.find((t) => t.index === link.mirror)?.name ?? `mirror ${link.mirror + 1}`;
-      sink.error('link-upstream', `fed by \`${up}\`, which has errors: this mirror is solved once they are fixed`, fromPath(m));
+      if (bad.has(i)) continue;
+      const name = byIndex.get(up)?.name ?? targets.find((t) => t.index === up)?.name ?? `mirror ${up + 1}`;
+      sink.error('link-upstream', `fed by \`${name}\`, which has errors: this mirror is solved once they are fixed`, fromPath(m));
       bad.add(i);
-      changed = true;
+      queue.push(i);
     }
   }
   // Mark the fed outputs; a written voltage on one is not used.

@@ -1,5 +1,5 @@
 /** One template mirror (any kind of src/core/kinds/) → TemplateMirror. */
-import { BANK_KINDS, KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/index';
+import { BANK_KINDS, KINDS, REFERENCE_KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/index';
 import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
   Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
 import { formatSI } from '../text/format';
@@ -14,6 +14,8 @@ import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
 const NETLIST_KEYS = ['currents', 'voltages', 'resistors', 'pair'];
+/** Keys of the self-biased reference kinds only. */
+const REFERENCE_KEYS = ['resistor', 'k', 'startup'];
 
 export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
   if (raw === undefined) {
@@ -150,8 +152,27 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (m.vbias !== undefined && !spec.vbias) misplaced(sink, [...path, 'vbias'], `\`vbias\` applies only to ${VBIAS_KINDS.join(', ')} mirrors (the cascode gate voltage)`);
   if (m.outputs !== undefined && !spec.bank) misplaced(sink, [...path, 'outputs'], `\`outputs\` (bias banks) applies to ${BANK_KINDS.join(', ')} mirrors`);
 
-  const input = readInput(scope, m.input, [...path, 'input']);
-  const design = m.design === undefined ? undefined : readDesign(scope, m.design, [...path, 'design']);
+  const loop = spec.loop;
+  if (loop) {
+    if (m.input !== undefined) misplaced(sink, [...path, 'input'], `a ${kind} sets its own current (its loop and \`resistor\`); it takes no \`input\``);
+    if (m.design !== undefined) misplaced(sink, [...path, 'design'], `\`design\` sizes mirrors fed by an input current; a ${kind} sets its own`);
+    if (m.k !== undefined && !loop.scaled) misplaced(sink, [...path, 'k'], `\`k\` applies to beta-multiplier references (the width ratio of \`wide\` to \`ref\`)`);
+  } else {
+    for (const k of REFERENCE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to the self-biased references (${REFERENCE_KINDS.join(', ')})`);
+  }
+  const input: InputSource | undefined = loop ? { kind: 'self' } : readInput(scope, m.input, [...path, 'input']);
+  const design = m.design === undefined || loop ? undefined : readDesign(scope, m.design, [...path, 'design']);
+  let resistor: number | undefined, k: number | undefined, startup: DeviceSize | undefined;
+  if (loop) {
+    if (m.resistor === undefined) missing(sink, path, 'resistor', ' (the loop resistor, Ω)');
+    else resistor = resolveNumber(scope, m.resistor, [...path, 'resistor'], 'resistance', { positive: true });
+    if (loop.scaled && m.k !== undefined) k = resolveNumber(scope, m.k, [...path, 'k'], 'ratio', { positive: true });
+    if (m.startup !== undefined) {
+      const sp = [...path, 'startup'];
+      const layer = readSizeLayer(scope, m.startup, sp);
+      startup = layer ? buildSize({ scope, params, hasDesign: false, sizePath: sp }, [layer]) : undefined;
+    }
+  }
   const filter = m.filter === undefined ? undefined : readFilter(scope, m.filter, [...path, 'filter']);
   const vbias = m.vbias === undefined || !spec.vbias ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
   if (m.size === undefined) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
@@ -168,6 +189,12 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
     if (outRoles.includes(role)) continue;
     const s = size(role);
     if (s) devices[role] = s;
+  }
+  // `k:` widens the beta multiplier's degenerated device K times (its W/L over ref's).
+  const scaled = loop?.scaled;
+  if (scaled && devices[scaled]) {
+    if (k !== undefined) devices[scaled] = { ...devices[scaled]!, w: devices[scaled]!.w * k };
+    else if (m.k === undefined && !mirrorLayers.has(scaled)) missing(sink, path, 'k', ` (the width ratio of \`${scaled}\` to \`ref\`, e.g. 4)`);
   }
   const mirrorOutput = m.output === undefined ? undefined : readOutput(scope, m.output, [...path, 'output'], supplies);
   const mirrorRequire = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
@@ -215,6 +242,8 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   }
   if (sink.errorCount > before || !input) return undefined;
   const mirror: TemplateMirror = { kind, name: head.name, type: head.type, input, devices, outputs, path };
+  if (resistor !== undefined) mirror.resistor = resistor;
+  if (startup) mirror.startup = startup;
   if (vbias !== undefined) mirror.vbias = vbias;
   if (design) mirror.design = design;
   if (filter) mirror.filter = filter;

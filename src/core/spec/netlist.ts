@@ -14,7 +14,7 @@ import { resolveNumber, typeName } from './values';
 import type { ValueScope } from './values';
 
 const NODE = /^[A-Za-z_][A-Za-z0-9_]*$/;
-const TEMPLATE_KEYS = ['size', 'vbias', 'outputs', 'design'];
+const TEMPLATE_KEYS = ['size', 'vbias', 'outputs', 'design', 'resistor', 'k'];
 
 /** Rail name for a node, or undefined for a free node. */
 export function railOf(node: string): 'vdd' | 'vss' | undefined {
@@ -84,36 +84,44 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const uses: Uses = new Map();
   if (tooLarge(scope, m, path)) return undefined;
 
-  const devices: NetlistDevice[] = [];
+  /** The MOSFETs of one section (`devices`, or the start-up element's `startup`). */
+  const readDevices = (section: 'devices' | 'startup', dmap: Data): NetlistDevice[] => {
+    const list: NetlistDevice[] = [];
+    const dp = [...path, section];
+    for (const dn of Object.keys(dmap)) {
+      const at = [...dp, dn];
+      claim(section, dn, at);
+      const d = readMap(sink, dmap[dn], at, 'a mapping { type, d, g, s, b, w, l, m }');
+      if (!d) continue;
+      const dtype = d.type === undefined ? type : readEnum<Polarity>(sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
+      if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos or pmos; or give the mirror a `type`)');
+      const t: Record<'d' | 'g' | 's' | 'b', string | undefined> = { d: undefined, g: undefined, s: undefined, b: undefined };
+      for (const k of ['d', 'g', 's', 'b'] as const) {
+        if (d[k] === undefined) {
+          if (k !== 'b') missing(sink, at, k, k === 'd' ? ' (drain node)' : k === 'g' ? ' (gate node)' : ' (source node)');
+          continue;
+        }
+        t[k] = readNode(scope, d[k], [...at, k]);
+        use(uses, t[k], [...at, k], k !== 'g');
+      }
+      const w = d.w === undefined ? undefined : resolveNumber(scope, d.w, [...at, 'w'], 'length', { positive: true });
+      const l = d.l === undefined ? undefined : resolveNumber(scope, d.l, [...at, 'l'], 'length', { positive: true });
+      if (d.w === undefined) missing(sink, at, 'w', ' (width, m)');
+      if (d.l === undefined) missing(sink, at, 'l', ' (length, m)');
+      const mm = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
+      if (dtype && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
+        list.push({ name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm });
+      }
+    }
+    return list;
+  };
   const dp = [...path, 'devices'];
   if (m.devices === undefined) missing(sink, path, 'devices', ' (the MOSFETs by name)');
   const dmap = readMap(sink, m.devices, dp, 'a mapping of device names to { type, d, g, s, b, w, l, m }') ?? {};
   if (m.devices !== undefined && Object.keys(dmap).length === 0) sink.error('bad-value', '`devices` is empty; a netlist needs at least one MOSFET', dp, 'key');
-  for (const dn of Object.keys(dmap)) {
-    const at = [...dp, dn];
-    claim('devices', dn, at);
-    const d = readMap(sink, dmap[dn], at, 'a mapping { type, d, g, s, b, w, l, m }');
-    if (!d) continue;
-    const dtype = d.type === undefined ? type : readEnum<Polarity>(sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
-    if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos or pmos; or give the mirror a `type`)');
-    const t: Record<'d' | 'g' | 's' | 'b', string | undefined> = { d: undefined, g: undefined, s: undefined, b: undefined };
-    for (const k of ['d', 'g', 's', 'b'] as const) {
-      if (d[k] === undefined) {
-        if (k !== 'b') missing(sink, at, k, k === 'd' ? ' (drain node)' : k === 'g' ? ' (gate node)' : ' (source node)');
-        continue;
-      }
-      t[k] = readNode(scope, d[k], [...at, k]);
-      use(uses, t[k], [...at, k], k !== 'g');
-    }
-    const w = d.w === undefined ? undefined : resolveNumber(scope, d.w, [...at, 'w'], 'length', { positive: true });
-    const l = d.l === undefined ? undefined : resolveNumber(scope, d.l, [...at, 'l'], 'length', { positive: true });
-    if (d.w === undefined) missing(sink, at, 'w', ' (width, m)');
-    if (d.l === undefined) missing(sink, at, 'l', ' (length, m)');
-    const mm = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
-    if (dtype && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
-      devices.push({ name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm });
-    }
-  }
+  const devices = readDevices('devices', dmap);
+  const smap = m.startup === undefined ? undefined : readMap(sink, m.startup, [...path, 'startup'], 'a mapping of start-up device names to { type, d, g, s, b, w, l, m }');
+  const startup = smap ? readDevices('startup', smap) : undefined;
 
   const currents: NetlistCurrentSource[] = [];
   const cp = [...path, 'currents'];
@@ -194,10 +202,10 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     }
   }
 
+  // No `input`: a self-biased netlist (design §14), judged by the start-up check.
   const ip = [...path, 'input'];
   let input: NetlistMirror['input'] | undefined;
-  if (m.input === undefined) missing(sink, path, 'input', ' ({ source: NAME } of a `currents` entry)');
-  const im = readMap(sink, m.input, ip, 'a mapping { source }');
+  const im = m.input === undefined ? undefined : readMap(sink, m.input, ip, 'a mapping { source }');
   if (im) {
     if (im.source === undefined) missing(sink, ip, 'source');
     const src = readString(sink, im.source, [...ip, 'source']);
@@ -249,8 +257,10 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     if (!mtype && devices.length) missing(sink, path, 'type', ' (nmos or pmos: the devices are of both types and no `pair` says which)');
   }
   const require = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
-  if (sink.errorCount > before || !mtype || !output || !input) return undefined;
-  const mirror: NetlistMirror = { kind: 'netlist', name, type: mtype, devices, currents, voltages, resistors, output, input, require, path };
+  if (sink.errorCount > before || !mtype || !output || (m.input !== undefined && !input)) return undefined;
+  const mirror: NetlistMirror = { kind: 'netlist', name, type: mtype, devices, currents, voltages, resistors, output, require, path };
+  if (input) mirror.input = input;
+  if (startup && startup.length > 0) mirror.startup = startup;
   if (pair) mirror.pair = pair;
   return mirror;
 }

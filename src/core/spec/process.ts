@@ -1,17 +1,18 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
 import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
 import { MODEL_NAMES } from '../models/registry';
-import type { DeviceParams, Limits, ModelKind, Polarity, SpecPath, Supplies } from '../types';
+import type { DeviceFlavour, DeviceParams, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
 import { missing, readEnum, readMap } from './read';
 import type { Data } from './read';
 import { resolveNumber } from './values';
+import { readTableValue } from './tables';
 import type { ValueOptions, ValueScope } from './values';
 
 interface ParamRule { q: Quantity; opts?: ValueOptions }
 
 /** Quantity and sign rule of each device parameter. */
-export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
+export const DEVICE_PARAM_RULES: Record<NumericParam, ParamRule> = {
   kp: { q: 'transconductanceParam', opts: { positive: true } },
   vt0: { q: 'voltage' },
   lambda: { q: 'inverseVoltage', opts: { nonNegative: true } },
@@ -30,7 +31,7 @@ export const DEVICE_PARAM_RULES: Record<keyof DeviceParams, ParamRule> = {
   cox: { q: 'capacitancePerArea', opts: { positive: true } },
 };
 
-export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as (keyof DeviceParams)[];
+export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as NumericParam[];
 
 /** A temperature in kelvin; a bare number is °C, and one that looks like kelvin gets a warning. */
 export function readTemperature(scope: ValueScope, raw: unknown, path: SpecPath): number | undefined {
@@ -50,7 +51,8 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
   const d = readMap(scope.sink, raw, path);
   if (!d) return undefined;
   const before = scope.sink.errorCount;
-  const got: Partial<Record<keyof DeviceParams, number>> = {};
+  if (d.table !== undefined) return readTableDevice(scope, d, path);
+  const got: Partial<Record<NumericParam, number>> = {};
   for (const key of DEVICE_PARAM_KEYS) {
     if (d[key] === undefined) continue;
     const rule = DEVICE_PARAM_RULES[key];
@@ -78,6 +80,35 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
   return out;
 }
 
+/** Keys a table device reads: the rest are in the table. */
+// The noise parameters (gn, kf, cox) are no part of a DC table and are still read.
+const TABLE_DEVICE_KEYS: readonly NumericParam[] = ['n', 'avt', 'abeta', 'lmin', 'wmin', 'gn', 'kf', 'cox'];
+
+/** A device given by its characterisation table (design §11): its current comes from the
+ *  table, so kp, vt0, λ, γ and the temperature laws are not read (a warning says so); kp = 1
+ *  and vt0 = 0 are stored so a corner's `kp: -10%` scales the table's current and `vt0: +50m`
+ *  shifts its gate. */
+function readTableDevice(scope: ValueScope, d: Data, path: SpecPath): DeviceParams | undefined {
+  const before = scope.sink.errorCount;
+  const table = readTableValue(scope.sink, scope.tables, d.table, [...path, 'table']);
+  const got: Partial<Record<NumericParam, number>> = {};
+  for (const key of DEVICE_PARAM_KEYS) {
+    if (d[key] === undefined) continue;
+    if (!TABLE_DEVICE_KEYS.includes(key)) {
+      scope.sink.warning('table-ignores', `\`${key}\` is not used: this device's current comes from its table`, [...path, key], 'key');
+      continue;
+    }
+    const rule = DEVICE_PARAM_RULES[key];
+    const v = resolveNumber(scope, d[key], [...path, key], rule.q, rule.opts);
+    if (v !== undefined) got[key] = v;
+  }
+  if (scope.sink.errorCount > before || !table) return undefined;
+  const dd = DEFAULTS.device;
+  const out: DeviceParams = { kp: 1, vt0: 0, lambda: 0, gamma: 0, phi: dd.phi, n: got.n ?? dd.n, tcv: 0, bex: 0, gn: got.gn ?? dd.gn, table };
+  for (const k of ['avt', 'abeta', 'lmin', 'wmin', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
+  return out;
+}
+
 export interface ProcessRead {
   model: ModelKind;
   tnom: number;
@@ -86,6 +117,10 @@ export interface ProcessRead {
   trange?: [number, number];
   nmos?: DeviceParams;
   pmos?: DeviceParams;
+  /** Device flavours (`process.devices`) read without errors. */
+  devices?: Record<string, DeviceFlavour>;
+  /** Flavour names written (possibly with errors), for the mirrors' `device:`. */
+  flavourNames: Set<string>;
   /** Polarities written in the spec (possibly with errors). */
   written: Set<Polarity>;
   ok: boolean;
@@ -105,7 +140,7 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const temperature = p.temperature === undefined ? tnom : readTemperature(scope, p.temperature, [...path, 'temperature']);
   const grid = p.grid === undefined ? undefined : resolveNumber(scope, p.grid, [...path, 'grid'], 'length', { positive: true });
   const written = new Set<Polarity>();
-  const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, ok: true };
+  const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, flavourNames: new Set(), ok: true };
   if (grid !== undefined) out.grid = grid;
   if (p.trange !== undefined) {
     const tr = readTrange(scope, p.trange, [...path, 'trange']);
@@ -116,6 +151,24 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
     written.add(type);
     const d = readDevice(scope, p[type], [...path, type], type);
     if (d) out[type] = d;
+  }
+  const flavours = readMap(scope.sink, p.devices, [...path, 'devices'], 'a mapping of device-flavour names to { type, table | kp, vt0, … }');
+  for (const [name, raw] of Object.entries(flavours ?? {})) {
+    out.flavourNames.add(name);
+    const at = [...path, 'devices', name];
+    const d = readMap(scope.sink, raw, at);
+    if (!d) continue;
+    if (d.type === undefined) missing(scope.sink, at, 'type', ' (nmos or pmos)');
+    const type = d.type === undefined ? undefined : readEnum<Polarity>(scope.sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
+    const { type: _type, ...rest } = d;
+    const params = type ? readDevice(scope, rest, at, type) : undefined;
+    if (type && params) (out.devices ??= {})[name] = { type, params };
+    if (out.model === 'table' && isTableless(d)) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; device \`${name}\` is missing \`table\``, at, 'key', 'missing:table');
+  }
+  if (out.model === 'table') {
+    for (const type of written) {
+      if (isTableless(p[type])) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; \`process.${type}\` is missing \`table\``, [...path, type], 'key', 'missing:table');
+    }
   }
   out.ok = scope.sink.errorCount === before;
   return out;
@@ -135,6 +188,10 @@ function readTrange(scope: ValueScope, raw: unknown, path: SpecPath): [number, n
     return undefined;
   }
   return [lo, hi];
+}
+
+function isTableless(raw: unknown): boolean {
+  return typeof raw === 'object' && raw !== null && (raw as Data).table === undefined;
 }
 
 export function readSupplies(scope: ValueScope, raw: unknown): Supplies | undefined {

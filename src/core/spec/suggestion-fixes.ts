@@ -29,7 +29,7 @@ export function withSuggestionFixes(parsed: ParsedSpec, file?: string): Finding[
       const q = token[0];
       const quoted = token.length >= 2 && (q === '"' || q === "'") && token[token.length - 1] === q;
       const edit: TextEdit = { range: s.range, newText: quoted ? `${q}${s.word}${q}` : s.word };
-      const after = parseSpec(applyEdits(parsed.text, [edit]), file);
+      const after = parseSpec(applyEdits(parsed.text, [edit]), file, parsed.tables ? { tables: parsed.tables } : {});
       const at = s.finding.path;
       const same = JSON.stringify(at);
       if (!after.parsed || after.findings.some((f) => f.code === s.finding.code && JSON.stringify(f.path) === same)) continue;

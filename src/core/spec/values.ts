@@ -3,6 +3,7 @@
  * YAML/JSON number, a literal string (number, SI prefix, unit that must fit the field), or an
  * expression over params.
  */
+import type { TableTexts } from './tables';
 import type { SpecPath } from '../types';
 import { describeRead, identifyUnit, quantityLabel, readQuantity } from '../units/si';
 import type { Quantity } from '../units/si';
@@ -19,6 +20,8 @@ export interface ValueScope {
   paramQuantities: ReadonlyMap<string, Quantity>;
   /** Params the spec defines that have no value: an error of their own, a loop, or a param they use. */
   failedParams?: ReadonlySet<string>;
+  /** Characterisation-table texts the front end read, by the name the spec writes. */
+  tables?: TableTexts;
 }
 
 export interface ValueOptions {

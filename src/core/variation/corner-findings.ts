@@ -72,7 +72,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     nameRange(parsed, site), site.path, (_w, label) => `the operating point does not converge at corner ${label}; the mirror may have no working point there`);
 
   // Saturation: worst device margin per corner.
-  const nomMargin = Math.min(...nominal.devices.map((d) => d.margin));
+  const nomMargin = Math.min(...nominal.devices.filter((d) => d.role !== 'startup').map((d) => d.margin));
   if (nominal.converged && nomMargin >= 0) {
     const bad = solved.filter((r) => r.minMargin !== undefined && r.minMargin < 0).map((r) => ({ r, badness: -r.minMargin! }));
     const worst = bad.slice().sort((a, b) => b.badness - a.badness)[0];
@@ -89,7 +89,7 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
 
   // Ratio against require.ratio, else the geometric ratio.
   const target = site.require.ratio ?? nominal.ratioIdeal;
-  if (target !== undefined && target > 0 && Math.abs(nominal.ratio / target - 1) <= limits.error) {
+  if (target !== undefined && target > 0 && nominal.ratio !== undefined && Math.abs(nominal.ratio / target - 1) <= limits.error) {
     const bad = solved.map((r) => ({ r, badness: Math.abs(r.ratio / target - 1) })).filter((f) => f.badness > limits.error);
     emit('corner-ratio-error', 'error', bad, site.require.ratio !== undefined ? requireRange(parsed, site, 'ratio') : nameRange(parsed, site),
       [...site.path, 'require', 'ratio'],

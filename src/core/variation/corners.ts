@@ -12,7 +12,7 @@
  *   `vbias` that qpoint picks is picked again at each corner by the same rule (the reference at
  *   VDSsat + limits.margin): it models a bias generator that tracks the process.
  */
-import type { CornerResult, CornerSpec, DeviceParams, ParamDelta, ResolvedSpec } from '../types';
+import type { CornerResult, CornerSpec, DeviceParams, NumericParam, ParamDelta, ResolvedSpec } from '../types';
 import { measureMirror } from '../analysis/index';
 import { mirrorAt } from '../mirror-at';
 import { solveNetworks } from '../network/index';
@@ -30,15 +30,15 @@ function cornerSpec(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpec {
   return cs;
 }
 
-type NumericKey = { [K in keyof DeviceParams]-?: DeviceParams[K] extends number | undefined ? K : never }[keyof DeviceParams];
 
 export function applyDelta(value: number, delta: ParamDelta): number {
   return 'add' in delta ? value + delta.add : value * (1 + delta.scale);
 }
 
-function shiftParams(p: DeviceParams, deltas: CornerSpec['nmos']): DeviceParams {
+function shiftParams(p: DeviceParams, deltas: CornerSpec['nmos'], table: DeviceParams['table']): DeviceParams {
   const out: DeviceParams = { ...p };
-  for (const key of Object.keys(deltas) as NumericKey[]) {
+  if (table) out.table = table;
+  for (const key of Object.keys(deltas) as NumericParam[]) {
     const delta = deltas[key];
     const value = out[key];
     // A parameter the process leaves unset (e.g. lref, avt) has nothing to shift.
@@ -56,9 +56,13 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
     process: {
       ...spec.process,
       temperature: corner.temperature ?? spec.process.temperature,
-      nmos: shiftParams(spec.process.nmos, corner.nmos),
-      pmos: shiftParams(spec.process.pmos, corner.pmos),
+      nmos: shiftParams(spec.process.nmos, corner.nmos, corner.tables?.nmos),
+      pmos: shiftParams(spec.process.pmos, corner.pmos, corner.tables?.pmos),
       ...(corner.resistors ? { resistors: corner.resistors } : {}),
+      // A corner's nmos/pmos changes move every flavour of that type (a slow corner is slow for
+      // thin and thick oxide alike); a corner table replaces the base table only.
+      ...(spec.process.devices ? { devices: Object.fromEntries(Object.entries(spec.process.devices).map(([k, f]) =>
+        [k, { type: f.type, params: shiftParams(f.params, corner[f.type], undefined) }])) } : {}),
     },
     supplies: { vdd: corner.vdd ?? spec.supplies.vdd, vss: corner.vss ?? spec.supplies.vss },
   };
@@ -76,11 +80,12 @@ export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;
     for (const d of r.devices) {
+      if (d.role === 'startup') continue;   // off by design at the operating point
       if (minMargin === undefined || d.margin < minMargin) { minMargin = d.margin; minMarginDevice = d.name; }
     }
     results.push({
       name: corner.name, converged: r.converged,
-      iin: r.iin, iout: r.iout, ratio: r.ratio, error: r.error ?? Number.NaN,
+      iin: r.iin ?? NaN, iout: r.iout, ratio: r.ratio ?? NaN, error: r.error ?? Number.NaN,
       rout: r.rout, compliance: r.compliance, sigma: r.sigma,
       minMargin, minMarginDevice,
     });

@@ -333,6 +333,7 @@ async function suite(folder: vscode.Uri): Promise<void> {
   });
 
   await variationChecks(folder, qp, doc);
+  await networkChecks(folder, qp);
 
   await check('workspace check finds every spec, also unopened ones (JSON too)', async () => {
     const summary = await vscode.commands.executeCommand<{ files: number; checked: number; errors: number; cancelled: boolean }>('qpoint.checkWorkspace');
@@ -390,6 +391,61 @@ function dDiodeVov(kpScale: number): number {
 }
 
 /** Corners in the live analysis and the Monte Carlo command (corner-check.bias.yaml). */
+/** Links (design §9.1) in the editor, on network.bias.yaml: go to definition, references, rename
+ *  through the real providers; the hover and the root's lens carry the report's figures. */
+async function networkChecks(folder: vscode.Uri, qp: QpointApi): Promise<void> {
+  const uri = vscode.Uri.joinPath(folder, 'network.bias.yaml');
+  const doc = await vscode.workspace.openTextDocument(uri);
+  await vscode.window.showTextDocument(doc);
+  const report = await waitFor('report of network.bias.yaml', () => qp.lastReport(uri), 20_000, [qp.onDidUpdate]);
+
+  await check('links: go to definition on a from value jumps to the output it names', async () => {
+    const from = positionOf(doc, /from: ref_bank\.p_amp/, 'p_amp', 1);
+    const locs = await vscode.commands.executeCommand<(vscode.Location | vscode.LocationLink)[]>('vscode.executeDefinitionProvider', uri, from);
+    const target = locs.map((l) => ('targetUri' in l ? l.targetRange : l.range))[0];
+    const nameLine = positionOf(doc, /- name: p_amp/, 'p_amp');
+    assert(target && target.start.isEqual(nameLine), `definition at ${target?.start.line}:${target?.start.character}, expected ${nameLine.line}:${nameLine.character}`);
+    const mirrorDef = await vscode.commands.executeCommand<(vscode.Location | vscode.LocationLink)[]>('vscode.executeDefinitionProvider', uri, positionOf(doc, /from: ref_bank\.p_amp/, 'ref_bank', 1));
+    assert(mirrorDef.length === 1, 'no definition from the mirror part of the path');
+  });
+
+  await check('links: find references on a mirror lists the from values naming it', async () => {
+    const refs = await vscode.commands.executeCommand<vscode.Location[]>('vscode.executeReferenceProvider', uri, positionOf(doc, /- name: ref_bank/, 'ref_bank', 1));
+    const texts = refs.map((r) => doc.getText(r.range)).sort();
+    assert(texts.join(',') === 'ref_bank,ref_bank.p_adc,ref_bank.p_amp', `references: ${texts.join(', ')}`);
+  });
+
+  await check('links: hover on a from value and the network lens carry the report', async () => {
+    const up = report.mirrors.find((m) => m.name === 'ref_bank.p_amp');
+    assert(up?.linkV !== undefined, 'no linked node voltage in the report');
+    const text = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', uri, positionOf(doc, /from: ref_bank\.p_amp/, 'p_amp', 1)));
+    for (const s of [`| **current that arrives** | ${formatSI(up.iout, 'A')} |`, `| **node voltage** | ${formatSI(up.linkV, 'V')} |`, 'margin of']) {
+      assert(text.includes(s), `hover on the link lacks "${s}":\n${text}`);
+    }
+    const lenses = await vscode.commands.executeCommand<vscode.CodeLens[]>('vscode.executeCodeLensProvider', uri);
+    const net = report.networks?.[0];
+    const title = lenses.map((l) => l.command?.title ?? '').find((t) => t.startsWith('network of'));
+    assert(net && title?.includes(`supply ${formatSI(net.supplyCurrent.vdd, 'A')}`) && title.includes(`worst leaf ${net.worstLeaf}`), `network lens: ${title}`);
+  });
+
+  await check('links: rename of a mirror renames its links; an invalid name is refused', async () => {
+    const at = positionOf(doc, /- name: amp_bank/, 'amp_bank', 1);
+    let refused = '';
+    try {
+      await vscode.commands.executeCommand<vscode.WorkspaceEdit>('vscode.executeDocumentRenameProvider', uri, at, 'amp.bank');
+    } catch (e) { refused = e instanceof Error ? e.message : String(e); }
+    assert(refused.includes('a dot separates mirror and output'), `invalid name not refused clearly: "${refused}"`);
+    const edit = await vscode.commands.executeCommand<vscode.WorkspaceEdit>('vscode.executeDocumentRenameProvider', uri, at, 'ota_bank');
+    const edits = edit.get(uri);
+    assert(edits.length === 2 && edits.every((e) => doc.getText(e.range) === 'amp_bank'), `rename edits: ${JSON.stringify(edits.map((e) => doc.getText(e.range)))}`);
+    assert(await vscode.workspace.applyEdit(edit), 'rename edit not applied');
+    assert(doc.getText().includes('- name: ota_bank') && doc.getText().includes('from: ota_bank.cmfb') && !doc.getText().includes('amp_bank'), 'rename did not reach the link');
+    const after = await waitFor('a report of the renamed spec', () => { const r = qp.lastReport(uri); return r?.mirrors.some((m) => m.name === 'ota_bank.cmfb') ? r : undefined; }, 20_000, [qp.onDidUpdate]);
+    assert(!after.findings.some((f) => f.code.startsWith('link-')), `link findings after the rename: ${after.findings.map((f) => f.code).join(', ')}`);
+    assert(after.networks?.[0]?.members.includes('ota_bank'), 'the renamed mirror is not in the network');
+  });
+}
+
 async function variationChecks(folder: vscode.Uri, qp: QpointApi, faulty: vscode.TextDocument): Promise<void> {
   const uri = vscode.Uri.joinPath(folder, 'corner-check.bias.yaml');
   const isCornerDiag = (x: vscode.Diagnostic) => codeOf(x) === 'corner-not-saturated';

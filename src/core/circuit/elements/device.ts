@@ -4,7 +4,8 @@
  * (Pelgrom sigma, Monte Carlo). Exhaustive switches: a new device kind is named here by the
  * compiler.
  */
-import type { ChannelEval } from '../../models/core';
+import { newChannelEval, type ChannelEval } from '../../models/core';
+import { evalTerminal } from '../../models/terminal';
 import type { DeviceReport } from '../../types';
 import { assertNever, type DeviceElement } from './element';
 import { mosMargin, mosMismatchDerivatives, mosReport, mosSigmas } from './mosfet';
@@ -71,4 +72,49 @@ export function currentNodes(d: DeviceElement): [number, number] {
 export function carriesNode(d: DeviceElement, k: number): boolean {
   const [a, b] = currentNodes(d);
   return a === k || b === k;
+}
+
+const evalScratch = newChannelEval();
+
+/** A, the device's main current in its own polarity (positive when it conducts as wired: drain
+ *  to source for NMOS, source to drain for PMOS) at node voltages v. */
+export function channelCurrent(d: DeviceElement, v: Float64Array): number {
+  switch (d.kind) {
+    case 'mos': {
+      const vs = v[d.s]!;
+      evalTerminal(d.dev, v[d.g]! - vs, v[d.d]! - vs, v[d.b]! - vs, evalScratch);
+      return d.dev.sign * evalScratch.id;
+    }
+    default: return assertNever(d.kind);
+  }
+}
+
+/**
+ * The device's controlled source as the nodal equations see it: the current from `from` to `to`
+ * (currentNodes) grows by `g`·(v_ctrl − v_ref) (MOSFET: gm, gate over source). The loop gain is
+ * the return difference of this one term (analysis/loop-gain.ts).
+ */
+export function controlledSource(d: DeviceElement, v: Float64Array): { g: number; ctrl: number; ref: number } {
+  switch (d.kind) {
+    case 'mos': {
+      const vs = v[d.s]!;
+      evalTerminal(d.dev, v[d.g]! - vs, v[d.d]! - vs, v[d.b]! - vs, evalScratch);
+      return { g: evalScratch.gm, ctrl: d.g, ref: d.s };
+    }
+    default: return assertNever(d.kind);
+  }
+}
+
+/**
+ * The device's cutoff condition, linear in node voltages, for the zero-current state test
+ * (analysis/startup.ts): it is off while v[ctrl] − v[ref] ≤ `bound` (MOSFET: VGS ≤ VT0 for NMOS,
+ * VSG ≤ |VT0| for PMOS; VT0 without body effect, the lowest threshold a bulk at its rail gives, so
+ * a state found off here is off for every body bias).
+ */
+export function cutoffBound(d: DeviceElement): { ctrl: number; ref: number; bound: number } {
+  switch (d.kind) {
+    case 'mos':
+      return d.dev.sign > 0 ? { ctrl: d.g, ref: d.s, bound: d.dev.vt0 } : { ctrl: d.s, ref: d.g, bound: d.dev.vt0 };
+    default: return assertNever(d.kind);
+  }
 }

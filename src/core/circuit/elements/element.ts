@@ -19,6 +19,9 @@ export interface MosElement {
   d: number; g: number; s: number; b: number;
   /** Counted for the measured output's compliance (its own and the shared reference devices). */
   measured: boolean;
+  /** The start-up element of a self-biased reference: reported, judged by the start-up check,
+   *  never counted for compliance or saturation. */
+  startup?: true;
   /** First of its Jacobian slots (JacobianPattern.slots), set when the circuit is built. */
   slot: number;
 }

@@ -91,6 +91,7 @@ export function mosReport(m: MosElement, v: Float64Array): DeviceReport {
     gmId: e.id !== 0 ? e.gm / e.id : 0,
   };
   if (m.size.auto?.w || m.size.auto?.l) r.sized = true;
+  if (m.params.table) r.table = m.params.table.file;
   return r;
 }
 

@@ -1,16 +1,24 @@
 /** Small helpers shared by the checks. */
-import type { DeviceReport, ResolvedSpec } from '../../types';
+import type { DeviceParams, DeviceReport, ResolvedSpec } from '../../types';
 import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
 import { refOf } from '../sites';
+import { mirrorParams } from '../../flavours';
 
 /** Devices of this output: the shared reference roles and this output's own roles. */
 export function siteDevices(site: Site): DeviceReport[] {
   return site.report.devices.filter((d) => {
+    // A start-up element is off by design at the operating point: the start-up check judges it.
+    if (d.role === 'startup') return false;
     const ref = refOf(site, d);
     return ref.output === undefined || ref.output === site.outputIndex;
   });
+}
+
+/** The process parameters a reported device was solved with. */
+export function paramsOfDevice(spec: ResolvedSpec, site: Site, d: DeviceReport): DeviceParams {
+  return mirrorParams(spec.process, site.mirror, d.type);
 }
 
 export function isSaturated(d: DeviceReport): boolean {

@@ -31,7 +31,7 @@ function overSupply(rc: RuleContext, site: Site): Draft {
   const m = site.mirror;
   // The input value is what the stack is asked to carry (template kinds); else the mirror's name.
   const at = m.kind !== 'netlist' && b.stack.length > 0 && !b.stack.some((n) => n.includes('.'))
-    ? valueRange(rc.parsed, m.input.kind === 'resistor' ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'])
+    ? valueRange(rc.parsed, m.input.kind === 'resistor' ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : m.input.kind === 'self' ? ['mirrors', site.mirrorIndex, 'resistor'] : ['mirrors', site.mirrorIndex, 'input'])
     : mirrorRange(rc.parsed, site.mirrorIndex);
   const first = site.report.devices.find((d) => d.name === b.stack[0]);
   const carry = first && Number.isFinite(first.id) ? ` to carry ${formatSI(Math.abs(first.id), 'A')}` : '';

@@ -11,6 +11,7 @@ import { measure, withMirror } from '../../sizing/devices';
 import { lengthenPlans, widenPlans } from '../plans';
 import { replaceValueEdit } from '../../spec/edit';
 import { code, formatPercent, formatSI } from '../../text/format';
+import { mirrorParams } from '../../flavours';
 
 const ppm = (x: number): string => `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 
@@ -140,8 +141,9 @@ export function checkTc(rc: RuleContext, site: Site): Draft[] {
     const x = measure(s, site.mirrorIndex, site.outputIndex);
     return x?.converged && x.tc !== undefined ? 1 - Math.max(Math.abs(x.tc), x.tcBox ?? 0) / need : NaN;
   };
-  const p = rc.spec.process[site.mirror.type === 'pmos' ? 'pmos' : 'nmos'];
-  const ztc = p.bex !== 0 ? (2 * Math.abs(p.tcv) * rc.spec.process.temperature) / Math.abs(p.bex) : NaN;
+  // The mirror's own flavour; a table device follows its table, not the tcv/bex laws.
+  const p = mirrorParams(rc.spec.process, site.mirror, site.mirror.type === 'pmos' ? 'pmos' : 'nmos');
+  const ztc = p.bex !== 0 && !p.table ? (2 * Math.abs(p.tcv) * rc.spec.process.temperature) / Math.abs(p.bex) : NaN;
   return [{
     key: draftKey('tc-high', site.path),
     mirrorIndex: site.mirrorIndex,

@@ -7,6 +7,7 @@ import { allDevices, sizeOf, type DeviceRef } from '../../sizing/devices';
 import { quantizeSize } from '../../sizing/quantize';
 import { setSizePlans } from '../plans';
 import { code, formatSI } from '../../text/format';
+import { mirrorParams } from '../../flavours';
 
 export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
   // Sizes belong to the mirror: check once per mirror, on its first output.
@@ -19,7 +20,8 @@ export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
       const s = sizeOf(rc.spec, ref);
       if (!s || (s.auto && s.auto[key === 'l' ? 'l' : 'w'])) continue;
       const type = m.kind === 'netlist' ? m.devices.find((d) => d.name === ref.role)?.type ?? m.type : m.type;
-      const min = key === 'l' ? rc.spec.process[type].lmin : rc.spec.process[type].wmin;
+      const p = mirrorParams(rc.spec.process, m, type);
+      const min = key === 'l' ? p.lmin : p.wmin;
       if (min === undefined || s[key] >= min * (1 - 1e-9)) continue;
       const tok = sizeToken(rc.parsed, rc.spec, ref, key);
       const id = tok ? tok.path.join('/') : `${ref.role}/${ref.output ?? ''}`;

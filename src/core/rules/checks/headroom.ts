@@ -34,6 +34,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const need = rc.spec.limits.sourceHeadroom;
   const got = inputRoom(rc.spec, m.kind, site.report.devices);
   if (!got || got.room >= need) return [];
+  if (m.input.kind === 'self') return [];
   const resistor = m.input.kind === 'resistor';
   const path: SpecPath = resistor ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : ['mirrors', site.mirrorIndex, 'input'];
   const at = valueRange(rc.parsed, path);
@@ -43,7 +44,7 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const side = m.type === 'nmos' ? 'above' : 'below';
   const message = resistor
     ? `the input resistor has only ${formatSI(got.room, 'V')} across it to ${far} (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} ${side} ${own} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
-      `so iin = ${formatSI(site.report.iin, 'A')} is set by the threshold voltage, not by the resistor`
+      `so iin = ${formatSI(site.report.iin ?? NaN, 'A')} is set by the threshold voltage, not by the resistor`
     : `the input node sits ${formatSI(got.stack, 'V')} ${side} ${own} (stack ${stackNames}), leaving ${formatSI(got.room, 'V')} to ${far} for the input current source; it needs limits.sourceHeadroom ${formatSI(need, 'V')}`;
   const goal = (s: ResolvedSpec): number => {
     const op: OperatingPoint | undefined = solve(s, site.mirrorIndex, site.outputIndex);

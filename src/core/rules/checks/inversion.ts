@@ -6,13 +6,14 @@ import { deviceRange, refOf, type Site } from '../sites';
 import { modelPlans } from '../plans';
 import { MODELS, WEAK_INVERSION_MODEL } from '../../models/registry';
 import { code } from '../../text/format';
-import { siteDevices } from './common';
+import { paramsOfDevice, siteDevices } from './common';
 
 export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): Draft[] {
   const model = MODELS[rc.spec.process.model];
   const wide = WEAK_INVERSION_MODEL;
   if (model.coversWeakInversion || wide === undefined) return [];
-  const low = siteDevices(site).filter((d) => d.ic < 1 && !seen.has(`${site.mirrorIndex}/${d.name}`)).sort((a, b) => a.ic - b.ic);
+  // A table device follows the designer's data, not the process model.
+  const low = siteDevices(site).filter((d) => !paramsOfDevice(rc.spec, site, d).table && d.ic < 1 && !seen.has(`${site.mirrorIndex}/${d.name}`)).sort((a, b) => a.ic - b.ic);
   if (low.length === 0) return [];
   for (const d of low) seen.add(`${site.mirrorIndex}/${d.name}`);
   const worst = low[0];

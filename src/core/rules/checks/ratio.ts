@@ -45,8 +45,9 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   const setter = pair ? findRole(site, pair.setter) : undefined;
   const partner = pair ? findRole(site, pair.partner) : undefined;
 
-  if (target !== undefined && target > 0 && Number.isFinite(r.ratio)) {
-    const err = r.ratio / target - 1;
+  if (target !== undefined && target > 0 && r.ratio !== undefined && Number.isFinite(r.ratio)) {
+    const ratio = r.ratio;
+    const err = ratio / target - 1;
     if (Math.abs(err) > limit) {
       const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
       const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
@@ -61,7 +62,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
         mirrorIndex: site.mirrorIndex,
         finding: {
           severity: 'error', code: 'ratio-error', path: at.path, range: at.range, related: rel,
-          message: `ratio ${formatRatio(r.ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
+          message: `ratio ${formatRatio(ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
         },
         plan: function* () {
           // A VDS mismatch is removed at its cause (the balanced Wilson, a longer channel, a
@@ -84,7 +85,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
 
   // A VDS mismatch already compensated by sizing (the required ratio is met within half the
   // budget, e.g. an auto-sized or fixed output W) needs no warning: the designer has dealt with it.
-  const compensated = required !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
+  const compensated = required !== undefined && r.ratio !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
   const split = r.errorSplit;
   if (split && !compensated && Math.abs(split.vds) >= limit / 2 && setter && partner) {
     const at = kindRange(rc.parsed, site.mirrorIndex);

@@ -1,4 +1,5 @@
 /** The mirror's stated requirements: low-rout, compliance, high-sigma. */
+import { mirrorParams } from '../../flavours';
 import type { ResolvedSpec, SpecPath } from '../../types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
@@ -22,7 +23,7 @@ export function checkRout(rc: RuleContext, site: Site): Draft[] {
   if (need === undefined || !(r.rout < need)) return [];
   const at = outputDeviceRange(rc, site, ['l', 'w']);
   const req = valueRange(rc.parsed, [...site.path, 'require', 'rout']);
-  const type = rc.spec.process[site.mirror.type];
+  const type = mirrorParams(rc.spec.process, site.mirror, site.mirror.type);
   const hint = type.lref === undefined
     ? 'this process gives λ without lref, so L does not change ro: use a cascode'
     : site.mirror.kind === 'simple' ? 'lengthen the devices, or use a cascode (Rout ≈ gm·ro²)' : 'lengthen the devices';

@@ -1,0 +1,16 @@
+/** The schematic's element tree as an SVG string, for the static report (reads without JS). */
+import type { Schematic } from './model';
+import { drawSchematic, type SvgElement } from './draw';
+
+const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' };
+const esc = (s: string): string => s.replace(/[&<>"]/g, (c) => ESC[c] ?? c);
+
+function serialise(e: SvgElement): string {
+  const attrs = Object.entries(e.attrs).map(([k, v]) => ` ${k}="${esc(v)}"`).join('');
+  const kids = e.children.map((c) => (typeof c === 'string' ? esc(c) : serialise(c))).join('');
+  return `<${e.tag}${attrs}>${kids}</${e.tag}>`;
+}
+
+export function schematicSvg(s: Schematic): string {
+  return serialise(drawSchematic(s));
+}

@@ -1,0 +1,48 @@
+/**
+ * Specs for the schematic tests: the example, and every template kind in both polarities on the
+ * example's process (one with a resistor input, one short of margin).
+ */
+import { readFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import { TEMPLATE_KINDS } from '../../src/core/kinds';
+
+export const ROOT = resolve(__dirname, '../..');
+export const EXAMPLE = 'examples/sensor-afe.bias.yaml';
+export const exampleText = readFileSync(join(ROOT, EXAMPLE), 'utf8');
+
+/** The example's header (process, supplies, limits, params) with mirrors of our own. */
+function withMirrors(mirrors: string[]): string {
+  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:'));
+  return `${head}\nmirrors:\n${mirrors.join('\n')}\n`;
+}
+
+/** Every kind, NMOS and PMOS, each output well inside its compliance. */
+export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => (['nmos', 'pmos'] as const).map((type) => [
+  `  - name: ${kind.replace('-', '_')}_${type}`,
+  `    kind: ${kind}`,
+  `    type: ${type}`,
+  '    input: 10u',
+  `    size: { w: ${type === 'nmos' ? '8u' : '24u'}, l: 1u }`,
+  `    output: { v: ${type === 'nmos' ? 1.3 : 0.5} }`,
+].join('\n'))).concat([
+  '  - name: res_pmos',
+  '    kind: simple',
+  '    type: pmos',
+  '    input: { resistor: 100k }',
+  '    size: { w: 24u, l: 1u }',
+  '    output: { v: 0.6 }',
+  // The output pulled down near vss: the output device leaves saturation.
+  '  - name: starved',
+  '    kind: simple',
+  '    type: nmos',
+  '    input: 10u',
+  '    size: { w: 8u, l: 1u }',
+  '    output: { v: 0.05 }',
+  // Saturated, but within limits.margin of the edge.
+  '  - name: tight',
+  '    kind: simple',
+  '    type: nmos',
+  '    input: 10u',
+  '    size: { w: 8u, l: 1u }',
+  '    output: { v: 0.15 }',
+]));
