@@ -13,14 +13,15 @@ import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } fro
 import { formatSI } from '../../src/core/text/format';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { EXAMPLE, everyKindText, exampleText } from './fixtures';
+import { exampleTables } from '../example-tables';
 
 const engine = new ELK();
 let kinds: FileReport, example: FileReport;
 let drawn: Map<string, Schematic>, exampleDrawn: Map<string, Schematic>;
 
 beforeAll(async () => {
-  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', {});
-  example = analyzeText(exampleText, EXAMPLE, {});
+  kinds = analyzeText(everyKindText, 'kinds.bias.yaml', { tables: exampleTables() });
+  example = analyzeText(exampleText, EXAMPLE, { tables: exampleTables() });
   drawn = await schematicsOf(engine, kinds);
   exampleDrawn = await schematicsOf(engine, example);
 });
