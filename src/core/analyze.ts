@@ -115,7 +115,10 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
   const out: MirrorWiring[] = [];
   spec.mirrors.forEach((m) => {
     const mirrorIndex = indexOf(m);
-    if (m.kind !== 'netlist') { out.push({ mirrorIndex, input: m.input }); return; }
+    if (m.kind !== 'netlist') {
+      out.push({ mirrorIndex, input: m.input, ...(m.resistor !== undefined ? { loopResistor: m.resistor } : {}) });
+      return;
+    }
     out.push({ mirrorIndex, netlist: {
       devices: m.devices.map((d) => ({ name: d.name, d: d.d, g: d.g, s: d.s })),
       currents: m.currents, voltages: m.voltages, resistors: m.resistors, output: m.output.node,

@@ -558,6 +558,8 @@ export interface FileReport {
 export interface MirrorWiring {
   mirrorIndex: number;
   input?: InputSource;
+  /** A reference kind's loop resistor (Ω): every resistor of its loop takes this value. */
+  loopResistor?: number;
   netlist?: {
     devices: { name: string; d: string; g: string; s: string }[];
     currents: NetlistCurrentSource[];

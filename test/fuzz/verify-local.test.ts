@@ -6,7 +6,7 @@
  * re-read is the reference: it is the plain definition (apply the edits, parse, solve, detect).
  */
 import fc from 'fast-check';
-import { describe, expect, it } from 'vitest';
+import { describe, expect, it, vi } from 'vitest';
 import { parseSpec } from '../../src/core/spec/index';
 import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
@@ -41,6 +41,60 @@ describe('local re-reading of edited mirrors', () => {
     // The generator must reach the fixes, or the comparison says nothing.
     expect(specs).toBeGreaterThan(100);
     expect(fixes).toBeGreaterThan(150);
+  });
+
+  it('offers the same fixes however busy the machine is (a found counterexample: CRLF, a shared param)', () => {
+    // Newton's wall-clock budget once decided whether a verifying solve converged, so a loaded
+    // machine dropped or changed the `lu` area fix; small circuits are now bounded by iterations.
+    const text = [
+    "# generated Halden 180 spec (faults on purpose)",
+    "format: 1",
+    "process:",
+    "  grid: 10n        # fixes snap to 10 nm",
+    "  nmos: { kp: 280u, vt0: 0.45, lambda: 0.08, lref: 1u, gamma: 0.45, phi: 0.85, avt: 4e-9, abeta: 1e-8, lmin: 0.18u, wmin: 0.22u }",
+    "  pmos: { kp: 70u, vt0: 0.48, lambda: 0.1, lref: 1u, gamma: 0.4, phi: 0.8, avt: 5e-9, abeta: 1e-8, lmin: 0.18u, wmin: 0.22u }",
+    "supplies: { vdd: 1.8 }",
+    "limits:",
+    "  margin: 100m",
+    "  error: 1%",
+    "params: { wu: 2u, lu: 1u }",
+    "mirrors:",
+    "  - name: m0",
+    "    kind: wilson-balanced",
+    "    type: nmos",
+    "    input: 40u",
+    "    size: { w: 0.2u, l: lu }",
+    "    output: { v: 1.10 }",
+    "    require: { rout: 1M, sigma: 0.3% }",
+    "  - name: m1   # note 1",
+    "    kind: wide-swing",
+    "    type: nmos",
+    "    input: 5u   # note 1",
+    "    size:",
+    "      w: 8u   # note 1",
+    "      l: lu",
+    "    devices:",
+    "      out:",
+    "        m: 3   # note 1",
+    "    vbias: 0.9",
+    "    output: { v: 0.43 }",
+    "    require: { ratio: 3, rout: 1M, sigma: 0.3% }",
+    "# end",
+    "",
+    ].join('\r\n');
+    const { parsed } = resolveText(text, 'random.bias.yaml');
+    const reports = analyzeSpec(parsed.spec!);
+    const calm = JSON.stringify(runRules(parsed, reports, { reread: 'whole-file', now: () => 0 }));
+    let t = 0;
+    const busy = vi.spyOn(Date, 'now').mockImplementation(() => (t += 20));
+    try {
+      const opts = { now: () => 0 };
+      expect(JSON.stringify(runRules(parsed, reports, opts))).toBe(calm);
+      expect(JSON.stringify(runRules(parsed, reports, { ...opts, reread: 'whole-file' }))).toBe(calm);
+    } finally {
+      busy.mockRestore();
+    }
+    expect(calm).toMatch(/param `lu`, also read by `m0`/);
   });
 
   it('offers the same fixes on mutated copies of the project specs', () => {

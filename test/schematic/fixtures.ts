@@ -4,7 +4,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { TEMPLATE_KINDS } from '../../src/core/kinds';
+import { KINDS, TEMPLATE_KINDS } from '../../src/core/kinds';
 
 export const ROOT = resolve(__dirname, '../..');
 export const EXAMPLE = 'examples/sensor-afe.bias.yaml';
@@ -21,7 +21,10 @@ export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => (['nmo
   `  - name: ${kind.replace('-', '_')}_${type}`,
   `    kind: ${kind}`,
   `    type: ${type}`,
-  '    input: 10u',
+  // A self-biased reference sets its own current through its resistor; the others take 10 µA.
+  ...(KINDS[kind].loop
+    ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(kind === 'beta-multiplier' ? ['    k: 4'] : [])]
+    : ['    input: 10u']),
   `    size: { w: ${type === 'nmos' ? '8u' : '24u'}, l: 1u }`,
   `    output: { v: ${type === 'nmos' ? 1.3 : 0.5} }`,
 ].join('\n'))).concat([

@@ -7,13 +7,13 @@
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 import { TEMPLATE_KINDS } from '../../src/core/kinds';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { EXAMPLE, everyKindText, exampleText } from './fixtures';
-import { exampleTables } from '../example-tables';
 
 const engine = new ELK();
 let kinds: FileReport, example: FileReport;
@@ -36,6 +36,14 @@ describe('schematics of every kind', () => {
     expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => ['nmos', 'pmos'].map((t) => `${k.replace('-', '_')}_${t}`))));
   });
 
+  it('draws a reference with its loop resistor and start-up device, and no input source (its loop sets the current)', () => {
+    const s = drawn.get('beta_multiplier_nmos')!;
+    expect(s.parts.find((p) => p.id === 'input')).toBeUndefined();
+    expect(s.parts.find((p) => p.id === 'res:rs')?.symbol).toBe('res');
+    expect(text(s)).toContain(`rs ${formatSI(60e3, 'Ω')}`);
+    expect(s.parts.some((p) => p.device === 'startup')).toBe(true);
+  });
+
   it('draws each device with its symbol, name, size and region, each node with its voltage', () => {
     for (const m of kinds.mirrors) {
       const s = drawn.get(m.name);
@@ -43,7 +51,7 @@ describe('schematics of every kind', () => {
       const words = text(s!);
       for (const d of m.devices) {
         const part = s!.parts.find((p) => p.device === d.name);
-        expect(part?.symbol, `${m.name}.${d.name}`).toBe(m.type);
+        expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);  // a reference's closing mirror is of the other polarity
         const label = s!.labels.find((l) => l.device === d.name)!;
         expect(label.lines[0]).toBe(d.name);
         expect(label.lines[1]).toBe(`${formatSI(d.w, 'm')}/${formatSI(d.l, 'm')}·${d.m}`);

@@ -1,5 +1,6 @@
 /** Simple mirror: `ref` diode-connected on the input node, `out` on its gate. */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { singleRout } from './single-rout';
 
 export const simple: KindSpec = {
   roles: ['ref', 'out'],
@@ -12,8 +13,5 @@ export const simple: KindSpec = {
   bank: true,
   vbias: false,
   families: ['mosfet'],
-  rout: {
-    formula: '1/gds_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: singleRout,
 };

@@ -1,0 +1,8 @@
+/** The output resistance of a single output device (`out` alone at the output): ro of `out`.
+ *  Shared by the simple mirror and the references' taps, which are simple-mirror copies. */
+import { ro, type KindSpec } from './kind';
+
+export const singleRout: KindSpec['rout'] = {
+  formula: '1/gds_out',
+  value: ({ out }) => ro(out),
+};
