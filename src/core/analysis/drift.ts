@@ -3,8 +3,8 @@
  * coefficient from the circuit linearized at the operating point, and the box figure over
  * process.trange from re-solves.
  *
- * Both linearized figures use the output adjoint λ (smallSignal.ts): for any parameter θ,
- * d iout/dθ = outSign·(∂F_out/∂θ − λ·∂F_free/∂θ) at fixed node voltages. For vdd, ∂F/∂θ is the
+ * Both linearized figures use the output's adjoint λ (probe.ts): for any parameter θ,
+ * d iout/dθ = sign·(∂y/∂θ − λ·∂F_free/∂θ) at fixed node voltages, y the probed current. For vdd, ∂F/∂θ is the
  * Jacobian's column of the held vdd node (vss, output and netlist sources keep their absolute
  * values). For T it is each element's current at T ± DRIFT.dT with the node voltages held — a
  * central difference of the element equations only (the models' temperature laws, resistors'
@@ -12,23 +12,23 @@
  */
 import { DRIFT } from '../defaults';
 import { assemble } from '../circuit/assemble';
-import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import type { Circuit } from '../circuit/circuit';
+import type { Workspace } from '../circuit/workspace';
 import type { ResolvedSpec, TemperaturePoint } from '../types';
+import { probeCurrent, type OutputProbe, type Probed } from './probe';
 import { buildMirror, outputCurrent, solveMirror, type MirrorTarget } from './solve';
 
-/** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no vdd node or iout is 0. */
-export function supplySensitivity(mc: MirrorCircuit, lam: Float64Array, iout: number, vdd: number): number | undefined {
-  const c = mc.circuit, ws = mc.ws;
+/** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no held vdd node or iout is 0. */
+export function supplySensitivity(c: Circuit, ws: Workspace, pr: Probed, iout: number, vdd: number): number | undefined {
   const k = c.nodeNames.indexOf('vdd');
   if (k < c.nFree || iout === 0) return undefined;
   const { colPtr, rowIdx } = ws.pattern;
-  let d = 0;
+  let d = pr.row[k]!;
   for (let p = colPtr[k]!; p < colPtr[k + 1]!; p++) {
     const i = rowIdx[p]!;
-    if (i === c.outNode) d += ws.G[p]!;
-    else if (i < ws.n) d -= lam[i]! * ws.G[p]!;
+    if (i < ws.n) d -= pr.lam[i]! * ws.G[p]!;
   }
-  return (vdd / iout) * c.outSign * d;
+  return (vdd / iout) * pr.probe.sign * d;
 }
 
 /** The spec with the operating temperature moved to T (K); tnom stays. */
@@ -36,26 +36,28 @@ export function atTemperature(spec: ResolvedSpec, t: number): ResolvedSpec {
   return { ...spec, process: { ...spec.process, temperature: t } };
 }
 
-/** ppm/K, (1/iout)·∂iout/∂T at the operating temperature. */
+/** The same circuit built at another temperature, and its output read the same way. */
+export interface Rebuilt { circuit: Circuit; ws: Workspace; probe: OutputProbe }
+
+/** ppm/K, (1/iout)·∂iout/∂T at the operating temperature T (K); `rebuild` builds the circuit at
+ *  another temperature (undefined when it comes out different). */
 export function temperatureCoefficient(
-  t: MirrorTarget, mc: MirrorCircuit, lam: Float64Array, iout: number, vout: number, vbias: number | undefined,
+  c: Circuit, ws: Workspace, pr: Probed, iout: number, T: number, rebuild: (t: number) => Rebuilt | undefined,
 ): number | undefined {
   if (iout === 0) return undefined;
-  const c = mc.circuit;
-  const T = t.spec.process.temperature, h = DRIFT.dT;
-  const currents = (temp: number): Float64Array | undefined => {
-    const other = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vbias);
-    if (other.circuit.nodeNames.length !== c.nodeNames.length) return undefined;
-    other.ws.v.set(mc.ws.v);
+  const h = DRIFT.dT;
+  const at = (temp: number): { F: Float64Array; y: number } | undefined => {
+    const other = rebuild(temp);
+    if (!other || other.circuit.nodeNames.length !== c.nodeNames.length) return undefined;
+    other.ws.v.set(ws.v);
     assemble(other.circuit, other.ws, 1, 0);
-    return other.ws.F;
+    return { F: other.ws.F, y: probeCurrent(other.ws, other.probe) };
   };
-  const up = currents(T + h), down = currents(T - h);
+  const up = at(T + h), down = at(T - h);
   if (!up || !down) return undefined;
-  const dF = (k: number): number => (up[k]! - down[k]!) / (2 * h);
-  let d = dF(c.outNode);
-  for (let j = 0; j < mc.ws.n; j++) d -= lam[j]! * dF(j);
-  const tc = (c.outSign * d / iout) * 1e6;
+  let d = (up.y - down.y) / (2 * h);
+  for (let j = 0; j < ws.n; j++) d -= pr.probe.sign * pr.lam[j]! * (up.F[j]! - down.F[j]!) / (2 * h);
+  const tc = (d / iout) * 1e6;
   return Number.isFinite(tc) ? tc : undefined;
 }
 

@@ -25,7 +25,8 @@
  *   solveAt with a perturbation keeps the nominal pick (the bias comes from elsewhere).
  */
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
-import { failedReport, measure, vbiasFor, type MeasureOptions } from './measure';
+import { failedReport, measure, type MeasureOptions } from './measure';
+import { vbiasFor } from './vbias';
 import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
 import { RepeatedMirrors } from './repeats';
 import { sweepCircuit } from './sweep';

@@ -9,8 +9,10 @@ import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
-import { boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient } from './drift';
+import { atTemperature, boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient, type Rebuilt } from './drift';
 import { DEFAULT_ANALYSIS, outputNoise } from './noise';
+import { heldProbe, probeRow, type Probed } from './probe';
+import { jointDrift } from '../network/drift';
 import { referenceReport } from './reference';
 import { splitError } from './errorSplit';
 import { outputSigma } from './mismatch';
@@ -20,7 +22,7 @@ import {
   type MirrorTarget,
 } from './solve';
 import { linspace, sweepCircuit } from './sweep';
-import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias';
+import { knownVbias, pickVbiasOn } from './vbias';
 
 export interface MeasureOptions {
   curve?: boolean; curvePoints?: number;
@@ -62,9 +64,6 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
   return r;
 }
 
-export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
-  return takesVbias(t.mirror) ? resolveVbias(t.spec, t.mirror) : undefined;
-}
 
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
@@ -130,12 +129,23 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     const sigma = outputSigma(mc.circuit.devices, outputSensitivities(mc.circuit, mc.ws, lam), iout);
     if (sigma !== undefined) base.sigma = sigma;
   }
-  if (lam && opts.drift !== false) {
-    const s = supplySensitivity(mc, lam, iout, t.spec.supplies.vdd);
+  const trange = t.spec.process.trange;
+  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
+  const box = trange !== undefined && opts.drift !== false && (opts.drift !== 'required' || req?.tc !== undefined);
+  // A network member drifts and carries noise with everything above it: its joint circuit.
+  const joint = opts.drift !== false ? jointDrift(t.spec, indexOf(m), t.outputIndex, { box, curve: opts.curve === true }) : undefined;
+  if (joint) Object.assign(base, joint);
+  else if (lam && opts.drift !== false) {
+    const pr: Probed = { probe: heldProbe(mc.circuit), row: probeRow(mc.ws, heldProbe(mc.circuit)), lam };
+    const s = supplySensitivity(mc.circuit, mc.ws, pr, iout, t.spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;
-    const tc = temperatureCoefficient(t, mc, lam, iout, vout, vb?.vbias);
+    const rebuild = (temp: number): Rebuilt => {
+      const other = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vb?.vbias);
+      return { circuit: other.circuit, ws: other.ws, probe: heldProbe(other.circuit) };
+    };
+    const tc = temperatureCoefficient(mc.circuit, mc.ws, pr, iout, t.spec.process.temperature, rebuild);
     if (tc !== undefined) base.tc = tc;
-    const noise = outputNoise(mc.circuit, mc.ws, lam, t.spec.process.temperature, t.spec.analysis ?? DEFAULT_ANALYSIS, opts.curve === true);
+    const noise = outputNoise(mc.circuit, mc.ws, pr, t.spec.process.temperature, t.spec.analysis ?? DEFAULT_ANALYSIS, opts.curve === true);
     if (noise) base.noise = noise;
   }
   const byRole: Record<string, SmallSignal | undefined> = {};
@@ -148,9 +158,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
-  const trange = t.spec.process.trange;
-  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
-  if (trange && opts.drift !== false && (opts.drift !== 'required' || req?.tc !== undefined)) {
+  if (trange && box && !joint) {
     const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
     if (opts.curve) base.drift = drift;
     const box = boxCoefficient(drift, iout);

@@ -1,7 +1,7 @@
 /**
  * Output current noise (design §12): every element's noise sources (circuit/elements/noise.ts)
- * carried to the output through the circuit linearized at its operating point. Without a
- * capacitor the transfer is the DC adjoint (the same λ as Rout and sigma) and the band integral
+ * carried to the output (probe.ts) through the circuit linearized at its operating point. Without
+ * a capacitor the transfer is the DC adjoint (the same λ as Rout and sigma) and the band integral
  * is exact; with a gate filter the transfer is an AC solve (G + jωC, as a real system of twice
  * the size) at each frequency and the band is integrated by trapezoids in ln f.
  */
@@ -12,6 +12,7 @@ import { elementNoise, type NoiseSource } from '../circuit/elements/noise';
 import { luFactor, luSolve } from '../circuit/lu';
 import type { Workspace } from '../circuit/workspace';
 import type { AnalysisSpec, NoiseReport } from '../types';
+import { owns, type OutputProbe, type Probed } from './probe';
 
 /** The noise analysis when the spec has no `analysis:`. */
 export const DEFAULT_ANALYSIS: AnalysisSpec = { noise: { f: DEFAULTS.noise.f, band: DEFAULTS.noise.band } };
@@ -19,26 +20,28 @@ export const DEFAULT_ANALYSIS: AnalysisSpec = { noise: { f: DEFAULTS.noise.f, ba
 /** |d iout / d i_k|² of each source at one frequency. */
 type Transfer = (f: number) => Float64Array;
 
-/** Node weight of the output current: a current leaving node k moves iout by w(k). */
-function gainOf(c: Circuit, n: number, re: Float64Array, im: Float64Array | undefined, sources: NoiseSource[], out: Float64Array): void {
-  const wRe = (k: number): number => (k === c.outNode ? 1 : 0) - (k < n ? re[k]! : 0);
+/** |gain|² of each source: a current leaving node k moves the output by −λ(k) through the node
+ *  voltages, and by 1 more when it flows through the probed elements out of the probed node. */
+function gainOf(p: OutputProbe, n: number, re: Float64Array, im: Float64Array | undefined, sources: NoiseSource[], out: Float64Array): void {
+  const wRe = (k: number): number => (k < n ? -re[k]! : 0);
   const wIm = (k: number): number => (im && k < n ? -im[k]! : 0);
   sources.forEach((s, i) => {
-    const a = wRe(s.from) - wRe(s.to), b = wIm(s.from) - wIm(s.to);
+    const direct = owns(p, s.element) ? (s.from === p.node ? 1 : 0) - (s.to === p.node ? 1 : 0) : 0;
+    const a = direct + wRe(s.from) - wRe(s.to), b = wIm(s.from) - wIm(s.to);
     out[i] = a * a + b * b;
   });
 }
 
 /** The DC transfer from the output adjoint λ (capacitors open). */
-function dcTransfer(c: Circuit, ws: Workspace, lam: Float64Array, sources: NoiseSource[]): Float64Array {
+function dcTransfer(ws: Workspace, pr: Probed, sources: NoiseSource[]): Float64Array {
   const h = new Float64Array(sources.length);
-  gainOf(c, ws.n, lam, undefined, sources, h);
+  gainOf(pr.probe, ws.n, pr.lam, undefined, sources, h);
   return h;
 }
 
 /** The AC transfer: Yᵀ·λ = y_out with Y = G + jωC over the free nodes, solved as the real
  *  system [[A, −B], [B, A]] of twice the size. */
-function acTransfer(c: Circuit, ws: Workspace, caps: CapacitorElement[], sources: NoiseSource[]): Transfer {
+function acTransfer(ws: Workspace, pr: Probed, caps: CapacitorElement[], sources: NoiseSource[]): Transfer {
   const n = ws.n, m = 2 * n;
   const { colPtr, rowIdx, freeEnd } = ws.pattern;
   const a = new Float64Array(m * m), perm = new Int32Array(m), tmp = new Float64Array(m), rhs = new Float64Array(m);
@@ -52,20 +55,22 @@ function acTransfer(c: Circuit, ws: Workspace, caps: CapacitorElement[], sources
         const i = rowIdx[p]!, g = ws.G[p]!;
         a[j * m + i] += g; a[(j + n) * m + i + n] += g;
       }
-      rhs[j] = ws.pattern.entry(ws.G, c.outNode, j);
+      rhs[j] = pr.row[j]!;
     }
-    const put = (i: number, j: number, b: number): void => {
-      // Y(i, j) += j·b: transposed into row j, column i of the imaginary blocks.
-      if (i < n && j < n) { a[(j + n) * m + i] += b; a[j * m + i + n] -= b; }
-      else if (i === c.outNode && j < n) rhs[j + n] += b;
-    };
+    const p = pr.probe;
     for (const cap of caps) {
-      const b = w * cap.c;
+      const b = w * cap.c, own = owns(p, cap.name);
+      // Y(i, j) += j·b: transposed into row j, column i of the imaginary blocks; a capacitor of
+      // the probed current on the probed node adds to the right-hand side.
+      const put = (i: number, j: number, x: number): void => {
+        if (i < n && j < n) { a[(j + n) * m + i] += x; a[j * m + i + n] -= x; }
+        else if (i === p.node && j < n && own) rhs[j + n] += x;
+      };
       put(cap.a, cap.a, b); put(cap.b, cap.b, b); put(cap.a, cap.b, -b); put(cap.b, cap.a, -b);
     }
     if (!luFactor(a, m, perm)) return h.fill(NaN);
     luSolve(a, m, perm, rhs, tmp);
-    gainOf(c, n, rhs.subarray(0, n), rhs.subarray(n, m), sources, h);
+    gainOf(p, n, rhs.subarray(0, n), rhs.subarray(n, m), sources, h);
     return h;
   };
 }
@@ -87,18 +92,18 @@ function logGrid(f1: number, f2: number, perDecade: number): number[] {
 }
 
 /**
- * The output noise of a converged circuit (ws assembled at the solution, λ its output adjoint),
- * at temperature T (K). Undefined when the AC system is singular.
+ * The output noise of a converged circuit (ws assembled at the solution; `pr` its output and
+ * that output's adjoint), at temperature T (K). Undefined when the AC system is singular.
  */
 export function outputNoise(
-  c: Circuit, ws: Workspace, lam: Float64Array, temperature: number, analysis: AnalysisSpec, spectrum: boolean,
+  c: Circuit, ws: Workspace, pr: Probed, temperature: number, analysis: AnalysisSpec, spectrum: boolean,
 ): NoiseReport | undefined {
   const sources: NoiseSource[] = [];
   for (const e of c.elements) elementNoise(e, ws.v, ws.ch, temperature, sources);
   const caps = c.elements.filter((e): e is CapacitorElement => e.kind === 'capacitor');
   const { f, band } = analysis.noise;
-  const h0 = dcTransfer(c, ws, lam, sources);
-  const transfer: Transfer = caps.length === 0 ? () => h0 : acTransfer(c, ws, caps, sources);
+  const h0 = dcTransfer(ws, pr, sources);
+  const transfer: Transfer = caps.length === 0 ? () => h0 : acTransfer(ws, pr, caps, sources);
 
   const parts = new Map<string, number>();
   const s = psd(sources, transfer(f), f, parts);

@@ -12,7 +12,7 @@ import { channelCurrent, deviceReport } from '../circuit/elements/device';
 import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
-import { vbiasFor } from '../analysis/measure';
+import { vbiasFor } from '../analysis/vbias';
 import type { NetworkGroup } from './groups';
 
 export interface JointMember {

@@ -6,7 +6,8 @@
 import type { Range, ResolvedSpec, SpecPath, TemplateMirror, TextEdit } from '../../types';
 import type { Draft, FixPlan, RuleContext } from '../model';
 import { draftKey } from '../model';
-import { deviceRange, kindRange, refOf, valueRange, type Site } from '../sites';
+import { deviceRange, kindRange, refOf, siteOf, valueRange, type Site } from '../sites';
+import { indexOf } from '../../mirror-at';
 import { measure, withMirror } from '../../sizing/devices';
 import { lengthenPlans, widenPlans } from '../plans';
 import { replaceValueEdit } from '../../spec/edit';
@@ -15,13 +16,20 @@ import { mirrorParams } from '../../flavours';
 
 const ppm = (x: number): string => `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 
-/** Where a share's element is written: a device's size, the input resistor, the filter. */
+/** Where a share's element is written: a device's size, the input resistor, the filter. A
+ *  linked output's shares name another mirror's elements by path (`mirror/element`). */
 function elementRange(rc: RuleContext, site: Site, name: string): { path: SpecPath; range: Range } {
-  const m = site.mirror;
-  if (name.startsWith('filter') && m.kind !== 'netlist' && m.filter) return valueRange(rc.parsed, [...m.path, 'filter', 'c']);
-  if (name === 'input' && m.kind !== 'netlist' && m.input.kind === 'resistor') return valueRange(rc.parsed, [...m.path, 'input', 'resistor']);
-  const d = site.report.devices.find((x) => x.name === name);
-  return d ? deviceRange(rc.parsed, rc.spec, refOf(site, d), ['w', 'l']) : kindRange(rc.parsed, site.mirrorIndex);
+  const slash = name.indexOf('/');
+  const other = slash > 0 ? rc.spec.mirrors.find((x) => x.name === name.slice(0, slash)) : undefined;
+  const m = other ?? site.mirror;
+  const mirrorIndex = indexOf(m);
+  const local = other ? name.slice(slash + 1) : name;
+  if (local.startsWith('filter') && m.kind !== 'netlist' && m.filter) return valueRange(rc.parsed, [...m.path, 'filter', 'c']);
+  if (local === 'input' && m.kind !== 'netlist' && m.input.kind === 'resistor') return valueRange(rc.parsed, [...m.path, 'input', 'resistor']);
+  const report = other ? rc.reports.find((r) => r.mirrorIndex === mirrorIndex && r.devices.some((x) => x.name === local)) : site.report;
+  const at = report && (other ? siteOf(rc.spec, report) : site);
+  const d = report?.devices.find((x) => x.name === local);
+  return at && d ? deviceRange(rc.parsed, rc.spec, refOf(at, d), ['w', 'l']) : kindRange(rc.parsed, mirrorIndex);
 }
 
 /** The element with the largest share of the density², and that share. */
