@@ -4,6 +4,7 @@
  * (unconverged solves, Rout ≤ 0 or infinite on a log axis), lists the Vouts with no operating
  * point so the plot marks them instead of stopping silently, and chooses axis prefixes.
  */
+import { sinksCurrent } from '../src/core/device-types';
 import type { MirrorReport } from '../src/core/types';
 import { ZERO_CELSIUS } from '../src/core/defaults';
 import { axisScale } from './format';
@@ -48,7 +49,7 @@ export function curvePlotData(m: MirrorReport): CurvePlotData | undefined {
     },
     failed: points.filter((p) => !p.converged).map((p) => p.vout),
     compliance: Number.isFinite(m.compliance) ? m.compliance : undefined,
-    outside: m.type === 'nmos' ? 'below' : 'above',
+    outside: sinksCurrent(m.type) ? 'below' : 'above',
   };
 }
 

@@ -9,6 +9,7 @@ import type {
   Severity, SpecPath,
 } from '../src/core/types';
 import { formatNumber, formatPercent, formatSI, formatSignedPercent } from './format';
+import { isBipolarReport, isBipolarSplit, isBipolarType, sinksCurrent, workingRegion } from '../src/core/device-types';
 
 /** The caution line every view carries (design §7); one text for the panel and the report. */
 
@@ -115,7 +116,7 @@ function requirementText(mirror: MirrorReport, key: RequirementKey, target: numb
   switch (key) {
     case 'ratio': return `= ${formatNumber(target, 4)}`;
     case 'rout': return `≥ ${formatSI(target, 'Ω')}`;
-    case 'compliance': return `${mirror.type === 'nmos' ? '≤' : '≥'} ${formatSI(target, 'V')}`;
+    case 'compliance': return `${sinksCurrent(mirror.type) ? '≤' : '≥'} ${formatSI(target, 'V')}`;
     case 'sigma': return `≤ ${formatPercent(target)}`;
     case 'noise': return `≤ ${formatSI(target, 'A/√Hz')}`;
     case 'tc': return `≤ ${formatNumber(target, 3)} ppm/°C`;
@@ -147,7 +148,9 @@ export interface FigureView {
 
 /** The causes of the error that are there (≥ 0.005 %, as the ratio-error message names them). */
 function splitText(split: NonNullable<MirrorReport['errorSplit']>): string {
-  const named: [string, number | undefined][] = [['VDS', split.vds], ['body', split.body], ['gate', split.gate], ['geometry', split.geometry]];
+  const named: [string, number | undefined][] = isBipolarSplit(split)
+    ? [['base current', split.base], ['VCE', split.vce], ['geometry', split.geometry]]
+    : [['VDS', split.vds], ['body', split.body], ['gate', split.gate], ['geometry', split.geometry]];
   const shown = named.filter(([, v]) => v !== undefined && Math.abs(v) >= 5e-5).map(([k, v]) => `${k} ${formatSignedPercent(v!, 2)}`);
   return shown.length > 0 ? shown.join(' · ') : 'no systematic cause above 0.005 %';
 }
@@ -168,7 +171,7 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
     detail: m.routApprox === undefined ? 'exact, linearized' : `textbook ${formatSI(m.routApprox, 'Ω')}` });
   figures.push(m.noCompliance
     ? { key: 'compliance', label: 'Compliance', value: 'none', detail: `${m.noCompliance.device} out of saturation at every Vout` }
-    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: m.type === 'nmos' ? 'works down to' : 'works up to' });
+    : { key: 'compliance', label: 'Compliance', value: formatSI(m.compliance, 'V', 4), detail: sinksCurrent(m.type) ? 'works down to' : 'works up to' });
   if (m.sigma !== undefined) figures.push({ key: 'sigma', label: 'σ(Iout)', value: formatPercent(m.sigma), detail: 'Pelgrom, 1σ' });
   if (m.vbias !== undefined) {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
@@ -205,7 +208,27 @@ export interface DeviceRowView {
   reveal?: Range;
 }
 
+/** A bipolar mirror's columns, thirteen like a MOSFET mirror's (VEB, VEC for a PNP). */
+function bipolarColumns(p: boolean): Column[] {
+  return [
+    { key: 'name', label: 'Device', numeric: false },
+    { key: 'area', label: 'Area', numeric: true, title: 'emitter-area multiple' },
+    { key: 'm', label: 'm', numeric: true, title: 'parallel count' },
+    { key: 'ic', label: 'IC', numeric: true, title: 'collector current' },
+    { key: 'ib', label: 'IB', numeric: true, title: 'base current' },
+    { key: 'vbe', label: p ? 'VEB' : 'VBE', numeric: true },
+    { key: 'vce', label: p ? 'VEC' : 'VCE', numeric: true },
+    { key: 'margin', label: 'Margin', numeric: true, title: 'VCE − vcesat' },
+    { key: 'region', label: 'Region', numeric: false },
+    { key: 'beta', label: 'β', numeric: true, title: 'IC/IB' },
+    { key: 'gm', label: 'gm', numeric: true },
+    { key: 'rpi', label: 'rπ', numeric: true },
+    { key: 'ro', label: 'ro', numeric: true },
+  ];
+}
+
 export function deviceColumns(type: MirrorReport['type']): Column[] {
+  if (isBipolarType(type)) return bipolarColumns(type === 'pnp');
   const p = type === 'pmos';
   return [
     { key: 'name', label: 'Device', numeric: false },
@@ -230,6 +253,27 @@ export function deviceRow(report: FileReport, mirror: MirrorReport, d: DeviceRep
   const anchor = deviceAnchor(report, mirror, d);
   const own = anchor?.kind === 'device' ? findings.filter((f) => startsWith(f.path, anchor.path)) : [];
   const size = (text: string): CellView => (d.sized ? { text, title: SIZED_TITLE, flag: 'sized' } : { text });
+  const region: CellView = { text: d.region, flag: d.region === workingRegion(d.type) ? undefined : 'bad' };
+  const margin: CellView = { text: formatSI(d.margin, 'V', 3), flag: d.margin < 0 ? 'bad' : undefined };
+  const name: CellView = { text: d.name, title: d.role === d.name ? undefined : `role ${d.role}` };
+  if (isBipolarReport(d)) {
+    // In a bipolar mirror's own columns; in a BiCMOS netlist's MOSFET columns, the bipolar
+    // counterpart of each (area for W, IC for ID, VBE for VGS, VCE for VDS, vcesat for VDSsat,
+    // gm/IC for gm/ID, β for IC).
+    const cells: CellView[] = isBipolarType(mirror.type) ? [
+      name, { text: formatNumber(d.area, 4) }, { text: formatNumber(d.m, 4) },
+      { text: formatSI(d.ic, 'A', 4) }, { text: formatSI(d.ib, 'A', 4) },
+      { text: formatSI(d.vbe, 'V', 4) }, { text: formatSI(d.vce, 'V', 4) }, margin, region,
+      { text: formatNumber(d.beta, 4) }, { text: formatSI(d.gm, 'S') }, { text: formatSI(d.rpi, 'Ω') }, { text: formatSI(d.ro, 'Ω') },
+    ] : [
+      name, { text: formatNumber(d.area, 4), title: `${d.type}: emitter-area multiple` }, { text: '—' }, { text: formatNumber(d.m, 4) },
+      { text: formatSI(d.ic, 'A', 4), title: 'IC' }, { text: formatSI(d.vbe, 'V', 4), title: 'VBE' }, { text: formatSI(d.vce, 'V', 4), title: 'VCE' },
+      { text: formatSI(d.vcesat, 'V', 4), title: 'vcesat' }, margin, region,
+      { text: formatNumber(d.ic !== 0 ? d.gm / d.ic : 0, 3), title: 'gm/IC' }, { text: formatNumber(d.beta, 4), title: 'β' },
+      { text: formatSI(d.ro, 'Ω') },
+    ];
+    return { name: d.name, cells, severity: worstSeverity(own), reveal: anchor?.range };
+  }
   return {
     name: d.name,
     cells: [
@@ -336,7 +380,7 @@ export function cornerRows(mirror: MirrorReport, limits?: { error: number }): Co
   const corners = mirror.corners ?? [];
   const ok = corners.filter((c) => c.converged);
   const req = mirror.require ?? {};
-  const nmos = mirror.type === 'nmos';
+  const nmos = sinksCurrent(mirror.type);
   const worst = (pick: (c: CornerResult) => number | undefined, better: (a: number, b: number) => boolean): CornerResult | undefined => {
     let w: CornerResult | undefined;
     for (const c of ok) {

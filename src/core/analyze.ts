@@ -4,6 +4,7 @@
  * designer sees in the editor, the panel and CI is computed once, the same way.
  */
 import type { Anchor, FileReport, Finding, MirrorReport, MirrorWiring, ResolvedSpec, WithheldMirror } from './types';
+import { isBipolarDevice } from './device-types';
 import { isRecord } from './spec/params';
 import type { ParsedSpec, TableTexts } from './spec/index';
 import { resolveText } from './resolve';
@@ -116,11 +117,14 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
   spec.mirrors.forEach((m) => {
     const mirrorIndex = indexOf(m);
     if (m.kind !== 'netlist') {
-      out.push({ mirrorIndex, input: m.input, ...(m.resistor !== undefined ? { loopResistor: m.resistor } : {}) });
+      out.push({ mirrorIndex, input: m.input,
+        ...(m.degeneration !== undefined ? { degeneration: m.degeneration } : {}),
+        ...(m.resistor !== undefined ? { loopResistor: m.resistor } : {}) });
       return;
     }
     out.push({ mirrorIndex, netlist: {
-      devices: m.devices.map((d) => ({ name: d.name, d: d.d, g: d.g, s: d.s })),
+      // A bipolar device's collector, base and emitter take the drain, gate and source places.
+      devices: m.devices.map((d) => (isBipolarDevice(d) ? { name: d.name, d: d.c, g: d.b, s: d.e } : { name: d.name, d: d.d, g: d.g, s: d.s })),
       currents: m.currents, voltages: m.voltages, resistors: m.resistors, output: m.output.node,
     } });
   });

@@ -19,6 +19,10 @@ export const DEFAULTS = {
   device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5, gn: 2 / 3 },
   /** `analysis.noise`: the density is read at f (Hz) and integrated over band (Hz). */
   noise: { f: 1e3, band: [1, 1e6] as [number, number] },
+  /** Bipolar parameters not given in the spec (design §10). */
+  bipolar: { br: 1, eg: 1.11, xti: 3, xtb: 0, vcesat: 0.2 },
+  /** Emitter-area multiple of a bipolar device. */
+  area: 1,
   /** m parallel count of a device. */
   m: 1,
   /** relative: a start-up element counts as off at the operating point below this fraction of

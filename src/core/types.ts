@@ -43,6 +43,10 @@ export interface Finding {
 // ───────────────────────────── resolved spec (after elaboration) ─────────────────────────────
 
 export type Polarity = 'nmos' | 'pmos';
+/** Bipolar device types (design §10): an NPN sits where an NMOS would, a PNP where a PMOS would. */
+export type BipolarType = 'npn' | 'pnp';
+/** Every device type a mirror or a netlist device may name. */
+export type DeviceType = Polarity | BipolarType;
 /** The kinds are described once, in src/core/kinds/. */
 export type { MirrorKind, TemplateKind };
 export type ModelKind = 'square-law' | 'ekv' | 'table';
@@ -88,6 +92,19 @@ export interface DeviceParams {
   table?: DeviceTable;
 }
 
+/** Bipolar process parameters of one type (design §10), every default filled. */
+export interface BipolarParams {
+  is: number;        // A, saturation current of one unit-area device at tnom
+  bf: number;        // forward current gain βF at tnom
+  br: number;        // reverse current gain βR
+  vaf?: number;      // V, forward Early voltage; absent: no Early effect
+  eg: number;        // eV, band gap for IS(T)
+  xti: number;       // IS temperature exponent
+  xtb: number;       // βF temperature exponent
+  vcesat: number;    // V, the VCE below which a device counts as saturated
+  ais?: number;      // relative, σ(ΔIS/IS) of a pair of unit-area devices
+  abf?: number;      // relative, σ(Δβ/β) of a pair of unit-area devices
+}
 /** The numeric device parameters (every key but `table`): what corners shift and the spec reads by rule. */
 export type NumericParam = Exclude<keyof DeviceParams, 'table'>;
 
@@ -105,6 +122,9 @@ export interface ProcessSpec {
   resistors?: ResistorCorner;
   nmos: DeviceParams;
   pmos: DeviceParams;
+  /** Present when the spec gives them (a mirror or a netlist device of that type needs them). */
+  npn?: BipolarParams;
+  pnp?: BipolarParams;
   /** Device flavours by name; a template mirror picks one with `device:`. */
   devices?: Record<string, DeviceFlavour>;
 }
@@ -132,6 +152,8 @@ export interface DeviceSize {
   m: number;
   bulk: BulkTie;
   auto?: { w?: boolean; l?: boolean };
+  /** Bipolar devices: emitter-area multiple of the unit device (w and l are unused, 0). */
+  area?: number;
 }
 
 export type InputSource =
@@ -212,7 +234,7 @@ export interface MirrorOutput {
 export interface TemplateMirror {
   kind: TemplateKind;
   name: string;
-  type: Polarity;
+  type: DeviceType;
   input: InputSource;
   /** Sizes of the reference roles (the kind's roles minus its outputRoles), every default filled. */
   devices: Record<string, DeviceSize>;
@@ -223,6 +245,8 @@ export interface TemplateMirror {
   design?: DesignTarget;
   /** RC filter on the gate lines from the reference to the output devices. */
   filter?: GateFilter;
+  /** Widlar only: the resistor in the output device's emitter (Ω). */
+  degeneration?: number;
   /** Reference kinds: the loop resistor (Ω, `resistor:`). */
   resistor?: number;
   /** Reference kinds: the start-up device (`startup:`), absent when none is written. */
@@ -231,12 +255,20 @@ export interface TemplateMirror {
   path: SpecPath;  // ['mirrors', i]
 }
 
-export interface NetlistDevice {
+export interface NetlistMosDevice {
   name: string;
   type: Polarity;
   d: string; g: string; s: string; b: string;
   w: number; l: number; m: number;
 }
+/** A bipolar device of a netlist (BiCMOS): collector, base, emitter, emitter-area multiple. */
+export interface NetlistBipolarDevice {
+  name: string;
+  type: BipolarType;
+  c: string; b: string; e: string;
+  area: number; m: number;
+}
+export type NetlistDevice = NetlistMosDevice | NetlistBipolarDevice;
 export interface NetlistCurrentSource { name: string; from: string; to: string; i: number }
 export interface NetlistVoltageSource { name: string; node: string; v: number }
 export interface NetlistResistor extends ResistorDrift { name: string; a: string; b: string; r: number }
@@ -245,7 +277,7 @@ export interface NetlistResistor extends ResistorDrift { name: string; a: string
 export interface NetlistMirror {
   kind: 'netlist';
   name: string;
-  type: Polarity;
+  type: DeviceType;
   devices: NetlistDevice[];
   currents: NetlistCurrentSource[];
   voltages: NetlistVoltageSource[];
@@ -327,12 +359,14 @@ export interface SolvedNetworkOutput {
 
 // ───────────────────────────── reports ─────────────────────────────
 
-export type Region = 'cutoff' | 'triode' | 'saturation';
+/** MOSFET: cutoff, triode, saturation (the working region). Bipolar: cutoff, saturation,
+ *  forward-active (the working region). */
+export type Region = 'cutoff' | 'triode' | 'saturation' | 'forward-active';
 export type Inversion = 'weak' | 'moderate' | 'strong';
 
-/** Operating point of one device. Voltages are magnitudes in the device's own polarity
+/** Operating point of one MOSFET. Voltages are magnitudes in the device's own polarity
  *  (VSG, VSD, VSB for PMOS). */
-export interface DeviceReport {
+export interface MosDeviceReport {
   name: string;
   role: string;
   type: Polarity;
@@ -349,15 +383,47 @@ export interface DeviceReport {
   gm: number; gds: number; gmb: number;
   ro: number;
   gmId: number;            // gm/ID, 1/V
+  // A bipolar device's own fields never appear on a MOSFET's report (the union reads by key).
+  area?: never; ib?: never; vbe?: never; vce?: never; vcesat?: never; rpi?: never; beta?: never;
   /** The characterisation table the device's figures come from (its `table:` value), when
    *  it is a table device. */
   table?: string;
 }
 
+/** Operating point of one bipolar device (design §10). Voltages are magnitudes in the device's
+ *  own polarity (VEB, VEC for PNP); `ic` is the collector current (not an inversion
+ *  coefficient as for a MOSFET). */
+export interface BipolarDeviceReport {
+  name: string;
+  role: string;
+  type: BipolarType;
+  area: number; m: number;
+  ic: number; ib: number;
+  vbe: number; vce: number;
+  /** V, process.<type>.vcesat: the VCE the margin is counted from. */
+  vcesat: number;
+  margin: number;          // vce − vcesat
+  region: Region;          // forward-active | saturation | cutoff
+  gm: number;              // ∂IC/∂VBE, S
+  rpi: number;             // ∂VBE/∂IB, Ω
+  ro: number;              // ∂VCE/∂IC, Ω
+  gds: number;             // 1/ro, S (the output conductance under its MOSFET name)
+  beta: number;            // IC/IB
+  // A MOSFET's own fields never appear on a bipolar report.
+  w?: never; l?: never; sized?: never; id?: never; vgs?: never; vds?: never; vbs?: never; vth?: never;
+  vov?: never; vdsat?: never; inversion?: never; gmb?: never; gmId?: never; table?: never;
+}
+
+export type DeviceReport = MosDeviceReport | BipolarDeviceReport;
+
 /** Split of the systematic ratio error into its causes (relative, they add up to ≈ error). */
 /** Causes of the systematic ratio error (analysis/errorSplit.ts); `gate` only when the pair's
  *  VGS differ (a netlist pair on different gate or source nodes). */
-export interface ErrorSplit { vds: number; body: number; geometry: number; gate?: number }
+export interface MosErrorSplit { vds: number; body: number; geometry: number; gate?: number; base?: never; vce?: never }
+/** Causes of a bipolar mirror's systematic error: base currents, the VCE mismatch through the
+ *  Early effect, and what the area ratio alone does not explain. */
+export interface BipolarErrorSplit { base: number; vce: number; geometry: number; vds?: never; body?: never; gate?: never }
+export type ErrorSplit = MosErrorSplit | BipolarErrorSplit;
 
 export interface CornerResult {
   name: string; converged: boolean;
@@ -441,7 +507,7 @@ export interface MirrorReport {
   mirror: string;
   output?: string;
   kind: MirrorKind;
-  type: Polarity;
+  type: DeviceType;
   converged: boolean;
   iterations: number;
   residual: number;
@@ -558,6 +624,8 @@ export interface FileReport {
 export interface MirrorWiring {
   mirrorIndex: number;
   input?: InputSource;
+  /** A Widlar's emitter resistor (Ω), drawn from its kind's degeneration node to the rail. */
+  degeneration?: number;
   /** A reference kind's loop resistor (Ω): every resistor of its loop takes this value. */
   loopResistor?: number;
   netlist?: {

@@ -3,6 +3,8 @@
  * Pure (no `vscode`), so it is tested without an editor; convert.ts wraps the results in vscode
  * objects. No physics here: every number comes from the core's report.
  */
+import { isBipolarReport, sinksCurrent, typeTitle, workingRegion } from '../core/device-types';
+import type { DeviceType } from '../core/types';
 import type { Anchor, DeviceReport, FileReport, MirrorReport, NetworkReport, Position, Range, SpecPath } from '../core/types';
 import { CAUTION as CAUTION_TEXT, formatPercent, formatPlain, formatSI, formatSignedPercent } from '../core/text/format';
 
@@ -89,22 +91,39 @@ function escapeMd(s: string): string {
   return s.replace(/[\\`*_{}[\]()#+\-.!|<>]/g, (c) => `\\${c}`);
 }
 
-function polarity(type: 'nmos' | 'pmos'): string {
-  return type === 'nmos' ? 'NMOS' : 'PMOS';
+function polarity(type: DeviceType): string {
+  return typeTitle(type);
 }
 
 function sizeLine(d: DeviceReport): string {
   const m = d.m !== 1 ? ` · m = ${formatPlain(d.m, 4)}` : '';
+  if (isBipolarReport(d)) return `area = ${formatPlain(d.area, 4)}${m}`;
   const sized = d.sized ? ' · sized by qpoint' : '';
   return `W/L = ${formatSI(d.w, 'm')} / ${formatSI(d.l, 'm')}${m}${sized}`;
 }
 
 function regionText(d: DeviceReport): string {
-  return d.region === 'saturation' ? 'saturation' : `**${d.region}**`;
+  return d.region === workingRegion(d.type) ? d.region : `**${d.region}**`;
 }
 
-/** The ten operating-point figures of one device, in the device's own polarity. */
+/** The ten operating-point figures of one device, in the device's own polarity (VEB, VEC for
+ *  a PNP, as VSG, VSD for a PMOS). */
 export function deviceFigures(d: DeviceReport): [label: string, value: string][] {
+  if (isBipolarReport(d)) {
+    const p = d.type === 'pnp';
+    return [
+      ['region', regionText(d)],
+      ['IC', formatSI(d.ic, 'A')],
+      [p ? 'VEB' : 'VBE', formatSI(d.vbe, 'V')],
+      [p ? 'VEC' : 'VCE', formatSI(d.vce, 'V')],
+      ['IB', formatSI(d.ib, 'A')],
+      ['margin', formatSI(d.margin, 'V')],
+      ['gm', formatSI(d.gm, 'S')],
+      ['ro', formatOhm(d.ro)],
+      ['β', formatPlain(d.beta, 4)],
+      ['rπ', formatOhm(d.rpi)],
+    ];
+  }
   const p = d.type === 'pmos';
   return [
     ['region', regionText(d)],
@@ -149,6 +168,11 @@ export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): st
     '|:--|:--|--:|--:|--:|--:|--:|',
   ];
   for (const d of devices) {
+    // A bipolar device in the MOSFET columns: IC, VCE, margin, gm/IC, and β where IC would be.
+    if (isBipolarReport(d)) {
+      lines.push(`| ${escapeMd(d.name)} | ${regionText(d)} | ${formatSI(d.ic, 'A')} | ${formatSI(d.vce, 'V')} | ${formatSI(d.margin, 'V')} | ${formatPlain(d.ic !== 0 ? d.gm / d.ic : 0)} /V | β ${formatPlain(d.beta, 4)} |`);
+      continue;
+    }
     lines.push(`| ${escapeMd(d.name)} | ${regionText(d)} | ${formatSI(d.id, 'A')} | ${formatSI(d.vds, 'V')} | ${formatSI(d.margin, 'V')} | ${formatPlain(d.gmId)} /V | ${formatPlain(d.ic)} |`);
   }
   return `${lines.join('\n')}\n\n${CAUTION}`;
@@ -163,7 +187,7 @@ export function mirrorFigures(r: MirrorReport): [label: string, value: string][]
   ];
   if (r.error !== undefined) rows.push(['error', formatSignedPercent(r.error)]);
   rows.push(['Rout', r.routApprox !== undefined ? `${formatOhm(r.rout)} (textbook ${formatOhm(r.routApprox)})` : formatOhm(r.rout)]);
-  rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${r.type === 'nmos' ? 'lowest' : 'highest'} Vout)`]);
+  rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${sinksCurrent(r.type) ? 'lowest' : 'highest'} Vout)`]);
   if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
   if (r.vbias !== undefined) rows.push(['vbias', `${formatSI(r.vbias, 'V')}${r.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
   if (r.supplySensitivity !== undefined) rows.push(['supply sensitivity', formatPlain(r.supplySensitivity, 3)]);

@@ -6,6 +6,7 @@
  *
  * Pure TypeScript: no `vscode`, no DOM, no Node — it is bundled into both sides.
  */
+import { BIPOLAR_TYPES, DEVICE_TYPES, MOS_TYPES } from '../core/device-types';
 import type {
   Anchor, CornerResult, CurvePoint, DeviceReport, FileReport, Finding, MirrorReport,
   MonteCarloResult, NetworkReport, Position, Range, Requirements, SpecPath,
@@ -88,9 +89,10 @@ export function describeMessage(m: unknown, max = 200): string {
 // Deep enough that the page can render whatever passes without a type error.
 
 const KINDS: readonly string[] = MIRROR_KINDS;
-const POLARITIES: readonly string[] = ['nmos', 'pmos'];
+const POLARITIES: readonly string[] = DEVICE_TYPES;
 const SEVERITIES: readonly string[] = ['error', 'warning', 'info'];
 const REGIONS: readonly string[] = ['cutoff', 'triode', 'saturation'];
+const BIPOLAR_REGIONS: readonly string[] = ['cutoff', 'saturation', 'forward-active'];
 const INVERSIONS: readonly string[] = ['weak', 'moderate', 'strong'];
 const ANCHOR_KINDS: readonly string[] = ['mirror', 'output', 'device'];
 
@@ -122,8 +124,13 @@ export function isAnchor(v: unknown): v is Anchor {
 const DEVICE_NUMBERS = ['w', 'l', 'm', 'id', 'vgs', 'vds', 'vbs', 'vth', 'vov', 'vdsat', 'margin', 'ic',
   'gm', 'gds', 'gmb', 'ro', 'gmId'] as const;
 
+const BIPOLAR_NUMBERS = ['area', 'm', 'ic', 'ib', 'vbe', 'vce', 'vcesat', 'margin', 'gm', 'rpi', 'ro', 'gds', 'beta'] as const;
+
 export function isDeviceReport(v: unknown): v is DeviceReport {
-  return isRecord(v) && isString(v.name) && isString(v.role) && oneOf(v.type, POLARITIES) &&
+  if (isRecord(v) && oneOf(v.type, BIPOLAR_TYPES)) {
+    return isString(v.name) && isString(v.role) && oneOf(v.region, BIPOLAR_REGIONS) && BIPOLAR_NUMBERS.every((k) => isNumber(v[k]));
+  }
+  return isRecord(v) && isString(v.name) && isString(v.role) && oneOf(v.type, MOS_TYPES) &&
     oneOf(v.region, REGIONS) && oneOf(v.inversion, INVERSIONS) && optional(v.sized, isBoolean) &&
     DEVICE_NUMBERS.every((k) => isNumber(v[k]));
 }
@@ -172,7 +179,9 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     optional(v.beyondRails, (b) => isRecord(b) && isString(b.node) && isNumber(b.v) && oneOf(b.rail, ['vdd', 'vss'] as const) &&
       arrayOf(b.stack, isString) && isNumber(b.need)) &&
     optional(v.reference, isReferenceReport) &&
-    optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.vds) && isNumber(s.body) && isNumber(s.geometry) && optional(s.gate, isNumber)) &&
+    optional(v.errorSplit, (s) => isRecord(s) && isNumber(s.geometry) && (s.base !== undefined
+      ? isNumber(s.base) && isNumber(s.vce)
+      : isNumber(s.vds) && isNumber(s.body) && optional(s.gate, isNumber))) &&
     isRecord(v.nodes) && Object.values(v.nodes).every(isNumber) &&
     arrayOf(v.devices, isDeviceReport) && isSpecPath(v.path) &&
     optional(v.corners, (c) => arrayOf(c, isCornerResult)) &&

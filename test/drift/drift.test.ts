@@ -1,6 +1,6 @@
 /**
  * Supply sensitivity and temperature coefficient (design §12, §14) against the computed check
- * values of docs/references.md §12, and against independent re-solves of the whole circuit.
+ * values of docs/references.md §13, and against independent re-solves of the whole circuit.
  */
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
@@ -10,13 +10,13 @@ import { ctxOf, makeSpec, netlist, sz, template } from '../engine/builders';
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 const run = (spec: ResolvedSpec): MirrorReport => measureMirror(ctxOf(spec));
 
-/** design.md's example process (references §12 (b)): kp 280 µA/V², vt0 0.45 V, λ 0.08 at 1 µm. */
+/** design.md's example process (references §13 (b)): kp 280 µA/V², vt0 0.45 V, λ 0.08 at 1 µm. */
 function exampleSpec(): ResolvedSpec {
   return makeSpec([template('simple', { input: { resistor: 120e3 }, size: sz(2e-6, 1e-6), vout: 0.9 })],
     { nmos: { kp: 280e-6, vt0: 0.45, lambda: 0.08, lref: 1e-6, gamma: 0, tcv: -1e-3, bex: -1.5 }, vdd: 1.8, tnom: 300.15 });
 }
 
-/** Set D with λ = 0 (references §12 (a)): 100 µA at W/L = 10 from 3 V through 19.136663 kΩ. */
+/** Set D with λ = 0 (references §13 (a)): 100 µA at W/L = 10 from 3 V through 19.136663 kΩ. */
 function setD(tcv: number, bex: number, tc1?: number): ResolvedSpec {
   const spec = makeSpec([template('simple', { input: { resistor: 19136.663 }, size: sz(10e-6, 1e-6), vout: 1.5 })],
     { nmos: { lambda: 0, gamma: 0, tcv, bex }, vdd: 3, tnom: 300.15 });
@@ -39,7 +39,7 @@ function resolvedTc(spec: ResolvedSpec, h = 0.01): number {
   return ((at(t + h) - at(t - h)) / (2 * h) / run(spec).iout) * 1e6;
 }
 
-describe('resistor-referenced simple mirror (references §12 (b), computed)', () => {
+describe('resistor-referenced simple mirror (references §13 (b), computed)', () => {
   const r = run(exampleSpec());
   it('carries 9.932795 µA from 9.734074 µA', () => {
     expect(rel(r.iin!, 9.734074e-6)).toBeLessThan(1e-6);
@@ -53,7 +53,7 @@ describe('resistor-referenced simple mirror (references §12 (b), computed)', ()
   });
 });
 
-describe('set D, λ = 0 (references §12 (a), computed)', () => {
+describe('set D, λ = 0 (references §13 (a), computed)', () => {
   it('S = 1.423938 and tc = +16.446 ppm/K at tcv −1 mV/K, bex −1.5', () => {
     const r = run(setD(-1e-3, -1.5));
     expect(rel(r.iout, 100e-6)).toBeLessThan(1e-6);
@@ -112,7 +112,7 @@ describe('tcBox over process.trange', () => {
   });
 });
 
-describe('beta multiplier (references §12, Baker: TC = −2·TCR − bex/T)', () => {
+describe('beta multiplier (references §13, Baker: TC = −2·TCR − bex/T)', () => {
   /** The constant-gm cell as a netlist: M1 diode at x, M2 (K = 4) with RS in its source and its
    *  bulk on its source, a 1:1 PMOS mirror closing the loop, M5 copying the current out. λ = 0.
    *  The 1 nA source into x only starts the loop (it is 1e-4 of the cell's current). */

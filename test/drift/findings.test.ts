@@ -33,7 +33,7 @@ const rows: Row[] = [
     title: /^Set the gate filter's c to \d/,
   },
   {
-    // Resistor-referenced: S ≈ 1.4 whatever the sizes (references §12 (b)).
+    // Resistor-referenced: S ≈ 1.4 whatever the sizes (references §13 (b)).
     name: 'supply-sensitivity-high: resistor input, at the resistor, no size fixes it',
     text: text(['  - name: rb', '    kind: simple', '    type: nmos', '    input: { resistor: 120k }', '    size: { w: 2u, l: 1u }', '    output: { v: 0.9 }', '    require: { supplySensitivity: 1 }']),
     code: 'supply-sensitivity-high', at: [11, 23, 27, '120k'], fix: false,

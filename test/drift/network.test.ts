@@ -4,7 +4,7 @@
  * it. Check values: the whole text re-analysed with vdd or the temperature moved (an independent
  * path: the network re-solved, each output re-measured) agrees with the linearized figures to
  * 2 % (design §12 "done when"); thermal noise against the hand small-signal sum over the devices
- * on the path (docs/references.md §12, the simple 1:1 mirror's 8kTγ·gm, computed).
+ * on the path (docs/references.md §13, the simple 1:1 mirror's 8kTγ·gm, computed).
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
@@ -71,7 +71,7 @@ describe('a linked output drifts with its network (re-solves of the whole text a
   });
   it('the fed PMOS mirror carries the root resistor’s supply dependence, not its own λ alone', () => {
     // With an ideal input the PMOS mirror's own sensitivity is a λ effect of a few percent; the
-    // root's resistor makes it of order 1 (references §12 (b): 1.42 for a resistor-fed mirror).
+    // root's resistor makes it of order 1 (references §13 (b): 1.42 for a resistor-fed mirror).
     expect(report(nominal, 'dist').supplySensitivity!).toBeGreaterThan(0.5);
   });
   it('tcBox comes from the network re-solved across trange', () => {
@@ -93,7 +93,7 @@ describe('a linked output carries the noise of every device above it', () => {
   it('thermal, λ = 0: 8kTγ·(gm of the root pair + gm of the PMOS pair) within 2 %', () => {
     const gm = (m: MirrorReport, d: string): number => m.devices.find((x) => x.name === d)!.gm;
     const kT = BOLTZMANN * 300.15;
-    // references §12: each 1:1 pair adds 4kTγ·gm for its output device and, mirrored 1:1, for its
+    // references §13: each 1:1 pair adds 4kTγ·gm for its output device and, mirrored 1:1, for its
     // diode; the root's pair is mirrored 1:1 once more by dist.
     const want = 4 * kT * (2 / 3) * (gm(root, 'ref') + gm(root, 'a.out') + gm(dist, 'ref') + gm(dist, 'out'));
     expect(rel(dist.noise!.density ** 2, want)).toBeLessThan(0.02);
@@ -106,7 +106,7 @@ describe('a linked output carries the noise of every device above it', () => {
     expect(Math.abs(s['root/ref']! + s['root/a.out']! - rootPart)).toBeLessThan(0.02);
   });
   it('a feeding output is read as the current it delivers into the fed mirror', () => {
-    // root.a's own pair: 8kTγ·gm (references §12), the fed PMOS diode's noise barely reaching it.
+    // root.a's own pair: 8kTγ·gm (references §13), the fed PMOS diode's noise barely reaching it.
     const gm = (d: string): number => root.devices.find((x) => x.name === d)!.gm;
     const want = 4 * BOLTZMANN * 300.15 * (2 / 3) * (gm('ref') + gm('a.out'));
     expect(rel(root.noise!.density ** 2, want)).toBeLessThan(0.02);

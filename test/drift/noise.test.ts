@@ -1,11 +1,11 @@
 /**
  * Output current noise (design §12) against the computed check values of docs/references.md
- * §12 (set D: k′ = 134 µA/V², W/L = 10, 100 µA, gm = 517.687 µS, T = 300 K, γ = 2/3).
+ * §13 (set D: k′ = 134 µA/V², W/L = 10, 100 µA, gm = 517.687 µS, T = 300 K, γ = 2/3).
  */
 import { describe, expect, it } from 'vitest';
 import { measureMirror } from '../../src/core/analysis/index';
 import { BOLTZMANN } from '../../src/core/defaults';
-import type { MirrorReport, ResolvedSpec, TemplateMirror } from '../../src/core/types';
+import type { MirrorReport, MosDeviceReport, ResolvedSpec, TemplateMirror } from '../../src/core/types';
 import { ctxOf, makeSpec, sz, template } from '../engine/builders';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
@@ -20,7 +20,7 @@ function mirrorD(f = 1e3, extra: Partial<TemplateMirror> = {}, flicker = false):
   return spec;
 }
 
-describe('simple 1:1 mirror (references §12)', () => {
+describe('simple 1:1 mirror (references §13)', () => {
   it('thermal output noise 8kTγgm = 1.143591e-23 A²/Hz (both devices, half each)', () => {
     const r = run(mirrorD());
     expect(rel(psd(r), 1.143591e-23)).toBeLessThan(1e-5);
@@ -51,11 +51,11 @@ describe('simple 1:1 mirror (references §12)', () => {
   });
 });
 
-describe('cascode: the cascode device’s own noise is suppressed by about (gm·ro)² (references §12)', () => {
+describe('cascode: the cascode device’s own noise is suppressed by about (gm·ro)² (references §13)', () => {
   it('outc reaches the output through 1/(1 + (gm + gmb + gds)·ro_out)', () => {
     const spec = makeSpec([template('cascode', { input: 100e-6, size: sz(10e-6, 1e-6), vout: 2.5 })], { tnom: 300 });
     const r = run(spec);
-    const outc = r.devices.find((d) => d.name === 'outc')!, out = r.devices.find((d) => d.name === 'out')!;
+    const outc = r.devices.find((d) => d.name === 'outc') as MosDeviceReport, out = r.devices.find((d) => d.name === 'out')!;
     const own = 4 * BOLTZMANN * 300 * (2 / 3) * outc.gm;
     const att = 1 / (1 + (outc.gm + outc.gmb + outc.gds) * out.ro) ** 2;
     expect(rel(r.noise!.shares.outc! * psd(r), own * att)).toBeLessThan(0.02);
@@ -63,7 +63,7 @@ describe('cascode: the cascode device’s own noise is suppressed by about (gm·
   });
 });
 
-describe('RC gate filter r = 1 MΩ, c = 10 pF on the 1:1 mirror (references §12)', () => {
+describe('RC gate filter r = 1 MΩ, c = 10 pF on the 1:1 mirror (references §13)', () => {
   const filter = { filter: { r: 1e6, c: 10e-12 } };
   it.each([
     [1e3, 4.4341e-21],

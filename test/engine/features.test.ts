@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeSpec, measureMirror, solveAt, sweepVout } from '../../src/core/analysis/index';
-import type { MirrorReport, NetlistDevice } from '../../src/core/types';
+import type { MirrorReport, NetlistMosDevice } from '../../src/core/types';
 import { ctxOf, makeSpec, netlist, sz, template } from './builders';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
@@ -70,7 +70,7 @@ describe('resistor input', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { input: { resistor: 22e3 }, vout: 2 })])));
     expect(r.converged).toBe(true);
     expect(rel(r.iin!, (3.3 - r.nodes.a!) / 22e3)).toBeLessThan(1e-12);
-    expect(rel(r.devices[0]!.id, r.iin!)).toBeLessThan(1e-7);
+    expect(rel(r.devices[0]!.id!, r.iin!)).toBeLessThan(1e-7);
     // Closed form: β/2·(VGS − VT)²·(1 + λVGS) = (vdd − VGS)/R.
     const vgs = r.nodes.a!;
     expect(rel(((134e-6 * 10) / 2) * (vgs - 0.7) ** 2 * (1 + 0.1 * vgs), (3.3 - vgs) / 22e3)).toBeLessThan(1e-7);
@@ -84,7 +84,7 @@ describe('resistor input', () => {
 });
 
 describe('netlist mirrors', () => {
-  const dev = (name: string, d: string, g: string, s: string, b = 'vss', extra: Partial<NetlistDevice> = {}): NetlistDevice =>
+  const dev = (name: string, d: string, g: string, s: string, b = 'vss', extra: Partial<NetlistMosDevice> = {}): NetlistMosDevice =>
     ({ name, type: 'nmos', d, g, s, b, ...U, ...extra });
   it('a netlist cascode equals the cascode template (iout, rout, compliance, sigma)', () => {
     const coeff = { avt: 5e-9, abeta: 1e-8 };
@@ -124,11 +124,11 @@ describe('netlist mirrors', () => {
     expect(rel(r.iout, id)).toBeLessThan(1e-7);
     // Degenerated Rout = ro + Rs + (gm + gmb)·ro·Rs (exact for one device).
     const m = r.devices[0]!;
-    expect(rel(r.rout, 1 / m.gds + 10e3 + ((m.gm + m.gmb) * 10e3) / m.gds)).toBeLessThan(1e-5);
+    expect(rel(r.rout, 1 / m.gds + 10e3 + ((m.gm + m.gmb!) * 10e3) / m.gds)).toBeLessThan(1e-5);
     expect(r.ratioIdeal).toBeUndefined();
   });
   it('PMOS netlist: iout is the current delivered into the output', () => {
-    const p = (name: string, d: string, g: string): NetlistDevice => ({ name, type: 'pmos', d, g, s: 'vdd', b: 'vdd', ...U });
+    const p = (name: string, d: string, g: string): NetlistMosDevice => ({ name, type: 'pmos', d, g, s: 'vdd', b: 'vdd', ...U });
     const spec = makeSpec([netlist({
       name: 'pm', type: 'pmos', devices: [p('MP1', 'a', 'a'), p('MP2', 'out', 'a')],
       currents: [{ name: 'I1', from: 'a', to: 'vss', i: 40e-6 }],
@@ -215,10 +215,10 @@ describe('report fields', () => {
   });
   it('margin = vds − vdsat, vov = vgs − vth, ro = 1/gds, gmId = gm/id', () => {
     for (const d of r.devices) {
-      expect(d.margin).toBeCloseTo(d.vds - d.vdsat, 14);
-      expect(d.vov).toBeCloseTo(d.vgs - d.vth, 14);
+      expect(d.margin).toBeCloseTo(d.vds! - d.vdsat!, 14);
+      expect(d.vov).toBeCloseTo(d.vgs! - d.vth!, 14);
       expect(d.ro).toBeCloseTo(1 / d.gds, 3);
-      expect(d.gmId).toBeCloseTo(d.gm / d.id, 10);
+      expect(d.gmId).toBeCloseTo(d.gm / d.id!, 10);
     }
   });
   it('nodes hold absolute voltages, including the rails and the output', () => {
@@ -242,7 +242,7 @@ describe('report fields', () => {
     // Same input current: the diode's VOV grows as sqrt(1/kp(T)), kp ∝ T^−1.5, and VT0 falls by 0.2 V.
     const vovHot = hot.devices[0]!.vov, vovCold = cold.devices[0]!.vov;
     expect(hot.devices[0]!.vth).toBeCloseTo(0.5, 9);
-    expect(vovHot / vovCold).toBeCloseTo(Math.sqrt(1 / (400 / 300) ** -1.5), 7);   // gmin leakage: 1e-9
+    expect(vovHot! / vovCold!).toBeCloseTo(Math.sqrt(1 / (400 / 300) ** -1.5), 7);   // gmin leakage: 1e-9
   });
   it('size variants: sz() builder covers m and bulk', () => {
     expect(sz(1, 2, 3, 'source')).toEqual({ w: 1, l: 2, m: 3, bulk: 'source' });

@@ -98,7 +98,7 @@ describe('a converging 3 000-device netlist', () => {
     // Every PMOS diode carries the current of its NMOS copy (KCL at d_k, through the solver),
     // up to gmin's share across the two channels: 1e-12 S·3.3 V/100 µA = 3.3e-8 at most.
     const n7 = full.devices.find((d) => d.name === 'N7')!, p7 = full.devices.find((d) => d.name === 'P7')!;
-    expect(Math.abs(p7.id / n7.id - 1)).toBeLessThan(4e-8);
+    expect(Math.abs(p7.id! / n7.id! - 1)).toBeLessThan(4e-8);
   }, 20_000);
 });
 

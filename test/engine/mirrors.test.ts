@@ -101,7 +101,7 @@ describe('cascode output resistance (references §3)', () => {
     }
     expect(c.vbs).toBeCloseTo(vsb2, 6);  // reported as the magnitude VSB (design §4)
     // gmb2 to the 5 digits references §3 gives it (82.646 µS at VSB2 = 1.086 V).
-    expect(rel(c.gmb, GMB2)).toBeLessThan(1e-4);
+    expect(rel(c.gmb!, GMB2)).toBeLessThan(1e-4);
     expect(r.rout / 1e6).toBeCloseTo(6.203335, 3);             // ±0.5 kΩ (1e-4)
   });
   it('the linearized circuit gives exactly that formula with the engine\'s own gm, gds, gmb', () => {
@@ -132,7 +132,7 @@ describe('Wilson mirror (references §5, D, VOUT = 3 V)', () => {
     expect(r.ratio).toBeCloseTo(0.914146, 6);
     expect(r.ratioIdeal).toBe(1);
     // ratio = (1 + λVDS,d)/(1 + λVDS,in), all of it VDS mismatch.
-    expect(rel(r.ratio!, (1 + 0.1 * dev(r, 'diode').vds) / (1 + 0.1 * dev(r, 'in').vds))).toBeLessThan(1e-7);
+    expect(rel(r.ratio!, (1 + 0.1 * dev(r, 'diode').vds!) / (1 + 0.1 * dev(r, 'in').vds!))).toBeLessThan(1e-7);
     expect(r.errorSplit!.vds).toBeCloseTo(r.error!, 7);
   });
   it('with body effect on out: VGS_out = 1.236385 V, ratio 0.899358, input node ≈ 2.285 V', () => {
@@ -147,7 +147,7 @@ describe('Wilson mirror (references §5, D, VOUT = 3 V)', () => {
       const d = dev(r, 'diode'), i = dev(r, 'in'), o = dev(r, 'out');
       const gmb = bulk === 'source' ? 0 : o.gmb;
       const rd = 1 / d.gds, ro = 1 / o.gds, ri = 1 / i.gds;
-      const exact = (rd * ro * (d.gm + i.gm * o.gm * ri + o.gm + gmb) + rd + ro) / (1 + d.gm * rd);
+      const exact = (rd * ro * (d.gm + i.gm * o.gm * ri + o.gm + gmb!) + rd + ro) / (1 + d.gm * rd);
       expect(rel(r.rout, exact)).toBeLessThan(1e-5);
     }
   });
@@ -230,8 +230,8 @@ describe('balanced Wilson output resistance (references §3, computed; derivatio
     const r = balancedWilson(model, 'rail');
     const d = dev(r, 'diode'), i = dev(r, 'in'), o = dev(r, 'out'), b = dev(r, 'bal');
     expect(b.gmb).toBeGreaterThan(0.1 * b.gm);   // bal's source sits above the rail: body effect acts
-    const a = i.gm / i.gds * (1 + b.gmb / (b.gm + b.gds));
-    const exact = (1 / o.gds) * (1 + (o.gm * (a + 1) + o.gmb + o.gds) / (d.gm + d.gds));
+    const a = i.gm / i.gds * (1 + b.gmb! / (b.gm + b.gds));
+    const exact = (1 / o.gds) * (1 + (o.gm * (a + 1) + o.gmb! + o.gds) / (d.gm + d.gds));
     expect(rel(r.rout, exact)).toBeLessThan(1e-5);
   });
   it.each(['square-law', 'ekv'] as const)('%s: the textbook figure gm_out·ro_out·ro_in·gm_in·(1 + gmb_bal/gm_bal)/gm_diode is within 2 %% of the exact Rout', (model) => {
@@ -255,9 +255,9 @@ describe('error split', () => {
     expect(r.ratioIdeal).toBeCloseTo(1, 12);
     const vref = dev(r, 'ref').vds;
     // λ_out = 0.05, λ_ref = 0.1: b at a's bias carries (1 + 0.05·VDS,ref)/(1 + 0.1·VDS,ref).
-    expect(r.errorSplit!.geometry).toBeCloseTo((1 + 0.05 * vref) / (1 + 0.1 * vref) - 1, 10);
-    expect(r.errorSplit!.vds).toBeCloseTo((1 + 0.05 * 2) / (1 + 0.05 * vref) - 1, 10);
-    const product = (1 + r.errorSplit!.geometry) * (1 + r.errorSplit!.body) * (1 + r.errorSplit!.vds) - 1;
+    expect(r.errorSplit!.geometry).toBeCloseTo((1 + 0.05 * vref!) / (1 + 0.1 * vref!) - 1, 10);
+    expect(r.errorSplit!.vds).toBeCloseTo((1 + 0.05 * 2) / (1 + 0.05 * vref!) - 1, 10);
+    const product = (1 + r.errorSplit!.geometry) * (1 + r.errorSplit!.body!) * (1 + r.errorSplit!.vds!) - 1;
     expect(product).toBeCloseTo(r.error!, 7);   // gmin leakage, see above
   });
 });

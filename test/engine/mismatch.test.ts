@@ -22,7 +22,7 @@ describe('Pelgrom pair figures through the solver (references §7 computed check
   });
   it('W/L = 10 µm/1 µm: σ(ΔVT) = 1.5811 mV (avt only, over the solver\'s gm/ID)', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { vout: 2 })], { nmos: { ...flat, avt: AVT } })));
-    expect((r.sigma! / r.devices[1]!.gmId) * 1e3).toBeCloseTo(1.5811, 4);
+    expect((r.sigma! / r.devices[1]!.gmId!) * 1e3).toBeCloseTo(1.5811, 4);
   });
 });
 
@@ -48,7 +48,7 @@ describe('simple-mirror sigma equals Kinget\'s pair formula (two devices, each 1
   it('threshold-only: σ = (gm/ID)·σ(ΔVT) when abeta is absent', () => {
     const r = measureMirror(ctxOf(makeSpec([template('simple', { vout: 2 })], { nmos: { lambda: 0, avt: AVT } })));
     const gmid = r.devices[1]!.gmId;
-    expect(r.sigma!).toBeCloseTo(gmid * (AVT / Math.sqrt(10e-12)), 9);
+    expect(r.sigma!).toBeCloseTo(gmid! * (AVT / Math.sqrt(10e-12)), 9);
   });
 });
 
@@ -59,7 +59,7 @@ describe('sensitivities are the linearized response (perturbed re-solve)', () =>
     const nominal = solveAt(ctx, 2);
     const shifted = solveAt(ctx, 2, { dvt: { out: 1e-3 }, dbeta: {} });
     const vov = nominal.devices[1]!.vov;
-    expect(shifted.iout / nominal.iout).toBeCloseTo(((vov - 1e-3) / vov) ** 2, 9);
+    expect(shifted.iout / nominal.iout).toBeCloseTo(((vov! - 1e-3) / vov!) ** 2, 9);
     expect(shifted.devices[1]!.vth).toBeCloseTo(0.701, 12);
   });
   it('Δβ/β on ref: iout scales as 1/(1 + Δβ/β)', () => {
@@ -80,7 +80,7 @@ describe('sensitivities are the linearized response (perturbed re-solve)', () =>
         const h = 1e-6;
         let sum = 0;
         for (const d of r.devices) {
-          const root = Math.sqrt(2 * d.m * d.w * d.l);
+          const root = Math.sqrt(2 * d.m * d.w! * d.l!);
           const up = (p: { dvt: Record<string, number>; dbeta: Record<string, number> }) => solveAt(ctx, r.vout, p).iout;
           const sVt = (up({ dvt: { [d.name]: h }, dbeta: {} }) - up({ dvt: { [d.name]: -h }, dbeta: {} })) / (2 * h) / base.iout;
           const sB = (up({ dvt: {}, dbeta: { [d.name]: h } }) - up({ dvt: {}, dbeta: { [d.name]: -h } })) / (2 * h) / base.iout;

@@ -6,7 +6,7 @@
  * VOUT = 1.5 V = 103.9103 µA. gm = β·VOV·(1+λVDS), ro = 1/(λ·β/2·VOV²) (design §3 model).
  * The YAML text is the spec these numbers belong to, with anchors at its real positions.
  */
-import type { DeviceReport, FileReport, MirrorReport } from '../../src/core/types';
+import type { FileReport, MirrorReport, MosDeviceReport } from '../../src/core/types';
 
 export const SPEC_TEXT = [
   'format: 1',                         // 0
@@ -27,7 +27,7 @@ export const SPEC_TEXT = [
 const vov = 0.367234;
 const beta = 134e-6 * 10;
 
-function device(role: 'ref' | 'out', vds: number): DeviceReport {
+function device(role: 'ref' | 'out', vds: number): MosDeviceReport {
   const id = (beta / 2) * vov * vov * (1 + 0.1 * vds);
   const gm = beta * vov * (1 + 0.1 * vds);
   const gds = 0.1 * (beta / 2) * vov * vov;

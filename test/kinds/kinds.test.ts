@@ -50,10 +50,21 @@ describe.each(TEMPLATE_KINDS)('the description of %s', (kind) => {
     expect(k.roles).toContain(k.pair.out);
     expect(Object.keys(k.reference)).toContain(k.pair.ref);
   });
-  it('takes vbias exactly when a connection uses the held vbias node; is built from MOSFETs', () => {
+  it('takes vbias exactly when a connection uses the held vbias node; is built from MOSFETs or bipolar devices', () => {
     const conns = [...Object.values(k.reference), ...Object.values(k.output)];
     expect(conns.some((c) => c.g === 'vbias' || c.d === 'vbias' || c.s === 'vbias')).toBe(k.vbias);
-    expect(k.families).toContain('mosfet');
+    expect(k.families.length).toBeGreaterThan(0);
+    for (const f of k.families) expect(['mosfet', 'bipolar']).toContain(f);
+  });
+  it('has a textbook Rout for every family it is built from', () => {
+    // `rout` is written for the first family; a kind of both families carries the bipolar form too.
+    if (k.families.length > 1) expect(k.bipolarRout?.formula).toBeTruthy();
+    else expect(k.bipolarRout).toBeUndefined();
+  });
+  it('names its degeneration node among its connections', () => {
+    if (k.degeneration === undefined) return;
+    const conns = [...Object.values(k.reference), ...Object.values(k.output)];
+    expect(conns.some((c) => c.s === k.degeneration)).toBe(true);
   });
 });
 
@@ -78,7 +89,7 @@ describe('the panel accepts a report of every kind', () => {
     expect(isMirrorReport(m)).toBe(true);
   });
   it('and no other', () => {
-    expect(isMirrorReport({ ...fixtureReport().mirrors[0]!, kind: 'widlar' })).toBe(false);
+    expect(isMirrorReport({ ...fixtureReport().mirrors[0]!, kind: 'bandgap' })).toBe(false);
   });
 });
 

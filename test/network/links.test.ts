@@ -71,8 +71,8 @@ describe('linked mirrors against the same circuit as one netlist (1e-4 in curren
     expect(rel(report(linked, 'dist').iout, net.iout)).toBeLessThan(1e-4);
   });
   it("the downstream mirror's iin is the current that arrives (the netlist's M2 drain current)", () => {
-    expect(rel(report(linked, 'dist').iin!, dev('M2').id)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'root.a').iout, dev('M2').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'dist').iin!, dev('M2').id!)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'root.a').iout, dev('M2').id!)).toBeLessThan(1e-4);
   });
   it('the linked node voltage is the netlist node x, its headroom measured to the compliance limit', () => {
     const a = report(linked, 'root.a');
@@ -82,7 +82,7 @@ describe('linked mirrors against the same circuit as one netlist (1e-4 in curren
     expect(report(linked, 'dist').fedBy).toBe('root.a');
   });
   it('the unlinked output keeps its own voltage and current (M3)', () => {
-    expect(rel(report(linked, 'root.b').iout, dev('M3').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'root.b').iout, dev('M3').id!)).toBeLessThan(1e-4);
   });
   it('intended is the root current times the ideal ratios; chainError compounds the stages', () => {
     const d = report(linked, 'dist');
@@ -106,7 +106,7 @@ describe('linked mirrors against the same circuit as one netlist (1e-4 in curren
     expect(n.members).toEqual(['root', 'dist']);
     // Between the rails: the reference, the leaf root.b and the leaf dist; root.a's current is
     // dist's input current, not drawn again.
-    const total = 10e-6 + dev('M2').id + dev('M3').id + net.iout;
+    const total = 10e-6 + dev('M2').id! + dev('M3').id! + net.iout;
     expect(rel(n.supplyCurrent.vdd, total)).toBeLessThan(1e-4);
     expect(rel(n.supplyCurrent.vss, total)).toBeLessThan(1e-4);
     expect(rel(n.power, 1.8 * total)).toBeLessThan(1e-4);
@@ -189,11 +189,11 @@ describe('three stages, resistor-fed root, PMOS bank, NMOS cascode leaf (against
   const dev = (name: string) => net.devices.find((d) => d.name === name)!;
   it('every current matches', () => {
     expect(net.converged).toBe(true);
-    expect(rel(report(linked, 'root').iin!, dev('M1').id)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'pbank.tail').iin!, dev('M2').id)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'tail').iin!, dev('P2').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'root').iin!, dev('M1').id!)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'pbank.tail').iin!, dev('M2').id!)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'tail').iin!, dev('P2').id!)).toBeLessThan(1e-4);
     expect(rel(report(linked, 'tail').iout, net.iout)).toBeLessThan(1e-4);
-    expect(rel(report(linked, 'pbank.spare').iout, dev('P3').id)).toBeLessThan(1e-4);
+    expect(rel(report(linked, 'pbank.spare').iout, dev('P3').id!)).toBeLessThan(1e-4);
   });
   it('a resistor-fed root: intended starts from its solved iin', () => {
     const root = report(linked, 'root');

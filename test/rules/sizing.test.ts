@@ -80,7 +80,7 @@ describe('scaleForGoal', () => {
     expect(r.rout / need - 1).toBeLessThan(3e-3);
     // VOV is unchanged at constant W/L (square law: VOV depends on W/L only, up to CLM).
     const before = measure(spec, 0, 0)!;
-    expect(r.devices[0].vov).toBeCloseTo(before.devices[0].vov, 2);
+    expect(r.devices[0].vov).toBeCloseTo(before.devices[0].vov!, 2);
   });
 });
 

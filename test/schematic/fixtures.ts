@@ -4,7 +4,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
-import { KINDS, TEMPLATE_KINDS } from '../../src/core/kinds';
+import { KINDS, TEMPLATE_KINDS, type TemplateKind } from '../../src/core/kinds';
 
 export const ROOT = resolve(__dirname, '../..');
 export const EXAMPLE = 'examples/sensor-afe.bias.yaml';
@@ -12,22 +12,34 @@ export const exampleText = readFileSync(join(ROOT, EXAMPLE), 'utf8');
 
 /** The example's header (process, supplies, limits, params) with mirrors of our own. */
 function withMirrors(mirrors: string[]): string {
-  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:'));
+  // The example's process has an NPN only: a PNP (invented values) for the PNP mirrors.
+  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:')).replace('\n  npn:', '\n  pnp: { is: 1e-17, bf: 60, vaf: 40 }\n  npn:');
   return `${head}\nmirrors:\n${mirrors.join('\n')}\n`;
 }
 
-/** Every kind, NMOS and PMOS, each output well inside its compliance. */
-export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => (['nmos', 'pmos'] as const).map((type) => [
-  `  - name: ${kind.replace('-', '_')}_${type}`,
-  `    kind: ${kind}`,
-  `    type: ${type}`,
-  // A self-biased reference sets its own current through its resistor; the others take 10 µA.
-  ...(KINDS[kind].loop
-    ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(kind === 'beta-multiplier' ? ['    k: 4'] : [])]
-    : ['    input: 10u']),
-  `    size: { w: ${type === 'nmos' ? '8u' : '24u'}, l: 1u }`,
-  `    output: { v: ${type === 'nmos' ? 1.3 : 0.5} }`,
-].join('\n'))).concat([
+/** The device types a kind is built from (its families): nmos and pmos, npn and pnp. */
+export const typesOf = (kind: TemplateKind): string[] =>
+  KINDS[kind].families.flatMap((f) => (f === 'bipolar' ? ['npn', 'pnp'] : ['nmos', 'pmos']));
+
+/** Every kind in both polarities of each of its families, each output well inside its
+ *  compliance; a reference kind sets its own current (loop resistor, no input). */
+export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => typesOf(kind).map((type) => {
+  const n = type === 'nmos' || type === 'npn';
+  const bipolar = type === 'npn' || type === 'pnp';
+  const loop = KINDS[kind].loop !== undefined;
+  return [
+    `  - name: ${kind.replace('-', '_')}_${type}`,
+    `    kind: ${kind}`,
+    `    type: ${type}`,
+    // A self-biased reference sets its own current through its resistor; the others take 10 µA.
+    ...(loop
+      ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(kind === 'beta-multiplier' ? ['    k: 4'] : [])]
+      : ['    input: 10u']),
+    ...(bipolar ? [] : [`    size: { w: ${n ? '8u' : '24u'}, l: 1u }`]),
+    ...(KINDS[kind].degeneration !== undefined ? ['    degeneration: 5k'] : []),
+    `    output: { v: ${n ? 1.3 : 0.5} }`,
+  ].join('\n');
+})).concat([
   '  - name: res_pmos',
   '    kind: simple',
   '    type: pmos',

@@ -13,7 +13,8 @@ import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
 import type { FileReport, MirrorReport } from '../../src/core/types';
-import { EXAMPLE, everyKindText, exampleText } from './fixtures';
+import { EXAMPLE, everyKindText, exampleText, typesOf } from './fixtures';
+import { isBipolarReport, sinksCurrent } from '../../src/core/device-types';
 
 const engine = new ELK();
 let kinds: FileReport, example: FileReport;
@@ -33,7 +34,7 @@ describe('schematics of every kind', () => {
   it('the spec of every kind in both polarities solves (its ratio findings do not matter here)', () => {
     expect(kinds.findings.filter((f) => f.severity === 'error' && !f.code.startsWith('ratio') && !f.message.startsWith('starved: ') && !f.message.startsWith('tight: '))).toEqual([]);
     expect(kinds.mirrors.every((m) => m.converged)).toBe(true);
-    expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => ['nmos', 'pmos'].map((t) => `${k.replace('-', '_')}_${t}`))));
+    expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => typesOf(k).map((t) => `${k.replace('-', '_')}_${t}`))));
   });
 
   it('draws a reference with its loop resistor and start-up device, and no input source (its loop sets the current)', () => {
@@ -54,8 +55,13 @@ describe('schematics of every kind', () => {
         expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);  // a reference's closing mirror is of the other polarity
         const label = s!.labels.find((l) => l.device === d.name)!;
         expect(label.lines[0]).toBe(d.name);
-        expect(label.lines[1]).toBe(`${formatSI(d.w, 'm')}/${formatSI(d.l, 'm')}·${d.m}`);
-        expect(label.lines[2]).toBe(`ID ${formatSI(d.id, 'A')}`);
+        if (isBipolarReport(d)) {
+          expect(label.lines[1]).toBe(`${d.area}·${d.m}`);
+          expect(label.lines[2]).toBe(`IC ${formatSI(d.ic, 'A')}`);
+          continue;
+        }
+        expect(label.lines[1]).toBe(`${formatSI(d.w!, 'm')}/${formatSI(d.l!, 'm')}·${d.m}`);
+        expect(label.lines[2]).toBe(`ID ${formatSI(d.id!, 'A')}`);
       }
       // Every node of the measured circuit, rails and held nodes included, with its voltage.
       for (const [node, v] of Object.entries(m.nodes)) {
@@ -67,13 +73,13 @@ describe('schematics of every kind', () => {
     }
   });
 
-  it('NMOS hangs from the input current down to vss, PMOS is its mirror image', () => {
+  it('NMOS (NPN) hangs from the input current down to vss, PMOS (PNP) is its mirror image', () => {
     for (const m of kinds.mirrors.filter((x) => x.name.startsWith('simple_'))) {
       const s = drawn.get(m.name)!;
       const ref = s.parts.find((p) => p.device === 'ref')!.box;
       const input = s.parts.find((p) => p.id === 'input')!.box;
       // The input source sits above the NMOS reference and below the PMOS one.
-      if (m.type === 'nmos') expect(input.y + input.h).toBeLessThan(ref.y);
+      if (sinksCurrent(m.type)) expect(input.y + input.h).toBeLessThan(ref.y);
       else expect(input.y).toBeGreaterThan(ref.y + ref.h);
     }
   });
@@ -120,20 +126,20 @@ describe('schematics of every kind', () => {
   it('draws bipolar devices with the NPN and PNP symbols, labelled with area·m (a hand-made report until bipolar kinds land)', async () => {
     for (const [name, type] of [['simple_nmos', 'npn'], ['simple_pmos', 'pnp']] as const) {
       const m = kinds.mirrors.find((x) => x.name === name)!;
-      // The same currents and voltages, its devices reported as bipolar transistors of 10 µm²
-      // emitter area in the forward-active region (the bipolar report's own field names).
+      // The same currents and voltages, its devices reported as bipolar transistors of 10 unit
+      // emitter areas in the forward-active region (the bipolar report's own field names).
       const bipolar = { ...m, type, devices: m.devices.map((d) => ({
-        name: d.name, role: d.role, type, area: 10e-12, m: d.m, ic: d.id, ib: d.id / 100, vbe: d.vgs, vce: d.vds, vcesat: 0.2,
-        margin: d.vds - 0.2, region: 'forward-active', gm: d.gm, rpi: 100 / d.gm, ro: d.ro, gds: d.gds, beta: 100,
+        name: d.name, role: d.role, type, area: 10, m: d.m, ic: d.id!, ib: d.id! / 100, vbe: d.vgs!, vce: d.vds!, vcesat: 0.2,
+        margin: d.vds! - 0.2, region: 'forward-active', gm: d.gm, rpi: 100 / d.gm, ro: d.ro, gds: d.gds, beta: 100,
       })) } as unknown as MirrorReport;
       const s = (await schematicOf(engine, kinds, bipolar))!;
       expect(s.parts.filter((p) => p.device).map((p) => p.symbol)).toEqual([type, type]);
       expect(s.parts.filter((p) => p.short)).toEqual([]);
       const ref = m.devices.find((d) => d.name === 'ref')!;
-      expect(s.labels.find((l) => l.device === 'ref')?.lines.slice(2)).toEqual([`IC ${formatSI(ref.id, 'A')}`, 'forward-active']);
-      expect(s.parts.find((p) => p.device === 'ref')?.tip).toContain(`VCE ${formatSI(ref.vds, 'V')}`);
-      // 10e-12 m² is 10 µm² by definition.
-      expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10 µm²·1');
+      expect(s.labels.find((l) => l.device === 'ref')?.lines.slice(2)).toEqual([`IC ${formatSI(ref.id!, 'A')}`, 'forward-active']);
+      expect(s.parts.find((p) => p.device === 'ref')?.tip).toContain(`VCE ${formatSI(ref.vds!, 'V')}`);
+      // The emitter area is a multiple of the unit device (design §10): area·m.
+      expect(s.labels.find((l) => l.device === 'ref')?.lines[1]).toBe('10·1');
     }
   });
 

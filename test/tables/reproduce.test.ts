@@ -9,6 +9,7 @@ import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import type { DeviceParams, MirrorReport, ModelKind, ResolvedSpec } from '../../src/core/types';
 import { KINDS } from '../../src/core/kinds/index';
+import { mainCurrent } from '../../src/core/device-types';
 import { exampleTables } from '../example-tables';
 import { modelChannel, span, tableOf, type Grid } from './make-table';
 
@@ -37,10 +38,10 @@ const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 describe.each(['square-law', 'ekv'] as const)('a table of the %s equations reproduces them (issue 17 check values)', (model) => {
   const { analytic, table } = solveBoth(model);
 
-  it('covers every kind of the example, NMOS and PMOS', () => {
+  it('covers every kind of the example, NMOS and PMOS (and its NPN mirrors, which keep their own model)', () => {
     const kinds = new Set(analytic.map((r) => r.kind));
     for (const k of [...Object.keys(KINDS), 'netlist']) expect(kinds.has(k as never), k).toBe(true);
-    expect(new Set(analytic.map((r) => r.type))).toEqual(new Set(['nmos', 'pmos']));
+    expect(new Set(analytic.map((r) => r.type))).toEqual(new Set(['nmos', 'pmos', 'npn']));
   });
 
   it('operating points to 0.1 % in current, gm to 1 %, device by device', () => {
@@ -53,15 +54,15 @@ describe.each(['square-law', 'ekv'] as const)('a table of the %s equations repro
       a.devices.forEach((d, j) => {
         const e = t.devices[j]!;
         expect(e.name).toBe(d.name);
-        if (Math.abs(d.id) < 1e-6 * Math.abs(a.iout)) {
+        if (Math.abs(mainCurrent(d)) < 1e-6 * Math.abs(a.iout)) {
           // An off start-up device: the square law gives exactly 0 and a table of ln id carries a
           // floor, so a ratio means nothing; the same tolerances apply against the cell's current
           // and its largest gm instead.
-          expect(Math.abs(e.id - d.id), `${a.name} ${d.name} id (off)`).toBeLessThan(1e-3 * Math.abs(a.iout));
+          expect(Math.abs(mainCurrent(e) - mainCurrent(d)), `${a.name} ${d.name} id (off)`).toBeLessThan(1e-3 * Math.abs(a.iout));
           expect(Math.abs(e.gm - d.gm), `${a.name} ${d.name} gm (off)`).toBeLessThan(1e-2 * gmMax);
           return;
         }
-        expect(rel(e.id, d.id), `${a.name} ${d.name} id`).toBeLessThan(1e-3);
+        expect(rel(mainCurrent(e), mainCurrent(d)), `${a.name} ${d.name} id`).toBeLessThan(1e-3);
         expect(rel(e.gm, d.gm), `${a.name} ${d.name} gm`).toBeLessThan(1e-2);
       });
     });

@@ -85,7 +85,7 @@ describe('a clean table spec', () => {
     const at = (tC: number) => tableCsv(modelChannel(N, 'ekv'), { ...G, temperature: [tC] });
     const tt = { 'n27.csv': at(27), 'n127.csv': at(127), 'p.csv': PCSV };
     const vgsAt = (temp: string) => analyzeText(spec('{ table: [n27.csv, n127.csv] }').replace('model: ekv', `model: ekv\n  temperature: ${temp}`), 'a.bias.yaml', { tables: tt })
-      .mirrors[0]!.devices.find((d) => d.name === 'ref')!.vgs;
+      .mirrors[0]!.devices.find((d) => d.name === 'ref')!.vgs!;
     const v27 = vgsAt('27 C'), v127 = vgsAt('127 C'), v77 = vgsAt('77 C');
     expect(v27).toBeGreaterThan(v127 + 0.05);      // tcv = −1 mV/K moves VGS by ≈ −0.1 V
     expect(v77).toBeLessThan(v27);
@@ -95,7 +95,7 @@ describe('a clean table spec', () => {
     const text = spec('{ table: n.csv }', '', '    size: auto\n    design: { gmid: 14 }\n    output: { v: 1.2 }\n');
     const r = analyzeText(text, 'a.bias.yaml', { tables });
     const ref = r.mirrors[0]!.devices.find((d) => d.name === 'ref')!;
-    expect(Math.abs(ref.gmId / 14 - 1)).toBeLessThan(0.03);
+    expect(Math.abs(ref.gmId! / 14 - 1)).toBeLessThan(0.03);
   });
 });
 

@@ -23,7 +23,7 @@ describe('an auto-sized wide-swing cascode', () => {
     const f = r.findings.find((x) => x.code === 'design-unreachable')!;
     expect(f.message).toMatch(/^ref, out: ends in triode at Vout = 600 mV \(gm\/ID 1[0-3]\.\d \/V against the target 14 \/V\)/);
     // The reported gm/ID is the solved one (the message's figure comes from the device report).
-    expect(f.message).toContain(`gm/ID ${ref.gmId.toFixed(1)} /V`);
+    expect(f.message).toContain(`gm/ID ${ref.gmId!.toFixed(1)} /V`);
   });
 
   it('vbias-triode gets the same fix a hand-sized mirror gets, verified on the re-computed sizes', () => {
@@ -39,6 +39,6 @@ describe('an auto-sized wide-swing cascode', () => {
   it('with qpoint\'s own vbias every device lands on the target: no design-unreachable', () => {
     const clean = analyzeText(ws(''), 'a.bias.yaml');
     expect(clean.findings.filter((x) => x.code === 'design-unreachable')).toEqual([]);
-    for (const d of clean.mirrors[0]!.devices) expect(Math.abs(d.gmId / 14 - 1)).toBeLessThan(0.01);
+    for (const d of clean.mirrors[0]!.devices) expect(Math.abs(d.gmId! / 14 - 1)).toBeLessThan(0.01);
   });
 });

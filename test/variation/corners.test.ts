@@ -103,7 +103,7 @@ describe('applyCorner conventions', () => {
     const nom = measureMirror({ spec, mirror: spec.mirrors[0]!, outputIndex: 0 });
     const cs = applyCorner(spec, up);
     const cor = measureMirror({ spec: cs, mirror: cs.mirrors[0]!, outputIndex: 0 });
-    const vsg = (r: typeof nom): number => r.devices.find((d) => d.role === 'ref')!.vgs;
+    const vsg = (r: typeof nom): number => r.devices.find((d) => d.role === 'ref')!.vgs!;
     expect(vsg(cor) - vsg(nom)).toBeCloseTo(0.05, 6);
     // Hand value at the nominal point: 0.8 + sqrt(2·20 µA/(38 µA/V²·20)) = 1.029416 V.
     expect(vsg(nom)).toBeCloseTo(0.8 + Math.sqrt((2 * 20e-6) / (38e-6 * 20)), 6);

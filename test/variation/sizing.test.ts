@@ -82,10 +82,10 @@ describe('auto sizing, square law', () => {
       for (const s of sized) {
         const d = devices.find((x) => x.name === s.device)!;
         expect(s.w! / 10e-9).toBeCloseTo(Math.round(s.w! / 10e-9), 6);  // on the grid
-        const vov = Math.sqrt((2 * s.id!) / (kpT * d.m * s.w! / d.l));
+        const vov = Math.sqrt((2 * s.id!) / (kpT * d.m * s.w! / d.l!));
         expect(Math.abs(vov / 0.25 - 1), `${s.device} formula`).toBeLessThan(0.01);
         // …and the engine sees the same overdrive at the solved point.
-        expect(Math.abs(d.vov / 0.25 - 1), `${s.device} solved`).toBeLessThan(0.01);
+        expect(Math.abs(d.vov! / 0.25 - 1), `${s.device} solved`).toBeLessThan(0.01);
       }
     });
   }
@@ -102,8 +102,8 @@ describe('auto sizing, square law', () => {
         const d = devices.find((x) => x.name === s.device)!;
         const twin = sized.find((t) => t !== s && t.w === s.w && t.device !== undefined && isInputSide(t.role));
         const copy = !isInputSide(s.role) && twin !== undefined;
-        expect(Math.abs(d.gmId / 12 - 1), `${kind} ${s.device}`).toBeLessThan(copy ? 0.03 : 0.01);
-        expect(Math.abs(2 / d.vov / 12 - 1)).toBeLessThan(copy ? 0.03 : 0.01);
+        expect(Math.abs(d.gmId! / 12 - 1), `${kind} ${s.device}`).toBeLessThan(copy ? 0.03 : 0.01);
+        expect(Math.abs(2 / d.vov! / 12 - 1)).toBeLessThan(copy ? 0.03 : 0.01);
       }
     }
   });
@@ -118,8 +118,8 @@ describe('auto sizing, square law', () => {
     expect(byName('outc').w).toBe(byName('refc').w);
     expect(byName('out').l).toBe(byName('ref').l);
     // …and the input side still meets the target it was sized for (1 %).
-    expect(Math.abs(byName('ref').gmId / 14 - 1)).toBeLessThan(0.01);
-    expect(Math.abs(byName('refc').gmId / 14 - 1)).toBeLessThan(0.01);
+    expect(Math.abs(byName('ref').gmId! / 14 - 1)).toBeLessThan(0.01);
+    expect(Math.abs(byName('refc').gmId! / 14 - 1)).toBeLessThan(0.01);
   });
 
   it('IC target: IC = ID/(2·n·β·U_T²) as design §3 reports it for square-law devices', () => {
@@ -128,8 +128,8 @@ describe('auto sizing, square law', () => {
     const ut = (BOLTZMANN * 300.15) / ELEMENTARY_CHARGE;
     for (const s of sized) {
       const d = devices.find((x) => x.name === s.device)!;
-      const beta = 134e-6 * d.m * d.w / d.l;
-      expect(Math.abs(d.id / (2 * 1.3 * beta * ut * ut) / 5 - 1)).toBeLessThan(0.01);
+      const beta = 134e-6 * d.m * d.w! / d.l!;
+      expect(Math.abs(d.id! / (2 * 1.3 * beta * ut * ut) / 5 - 1)).toBeLessThan(0.01);
       expect(Math.abs(d.ic / 5 - 1)).toBeLessThan(0.01);
     }
   });
@@ -152,8 +152,8 @@ describe('auto sizing, square law', () => {
     // The shared gate puts out at the reference's overdrive; the current follows m (×4) to
     // within the length-modulation error of the pair.
     const out = devices.find((d) => d.role === 'out')!;
-    expect(Math.abs(out.vov / 0.2 - 1)).toBeLessThan(0.01);
-    expect(Math.abs(out.id / (4 * 20e-6) - 1)).toBeLessThan(0.01);
+    expect(Math.abs(out.vov! / 0.2 - 1)).toBeLessThan(0.01);
+    expect(Math.abs(out.id! / (4 * 20e-6) - 1)).toBeLessThan(0.01);
   });
 
   it('a bias bank sizes each output for its own ratio; a resistor input is sized at its solved current', () => {
@@ -167,7 +167,7 @@ describe('auto sizing, square law', () => {
     const b = measureMirror({ spec: r.spec, mirror: r.spec.mirrors[0]!, outputIndex: 1 });
     expect(Math.abs(a.ratio! - 1)).toBeLessThan(0.003);
     expect(Math.abs(b.ratio! / 4 - 1)).toBeLessThan(0.003);
-    for (const d of [...a.devices, ...b.devices]) expect(Math.abs(d.vov / 0.2 - 1), d.name).toBeLessThan(0.01);
+    for (const d of [...a.devices, ...b.devices]) expect(Math.abs(d.vov! / 0.2 - 1), d.name).toBeLessThan(0.01);
     expect(r.sized.map((s) => s.device).sort()).toEqual(['a.out', 'a.outc', 'b.out', 'b.outc', 'ref', 'refc']);
     // Resistor input: iin = (vdd − VGS_refc − VGS_ref)/R ≈ (3.3 − 2·(0.7 + 0.2) − body)/120 kΩ.
     expect(a.iin).toBeGreaterThan(10e-6);
@@ -177,7 +177,7 @@ describe('auto sizing, square law', () => {
   it('PMOS mirrors size the same way', () => {
     const spec = makeSpec([mirror('cascode', { type: 'pmos', vout: 1.0, size: AUTO_W, design: { kind: 'vov', value: 0.3 } })], { grid: 10e-9 });
     const { devices } = sizedReport(spec);
-    for (const d of devices) expect(Math.abs(d.vov / 0.3 - 1), d.name).toBeLessThan(0.01);
+    for (const d of devices) expect(Math.abs(d.vov! / 0.3 - 1), d.name).toBeLessThan(0.01);
   });
 
   it('without lref, l: auto stays where it is and says why', () => {
@@ -205,12 +205,12 @@ describe('auto sizing, EKV', () => {
         for (const s of sized) {
           const d = devices.find((x) => x.name === s.device)!;
           const got = target.kind === 'ic' ? d.ic : target.kind === 'gmid' ? d.gmId : d.vov;
-          expect(Math.abs(got / target.value - 1), `${kind} ${s.device}`).toBeLessThan(0.01);
+          expect(Math.abs(got! / target.value - 1), `${kind} ${s.device}`).toBeLessThan(0.01);
           if (target.kind === 'ic') {
             // IC = ID/IS, IS = 2·n·β·U_T² (references §6, EKV 1995 from memory); ID carries (1 + λ·VDS).
-            const beta = 134e-6 * d.m * d.w / d.l;
-            const lam = 0.1 * 1e-6 / d.l;
-            expect(Math.abs(d.id / (1 + lam * d.vds) / (2 * 1.3 * beta * ut * ut) / 4 - 1)).toBeLessThan(0.01);
+            const beta = 134e-6 * d.m * d.w! / d.l!;
+            const lam = 0.1 * 1e-6 / d.l!;
+            expect(Math.abs(d.id! / (1 + lam * d.vds!) / (2 * 1.3 * beta * ut * ut) / 4 - 1)).toBeLessThan(0.01);
           }
           if (target.kind === 'gmid') {
             // gm·n·U_T/ID = (1 − e^(−√IC))/√IC at the solved IC (references §6, C).
@@ -245,7 +245,7 @@ describe('l: auto from require.rout', () => {
     // The common length holds for both devices, and the widths follow at the target.
     expect(r.sized.every((s) => s.l === l)).toBe(true);
     expect(Math.abs(rep.iout / 20e-6 - 1)).toBeLessThan(1e-3);  // up to W snapping
-    for (const d of rep.devices) expect(Math.abs(d.vov / 0.2 - 1)).toBeLessThan(0.01);
+    for (const d of rep.devices) expect(Math.abs(d.vov! / 0.2 - 1)).toBeLessThan(0.01);
   });
 
   it('cascode: Rout is met and one grid step shorter would miss it', () => {

@@ -6,6 +6,7 @@ import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import type { FileReport, MirrorReport } from '../../src/core/types';
+import { isBipolarReport, isBipolarType } from '../../src/core/device-types';
 import type { HostMessage } from '../../src/protocol/messages';
 import { STATIC_ID, renderHtmlReport } from '../../src/core/report/html';
 import {
@@ -490,12 +491,24 @@ async function checkDetail(page: Page, m: MirrorReport, scope = 'article.mirror'
   for (const [i, d] of listed.entries()) {
     const cells = shown.rows[i];
     expect(cells[0]).toBe(d.name);
-    close(cells[1], 'm', d.w, 3);
-    close(cells[2], 'm', d.l, 3);
-    close(cells[4], 'A', d.id, 4);
-    close(cells[5], 'V', d.vgs, 4);
-    close(cells[6], 'V', d.vds, 4);
-    close(cells[7], 'V', d.vdsat, 4);
+    if (isBipolarReport(d)) {
+      // A bipolar mirror's own columns (view-model.ts); in a MOSFET netlist, the MOSFET columns'
+      // bipolar counterparts.
+      const own = isBipolarType(m.type);
+      close(cells[own ? 3 : 4], 'A', d.ic, 4);
+      close(cells[5], 'V', d.vbe, 4);
+      close(cells[6], 'V', d.vce, 4);
+      close(cells[own ? 7 : 8], 'V', d.margin, 3);
+      expect(cells[own ? 8 : 9]).toBe(d.region);
+      close(cells[12], 'Ω', d.ro, 3);
+      continue;
+    }
+    close(cells[1], 'm', d.w!, 3);
+    close(cells[2], 'm', d.l!, 3);
+    close(cells[4], 'A', d.id!, 4);
+    close(cells[5], 'V', d.vgs!, 4);
+    close(cells[6], 'V', d.vds!, 4);
+    close(cells[7], 'V', d.vdsat!, 4);
     close(cells[8], 'V', d.margin, 3);
     expect(cells[9]).toBe(d.region);
     close(cells[12], 'Ω', d.ro, 3);

@@ -3,13 +3,13 @@
  * to be consistent enough to lay out), and every section of the page has data — a bias bank, a
  * not-converged output, corners, Monte Carlo. The browser tests use real core reports instead.
  */
-import type { CurvePoint, DeviceReport, FileReport, MirrorReport } from '../../src/core/types';
+import type { CurvePoint, FileReport, MirrorReport, MosDeviceReport } from '../../src/core/types';
 
 const r = (line: number, character: number, length = 3) => ({
   start: { line, character }, end: { line, character: character + length },
 });
 
-function device(name: string, over: Partial<DeviceReport> = {}): DeviceReport {
+function device(name: string, over: Partial<MosDeviceReport> = {}): MosDeviceReport {
   return {
     name, role: name, type: 'nmos', w: 2e-6, l: 1e-6, m: 1, id: 1e-5, vgs: 0.72, vds: 0.5, vbs: 0,
     vth: 0.45, vov: 0.27, vdsat: 0.27, margin: 0.23, region: 'saturation', inversion: 'strong',

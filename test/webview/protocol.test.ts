@@ -50,7 +50,7 @@ describe('host → page messages', () => {
       (r) => { (r.mirrors[0] as unknown as Record<string, unknown>).devices = undefined; },
       (r) => { (r.mirrors[0].devices[0] as unknown as Record<string, unknown>).id = '10u'; },
       (r) => { (r.mirrors[0].devices[0] as unknown as Record<string, unknown>).region = 'linear'; },
-      (r) => { (r.mirrors[0] as unknown as Record<string, unknown>).kind = 'widlar'; },
+      (r) => { (r.mirrors[0] as unknown as Record<string, unknown>).kind = 'bandgap'; },   // no such kind
       (r) => { (r.findings[0] as unknown as Record<string, unknown>).severity = 'fatal'; },
       (r) => { r.findings[0].range.start.line = -1; },
       (r) => { (r.anchors[0] as unknown as Record<string, unknown>).kind = 'node'; },
@@ -93,7 +93,7 @@ describe('host → page messages', () => {
   });
 
   it('rejects a report with any required field of a mirror removed (property)', () => {
-    // `iin` and `ratio` are optional: a self-biased netlist has no input (design §14).
+    // `iin` and `ratio` are optional: a self-biased mirror or netlist has no input (design §14).
     const required = ['name', 'mirror', 'kind', 'type', 'converged', 'iterations', 'residual', 'vout',
       'iout', 'rout', 'compliance', 'nodes', 'devices', 'path'];
     fc.assert(fc.property(fc.constantFrom(...required), fc.nat(2), (key, index) => {

@@ -14,7 +14,9 @@ import { DEFAULT_ANALYSIS, outputNoise } from './noise';
 import { heldProbe, probeRow, type Probed } from './probe';
 import { jointDrift } from '../network/drift';
 import { referenceReport } from './reference';
-import { splitError } from './errorSplit';
+import { splitBipolarError, splitError } from './errorSplit';
+import { sizeWeight } from '../circuit/templates';
+import { isBipolarReport } from '../device-types';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
@@ -68,8 +70,7 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
   if (!mc.pair) return undefined;
-  const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
-  const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
+  const r = sizeWeight(mc.circuit.devices[mc.pair.out]!.size) / sizeWeight(mc.circuit.devices[mc.pair.ref]!.size);
   return Number.isFinite(r) ? r : undefined;
 }
 
@@ -118,9 +119,9 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
-    if (mc.pair) {
-      base.errorSplit = splitError(mc.circuit.devices[mc.pair.ref]!, mc.circuit.devices[mc.pair.out]!, ideal, mc.ws.v);
-    }
+    const a = mc.pair && mc.circuit.devices[mc.pair.ref], b = mc.pair && mc.circuit.devices[mc.pair.out];
+    if (a && b && a.kind === 'mos' && b.kind === 'mos') base.errorSplit = splitError(a, b, ideal, mc.ws.v);
+    else if (a && b && a.kind === 'bjt' && b.kind === 'bjt') base.errorSplit = splitBipolarError(a, b, ideal, ratio, mc.ws.v);
   }
   const lam = outputAdjoint(mc.circuit, mc.ws);
   if (lam) {
@@ -151,9 +152,10 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const byRole: Record<string, SmallSignal | undefined> = {};
   for (const role in mc.byRole) {
     const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.devices[k]!;
-    byRole[role] = { gm: d.gm, gds: d.gds, gmb: m.b === m.s ? 0 : d.gmb };
+    byRole[role] = isBipolarReport(d) ? { gm: d.gm, gds: d.gds, gmb: 0, rpi: d.rpi, beta: d.beta }
+      : { gm: d.gm, gds: d.gds, gmb: m.kind === 'mos' && m.b === m.s ? 0 : d.gmb };
   }
-  const approx = routApprox(t.mirror.kind, byRole);
+  const approx = routApprox(t.mirror.kind, t.mirror.type, byRole, t.mirror.kind !== 'netlist' && t.mirror.degeneration !== undefined ? { degeneration: t.mirror.degeneration } : {});
   if (approx !== undefined) base.routApprox = approx;
 
   const xNom = mc.ws.v.slice();

@@ -4,6 +4,7 @@
  * (zero-state.ts), whether the element conducts there, and its current at the operating point
  * against the limit (DEFAULTS.startupLimit of the loop's smallest branch current, design §14).
  */
+import { mainCurrent } from '../device-types';
 import { KINDS, isTemplateKind } from '../kinds/index';
 import { DEFAULTS } from '../defaults';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
@@ -48,13 +49,13 @@ export function referenceReport(m: ResolvedMirror, mc: MirrorCircuit, devices: D
   if (element) startup.conducts = !zeroCurrentState(c).consistent;
   const loop = loopDevices(m, mc, devices);
   let smallest = Infinity;
-  for (const k of loop) smallest = Math.min(smallest, Math.abs(devices[k]!.id));
+  for (const k of loop) smallest = Math.min(smallest, Math.abs(mainCurrent(devices[k]!)));
   const current = isTemplateKind(m.kind) ? resistorBranch(mc) : smallest;
   const report: ReferenceReport = { current: converged ? current : NaN, startup };
   if (!converged) return report;
   if (element && Number.isFinite(smallest)) {
     let leak = 0;
-    c.devices.forEach((d, k) => { if (d.startup) leak += Math.abs(devices[k]!.id); });
+    c.devices.forEach((d, k) => { if (d.startup) leak += Math.abs(mainCurrent(devices[k]!)); });
     startup.current = leak;
     startup.limit = DEFAULTS.startupLimit * smallest;
   }

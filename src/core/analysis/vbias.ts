@@ -36,6 +36,7 @@ function refExcess(mc: MirrorCircuit, margin: number): number {
 /** V, VDS − VDSsat − margin of device k at the present solution. */
 function excess(mc: MirrorCircuit, k: number, margin: number): number {
   const m = mc.circuit.devices[k]!;
+  if (m.kind !== 'mos') return NaN;   // vbias is a MOSFET kind's
   const v = mc.ws.v, p = m.dev.sign;
   const vds = p * (v[m.d]! - v[m.s]!);
   evalFrame(m.dev, p * (v[m.g]! - v[m.s]!), vds, p * (v[m.b]! - v[m.s]!), scratch);
@@ -77,6 +78,7 @@ function pick(spec: ResolvedSpec, mc: MirrorCircuit): VbiasChoice {
   const { sign, rail } = mc;
   const span = Math.abs(mc.span);
   const ref = mc.circuit.devices[kRef]!, refc = mc.circuit.devices[kRefc]!;
+  if (ref.kind !== 'mos' || refc.kind !== 'mos') return { vbias: mid, picked: true, met: false };
   // Start from the hand estimate: u_vbias = VDSsat_ref + margin + VGS_refc(VSB).
   mc.guess();
   const i = Math.abs(mc.iin());

@@ -6,7 +6,7 @@
  */
 import { SOLVER } from '../defaults';
 import type {
-  CapacitorElement, CircuitElement, CurrentSourceElement, DeviceElement, MosElement, ResistorElement, VoltageSourceElement,
+  BjtElement, CapacitorElement, CircuitElement, CurrentSourceElement, DeviceElement, MosElement, ResistorElement, VoltageSourceElement,
 } from './elements/element';
 import { hasSlots, patternOf } from './elements/stamp';
 import { JacobianPattern } from './jacobian';
@@ -15,6 +15,8 @@ import { minimumDegree } from './ordering';
 /** What a template or netlist says of a MOSFET; the builder adds its terminals. */
 export type MosInstance = MosElement;
 export type MosDescription = Omit<MosElement, 'kind' | 'd' | 'g' | 's' | 'b' | 'slot'>;
+/** What a template or netlist says of a bipolar device; the builder adds its terminals. */
+export type BjtDescription = Omit<BjtElement, 'kind' | 'c' | 'b' | 'e' | 'slot'>;
 
 export interface Circuit {
   nodeNames: string[];
@@ -50,6 +52,7 @@ type NodeEntry = { fixed: false } | { fixed: true; v: number };
 /** An element as added, with node names; built into a CircuitElement with node indices. */
 type Pending =
   | { kind: 'mos'; m: MosDescription; nodes: [string, string, string, string] }
+  | { kind: 'bjt'; q: BjtDescription; nodes: [string, string, string] }
   | { kind: 'resistor'; e: ResistorElement; a: string; b: string }
   | { kind: 'current'; e: CurrentSourceElement; from: string; to: string }
   | { kind: 'capacitor'; e: CapacitorElement; a: string; b: string };
@@ -79,6 +82,11 @@ export class CircuitBuilder {
   mos(m: MosDescription, d: string, g: string, s: string, b: string): void {
     this.node(d); this.node(g); this.node(s); this.node(b);
     this.pending.push({ kind: 'mos', m, nodes: [d, g, s, b] });
+  }
+
+  bjt(q: BjtDescription, c: string, b: string, e: string): void {
+    this.node(c); this.node(b); this.node(e);
+    this.pending.push({ kind: 'bjt', q, nodes: [c, b, e] });
   }
 
   current(name: string, from: string, to: string, i: number): void {
@@ -132,6 +140,18 @@ export class CircuitBuilder {
           if (m.startup) e.startup = true;
           elements.push(e);
           devices.push(e);
+          break;
+        }
+        case 'bjt': {
+          const [c, b, e] = p.nodes;
+          const q = p.q;
+          const el: BjtElement = {
+            kind: 'bjt', name: q.name, role: q.role, type: q.type, size: q.size, params: q.params, dev: q.dev,
+            measured: q.measured, c: at(c), b: at(b), e: at(e), slot: 0,
+          };
+          if (q.startup) el.startup = true;
+          elements.push(el);
+          devices.push(el);
           break;
         }
         case 'resistor': p.e.a = at(p.a); p.e.b = at(p.b); elements.push(p.e); break;

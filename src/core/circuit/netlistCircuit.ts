@@ -5,8 +5,10 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
+import { isBipolarDevice, polaritySign } from '../device-types';
 import type { NetlistMirror, ResolvedSpec } from '../types';
-import { CircuitBuilder, type MosDescription } from './circuit';
+import { CircuitBuilder, type BjtDescription, type MosDescription } from './circuit';
 import { resistanceAt } from './resistance';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { PerturbationLike } from './templates';
@@ -21,7 +23,7 @@ export function railName(node: string): string {
 
 export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number, perturb?: PerturbationLike): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
-  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const sign = polaritySign(m.type);
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const b = new CircuitBuilder();
   b.hold('vdd', vdd);
@@ -37,13 +39,26 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
 
   const startup = new Set((m.startup ?? []).map((d) => d.name));
   for (const d of [...m.devices, ...(m.startup ?? [])]) {
+    // A start-up device is judged by the start-up check, not counted for compliance.
+    const role = startup.has(d.name) ? 'startup' : d.name;
+    if (isBipolarDevice(d)) {
+      const params = spec.process[d.type];
+      if (!params) { b.problems.push(`device ${d.name}: no ${d.type} parameters`); continue; }
+      const size = { w: 0, l: 0, m: d.m, bulk: 'rail' as const, area: d.area };
+      const problem = bipolarProblem(params, { area: d.area, m: d.m });
+      if (problem) b.problems.push(`device ${d.name}: ${problem}`);
+      const dev = prepareBipolar(params, { area: d.area, m: d.m }, d.type, proc.temperature, proc.tnom, perturb?.dvt[d.name] ?? 0, perturb?.dbeta[d.name] ?? 0);
+      const q: BjtDescription = { name: d.name, role, type: d.type, size, params, dev, measured: !startup.has(d.name) };
+      if (startup.has(d.name)) q.startup = true;
+      b.bjt(q, railName(d.c), railName(d.b), railName(d.e));
+      continue;
+    }
     const params = d.type === 'pmos' ? spec.process.pmos : spec.process.nmos;
     const size = { w: d.w, l: d.l, m: d.m, bulk: 'rail' as const };
     const problem = deviceProblem(params, size);
     if (problem) b.problems.push(`device ${d.name}: ${problem}`);
     const dev = prepareDevice(params, size, d.type, proc, perturb?.dvt[d.name] ?? 0, perturb?.dbeta[d.name] ?? 0);
-    // A start-up device is judged by the start-up check, not counted for compliance.
-    const desc: MosDescription = { name: d.name, role: startup.has(d.name) ? 'startup' : d.name, type: d.type, size, params, dev, measured: !startup.has(d.name) };
+    const desc: MosDescription = { name: d.name, role, type: d.type, size, params, dev, measured: !startup.has(d.name) };
     if (startup.has(d.name)) desc.startup = true;
     b.mos(desc, railName(d.d), railName(d.g), railName(d.s), railName(d.b));
   }
@@ -66,11 +81,15 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
   const guess = (): void => {
     for (let k = 0; k < c.nFree; k++) ws.v[k] = c.vmid;
     for (const x of c.devices) {
-      if (x.d !== x.g || x.d >= c.nFree) continue;
+      const [top, ctl, bottom] = x.kind === 'mos' ? [x.d, x.g, x.s] : [x.c, x.b, x.e];
+      if (top !== ctl || top >= c.nFree) continue;
       const ownRail = x.dev.sign > 0 ? railIndex.vss : railIndex.vdd;
-      if (x.s !== ownRail) continue;
-      const drive = Number.isFinite(iin) ? gateDriveFor(x.dev, Math.abs(iin), 0) : x.dev.vt0 + 0.2 * (vdd - vss - x.dev.vt0);
-      if (Number.isFinite(drive)) ws.v[x.d] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
+      if (bottom !== ownRail) continue;
+      // A self-biased netlist has no input current: a diode starts a fifth of the way past its threshold (a MOSFET) or at 1 µA (a bipolar device).
+      const drive = x.kind === 'mos'
+        ? (Number.isFinite(iin) ? gateDriveFor(x.dev, Math.abs(iin), 0) : x.dev.vt0 + 0.2 * (vdd - vss - x.dev.vt0))
+        : vbeFor(x.dev, Number.isFinite(iin) ? Math.abs(iin) : 1e-6);
+      if (Number.isFinite(drive)) ws.v[top] = c.fixedV[ownRail]! + x.dev.sign * Math.min(drive, vdd - vss);
     }
   };
 

@@ -5,7 +5,7 @@
  * through their stamps (the Jacobian) and the devices' mismatch derivatives.
  */
 import type { Circuit } from './circuit';
-import { currentNodes, deviceMismatchDerivatives } from './elements/device';
+import { deviceMismatchCurrents } from './elements/device';
 import type { Workspace } from './workspace';
 
 /** Factor the free block of ws.G (assembled at the solution) unless already done. */
@@ -50,18 +50,19 @@ export function outputSensitivities(c: Circuit, ws: Workspace, lam: Float64Array
   const vt = new Float64Array(c.devices.length);
   const beta = new Float64Array(c.devices.length);
   const { v, ch, n } = ws;
-  const der = new Float64Array(2);
-  c.devices.forEach((d, k) => {
-    deviceMismatchDerivatives(d, v, ch, der);
-    // The current flows through the device from `from` to `to`: F_from gains it, F_to loses it.
-    const [from, to] = currentNodes(d);
+  let w1 = 0, w2 = 0;
+  // d iout/dθ = ∂F_out/∂θ − λ·∂F_free/∂θ, summed over the nodes the device's currents leave.
+  const emit = (node: number, d1: number, d2: number): void => {
     let w = 0;
-    if (from === c.outNode) w += 1;
-    if (to === c.outNode) w -= 1;
-    if (from < n) w -= lam[from]!;
-    if (to < n) w += lam[to]!;
-    vt[k] = c.outSign * w * der[0]!;
-    beta[k] = c.outSign * w * der[1]!;
+    if (node === c.outNode) w += 1;
+    if (node < n) w -= lam[node]!;
+    w1 += w * d1; w2 += w * d2;
+  };
+  c.devices.forEach((d, k) => {
+    w1 = 0; w2 = 0;
+    deviceMismatchCurrents(d, v, ch, emit);
+    vt[k] = c.outSign * w1;
+    beta[k] = c.outSign * w2;
   });
   return { vt, beta };
 }

@@ -8,11 +8,14 @@
  */
 import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
+import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
 import { paramsOf } from '../flavours';
 import type { DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
+import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
-import { CircuitBuilder, type MosDescription, type MosInstance } from './circuit';
+import { CircuitBuilder, type MosDescription } from './circuit';
+import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
 import { resistanceAt } from './resistance';
 import { resistorCurrent } from './elements/resistor';
@@ -28,7 +31,8 @@ export function isBank(m: TemplateMirror): boolean {
   return m.outputs.length > 1 || (m.outputs[0] !== undefined && m.outputs[0].path.length > m.path.length);
 }
 
-function area(s: DeviceSize): number { return s.m * s.w / s.l; }
+/** What a device contributes to a mirror ratio: m·W/L, or area·m for a bipolar device. */
+export function sizeWeight(s: DeviceSize): number { return s.area !== undefined ? s.area * s.m : s.m * s.w / s.l; }
 
 /** Ideal ratio of the pair for output j. */
 export function idealRatio(m: TemplateMirror, j: number): number | undefined {
@@ -37,7 +41,7 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   const sa = m.devices[a] ?? out?.devices[a];
   const sb = out?.devices[b] ?? m.devices[b];
   if (!sa || !sb) return undefined;
-  const r = area(sb) / area(sa);
+  const r = sizeWeight(sb) / sizeWeight(sa);
   return Number.isFinite(r) ? r : undefined;
 }
 
@@ -77,7 +81,10 @@ export interface WiredTemplate {
  *  by the caller. */
 export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateMirror, w: TemplateWiring): WiredTemplate {
   const { vdd, vss } = spec.supplies;
-  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const sign = polaritySign(m.type);
+  const type = m.type;
+  const bipolar = isBipolarType(type) ? spec.process[type] : undefined;
+  if (isBipolarType(type) && !bipolar) throw new Error(`no ${type} parameters`);
   const proc = { model: spec.process.model, temperature: spec.process.temperature, tnom: spec.process.tnom };
   const bank = isBank(m);
   const kind = KINDS[m.kind];
@@ -90,18 +97,28 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
   const byRole: Record<string, number> = {};
   const T = sign > 0 ? 'vdd' : 'vss';
   const add = (name: string, role: string, size: DeviceSize, conn: Connection, map: (n: string) => string, measured: boolean, startup = false): number => {
-    // A reference's closing mirror is of the other polarity, its bulk on the other rail.
-    const type: Polarity = conn.other ? (m.type === 'nmos' ? 'pmos' : 'nmos') : m.type;
-    // A mirror's device flavour (`device:`) is of its own polarity; the other rail's devices use the process's.
-    const params = paramsOf(spec.process, type, m.device);
-    const problem = deviceProblem(params, size);
-    if (problem) b.problems.push(`device ${ns}${name}: ${problem}`);
     const full = `${ns}${name}`;
-    const dev = prepareDevice(params, size, type, proc, w.perturb?.dvt[full] ?? 0, w.perturb?.dbeta[full] ?? 0);
+    const d1 = w.perturb?.dvt[full] ?? 0, d2 = w.perturb?.dbeta[full] ?? 0;
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    const desc: MosDescription = { name: full, role, type, size, params, dev, measured };
-    if (startup) desc.startup = true;
-    b.mos(desc, d, g, s, size.bulk === 'source' ? s : conn.other ? T : R);
+    if (bipolar && isBipolarType(type)) {
+      // Collector, base, emitter on the role's drain, gate and source nodes.
+      const bsize = { area: size.area ?? 1, m: size.m };
+      const problem = bipolarProblem(bipolar, bsize);
+      if (problem) b.problems.push(`device ${full}: ${problem}`);
+      const dev = prepareBipolar(bipolar, bsize, type, proc.temperature, proc.tnom, d1, d2);
+      b.bjt({ name: full, role, type, size, params: bipolar, dev, measured }, d, g, s);
+    } else if (!isBipolarType(type)) {
+      // A reference's closing mirror is of the other polarity, its bulk on the other rail.
+      const t: Polarity = conn.other ? (type === 'nmos' ? 'pmos' : 'nmos') : type;
+      // A mirror's device flavour (`device:`) is of its own polarity; the other rail's devices use the process's.
+      const params = paramsOf(spec.process, t, m.device);
+      const problem = deviceProblem(params, size);
+      if (problem) b.problems.push(`device ${full}: ${problem}`);
+      const dev = prepareDevice(params, size, t, proc, d1, d2);
+      const desc: MosDescription = { name: full, role, type: t, size, params, dev, measured };
+      if (startup) desc.startup = true;
+      b.mos(desc, d, g, s, size.bulk === 'source' ? s : conn.other ? T : R);
+    }
     names.push(name);
     return names.length - 1;
   };
@@ -143,6 +160,11 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
       const k = add(`${prefix}${role}`, role, size, wired, map, j === w.outputIndex);
       if (j === w.outputIndex) byRole[role] = k;
     }
+    if (kind.degeneration !== undefined) {
+      const r = m.degeneration;
+      if (r === undefined) b.problems.push('no degeneration resistor');
+      else b.resistor(`${ns}${prefix}degeneration`, map(kind.degeneration), R, r);
+    }
   });
 
   if (m.filter) {
@@ -179,7 +201,7 @@ export function buildTemplate(
   vbias: number | undefined, perturb?: PerturbationLike,
 ): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
-  const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+  const sign = polaritySign(m.type);
   const rail = sign > 0 ? vss : vdd;
   const other = sign > 0 ? vdd : vss;
   const bank = isBank(m);
@@ -251,7 +273,7 @@ export function buildTemplate(
 
 export interface GuessContext {
   m: TemplateMirror;
-  devByName: Map<string, MosInstance>;
+  devByName: Map<string, DeviceElement>;
   bank: boolean;
   ratios: number[];
   /** Polarity-frame voltages of every output node and of vbias. */
@@ -268,7 +290,7 @@ export interface GuessContext {
  *  own equation (body effect and the model included): beta multiplier VGS_ref − VGS_wide(VSB =
  *  I·R) = I·R; VGS over a resistor VGS_ref = I·R. */
 function loopCurrent(g: GuessContext, span: number, r: number): number {
-  const dev = (name: string): MosInstance | undefined => g.devByName.get(name);
+  const dev = (name: string): DeviceElement | undefined => g.devByName.get(name);
   const ref = dev('ref');
   if (!(r > 0) || !ref) return 0;
   const excess = (i: number): number => {
@@ -287,23 +309,25 @@ function loopCurrent(g: GuessContext, span: number, r: number): number {
   return 0.5 * (lo + hi);
 }
 
-/** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it. */
-function drive(x: MosInstance | undefined, i: number, vsb: number, vds: number): number {
+/** Gate drive for current i with length modulation at the given VDS: (1 + λ·VDS) lowers it;
+ *  for a bipolar device its VBE at VCE = vds. */
+function drive(x: DeviceElement | undefined, i: number, vsb: number, vds: number): number {
   if (!x) return 0;
+  if (x.kind === 'bjt') return vbeFor(x.dev, i, Math.max(vds, 0));
   return gateDriveFor(x.dev, i / (1 + x.dev.lambda * Math.max(vds, 0)), vsb);
 }
 
 /** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
-export function diodeDrive(x: MosInstance | undefined, i: number, vsb: number): number {
+export function diodeDrive(x: DeviceElement | undefined, i: number, vsb: number): number {
   let v = drive(x, i, vsb, 0);
   v = drive(x, i, vsb, v);
   return drive(x, i, vsb, v);
 }
 
 /** Solve x = uGate − VGS(I, VSB(x)) for a cascode's source node by a few fixed-point steps. */
-function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrain: number, lo: number, hi: number): number {
+function sourceBelow(x: DeviceElement | undefined, i: number, uGate: number, uDrain: number, lo: number, hi: number): number {
   if (!x) return lo;
-  const bodyToRail = x.size.bulk === 'rail';
+  const bodyToRail = x.kind === 'mos' && x.size.bulk === 'rail';
   let v = uGate - drive(x, i, 0, uDrain - uGate);
   for (let k = 0; k < 4; k++) v = uGate - drive(x, i, bodyToRail ? Math.max(v, 0) : 0, uDrain - v);
   return Math.min(Math.max(v, lo), Math.max(hi, lo));
@@ -312,9 +336,9 @@ function sourceBelow(x: MosInstance | undefined, i: number, uGate: number, uDrai
 /** Polarity-frame node voltages assuming every device saturated. */
 export function guessNodes(g: GuessContext, i: number): void {
   const { m, devByName, ratios, uOuts, uVb, cNodes, u } = g;
-  const dev = (name: string): MosInstance | undefined => devByName.get(name);
+  const dev = (name: string): DeviceElement | undefined => devByName.get(name);
   const prefix = (j: number): string => (g.bank ? `${m.outputs[j]!.name}.` : '');
-  const vsbOf = (x: MosInstance | undefined, us: number): number => (x && x.size.bulk === 'rail' ? us : 0);
+  const vsbOf = (x: DeviceElement | undefined, us: number): number => (x && x.kind === 'mos' && x.size.bulk === 'rail' ? us : 0);
   switch (m.kind) {
     case 'simple':
       u.a = diodeDrive(dev('ref'), i, 0);
@@ -350,6 +374,29 @@ export function guessNodes(g: GuessContext, i: number): void {
       if (m.kind === 'wilson-balanced') {
         u.z = sourceBelow(dev('bal'), i, u.x, u.x, 0, u.x);
       }
+      break;
+    }
+    case 'beta-helper': {
+      u.b = drive(dev('ref'), i, 0, 0);
+      let total = 1;
+      for (const r of ratios) total += r;
+      const helper = dev('helper');
+      const beta = helper && helper.kind === 'bjt' ? helper.dev.bf : 100;
+      u.a = u.b + drive(helper, (total * i) / beta, 0, 0);
+      u.b = drive(dev('ref'), i, 0, u.a);
+      break;
+    }
+    case 'widlar': {
+      u.a = diodeDrive(dev('ref'), i, 0);
+      const out = dev('out');
+      const r = m.degeneration ?? 0;
+      // IOUT·R + VBE_out(IOUT) = VBE_ref: bisection on IOUT (the left side rises with it).
+      let lo = 0, hi = i * (ratios[0] ?? 1) * 2;
+      for (let k = 0; k < 60; k++) {
+        const mid = 0.5 * (lo + hi);
+        if (mid * r + drive(out, mid, 0, (uOuts[0] ?? 0) - mid * r) > u.a) hi = mid; else lo = mid;
+      }
+      u.e = 0.5 * (lo + hi) * r;
       break;
     }
     case 'beta-multiplier':

@@ -20,6 +20,7 @@
  * Results snap to process.grid (W to nearest, L up), else to 4 significant digits; W below
  * wmin is raised to wmin (lengthening L at the same W/L when L is auto too).
  */
+import { isBipolarReport, isBipolarType } from '../device-types';
 import type {
   DesignTarget, DeviceParams, DeviceSize, ResolvedSpec, SpecPath, TemplateMirror,
 } from '../types';
@@ -97,6 +98,8 @@ function hasAuto(m: TemplateMirror): boolean {
 function sizeMirror(spec: ResolvedSpec, index: number, mirror: TemplateMirror, target: DesignTarget):
   { spec: ResolvedSpec; sized: SizedDevice[] } {
   const slots = collectSlots(mirror);
+  // Design targets are read for MOSFET mirrors only (the spec reader refuses them on bipolar ones).
+  if (isBipolarType(mirror.type)) throw new Error(`design targets size MOSFET mirrors; ${mirror.name} is ${mirror.type}`);
   const params = paramsOf(spec.process, mirror.type, mirror.device);
   const autoL = slots.filter((s) => s.size.auto?.l === true);
   const routOutputs = mirror.outputs
@@ -187,6 +190,7 @@ function pairRatio(m: TemplateMirror, outputIndex: number, slots: Slot[]): numbe
  *  currents and length-modulation factors settle. Mutates the slots; returns the sized spec. */
 function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots: Slot[], target: DesignTarget): ResolvedSpec {
   const proc = spec.process;
+  if (isBipolarType(m.type)) throw new Error(`design targets size MOSFET mirrors; ${m.name} is ${m.type}`);
   const params = paramsOf(proc, m.type, m.device);
   const model = MODELS[modelKindOf(params, proc.model)];
   // A table device reads its target off its own table at its length, so the context is per slot.
@@ -262,7 +266,7 @@ function sizeWidths(spec: ResolvedSpec, index: number, m: TemplateMirror, slots:
       const j = s.output ?? 0;
       const name = deviceName(m, bank, s);
       const d = ops[j]!.devices.find((x) => x.name === name);
-      if (!d) continue;
+      if (!d || isBipolarReport(d)) continue;
       s.clm = 1 + lambdaAt(params, s.size.l) * d.vds;
       s.planned = inputBranch.includes(s.role) ? iin : s.role === pairOut && !copiesRef(s) ? ratios[j] * iin : d.id;
     }
@@ -297,7 +301,7 @@ function offTargetNotes(spec: ResolvedSpec, index: number, m: TemplateMirror, sl
     if (s.size.auto?.w !== true && s.size.auto?.l !== true) continue;
     const op = ops[s.output ?? 0];
     const d = op?.converged ? op.devices.find((x) => x.name === deviceName(m, bank, s)) : undefined;
-    if (!d || (d.region === 'saturation' && d.margin >= 0)) continue;
+    if (!d || isBipolarReport(d) || (d.region === 'saturation' && d.margin >= 0)) continue;
     const got = target.kind === 'gmid' ? `gm/ID ${d.gmId.toFixed(1)} /V against the target ${target.value} /V`
       : target.kind === 'ic' ? `IC ${d.ic.toPrecision(3)} against the target ${target.value}` : `VOV ${formatSI(d.vov, 'V')} against the target ${formatSI(target.value, 'V')}`;
     const note = `ends in ${d.region} at Vout = ${formatSI(m.outputs[s.output ?? 0]!.output.v, 'V')} (${got}): no width gives it the VDS it needs`;

@@ -1,7 +1,7 @@
 /** Cascode mirror: two stacked diodes (`ref` at node a, `refc` at the input node b) drive the
  *  output pair `out` and its cascode `outc`. */
 import type { KindSpec } from './kind';
-import { cascodeRout } from './cascode-rout';
+import { bipolarCascodeRout, cascodeRout } from './cascode-rout';
 
 export const cascode: KindSpec = {
   roles: ['ref', 'refc', 'out', 'outc'],
@@ -13,6 +13,7 @@ export const cascode: KindSpec = {
   pair: { ref: 'ref', out: 'out' },
   bank: true,
   vbias: false,
-  families: ['mosfet'],
+  families: ['mosfet', 'bipolar'],
   rout: cascodeRout,
+  bipolarRout: bipolarCascodeRout,
 };

@@ -4,6 +4,7 @@
  * a compile error. Everything else that differs by kind reads this table, or switches over the
  * kind and ends in `assertNever`, so the compiler names each place a new kind must be handled.
  */
+import { betaHelper } from './beta-helper';
 import { betaMultiplier } from './beta-multiplier';
 import { cascode } from './cascode';
 import type { KindSpec } from './kind';
@@ -13,10 +14,13 @@ import { vgsResistor } from './vgs-resistor';
 import { wideSwing } from './wide-swing';
 import { wilson } from './wilson';
 import { wilsonBalanced } from './wilson-balanced';
-import type { ResolvedMirror, TemplateMirror } from '../types';
+import { widlar } from './widlar';
+import type { DeviceType, ResolvedMirror, TemplateMirror } from '../types';
+import type { DeviceFamily, RoutFormula } from './kind';
+import { isBipolarType } from '../device-types';
 
 export { MIRROR_KINDS, TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
-export type { Connection, DeviceFamily, KindSpec, ReferenceLoop, SmallSignal } from './kind';
+export type { Connection, DeviceFamily, KindSpec, ReferenceLoop, RoutContext, RoutFormula, SmallSignal } from './kind';
 
 export const KINDS = {
   simple,
@@ -24,6 +28,8 @@ export const KINDS = {
   'wide-swing': wideSwing,
   wilson,
   'wilson-balanced': wilsonBalanced,
+  'beta-helper': betaHelper,
+  widlar,
   'beta-multiplier': betaMultiplier,
   'vgs-resistor': vgsResistor,
 } satisfies Record<TemplateKind, KindSpec>;
@@ -49,4 +55,22 @@ export const REFERENCE_KINDS: readonly TemplateKind[] = TEMPLATE_KINDS.filter((k
 export function referenceRoles(kind: TemplateKind): string[] {
   const { roles, outputRoles } = KINDS[kind];
   return roles.filter((r) => !outputRoles.includes(r));
+}
+
+/** The device family of a type. */
+export function familyOf(type: DeviceType): DeviceFamily {
+  return isBipolarType(type) ? 'bipolar' : 'mosfet';
+}
+
+/** Whether a kind may be built from devices of this type. */
+export function kindTakes(kind: TemplateKind, type: DeviceType): boolean {
+  return KINDS[kind].families.includes(familyOf(type));
+}
+
+/** The kind's textbook Rout for the family of `type`, if it has one. */
+export function routFormula(kind: TemplateKind, type: DeviceType): RoutFormula | undefined {
+  const k = KINDS[kind];
+  const family = familyOf(type);
+  if (k.families[0] === family) return k.rout;
+  return family === 'bipolar' ? k.bipolarRout : undefined;
 }

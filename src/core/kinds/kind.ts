@@ -5,14 +5,16 @@
  * the circuit builder, the spec reader, sizing and the rules read the description.
  */
 
-/** Device families a kind can be built from. Every kind is MOSFET today; bipolar comes later. */
+/** Device families a kind can be built from: `mosfet` (type nmos | pmos) and `bipolar` (type
+ *  npn | pnp). A bipolar device takes the role's connections as collector (d), base (g) and
+ *  emitter (s). */
 export type DeviceFamily = 'mosfet' | 'bipolar';
 
 /**
  * Drain, gate and source of one role, on named nodes. `R` is the mirror's own rail, `T` the
- * opposite rail, `O` the output node and `C` the output's internal cascode node (both one per
- * output of a bias bank), `vbias` the held cascode gate; any other name is an internal node of
- * the shared reference. `other` marks a device of the opposite polarity (a reference's closing
+ * opposite rail (a beta helper's collector), `O` the output node and `C` the output's internal
+ * cascode node (both one per output of a bias bank), `vbias` the held cascode gate; any other
+ * name is an internal node of the shared reference. `other` marks a device of the opposite polarity (a reference's closing
  * mirror), its bulk on the opposite rail.
  */
 export interface Connection { d: string; g: string; s: string; other?: true }
@@ -35,7 +37,23 @@ export interface ReferenceLoop {
 
 /** Small-signal parameters of one device as the circuit sees them: gmb is zero for a device
  *  whose bulk is tied to its own source (the model's ∂ID/∂VBS exists, but VBS cannot move). */
-export interface SmallSignal { gm: number; gds: number; gmb: number }
+export interface SmallSignal {
+  gm: number; gds: number; gmb: number;
+  /** Bipolar devices: rπ (Ω) and β = IC/IB. */
+  rpi?: number; beta?: number;
+}
+
+/** What a formula may read beyond the devices: a Widlar's emitter resistor (Ω). */
+export interface RoutContext { degeneration?: number }
+
+/** A textbook first-order output resistance (design §4 routApprox). */
+export interface RoutFormula {
+  /** The formula as the docs print it. */
+  formula: string;
+  /** Its value from the devices' small-signal parameters by role; NaN or undefined when a
+   *  device is missing. */
+  value(byRole: Readonly<Record<string, SmallSignal | undefined>>, ctx: RoutContext): number | undefined;
+}
 
 /** ro of a device, NaN when it is missing or has no output conductance. */
 export function ro(d: SmallSignal | undefined): number {
@@ -65,14 +83,12 @@ export interface KindSpec {
   bank: boolean;
   /** Takes `vbias:` (a cascode gate held at a bias voltage, picked by qpoint when absent). */
   vbias: boolean;
-  /** Device families the kind may be built from. */
+  /** Device families the kind may be built from, the first the one `rout` is written for. */
   families: readonly DeviceFamily[];
-  /** The textbook first-order output resistance (design §4 routApprox). */
-  rout: {
-    /** The formula as the docs print it. */
-    formula: string;
-    /** Its value from the devices' small-signal parameters by role; NaN or undefined when a
-     *  device is missing. */
-    value(byRole: Readonly<Record<string, SmallSignal | undefined>>): number | undefined;
-  };
+  /** The textbook first-order output resistance of the kind built from `families[0]`. */
+  rout: RoutFormula;
+  /** The bipolar form, for a kind of both families (β·ro/2 where the MOSFET's is gm·ro²). */
+  bipolarRout?: RoutFormula;
+  /** A resistor `degeneration:` (Ω, a key of the mirror) from this node to the rail. */
+  degeneration?: string;
 }

@@ -1,6 +1,6 @@
 /** Simple mirror: `ref` diode-connected on the input node, `out` on its gate. */
 import type { KindSpec } from './kind';
-import { singleRout } from './single-rout';
+import { bipolarSingleRout, singleRout } from './single-rout';
 
 export const simple: KindSpec = {
   roles: ['ref', 'out'],
@@ -12,6 +12,7 @@ export const simple: KindSpec = {
   pair: { ref: 'ref', out: 'out' },
   bank: true,
   vbias: false,
-  families: ['mosfet'],
+  families: ['mosfet', 'bipolar'],
   rout: singleRout,
+  bipolarRout: bipolarSingleRout,
 };

@@ -17,7 +17,7 @@
  * every gm·ro ≫ 1. With `bulk: source` on `bal` the factor is 1.
  */
 import type { KindSpec } from './kind';
-import { wilsonRout } from './wilson';
+import { bipolarWilsonRout, wilsonRout } from './wilson';
 
 export const wilsonBalanced: KindSpec = {
   roles: ['in', 'diode', 'out', 'bal'],
@@ -29,7 +29,8 @@ export const wilsonBalanced: KindSpec = {
   pair: { ref: 'in', out: 'diode' },
   bank: false,
   vbias: false,
-  families: ['mosfet'],
+  families: ['mosfet', 'bipolar'],
+  bipolarRout: bipolarWilsonRout,
   rout: {
     formula: 'gm_out·ro_out·ro_in·gm_in·(1 + gmb_bal/gm_bal)/gm_diode',
     value: ({ out, in: inDev, diode, bal }) =>

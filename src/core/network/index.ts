@@ -10,7 +10,7 @@
  */
 import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
 import { solveMirror } from '../analysis/solve';
-import { currentNodes, deviceMismatchDerivatives, deviceSigmas } from '../circuit/elements/device';
+import { deviceMismatchCurrents, deviceSigmas } from '../circuit/elements/device';
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
@@ -113,8 +113,6 @@ export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIn
   return { mc: j.mc, draw };
 }
 
-const der = new Float64Array(2);
-
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
  *  row given as (column, value index) pairs). */
 function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[]): Float64Array | undefined {
@@ -129,15 +127,15 @@ function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[]): Float64Array 
  *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
  *  network). */
 function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], lam: Float64Array, d: number, iout: number): [number, number] {
-  const dev = c.devices[d]!;
-  deviceMismatchDerivatives(dev, ws.v, ws.ch, der);
-  const [from, to] = currentNodes(dev);
-  let w = 0;
-  if (from === c.outNode) w += 1;
-  if (to === c.outNode) w -= 1;
-  if (from < ws.n) w -= lam[from]!;
-  if (to < ws.n) w += lam[to]!;
-  return [c.outSign * w * der[0]! / iout, c.outSign * w * der[1]! / iout];
+  let w1 = 0, w2 = 0;
+  // Summed over the nodes the device's currents leave (a bipolar device: its base too).
+  deviceMismatchCurrents(c.devices[d]!, ws.v, ws.ch, (node, d1, d2) => {
+    let w = 0;
+    if (node === c.outNode) w += 1;
+    if (node < ws.n) w -= lam[node]!;
+    w1 += w * d1; w2 += w * d2;
+  });
+  return [c.outSign * w1 / iout, c.outSign * w2 / iout];
 }
 
 /** The network's figures at the joint solution (design §9.3). */

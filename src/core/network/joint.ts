@@ -5,10 +5,12 @@
  * circuit/ for a big group — from a starting guess built leaf to root with each kind's own guess.
  */
 import { KINDS } from '../kinds/index';
-import { CircuitBuilder, type MosInstance } from '../circuit/circuit';
+import { CircuitBuilder } from '../circuit/circuit';
+import type { DeviceElement } from '../circuit/elements/element';
+import { mainCurrent, polaritySign } from '../device-types';
 import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
 import { resistorCurrent } from '../circuit/elements/resistor';
-import { channelCurrent, deviceReport } from '../circuit/elements/device';
+import { channelCurrent, currentNodes, deviceReport } from '../circuit/elements/device';
 import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
@@ -66,7 +68,7 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       ...(inputNode ? { inputNode } : {}),
       outNode: (j) => fedBy.get(key(i, j)),
     });
-    const sign: 1 | -1 = m.type === 'pmos' ? -1 : 1;
+    const sign = polaritySign(m.type);
     members.push({ mirror: m, index: i, ns, wired, first, sign });
     first += wired.deviceNames.length;
     wired.outNodes.forEach((n, j) => {
@@ -74,7 +76,7 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       if (pick && !fedBy.has(key(i, j))) { measured = n; measuredSign = sign; }
     });
   }
-  const rootSign: 1 | -1 = g.root.type === 'pmos' ? -1 : 1;
+  const rootSign = polaritySign(g.root.type);
   const c = b.build(measured ?? 'vss', measuredSign, vss, vdd);
   const ws = makeWorkspace(c);
   const index = new Map(c.nodeNames.map((n, k) => [n, k] as const));
@@ -84,7 +86,7 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       const k = index.get(n)!;
       (fedBy.has(key(mem.index, j)) ? linkNode : leafNode).set(key(mem.index, j), k);
       const devs: number[] = [];
-      for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) if (c.devices[d]!.d === k) devs.push(d);
+      for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) if (currentNodes(c.devices[d]!)[0] === k) devs.push(d);
       outDevices.set(key(mem.index, j), devs);
     });
   }
@@ -121,7 +123,7 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
 export function outputCurrentOf(j: JointCircuit, k: string): number {
   const v = j.mc.ws.v;
   let sum = 0;
-  for (const d of j.outDevices.get(k) ?? []) sum += deviceReport(j.mc.circuit.devices[d]!, v).id;
+  for (const d of j.outDevices.get(k) ?? []) sum += mainCurrent(deviceReport(j.mc.circuit.devices[d]!, v));
   return sum;
 }
 
@@ -129,7 +131,7 @@ export function outputCurrentOf(j: JointCircuit, k: string): number {
  *  the fed mirror's input node, whose guess is known by the time its feeding mirror is guessed. */
 function jointGuess(
   spec: ResolvedSpec, g: NetworkGroup, members: JointMember[], names: string[], index: Map<string, number>,
-  fixedV: Float64Array, nFree: number, v: Float64Array, devices: MosInstance[] | readonly unknown[],
+  fixedV: Float64Array, nFree: number, v: Float64Array, devices: DeviceElement[] | readonly unknown[],
 ): void {
   const { vdd, vss } = spec.supplies;
   const span = vdd - vss;
@@ -151,8 +153,8 @@ function jointGuess(
     const mem = members[n]!;
     const m = mem.mirror;
     const rail = mem.sign > 0 ? vss : vdd;
-    const devByName = new Map<string, MosInstance>();
-    mem.wired.deviceNames.forEach((local, d) => devByName.set(local, devices[mem.first + d] as MosInstance));
+    const devByName = new Map<string, DeviceElement>();
+    mem.wired.deviceNames.forEach((local, d) => devByName.set(local, devices[mem.first + d] as DeviceElement));
     const uOuts = mem.wired.outNodes.map((nm) => {
       const k = index.get(nm)!;
       const abs = k >= nFree ? fixedV[k]! : Number.isFinite(v[k]!) ? v[k]! : rail + mem.sign * 0.5 * span;

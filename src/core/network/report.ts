@@ -11,6 +11,7 @@ import type { MirrorReport, NetworkReport, ResolvedSpec, TemplateMirror } from '
 import { idealRatio } from '../circuit/templates';
 import { mirrorAt } from '../mirror-at';
 import { key } from './joint';
+import { sinksCurrent } from '../device-types';
 
 export interface NetworkFigures { reports: MirrorReport[]; networks: NetworkReport[] }
 
@@ -53,7 +54,7 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
           if (fed) r.feeds = fed.name;
           if (solved?.v !== undefined) {
             r.linkV = solved.v;
-            if (Number.isFinite(r.compliance) && !r.noCompliance) r.headroom = m.type === 'nmos' ? solved.v - r.compliance : r.compliance - solved.v;
+            if (Number.isFinite(r.compliance) && !r.noCompliance) r.headroom = sinksCurrent(m.type) ? solved.v - r.compliance : r.compliance - solved.v;
           }
           const up = chainIn.get(i) ?? 0;
           if (r.sigma !== undefined && Number.isFinite(up)) r.chainSigma = Math.sqrt(up * up + r.sigma * r.sigma);

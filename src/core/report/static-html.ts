@@ -6,8 +6,9 @@
  * hash of the input, so a reviewer knows what it is a report of. The live panel's script, when
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
-import type { DeviceReport, FileReport, Finding, MirrorReport } from '../types';
+import type { BipolarDeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
 import { ZERO_CELSIUS } from '../defaults';
+import { isBipolarReport, isBipolarSplit, sinksCurrent } from '../device-types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
 import { referenceText } from './text';
@@ -57,13 +58,14 @@ function summaryRows(m: MirrorReport): string[][] {
   if (m.ratio !== undefined) rows.push(['Ratio', m.ratioIdeal !== undefined ? `${plain(m.ratio)} (ideal ${plain(m.ratioIdeal)})` : plain(m.ratio)]);
   if (m.error !== undefined) {
     const s = m.errorSplit;
-    const split = s ? ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})` : '';
+    const split = !s ? '' : isBipolarSplit(s) ? ` (base current ${pct(s.base, true)}, VCE ${pct(s.vce, true)}, geometry ${pct(s.geometry, true)})`
+      : ` (VDS ${pct(s.vds, true)}, body ${pct(s.body, true)}${s.gate !== undefined ? `, gate ${pct(s.gate, true)}` : ''}, geometry ${pct(s.geometry, true)})`;
     rows.push(['Error', `${pct(m.error, true)}${split}`]);
   }
   if (m.reference) rows.push(['Reference', esc(referenceText(m.reference, (v, u) => si(v, u, 4)).replace(/^reference /, ''))]);
   rows.push(['Rout', m.routApprox !== undefined ? `${si(m.rout, 'Ω')} (textbook ${si(m.routApprox, 'Ω')})` : si(m.rout, 'Ω')]);
   rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
-    : `${si(m.compliance, 'V', 4)} (${m.type === 'nmos' ? 'works down to' : 'works up to'})`]);
+    : `${si(m.compliance, 'V', 4)} (${sinksCurrent(m.type) ? 'works down to' : 'works up to'})`]);
   if (m.sigma !== undefined) rows.push(['σ(Iout)', `${pct(m.sigma)} (Pelgrom, 1σ)`]);
   if (m.supplySensitivity !== undefined) rows.push(['Supply sensitivity', `${plain(m.supplySensitivity, 3)} ((vdd/Iout)·∂Iout/∂vdd)`]);
   if (m.tc !== undefined) rows.push(['Temperature coefficient', `${ppm(m.tc)}${m.tcBox !== undefined ? ` (box ${ppm(m.tcBox)} over process.trange)` : ''}`]);
@@ -84,7 +86,15 @@ function summaryRows(m: MirrorReport): string[][] {
   return rows.map(([k, v]) => [esc(k), v]);
 }
 
-function deviceRow(d: DeviceReport): string[] {
+function bipolarRow(d: BipolarDeviceReport): string[] {
+  return [
+    esc(d.name), `${+d.area.toPrecision(4)}·${d.m}`, si(d.ic, 'A'), si(d.ib, 'A'), si(d.vbe, 'V'), si(d.vce, 'V'),
+    `<span class="${d.margin < 0 ? 'bad' : ''}">${d.margin >= 0 ? '+' : ''}${si(d.margin, 'V')}</span>`,
+    `<span class="${d.region === 'forward-active' ? '' : 'bad'}">${d.region}</span>`, plain(d.beta, 4), si(d.gm, 'S'), si(d.rpi, 'Ω'), si(d.ro, 'Ω'),
+  ];
+}
+
+function deviceRow(d: MosDeviceReport): string[] {
   return [
     esc(d.name), `${si(d.w, 'm')}/${si(d.l, 'm')}·${d.m}${d.sized ? '*' : ''}`, si(d.id, 'A'), si(d.vgs, 'V'), si(d.vds, 'V'),
     si(d.vdsat, 'V'), `<span class="${d.margin < 0 ? 'bad' : ''}">${d.margin >= 0 ? '+' : ''}${si(d.margin, 'V')}</span>`,
@@ -100,7 +110,11 @@ function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schemati
   if (!m.beyondRails) {
     const figures = table(`Figures of ${m.name}`, ['Figure', 'Value'], summaryRows(m), 'figures');
     out.push(schematic ? `<div class="figures-schematic">${figures}<figure class="schematic-figure">${schematicSvg(schematic)}<figcaption>Schematic of ${esc(m.name)} at its operating point</figcaption></figure></div>` : figures);
-    out.push(table(`Devices of ${m.name}`, ['Device', 'W/L·m', 'ID', 'VGS', 'VDS', 'VDSsat', 'Margin', 'Region', 'gm/ID', 'IC', 'ro'], m.devices.map(deviceRow), 'devices'));
+    const mos = m.devices.filter((d): d is MosDeviceReport => !isBipolarReport(d));
+    const bjt = m.devices.filter(isBipolarReport);
+    const pnp = m.devices.some((d) => d.type === 'pnp');
+    if (mos.length > 0 || bjt.length === 0) out.push(table(`Devices of ${m.name}`, ['Device', 'W/L·m', 'ID', 'VGS', 'VDS', 'VDSsat', 'Margin', 'Region', 'gm/ID', 'IC', 'ro'], mos.map(deviceRow), 'devices'));
+    if (bjt.length > 0) out.push(table(`${mos.length > 0 ? 'Bipolar devices' : 'Devices'} of ${m.name}`, ['Device', 'Area·m', 'IC', 'IB', pnp ? 'VEB' : 'VBE', pnp ? 'VEC' : 'VCE', 'Margin', 'Region', 'β', 'gm', 'rπ', 'ro'], bjt.map(bipolarRow), 'devices'));
   }
   const own = findings.filter((f) => f.message.startsWith(`${m.name}: `) || f.message.startsWith(`${m.mirror}: `));
   if (own.length > 0) out.push(findingsTable(m.name, own));

@@ -4,7 +4,8 @@
  * annotators link to). Every line passes through `escapeControls`: titles, names and messages
  * are the spec's text, and a YAML escape can put ESC, BEL or CR in them.
  */
-import type { DeviceReport, FileReport, Finding, MirrorReport, NetworkReport, ReferenceReport } from '../types';
+import type { BipolarDeviceReport, DeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport, NetworkReport, ReferenceReport } from '../types';
+import { isBipolarReport } from '../device-types';
 import { escapeControls, formatPercent, formatSI, formatSignedPercent } from '../text/format';
 
 export function findingLine(file: string, f: Finding): string {
@@ -138,7 +139,32 @@ function deviceTable(devices: DeviceReport[]): string[] {
   return lines;
 }
 
+/** Bipolar devices get their own table, with their own quantities (VEB, VEC for a PNP). */
+const BIPOLAR_COLUMNS: [string, number][] = [
+  ['device', 10], ['area·m', 9], ['IC', 9], ['IB', 9], ['VBE', 9], ['VCE', 9],
+  ['margin', 10], ['region', 9], ['beta', 7], ['gm', 9], ['ro', 9],
+];
+
 function formatTable(devices: DeviceReport[]): string[] {
+  const mos = devices.filter((d): d is MosDeviceReport => !isBipolarReport(d));
+  const bjt = devices.filter(isBipolarReport);
+  return [...(mos.length > 0 || bjt.length === 0 ? formatMosTable(mos) : []), ...(bjt.length > 0 ? formatBipolarTable(bjt) : [])];
+}
+
+function formatBipolarTable(devices: BipolarDeviceReport[]): string[] {
+  const rows = devices.map((d) => [
+    d.name, `${+d.area.toPrecision(4)}·${d.m}`,
+    si(d.ic, 'A'), si(d.ib, 'A'), si(d.vbe, 'V'), si(d.vce, 'V'),
+    (d.margin >= 0 ? '+' : '') + si(d.margin, 'V'),
+    d.region === 'forward-active' ? 'active' : d.region,
+    d.beta.toFixed(1), si(d.gm, 'S'), si(d.ro, 'Ω'),
+  ]);
+  const widths = BIPOLAR_COLUMNS.map(([title, w], i) => Math.max(w, title.length + 1, ...rows.map((r) => r[i].length + 1)));
+  const fmt = (cells: string[]) => '  ' + cells.map((c, i) => c.padEnd(widths[i])).join('').trimEnd();
+  return [fmt(BIPOLAR_COLUMNS.map((c) => c[0])), ...rows.map(fmt)];
+}
+
+function formatMosTable(devices: MosDeviceReport[]): string[] {
   const rows = devices.map((d) => [
     d.name,
     `${si(d.w, '')}/${si(d.l, '')}·${d.m}${d.sized ? '*' : ''}`,

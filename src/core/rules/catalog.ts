@@ -29,6 +29,12 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Lower the overdrive by widening the mirror (every device by the same factor, so the ratios hold), or move the output voltage away from the rail. The quick fix widens to restore limits.margin.',
   },
   {
+    code: 'not-forward-active', severity: 'error',
+    summary: 'A bipolar device is saturated (VCE below process vcesat) or cut off at the nominal output voltage.',
+    why: 'A bipolar mirror copies its current only while every device is forward-active; a saturated device takes base current and its collector current follows VCE.',
+    fix: 'Give the collector more voltage: move the output voltage away from the rail, or use a kind with fewer VBE in the output stack. No size restores it, so no quick fix is offered.',
+  },
+  {
     code: 'low-margin', severity: 'warning',
     summary: 'A device is saturated but its margin VDS − VDSsat is below limits.margin.',
     why: 'A small margin is eaten by process, temperature and supply variation; the device slips into triode at a corner.',

@@ -23,7 +23,7 @@ import { indexOf } from '../mirror-at';
 import { MODELS, WEAK_INVERSION_MODEL } from '../models/registry';
 
 /** Mirrors with `auto` sizes are sized by the design-target pass first; their fixes come from it. */
-function fixable(rc: RuleContext, mirrorIndex: number): boolean {
+export function fixable(rc: RuleContext, mirrorIndex: number): boolean {
   return !isAutoSized(rc.spec, mirrorIndex);
 }
 
@@ -39,14 +39,14 @@ function scaleChanges(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number; 
   return out;
 }
 
-function plan(mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
+export function plan(mirrorIndex: number, title: string, edits: TextEdit[] | undefined, family: string): FixPlan | undefined {
   return edits && edits.length > 0 ? { title, edits, scope: 'mirror', mirrorIndex, family } : undefined;
 }
 
 /** A lazily built fix: solvers run when the generator advances, edits when `build` is called. */
 export interface Candidate { family: string; build: () => FixPlan | undefined }
 
-function candidate(family: string, build: () => FixPlan | undefined): Candidate {
+export function candidate(family: string, build: () => FixPlan | undefined): Candidate {
   return { family, build };
 }
 
@@ -107,7 +107,7 @@ export function* areaPlans(rc: RuleContext, site: Site, target: number): Generat
 }
 
 /** Set sizes of some devices (overrides where a shared token cannot change), plus extra keys. */
-function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: KeyInsert[], title: (notes: string) => string, family: string): FixPlan | undefined {
+export function devicePlan(rc: RuleContext, site: Site, changes: SizeChange[], extra: KeyInsert[], title: (notes: string) => string, family: string): FixPlan | undefined {
   const p = planSizeEdits(rc.parsed, rc.spec, changes, rc.json, rc.file, rc.fragments);
   if (!p) return undefined;
   let edits = p.edits;
@@ -264,7 +264,7 @@ function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
 }
 
 /** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
-function quotedLike(token: string, word: string): string {
+export function quotedLike(token: string, word: string): string {
   const q = token.trim()[0];
   return q === '"' || q === "'" ? `${q}${word}${q}` : word;
 }

@@ -10,6 +10,7 @@ import type {
   ResolvedSpec, SpecPath,
 } from '../types';
 import { KINDS } from '../kinds/index';
+import { sinksCurrent } from '../device-types';
 import type { ParsedSpec } from '../spec/index';
 import type { DeviceRef, SizeKey } from '../sizing/devices';
 import { mirrorAt } from '../mirror-at';
@@ -169,7 +170,7 @@ export function cornerRange(parsed: ParsedSpec, corner: CornerSpec): Range {
 /** The output-voltage limit the mirror must still work at (absolute V), from require.compliance
  *  and the far end of output.range: NMOS the lowest of them, PMOS the highest. */
 export function complianceLimit(site: Site): number | undefined {
-  const nmos = site.mirror.type === 'nmos';
+  const nmos = sinksCurrent(site.mirror.type);
   const candidates: number[] = [];
   if (site.require.compliance !== undefined) candidates.push(site.require.compliance);
   if (site.range) candidates.push(nmos ? site.range[0] : site.range[1]);
@@ -180,5 +181,5 @@ export function complianceLimit(site: Site): number | undefined {
 /** Whether a compliance value fails the limit (NMOS: must reach down to it, PMOS: up to it). */
 export function complianceFails(site: Site, compliance: number, limit: number): boolean {
   if (!Number.isFinite(compliance)) return true;
-  return site.mirror.type === 'nmos' ? compliance > limit : compliance < limit;
+  return sinksCurrent(site.mirror.type) ? compliance > limit : compliance < limit;
 }

@@ -20,12 +20,13 @@ export interface ChangeNote { key: string; from?: string; to: string }
 
 export interface SizePlan { edits: TextEdit[]; notes: ChangeNote[] }
 
-const UNIT: Record<SizeKey, string> = { w: 'm', l: 'm', m: '' };
+const UNIT: Record<SizeKey, string> = { w: 'm', l: 'm', m: '', area: '' };
 
 export function formatValue(key: SizeKey | 'v', value: number, token: string | undefined, json: boolean): string {
   const unit = key === 'v' ? 'V' : UNIT[key];
   const style = token !== undefined ? readStyle(token, unit) : insertedStyle(json);
   if (key === 'm') return writeLike(Math.round(value), { ...style, prefixed: false });
+  if (key === 'area') return writeLike(value, { ...style, prefixed: false });
   return writeLike(value, style);
 }
 
@@ -40,7 +41,7 @@ export function planSizeEdits(parsed: ParsedSpec, spec: ResolvedSpec, changes: S
   for (const c of changes) {
     const current = sizeOf(spec, c.ref);
     if (!current) return undefined;
-    if (close(current[c.key], c.value)) continue;
+    if (close(current[c.key] ?? 1, c.value)) continue;
     const tok = sizeToken(parsed, spec, c.ref, c.key);
     const own = overridePath(spec, c.ref);
     if (tok) {

@@ -6,6 +6,7 @@
  * fix verified by the square law down there is verified by numbers that are not true, so it is
  * not offered; the designer is pointed at `model: ekv` or a smaller step instead.
  */
+import { isBipolarReport } from '../device-types';
 import type { DeviceReport, MirrorReport } from '../types';
 
 /** IC below which the square law is not trusted (the square-law-weak-inversion finding's bound). */
@@ -23,9 +24,10 @@ export function untrustedMove(before: readonly MirrorReport[], after: readonly M
   for (const r of after) {
     if (!r.converged) continue;
     for (const d of r.devices) {
-      // A start-up element is meant to sit near cutoff at the operating point: its figure there
-      // is the start-up check's, not a square-law operating point.
-      if (d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
+      // A bipolar device's `ic` is its collector current, and its model holds at any current. A
+      // start-up element is meant to sit near cutoff at the operating point: its figure there is
+      // the start-up check's, not a square-law operating point.
+      if (isBipolarReport(d) || d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
       const ic = was.get(`${r.path.join('/')}|${d.name}`);
       if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
     }

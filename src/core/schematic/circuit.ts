@@ -77,8 +77,8 @@ function figuresOf(d: DeviceReport, si: SI): Figures {
   const x = d as unknown as Partial<Record<'id' | 'ic' | 'vgs' | 'vbe' | 'vds' | 'vce' | 'vdsat' | 'vcesat' | 'w' | 'l' | 'area', number>>;
   const num = (v: number | undefined): number => v ?? NaN;
   if (isBipolar(symbolOf(d))) {
-    // An emitter area (m²) reads in µm², as layouts give it: an SI prefix would scale m, not m².
-    const size = x.area !== undefined ? `${formatPlain(x.area * 1e12)} µm²·${d.m}` : `·${d.m}`;
+    // The emitter area is a multiple of the process's unit device (design §10), as area·m.
+    const size = x.area !== undefined ? `${formatPlain(x.area)}·${d.m}` : `·${d.m}`;
     return { i: num(x.ic), vc: num(x.vbe), vo: num(x.vce), vsat: num(x.vcesat), size, good: 'forward-active', goodWord: 'forward-active', names: ['IC', 'VBE', 'VCE', 'VCEsat'] };
   }
   return { i: num(x.id), vc: num(x.vgs), vo: num(x.vds), vsat: num(x.vdsat), size: `${si(num(x.w), 'm')}/${si(num(x.l), 'm')}·${d.m}`,
@@ -133,12 +133,19 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
   if (isTemplateKind(m.kind)) {
     const kind = KINDS[m.kind];
     const prefix = m.output !== undefined && m.name.endsWith(`.${m.output}`) && m.devices.some((d) => d.name.startsWith(`${m.output}.`)) ? `${m.output}.` : '';
-    // `S` and `T` name the opposite supply in kinds that reach it (a helper's collector, a
-    // reference's closing mirror).
-    const map = (n: string): string => (n === 'R' ? top : n === 'S' || n === 'T' ? far : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
+    // `T` names the opposite supply in kinds that reach it (a helper's collector, a reference's
+    // closing mirror).
+    const map = (n: string): string => (n === 'R' ? top : n === 'T' ? far : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
     for (const d of m.devices) {
       const conn = kind.reference[d.role] ?? kind.output[d.role] ?? (d.role === 'startup' ? kind.loop?.startup : undefined);
       if (conn) addDevice(d, { d: map(conn.d), g: map(conn.g), s: map(conn.s) });
+    }
+    if (kind.degeneration !== undefined && wiring?.degeneration !== undefined) {
+      // The emitter resistor hangs between its node and the mirror's rail, the rail at the bottom
+      // for n-type mirrors.
+      const e = net(map(kind.degeneration));
+      const [hi, lo] = pType ? [net(top), e] : [e, net(top)];
+      parts.push({ id: 'res:degeneration', symbol: 'res', pins: [{ side: 'top', net: hi }, { side: 'bottom', net: lo }], lines: ['RE', si(wiring.degeneration, 'Ω')] });
     }
     // A reference's loop resistors, drawn between their nodes, higher voltage on top.
     for (const [name, ends] of Object.entries(kind.loop?.resistors ?? {})) {

@@ -2,6 +2,7 @@
  * Devices of a resolved mirror addressed by role (and output, in a bias bank), and modified
  * copies of a spec with some devices resized — what every sizing solver evaluates.
  */
+import { isBipolarDevice } from '../device-types';
 import type { DeviceSize, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { measureMirror, solveAt, type MirrorContext, type OperatingPoint } from '../analysis/index';
 import { mirrorAt, withMirrorAt } from '../mirror-at';
@@ -9,7 +10,8 @@ import { mirrorAt, withMirrorAt } from '../mirror-at';
 /** One device of a mirror: a role (of output `output` for output roles), or a netlist device name. */
 export interface DeviceRef { mirror: number; role: string; output?: number }
 
-export type SizeKey = 'w' | 'l' | 'm';
+/** A written size key: MOSFET w, l; bipolar area; m for both. */
+export type SizeKey = 'w' | 'l' | 'm' | 'area';
 
 /** Every device of a mirror (all outputs of a bank). */
 export function allDevices(spec: ResolvedSpec, mirrorIndex: number): DeviceRef[] {
@@ -31,6 +33,7 @@ export function sizeOf(spec: ResolvedSpec, ref: DeviceRef): DeviceSize | undefin
   if (!m) return undefined;
   if (m.kind === 'netlist') {
     const d = m.devices.find((x) => x.name === ref.role);
+    if (d && isBipolarDevice(d)) return { w: 0, l: 0, m: d.m, bulk: 'rail', area: d.area };
     return d ? { w: d.w, l: d.l, m: d.m, bulk: 'rail' } : undefined;
   }
   if (ref.output !== undefined) return m.outputs[ref.output]?.devices[ref.role];
@@ -46,6 +49,10 @@ export function resized(spec: ResolvedSpec, mirrorIndex: number, change: (ref: D
     next = {
       ...m,
       devices: m.devices.map((d) => {
+        if (isBipolarDevice(d)) {
+          const s = change({ mirror: mirrorIndex, role: d.name }, { w: 0, l: 0, m: d.m, bulk: 'rail', area: d.area });
+          return s ? { ...d, area: s.area ?? d.area, m: s.m } : d;
+        }
         const s = change({ mirror: mirrorIndex, role: d.name }, { w: d.w, l: d.l, m: d.m, bulk: 'rail' });
         return s ? { ...d, w: s.w, l: s.l, m: s.m } : d;
       }),

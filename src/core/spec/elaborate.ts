@@ -3,8 +3,11 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
+import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
+import { DEFAULTS } from '../defaults';
+import { DEVICE_TYPES, isBipolarType } from '../device-types';
+import { familyOf, KINDS } from '../kinds/index';
 import { readAnalysis } from './drift';
-import type { DeviceParams, Polarity, ProcessSpec, ResolvedMirror, ResolvedSpec, SpecPath } from '../types';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
@@ -29,7 +32,7 @@ export interface ElaborateReuse {
 
 /** A mirror's `device:` (a flavour of `process.devices` of the mirror's type): its name, undefined
  *  when not given, null when it names no such flavour (a finding says so). */
-function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: Polarity): string | null | undefined {
+function readFlavour(sink: FindingSink, raw: unknown, path: SpecPath, proc: ProcessRead | undefined, type: DeviceType): string | null | undefined {
   if (raw === undefined) return undefined;
   const name = readString(sink, raw, path);
   if (name === undefined) return null;
@@ -67,7 +70,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
   const limits = readLimits(scope, data.limits);
 
   const mirrors: ResolvedMirror[] = [];
-  const used = new Map<Polarity, string>();  // polarity → first mirror using it
+  const used = new Map<DeviceType, string>();  // device type → first mirror using it
   if (data.mirrors === undefined) missing(sink, [], 'mirrors', ' (the list of current mirrors)');
   const list = data.mirrors === undefined ? [] : Array.isArray(data.mirrors) ? data.mirrors : undefined;
   if (!list) sink.error('wrong-type', `\`mirrors\` must be a list; got ${typeName(data.mirrors)}`, ['mirrors'], undefined, 'type');
@@ -91,8 +94,8 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     if (m.kind === undefined) missing(sink, path, 'kind', ` (one of ${MIRROR_KINDS.join(', ')})`);
     const name = m.name === undefined ? undefined : readString(sink, m.name, [...path, 'name']);
     const kind = m.kind === undefined ? undefined : readEnum<MirrorKind>(sink, m.kind, [...path, 'kind'], MIRROR_KINDS);
-    if (m.type === undefined && kind !== 'netlist') missing(sink, path, 'type', ' (nmos or pmos)');
-    const type = m.type === undefined ? undefined : readEnum<Polarity>(sink, m.type, [...path, 'type'], ['nmos', 'pmos']);
+    if (m.type === undefined && kind !== 'netlist') missing(sink, path, 'type', ' (nmos, pmos, npn or pnp)');
+    const type = m.type === undefined ? undefined : readEnum<DeviceType>(sink, m.type, [...path, 'type'], DEVICE_TYPES);
     if (name !== undefined) {
       const first = names.get(name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
@@ -108,10 +111,17 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       return;
     }
     if (!type) return;
+    const families = KINDS[kind].families;
+    if (!families.includes(familyOf(type))) {
+      const types = families.flatMap((f) => (f === 'bipolar' ? ['npn', 'pnp'] : ['nmos', 'pmos']));
+      sink.error('bad-value', `a ${kind} mirror is built from ${families.join(' or ')} devices: \`type\` is one of ${types.join(', ')}; got ${type}`, [...path, 'type']);
+      return;
+    }
     const flavour = readFlavour(sink, m.device, [...path, 'device'], proc, type);
     if (flavour === null) return;
     if (!flavour && !used.has(type)) used.set(type, name);
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, flavour ? proc?.devices?.[flavour]?.params : proc?.[type], supplies, (j) => fed.has(`${i}:${j}`));
+    const params = flavour ? proc?.devices?.[flavour]?.params : type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined;
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, params, supplies, (j) => fed.has(`${i}:${j}`));
     if (tm && flavour) tm.device = flavour;
     if (tm) mirrors.push(tm);
   });
@@ -125,15 +135,22 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     for (const [type, mirror] of used) {
       if (!proc.written.has(type)) missing(sink, ['process'], type, ` (mirror \`${mirror}\` uses ${type} devices)`);
     }
+    // A spec of bipolar devices only needs no MOSFET parameters: a placeholder nothing reads.
+    const bipolarOnly = !proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0
+      && (proc.written.has('npn') || proc.written.has('pnp')) && ![...used.keys()].some((t) => !isBipolarType(t));
     const anyFlavour = proc.devices ? Object.values(proc.devices)[0]?.params : undefined;
-    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos ?? anyFlavour);
-    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos ?? anyFlavour);
-    if (!proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
-    if (nmos && pmos && proc.ok) {
+    const placeholder: DeviceParams | undefined = anyFlavour ?? (bipolarOnly ? { kp: 1e-4, vt0: 0.5, ...DEFAULTS.device } : undefined);
+    const nmos: DeviceParams | undefined = proc.nmos ?? (used.has('nmos') ? undefined : proc.pmos ?? placeholder);
+    const pmos: DeviceParams | undefined = proc.pmos ?? (used.has('pmos') ? undefined : proc.nmos ?? placeholder);
+    if (!proc.written.has('nmos') && !proc.written.has('pmos') && proc.flavourNames.size === 0 && !bipolarOnly) missing(sink, ['process'], 'nmos', ' (device parameters: kp, vt0, …)');
+    const bipolarReady = (['npn', 'pnp'] as const).every((t) => !used.has(t) || proc[t] !== undefined);
+    if (nmos && pmos && proc.ok && bipolarReady) {
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
       if (proc.devices) process.devices = proc.devices;
       if (proc.grid !== undefined) process.grid = proc.grid;
       if (proc.trange !== undefined) process.trange = proc.trange;
+      if (proc.npn) process.npn = proc.npn;
+      if (proc.pnp) process.pnp = proc.pnp;
     }
   }
   const corners = data.corners === undefined ? [] : readCorners(scope, data.corners, process, supplies);

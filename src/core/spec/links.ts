@@ -6,6 +6,7 @@
  * itself (`link-cycle`). A mirror fed by a mirror that has errors waits for them (`link-upstream`).
  * A linked output's written `output.v` is not used (`link-output-v`).
  */
+import { isDeviceType, sinksCurrent } from '../device-types';
 import type { LinkInput, ResolvedMirror, TemplateMirror } from '../types';
 import { isRecord } from './params';
 import type { FindingSink } from './findings';
@@ -62,8 +63,9 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
       continue;
     }
     const upType = r.link.target.type;
-    if (upType === m.type) {
-      const role = m.type === 'nmos' ? 'sinks' : 'sources';
+    // An NPN output sinks like an NMOS one: polarity is the side of the supply, not the family.
+    if (upType !== undefined && isDeviceType(upType) && sinksCurrent(upType) === sinksCurrent(m.type)) {
+      const role = sinksCurrent(m.type) ? 'sinks' : 'sources';
       sink.error('link-polarity', `\`${link.from}\` is a ${upType} output: it ${role} current, as this ${m.type} mirror's input does; a link joins an output to an input of the other polarity`, fromPath(m));
       bad.add(i);
       continue;

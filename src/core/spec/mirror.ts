@@ -1,13 +1,14 @@
 /** One template mirror (any kind of src/core/kinds/) → TemplateMirror. */
 import { BANK_KINDS, KINDS, REFERENCE_KINDS, VBIAS_KINDS, type TemplateKind } from '../kinds/index';
-import type { DesignTarget, DeviceParams, DeviceSize, InputSource, MirrorOutput, OutputSpec, Polarity,
+import type { DesignTarget, DeviceParams, DeviceSize, DeviceType, InputSource, MirrorOutput, OutputSpec,
   Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
+import { isBipolarType } from '../device-types';
 import { formatSI } from '../text/format';
 import { readFilter, readResistorDrift } from './drift';
 import { isRecord } from './params';
 import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';
-import { buildSize, readSizeLayer } from './sizes';
+import { buildBipolarSize, buildSize, readSizeLayer } from './sizes';
 import type { SizeContext, SizeLayer } from './sizes';
 import { askIf, suggestion } from './suggest';
 import { resolveNumber, typeName } from './values';
@@ -139,7 +140,7 @@ function completeOutput(scope: ValueScope, own: Partial<OutputSpec> | undefined,
   return out;
 }
 
-export interface MirrorHeader { name: string; kind: TemplateKind; type: Polarity }
+export interface MirrorHeader { name: string; kind: TemplateKind; type: DeviceType }
 
 /** `fed(j)`: whether output j feeds another mirror's input (a link names it). */
 export function readTemplateMirror(scope: ValueScope, m: Data, index: number, head: MirrorHeader, params: DeviceParams | undefined, supplies: Supplies | undefined, fed: (j: number) => boolean = () => false): TemplateMirror | undefined {
@@ -152,6 +153,11 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (m.vbias !== undefined && !spec.vbias) misplaced(sink, [...path, 'vbias'], `\`vbias\` applies only to ${VBIAS_KINDS.join(', ')} mirrors (the cascode gate voltage)`);
   if (m.outputs !== undefined && !spec.bank) misplaced(sink, [...path, 'outputs'], `\`outputs\` (bias banks) applies to ${BANK_KINDS.join(', ')} mirrors`);
 
+  const bipolar = isBipolarType(head.type);
+  if (m.degeneration !== undefined && spec.degeneration === undefined) misplaced(sink, [...path, 'degeneration'], '`degeneration` (an emitter resistor) applies only to widlar mirrors');
+  if (spec.degeneration !== undefined && m.degeneration === undefined) missing(sink, path, 'degeneration', ' (the emitter resistor of `out`, Ω)');
+  const degeneration = m.degeneration === undefined || spec.degeneration === undefined ? undefined
+    : resolveNumber(scope, m.degeneration, [...path, 'degeneration'], 'resistance', { positive: true });
   const loop = spec.loop;
   if (loop) {
     if (m.input !== undefined) misplaced(sink, [...path, 'input'], `a ${kind} sets its own current (its loop and \`resistor\`); it takes no \`input\``);
@@ -159,9 +165,10 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
     if (m.k !== undefined && !loop.scaled) misplaced(sink, [...path, 'k'], `\`k\` applies to beta-multiplier references (the width ratio of \`wide\` to \`ref\`)`);
   } else {
     for (const k of REFERENCE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to the self-biased references (${REFERENCE_KINDS.join(', ')})`);
+    if (bipolar && m.design !== undefined) sink.error('bad-value', '`design` targets size MOSFETs; a bipolar mirror is sized by `area` and `m`', [...path, 'design'], 'key');
   }
   const input: InputSource | undefined = loop ? { kind: 'self' } : readInput(scope, m.input, [...path, 'input']);
-  const design = m.design === undefined || loop ? undefined : readDesign(scope, m.design, [...path, 'design']);
+  const design = m.design === undefined || loop || bipolar ? undefined : readDesign(scope, m.design, [...path, 'design']);
   let resistor: number | undefined, k: number | undefined, startup: DeviceSize | undefined;
   if (loop) {
     if (m.resistor === undefined) missing(sink, path, 'resistor', ' (the loop resistor, Ω)');
@@ -175,14 +182,16 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   }
   const filter = m.filter === undefined ? undefined : readFilter(scope, m.filter, [...path, 'filter']);
   const vbias = m.vbias === undefined || !spec.vbias ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
-  if (m.size === undefined) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
-  const unit = m.size === undefined ? undefined : readSizeLayer(scope, m.size, [...path, 'size']);
+  // A bipolar mirror without `size` uses the unit device (area 1).
+  if (m.size === undefined && !bipolar) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
+  const unit = m.size === undefined ? (bipolar ? {} : undefined) : readSizeLayer(scope, m.size, [...path, 'size']);
   const roles = spec.roles;
   const outRoles = spec.outputRoles;
   const mirrorLayers = readRoleLayers(scope, m.devices, [...path, 'devices'], kind, roles, false);
   const ctx: SizeContext = { scope, params, hasDesign: design !== undefined, sizePath: [...path, 'size'] };
   // Without a readable unit size the finding is already made; no role can be sized.
-  const size = (role: string, extra?: SizeLayer) => (unit ? buildSize(ctx, [unit, mirrorLayers.get(role), extra]) : undefined);
+  const size = (role: string, extra?: SizeLayer) => (!unit ? undefined
+    : bipolar ? buildBipolarSize(ctx, [unit, mirrorLayers.get(role), extra]) : buildSize(ctx, [unit, mirrorLayers.get(role), extra]));
 
   const devices: Record<string, DeviceSize> = {};
   for (const role of roles) {
@@ -245,6 +254,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (resistor !== undefined) mirror.resistor = resistor;
   if (startup) mirror.startup = startup;
   if (vbias !== undefined) mirror.vbias = vbias;
+  if (degeneration !== undefined) mirror.degeneration = degeneration;
   if (design) mirror.design = design;
   if (filter) mirror.filter = filter;
   return mirror;

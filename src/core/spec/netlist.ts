@@ -2,9 +2,10 @@
  * `kind: netlist` → NetlistMirror. Node names are identifiers; `vdd`, `vss`, `gnd` and `0` are the
  * rails (any letter case), resolved to `vdd` / `vss`. A device's bulk defaults to its type's rail.
  */
+import type { DeviceType, NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
+  SpecPath, Supplies } from '../types';
+import { DEVICE_TYPES, isBipolarType } from '../device-types';
 import { readResistorDrift } from './drift';
-import type { NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
-  Polarity, SpecPath, Supplies } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
@@ -69,7 +70,7 @@ function tooLarge(scope: ValueScope, m: Data, path: SpecPath): boolean {
   return true;
 }
 
-export function readNetlistMirror(scope: ValueScope, m: Data, index: number, name: string, type: Polarity | undefined, supplies: Supplies | undefined): NetlistMirror | undefined {
+export function readNetlistMirror(scope: ValueScope, m: Data, index: number, name: string, type: DeviceType | undefined, supplies: Supplies | undefined): NetlistMirror | undefined {
   const path: SpecPath = ['mirrors', index];
   const sink = scope.sink;
   const before = sink.errorCount;
@@ -84,7 +85,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
   const uses: Uses = new Map();
   if (tooLarge(scope, m, path)) return undefined;
 
-  /** The MOSFETs of one section (`devices`, or the start-up element's `startup`). */
+  /** The devices (MOSFETs, bipolar devices) of one section (`devices`, or the start-up element's `startup`). */
   const readDevices = (section: 'devices' | 'startup', dmap: Data): NetlistDevice[] => {
     const list: NetlistDevice[] = [];
     const dp = [...path, section];
@@ -93,8 +94,27 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
       claim(section, dn, at);
       const d = readMap(sink, dmap[dn], at, 'a mapping { type, d, g, s, b, w, l, m }');
       if (!d) continue;
-      const dtype = d.type === undefined ? type : readEnum<Polarity>(sink, d.type, [...at, 'type'], ['nmos', 'pmos']);
-      if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos or pmos; or give the mirror a `type`)');
+      const dtype = d.type === undefined ? type : readEnum<DeviceType>(sink, d.type, [...at, 'type'], DEVICE_TYPES);
+      if (d.type === undefined && !type) missing(sink, at, 'type', ' (nmos, pmos, npn or pnp; or give the mirror a `type`)');
+      if (dtype && isBipolarType(dtype)) {
+        // A bipolar device (BiCMOS): collector, base, emitter; sized by area and m.
+        for (const k of ['d', 'g', 's', 'w', 'l']) {
+          if (d[k] !== undefined) sink.error('bad-value', `a ${dtype} device has terminals c, b, e and is sized by \`area\` and \`m\`; \`${k}\` is a MOSFET's`, [...at, k], 'key');
+        }
+        const t3: Record<'c' | 'b' | 'e', string | undefined> = { c: undefined, b: undefined, e: undefined };
+        for (const k of ['c', 'b', 'e'] as const) {
+          if (d[k] === undefined) { missing(sink, at, k, k === 'c' ? ' (collector node)' : k === 'b' ? ' (base node)' : ' (emitter node)'); continue; }
+          t3[k] = readNode(scope, d[k], [...at, k]);
+          use(uses, t3[k], [...at, k], k !== 'b');
+        }
+        const area = d.area === undefined ? 1 : resolveNumber(scope, d.area, [...at, 'area'], 'plain', { positive: true });
+        const mb = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
+        if (t3.c && t3.b && t3.e && area !== undefined && mb !== undefined) {
+          list.push({ name: dn, type: dtype, c: t3.c, b: t3.b, e: t3.e, area, m: mb });
+        }
+        continue;
+      }
+      if (d.area !== undefined) sink.error('bad-value', '`area` sizes a bipolar device (type npn or pnp); a MOSFET is sized by `w`, `l` and `m`', [...at, 'area'], 'key');
       const t: Record<'d' | 'g' | 's' | 'b', string | undefined> = { d: undefined, g: undefined, s: undefined, b: undefined };
       for (const k of ['d', 'g', 's', 'b'] as const) {
         if (d[k] === undefined) {
@@ -109,7 +129,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
       if (d.w === undefined) missing(sink, at, 'w', ' (width, m)');
       if (d.l === undefined) missing(sink, at, 'l', ' (length, m)');
       const mm = d.m === undefined ? 1 : resolveNumber(scope, d.m, [...at, 'm'], 'plain', { positive: true, integer: true });
-      if (dtype && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
+      if (dtype && !isBipolarType(dtype) && t.d && t.g && t.s && w !== undefined && l !== undefined && mm !== undefined) {
         list.push({ name: dn, type: dtype, d: t.d, g: t.g, s: t.s, b: t.b ?? (dtype === 'nmos' ? 'vss' : 'vdd'), w, l, m: mm });
       }
     }
@@ -254,7 +274,7 @@ export function readNetlistMirror(scope: ValueScope, m: Data, index: number, nam
     const byPair = pair && devices.find((d) => d.name === pair!.out)?.type;
     const types = new Set(devices.map((d) => d.type));
     mtype = byPair ?? (types.size === 1 ? [...types][0] : undefined);
-    if (!mtype && devices.length) missing(sink, path, 'type', ' (nmos or pmos: the devices are of both types and no `pair` says which)');
+    if (!mtype && devices.length) missing(sink, path, 'type', ' (nmos, pmos, npn or pnp: the devices are of several types and no `pair` says which)');
   }
   const require = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};
   if (sink.errorCount > before || !mtype || !output || (m.input !== undefined && !input)) return undefined;

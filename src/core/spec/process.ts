@@ -1,7 +1,7 @@
 /** `process:`, `supplies:` and `limits:` → resolved values with every default filled (DEFAULTS). */
 import { DEFAULTS, ZERO_CELSIUS } from '../defaults';
 import { MODEL_NAMES } from '../models/registry';
-import type { DeviceFlavour, DeviceParams, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
+import type { BipolarParams, BipolarType, DeviceFlavour, DeviceParams, DeviceType, Limits, ModelKind, NumericParam, Polarity, SpecPath, Supplies } from '../types';
 import type { Quantity } from '../units/si';
 import { missing, readEnum, readMap } from './read';
 import type { Data } from './read';
@@ -32,6 +32,45 @@ export const DEVICE_PARAM_RULES: Record<NumericParam, ParamRule> = {
 };
 
 export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as NumericParam[];
+
+/** Quantity and sign rule of each bipolar parameter (design §10). */
+export const BIPOLAR_PARAM_RULES: Record<keyof BipolarParams, ParamRule> = {
+  is: { q: 'current', opts: { positive: true } },
+  bf: { q: 'plain', opts: { positive: true } },
+  br: { q: 'plain', opts: { positive: true } },
+  vaf: { q: 'voltage', opts: { positive: true } },
+  eg: { q: 'plain', opts: { positive: true } },
+  xti: { q: 'plain' },
+  xtb: { q: 'plain' },
+  vcesat: { q: 'voltage', opts: { nonNegative: true } },
+  ais: { q: 'ratio', opts: { nonNegative: true } },
+  abf: { q: 'ratio', opts: { nonNegative: true } },
+};
+
+export const BIPOLAR_PARAM_KEYS = Object.keys(BIPOLAR_PARAM_RULES) as (keyof BipolarParams)[];
+
+function readBipolar(scope: ValueScope, raw: unknown, path: SpecPath): BipolarParams | undefined {
+  const d = readMap(scope.sink, raw, path);
+  if (!d) return undefined;
+  const before = scope.sink.errorCount;
+  const got: Partial<Record<keyof BipolarParams, number>> = {};
+  for (const key of BIPOLAR_PARAM_KEYS) {
+    if (d[key] === undefined) continue;
+    const rule = BIPOLAR_PARAM_RULES[key];
+    const v = resolveNumber(scope, d[key], [...path, key], rule.q, rule.opts);
+    if (v !== undefined) got[key] = v;
+  }
+  if (d.is === undefined) missing(scope.sink, path, 'is', ' (saturation current of a unit device, A)');
+  if (d.bf === undefined) missing(scope.sink, path, 'bf', ' (forward current gain βF)');
+  if (scope.sink.errorCount > before || got.is === undefined || got.bf === undefined) return undefined;
+  const bd = DEFAULTS.bipolar;
+  const out: BipolarParams = {
+    is: got.is, bf: got.bf, br: got.br ?? bd.br, eg: got.eg ?? bd.eg, xti: got.xti ?? bd.xti,
+    xtb: got.xtb ?? bd.xtb, vcesat: got.vcesat ?? bd.vcesat,
+  };
+  for (const k of ['vaf', 'ais', 'abf'] as const) if (got[k] !== undefined) out[k] = got[k];
+  return out;
+}
 
 /** A temperature in kelvin; a bare number is °C, and one that looks like kelvin gets a warning. */
 export function readTemperature(scope: ValueScope, raw: unknown, path: SpecPath): number | undefined {
@@ -117,12 +156,14 @@ export interface ProcessRead {
   trange?: [number, number];
   nmos?: DeviceParams;
   pmos?: DeviceParams;
+  npn?: BipolarParams;
+  pnp?: BipolarParams;
   /** Device flavours (`process.devices`) read without errors. */
   devices?: Record<string, DeviceFlavour>;
   /** Flavour names written (possibly with errors), for the mirrors' `device:`. */
   flavourNames: Set<string>;
-  /** Polarities written in the spec (possibly with errors). */
-  written: Set<Polarity>;
+  /** Device types written in the spec (possibly with errors). */
+  written: Set<DeviceType>;
   ok: boolean;
 }
 
@@ -139,7 +180,7 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const tnom = p.tnom === undefined ? DEFAULTS.tnom : readTemperature(scope, p.tnom, [...path, 'tnom']);
   const temperature = p.temperature === undefined ? tnom : readTemperature(scope, p.temperature, [...path, 'temperature']);
   const grid = p.grid === undefined ? undefined : resolveNumber(scope, p.grid, [...path, 'grid'], 'length', { positive: true });
-  const written = new Set<Polarity>();
+  const written = new Set<DeviceType>();
   const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, flavourNames: new Set(), ok: true };
   if (grid !== undefined) out.grid = grid;
   if (p.trange !== undefined) {
@@ -150,6 +191,12 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
     if (p[type] === undefined) continue;
     written.add(type);
     const d = readDevice(scope, p[type], [...path, type], type);
+    if (d) out[type] = d;
+  }
+  for (const type of ['npn', 'pnp'] as const satisfies readonly BipolarType[]) {
+    if (p[type] === undefined) continue;
+    written.add(type);
+    const d = readBipolar(scope, p[type], [...path, type]);
     if (d) out[type] = d;
   }
   const flavours = readMap(scope.sink, p.devices, [...path, 'devices'], 'a mapping of device-flavour names to { type, table | kp, vt0, … }');
@@ -166,8 +213,9 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
     if (out.model === 'table' && isTableless(d)) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; device \`${name}\` is missing \`table\``, at, 'key', 'missing:table');
   }
   if (out.model === 'table') {
+    // A bipolar device keeps its transport model (design §10): tables are MOSFET data.
     for (const type of written) {
-      if (isTableless(p[type])) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; \`process.${type}\` is missing \`table\``, [...path, type], 'key', 'missing:table');
+      if ((type === 'nmos' || type === 'pmos') && isTableless(p[type])) scope.sink.error('missing-key', `\`process.model: table\` takes every device from a table; \`process.${type}\` is missing \`table\``, [...path, type], 'key', 'missing:table');
     }
   }
   out.ok = scope.sink.errorCount === before;

@@ -16,6 +16,12 @@ export interface SizeLayer {
   l?: number | 'auto';
   m?: number;
   bulk?: BulkTie;
+  /** Bipolar: emitter-area multiple. */
+  area?: number;
+  /** Where a w, l or bulk was written (a bipolar device takes none of them). */
+  mosPath?: SpecPath;
+  /** Where an area was written (a MOSFET takes none). */
+  areaPath?: SpecPath;
   wPath?: SpecPath;
   lPath?: SpecPath;
   /** A value was written but could not be read (its finding is made; no "missing" follows). */
@@ -43,6 +49,12 @@ export function readSizeLayer(scope: ValueScope, raw: unknown, path: SpecPath): 
     const b = readEnum<BulkTie>(scope.sink, d.bulk, [...path, 'bulk'], ['rail', 'source']);
     if (b) layer.bulk = b;
   }
+  if (d.area !== undefined) {
+    layer.areaPath = [...path, 'area'];
+    const a = resolveNumber(scope, d.area, [...path, 'area'], 'plain', { positive: true });
+    if (a !== undefined) layer.area = a; else layer.bad = true;
+  }
+  for (const k of ['w', 'l', 'bulk'] as const) if (d[k] !== undefined && !layer.mosPath) layer.mosPath = [...path, k];
   return layer;
 }
 
@@ -55,11 +67,32 @@ export interface SizeContext {
   sizePath: SpecPath;
 }
 
+/** Merge layers (later wins) into a bipolar device's size (area default 1, m), or undefined
+ *  (findings made): a w, l or bulk written for it is an error at that key. */
+export function buildBipolarSize(ctx: SizeContext, layers: (SizeLayer | undefined)[]): DeviceSize | undefined {
+  let area: number = DEFAULTS.area, m: number = DEFAULTS.m;
+  for (const layer of layers) {
+    if (!layer) continue;
+    if (layer.mosPath) {
+      ctx.scope.sink.error('bad-value', `a bipolar device is sized by \`area\` (emitter-area multiple) and \`m\`; \`${String(layer.mosPath[layer.mosPath.length - 1])}\` is a MOSFET's`, layer.mosPath, 'key');
+      return undefined;
+    }
+    if (layer.bad) return undefined;
+    if (layer.area !== undefined) area = layer.area;
+    if (layer.m !== undefined) m = layer.m;
+  }
+  return { w: 0, l: 0, m, bulk: 'rail', area };
+}
+
 /** Merge layers (later wins) into a full size, or undefined (findings made). */
 export function buildSize(ctx: SizeContext, layers: (SizeLayer | undefined)[]): DeviceSize | undefined {
   const s: SizeLayer = {};
   for (const layer of layers) {
     if (!layer) continue;
+    if (layer.areaPath) {
+      ctx.scope.sink.error('bad-value', '`area` sizes a bipolar device (type npn or pnp); a MOSFET is sized by `w`, `l` and `m`', layer.areaPath, 'key');
+      return undefined;
+    }
     if (layer.bad) return undefined;
     if (layer.w !== undefined) { s.w = layer.w; s.wPath = layer.wPath; }
     if (layer.l !== undefined) { s.l = layer.l; s.lPath = layer.lPath; }

@@ -5,6 +5,7 @@
  * checks: a corner is a condition the chip must survive.
  */
 import type { CornerResult, CornerSpec, Finding, MirrorReport, Range, ResolvedSpec, Severity } from '../types';
+import { sinksCurrent } from '../device-types';
 import type { ParsedSpec } from '../spec/index';
 import { formatPercent, formatRatio, formatSI, formatSignedPercent } from '../text/format';
 import { ZERO_CELSIUS } from '../defaults';
@@ -109,12 +110,12 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
       .map((r) => ({ r, badness: Math.abs(r.compliance - limit) }));
     const which = site.require.compliance !== undefined ? 'require.compliance' : 'output.range';
     // The far end of output.range is the element that must change (NMOS the low, PMOS the high).
-    const end = site.mirror.type === 'nmos' ? 0 : 1;
+    const end = sinksCurrent(site.mirror.type) ? 0 : 1;
     const rangePath = [...site.path, 'output', 'range', end];
     const range = site.require.compliance !== undefined ? requireRange(parsed, site, 'compliance')
       : parsed.source.value(rangePath) ?? parsed.source.value([...site.path, 'output', 'range']) ?? nameRange(parsed, site);
     emit('corner-compliance', 'error', bad, range, which === 'require.compliance' ? [...site.path, 'require', 'compliance'] : rangePath,
-      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${site.mirror.type === 'nmos' ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
+      (w, label) => `output compliance ${formatSI(w.compliance, 'V')} at corner ${label}: the output must work ${sinksCurrent(site.mirror.type) ? 'down' : 'up'} to ${formatSI(limit, 'V')} (${which})`);
   }
 
   const sigma = site.require.sigma;

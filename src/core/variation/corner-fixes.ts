@@ -7,6 +7,7 @@
  * design-target pass sizes them).
  */
 import type { Finding, MirrorReport, ResolvedSpec } from '../types';
+import { sinksCurrent } from '../device-types';
 import type { ParsedSpec } from '../spec/index';
 import type { RuleContext } from '../rules/model';
 import { lengthenPlans, widenPlans, type Candidate } from '../rules/plans';
@@ -75,7 +76,7 @@ function plansFor(rc: RuleContext, f: Finding, report: MirrorReport): Iterable<C
     case 'corner-compliance': {
       const limit = complianceLimit(site);
       if (limit === undefined) return undefined;
-      const nmos = site.mirror.type === 'nmos';
+      const nmos = sinksCurrent(site.mirror.type);
       return widenPlans(rc, i, worst((r) => (nmos ? limit - r.compliance : r.compliance - limit)), `for the compliance ${all}`);
     }
     case 'corner-ratio-error': {

@@ -260,7 +260,7 @@ async function suite(folder: vscode.Uri): Promise<void> {
     const d = dDoc;
     const out = report.mirrors[0]?.devices.find((x) => x.name === 'out');
     assert(out, 'no device out in the report');
-    near(out.id, 103.9103e-6, 1e-5, 'IOUT at 1.5 V');
+    near(out.id!, 103.9103e-6, 1e-5, 'IOUT at 1.5 V');
     const onKey = hoverText(await vscode.commands.executeCommand<vscode.Hover[]>('vscode.executeHoverProvider', dUri, positionOf(d, /^\s+out:\s*$/, 'out', 1)));
     for (const s of ['Operating point', '| **ID** | 104 µA |', '| **VGS** | 1.07 V |', '| **VDS** | 1.5 V |', '| **VDSsat** | 367 mV |', `| **gm** | ${formatSI(out.gm, 'S')} |`, 'gm/ID', 'IC', CAUTION_TEXT]) {
       assert(onKey.includes(s), `hover on the device key lacks "${s}":\n${onKey}`);

@@ -3,8 +3,9 @@
  * new element (a bipolar transistor, say) is one more member here plus its stamp module, and the
  * compiler names every switch that must learn it (stamp.ts, device.ts).
  */
-import type { DeviceParams, DeviceSize, Polarity } from '../../types';
+import type { BipolarParams, BipolarType, DeviceParams, DeviceSize, Polarity } from '../../types';
 import type { ModelDevice } from '../../models/device';
+import type { BipolarDevice } from '../../models/bipolar';
 
 /** A MOSFET: terminals d, g, s, b are node indices. */
 export interface MosElement {
@@ -26,6 +27,23 @@ export interface MosElement {
   slot: number;
 }
 
+/** A bipolar transistor: terminals c, b, e are node indices. */
+export interface BjtElement {
+  kind: 'bjt';
+  name: string;
+  role: string;
+  type: BipolarType;
+  /** `area` and `m` (w and l unused). */
+  size: DeviceSize;
+  params: BipolarParams;
+  dev: BipolarDevice;
+  c: number; b: number; e: number;
+  measured: boolean;
+  /** The start-up element of a self-biased netlist (as MosElement's). */
+  startup?: true;
+  slot: number;
+}
+
 /** Conductance g (S) between nodes a and b. */
 export interface ResistorElement { kind: 'resistor'; name: string; a: number; b: number; g: number; slot: number }
 
@@ -39,10 +57,10 @@ export interface VoltageSourceElement { kind: 'voltage'; name: string; node: num
 /** Capacitance c (F) between nodes a and b: open at DC, jωc in the noise analysis. */
 export interface CapacitorElement { kind: 'capacitor'; name: string; a: number; b: number; c: number }
 
-export type CircuitElement = MosElement | ResistorElement | CurrentSourceElement | VoltageSourceElement | CapacitorElement;
+export type CircuitElement = MosElement | BjtElement | ResistorElement | CurrentSourceElement | VoltageSourceElement | CapacitorElement;
 
 /** The transistors: reported per device, counted for compliance, perturbed for mismatch. */
-export type DeviceElement = MosElement;
+export type DeviceElement = MosElement | BjtElement;
 
 export function assertNever(x: never): never {
   throw new Error(`unhandled circuit element: ${JSON.stringify(x)}`);

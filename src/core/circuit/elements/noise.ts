@@ -1,10 +1,11 @@
 /**
  * What noise each element carries, as current sources between two nodes: each element module
- * states its own (mosfet.ts, resistor.ts); ideal sources and capacitors are noiseless. The
+ * states its own (mosfet.ts, bjt.ts, resistor.ts); ideal sources and capacitors are noiseless. The
  * analysis that carries them to the output is analysis/noise.ts.
  */
 import type { ChannelEval } from '../../models/core';
 import { assertNever, type CircuitElement } from './element';
+import { bjtNoise } from './bjt';
 import { mosNoise } from './mosfet';
 import { resistorNoise } from './resistor';
 
@@ -16,6 +17,7 @@ export interface NoiseSource { element: string; from: number; to: number; white:
 export function elementNoise(e: CircuitElement, v: Float64Array, ch: ChannelEval, temperature: number, out: NoiseSource[]): void {
   switch (e.kind) {
     case 'mos': mosNoise(e, v, ch, temperature, out); return;
+    case 'bjt': bjtNoise(e, v, out); return;
     case 'resistor': resistorNoise(e, temperature, out); return;
     case 'current': return;    // ideal: the input current carries no noise of its own
     case 'voltage': return;

@@ -3,6 +3,7 @@
  * kind, dispatched by exhaustive switches.
  */
 import type { Workspace } from '../workspace';
+import { bjtPattern, loadBjt } from './bjt';
 import { loadCurrentSource } from './currentSource';
 import { assertNever, type CircuitElement } from './element';
 import { loadMos, mosPattern } from './mosfet';
@@ -12,6 +13,7 @@ import { loadResistor, resistorPattern } from './resistor';
 export function patternOf(e: CircuitElement, add: (row: number, col: number) => void): void {
   switch (e.kind) {
     case 'mos': mosPattern(e, add); return;
+    case 'bjt': bjtPattern(e, add); return;
     case 'resistor': resistorPattern(e, add); return;
     case 'current': return;            // a constant: no derivatives
     case 'voltage': return;            // holds its node, which is no unknown
@@ -23,7 +25,7 @@ export function patternOf(e: CircuitElement, add: (row: number, col: number) => 
 /** Whether the element owns Jacobian slots (and so takes a `slot` offset). */
 export function hasSlots(e: CircuitElement): e is Extract<CircuitElement, { slot: number }> {
   switch (e.kind) {
-    case 'mos': case 'resistor': return true;
+    case 'mos': case 'bjt': case 'resistor': return true;
     case 'current': case 'voltage': case 'capacitor': return false;
     default: return assertNever(e);
   }
@@ -34,6 +36,7 @@ export function hasSlots(e: CircuitElement): e is Extract<CircuitElement, { slot
 export function loadElement(e: CircuitElement, ws: Workspace, alpha: number, gmin: number): void {
   switch (e.kind) {
     case 'mos': loadMos(e, ws, gmin); return;
+    case 'bjt': loadBjt(e, ws, gmin); return;
     case 'resistor': loadResistor(e, ws); return;
     case 'current': loadCurrentSource(e, ws, alpha); return;
     case 'voltage': return;            // its node's voltage is set by the solver (setHeld)

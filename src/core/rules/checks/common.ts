@@ -1,5 +1,6 @@
 /** Small helpers shared by the checks. */
-import type { DeviceParams, DeviceReport, ResolvedSpec } from '../../types';
+import type { DeviceParams, DeviceReport, MosDeviceReport, ResolvedSpec } from '../../types';
+import { inWorkingRegion, sinksCurrent } from '../../device-types';
 import type { OperatingPoint } from '../../analysis/index';
 import { solve } from '../../sizing/devices';
 import type { Site } from '../sites';
@@ -16,13 +17,14 @@ export function siteDevices(site: Site): DeviceReport[] {
   });
 }
 
-/** The process parameters a reported device was solved with. */
-export function paramsOfDevice(spec: ResolvedSpec, site: Site, d: DeviceReport): DeviceParams {
+/** The process parameters a reported MOSFET was solved with. */
+export function paramsOfDevice(spec: ResolvedSpec, site: Site, d: MosDeviceReport): DeviceParams {
   return mirrorParams(spec.process, site.mirror, d.type);
 }
 
+/** In its working region (MOSFET saturation, bipolar forward-active) with a margin ≥ 0. */
 export function isSaturated(d: DeviceReport): boolean {
-  return d.region === 'saturation' && d.margin >= 0;
+  return inWorkingRegion(d);
 }
 
 export function deviceIn(op: OperatingPoint | undefined, name: string): DeviceReport | undefined {
@@ -39,7 +41,7 @@ export function marginGoal(site: Site, name: string, target: number, vout: numbe
 
 /** Vout on the supply side of nominal (away from the compliance rail): NMOS above, PMOS below. */
 export function awayFromRail(site: Site, spec: ResolvedSpec): { from: number; to: number } {
-  return site.mirror.type === 'nmos' ? { from: site.vout, to: spec.supplies.vdd } : { from: site.vout, to: spec.supplies.vss };
+  return sinksCurrent(site.mirror.type) ? { from: site.vout, to: spec.supplies.vdd } : { from: site.vout, to: spec.supplies.vss };
 }
 
 /**

@@ -4,6 +4,7 @@
  * rail and that node need more voltage to carry their current than the supply gives, so there is
  * no operating point. One error names the stack and what it needs; no other finding follows.
  */
+import { mainCurrent } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { mirrorRange, valueRange, type Site } from '../sites';
@@ -34,7 +35,8 @@ function overSupply(rc: RuleContext, site: Site): Draft {
     ? valueRange(rc.parsed, m.input.kind === 'resistor' ? ['mirrors', site.mirrorIndex, 'input', 'resistor'] : m.input.kind === 'self' ? ['mirrors', site.mirrorIndex, 'resistor'] : ['mirrors', site.mirrorIndex, 'input'])
     : mirrorRange(rc.parsed, site.mirrorIndex);
   const first = site.report.devices.find((d) => d.name === b.stack[0]);
-  const carry = first && Number.isFinite(first.id) ? ` to carry ${formatSI(Math.abs(first.id), 'A')}` : '';
+  const firstI = first ? mainCurrent(first) : NaN;
+  const carry = Number.isFinite(firstI) ? ` to carry ${formatSI(Math.abs(firstI), 'A')}` : '';
   const stack = b.stack.length > 0 ? `the stack ${b.stack.map(code).join(' + ')}` : `the devices feeding node ${code(b.node)}`;
   const side = b.rail === 'vss' ? 'below vss' : 'above vdd';
   return {

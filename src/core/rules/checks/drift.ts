@@ -13,6 +13,7 @@ import { lengthenPlans, widenPlans } from '../plans';
 import { replaceValueEdit } from '../../spec/edit';
 import { code, formatPercent, formatSI } from '../../text/format';
 import { mirrorParams } from '../../flavours';
+import { isBipolarType } from '../../device-types';
 
 const ppm = (x: number): string => `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 
@@ -149,9 +150,11 @@ export function checkTc(rc: RuleContext, site: Site): Draft[] {
     const x = measure(s, site.mirrorIndex, site.outputIndex);
     return x?.converged && x.tc !== undefined ? 1 - Math.max(Math.abs(x.tc), x.tcBox ?? 0) / need : NaN;
   };
-  // The mirror's own flavour; a table device follows its table, not the tcv/bex laws.
-  const p = mirrorParams(rc.spec.process, site.mirror, site.mirror.type === 'pmos' ? 'pmos' : 'nmos');
-  const ztc = p.bex !== 0 && !p.table ? (2 * Math.abs(p.tcv) * rc.spec.process.temperature) / Math.abs(p.bex) : NaN;
+  // The mirror's own flavour; a table device follows its table, not the tcv/bex laws; a bipolar
+  // mirror has no zero-TC bias point.
+  const type = site.mirror.type;
+  const p = isBipolarType(type) ? undefined : mirrorParams(rc.spec.process, site.mirror, type);
+  const ztc = p && p.bex !== 0 && !p.table ? (2 * Math.abs(p.tcv) * rc.spec.process.temperature) / Math.abs(p.bex) : NaN;
   return [{
     key: draftKey('tc-high', site.path),
     mirrorIndex: site.mirrorIndex,

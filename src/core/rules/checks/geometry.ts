@@ -20,6 +20,7 @@ export function checkGeometry(rc: RuleContext, site: Site): Draft[] {
       const s = sizeOf(rc.spec, ref);
       if (!s || (s.auto && s.auto[key === 'l' ? 'l' : 'w'])) continue;
       const type = m.kind === 'netlist' ? m.devices.find((d) => d.name === ref.role)?.type ?? m.type : m.type;
+      if (type !== 'nmos' && type !== 'pmos') continue;   // a bipolar device has an area, no W or L
       const p = mirrorParams(rc.spec.process, m, type);
       const min = key === 'l' ? p.lmin : p.wmin;
       if (min === undefined || s[key] >= min * (1 - 1e-9)) continue;

@@ -4,7 +4,8 @@
  * limits.sourceHeadroom across it, and a resistor input left with less than that sets a current
  * that follows the threshold voltage rather than the resistor.
  */
-import type { ResolvedSpec, SpecPath } from '../../types';
+import type { DeviceReport, ResolvedSpec, SpecPath } from '../../types';
+import { mainVoltage, sinksCurrent } from '../../device-types';
 import { KINDS, type TemplateKind } from '../../kinds/index';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
@@ -15,12 +16,12 @@ import { widenPlans } from '../plans';
 import { code, formatSI } from '../../text/format';
 
 /** Voltage left between the input node and the opposite rail, and the stack height. */
-export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: { role: string; name: string; vds: number }[]): { room: number; stack: number } | undefined {
+export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: DeviceReport[]): { room: number; stack: number } | undefined {
   let stack = 0;
   for (const role of KINDS[kind].inputStack) {
     const d = devices.find((x) => x.role === role && !x.name.includes('.'));
     if (!d) return undefined;
-    stack += d.vds;
+    stack += mainVoltage(d);
   }
   return { room: spec.supplies.vdd - spec.supplies.vss - stack, stack };
 }
@@ -40,8 +41,8 @@ export function checkHeadroom(rc: RuleContext, site: Site): Draft[] {
   const at = valueRange(rc.parsed, path);
   const stackNames = KINDS[m.kind].inputStack.map(code).join(' + ');
   // The stack stands on the mirror's own rail; the input source or resistor hangs from the other.
-  const [own, far] = m.type === 'nmos' ? ['vss', 'vdd'] : ['vdd', 'vss'];
-  const side = m.type === 'nmos' ? 'above' : 'below';
+  const [own, far] = sinksCurrent(m.type) ? ['vss', 'vdd'] : ['vdd', 'vss'];
+  const side = sinksCurrent(m.type) ? 'above' : 'below';
   const message = resistor
     ? `the input resistor has only ${formatSI(got.room, 'V')} across it to ${far} (the stack ${stackNames} takes ${formatSI(got.stack, 'V')} ${side} ${own} of the ${formatSI(rc.spec.supplies.vdd - rc.spec.supplies.vss, 'V')} supply; limits.sourceHeadroom is ${formatSI(need, 'V')}), ` +
       `so iin = ${formatSI(site.report.iin ?? NaN, 'A')} is set by the threshold voltage, not by the resistor`

@@ -1,5 +1,6 @@
 /** square-law-weak-inversion (info): a model made for strong inversion (the square law) is
  *  being trusted below IC = 1. The code keeps its name; the model says whether it applies. */
+import { isBipolarReport } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, refOf, type Site } from '../sites';
@@ -12,8 +13,8 @@ export function checkInversion(rc: RuleContext, site: Site, seen: Set<string>): 
   const model = MODELS[rc.spec.process.model];
   const wide = WEAK_INVERSION_MODEL;
   if (model.coversWeakInversion || wide === undefined) return [];
-  // A table device follows the designer's data, not the process model.
-  const low = siteDevices(site).filter((d) => !paramsOfDevice(rc.spec, site, d).table && d.ic < 1 && !seen.has(`${site.mirrorIndex}/${d.name}`)).sort((a, b) => a.ic - b.ic);
+  // A table device follows the designer's data, not the process model; a bipolar device has no inversion level.
+  const low = siteDevices(site).filter((d) => !isBipolarReport(d) && !paramsOfDevice(rc.spec, site, d).table && d.ic < 1 && !seen.has(`${site.mirrorIndex}/${d.name}`)).sort((a, b) => a.ic - b.ic);
   if (low.length === 0) return [];
   for (const d of low) seen.add(`${site.mirrorIndex}/${d.name}`);
   const worst = low[0];

@@ -10,6 +10,8 @@ import { deviceRange, kindRange, refOf, valueRange, type DeviceRef, type Site } 
 import { balancedPlans, cascodePlans, lengthenPlans, ratioPlans } from '../plans';
 import { ratioAt } from '../../sizing/ratio';
 import { code, formatPercent, formatRatio, formatSI, formatSignedPercent } from '../../text/format';
+import { areaRatioPlans, baseDominated, betaHelperPlans } from '../bipolar-plans';
+import { isBipolarReport, isBipolarSplit, isBipolarType } from '../../device-types';
 
 /** The ratio-setting device and its partner: the kind's mirror pair (design §4 ratioIdeal). */
 export function ratioPair(site: Site): { setter: string; partner: string } | undefined {
@@ -45,12 +47,15 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   const setter = pair ? findRole(site, pair.setter) : undefined;
   const partner = pair ? findRole(site, pair.partner) : undefined;
 
-  if (target !== undefined && target > 0 && r.ratio !== undefined && Number.isFinite(r.ratio)) {
+  // A degenerated pair (the Widlar) runs at a ratio far from its area ratio by design: it is
+  // judged against require.ratio only.
+  const degenerated = site.mirror.kind !== 'netlist' && KINDS[site.mirror.kind].degeneration !== undefined;
+  if (target !== undefined && target > 0 && r.ratio !== undefined && Number.isFinite(r.ratio) && !(degenerated && required === undefined)) {
     const ratio = r.ratio;
     const err = ratio / target - 1;
     if (Math.abs(err) > limit) {
       const setterRef: DeviceRef | undefined = setter ? refOf(site, setter) : undefined;
-      const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
+      const at = setterRef ? deviceRange(rc.parsed, rc.spec, setterRef, isBipolarType(site.mirror.type) ? ['area', 'm'] : ['w', 'm']) : kindRange(rc.parsed, site.mirrorIndex);
       const against = required !== undefined ? `the required ${formatRatio(required)}` : `the geometric ${formatRatio(target)}`;
       const rel = related(rc, site, partner, `mirrored from ${code(partner?.name ?? '')}`);
       if (required !== undefined) {
@@ -64,7 +69,13 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
           severity: 'error', code: 'ratio-error', path: at.path, range: at.range, related: rel,
           message: `ratio ${formatRatio(ratio)} is ${formatSignedPercent(err)} off ${against} (limit ±${formatPercent(limit)})${causes(r.errorSplit, r.ratioIdeal, required)}`,
         },
-        plan: function* () {
+        plan: isBipolarType(site.mirror.type) ? function* () {
+          // Base currents are removed at their cause (a helper returns them); an area ratio
+          // then trims what is left.
+          const split = r.errorSplit;
+          if (split && isBipolarSplit(split) && baseDominated(split)) yield* betaHelperPlans(rc, site);
+          if (setterRef) yield* areaRatioPlans(rc, site, setterRef, target, required === undefined);
+        } : function* () {
           // A VDS mismatch is removed at its cause (the balanced Wilson, a longer channel, a
           // cascode); an integer m keeps the unit cell. A W trim is right at one Vout, one corner
           // and one λ only, and breaks the unit cell: it comes last.
@@ -87,7 +98,7 @@ export function checkRatio(rc: RuleContext, site: Site): Draft[] {
   // budget, e.g. an auto-sized or fixed output W) needs no warning: the designer has dealt with it.
   const compensated = required !== undefined && r.ratio !== undefined && Number.isFinite(r.ratio) && Math.abs(r.ratio / required - 1) <= limit / 2;
   const split = r.errorSplit;
-  if (split && !compensated && Math.abs(split.vds) >= limit / 2 && setter && partner) {
+  if (split && !isBipolarSplit(split) && setter && partner && !isBipolarReport(setter) && !isBipolarReport(partner) && !compensated && Math.abs(split.vds) >= limit / 2) {
     const at = kindRange(rc.parsed, site.mirrorIndex);
     const kind = site.mirror.kind;
     const hint = kind === 'simple'
@@ -115,7 +126,7 @@ const MAX_RATIO_LENGTHEN = 8;
 
 /** The ratio misses mostly by length modulation (not by sizing, body effect or gate drive). */
 function vdsCaused(split: ErrorSplit | undefined, ideal: number | undefined, target: number, limit: number): boolean {
-  if (!split || (ideal !== undefined && Math.abs(ideal / target - 1) > limit)) return false;
+  if (!split || isBipolarSplit(split) || (ideal !== undefined && Math.abs(ideal / target - 1) > limit)) return false;
   const v = Math.abs(split.vds);
   return v > limit / 2 && [split.body, split.geometry, split.gate ?? 0].every((x) => v >= Math.abs(x));
 }
@@ -130,7 +141,9 @@ function causes(split: ErrorSplit | undefined, ideal: number | undefined, requir
     parts.push({ text: `sizing ${formatSignedPercent(e)} (geometric ratio ${formatRatio(ideal)})`, size: Math.abs(e) });
   }
   if (split) {
-    const named: [string, number][] = [['VDS mismatch', split.vds], ['body effect', split.body], ['gate drive', split.gate ?? 0], ['geometry', split.geometry]];
+    const named: [string, number][] = isBipolarSplit(split)
+      ? [['base current', split.base], ['VCE mismatch (Early)', split.vce], ['geometry', split.geometry]]
+      : [['VDS mismatch', split.vds], ['body effect', split.body], ['gate drive', split.gate ?? 0], ['geometry', split.geometry]];
     for (const [label, v] of named) if (Math.abs(v) >= 5e-5) parts.push({ text: `${label} ${formatSignedPercent(v)}`, size: Math.abs(v) });
   }
   parts.sort((a, b) => b.size - a.size);

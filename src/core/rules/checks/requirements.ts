@@ -1,6 +1,7 @@
 /** The mirror's stated requirements: low-rout, compliance, high-sigma. */
 import { mirrorParams } from '../../flavours';
 import type { ResolvedSpec, SpecPath } from '../../types';
+import { inWorkingRegion, sinksCurrent } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, kindRange, refOf, valueRange, type Site } from '../sites';
@@ -23,8 +24,10 @@ export function checkRout(rc: RuleContext, site: Site): Draft[] {
   if (need === undefined || !(r.rout < need)) return [];
   const at = outputDeviceRange(rc, site, ['l', 'w']);
   const req = valueRange(rc.parsed, [...site.path, 'require', 'rout']);
-  const type = mirrorParams(rc.spec.process, site.mirror, site.mirror.type);
-  const hint = type.lref === undefined
+  const mt = site.mirror.type;
+  const hint = mt === 'npn' || mt === 'pnp'
+    ? (site.mirror.kind === 'simple' || site.mirror.kind === 'beta-helper' ? 'emitter degeneration (a Widlar) or a cascode or Wilson (Rout ≈ β·ro/2)' : 'emitter degeneration, or a larger Early voltage')
+    : mirrorParams(rc.spec.process, site.mirror, mt).lref === undefined
     ? 'this process gives λ without lref, so L does not change ro: use a cascode'
     : site.mirror.kind === 'simple' ? 'lengthen the devices, or use a cascode (Rout ≈ gm·ro²)' : 'lengthen the devices';
   return [{
@@ -45,7 +48,7 @@ export function checkRout(rc: RuleContext, site: Site): Draft[] {
 
 /** The compliance target: NMOS works down to the lower of require.compliance and range[0]; PMOS up to the higher. */
 function complianceTarget(site: Site): { v: number; path: SpecPath; what: string } | undefined {
-  const nmos = site.mirror.type === 'nmos';
+  const nmos = sinksCurrent(site.mirror.type);
   const cands: { v: number; path: SpecPath; what: string }[] = [];
   if (site.require.compliance !== undefined) cands.push({ v: site.require.compliance, path: [...site.path, 'require', 'compliance'], what: 'require.compliance' });
   if (site.range) {
@@ -61,7 +64,7 @@ export function checkCompliance(rc: RuleContext, site: Site): Draft[] {
   const t = complianceTarget(site);
   const r = site.report;
   if (!t || !Number.isFinite(r.compliance)) return [];
-  const nmos = site.mirror.type === 'nmos';
+  const nmos = sinksCurrent(site.mirror.type);
   const tol = 5e-4; // the engine's compliance is accurate to ≤ 1 mV; do not flag a tie
   const bad = nmos ? r.compliance > t.v + tol : r.compliance < t.v - tol;
   // A device out of saturation at every output voltage has no compliance to speak of; the
@@ -97,7 +100,7 @@ export function checkCompliance(rc: RuleContext, site: Site): Draft[] {
 /** The device furthest out of saturation at output voltage `v`, if any is. */
 function limiterAt(rc: RuleContext, site: Site, v: number) {
   const op = solve(rc.spec, site.mirrorIndex, site.outputIndex, v);
-  return op?.devices.filter((d) => d.margin < 0 || d.region !== 'saturation').sort((a, b) => a.margin - b.margin)[0];
+  return op?.devices.filter((d) => !inWorkingRegion(d)).sort((a, b) => a.margin - b.margin)[0];
 }
 
 export function checkSigma(rc: RuleContext, site: Site): Draft[] {

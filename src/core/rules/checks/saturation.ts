@@ -12,6 +12,7 @@ import { pickedVbias, withVbias } from '../../sizing/vbias';
 import { takesVbias } from '../../kinds/index';
 import { vbiasPlans, widenPlans } from '../plans';
 import { code, formatSI } from '../../text/format';
+import { isBipolarReport, sinksCurrent } from '../../device-types';
 import { awayFromRail, crossing, deviceIn, isSaturated, marginGoal, siteDevices } from './common';
 
 /** Reference devices belong to the mirror, not to one output: one finding for all outputs. */
@@ -20,6 +21,10 @@ function subjectPath(site: Site, d: DeviceReport): SpecPath {
 }
 
 function state(d: DeviceReport): string {
+  if (isBipolarReport(d)) {
+    if (d.region === 'cutoff') return `is cut off (VBE ${formatSI(d.vbe, 'V')}: it carries no collector current)`;
+    return `is saturated: VCE ${formatSI(d.vce, 'V')} < vcesat ${formatSI(d.vcesat, 'V')} (margin ${formatSI(d.margin, 'V')})`;
+  }
   if (d.region === 'cutoff') return `is cut off (VGS ${formatSI(d.vgs, 'V')} below VT ${formatSI(d.vth, 'V')})`;
   return `is in triode: VDS ${formatSI(d.vds, 'V')} < VDSsat ${formatSI(d.vdsat, 'V')} (margin ${formatSI(d.margin, 'V')})`;
 }
@@ -62,8 +67,21 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
     if (!rc.quick) {
       const side = awayFromRail(site, rc.spec);
       const leaves = saturatesFrom(rc, site, d.name, side.from, side.to);
-      const rel = site.mirror.type === 'nmos' ? '≥' : '≤';
+      const rel = sinksCurrent(site.mirror.type) ? '≥' : '≤';
       where = leaves !== undefined ? `; it needs Vout ${rel} ${formatSI(leaves, 'V', 4)}` : '; no output voltage within the supply saturates it';
+    }
+    if (isBipolarReport(d)) {
+      // A bipolar device leaves forward-active by its collector voltage: no size restores it.
+      drafts.push({
+        key: draftKey('not-forward-active', subjectPath(site, d), d.name),
+        mirrorIndex: site.mirrorIndex,
+        finding: {
+          severity: 'error', code: 'not-forward-active', path: at.path, range: at.range,
+          message: `${code(d.name)} ${state(d)} at Vout = ${formatSI(site.vout, 'V')}${where}`,
+        },
+        hint: 'give its collector more voltage: move Vout away from the rail, or use a kind with fewer VBE in the stack',
+      });
+      continue;
     }
     drafts.push({
       key: draftKey('not-saturated', subjectPath(site, d), d.name),
@@ -91,6 +109,17 @@ export function checkSaturation(rc: RuleContext, site: Site): Draft[] {
     if (!isSaturated(d) || d.margin >= limits.margin - 1e-4) continue;
     const ref = refOf(site, d);
     const at = deviceRange(rc.parsed, rc.spec, ref, ['w']);
+    if (isBipolarReport(d)) {
+      drafts.push({
+        key: draftKey('low-margin', subjectPath(site, d), d.name),
+        mirrorIndex: site.mirrorIndex,
+        finding: {
+          severity: 'warning', code: 'low-margin', path: at.path, range: at.range,
+          message: `${code(d.name)} has ${formatSI(d.margin, 'V')} of forward-active margin at Vout = ${formatSI(site.vout, 'V')} (VCE ${formatSI(d.vce, 'V')}, vcesat ${formatSI(d.vcesat, 'V')}); limits.margin asks for ${formatSI(limits.margin, 'V')}`,
+        },
+      });
+      continue;
+    }
     drafts.push({
       key: draftKey('low-margin', subjectPath(site, d), d.name),
       mirrorIndex: site.mirrorIndex,
@@ -126,7 +155,7 @@ function saturatesFrom(rc: RuleContext, site: Site, name: string, from: number, 
 
 function rangeSide(rc: RuleContext, site: Site): Draft[] {
   const [lo, hi] = site.range!;
-  const nmos = site.mirror.type === 'nmos';
+  const nmos = sinksCurrent(site.mirror.type);
   const end = nmos ? hi : lo;
   if (nmos ? end <= site.vout : end >= site.vout) return [];
   const points = [0.25, 0.5, 0.75, 1].map((t) => site.vout + (end - site.vout) * t);

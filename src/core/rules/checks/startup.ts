@@ -6,6 +6,7 @@
  * current there goes as 1/L), verified by re-solving.
  */
 import type { ReferenceReport, SpecPath } from '../../types';
+import { isBipolarDevice } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { kindRange, valueRange, type Site } from '../sites';
@@ -21,7 +22,8 @@ function startupPath(site: Site): { path: SpecPath; l: number } | undefined {
   const m = site.mirror;
   if (m.kind === 'netlist') {
     const d = m.startup?.[0];
-    return d ? { path: ['mirrors', site.mirrorIndex, 'startup', d.name], l: d.l } : undefined;
+    // A bipolar start-up device has no length to change.
+    return d && !isBipolarDevice(d) ? { path: ['mirrors', site.mirrorIndex, 'startup', d.name], l: d.l } : undefined;
   }
   return m.startup ? { path: ['mirrors', site.mirrorIndex, 'startup'], l: m.startup.l } : undefined;
 }

@@ -1,6 +1,7 @@
 /** table-range (warning): a table device operates outside its characterisation table's grid,
  *  where its figures come from the interpolant's end tangents, not from the designer's data. */
-import type { DeviceReport, DeviceTable } from '../../types';
+import type { DeviceTable, MosDeviceReport } from '../../types';
+import { isBipolarReport } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { deviceRange, refOf, sizeToken, type Site } from '../sites';
@@ -13,7 +14,7 @@ const EDGE = 1e-9;
 
 /** The first axis of `t` that `d` (at temperature `tK`) lies outside, in words. A report's
  *  voltages are device-frame magnitudes (its `vbs` holds VSB). */
-export function outsideTable(t: DeviceTable, d: DeviceReport, tK: number): { axis: string; why: string } | undefined {
+export function outsideTable(t: DeviceTable, d: MosDeviceReport, tK: number): { axis: string; why: string } | undefined {
   const checks: [string, number, readonly number[], string][] = [
     ['vgs', d.vgs, t.vgs, 'V'], ['vds', Math.abs(d.vds), t.vds, 'V'], ['vsb', d.vbs, t.vsb, 'V'], ['l', d.l, t.l, 'm'],
   ];
@@ -33,6 +34,7 @@ export function outsideTable(t: DeviceTable, d: DeviceReport, tK: number): { axi
 export function checkTableRange(rc: RuleContext, site: Site): Draft[] {
   const drafts: Draft[] = [];
   for (const d of siteDevices(site)) {
+    if (isBipolarReport(d)) continue;   // a bipolar device has no table
     const table = paramsOfDevice(rc.spec, site, d).table;
     if (!table) continue;
     const out = outsideTable(table, d, rc.spec.process.temperature);
