@@ -100,7 +100,9 @@ export function checkNoise(rc: RuleContext, site: Site): Draft[] {
       // Flicker falls with the gate area at constant W/L; thermal noise with a lower gm (longer L).
       yield* lengthenPlans(rc, site.mirrorIndex, goal, purpose);
     })(),
-    hint: flickerDominant ? 'enlarge the gate area of the dominant device (flicker ∝ 1/(W·L))' : 'lower gm (a longer L, a higher overdrive) or add a gate filter with a pole below f',
+    hint: isBipolarType(site.mirror.type)
+      ? 'shot noise follows the current: emitter degeneration or a base-line filter with a pole below f lowers what reaches the output'
+      : flickerDominant ? 'enlarge the gate area of the dominant device (flicker ∝ 1/(W·L))' : 'lower gm (a longer L, a higher overdrive) or add a gate filter with a pole below f',
   }];
 }
 
