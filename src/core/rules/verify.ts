@@ -114,8 +114,9 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it.
-  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec);
+  // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it (its
+  // findings need no chain sigma).
+  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, undefined, { chainSigma: false });
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   const untrusted = trusted(rc, spec, reports);

@@ -193,3 +193,9 @@ export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string,
   const at = src.lines.lineEnd(Math.max(0, trimBack(text, lastEnd) - 1));
   return [{ range: src.lines.range(at, at), newText: blockEntry(keys, value, col, style?.step ?? indentStep(src, src.doc), style?.eol ?? eolOf(text)) }];
 }
+
+/** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
+export function quotedLike(token: string, word: string): string {
+  const q = token.trim()[0];
+  return q === '"' || q === "'" ? `${q}${word}${q}` : word;
+}
