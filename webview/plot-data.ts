@@ -6,6 +6,7 @@
  */
 import { isBipolarReport, sinksCurrent } from '../src/core/device-types';
 import type { DeviceReport, MirrorReport } from '../src/core/types';
+import { ZERO_CELSIUS } from '../src/core/defaults';
 import { axisScale } from './format';
 
 export interface Scaled { factor: number; unit: string }
@@ -109,5 +110,49 @@ export function gmIdPlotData(d: DeviceReport | undefined): GmIdPlotData | undefi
     x: c.vgs, gmId: c.gmId, idW: c.idW,
     op: { x: d.vgs, gmId: d.gmId, idW: d.m * d.w > 0 ? d.id / (d.m * d.w) : NaN },
     table: c.table, l: c.l, vds: c.vds, vsb: c.vsb,
+  };
+}
+
+export interface NoisePlotData {
+  /** Hz, ascending. */
+  x: number[];
+  /** Total density and each element's part, in `scale` units (A/√Hz scaled). */
+  total: number[];
+  parts: { name: string; y: (number | null)[] }[];
+  scale: Scaled;
+  /** Hz, the flicker corner, when there is flicker noise. */
+  corner?: number;
+  /** Hz, where the reported density is read. */
+  f: number;
+}
+
+/** The noise spectrum (design §12) when the report carries it; parts that are zero are left
+ *  off the log axis. */
+export function noisePlotData(m: MirrorReport): NoisePlotData | undefined {
+  const sp = m.noise?.spectrum;
+  if (!sp || sp.f.length < 2 || !sp.total.every((v) => v > 0 && Number.isFinite(v))) return undefined;
+  const scale = axisScale(sp.total, 'A/√Hz');
+  const parts = Object.entries(sp.parts).map(([name, ys]) => ({ name, y: ys.map((v) => (v > 0 ? v / scale.factor : null)) }));
+  const d: NoisePlotData = { x: sp.f, total: sp.total.map((v) => v / scale.factor), parts, scale, f: m.noise!.f };
+  if (m.noise!.corner !== undefined) d.corner = m.noise!.corner;
+  return d;
+}
+
+export interface DriftPlotData {
+  /** °C, ascending. */
+  x: number[];
+  iout: (number | null)[];
+  scale: Scaled;
+}
+
+/** Iout versus temperature over process.trange, when the report carries it. */
+export function driftPlotData(m: MirrorReport): DriftPlotData | undefined {
+  const pts = m.drift ?? [];
+  if (pts.length < 2) return undefined;
+  const scale = axisScale([...pts.map((p) => p.iout), m.iout], 'A');
+  return {
+    x: pts.map((p) => p.t - ZERO_CELSIUS),
+    iout: pts.map((p) => (p.converged && Number.isFinite(p.iout) ? p.iout / scale.factor : null)),
+    scale,
   };
 }

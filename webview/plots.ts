@@ -7,7 +7,10 @@ import uPlot from 'uplot';
 import type { MirrorReport } from '../src/core/types';
 import { formatNumber, formatSI } from './format';
 import { h } from './components';
-import { curvePlotData, gmIdPlotData, histogramPlotData, type CurvePlotData, type GmIdPlotData, type HistogramPlotData, type Mark } from './plot-data';
+import {
+  curvePlotData, driftPlotData, gmIdPlotData, histogramPlotData, noisePlotData,
+  type CurvePlotData, type DriftPlotData, type GmIdPlotData, type HistogramPlotData, type Mark, type NoisePlotData,
+} from './plot-data';
 
 const HEIGHT = 220;
 
@@ -358,7 +361,67 @@ export function gmIdPlot(m: MirrorReport, device: string): PlotHandle | undefine
   });
 }
 
-export type PlotKind = 'iout' | 'rout' | 'mc';
+/** Colours of the per-element parts of the noise plot, in order. */
+const PART_VARS = ['--vscode-charts-green', '--vscode-charts-purple', '--vscode-charts-orange', '--vscode-charts-yellow', '--vscode-charts-red'];
+
+/** Output noise density versus frequency, log–log: the total, each element's part (dashed) and
+ *  the flicker corner. */
+export function noisePlot(m: MirrorReport): PlotHandle | undefined {
+  return makePlot<NoisePlotData>(m, {
+    id: plotId('noise', m),
+    caption: 'Noise density versus frequency',
+    data: noisePlotData,
+    shape: (d) => `${d.scale.unit}|${d.parts.map((x) => x.name).join(',')}`,
+    legend: (_mr, d) => [
+      legendItem('legend-line', 'total'),
+      ...d.parts.map((x, k) => legendItem(`legend-part legend-part-${k % PART_VARS.length}`, x.name)),
+      d.corner === undefined ? undefined : legendItem('legend-edge', `flicker corner ${formatSI(d.corner, 'Hz')}`),
+    ],
+    series: (d) => [d.x, d.total, ...d.parts.map((x) => x.y)],
+    options: (p, d, width) => ({
+      width, height: HEIGHT,
+      legend: { show: false },
+      cursor: { drag: { x: false, y: false } },
+      scales: { x: { time: false, distr: 3, log: 10 }, y: { distr: 3, log: 10 } },
+      axes: [axis(p, 'f (Hz)', (v) => formatSI(v, ''), true), axis(p, `density (${d().scale.unit})`, (v) => formatNumber(v), true)],
+      series: [{}, { label: 'total', stroke: p.line, width: 2, points: { show: false } },
+        ...d().parts.map((x, k) => ({ label: x.name, stroke: themeVar(PART_VARS[k % PART_VARS.length]!) || p.accent, width: 1, dash: [4, 3], points: { show: false } }))],
+      hooks: {
+        draw: [(u) => {
+          const c = d().corner;
+          if (c !== undefined && c >= d().x[0]! && c <= d().x[d().x.length - 1]!) drawVertical(u, c, p.edge, [5, 4], 'flicker corner', p);
+          drawVertical(u, d().f, p.marker, [2, 3], 'f', p, 1);
+        }],
+      },
+    }),
+  });
+}
+
+/** Iout versus temperature over process.trange. */
+export function driftPlot(m: MirrorReport): PlotHandle | undefined {
+  return makePlot<DriftPlotData>(m, {
+    id: plotId('drift', m),
+    caption: 'Iout versus temperature',
+    data: driftPlotData,
+    shape: (d) => d.scale.unit,
+    legend: (mr) => [
+      legendItem('legend-line', 'Iout'),
+      mr.tc === undefined ? undefined : legendItem('legend-marker', `tc ${formatNumber(mr.tc, 3)} ppm/°C`),
+      mr.tcBox === undefined ? undefined : legendItem('legend-marker', `box ${formatNumber(mr.tcBox, 3)} ppm/°C`),
+    ],
+    series: (d) => [d.x, d.iout],
+    options: (p, d, width) => ({
+      width, height: HEIGHT,
+      legend: { show: false },
+      cursor: { drag: { x: false, y: false } },
+      scales: { x: { time: false } },
+      axes: [axis(p, 'T (°C)', (v) => formatNumber(v)), axis(p, `Iout (${d().scale.unit})`, (v) => formatNumber(v, 5))],
+      series: [{}, { label: 'Iout', stroke: p.line, width: 2, points: { show: false } }],
+    }),
+  });
+}
+
+export type PlotKind = 'iout' | 'rout' | 'mc' | 'noise' | 'drift';
 
 /** Element id of a mirror's plot; also the key a re-render uses to reuse the plot. */
 export function plotId(kind: PlotKind, m: MirrorReport): string {

@@ -5,7 +5,7 @@
  */
 import type { FileReport, MirrorReport, Range } from '../src/core/types';
 import { badge, button, divider, figures, h, section, severityLabel, table, tag, type TableRow } from './components';
-import { cssId, gmIdPlot, gmIdPlotId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
+import { cssId, driftPlot, gmIdPlot, gmIdPlotId, histogramPlot, ioutPlot, noisePlot, plotId, routPlot, type PlotHandle, type PlotKind } from './plots';
 import { markSchematicDevice, schematicFigure } from './schematic';
 import type { PanelState } from './state';
 import { networkFigures } from './network-tree';
@@ -58,7 +58,7 @@ export function renderPage(root: HTMLElement, state: PanelState, ctx: RenderCont
   return plots.shown;
 }
 
-const MAKERS: Record<PlotKind, (m: MirrorReport) => PlotHandle | undefined> = { iout: ioutPlot, rout: routPlot, mc: histogramPlot };
+const MAKERS: Record<PlotKind, (m: MirrorReport) => PlotHandle | undefined> = { iout: ioutPlot, rout: routPlot, mc: histogramPlot, noise: noisePlot, drift: driftPlot };
 
 class PlotSet {
   readonly shown: PlotHandle[] = [];
@@ -246,7 +246,7 @@ function mirrorDetail(report: FileReport, m: MirrorReport, ctx: RenderContext, p
     }), { class: 'grid devices', 'data-mirror': m.name })),
     devices.some((d) => d.sized) ? h('p', { class: 'note' }, h('span', { class: 'sized' }, 'Italic'), ' sizes are computed by qpoint.') : undefined));
   body.push(section(`find-${id}`, 'Findings', own.length > 0 ? findingsTable(own, ctx) : h('p', { class: 'ok' }, 'No findings: every check passes.')));
-  const plotList = [plots.get('iout', m), plots.get('rout', m)].filter((p): p is PlotHandle => p !== undefined);
+  const plotList = [plots.get('iout', m), plots.get('rout', m), plots.get('noise', m), plots.get('drift', m)].filter((p): p is PlotHandle => p !== undefined);
   body.push(section(`plots-${id}`, 'Plots', plotList.length > 0
     ? h('div', { class: 'plots' }, ...plotList.map((p) => p.element))
     : h('p', { class: 'note' }, 'No Iout/Rout sweep in this report.')));

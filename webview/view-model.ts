@@ -59,7 +59,7 @@ export function countSeverities(findings: readonly Finding[]): Record<Severity, 
 // ───────────────────────────── requirements ─────────────────────────────
 
 export type RequirementKey = keyof Requirements;
-export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma'];
+export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma', 'noise', 'tc', 'supplySensitivity'];
 
 /** Words in a finding code that name a requirement (codes are kebab-case, e.g. `rout-low`). */
 const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
@@ -67,6 +67,9 @@ const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
   rout: ['rout'],
   compliance: ['compliance'],
   sigma: ['sigma', 'mismatch'],
+  noise: ['noise'],
+  tc: ['tc'],
+  supplySensitivity: ['sensitivity'],
 };
 
 /** A finding speaks about requirement `key` when it (or a related location) points at
@@ -106,6 +109,7 @@ export function requirementViews(mirror: MirrorReport, findings: readonly Findin
 
 const FIGURE_LABEL: Record<RequirementKey, string> = {
   ratio: 'Ratio', rout: 'Output resistance', compliance: 'Compliance', sigma: 'Mismatch σ',
+  noise: 'Noise density', tc: 'Temperature coefficient', supplySensitivity: 'Supply sensitivity',
 };
 
 function requirementText(mirror: MirrorReport, key: RequirementKey, target: number): string {
@@ -114,6 +118,9 @@ function requirementText(mirror: MirrorReport, key: RequirementKey, target: numb
     case 'rout': return `≥ ${formatSI(target, 'Ω')}`;
     case 'compliance': return `${sinksCurrent(mirror.type) ? '≤' : '≥'} ${formatSI(target, 'V')}`;
     case 'sigma': return `≤ ${formatPercent(target)}`;
+    case 'noise': return `≤ ${formatSI(target, 'A/√Hz')}`;
+    case 'tc': return `≤ ${formatNumber(target, 3)} ppm/°C`;
+    case 'supplySensitivity': return `≤ ${formatNumber(target, 3)}`;
   }
 }
 
@@ -123,6 +130,9 @@ function actualText(mirror: MirrorReport, key: RequirementKey): string {
     case 'rout': return formatSI(mirror.rout, 'Ω');
     case 'compliance': return formatSI(mirror.compliance, 'V', 4);
     case 'sigma': return mirror.sigma === undefined ? '—' : formatPercent(mirror.sigma);
+    case 'noise': return mirror.noise === undefined ? '—' : formatSI(mirror.noise.density, 'A/√Hz');
+    case 'tc': return mirror.tc === undefined ? '—' : `${formatNumber(mirror.tc, 3)} ppm/°C`;
+    case 'supplySensitivity': return mirror.supplySensitivity === undefined ? '—' : formatNumber(mirror.supplySensitivity, 3);
   }
 }
 
@@ -166,6 +176,18 @@ export function summaryFigures(m: MirrorReport): FigureView[] {
   if (m.vbias !== undefined) {
     figures.push({ key: 'vbias', label: 'Vbias', value: formatSI(m.vbias, 'V', 4),
       detail: m.vbiasPicked ? 'picked by qpoint' : 'from the spec' });
+  }
+  if (m.supplySensitivity !== undefined) {
+    figures.push({ key: 'supplySensitivity', label: 'Supply sensitivity', value: formatNumber(m.supplySensitivity, 3), detail: '(vdd/Iout)·∂Iout/∂vdd' });
+  }
+  if (m.tc !== undefined) {
+    figures.push({ key: 'tc', label: 'TC', value: `${formatNumber(m.tc, 3)} ppm/°C`,
+      detail: m.tcBox !== undefined ? `box ${formatNumber(m.tcBox, 3)} ppm/°C over trange` : 'at the operating temperature' });
+  }
+  if (m.noise) {
+    const top = Object.entries(m.noise.shares).sort((a, b) => b[1] - a[1])[0];
+    figures.push({ key: 'noise', label: `Noise at ${formatSI(m.noise.f, 'Hz')}`, value: formatSI(m.noise.density, 'A/√Hz'),
+      detail: `${formatSI(m.noise.integrated, 'A')} rms in band${top ? ` · ${top[0]} ${formatPercent(top[1])}` : ''}` });
   }
   return figures;
 }

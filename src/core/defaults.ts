@@ -16,7 +16,9 @@ export const DEFAULTS = {
   tolerance: 0.05,
   vss: 0,
   /** Device parameters not given in the spec. */
-  device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5 },
+  device: { lambda: 0, gamma: 0, phi: 0.7, n: 1.3, tcv: 0, bex: -1.5, gn: 2 / 3 },
+  /** `analysis.noise`: the density is read at f (Hz) and integrated over band (Hz). */
+  noise: { f: 1e3, band: [1, 1e6] as [number, number] },
   /** Bipolar parameters not given in the spec (design §10). */
   bipolar: { br: 1, eg: 1.11, xti: 3, xtb: 0, vcesat: 0.2 },
   /** Emitter-area multiple of a bipolar device. */
@@ -95,6 +97,19 @@ export const SOLVER = {
   timeBudgetMs: 50,
   /** V, compliance search accuracy. */
   complianceTol: 1e-4,
+} as const;
+
+/** Drift and noise analyses (analysis/drift.ts, analysis/noise.ts). */
+export const DRIFT = {
+  /** K, half-step of the central difference that gives each element's ∂current/∂T. */
+  dT: 0.05,
+  /** Temperatures re-solved across process.trange (ends included) for tcBox and its plot. */
+  trangePoints: 11,
+  /** Frequencies per decade of the noise spectrum drawn in plots. */
+  spectrumPerDecade: 10,
+  /** Frequencies per decade of the band integral when a filter makes the transfer frequency
+   *  dependent (trapezoids in ln f; without a capacitor the integral is exact). */
+  integralPerDecade: 40,
 } as const;
 
 /** Exact SI defining constants (SI Brochure, 9th ed., 2019). */

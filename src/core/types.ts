@@ -81,6 +81,12 @@ export interface DeviceParams {
   abeta?: number;    // m, Pelgrom current-factor coefficient (pair, relative)
   lmin?: number;     // m
   wmin?: number;     // m
+  /** Channel thermal-noise factor γ (design §12); DEFAULTS.device.gn when absent. */
+  gn?: number;
+  /** V²·F, flicker constant of the input-referred form kf/(cox·W·L·f); no flicker when absent. */
+  kf?: number;
+  /** F/m², gate capacitance per area (the flicker form's Cox). */
+  cox?: number;
   /** The device's characterisation table: its devices follow the table model (kp and vt0 are
    *  then not read). */
   table?: DeviceTable;
@@ -110,6 +116,10 @@ export interface ProcessSpec {
   tnom: number;         // K
   temperature: number;  // K
   grid?: number;        // m
+  /** K, `process.trange: [tmin, tmax]`: the range the box temperature coefficient spans. */
+  trange?: [number, number];
+  /** Set by a corner: how every resistor departs from its written value. */
+  resistors?: ResistorCorner;
   nmos: DeviceParams;
   pmos: DeviceParams;
   /** Present when the spec gives them (a mirror or a netlist device of that type needs them). */
@@ -148,7 +158,7 @@ export interface DeviceSize {
 
 export type InputSource =
   | { kind: 'current'; i: number }            // A, ideal
-  | { kind: 'resistor'; r: number }           // Ω, to the opposite rail
+  | ({ kind: 'resistor'; r: number } & ResistorDrift)  // Ω at tnom, to the opposite rail
   | { kind: 'self' }                          // a self-biased reference: its loop sets the current
   | LinkInput;                                // fed by another mirror's output (design §9.1)
 
@@ -165,6 +175,26 @@ export interface LinkInput {
   i: number;
 }
 
+/** A resistor's temperature coefficient and tolerance (design §12, §14). */
+export interface ResistorDrift {
+  /** 1/K: R(T) = R·(1 + tc1·(T − Tnom)). */
+  tc1?: number;
+  /** relative, the ± spread a corner may apply (CornerSpec.resistors). */
+  tolerance?: number;
+}
+
+/** A corner's resistors: every value times (1 + scale), or each resistor at the `min` or `max`
+ *  edge of its own `tolerance` (a resistor without one stays put). */
+export type ResistorCorner = { scale: number } | { edge: 'min' | 'max' };
+
+/** An RC low-pass on the output devices' gate lines: r in series, c to the mirror's own rail. */
+export interface GateFilter { r: number; c: number }   // Ω, F
+
+/** `analysis:` — how the noise figures are taken (design §12). */
+export interface AnalysisSpec {
+  noise: { f: number; band: [number, number] };   // Hz
+}
+
 export interface OutputSpec {
   v: number;                     // V, nominal output voltage (absolute)
   range?: [number, number];      // V, must work across it
@@ -175,6 +205,9 @@ export interface Requirements {
   rout?: number;        // Ω, minimum
   compliance?: number;  // V, absolute: NMOS must work down to it, PMOS up to it
   sigma?: number;       // relative, maximum
+  noise?: number;       // A/√Hz, maximum output noise density at analysis.noise.f
+  tc?: number;          // ppm/°C, maximum |tc| (and tcBox when process.trange is given)
+  supplySensitivity?: number;  // maximum |(vdd/iout)·∂iout/∂vdd|
 }
 
 /** Design target for auto sizing. */
@@ -210,6 +243,8 @@ export interface TemplateMirror {
   /** The process device flavour its devices are (`process.devices`); absent = process.nmos/pmos. */
   device?: string;
   design?: DesignTarget;
+  /** RC filter on the gate lines from the reference to the output devices. */
+  filter?: GateFilter;
   /** Widlar only: the resistor in the output device's emitter (Ω). */
   degeneration?: number;
   /** Reference kinds: the loop resistor (Ω, `resistor:`). */
@@ -238,7 +273,7 @@ export interface NetlistBipolarDevice {
 export type NetlistDevice = NetlistMosDevice | NetlistBipolarDevice;
 export interface NetlistCurrentSource { name: string; from: string; to: string; i: number }
 export interface NetlistVoltageSource { name: string; node: string; v: number }
-export interface NetlistResistor { name: string; a: string; b: string; r: number }
+export interface NetlistResistor extends ResistorDrift { name: string; a: string; b: string; r: number }
 
 /** Node names `vdd`, `vss` (and `0`, `gnd` = vss) are the supply rails. */
 export interface NetlistMirror {
@@ -275,6 +310,7 @@ export interface CornerSpec {
   temperature?: number;  // K
   vdd?: number;
   vss?: number;
+  resistors?: ResistorCorner;
   path: SpecPath;
 }
 
@@ -287,6 +323,8 @@ export interface ResolvedSpec {
   params: Record<string, number>;
   mirrors: ResolvedMirror[];
   corners: CornerSpec[];
+  /** Absent: DEFAULTS.noise. */
+  analysis?: AnalysisSpec;
   /** Linked groups of mirrors, solved as one circuit each (src/core/network/); absent when the
    *  spec has no links. */
   networks?: SolvedNetwork[];
@@ -455,6 +493,29 @@ export interface ReferenceReport {
 
 export interface CurvePoint { vout: number; iout: number; rout: number; converged: boolean }
 
+/** Output current noise (design §12, §14). */
+export interface NoiseReport {
+  /** Hz, where `density` and `shares` are taken (analysis.noise.f). */
+  f: number;
+  /** A/√Hz at f. */
+  density: number;
+  /** Hz, the integration band (analysis.noise.band). */
+  band: [number, number];
+  /** A rms over the band. */
+  integrated: number;
+  /** Per element (device or resistor name): its fraction of density² at f; they add up to 1. */
+  shares: Record<string, number>;
+  /** Hz, where the summed flicker equals the summed thermal noise at the output (low-frequency
+   *  transfer); absent without flicker. */
+  corner?: number;
+  /** The density versus frequency over the band (for plots), when curves are requested:
+   *  total and each element's part, A/√Hz. */
+  spectrum?: { f: number[]; total: number[]; parts: Record<string, number[]> };
+}
+
+/** Output current at one temperature (the drift plot over process.trange). */
+export interface TemperaturePoint { t: number; iout: number; converged: boolean }   // K, A
+
 export interface MirrorReport {
   /** Output name: the mirror's name, or `mirror.output` for an output of a bias bank. */
   name: string;
@@ -507,6 +568,16 @@ export interface MirrorReport {
   mc?: MonteCarloResult;
   /** Iout and Rout versus Vout across the supply (for plots), when requested. */
   curve?: CurvePoint[];
+  /** (vdd/iout)·∂iout/∂vdd, vdd alone moved (design §14), from the linearized circuit. */
+  supplySensitivity?: number;
+  /** ppm/°C, (1/iout)·∂iout/∂T at the operating temperature, from the linearized circuit. */
+  tc?: number;
+  /** ppm/°C, (max − min)/(iout·Δt) over process.trange, from re-solves. */
+  tcBox?: number;
+  /** Iout at temperatures across process.trange (re-solves), when process.trange is given and
+   *  curves are requested (for plots). */
+  drift?: TemperaturePoint[];
+  noise?: NoiseReport;
   /** The requirements this output is checked against (design §2 `require`), for the panel and
    *  reports; whether each is met follows from the findings on this output. */
   require?: Requirements;

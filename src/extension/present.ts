@@ -190,6 +190,12 @@ export function mirrorFigures(r: MirrorReport): [label: string, value: string][]
   rows.push(['compliance', r.noCompliance ? complianceText(r) : `${formatSI(r.compliance, 'V')} (${sinksCurrent(r.type) ? 'lowest' : 'highest'} Vout)`]);
   if (r.sigma !== undefined) rows.push(['sigma', formatPercent(r.sigma)]);
   if (r.vbias !== undefined) rows.push(['vbias', `${formatSI(r.vbias, 'V')}${r.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
+  if (r.supplySensitivity !== undefined) rows.push(['supply sensitivity', formatPlain(r.supplySensitivity, 3)]);
+  if (r.tc !== undefined) rows.push(['tc', `${formatPlain(r.tc, 3)} ppm/°C${r.tcBox !== undefined ? ` (box ${formatPlain(r.tcBox, 3)} over trange)` : ''}`]);
+  if (r.noise) {
+    const top = Object.entries(r.noise.shares).sort((a, b) => b[1] - a[1])[0];
+    rows.push([`noise at ${formatSI(r.noise.f, 'Hz')}`, `${formatSI(r.noise.density, 'A/√Hz')}${top ? ` (${escapeMd(top[0])} ${formatPercent(top[1])})` : ''}`]);
+  }
   return rows;
 }
 

@@ -36,7 +36,7 @@ describe('many findings of one kind', () => {
     // BASE has 12 lines; k100 is on line 12 + 100 (0-based), its key from column 0.
     expect(more.range).toEqual({ start: { line: 112, character: 0 }, end: { line: 112, character: 4 } });
     expect(more.message).toBe('39900 more `unknown-key` errors are not listed (qpoint lists the first 100 of each kind); '
-      + 'the next one: unknown key `k100` in the spec; expected one of format, title, process, supplies, limits, params, mirrors, corners');
+      + 'the next one: unknown key `k100` in the spec; expected one of format, title, process, supplies, limits, params, mirrors, corners, analysis');
     expect(p.spec).toBeUndefined();
   });
 

@@ -25,7 +25,8 @@
  *   solveAt with a perturbation keeps the nominal pick (the bias comes from elsewhere).
  */
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
-import { failedReport, measure, vbiasFor } from './measure';
+import { failedReport, measure, type MeasureOptions } from './measure';
+import { vbiasFor } from './vbias';
 import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
 import { RepeatedMirrors, type SolvedUnits } from './repeats';
 import { sweepCircuit } from './sweep';
@@ -59,7 +60,7 @@ export function solveAt(ctx: MirrorContext, vout: number, perturb?: Perturbation
 }
 
 /** Every figure of design §4 at the nominal output voltage; curve when opts.curve. Never throws. */
-export function measureMirror(ctx: MirrorContext, opts?: { curve?: boolean; curvePoints?: number }): MirrorReport {
+export function measureMirror(ctx: MirrorContext, opts?: MeasureOptions): MirrorReport {
   try {
     return measure(ctx, opts);
   } catch (err) {

@@ -9,6 +9,10 @@ import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
+import { atTemperature, boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient, type Rebuilt } from './drift';
+import { DEFAULT_ANALYSIS, outputNoise } from './noise';
+import { heldProbe, probeRow, type Probed } from './probe';
+import { jointDrift } from '../network/drift';
 import { referenceReport } from './reference';
 import { splitBipolarError, splitError } from './errorSplit';
 import { sizeWeight } from '../circuit/templates';
@@ -21,9 +25,15 @@ import {
 } from './solve';
 import { linspace, sweepCircuit } from './sweep';
 import { tableCurve } from '../models/table/curve';
-import { knownVbias, pickVbiasOn, resolveVbias, type VbiasChoice } from './vbias';
+import { knownVbias, pickVbiasOn } from './vbias';
 
-export interface MeasureOptions { curve?: boolean; curvePoints?: number }
+export interface MeasureOptions {
+  curve?: boolean; curvePoints?: number;
+  /** false: leave out supply sensitivity, tc, tcBox and noise (a corner's table shows none);
+   *  'required': the linearized figures and noise, but tcBox (eleven re-solves) only for an
+   *  output that requires a tc — what a fix search or its verification needs. */
+  drift?: boolean | 'required';
+}
 
 /** Which output a report is about: what differs between reports of identical mirrors. */
 export interface ReportIdentity {
@@ -57,9 +67,6 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
   return r;
 }
 
-export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
-  return takesVbias(t.mirror) ? resolveVbias(t.spec, t.mirror) : undefined;
-}
 
 function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
@@ -124,6 +131,25 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     const sigma = outputSigma(mc.circuit.devices, outputSensitivities(mc.circuit, mc.ws, lam), iout);
     if (sigma !== undefined) base.sigma = sigma;
   }
+  const trange = t.spec.process.trange;
+  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
+  const box = trange !== undefined && opts.drift !== false && (opts.drift !== 'required' || req?.tc !== undefined);
+  // A network member drifts and carries noise with everything above it: its joint circuit.
+  const joint = opts.drift !== false ? jointDrift(t.spec, indexOf(m), t.outputIndex, { box, curve: opts.curve === true }) : undefined;
+  if (joint) Object.assign(base, joint);
+  else if (lam && opts.drift !== false) {
+    const pr: Probed = { probe: heldProbe(mc.circuit), row: probeRow(mc.ws, heldProbe(mc.circuit)), lam };
+    const s = supplySensitivity(mc.circuit, mc.ws, pr, iout, t.spec.supplies.vdd);
+    if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;
+    const rebuild = (temp: number): Rebuilt => {
+      const other = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vb?.vbias);
+      return { circuit: other.circuit, ws: other.ws, probe: heldProbe(other.circuit) };
+    };
+    const tc = temperatureCoefficient(mc.circuit, mc.ws, pr, iout, t.spec.process.temperature, rebuild);
+    if (tc !== undefined) base.tc = tc;
+    const noise = outputNoise(mc.circuit, mc.ws, pr, t.spec.process.temperature, t.spec.analysis ?? DEFAULT_ANALYSIS, opts.curve === true);
+    if (noise) base.noise = noise;
+  }
   const byRole: Record<string, SmallSignal | undefined> = {};
   for (const role in mc.byRole) {
     const k = mc.byRole[role]!, d = devices[k]!, m = mc.circuit.devices[k]!;
@@ -135,6 +161,12 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
+  if (trange && box && !joint) {
+    const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
+    if (opts.curve) base.drift = drift;
+    const box = boxCoefficient(drift, iout);
+    if (box !== undefined) base.tcBox = box;
+  }
   const comp = findCompliance(mc, uNom, xNom);
   base.compliance = comp.compliance;
   if (!comp.found && comp.limiter !== undefined) base.noCompliance = { device: mc.circuit.devices[comp.limiter]!.name };

@@ -13,7 +13,8 @@ import { newChannelEval } from '../models/core';
 import { evalFrame } from '../models/terminal';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import { heldNodeResponse } from '../circuit/smallSignal';
-import { buildMirror, nominalVout, solveMirror } from './solve';
+import { takesVbias } from '../kinds/index';
+import { buildMirror, nominalVout, solveMirror, type MirrorTarget } from './solve';
 
 export interface VbiasChoice {
   /** V, absolute. */
@@ -176,3 +177,8 @@ function raiseForOutputs(mc: MirrorCircuit, node: number, u0: number, margin: nu
 }
 
 function clamp(x: number, lo: number, hi: number): number { return Math.min(Math.max(x, lo), hi); }
+
+/** The vbias of a target's mirror (its own, or the one picked for it), if it takes one. */
+export function vbiasFor(t: MirrorTarget): VbiasChoice | undefined {
+  return takesVbias(t.mirror) ? resolveVbias(t.spec, t.mirror) : undefined;
+}

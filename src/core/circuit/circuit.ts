@@ -6,7 +6,7 @@
  */
 import { SOLVER } from '../defaults';
 import type {
-  BjtElement, CircuitElement, CurrentSourceElement, DeviceElement, MosElement, ResistorElement, VoltageSourceElement,
+  BjtElement, CapacitorElement, CircuitElement, CurrentSourceElement, DeviceElement, MosElement, ResistorElement, VoltageSourceElement,
 } from './elements/element';
 import { hasSlots, patternOf } from './elements/stamp';
 import { JacobianPattern } from './jacobian';
@@ -54,7 +54,8 @@ type Pending =
   | { kind: 'mos'; m: MosDescription; nodes: [string, string, string, string] }
   | { kind: 'bjt'; q: BjtDescription; nodes: [string, string, string] }
   | { kind: 'resistor'; e: ResistorElement; a: string; b: string }
-  | { kind: 'current'; e: CurrentSourceElement; from: string; to: string };
+  | { kind: 'current'; e: CurrentSourceElement; from: string; to: string }
+  | { kind: 'capacitor'; e: CapacitorElement; a: string; b: string };
 
 /** Collects nodes by name and elements by node name, then numbers them (free nodes first). */
 export class CircuitBuilder {
@@ -100,6 +101,13 @@ export class CircuitBuilder {
     const e: ResistorElement = { kind: 'resistor', name, a: 0, b: 0, g: r > 0 && Number.isFinite(r) ? 1 / r : 0, slot: 0 };
     this.pending.push({ kind: 'resistor', e, a, b });
     return e;
+  }
+
+  /** A capacitor of c F (open at DC; seen by the noise analysis only). */
+  capacitor(name: string, a: string, b: string, c: number): void {
+    this.node(a); this.node(b);
+    if (!(c > 0) || !Number.isFinite(c)) this.problems.push(`capacitor ${name}: ${c} F is not a positive capacitance`);
+    this.pending.push({ kind: 'capacitor', e: { kind: 'capacitor', name, a: 0, b: 0, c }, a, b });
   }
 
   build(out: string, outSign: 1 | -1, vss: number, vdd: number): Circuit {
@@ -148,6 +156,7 @@ export class CircuitBuilder {
         }
         case 'resistor': p.e.a = at(p.a); p.e.b = at(p.b); elements.push(p.e); break;
         case 'current': p.e.from = at(p.from); p.e.to = at(p.to); elements.push(p.e); break;
+        case 'capacitor': p.e.a = at(p.a); p.e.b = at(p.b); elements.push(p.e); break;
       }
     }
     let count = 0;

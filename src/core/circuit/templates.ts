@@ -17,8 +17,12 @@ import { KINDS, type Connection } from '../kinds/index';
 import { CircuitBuilder, type MosDescription } from './circuit';
 import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
+import { resistanceAt } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
+
+/** Suffix of a filtered gate line's node (`a~f` is node a seen through the filter). */
+const FILTERED = '~f';
 
 export interface PerturbationLike { dvt: Record<string, number>; dbeta: Record<string, number> }
 
@@ -128,6 +132,11 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     byRole[role] = add(role, role, size, conn, refMap, true);
   }
 
+  // A gate filter: each reference node an output gate sits on reaches those gates through r,
+  // with c from the filtered line to the mirror's own rail (no DC current flows in r).
+  // Kind-local names of the reference nodes an output gate sits on (their filtered twins are
+  // `<node>~f`, mapped like every other node).
+  const filtered = new Set<string>();
   const outNodes: string[] = [];
   const cNodes: (string | undefined)[] = [];
   m.outputs.forEach((o: MirrorOutput, j) => {
@@ -144,7 +153,11 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
       const conn = kind.output[role];
       const size = o.devices[role] ?? m.devices[role];
       if (!conn || !size) { b.problems.push(`output ${o.name}: no size for role ${role}`); continue; }
-      const k = add(`${prefix}${role}`, role, size, conn, map, j === w.outputIndex);
+      const g = conn.g;
+      const onLine = m.filter !== undefined && g !== 'O' && g !== 'C' && g !== 'R' && g !== 'vbias';
+      if (onLine) filtered.add(g);
+      const wired = onLine ? { ...conn, g: `${g}${FILTERED}` } : conn;
+      const k = add(`${prefix}${role}`, role, size, wired, map, j === w.outputIndex);
       if (j === w.outputIndex) byRole[role] = k;
     }
     if (kind.degeneration !== undefined) {
@@ -154,6 +167,14 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     }
   });
 
+  if (m.filter) {
+    const lines = [...filtered];
+    for (const n of lines) {
+      const name = `${ns}${lines.length === 1 ? 'filter' : `filter.${n}`}`;
+      b.resistor(name, refMap(n), refMap(`${n}${FILTERED}`), m.filter.r);
+      b.capacitor(`${name}.c`, refMap(`${n}${FILTERED}`), R, m.filter.c);
+    }
+  }
   const loop = kind.loop;
   if (loop) {
     const r = m.resistor ?? NaN;
@@ -169,7 +190,8 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current(`${ns}input`, 'vdd', inputNode, i); else b.current(`${ns}input`, inputNode, 'vss', i);
   } else {
-    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, m.input.r) : b.resistor(`${ns}input`, inputNode, 'vss', m.input.r);
+    const ohms = resistanceAt(m.input.r, m.input, spec.process);
+    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms) : b.resistor(`${ns}input`, inputNode, 'vss', ohms);
   }
   return out;
 }
@@ -232,7 +254,9 @@ export function buildTemplate(
       solveFor(0.5 * (lo + hi));
     }
     for (let k = 0; k < c.nFree; k++) {
-      const uk = g.u[freeNames[k]!];
+      const name = freeNames[k]!;
+      // A filtered gate line sits at its reference node (no DC current in the filter).
+      const uk = g.u[name.endsWith(FILTERED) ? name.slice(0, -FILTERED.length) : name];
       ws.v[k] = rail + sign * (uk !== undefined && Number.isFinite(uk) ? uk : 0.5 * span);
     }
   };

@@ -14,7 +14,7 @@ import { channelCurrent, currentNodes, deviceReport } from '../circuit/elements/
 import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
-import { vbiasFor } from '../analysis/measure';
+import { vbiasFor } from '../analysis/vbias';
 import type { NetworkGroup } from './groups';
 import { rootStartCurrent } from './root-current';
 

@@ -9,7 +9,7 @@
  */
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { buildMirror, nominalVout, solveMirror } from '../analysis/solve';
-import { vbiasFor } from '../analysis/measure';
+import { vbiasFor } from '../analysis/vbias';
 
 /** A, where a reference that cannot be solved alone starts (a typical bias current). */
 export const REFERENCE_FALLBACK = 10e-6;

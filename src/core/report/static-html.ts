@@ -7,6 +7,7 @@
  * it runs, replaces it on screen with the interactive view; printing always uses this body.
  */
 import type { BipolarDeviceReport, DeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
+import { ZERO_CELSIUS } from '../defaults';
 import { isBipolarReport, isBipolarSplit, sinksCurrent } from '../device-types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
@@ -28,6 +29,7 @@ const ESC: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"
 const esc = (s: string): string => s.replace(/[&<>"']/g, (c) => ESC[c] ?? c);
 const si = (v: number, unit: string, digits = 3): string => (Number.isFinite(v) ? formatSI(v, unit, digits) : v === Infinity ? `∞ ${unit}` : '—');
 const pct = (x: number, signed = false, digits = 3): string => (Number.isFinite(x) ? (signed ? formatSignedPercent(x, digits) : formatPercent(x, digits)) : '—');
+const ppm = (x: number): string => (Number.isFinite(x) ? `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C` : '—');
 const plain = (x: number, digits = 5): string => (Number.isFinite(x) ? String(Number(x.toPrecision(digits))) : '—');
 
 function table(caption: string, head: string[], rows: string[][], cls = ''): string {
@@ -66,6 +68,14 @@ function summaryRows(m: MirrorReport): string[][] {
   rows.push(['Compliance', m.noCompliance ? `none: ${esc(m.noCompliance.device)} is out of saturation at every Vout`
     : `${si(m.compliance, 'V', 4)} (${sinksCurrent(m.type) ? 'works down to' : 'works up to'})`]);
   if (m.sigma !== undefined) rows.push(['σ(Iout)', `${pct(m.sigma)} (Pelgrom, 1σ)`]);
+  if (m.supplySensitivity !== undefined) rows.push(['Supply sensitivity', `${plain(m.supplySensitivity, 3)} ((vdd/Iout)·∂Iout/∂vdd)`]);
+  if (m.tc !== undefined) rows.push(['Temperature coefficient', `${ppm(m.tc)}${m.tcBox !== undefined ? ` (box ${ppm(m.tcBox)} over process.trange)` : ''}`]);
+  if (m.noise) {
+    const n = m.noise;
+    const shares = Object.entries(n.shares).sort((a, b) => b[1] - a[1]).map(([k, v]) => `${esc(k)} ${pct(v)}`).join(', ');
+    rows.push(['Noise', `${si(n.density, 'A/√Hz')} at ${si(n.f, 'Hz')} (${shares}); ${si(n.integrated, 'A')} rms over ${si(n.band[0], 'Hz')}…${si(n.band[1], 'Hz')}` +
+      `${n.corner !== undefined ? `; flicker corner ${si(n.corner, 'Hz')}` : ''}`]);
+  }
   if (m.vbias !== undefined) rows.push(['Vbias', `${si(m.vbias, 'V', 4)}${m.vbiasPicked ? ' (picked by qpoint)' : ''}`]);
   if (m.network !== undefined) {
     rows.push(['Network', m.fedBy !== undefined ? `fed by ${esc(m.fedBy)} (network ${esc(m.network)})` : `root of ${esc(m.network)}`]);
@@ -119,6 +129,7 @@ function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schemati
       '</div>');
   }
   if (!m.beyondRails) out.push(...m.devices.flatMap((d) => gmIdPlots(m, d)));
+  if (!m.beyondRails) out.push(...driftPlots(m));
   if (m.corners && m.corners.length > 0) {
     out.push(table(`Corners of ${m.name}`, ['Corner', 'Iout', 'Ratio', 'Error', 'Rout', 'Compliance', 'σ', 'Min margin'], m.corners.map((c) => (c.converged ? [
       esc(c.name), si(c.iout, 'A', 4), plain(c.ratio), pct(c.error, true), si(c.rout, 'Ω'), si(c.compliance, 'V', 4),
@@ -151,6 +162,29 @@ function gmIdPlots(m: MirrorReport, d: DeviceReport): string[] {
     linePlotSvg({ title: `ID/W versus VGS — ${who}`, xUnit: 'V', yUnit: 'A/m', logY: true, marker, point: { x: d.vgs, y: d.id / (d.m * d.w) }, points: pts(c.idW) }),
     '</div>',
   ];
+}
+
+/** The noise density versus frequency (each element's part, the flicker corner) and Iout versus
+ *  temperature over process.trange, when the report carries them. */
+function driftPlots(m: MirrorReport): string[] {
+  const plots: string[] = [];
+  const sp = m.noise?.spectrum;
+  if (sp && sp.f.length > 1) {
+    const corner = m.noise!.corner;
+    plots.push(linePlotSvg({
+      title: `Noise density (A/√Hz) versus frequency — ${m.name}`, xUnit: 'Hz', yUnit: '', logX: true, logY: true,
+      points: sp.f.map((f, k) => ({ x: f, y: sp.total[k]!, ok: true })),
+      extra: Object.entries(sp.parts).map(([label, ys]) => ({ label, points: sp.f.map((f, k) => ({ x: f, y: ys[k]!, ok: true })) })),
+      marker: corner !== undefined ? { x: corner, label: 'flicker corner' } : undefined,
+    }));
+  }
+  if (m.drift && m.drift.length > 1) {
+    plots.push(linePlotSvg({
+      title: `Iout (A) versus temperature — ${m.name}`, xUnit: '°C', yUnit: '',
+      points: m.drift.map((p) => ({ x: p.t - ZERO_CELSIUS, y: p.iout, ok: p.converged })),
+    }));
+  }
+  return plots.length ? ['<div class="plots-static">', ...plots, '</div>'] : [];
 }
 
 /** The whole static body. */

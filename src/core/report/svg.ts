@@ -15,11 +15,17 @@ export interface LinePlot {
   yUnit: string;
   points: LinePoint[];
   logY?: boolean;
-  /** A vertical marker (the nominal output voltage). */
+  /** A logarithmic x axis (frequency). */
+  logX?: boolean;
+  /** A vertical marker (the nominal output voltage, the flicker corner). */
   marker?: { x: number; label: string };
   /** A dot on the plot (the operating point). */
   point?: { x: number; y: number };
+  /** More lines on the same axes (each device's part), thinner, with a legend. */
+  extra?: { label: string; points: LinePoint[] }[];
 }
+
+const EXTRA_COLOURS = ['green', 'purple', 'orange', 'yellow', 'red'];
 
 const W = 560, H = 240;
 const PAD = { left: 64, right: 16, top: 28, bottom: 40 };
@@ -50,27 +56,39 @@ function frame(title: string, body: string[]): string {
 }
 
 export function linePlotSvg(p: LinePlot): string {
-  const good = p.points.filter((q) => q.ok && Number.isFinite(q.x) && Number.isFinite(q.y) && (!p.logY || q.y > 0));
-  const xs = p.points.map((q) => q.x).filter(Number.isFinite);
+  const usable = (q: LinePoint): boolean => q.ok && Number.isFinite(q.x) && Number.isFinite(q.y) && (!p.logY || q.y > 0) && (!p.logX || q.x > 0);
+  const good = p.points.filter(usable);
+  const extraGood = (p.extra ?? []).flatMap((e) => e.points.filter(usable));
+  const xs = p.points.map((q) => q.x).filter((x) => Number.isFinite(x) && (!p.logX || x > 0));
   if (good.length < 2 || xs.length < 2) return frame(p.title, [`<text x="${W / 2}" y="${H / 2}" text-anchor="middle" style="fill: var(--vscode-descriptionForeground)">no converged points</text>`]);
-  const x0 = Math.min(...xs), x1 = Math.max(...xs);
+  const fx = (x: number): number => (p.logX ? Math.log10(x) : x);
+  const x0 = fx(Math.min(...xs)), x1 = fx(Math.max(...xs));
   const fy = (y: number): number => (p.logY ? Math.log10(y) : y);
-  let y0 = Math.min(...good.map((q) => fy(q.y))), y1 = Math.max(...good.map((q) => fy(q.y)));
+  let y0 = Math.min(...[...good, ...extraGood].map((q) => fy(q.y))), y1 = Math.max(...good.map((q) => fy(q.y)));
+  // Parts far below the total would stretch the axis over decades nobody reads: four at most.
+  if (p.logY && p.extra) y0 = Math.max(y0, y1 - 4);
   if (p.logY) { y0 = Math.floor(y0); y1 = Math.ceil(y1); if (y1 === y0) y1 = y0 + 1; }
   else { if (y0 > 0 && y0 < 0.2 * y1) y0 = 0; if (y1 === y0) { y1 = y0 + (Math.abs(y0) || 1) * 0.1; } }
-  const px = (x: number): number => PAD.left + ((x - x0) / (x1 - x0 || 1)) * (W - PAD.left - PAD.right);
+  const px = (x: number): number => PAD.left + ((fx(x) - x0) / (x1 - x0 || 1)) * (W - PAD.left - PAD.right);
   const py = (y: number): number => H - PAD.bottom - ((fy(y) - y0) / (y1 - y0)) * (H - PAD.top - PAD.bottom);
   const body: string[] = [];
   const axis = 'stroke: var(--vscode-charts-lines); stroke-width: 1';
   const label = 'fill: var(--vscode-charts-foreground); font: 10px var(--vscode-font-family)';
-  for (const t of ticks(x0, x1)) {
+  const xTicks = p.logX ? Array.from({ length: Math.floor(x1) - Math.ceil(x0) + 1 }, (_, k) => 10 ** (Math.ceil(x0) + k)) : ticks(x0, x1);
+  for (const t of xTicks) {
+    // A label at the right edge ends there instead of running off the plot.
+    const anchor = px(t) > W - PAD.right - 12 ? 'end' : 'middle';
     body.push(`<line x1="${num(px(t))}" y1="${H - PAD.bottom}" x2="${num(px(t))}" y2="${PAD.top}" style="${axis}; stroke-dasharray: 2 3"/>`,
-      `<text x="${num(px(t))}" y="${H - PAD.bottom + 14}" text-anchor="middle" style="${label}">${esc(formatSI(t, p.xUnit))}</text>`);
+      `<text x="${num(px(t))}" y="${H - PAD.bottom + 14}" text-anchor="${anchor}" style="${label}">${esc(formatSI(t, p.xUnit))}</text>`);
   }
   const yTicks = p.logY ? Array.from({ length: y1 - y0 + 1 }, (_, k) => 10 ** (y0 + k)) : ticks(y0, y1);
+  // Enough digits that neighbouring ticks read differently (a drift of a few per mille).
+  const yStep = yTicks.length > 1 ? Math.abs(yTicks[1]! - yTicks[0]!) : 0;
+  const yMag = Math.max(Math.abs(y0), Math.abs(y1));
+  const yDigits = p.logY || !(yStep > 0) ? 3 : Math.min(6, Math.max(3, Math.ceil(Math.log10(yMag / yStep)) + 1));
   for (const t of yTicks) {
     body.push(`<line x1="${PAD.left}" y1="${num(py(t))}" x2="${W - PAD.right}" y2="${num(py(t))}" style="${axis}; stroke-dasharray: 2 3"/>`,
-      `<text x="${PAD.left - 6}" y="${num(py(t) + 3)}" text-anchor="end" style="${label}">${esc(formatSI(t, p.yUnit))}</text>`);
+      `<text x="${PAD.left - 6}" y="${num(py(t) + 3)}" text-anchor="end" style="${label}">${esc(formatSI(t, p.yUnit, yDigits))}</text>`);
   }
   body.push(`<rect x="${PAD.left}" y="${PAD.top}" width="${W - PAD.left - PAD.right}" height="${H - PAD.top - PAD.bottom}" style="fill: none; ${axis}"/>`);
   // One polyline per run of good points: a failed point breaks the line.
@@ -91,7 +109,13 @@ export function linePlotSvg(p: LinePlot): string {
     }
   }
   flush();
-  if (p.marker && p.marker.x >= x0 && p.marker.x <= x1) {
+  (p.extra ?? []).forEach((e, k) => {
+    const colour = `var(--vscode-charts-${EXTRA_COLOURS[k % EXTRA_COLOURS.length]})`;
+    const pts = e.points.filter(usable).map((q) => `${num(px(q.x))},${num(Math.min(py(q.y), H - PAD.bottom))}`);
+    if (pts.length > 1) body.push(`<polyline class="part" points="${pts.join(' ')}" style="fill: none; stroke: ${colour}; stroke-width: 1; stroke-dasharray: 4 2"/>`);
+    body.push(`<text x="${W - PAD.right - 4}" y="${PAD.top + 12 + 12 * k}" text-anchor="end" style="fill: ${colour}; font: 10px var(--vscode-font-family)">${esc(e.label)}</text>`);
+  });
+  if (p.marker && fx(p.marker.x) >= x0 && fx(p.marker.x) <= x1) {
     const x = num(px(p.marker.x));
     body.push(`<line x1="${x}" y1="${PAD.top}" x2="${x}" y2="${H - PAD.bottom}" style="stroke: var(--vscode-charts-orange); stroke-width: 1"/>`,
       `<text x="${x}" y="${PAD.top - 3}" text-anchor="middle" style="${label}">${esc(p.marker.label)}</text>`);

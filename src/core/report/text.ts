@@ -54,7 +54,7 @@ function mirrorBlock(m: MirrorReport): string[] {
   const compliance = m.noCompliance ? `compliance none (${m.noCompliance.device} out of saturation at every Vout)` : `compliance ${si(m.compliance, 'V')}`;
   const line2 = `  Rout ${si(m.rout, 'Ω')}${approx}  ${compliance} at Vout ${si(m.vout, 'V')}${sigma}${vb}`;
   const ref = m.reference ? [`  ${referenceText(m.reference, (v, u) => si(v, u))}`] : [];
-  return [head, line1, line2, ...ref, ...linkLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
+  return [head, line1, line2, ...ref, ...linkLines(m), ...driftLines(m), ...deviceTable(m.devices), ...cornerLines(m), ...monteCarloLines(m)];
 }
 
 /** A network member's place in it (design §9.3): what feeds it, what it feeds, the chain figures. */
@@ -77,6 +77,29 @@ function networkBlock(n: NetworkReport): string[] {
     `network ${n.root}${state}: ${n.members.join(', ')}`,
     `  supply ${si(n.supplyCurrent.vdd, 'A')}  power ${si(n.power, 'W')}  leaves ${n.leaves.join(', ')}${worst}`,
   ];
+}
+
+/** Supply sensitivity, temperature coefficient and noise (design §12), when computed. */
+function driftLines(m: MirrorReport): string[] {
+  const parts: string[] = [];
+  if (m.supplySensitivity !== undefined) parts.push(`supply sensitivity ${m.supplySensitivity.toPrecision(3)}`);
+  if (m.tc !== undefined) {
+    const box = m.tcBox !== undefined ? ` (box ${ppm(m.tcBox)} over process.trange)` : '';
+    parts.push(`tc ${ppm(m.tc)}${box}`);
+  }
+  const n = m.noise;
+  const lines = parts.length ? [`  ${parts.join('  ')}`] : [];
+  if (n) {
+    const top = Object.entries(n.shares).sort((a, b) => b[1] - a[1]).slice(0, 2)
+      .map(([k, v]) => `${k} ${formatPercent(v)}`).join(', ');
+    const corner = n.corner !== undefined ? `  flicker corner ${si(n.corner, 'Hz')}` : '';
+    lines.push(`  noise ${si(n.density, 'A/√Hz')} at ${si(n.f, 'Hz')} (${top})  ${si(n.integrated, 'A')} rms over ${si(n.band[0], 'Hz')}…${si(n.band[1], 'Hz')}${corner}`);
+  }
+  return lines;
+}
+
+function ppm(x: number): string {
+  return `${x >= 0 ? '+' : '-'}${Math.abs(x).toPrecision(3)} ppm/°C`;
 }
 
 function cornerLines(m: MirrorReport): string[] {

@@ -71,6 +71,30 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Scale the gate area at constant W/L: σ ∝ 1/√(W·L) (Pelgrom 1989); the quick fix computes the area and verifies it.',
   },
   {
+    code: 'noise-high', severity: 'error',
+    summary: 'The output current noise density at analysis.noise.f is above require.noise.',
+    why: 'A bias line carries its devices\' thermal and flicker noise into the circuit it biases (an LNA, an ADC); the finding names the device with the largest share.',
+    fix: 'Flicker: enlarge the dominant device\'s gate area at constant W/L (flicker ∝ 1/(W·L)); thermal: lower gm (longer L); a gate filter\'s capacitor when its resistor dominates. Quick fixes lengthen at constant W/L or set the filter c, verified by re-solving.',
+  },
+  {
+    code: 'filter-adds-noise', severity: 'warning',
+    summary: 'A gate filter raises the output noise at analysis.noise.f instead of lowering it.',
+    why: 'Below the filter pole the series resistor\'s own noise 4kT·R reaches the output gates; it is usually far above the diode\'s 4kT·γ/gm that the filter was meant to block.',
+    fix: 'A larger c (pole well below f) or a smaller r; the quick fix computes the c, verified by re-solving.',
+  },
+  {
+    code: 'tc-high', severity: 'error',
+    summary: 'The output current\'s temperature coefficient (or its box figure over process.trange) is above require.tc.',
+    why: 'A bias current that drifts moves every gm and slew rate it sets over temperature.',
+    fix: 'Move the overdrive toward the zero-TC point 2·|tcv|·T/|bex|, or cancel the drift with a resistor tc1; the quick fix widens the mirror when that meets the limit (verified).',
+  },
+  {
+    code: 'supply-sensitivity-high', severity: 'error',
+    summary: 'The output current\'s supply sensitivity (vdd/iout)·∂iout/∂vdd is above require.supplySensitivity.',
+    why: 'Supply ripple and droop reach the biased circuit as current changes; a resistor from the supply sets a current that follows the supply almost one for one.',
+    fix: 'A longer output device or a cascode (higher output resistance), or a self-biased reference instead of a resistor; the quick fix lengthens at constant W/L when that meets the limit (verified).',
+  },
+  {
     code: 'input-headroom', severity: 'error',
     summary: 'The input branch needs more voltage than the supply leaves: the input node is within limits.sourceHeadroom of the opposite rail, or a resistor input is left with less than that across it.',
     why: 'The current source feeding the mirror needs voltage across it to stay a current source; a resistor with little voltage across it sets a current that follows the threshold voltage, not the resistor.',

@@ -16,6 +16,7 @@ import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
 import { checkCompliance, checkRout, checkSigma } from './checks/requirements';
+import { checkFilterNoise, checkNoise, checkSupplySensitivity, checkTc } from './checks/drift';
 import { checkHeadroom } from './checks/headroom';
 import { checkInversion } from './checks/inversion';
 import { checkGeometry } from './checks/geometry';
@@ -92,6 +93,10 @@ export function detect(rc: RuleContext): Draft[] {
     run(() => checkRout(rc, site));
     run(() => checkCompliance(rc, site));
     run(() => checkSigma(rc, site));
+    run(() => checkNoise(rc, site));
+    run(() => checkFilterNoise(rc, site));
+    run(() => checkTc(rc, site));
+    run(() => checkSupplySensitivity(rc, site));
     run(() => checkHeadroom(rc, site));
     run(() => checkGeometry(rc, site));
     run(() => checkInversion(rc, site, inversionSeen));

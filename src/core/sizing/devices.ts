@@ -94,7 +94,7 @@ export function measure(spec: ResolvedSpec, mirrorIndex: number, outputIndex: nu
   const ctx = contextOf(spec, mirrorIndex, outputIndex);
   if (!ctx) return undefined;
   try {
-    return measureMirror(ctx);
+    return measureMirror(ctx, { drift: 'required' });
   } catch {
     return undefined;
   }

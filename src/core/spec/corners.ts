@@ -72,6 +72,19 @@ export function readCorners(scope: ValueScope, raw: unknown, process: ProcessSpe
       const t = readTemperature(scope, c.temperature, [...path, 'temperature']);
       if (t !== undefined) corner.temperature = t;
     }
+    if (c.resistors !== undefined) {
+      const at = [...path, 'resistors'];
+      const raw = c.resistors;
+      const pm = typeof raw === 'string' ? PERCENT.exec(raw) : null;
+      if (raw === 'min' || raw === 'max') corner.resistors = { edge: raw };
+      else if (pm) {
+        const r = readQuantity(`${pm[1]}%`, 'ratio');
+        if (r.ok && r.value > -1) corner.resistors = { scale: r.value };
+        else scope.sink.error('bad-value', `corner \`${name}\` scales resistors by ${String(raw)}; a resistor must stay positive`, at);
+      } else {
+        scope.sink.error('bad-value', `corner \`${name}\`: \`resistors\` is a percentage (\`+10%\`), \`min\` or \`max\` (each resistor at the edge of its tolerance); got ${JSON.stringify(raw)}`, at);
+      }
+    }
     for (const k of ['vdd', 'vss'] as const) {
       if (c[k] === undefined) continue;
       const v = resolveNumber(scope, c[k], [...path, k], 'voltage');

@@ -7,6 +7,7 @@ import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpe
 import { DEFAULTS } from '../defaults';
 import { DEVICE_TYPES, isBipolarDevice, isBipolarType } from '../device-types';
 import { familyOf, KINDS } from '../kinds/index';
+import { readAnalysis } from './drift';
 import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
@@ -128,13 +129,15 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       process = { model: proc.model, tnom: proc.tnom, temperature: proc.temperature, nmos, pmos };
       if (proc.devices) process.devices = proc.devices;
       if (proc.grid !== undefined) process.grid = proc.grid;
+      if (proc.trange !== undefined) process.trange = proc.trange;
       if (proc.npn) process.npn = proc.npn;
       if (proc.pnp) process.pnp = proc.pnp;
     }
   }
   const corners = data.corners === undefined ? [] : readCorners(scope, data.corners, process, supplies);
+  const analysis = readAnalysis(scope, data.analysis);
   if (!formatOk || !process || !supplies || !limits) return undefined;
-  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors: linked, corners };
+  const spec: ResolvedSpec = { format: 1, process, supplies, limits, params: Object.fromEntries(scope.params), mirrors: linked, corners, analysis };
   if (title !== undefined) spec.title = title;
   return spec;
 }

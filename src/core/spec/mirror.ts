@@ -4,6 +4,7 @@ import type { DesignTarget, DeviceParams, DeviceSize, DeviceType, InputSource, M
   Requirements, SpecPath, Supplies, TemplateMirror } from '../types';
 import { isBipolarType } from '../device-types';
 import { formatSI } from '../text/format';
+import { readFilter, readResistorDrift } from './drift';
 import { isRecord } from './params';
 import { misplaced, missing, readMap, readString } from './read';
 import type { Data } from './read';
@@ -34,7 +35,8 @@ export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): Inpu
       return undefined;
     }
     const r = resolveNumber(scope, raw.resistor, [...path, 'resistor'], 'resistance', { positive: true });
-    return r === undefined ? undefined : { kind: 'resistor', r };
+    const drift = readResistorDrift(scope, raw, path);
+    return r === undefined ? undefined : { kind: 'resistor', r, ...drift };
   }
   const i = resolveNumber(scope, raw, path, 'current', { positive: true });
   return i === undefined ? undefined : { kind: 'current', i };
@@ -70,7 +72,7 @@ export function readOutput(scope: ValueScope, raw: unknown, path: SpecPath, supp
 }
 
 export function readRequire(scope: ValueScope, raw: unknown, path: SpecPath): Requirements | undefined {
-  const r = readMap(scope.sink, raw, path, 'a mapping { ratio, rout, compliance, sigma }');
+  const r = readMap(scope.sink, raw, path, 'a mapping { ratio, rout, compliance, sigma, noise, tc, supplySensitivity }');
   if (!r) return undefined;
   const out: Requirements = {};
   const read = (key: keyof Requirements, q: Parameters<typeof resolveNumber>[3], positive: boolean) => {
@@ -82,6 +84,9 @@ export function readRequire(scope: ValueScope, raw: unknown, path: SpecPath): Re
   read('rout', 'resistance', true);
   read('compliance', 'voltage', false);
   read('sigma', 'ratio', true);
+  read('noise', 'noiseDensity', true);
+  read('tc', 'plain', true);
+  read('supplySensitivity', 'plain', true);
   return out;
 }
 
@@ -175,6 +180,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
       startup = layer ? buildSize({ scope, params, hasDesign: false, sizePath: sp }, [layer]) : undefined;
     }
   }
+  const filter = m.filter === undefined ? undefined : readFilter(scope, m.filter, [...path, 'filter']);
   const vbias = m.vbias === undefined || !spec.vbias ? undefined : resolveNumber(scope, m.vbias, [...path, 'vbias'], 'voltage');
   // A bipolar mirror without `size` uses the unit device (area 1).
   if (m.size === undefined && !bipolar) missing(sink, path, 'size', ' (unit device { w, l }, or auto)');
@@ -250,5 +256,6 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (vbias !== undefined) mirror.vbias = vbias;
   if (degeneration !== undefined) mirror.degeneration = degeneration;
   if (design) mirror.design = design;
+  if (filter) mirror.filter = filter;
   return mirror;
 }

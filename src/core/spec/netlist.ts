@@ -5,6 +5,7 @@
 import type { DeviceType, NetlistCurrentSource, NetlistDevice, NetlistMirror, NetlistResistor, NetlistVoltageSource,
   SpecPath, Supplies } from '../types';
 import { DEVICE_TYPES, isBipolarType } from '../device-types';
+import { readResistorDrift } from './drift';
 import { SPEC_LIMITS } from '../defaults';
 import { misplaced, missing, readEnum, readMap, readString } from './read';
 import type { Data } from './read';
@@ -79,6 +80,7 @@ export function readNetlistMirror(
   const before = sink.errorCount;
   for (const k of TEMPLATE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to template kinds; a netlist gives w, l and m per device`);
   if (m.device !== undefined) misplaced(sink, [...path, 'device'], '`device` on a netlist is written per device: `devices: { m1: { device: lvt, d: …, g: …, s: …, w: …, l: … } }`');
+  if (m.filter !== undefined) misplaced(sink, [...path, 'filter'], '`filter` applies to template kinds (the gate lines from the reference to the outputs)');
   const seen = new Map<string, string>();  // element name → its group, for duplicate-name
   const claim = (group: string, elem: string, at: SpecPath) => {
     const g = seen.get(elem);
@@ -207,7 +209,7 @@ export function readNetlistMirror(
     use(uses, a, [...at, 'a'], true);
     use(uses, b, [...at, 'b'], true);
     if (a && b && a === b) sink.error('bad-value', `resistor \`${rn}\` has both ends on \`${a}\``, [...at, 'b']);
-    else if (a && b && ohms !== undefined) resistors.push({ name: rn, a, b, r: ohms });
+    else if (a && b && ohms !== undefined) resistors.push({ name: rn, a, b, r: ohms, ...readResistorDrift(scope, r, at) });
   }
 
   // Output: a free node that something connects to, not held by a voltage source.

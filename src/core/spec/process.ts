@@ -26,6 +26,9 @@ export const DEVICE_PARAM_RULES: Record<NumericParam, ParamRule> = {
   abeta: { q: 'lengthUnit', opts: { nonNegative: true } },
   lmin: { q: 'length', opts: { positive: true } },
   wmin: { q: 'length', opts: { positive: true } },
+  gn: { q: 'plain', opts: { positive: true } },
+  kf: { q: 'plain', opts: { nonNegative: true } },
+  cox: { q: 'capacitancePerArea', opts: { positive: true } },
 };
 
 export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as NumericParam[];
@@ -110,14 +113,15 @@ function readDevice(scope: ValueScope, raw: unknown, path: SpecPath, type: Polar
   const out: DeviceParams = {
     kp: got.kp, vt0: got.vt0,
     lambda: got.lambda ?? dd.lambda, gamma: got.gamma ?? dd.gamma, phi: got.phi ?? dd.phi,
-    n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex,
+    n: got.n ?? dd.n, tcv: got.tcv ?? dd.tcv, bex: got.bex ?? dd.bex, gn: got.gn ?? dd.gn,
   };
-  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
+  for (const k of ['lref', 'avt', 'abeta', 'lmin', 'wmin', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
   return out;
 }
 
 /** Keys a table device reads: the rest are in the table. */
-const TABLE_DEVICE_KEYS: readonly NumericParam[] = ['n', 'avt', 'abeta', 'lmin', 'wmin'];
+// The noise parameters (gn, kf, cox) are no part of a DC table and are still read.
+const TABLE_DEVICE_KEYS: readonly NumericParam[] = ['n', 'avt', 'abeta', 'lmin', 'wmin', 'gn', 'kf', 'cox'];
 
 /** A device given by its characterisation table (design §11): its current comes from the
  *  table, so kp, vt0, λ, γ and the temperature laws are not read (a warning says so); kp = 1
@@ -139,8 +143,8 @@ function readTableDevice(scope: ValueScope, d: Data, path: SpecPath): DevicePara
   }
   if (scope.sink.errorCount > before || !table) return undefined;
   const dd = DEFAULTS.device;
-  const out: DeviceParams = { kp: 1, vt0: 0, lambda: 0, gamma: 0, phi: dd.phi, n: got.n ?? dd.n, tcv: 0, bex: 0, table };
-  for (const k of ['avt', 'abeta', 'lmin', 'wmin'] as const) if (got[k] !== undefined) out[k] = got[k];
+  const out: DeviceParams = { kp: 1, vt0: 0, lambda: 0, gamma: 0, phi: dd.phi, n: got.n ?? dd.n, tcv: 0, bex: 0, gn: got.gn ?? dd.gn, table };
+  for (const k of ['avt', 'abeta', 'lmin', 'wmin', 'kf', 'cox'] as const) if (got[k] !== undefined) out[k] = got[k];
   return out;
 }
 
@@ -149,6 +153,7 @@ export interface ProcessRead {
   tnom: number;
   temperature: number;
   grid?: number;
+  trange?: [number, number];
   nmos?: DeviceParams;
   pmos?: DeviceParams;
   npn?: BipolarParams;
@@ -178,6 +183,10 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   const written = new Set<DeviceType>();
   const out: ProcessRead = { model: model ?? DEFAULTS.model, tnom: tnom ?? DEFAULTS.tnom, temperature: temperature ?? tnom ?? DEFAULTS.tnom, written, flavourNames: new Set(), ok: true };
   if (grid !== undefined) out.grid = grid;
+  if (p.trange !== undefined) {
+    const tr = readTrange(scope, p.trange, [...path, 'trange']);
+    if (tr) out.trange = tr;
+  }
   for (const type of ['nmos', 'pmos'] as const) {
     if (p[type] === undefined) continue;
     written.add(type);
@@ -211,6 +220,22 @@ export function readProcess(scope: ValueScope, raw: unknown): ProcessRead | unde
   }
   out.ok = scope.sink.errorCount === before;
   return out;
+}
+
+/** `trange: [tmin, tmax]`, two temperatures, tmin below tmax. */
+function readTrange(scope: ValueScope, raw: unknown, path: SpecPath): [number, number] | undefined {
+  if (!Array.isArray(raw) || raw.length !== 2) {
+    scope.sink.error('wrong-type', '`trange` is a list of two temperatures [tmin, tmax]', path, undefined, 'type');
+    return undefined;
+  }
+  const lo = readTemperature(scope, raw[0], [...path, 0]);
+  const hi = readTemperature(scope, raw[1], [...path, 1]);
+  if (lo === undefined || hi === undefined) return undefined;
+  if (!(hi > lo)) {
+    scope.sink.error('bad-value', `\`trange\` must go from a lower to a higher temperature; got ${(lo - ZERO_CELSIUS).toFixed(2)} °C to ${(hi - ZERO_CELSIUS).toFixed(2)} °C`, path);
+    return undefined;
+  }
+  return [lo, hi];
 }
 
 function isTableless(raw: unknown): boolean {

@@ -80,11 +80,15 @@ export function validateSchema(data: unknown, sink: FindingSink): boolean {
   const validate = validator;
   if (validate(data)) return true;
   const errors = [...(validate.errors ?? [])].sort((a, b) => (ORDER[a.keyword] ?? 9) - (ORDER[b.keyword] ?? 9));
-  for (const e of errors) mapError(e, data, sink);
+  // A `required` inside an anyOf branch has no properties of its own; the anyOf's object has
+  // them (and their descriptions, the hints).
+  const branchOwners = new Map<string, SchemaNode>();
+  for (const e of errors) if (e.keyword === 'anyOf' || e.keyword === 'oneOf') branchOwners.set(e.instancePath, e.parentSchema as SchemaNode);
+  for (const e of errors) mapError(e, data, sink, branchOwners.get(e.instancePath));
   return false;
 }
 
-function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
+function mapError(e: ErrorObject, data: unknown, sink: FindingSink, owner?: SchemaNode): void {
   const path = toPath(e.instancePath, data);
   const parent = e.parentSchema as SchemaNode | undefined;
   const value = valueAt(data, path);
@@ -118,7 +122,7 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
       // A required key of one anyOf alternative is said once, by the anyOf.
       if (e.schemaPath.includes('/anyOf/')) return;
       const missing = String(p.missingProperty);
-      const hint = shortHint(parent?.properties?.[missing]?.description);
+      const hint = shortHint((parent?.properties ?? owner?.properties)?.[missing]?.description);
       sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, 'key', `missing:${missing}`);
       return;
     }

@@ -144,7 +144,8 @@ function* paramNames(scope: ValueScope): Iterable<string> {
 const EXAMPLES: Record<Quantity, string> = {
   current: '10u', voltage: '0.9', length: '2u', resistance: '120k', conductance: '1m', temperature: '27 C',
   ratio: '1%', transconductanceParam: '280u', inverseVoltage: '0.08', sqrtVoltage: '0.45', voltagePerKelvin: '-1m',
-  voltageLength: '4 mV·µm', lengthUnit: '1 %·µm', plain: '4',
+  voltageLength: '4 mV·µm', lengthUnit: '1 %·µm', capacitance: '10p', capacitancePerArea: '8.5m',
+  frequency: '1k', noiseDensity: '2p', plain: '4',
 };
 
 export function example(q: Quantity): string {

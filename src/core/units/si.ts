@@ -18,7 +18,8 @@ import { ZERO_CELSIUS } from '../defaults';
 
 export type Quantity = 'current' | 'voltage' | 'length' | 'resistance' | 'conductance' | 'temperature'
   | 'ratio' | 'transconductanceParam' | 'inverseVoltage' | 'sqrtVoltage' | 'voltagePerKelvin'
-  | 'voltageLength' | 'lengthUnit' | 'plain';
+  | 'voltageLength' | 'lengthUnit' | 'capacitance' | 'capacitancePerArea' | 'frequency' | 'noiseDensity'
+  | 'plain';
 
 /** How a quantity is named in messages: noun and the unit it takes. */
 export const QUANTITY_NAMES: Record<Quantity, { noun: string; unit: string }> = {
@@ -35,6 +36,10 @@ export const QUANTITY_NAMES: Record<Quantity, { noun: string; unit: string }> = 
   voltagePerKelvin: { noun: 'a temperature coefficient', unit: 'V/K' },
   voltageLength: { noun: 'a voltage × length', unit: 'V·m, e.g. 4 mV·µm' },
   lengthUnit: { noun: 'a relative length', unit: 'm, e.g. 1 %·µm' },
+  capacitance: { noun: 'a capacitance', unit: 'F' },
+  capacitancePerArea: { noun: 'a capacitance per area', unit: 'F/m²' },
+  frequency: { noun: 'a frequency', unit: 'Hz' },
+  noiseDensity: { noun: 'a noise density', unit: 'A/√Hz' },
   plain: { noun: 'a plain number', unit: 'no unit' },
 };
 
@@ -90,13 +95,17 @@ const FORMS: Record<Quantity, readonly UnitForm[]> = {
     { parts: [{ symbols: ['m'], prefixed: true }] },
     { parts: [{ symbols: ['%'] }, { symbols: ['m'], prefixed: true, separated: true }], exponent: -2 },
   ],
+  capacitance: [{ parts: [{ symbols: ['F'], prefixed: true }] }],
+  capacitancePerArea: [{ parts: [{ symbols: ['F'], prefixed: true }, { symbols: ['/m²', '/m^2', '/m2'] }] }],
+  frequency: [{ parts: [{ symbols: ['Hz'], prefixed: true }] }],
+  noiseDensity: [{ parts: [{ symbols: ['A'], prefixed: true }, { symbols: ['/√Hz', '/sqrt(Hz)', '/rtHz'] }] }],
   plain: [],
 };
 
 /** Order in which a unit that does not fit the field is identified, for the message. */
 const IDENTIFY_ORDER: readonly Quantity[] = ['current', 'voltage', 'resistance', 'conductance', 'temperature',
   'length', 'transconductanceParam', 'inverseVoltage', 'sqrtVoltage', 'voltagePerKelvin', 'voltageLength',
-  'ratio', 'lengthUnit'];
+  'ratio', 'lengthUnit', 'capacitance', 'capacitancePerArea', 'frequency', 'noiseDensity'];
 
 const SEPARATORS = ['·', '⋅', '*', '.'];
 const NUMBER = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?/;

@@ -58,6 +58,7 @@ export function applyCorner(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpe
       temperature: corner.temperature ?? spec.process.temperature,
       nmos: shiftParams(spec.process.nmos, corner.nmos, corner.tables?.nmos),
       pmos: shiftParams(spec.process.pmos, corner.pmos, corner.tables?.pmos),
+      ...(corner.resistors ? { resistors: corner.resistors } : {}),
       // A corner's nmos/pmos changes move every flavour of that type (a slow corner is slow for
       // thin and thick oxide alike); a corner table replaces the base table only.
       ...(spec.process.devices ? { devices: Object.fromEntries(Object.entries(spec.process.devices).map(([k, f]) =>
@@ -75,7 +76,7 @@ export function runCorners(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     const cs = cornerSpec(spec, corner);
     const mirror = mirrorAt(cs, mirrorIndex);
     if (!mirror) continue;
-    const r = measureMirror({ spec: cs, mirror, outputIndex });
+    const r = measureMirror({ spec: cs, mirror, outputIndex }, { drift: false });
     let minMargin: number | undefined;
     let minMarginDevice: string | undefined;
     for (const d of r.devices) {

@@ -24,7 +24,7 @@
  */
 import type { MirrorContext } from '../analysis/index';
 import { idealRatio } from '../circuit/templates';
-import { vbiasFor } from '../analysis/measure';
+import { vbiasFor } from '../analysis/vbias';
 import { deviceSigmas, mismatchBase, setMismatch } from '../circuit/elements/device';
 import { buildMirror, nominalVout, outputCurrent, solveMirror, worstMargin } from '../analysis/solve';
 import type { MonteCarloResult, Requirements } from '../types';

@@ -4,11 +4,12 @@
  * its area-law sigmas, its forward-active margin and its report. The equations live in
  * models/bipolar.ts.
  */
-import { SOLVER } from '../../defaults';
+import { ELEMENTARY_CHARGE, SOLVER } from '../../defaults';
 import { CUTOFF_IS, evalBipolar, newBipolarEval } from '../../models/bipolar';
 import type { BipolarDeviceReport, Region } from '../../types';
 import type { Workspace } from '../workspace';
 import type { BjtElement } from './element';
+import type { NoiseSource } from './noise';
 
 const ev = newBipolarEval();
 
@@ -105,4 +106,18 @@ export function bjtReport(q: BjtElement, v: Float64Array): BipolarDeviceReport {
     gm, rpi: gpi > 0 ? 1 / gpi : 1 / SOLVER.gmin, ro: go > 0 ? 1 / go : 1 / SOLVER.gmin, gds: go,
     beta: ev.ib !== 0 ? ev.ic / ev.ib : 0,
   };
+}
+
+/**
+ * Its shot noise (design §12): 2q·IC between collector and emitter and 2q·IB between base and
+ * emitter, uncorrelated (the two currents cross different junctions; Gray, Hurst, Lewis and
+ * Meyer, Analysis and Design of Analog Integrated Circuits, 5th ed., §11.2, from memory). No
+ * flicker noise: the contract leaves bipolar flicker optional and the model has no constant for it.
+ */
+export function bjtNoise(q: BjtElement, v: Float64Array, out: NoiseSource[]): void {
+  const [vbe, vbc] = bjtFrame(q, v);
+  evalBipolar(q.dev, vbe, vbc, ev);
+  const twoQ = 2 * ELEMENTARY_CHARGE;
+  out.push({ element: q.name, from: q.c, to: q.e, white: twoQ * Math.abs(ev.ic), flicker: 0 });
+  out.push({ element: q.name, from: q.b, to: q.e, white: twoQ * Math.abs(ev.ib), flicker: 0 });
 }

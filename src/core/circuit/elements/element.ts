@@ -54,7 +54,10 @@ export interface CurrentSourceElement { kind: 'current'; name: string; from: num
  *  circuit.fixedV[node]; the current it delivers is minus that node's KCL residual. */
 export interface VoltageSourceElement { kind: 'voltage'; name: string; node: number }
 
-export type CircuitElement = MosElement | BjtElement | ResistorElement | CurrentSourceElement | VoltageSourceElement;
+/** Capacitance c (F) between nodes a and b: open at DC, jωc in the noise analysis. */
+export interface CapacitorElement { kind: 'capacitor'; name: string; a: number; b: number; c: number }
+
+export type CircuitElement = MosElement | BjtElement | ResistorElement | CurrentSourceElement | VoltageSourceElement | CapacitorElement;
 
 /** The transistors: reported per device, counted for compliance, perturbed for mismatch. */
 export type DeviceElement = MosElement | BjtElement;

@@ -4,13 +4,14 @@
  * small-signal analysis, its Pelgrom sigmas, its saturation margin for the compliance search,
  * and its report. The device equations themselves live in models/.
  */
-import { SOLVER } from '../../defaults';
+import { BOLTZMANN, DEFAULTS, SOLVER } from '../../defaults';
 import type { ChannelEval } from '../../models/core';
 import { evalPrepared } from '../../models/evaluate';
 import { evalFrame, evalTerminal } from '../../models/terminal';
 import type { DeviceReport } from '../../types';
 import type { Workspace } from '../workspace';
 import type { MosElement } from './element';
+import type { NoiseSource } from './noise';
 
 /** Jacobian entries: rows d and s, columns d, g, b, s (this order: the slots follow it). */
 export function mosPattern(m: MosElement, add: (row: number, col: number) => void): void {
@@ -92,4 +93,21 @@ export function mosReport(m: MosElement, v: Float64Array): DeviceReport {
   if (m.size.auto?.w || m.size.auto?.l) r.sized = true;
   if (m.params.table) r.table = m.params.table.file;
   return r;
+}
+
+/**
+ * Its drain-current noise between drain and source (design §12): channel thermal noise
+ * 4kT·γn·gm with the process's `gn`, and flicker noise in the input-referred form
+ * kf/(Cox·W·L·f) (kf in V²·F, W·L the whole gate area m·W·L) carried to the drain by gm², so
+ * the drain PSD is gm²·kf/(Cox·m·W·L·f). No flicker without both kf and cox.
+ */
+export function mosNoise(m: MosElement, v: Float64Array, ch: ChannelEval, temperature: number, out: NoiseSource[]): void {
+  const vs = v[m.s]!;
+  evalTerminal(m.dev, v[m.g]! - vs, v[m.d]! - vs, v[m.b]! - vs, ch);
+  const gm = Math.abs(ch.gm);
+  const { kf, cox } = m.params;
+  const gn = m.params.gn ?? DEFAULTS.device.gn;
+  const area = m.size.m * m.size.w * m.size.l;
+  const flicker = kf !== undefined && cox !== undefined && area > 0 ? gm * gm * kf / (cox * area) : 0;
+  out.push({ element: m.name, from: m.d, to: m.s, white: 4 * BOLTZMANN * temperature * gn * gm, flicker });
 }

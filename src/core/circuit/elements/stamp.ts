@@ -17,6 +17,7 @@ export function patternOf(e: CircuitElement, add: (row: number, col: number) => 
     case 'resistor': resistorPattern(e, add); return;
     case 'current': return;            // a constant: no derivatives
     case 'voltage': return;            // holds its node, which is no unknown
+    case 'capacitor': return;          // open at DC; the noise analysis stamps jωC itself
     default: assertNever(e);
   }
 }
@@ -25,7 +26,7 @@ export function patternOf(e: CircuitElement, add: (row: number, col: number) => 
 export function hasSlots(e: CircuitElement): e is Extract<CircuitElement, { slot: number }> {
   switch (e.kind) {
     case 'mos': case 'bjt': case 'resistor': return true;
-    case 'current': case 'voltage': return false;
+    case 'current': case 'voltage': case 'capacitor': return false;
     default: return assertNever(e);
   }
 }
@@ -39,6 +40,7 @@ export function loadElement(e: CircuitElement, ws: Workspace, alpha: number, gmi
     case 'resistor': loadResistor(e, ws); return;
     case 'current': loadCurrentSource(e, ws, alpha); return;
     case 'voltage': return;            // its node's voltage is set by the solver (setHeld)
+    case 'capacitor': return;          // no DC current
     default: assertNever(e);
   }
 }

@@ -1,0 +1,149 @@
+/**
+ * Output current noise (design §12): every element's noise sources (circuit/elements/noise.ts)
+ * carried to the output (probe.ts) through the circuit linearized at its operating point. Without
+ * a capacitor the transfer is the DC adjoint (the same λ as Rout and sigma) and the band integral
+ * is exact; with a gate filter the transfer is an AC solve (G + jωC, as a real system of twice
+ * the size) at each frequency and the band is integrated by trapezoids in ln f.
+ */
+import { DEFAULTS, DRIFT } from '../defaults';
+import type { Circuit } from '../circuit/circuit';
+import type { CapacitorElement } from '../circuit/elements/element';
+import { elementNoise, type NoiseSource } from '../circuit/elements/noise';
+import { luFactor, luSolve } from '../circuit/lu';
+import type { Workspace } from '../circuit/workspace';
+import type { AnalysisSpec, NoiseReport } from '../types';
+import { owns, type OutputProbe, type Probed } from './probe';
+
+/** The noise analysis when the spec has no `analysis:`. */
+export const DEFAULT_ANALYSIS: AnalysisSpec = { noise: { f: DEFAULTS.noise.f, band: DEFAULTS.noise.band } };
+
+/** |d iout / d i_k|² of each source at one frequency. */
+type Transfer = (f: number) => Float64Array;
+
+/** |gain|² of each source: a current leaving node k moves the output by −λ(k) through the node
+ *  voltages, and by 1 more when it flows through the probed elements out of the probed node. */
+function gainOf(p: OutputProbe, n: number, re: Float64Array, im: Float64Array | undefined, sources: NoiseSource[], out: Float64Array): void {
+  const wRe = (k: number): number => (k < n ? -re[k]! : 0);
+  const wIm = (k: number): number => (im && k < n ? -im[k]! : 0);
+  sources.forEach((s, i) => {
+    const direct = owns(p, s.element) ? (s.from === p.node ? 1 : 0) - (s.to === p.node ? 1 : 0) : 0;
+    const a = direct + wRe(s.from) - wRe(s.to), b = wIm(s.from) - wIm(s.to);
+    out[i] = a * a + b * b;
+  });
+}
+
+/** The DC transfer from the output adjoint λ (capacitors open). */
+function dcTransfer(ws: Workspace, pr: Probed, sources: NoiseSource[]): Float64Array {
+  const h = new Float64Array(sources.length);
+  gainOf(pr.probe, ws.n, pr.lam, undefined, sources, h);
+  return h;
+}
+
+/** The AC transfer: Yᵀ·λ = y_out with Y = G + jωC over the free nodes, solved as the real
+ *  system [[A, −B], [B, A]] of twice the size. */
+function acTransfer(ws: Workspace, pr: Probed, caps: CapacitorElement[], sources: NoiseSource[]): Transfer {
+  const n = ws.n, m = 2 * n;
+  const { colPtr, rowIdx, freeEnd } = ws.pattern;
+  const a = new Float64Array(m * m), perm = new Int32Array(m), tmp = new Float64Array(m), rhs = new Float64Array(m);
+  const h = new Float64Array(sources.length);
+  return (f) => {
+    const w = 2 * Math.PI * f;
+    a.fill(0); rhs.fill(0);
+    // Aᵀ: entry (i, j) of Y goes to (j, i).
+    for (let j = 0; j < n; j++) {
+      for (let p = colPtr[j]!; p < freeEnd[j]!; p++) {
+        const i = rowIdx[p]!, g = ws.G[p]!;
+        a[j * m + i] += g; a[(j + n) * m + i + n] += g;
+      }
+      rhs[j] = pr.row[j]!;
+    }
+    const p = pr.probe;
+    for (const cap of caps) {
+      const b = w * cap.c, own = owns(p, cap.name);
+      // Y(i, j) += j·b: transposed into row j, column i of the imaginary blocks; a capacitor of
+      // the probed current on the probed node adds to the right-hand side.
+      const put = (i: number, j: number, x: number): void => {
+        if (i < n && j < n) { a[(j + n) * m + i] += x; a[j * m + i + n] -= x; }
+        else if (i === p.node && j < n && own) rhs[j + n] += x;
+      };
+      put(cap.a, cap.a, b); put(cap.b, cap.b, b); put(cap.a, cap.b, -b); put(cap.b, cap.a, -b);
+    }
+    if (!luFactor(a, m, perm)) return h.fill(NaN);
+    luSolve(a, m, perm, rhs, tmp);
+    gainOf(p, n, rhs.subarray(0, n), rhs.subarray(n, m), sources, h);
+    return h;
+  };
+}
+
+/** A², Σ_k |H_k(f)|²·(white_k + flicker_k/f), and each element's part into `parts` when given. */
+function psd(sources: NoiseSource[], h: Float64Array, f: number, parts?: Map<string, number>): number {
+  let total = 0;
+  sources.forEach((s, i) => {
+    const p = h[i]! * (s.white + s.flicker / f);
+    total += p;
+    if (parts) parts.set(s.element, (parts.get(s.element) ?? 0) + p);
+  });
+  return total;
+}
+
+function logGrid(f1: number, f2: number, perDecade: number): number[] {
+  const steps = Math.max(2, Math.ceil(Math.log10(f2 / f1) * perDecade));
+  return Array.from({ length: steps + 1 }, (_, k) => f1 * Math.pow(f2 / f1, k / steps));
+}
+
+/**
+ * The output noise of a converged circuit (ws assembled at the solution; `pr` its output and
+ * that output's adjoint), at temperature T (K). Undefined when the AC system is singular.
+ */
+export function outputNoise(
+  c: Circuit, ws: Workspace, pr: Probed, temperature: number, analysis: AnalysisSpec, spectrum: boolean,
+): NoiseReport | undefined {
+  const sources: NoiseSource[] = [];
+  for (const e of c.elements) elementNoise(e, ws.v, ws.ch, temperature, sources);
+  const caps = c.elements.filter((e): e is CapacitorElement => e.kind === 'capacitor');
+  const { f, band } = analysis.noise;
+  const h0 = dcTransfer(ws, pr, sources);
+  const transfer: Transfer = caps.length === 0 ? () => h0 : acTransfer(ws, pr, caps, sources);
+
+  const parts = new Map<string, number>();
+  const s = psd(sources, transfer(f), f, parts);
+  if (!Number.isFinite(s)) return undefined;
+  const shares: Record<string, number> = {};
+  // Elements that cannot reach this output (a bank's other outputs) are left out.
+  for (const [name, p] of parts) if (p > 0) shares[name] = s > 0 ? p / s : 0;
+
+  let integrated: number;
+  const [f1, f2] = band;
+  if (caps.length === 0) {
+    let white = 0, flicker = 0;
+    sources.forEach((x, i) => { white += h0[i]! * x.white; flicker += h0[i]! * x.flicker; });
+    integrated = white * (f2 - f1) + flicker * Math.log(f2 / f1);
+  } else {
+    const grid = logGrid(f1, f2, DRIFT.integralPerDecade);
+    integrated = 0;
+    let prev = psd(sources, transfer(grid[0]!), grid[0]!) * grid[0]!;
+    for (let k = 1; k < grid.length; k++) {
+      const now = psd(sources, transfer(grid[k]!), grid[k]!) * grid[k]!;
+      integrated += 0.5 * (prev + now) * Math.log(grid[k]! / grid[k - 1]!);
+      prev = now;
+    }
+  }
+
+  const report: NoiseReport = { f, density: Math.sqrt(s), band: [f1, f2], integrated: Math.sqrt(Math.max(integrated, 0)), shares };
+  let white0 = 0, flicker0 = 0;
+  sources.forEach((x, i) => { white0 += h0[i]! * x.white; flicker0 += h0[i]! * x.flicker; });
+  if (flicker0 > 0 && white0 > 0) report.corner = flicker0 / white0;
+  if (spectrum) {
+    const fs = logGrid(f1, f2, DRIFT.spectrumPerDecade);
+    const total: number[] = [];
+    const byName: Record<string, number[]> = {};
+    for (const name of Object.keys(shares)) byName[name] = [];
+    for (const x of fs) {
+      const pm = new Map<string, number>();
+      total.push(Math.sqrt(psd(sources, transfer(x), x, pm)));
+      for (const [name, p] of pm) byName[name]?.push(Math.sqrt(p));
+    }
+    report.spectrum = { f: fs, total, parts: byName };
+  }
+  return report;
+}
