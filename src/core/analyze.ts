@@ -117,7 +117,7 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
   spec.mirrors.forEach((m) => {
     const mirrorIndex = indexOf(m);
     if (m.kind !== 'netlist') {
-      out.push(m.degeneration !== undefined ? { mirrorIndex, input: m.input, degeneration: m.degeneration } : { mirrorIndex, input: m.input });
+      out.push({ mirrorIndex, input: m.input, ...(m.degeneration !== undefined ? { degeneration: m.degeneration } : {}), ...(m.resistor !== undefined ? { resistor: m.resistor } : {}) });
       return;
     }
     out.push({ mirrorIndex, netlist: {

@@ -33,7 +33,7 @@ export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => typesO
     `    type: ${type}`,
     // A self-biased reference sets its own current through its resistor; the others take 10 µA.
     ...(loop
-      ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(kind === 'beta-multiplier' ? ['    k: 4'] : [])]
+      ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(KINDS[kind].loop?.scaled ? [`    k: ${bipolar ? 8 : 4}`] : [])]
       : ['    input: 10u']),
     ...(bipolar ? [] : [`    size: { w: ${n ? '8u' : '24u'}, l: 1u }`]),
     ...(KINDS[kind].degeneration !== undefined ? ['    degeneration: 5k'] : []),

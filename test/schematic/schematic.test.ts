@@ -7,7 +7,7 @@
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
-import { TEMPLATE_KINDS } from '../../src/core/kinds';
+import { REFERENCE_KINDS, TEMPLATE_KINDS } from '../../src/core/kinds';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
@@ -43,7 +43,6 @@ describe('schematics of every kind', () => {
       expect(s, m.name).toBeDefined();
       const words = text(s!);
       for (const d of m.devices) {
-        if (d.role === 'startup') continue;   // the schematic does not draw a reference's start-up device yet
         const part = s!.parts.find((p) => p.device === d.name);
         expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);   // a reference's closing mirror is of the other polarity
         const label = s!.labels.find((l) => l.device === d.name)!;
@@ -74,6 +73,22 @@ describe('schematics of every kind', () => {
       // The input source sits above the NMOS reference and below the PMOS one.
       if (sinksCurrent(m.type)) expect(input.y + input.h).toBeLessThan(ref.y);
       else expect(input.y).toBeGreaterThan(ref.y + ref.h);
+    }
+  });
+
+  it('a reference draws its loop resistor with its value and its start-up device', () => {
+    for (const kind of REFERENCE_KINDS) {
+      for (const type of typesOf(kind)) {
+        const name = `${kind.replace('-', '_')}_${type}`;
+        const m = kinds.mirrors.find((x) => x.name === name)!;
+        const s = drawn.get(name)!;
+        const res = s.parts.find((p) => p.id === 'res:rs');
+        expect(res?.symbol, name).toBe('res');
+        expect(s.labels.some((l) => l.lines.join(' ') === `R ${formatSI(60e3, 'Ω')}`), name).toBe(true);
+        // The start-up device is a MOSFET of the mirror's side in a bipolar reference too.
+        const startup = m.devices.find((d) => d.role === 'startup')!;
+        expect(s.parts.find((p) => p.device === startup.name)?.symbol, name).toBe(sinksCurrent(m.type) ? 'nmos' : 'pmos');
+      }
     }
   });
 

@@ -137,8 +137,17 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     // closing mirror).
     const map = (n: string): string => (n === 'R' ? top : n === 'T' ? far : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
     for (const d of m.devices) {
-      const conn = kind.reference[d.role] ?? kind.output[d.role];
+      // A reference's start-up device sits where its loop says (a report marks it by its role).
+      const conn = kind.reference[d.role] ?? kind.output[d.role] ?? (d.role === 'startup' ? kind.loop?.startup : undefined);
       if (conn) addDevice(d, { d: map(conn.d), g: map(conn.g), s: map(conn.s) });
+    }
+    if (kind.loop && wiring?.resistor !== undefined) {
+      // The loop resistor from its loop node to the rail, the rail at the bottom for n-type mirrors.
+      for (const [name, ends] of Object.entries(kind.loop.resistors)) {
+        const a = net(map(ends.a)), b = net(map(ends.b));
+        const [hi, lo] = pType ? [b, a] : [a, b];
+        parts.push({ id: `res:${name}`, symbol: 'res', pins: [{ side: 'top', net: hi }, { side: 'bottom', net: lo }], lines: ['R', si(wiring.resistor, 'Ω')] });
+      }
     }
     if (kind.degeneration !== undefined && wiring?.degeneration !== undefined) {
       // The emitter resistor hangs between its node and the mirror's rail, the rail at the bottom
