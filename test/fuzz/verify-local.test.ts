@@ -73,18 +73,18 @@ describe('local re-reading of edited mirrors', () => {
     const seeds = seedSpecs();
     const example = parseSpec(seeds[1].text, seeds[1].name);
     const frags = MirrorFragments.of(example)!;
-    // the `tail` bank's first output's `m: 4` token lies inside mirror 2 (after the example's
-    // `master` and `dist`)
-    const at = example.source.value(['mirrors', 2, 'outputs', 0, 'devices', 'out', 'm'])!;
-    expect(frags.holds(2, [{ range: at, newText: '5' }])).toBe(true);
-    expect(frags.holds(3, [{ range: at, newText: '5' }])).toBe(false);
+    // the `tail` bank's first output's `m: 4` token lies inside mirror 3 (after the example's
+    // `vbe_ref`, `master` and `dist`)
+    const at = example.source.value(['mirrors', 3, 'outputs', 0, 'devices', 'out', 'm'])!;
+    expect(frags.holds(3, [{ range: at, newText: '5' }])).toBe(true);
+    expect(frags.holds(4, [{ range: at, newText: '5' }])).toBe(false);
     const text = seeds[1].text;
     const lines = text.split('\n');
     const edited = lines.map((l, i) => (i === at.start.line ? l.slice(0, at.start.character) + '5' + l.slice(at.end.character) : l)).join('\n');
-    const frag = frags.read(edited, 2)!;
+    const frag = frags.read(edited, 3)!;
     expect((frag.data as { outputs: { devices: { out: { m: number } } }[] }).outputs[0].devices.out.m).toBe(5);
     const aliased = parseSpec(text.replace('wu: 4u', 'wu: &u 4u\n  wv: *u'), 'a.bias.yaml');
     expect(aliased.spec).toBeDefined();
-    expect(MirrorFragments.of(aliased)!.holds(2, [{ range: at, newText: '5' }])).toBe(false);
+    expect(MirrorFragments.of(aliased)!.holds(3, [{ range: at, newText: '5' }])).toBe(false);
   });
 });

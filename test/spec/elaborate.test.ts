@@ -256,7 +256,7 @@ describe('the shipped example', () => {
     const p = parseSpec(text, 'sensor-afe.bias.yaml', { tables: exampleTables() });
     expect(p.findings).toEqual([]);
     const kinds = p.spec!.mirrors.map((m) => m.kind);
-    expect(new Set(kinds)).toEqual(new Set(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor']));
+    expect(new Set(kinds)).toEqual(new Set(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'netlist', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor', 'ptat', 'vbe-resistor']));
     const bank = p.spec!.mirrors.find((m) => m.name === 'tail') as TemplateMirror;
     expect(bank.outputs).toHaveLength(3);
     expect(p.spec!.process.nmos.avt).toBeCloseTo(4e-9, 20);
