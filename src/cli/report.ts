@@ -26,8 +26,11 @@ export async function runReport(c: ReportCommand): Promise<number> {
   const name = read.name;
   // The page carries what a review needs: curves, every named corner, and Monte Carlo on request.
   const report = analyzeText(read.text, name, { curve: true, corners: true, tables: readTables(c.file, read.text), ...(c.mc ? { mc: { samples: c.mc, seed: c.seed } } : {}) });
-  // ELK is loaded only here: `check` and `fix` never pay for it.
-  const { default: ELK } = await import('elkjs/lib/elk.bundled.js');
+  // ELK is loaded only here: `check` and `fix` never pay for it. A plain require, not import():
+  // the launcher runs this bundle through vm.Script (for V8's code cache), which has no loader for
+  // a dynamic import.
+  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  const ELK = require('elkjs/lib/elk.bundled.js') as typeof import('elkjs/lib/elk.bundled.js').default;
   const schematics = await schematicsOf(new ELK(), report);
   try {
     mkdirSync(dirname(c.html), { recursive: true });

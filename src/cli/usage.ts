@@ -1,4 +1,4 @@
-export const USAGE = `qpoint — bias checks for MOSFET current mirrors
+export const USAGE = `qpoint — bias checks for current mirrors and bias networks
 
 usage:
   qpoint check FILE... [--format text|json|sarif] [--corners] [--mc N] [--seed S]

@@ -117,7 +117,9 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
   spec.mirrors.forEach((m) => {
     const mirrorIndex = indexOf(m);
     if (m.kind !== 'netlist') {
-      out.push({ mirrorIndex, input: m.input, ...(m.degeneration !== undefined ? { degeneration: m.degeneration } : {}), ...(m.resistor !== undefined ? { resistor: m.resistor } : {}) });
+      out.push({ mirrorIndex, input: m.input,
+        ...(m.degeneration !== undefined ? { degeneration: m.degeneration } : {}),
+        ...(m.resistor !== undefined ? { loopResistor: m.resistor } : {}) });
       return;
     }
     out.push({ mirrorIndex, netlist: {

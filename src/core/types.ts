@@ -555,8 +555,8 @@ export interface MirrorWiring {
   input?: InputSource;
   /** A Widlar's emitter resistor (Ω), drawn from its kind's degeneration node to the rail. */
   degeneration?: number;
-  /** A reference's loop resistor (Ω), drawn between the nodes its kind's loop names. */
-  resistor?: number;
+  /** A reference kind's loop resistor (Ω): every resistor of its loop takes this value. */
+  loopResistor?: number;
   netlist?: {
     devices: { name: string; d: string; g: string; s: string }[];
     currents: NetlistCurrentSource[];

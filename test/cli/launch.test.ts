@@ -13,7 +13,7 @@ const root = resolve(__dirname, '../..');
 const example = join(root, 'examples/sensor-afe.bias.yaml');
 const dir = mkdtempSync(join(tmpdir(), 'qpoint-launch-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
-for (const f of ['cli.js', 'qpoint-cli.js']) copyFileSync(join(root, 'dist', f), join(dir, f));
+for (const f of ['cli.js', 'qpoint-cli.js', 'elk.js', 'webview.js']) copyFileSync(join(root, 'dist', f), join(dir, f));
 
 const caches = () => readdirSync(dir).filter((f) => f.endsWith('.v8cache'));
 const run = (file: string) => spawnSync(process.execPath, [join(dir, file), 'check', example, '--format', 'json'], { encoding: 'utf8' });
@@ -53,5 +53,15 @@ describe('the CLI launcher', () => {
     expect(r.stdout).toBe(direct.stdout);
     expect(caches()).toHaveLength(1);
     expect(caches()[0]).not.toBe(old);
+  });
+
+  it('runs `report`, whose schematics load the layout library on demand, through the launcher too', () => {
+    // The launcher compiles the bundle with vm.Script, which has no loader for import(): the
+    // report must still find dist/elk.js and draw every schematic.
+    const html = join(dir, 'report.html');
+    const r = spawnSync(process.execPath, [join(dir, 'cli.js'), 'report', example, '--html', html], { encoding: 'utf8' });
+    expect(r.stderr).not.toContain('internal error');
+    expect(r.status).toBe(0);
+    expect(readFileSync(html, 'utf8')).toContain('data-schematic=');
   });
 });

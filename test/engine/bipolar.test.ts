@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import { assemble } from '../../src/core/circuit/assemble';
-import { bfAt, evalBipolar, isAt, newBipolarEval, prepareBipolar, vbeFor } from '../../src/core/models/bipolar';
+import { bfAt, CUTOFF_IS, evalBipolar, isAt, newBipolarEval, prepareBipolar, vbeCutoff, vbeFor } from '../../src/core/models/bipolar';
 import { resolveText } from '../../src/core/resolve';
 import { buildMirror } from '../../src/core/analysis/solve';
 import type { BipolarDeviceReport, BipolarParams, BipolarType, MirrorReport } from '../../src/core/types';
@@ -272,5 +272,56 @@ describe('BiCMOS netlists solve like the templates (independent solves agree)', 
     const q = dev(n, 'Q2');
     const m = n.devices.find((d) => d.name === 'M1')!;
     expect(rel(n.rout, q.ro + m.ro + m.gm * m.ro * q.ro)).toBeLessThan(5e-3);
+  });
+});
+
+describe('the bipolar off rule and the start-up check of a bipolar self-biased netlist (docs/references.md §11, §12)', () => {
+  it('a device is off up to VBE = UT·ln 1001 = 0.178605 V at 300 K, whatever its area (IC = 1000·IS; computed)', () => {
+    for (const area of [1, 8]) {
+      const d = prepareBipolar({ ...DB, vaf: undefined }, { area, m: 1 }, 'npn', 300, 300);
+      expect(vbeCutoff(d)).toBeCloseTo(0.178605, 6);
+      // The region report's cutoff is the same rule: 1 mV either side, IC crosses 1000·IS.
+      const e = newBipolarEval();
+      evalBipolar(d, vbeCutoff(d) - 1e-3, vbeCutoff(d) - 2, e);
+      expect(e.ic).toBeLessThan(CUTOFF_IS * d.is);
+      evalBipolar(d, vbeCutoff(d) + 1e-3, vbeCutoff(d) - 2, e);
+      expect(e.ic).toBeGreaterThan(CUTOFF_IS * d.is);
+    }
+  });
+
+  /** A ΔVBE (PTAT) cell: Q1 a diode, Q2 of eight times its area over RS, a PNP mirror closing the
+   *  loop, Qo copying Q1; no input, so self-biased. I = UT·ln 8/RS ≈ 10 µA with RS 5.4 kΩ. */
+  const cell = (extra = ''): string => [
+    'format: 1', 'process:', '  tnom: 300 K', '  temperature: 300 K',
+    '  npn: { is: 1e-16, bf: 100, vaf: 100 }', '  pnp: { is: 1e-16, bf: 50, vaf: 50 }',
+    'supplies: { vdd: 5 }', 'mirrors:',
+    '  - name: ptat', '    kind: netlist', '    type: npn',
+    '    devices:',
+    '      Q1: { type: npn, c: x, b: x, e: vss }',
+    '      Q2: { type: npn, c: y, b: x, e: s, area: 8 }',
+    '      Q3: { type: pnp, c: x, b: y, e: vdd }',
+    '      Q4: { type: pnp, c: y, b: y, e: vdd }',
+    '      Qo: { type: npn, c: out, b: x, e: vss }',
+    '    resistors:', `      rs: { a: s, b: vss, r: 5.4k }${extra}`,
+    '    output: { node: out, v: 2.5 }',
+  ].join('\n');
+
+  it('without a start-up: the loop can rest with every junction off, so no-startup', () => {
+    const file = analyzeText(cell(), 'ptat.bias.yaml');
+    const m = file.mirrors[0]!;
+    expect(m.converged).toBe(true);
+    expect(m.reference!.startup).toEqual({ zeroState: true, element: false });
+    const f = file.findings.find((x) => x.code === 'no-startup');
+    expect(f?.severity).toBe('error');
+    expect(f?.path).toEqual(['mirrors', 0, 'kind']);
+    expect(f?.range.start).toEqual({ line: 9, character: 10 });
+    // The solve itself found the loop's operating point, every junction on.
+    expect(m.devices.every((d) => d.region === 'forward-active')).toBe(true);
+  });
+
+  it('with a resistor from vdd into the diode\'s node there is no zero-current state (Q1 would see the supply): no finding', () => {
+    const file = analyzeText(cell('\n      rst: { a: vdd, b: x, r: 10M }'), 'ptat.bias.yaml');
+    expect(file.mirrors[0]!.reference!.startup.zeroState).toBe(false);
+    expect(file.findings.map((x) => x.code)).not.toContain('no-startup');
   });
 });

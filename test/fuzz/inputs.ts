@@ -21,8 +21,9 @@ export interface FuzzInput {
 /** The project's own specs: the example, the fixtures, and generated ones. */
 export function seedSpecs(root = process.cwd()): { name: string; text: string }[] {
   const read = (p: string) => readFileSync(join(root, p), 'utf8');
-  // A seed stands alone (no file beside it): the example's table flavour is given by parameters.
-  const example = read('examples/sensor-afe.bias.yaml').replace(/table: halden180-nlvt\.devtable\.csv[^\n]*/, 'kp: 300u, vt0: 0.32');
+  // A seed stands alone (no file beside it): the example's table flavour is given by parameters,
+  // one per line at the table line's indent (the flavour is a block mapping).
+  const example = read('examples/sensor-afe.bias.yaml').replace(/^([ \t]*)table: halden180-nlvt\.devtable\.csv[^\r\n]*/m, '$1kp: 300u\n$1vt0: 0.32');
   const seeds = [
     { name: 'sensor-afe.bias.yaml', text: example },
     { name: 'faulty-example.bias.yaml', text: faultyExampleText(example) },

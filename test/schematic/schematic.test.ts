@@ -7,6 +7,7 @@
 import ELK from 'elkjs/lib/elk.bundled.js';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 import { REFERENCE_KINDS, TEMPLATE_KINDS } from '../../src/core/kinds';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
@@ -14,7 +15,6 @@ import { formatSI } from '../../src/core/text/format';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { EXAMPLE, everyKindText, exampleText, typesOf } from './fixtures';
 import { isBipolarReport, sinksCurrent } from '../../src/core/device-types';
-import { exampleTables } from '../example-tables';
 
 const engine = new ELK();
 let kinds: FileReport, example: FileReport;
@@ -37,6 +37,14 @@ describe('schematics of every kind', () => {
     expect(kinds.mirrors.map((m) => m.name)).toEqual(expect.arrayContaining(TEMPLATE_KINDS.flatMap((k) => typesOf(k).map((t) => `${k.replace('-', '_')}_${t}`))));
   });
 
+  it('draws a reference with its loop resistor and start-up device, and no input source (its loop sets the current)', () => {
+    const s = drawn.get('beta_multiplier_nmos')!;
+    expect(s.parts.find((p) => p.id === 'input')).toBeUndefined();
+    expect(s.parts.find((p) => p.id === 'res:rs')?.symbol).toBe('res');
+    expect(text(s)).toContain(`rs ${formatSI(60e3, 'Ω')}`);
+    expect(s.parts.some((p) => p.device === 'startup')).toBe(true);
+  });
+
   it('draws each device with its symbol, name, size and region, each node with its voltage', () => {
     for (const m of kinds.mirrors) {
       const s = drawn.get(m.name);
@@ -44,7 +52,7 @@ describe('schematics of every kind', () => {
       const words = text(s!);
       for (const d of m.devices) {
         const part = s!.parts.find((p) => p.device === d.name);
-        expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);   // a reference's closing mirror is of the other polarity
+        expect(part?.symbol, `${m.name}.${d.name}`).toBe(d.type);  // a reference's closing mirror is of the other polarity
         const label = s!.labels.find((l) => l.device === d.name)!;
         expect(label.lines[0]).toBe(d.name);
         if (isBipolarReport(d)) {
@@ -76,7 +84,7 @@ describe('schematics of every kind', () => {
     }
   });
 
-  it('a reference draws its loop resistor with its value and its start-up device', () => {
+  it('every reference kind in both polarities draws its loop resistor with its value and its start-up MOSFET', () => {
     for (const kind of REFERENCE_KINDS) {
       for (const type of typesOf(kind)) {
         const name = `${kind.replace('-', '_')}_${type}`;
@@ -84,7 +92,7 @@ describe('schematics of every kind', () => {
         const s = drawn.get(name)!;
         const res = s.parts.find((p) => p.id === 'res:rs');
         expect(res?.symbol, name).toBe('res');
-        expect(s.labels.some((l) => l.lines.join(' ') === `R ${formatSI(60e3, 'Ω')}`), name).toBe(true);
+        expect(s.labels.some((l) => l.lines.join(' ') === `rs ${formatSI(60e3, 'Ω')}`), name).toBe(true);
         // The start-up device is a MOSFET of the mirror's side in a bipolar reference too.
         const startup = m.devices.find((d) => d.role === 'startup')!;
         expect(s.parts.find((p) => p.device === startup.name)?.symbol, name).toBe(sinksCurrent(m.type) ? 'nmos' : 'pmos');

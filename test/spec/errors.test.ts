@@ -106,8 +106,11 @@ describe('spec findings at the narrowest range', () => {
   });
 });
 
-test('a missing-key hint keeps its example whole: an "e.g." does not end the schema sentence', () => {
+test('a mapping input with neither `resistor` nor `from` says what it takes, with examples', () => {
   const text = withText('input: 10u', 'input: { i: 10u }');
   const f = parseSpec(text).findings.find((x) => x.code === 'missing-key');
-  expect(f?.message).toContain('is missing `resistor` (Resistor from the input node to the opposite rail, Ω (e.g. `120k`))');
+  expect(f?.message).toContain('`mirrors[0].input` needs one of `resistor` (Resistor from the input node to the opposite rail, Ω (e.g. `120k`)) or `from`');
+  // Said once: not again by each alternative, nor in ajv's words.
+  expect(parseSpec(text).findings.filter((x) => x.code === 'missing-key')).toHaveLength(1);
+  expect(parseSpec(text).findings.map((x) => x.message).join('\n')).not.toMatch(/anyOf|must match/);
 });

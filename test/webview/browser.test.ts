@@ -22,11 +22,11 @@ const URI = pathToFileURL(EXAMPLE).toString();
 const OPTIONS = { curve: true, corners: true, mc: { samples: 300, seed: 1 }, tables: exampleTables() };
 
 /** Real core reports of the example spec, before and after an edit a designer makes (the
- *  reference at the root of its bias network, `vbe_ref`, goes from about 10 to 12 µA with its
- *  resistor from 72 to 60 kΩ: every mirror of the network moves). */
+ *  reference at the root of its bias network, `root_ref`, goes from 68 to 56 kΩ: its current
+ *  rises and every mirror of the network moves). */
 function reports(): { main: FileReport; updated: FileReport; faulty: FileReport } {
   const text = readFileSync(EXAMPLE, 'utf8');
-  const edited = text.replace('resistor: 72k', 'resistor: 60k');
+  const edited = text.replace('    resistor: 68k\n', '    resistor: 56k\n');
   // A deliberate fault: the lna output cannot reach 2 GΩ, so the core reports low-rout there.
   const wrong = text.replace('rout: 20M', 'rout: 2G');
   expect(edited).not.toBe(text);

@@ -93,7 +93,7 @@ describe('host → page messages', () => {
   });
 
   it('rejects a report with any required field of a mirror removed (property)', () => {
-    // `iin` and `ratio` are absent for a self-biased mirror (no input): not required.
+    // `iin` and `ratio` are optional: a self-biased mirror or netlist has no input (design §14).
     const required = ['name', 'mirror', 'kind', 'type', 'converged', 'iterations', 'residual', 'vout',
       'iout', 'rout', 'compliance', 'nodes', 'devices', 'path'];
     fc.assert(fc.property(fc.constantFrom(...required), fc.nat(2), (key, index) => {

@@ -9,13 +9,13 @@ import { pathToFileURL } from 'node:url';
 import ELK from 'elkjs/lib/elk.bundled.js';
 import type { Browser } from 'playwright-core';
 import { analyzeText } from '../../src/core/analyze';
+import { exampleTables } from '../example-tables';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicsOf } from '../../src/core/schematic';
 import type { FileReport } from '../../src/core/types';
 import { OUT, ROOT, applyTheme, ensureBundle, instrument, launch, until, writePanelPage, type ThemeKind } from './browser-harness';
 import { deviceRow, findingsFor } from '../../webview/view-model';
 import { EXAMPLE, everyKindText, exampleText } from '../schematic/fixtures';
-import { exampleTables } from '../example-tables';
 
 let browser: Browser;
 let kinds: FileReport, example: FileReport;
@@ -120,6 +120,11 @@ describe('schematics in Chromium', () => {
     await svg.waitFor();
     for (const theme of ['light', 'dark', 'high-contrast'] as ThemeKind[]) {
       await applyTheme(page, theme);
+      // A theme change draws the panel again in the next animation frame: let that frame pass,
+      // then wait for the new schematic to be laid out (its figure drops aria-busy) before
+      // taking the picture of the element that is there now.
+      await page.evaluate(() => new Promise<void>((done) => requestAnimationFrame(() => requestAnimationFrame(() => done()))));
+      await page.locator(`.schematic-figure[data-schematic-of="${m.name}"]:not([aria-busy]) svg`).waitFor();
       await page.locator('.figures-schematic').screenshot({ path: join(OUT, `schematic-${theme}.png`) });
     }
     // What the device's row reveals (its key, else where it inherits its size from).

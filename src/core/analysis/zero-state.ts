@@ -7,6 +7,10 @@
  * anywhere between the rails. The state is consistent when the floating voltages can be chosen
  * so that every device stays in cutoff — a set of difference constraints (v_ctrl − v_ref ≤ VT0),
  * decided exactly by Bellman–Ford: feasible unless the constraint graph has a negative cycle.
+ * A bipolar device is off while VBE ≤ UT·ln(1001), where IC is 1000·IS: a junction has no
+ * threshold, and a current that small (0.1 pA for a unit device) is below its leakage, so a loop
+ * resting there is the state a start-up must leave (models/bipolar.ts, CUTOFF_IS, the same rule
+ * as the region report's cutoff; elements/device.ts, cutoffBound).
  */
 import type { Circuit } from '../circuit/circuit';
 import { cutoffBound } from '../circuit/elements/device';

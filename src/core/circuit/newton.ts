@@ -1,7 +1,8 @@
 /**
  * DC operating point by Newton on the nodal equations: analytic Jacobian, step limiting, then
  * source stepping and gmin stepping when plain Newton fails. Bounded by an iteration cap per
- * attempt and a wall-clock budget read every iteration; a failure is data (converged: false,
+ * attempt and, for a large circuit or with an injected clock, a wall-clock budget read every
+ * iteration (a small circuit's result never depends on the clock); a failure is data (converged: false,
  * with what was tried). A converged point is polished without gmin (SOLVER.gminFinal), so the
  * figures at nanoampere currents carry no trace of it.
  */
@@ -73,6 +74,16 @@ class Budget {
 /** Every attempt of one solve together: at most this many times SOLVER.maxIterations. */
 const TOTAL_ITERATIONS_FACTOR = 25;
 
+/** Work (units of workOf) up to which a solve's iteration cap alone bounds it when no clock is
+ *  injected: every template and bias-network circuit, whose whole cap costs a few milliseconds.
+ *  Its result then depends on the equations alone, never on how busy the machine is, so an
+ *  analysis, and a fix verified by one, comes out the same on every run (the fix searches
+ *  compare a local and a whole-file re-read, test/fuzz/verify-local.test.ts). */
+const CLOCKLESS_WORK = 5_000_000;
+
+/** A clock that never moves: the deadline never passes. */
+const NEVER = (): number => 0;
+
 /** Work a solve may do before the clock can end it, in the units of workOf (about a
  *  millisecond here): every template circuit gets SOLVER.maxIterations iterations of grace. */
 const GRACE_WORK = 200_000;
@@ -135,9 +146,10 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
 
 /** Solve from the free-node voltages already in ws.v (the initial guess). */
 export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResult {
-  const clock = opts.clock ?? Date.now;
+  const maxIterations = opts.maxIterations ?? SOLVER.maxIterations;
+  const clock = opts.clock ?? (TOTAL_ITERATIONS_FACTOR * maxIterations * workOf(c) <= CLOCKLESS_WORK ? NEVER : Date.now);
   const budgetMs = opts.budgetMs ?? SOLVER.timeBudgetMs;
-  const budget = new Budget(clock, budgetMs, opts.maxIterations ?? SOLVER.maxIterations, workOf(c));
+  const budget = new Budget(clock, budgetMs, maxIterations, workOf(c));
   const r = solveWithGmin(c, ws, opts, budget);
   if (!r.converged || opts.polish === false || !gminMatters(c, ws)) return r;
   // The polish's iterations are not counted: `iterations` says how hard the point was to find.

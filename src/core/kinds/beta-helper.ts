@@ -5,7 +5,8 @@
  * (docs/references.md §12; Gray, Hurst, Lewis and Meyer, Analysis and Design of Analog
  * Integrated Circuits, 5th ed., ch. 4, from memory). Rout is the output device's ro.
  */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { bipolarSingleRout } from './single-rout';
 
 export const betaHelper: KindSpec = {
   roles: ['ref', 'out', 'helper'],
@@ -18,8 +19,5 @@ export const betaHelper: KindSpec = {
   bank: true,
   vbias: false,
   families: ['bipolar'],
-  rout: {
-    formula: 'ro_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: bipolarSingleRout,
 };

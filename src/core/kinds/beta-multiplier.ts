@@ -6,7 +6,8 @@
  * Analog CMOS Integrated Circuits, 1st ed., §11.2 (docs/references.md). Each tap `out` copies
  * `ref` (gate on x) into its own output node.
  */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { singleRout } from './single-rout';
 
 export const betaMultiplier: KindSpec = {
   roles: ['ref', 'wide', 'top', 'topd', 'out'],
@@ -31,8 +32,5 @@ export const betaMultiplier: KindSpec = {
   bank: true,
   vbias: false,
   families: ['mosfet'],
-  rout: {
-    formula: '1/gds_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: singleRout,
 };

@@ -8,7 +8,8 @@
  * (from memory; docs/references.md §13). Each tap `out` copies `ref` (base on x) into its own
  * output node.
  */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { bipolarSingleRout } from './single-rout';
 
 export const ptat: KindSpec = {
   roles: ['ref', 'wide', 'top', 'topd', 'out'],
@@ -33,8 +34,5 @@ export const ptat: KindSpec = {
   bank: true,
   vbias: false,
   families: ['bipolar'],
-  rout: {
-    formula: 'ro_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: bipolarSingleRout,
 };

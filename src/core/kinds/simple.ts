@@ -1,5 +1,6 @@
 /** Simple mirror: `ref` diode-connected on the input node, `out` on its gate. */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { bipolarSingleRout, singleRout } from './single-rout';
 
 export const simple: KindSpec = {
   roles: ['ref', 'out'],
@@ -12,12 +13,6 @@ export const simple: KindSpec = {
   bank: true,
   vbias: false,
   families: ['mosfet', 'bipolar'],
-  rout: {
-    formula: '1/gds_out',
-    value: ({ out }) => ro(out),
-  },
-  bipolarRout: {
-    formula: 'ro_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: singleRout,
+  bipolarRout: bipolarSingleRout,
 };

@@ -7,7 +7,8 @@
  * Analog Integrated Circuits, 5th ed., §4.4.2 (from memory; docs/references.md §13). Each tap
  * `out` copies `ref` (base on a) into its own output node.
  */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { bipolarSingleRout } from './single-rout';
 
 export const vbeResistor: KindSpec = {
   roles: ['ref', 'follow', 'top', 'topd', 'out'],
@@ -31,8 +32,5 @@ export const vbeResistor: KindSpec = {
   bank: true,
   vbias: false,
   families: ['bipolar'],
-  rout: {
-    formula: 'ro_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: bipolarSingleRout,
 };

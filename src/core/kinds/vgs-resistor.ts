@@ -6,7 +6,8 @@
  * Integrated Circuits, 5th ed., §4.4.2 (the MOS form of the VBE-referenced cell; from memory).
  * Each tap `out` copies `ref` (gate on a) into its own output node.
  */
-import { ro, type KindSpec } from './kind';
+import type { KindSpec } from './kind';
+import { singleRout } from './single-rout';
 
 export const vgsResistor: KindSpec = {
   roles: ['ref', 'follow', 'top', 'topd', 'out'],
@@ -30,8 +31,5 @@ export const vgsResistor: KindSpec = {
   bank: true,
   vbias: false,
   families: ['mosfet'],
-  rout: {
-    formula: '1/gds_out',
-    value: ({ out }) => ro(out),
-  },
+  rout: singleRout,
 };

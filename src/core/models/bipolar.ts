@@ -119,6 +119,22 @@ export function evalBipolar(dev: BipolarDevice, vbe: number, vbc: number, out: B
   out.dibVbc = (is / br) * d2;
 }
 
+/**
+ * The bipolar "off" rule, one for the region report (`cutoff`) and the zero-current state test
+ * (analysis/zero-state.ts): a device is off while its collector current is at most 1000·IS,
+ * i.e. VBE ≤ UT·ln(1001) ≈ 6.9·UT (179 mV at 300 K). A junction has no threshold, so "off" must
+ * name a current. Why this one: 1000·IS is 0.1 pA for a unit device of IS 1e-16 A, below a real
+ * junction's leakage and six decades or more under any bias current qpoint checks, so a loop
+ * resting there is the zero-current state a start-up circuit must leave; and tied to IS it
+ * scales with area, m and temperature as the device does (common practice).
+ */
+export const CUTOFF_IS = 1e3;
+
+/** V (device frame), the highest VBE at which the device is off (CUTOFF_IS, Early factor 1). */
+export function vbeCutoff(dev: BipolarDevice): number {
+  return vbeFor(dev, CUTOFF_IS * dev.is);
+}
+
 /** VBE (device frame) at which a forward-active device carries `ic` at VCE = vce. */
 export function vbeFor(dev: BipolarDevice, ic: number, vce = 0): number {
   const k = Math.max(1 + vce * dev.invVaf, EARLY_FLOOR);

@@ -137,17 +137,8 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     // closing mirror).
     const map = (n: string): string => (n === 'R' ? top : n === 'T' ? far : n === 'O' ? `${prefix}out` : n === 'C' ? `${prefix}c` : n);
     for (const d of m.devices) {
-      // A reference's start-up device sits where its loop says (a report marks it by its role).
       const conn = kind.reference[d.role] ?? kind.output[d.role] ?? (d.role === 'startup' ? kind.loop?.startup : undefined);
       if (conn) addDevice(d, { d: map(conn.d), g: map(conn.g), s: map(conn.s) });
-    }
-    if (kind.loop && wiring?.resistor !== undefined) {
-      // The loop resistor from its loop node to the rail, the rail at the bottom for n-type mirrors.
-      for (const [name, ends] of Object.entries(kind.loop.resistors)) {
-        const a = net(map(ends.a)), b = net(map(ends.b));
-        const [hi, lo] = pType ? [b, a] : [a, b];
-        parts.push({ id: `res:${name}`, symbol: 'res', pins: [{ side: 'top', net: hi }, { side: 'bottom', net: lo }], lines: ['R', si(wiring.resistor, 'Ω')] });
-      }
     }
     if (kind.degeneration !== undefined && wiring?.degeneration !== undefined) {
       // The emitter resistor hangs between its node and the mirror's rail, the rail at the bottom
@@ -155,6 +146,16 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
       const e = net(map(kind.degeneration));
       const [hi, lo] = pType ? [net(top), e] : [e, net(top)];
       parts.push({ id: 'res:degeneration', symbol: 'res', pins: [{ side: 'top', net: hi }, { side: 'bottom', net: lo }], lines: ['RE', si(wiring.degeneration, 'Ω')] });
+    }
+    // A reference's loop resistors, drawn between their nodes, higher voltage on top.
+    for (const [name, ends] of Object.entries(kind.loop?.resistors ?? {})) {
+      const [a, b] = [map(ends.a), map(ends.b)];
+      const va = m.nodes[a] ?? (a === 'vdd' ? m.nodes.vdd : 0) ?? 0;
+      const vb = m.nodes[b] ?? (b === 'vdd' ? m.nodes.vdd : 0) ?? 0;
+      const [hi, lo] = va >= vb ? [a, b] : [b, a];
+      const r = wiring?.loopResistor;
+      parts.push({ id: `res:${name}`, symbol: 'res', pins: [{ side: 'top', net: net(hi) }, { side: 'bottom', net: net(lo) }],
+        lines: r !== undefined ? [name, si(r, 'Ω')] : [name] });
     }
     const vb = nets.get('vbias');
     if (vb) { vb.held = 'vbias'; if (m.vbias !== undefined) vb.v = m.vbias; }
@@ -164,7 +165,7 @@ export function circuitOf(report: FileReport, m: MirrorReport, si: SI): Circuit 
     const [hi, lo] = pType ? [node, net(far)] : [net(far), node];
     const pins: CircuitPin[] = [{ side: 'top', net: hi }, { side: 'bottom', net: lo }];
     const iin = m.iin;
-    if (iin === undefined) {
+    if (iin === undefined || kind.loop !== undefined) {
       // A self-biased reference has no input: its current is set by its own loop.
     } else if (m.fedBy !== undefined || input?.kind === 'link') {
       // Fed by another mirror's output: the input node is that output's node, drawn as a link.

@@ -19,7 +19,7 @@ const REFERENCE_KEYS = ['resistor', 'k', 'startup'];
 
 export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
   if (raw === undefined) {
-    missing(scope.sink, path.slice(0, -1), 'input', ' (input current, A, or { resistor: R })');
+    missing(scope.sink, path.slice(0, -1), 'input', ' (an input current, e.g. `10u`, { resistor: R } or { from: mirror.output })');
     return undefined;
   }
   if (isRecord(raw)) {
@@ -30,7 +30,7 @@ export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): Inpu
       return from === undefined ? undefined : { kind: 'link', from, mirror: -1, output: -1, i: NaN };
     }
     if (raw.resistor === undefined) {
-      missing(scope.sink, path, 'resistor');
+      missing(scope.sink, path, 'resistor', ' (a resistor to the opposite rail, Ω), or `from` (the output that feeds it)');
       return undefined;
     }
     const r = resolveNumber(scope, raw.resistor, [...path, 'resistor'], 'resistance', { positive: true });

@@ -103,7 +103,20 @@ function mapError(e: ErrorObject, data: unknown, sink: FindingSink): void {
       sink.error('unknown-key', `unknown key \`${key}\` in ${where(path)}${hint}`, at, 'key', 'unknown', word);
       return;
     }
+    case 'anyOf': {
+      // Alternatives that each require one key (an input's `resistor` or `from`): one finding
+      // naming them all; other alternatives are explained by their own branch errors.
+      const branches = Array.isArray(e.schema) ? (e.schema as { required?: unknown[] }[]) : [];
+      const keys = branches.map((b) => (Object.keys(b).length === 1 && b.required?.length === 1 ? String(b.required[0]) : undefined));
+      if (keys.length === 0 || keys.some((k) => k === undefined)) return;
+      const named = (keys as string[]).map((k) => `\`${k}\`${shortHint(parent?.properties?.[k]?.description)}`);
+      // Keyed as the first alternative's missing key, so the elaborator's own report of it is not a second finding.
+      sink.error('missing-key', `${where(path)} needs one of ${named.join(' or ')}`, path, 'key', `missing:${keys[0]}`);
+      return;
+    }
     case 'required': {
+      // A required key of one anyOf alternative is said once, by the anyOf.
+      if (e.schemaPath.includes('/anyOf/')) return;
       const missing = String(p.missingProperty);
       const hint = shortHint(parent?.properties?.[missing]?.description);
       sink.error('missing-key', `${where(path)} is missing \`${missing}\`${hint}`, path, 'key', `missing:${missing}`);

@@ -5,7 +5,7 @@
  * models/bipolar.ts.
  */
 import { SOLVER } from '../../defaults';
-import { evalBipolar, newBipolarEval } from '../../models/bipolar';
+import { CUTOFF_IS, evalBipolar, newBipolarEval } from '../../models/bipolar';
 import type { BipolarDeviceReport, Region } from '../../types';
 import type { Workspace } from '../workspace';
 import type { BjtElement } from './element';
@@ -74,10 +74,7 @@ export function bjtSigmas(q: BjtElement): [number, number] | undefined {
   return [(ais ?? 0) / root, (abf ?? 0) / root];
 }
 
-/** A collector current at or below this many IS counts as no current (cutoff): VBE below
- *  about 7·UT. */
-const CUTOFF_IS = 1e3;
-
+/** Cutoff by the one bipolar off rule (CUTOFF_IS, models/bipolar.ts), else by VCE. */
 function regionOf(q: BjtElement, ic: number, vce: number): Region {
   if (ic <= CUTOFF_IS * q.dev.is) return 'cutoff';
   return vce >= q.dev.vcesat ? 'forward-active' : 'saturation';

@@ -7,7 +7,7 @@
 import { newChannelEval, type ChannelEval } from '../../models/core';
 import { evalTerminal } from '../../models/terminal';
 import type { DeviceReport } from '../../types';
-import { evalBipolar, newBipolarEval, vbeFor } from '../../models/bipolar';
+import { evalBipolar, newBipolarEval, vbeCutoff } from '../../models/bipolar';
 import { bjtFrame, bjtMargin, bjtMismatchCurrents, bjtReport, bjtSigmas } from './bjt';
 import { assertNever, type DeviceElement } from './element';
 import { mosMargin, mosMismatchDerivatives, mosReport, mosSigmas } from './mosfet';
@@ -139,17 +139,19 @@ export function controlledSource(d: DeviceElement, v: Float64Array): { g: number
 
 /**
  * The device's cutoff condition, linear in node voltages, for the zero-current state test
- * (analysis/startup.ts): it is off while v[ctrl] − v[ref] ≤ `bound` (MOSFET: VGS ≤ VT0 for NMOS,
- * VSG ≤ |VT0| for PMOS; VT0 without body effect, the lowest threshold a bulk at its rail gives, so
- * a state found off here is off for every body bias).
+ * (analysis/zero-state.ts): it is off while v[ctrl] − v[ref] ≤ `bound` (MOSFET: VGS ≤ VT0 for
+ * NMOS, VSG ≤ |VT0| for PMOS; VT0 without body effect, the lowest threshold a bulk at its rail
+ * gives, so a state found off here is off for every body bias. Bipolar: VBE ≤ UT·ln(1001), VEB
+ * for PNP, where IC is 1000·IS, negligible: models/bipolar.ts, CUTOFF_IS, says why).
  */
 export function cutoffBound(d: DeviceElement): { ctrl: number; ref: number; bound: number } {
   switch (d.kind) {
     case 'mos':
       return d.dev.sign > 0 ? { ctrl: d.g, ref: d.s, bound: d.dev.vt0 } : { ctrl: d.s, ref: d.g, bound: d.dev.vt0 };
     case 'bjt': {
-      // A junction has no threshold: off below the VBE at which it carries 1 pA.
-      const bound = vbeFor(d.dev, 1e-12);
+      // A junction has no threshold: off up to the VBE at which IC reaches the cutoff current
+      // of the region report (models/bipolar.ts, CUTOFF_IS: the one bipolar off rule).
+      const bound = vbeCutoff(d.dev);
       return d.dev.sign > 0 ? { ctrl: d.b, ref: d.e, bound } : { ctrl: d.e, ref: d.b, bound };
     }
     default: return assertNever(d);
