@@ -12,8 +12,8 @@ export const exampleText = readFileSync(join(ROOT, EXAMPLE), 'utf8');
 
 /** The example's header (process, supplies, limits, params) with mirrors of our own. */
 function withMirrors(mirrors: string[]): string {
-  // The example's process has an NPN only: a PNP (invented values) for the PNP mirrors.
-  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:')).replace('\n  npn:', '\n  pnp: { is: 1e-17, bf: 60, vaf: 40 }\n  npn:');
+  // The example's process has both bipolar types (its BiCMOS option's NPN and PNP).
+  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:'));
   return `${head}\nmirrors:\n${mirrors.join('\n')}\n`;
 }
 
