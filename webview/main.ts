@@ -7,6 +7,7 @@
 import css from './styles.css';
 import uplotCss from 'uplot/dist/uPlot.min.css';
 import { SCHEMATIC_CSS } from '../src/core/schematic/draw';
+import { NETWORK_TREE_CSS } from '../src/core/network-tree/draw';
 import type { Range } from '../src/core/types';
 import { REPORT_DATA_ID, STATIC_ID, parseEmbeddedReport } from '../src/core/report/html';
 import { describeMessage, fromWire, isFileReport, isHostMessage, type PageMessage } from '../src/protocol/messages';
@@ -26,7 +27,7 @@ const vscodeGlobal = globalThis as unknown as { acquireVsCodeApi?: () => VsCodeA
 
 function adoptStyles(): void {
   // Constructed stylesheets need no 'unsafe-inline' under the panel's CSP.
-  const sheets = [uplotCss, css, SCHEMATIC_CSS].map((text) => {
+  const sheets = [uplotCss, css, SCHEMATIC_CSS, NETWORK_TREE_CSS].map((text) => {
     const sheet = new CSSStyleSheet();
     sheet.replaceSync(text);
     return sheet;

@@ -9,7 +9,7 @@ import { cssId, histogramPlot, ioutPlot, plotId, routPlot, type PlotHandle, type
 import { markSchematicDevice, schematicFigure } from './schematic';
 import type { PanelState } from './state';
 import { networkFigures } from './network-tree';
-import { mirrorGroups } from './network-model';
+import { mirrorGroups } from '../src/core/network-tree';
 import {
   CORNER_COLUMNS, cornerRows, deviceColumns, deviceRow, fileFindings, findingRows, findingsFor,
   mirrorAnchor, mirrorList, monteCarloFigures, requirementViews, summaryFigures, type FindingRowView,

@@ -26,10 +26,11 @@ function layout(report: FileReport, m: MirrorReport): Promise<Schematic | undefi
   return s;
 }
 
-function build(e: SvgElement): Element {
+/** An element tree of the core (schematic, network tree) as DOM. */
+export function buildSvg(e: SvgElement): Element {
   const node = document.createElementNS(SVG_NS, e.tag);
   for (const [k, v] of Object.entries(e.attrs)) if (k !== 'xmlns') node.setAttribute(k, v);
-  for (const c of e.children) node.append(typeof c === 'string' ? document.createTextNode(c) : build(c));
+  for (const c of e.children) node.append(typeof c === 'string' ? document.createTextNode(c) : buildSvg(c));
   return node;
 }
 
@@ -41,7 +42,7 @@ export function schematicFigure(report: FileReport, m: MirrorReport, onDevice: (
   void layout(report, m).then((s) => {
     fig.removeAttribute('aria-busy');
     if (!s) { lastDrawn.delete(m.name); fig.remove(); return; }
-    const svg = build(drawSchematic(s));
+    const svg = buildSvg(drawSchematic(s));
     for (const g of svg.querySelectorAll<SVGGElement>('.sch-device')) {
       const name = g.dataset.device ?? '';
       g.addEventListener('click', () => onDevice(name));

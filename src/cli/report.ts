@@ -5,6 +5,7 @@ import type { Command } from './args';
 import { analyzeText } from '../core/analyze';
 import { renderHtmlReport } from '../core/report/html';
 import { schematicsOf } from '../core/schematic';
+import { networkTreesOf } from '../core/network-tree';
 import { isSameFile, readOne, reasonOf } from './io';
 import { VERSION } from './version';
 import { readTables } from '../node/tables';
@@ -31,11 +32,13 @@ export async function runReport(c: ReportCommand): Promise<number> {
   // a dynamic import.
   // eslint-disable-next-line @typescript-eslint/no-require-imports
   const ELK = require('elkjs/lib/elk.bundled.js') as typeof import('elkjs/lib/elk.bundled.js').default;
-  const schematics = await schematicsOf(new ELK(), report);
+  const elk = new ELK();
+  const schematics = await schematicsOf(elk, report);
+  const trees = await networkTreesOf(elk, report);
   try {
     mkdirSync(dirname(c.html), { recursive: true });
     const stamp = { version: VERSION, date: new Date().toISOString(), inputHash: `sha256:${createHash('sha256').update(read.text).digest('hex')}` };
-    writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp, schematics));
+    writeFileSync(c.html, renderHtmlReport(report, webviewAssets(), stamp, schematics, trees));
   } catch (err) {
     process.stderr.write(`qpoint: cannot write ${c.html}: ${reasonOf(err)}\n`);
     return 2;

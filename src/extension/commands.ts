@@ -6,6 +6,7 @@ import { createHash } from 'node:crypto';
 import * as vscode from 'vscode';
 import { renderHtmlReport } from '../core/report/html';
 import { schematicsOf } from '../core/schematic';
+import { networkTreesOf } from '../core/network-tree';
 import type { AnalysisManager } from './analysisManager';
 import type { Analyzer } from './analyzer';
 import { toDiagnostics, toWorkspaceEdit } from './convert';
@@ -130,7 +131,8 @@ export async function exportReport(c: CommandContext, target?: vscode.Uri): Prom
     inputHash: `sha256:${createHash('sha256').update(doc.getText()).digest('hex')}`,
   };
   const { default: ELK } = await import('elkjs/lib/elk.bundled.js');
-  const html = renderHtmlReport(report, { script }, stamp, await schematicsOf(new ELK(), report));
+  const elk = new ELK();
+  const html = renderHtmlReport(report, { script }, stamp, await schematicsOf(elk, report), await networkTreesOf(elk, report));
   const base = doc.uri.path.split('/').pop()?.replace(/\.bias\.(ya?ml|json)$/i, '') || 'qpoint-report';
   const uri = target ?? await vscode.window.showSaveDialog({
     defaultUri: doc.isUntitled ? undefined : vscode.Uri.joinPath(doc.uri, '..', `${base}.report.html`),

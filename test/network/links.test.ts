@@ -311,9 +311,19 @@ describe('network findings', () => {
     expect(sat.fixes!.map((f) => f.title)).toEqual([
       'Widen dist for a lower input VGS (w 0.6u→1.2u), verified by re-solving the network',
       'Widen root for a lower VDSsat of root (w 8u→32u), verified by re-solving the network',
+      'Make root a wide-swing cascode (`kind: wide-swing`: its output needs 2·VDSsat, not VT + 2·VDSsat), verified by re-solving the network',
     ]);
+    // A cascode's output needs VT + 2·VDSsat, a wide-swing one's 2·VDSsat (docs/references.md,
+    // wide-swing cascode: Johns & Martin, 1st ed., ch. 3, from memory).
+    expect(sat.message).toContain('or make root a wide-swing cascode (2·VDSsat instead of VT + 2·VDSsat)');
   });
-  it.each([0, 1])('fix %i leaves the link saturated when the whole network is solved again', (k) => {
+  it('a simple mirror upstream: no kind change, and the finding says why a cascode would not help', () => {
+    const simple = analyzeText(text.replace('kind: cascode', 'kind: simple').replace('w: 0.6u, l: 1u', 'w: 0.3u, l: 4u'), 'sat.bias.yaml');
+    const f = simple.findings.find((x) => x.code === 'link-saturation')!;
+    expect(f.message).toContain('(a cascode on root would not help: it needs at least one VDSsat more at the link node)');
+    expect((f.fixes ?? []).some((x) => x.title.includes('kind:'))).toBe(false);
+  });
+  it.each([0, 1, 2])('fix %i leaves the link saturated when the whole network is solved again', (k) => {
     const after = analyzeText(applyEdits(text, sat.fixes![k]!.edits), 'sat.bias.yaml');
     expect(after.findings.find((f) => f.code === 'link-saturation')).toBeUndefined();
     expect(report(after, 'root').headroom!).toBeGreaterThanOrEqual(0.1);

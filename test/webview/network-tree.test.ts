@@ -1,7 +1,7 @@
 // The panel's bias-network tree (design §9.3) in real headless Chromium, on a real core report of
 // test/workbench/fixtures/network.bias.yaml: a reference bank feeding two PMOS mirrors, one of
 // which feeds an NMOS tail; `adc_src`'s small input device pulls its link's node down, so that
-// link is in trouble. The pure tree (network-model.ts) is checked in Node first.
+// link is in trouble. The pure tree (src/core/network-tree/model.ts) is checked in Node first.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
@@ -9,7 +9,7 @@ import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import { analyzeText } from '../../src/core/analyze';
 import type { FileReport } from '../../src/core/types';
-import { mirrorGroups, networkTree } from '../../webview/network-model';
+import { mirrorGroups, networkTree } from '../../src/core/network-tree/model';
 import { formatSI, formatSignedPercent } from '../../webview/format';
 import { OUT, ROOT, applyTheme, ensureBundle, ensureDir, instrument, launch, until, writePanelPage, type ThemeKind } from './browser-harness';
 

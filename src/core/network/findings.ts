@@ -1,11 +1,12 @@
 /**
  * Findings of bias networks (docs/findings.md): `supply-budget` (the spec draws more than
  * `limits.supplyCurrent`), `link-saturation` (the fed mirror's input voltage pushes the feeding
- * output out of saturation; fixes on either side, each verified by analysing the edited text, so
- * by re-solving the whole network), `chain-error` (a leaf's compounded error beyond
+ * output out of saturation; fixes on either side — a wider fed mirror, a wider feeding mirror, a
+ * standard cascode upstream made wide-swing — each verified by analysing the edited text, so by
+ * re-solving the whole network), `chain-error` (a leaf's compounded error beyond
  * `limits.error`, naming the stage that contributes most).
  */
-import type { FileReport, Finding, Fix, MirrorReport, NetworkReport, ResolvedSpec, TemplateMirror } from '../types';
+import type { FileReport, Finding, Fix, MirrorReport, NetworkReport, ResolvedMirror, ResolvedSpec, TemplateMirror } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import { formatSI, formatSignedPercent } from '../text/format';
 import { mirrorAt } from '../mirror-at';
@@ -14,6 +15,7 @@ import { planSizeEdits } from '../rules/size-edits';
 import { quantizeSize } from '../sizing/quantize';
 import { key } from './joint';
 import { applyEdits } from '../text/edits';
+import { quotedLike, replaceValueEdit } from '../spec/edit';
 
 /** Analyse an edited text (no corners, no fixes): the verification of a link fix. */
 export type Reanalyze = (text: string) => FileReport;
@@ -106,9 +108,10 @@ function linkSaturation(parsed: ParsedSpec, spec: ResolvedSpec, fed: TemplateMir
   const path = [...fed.path, 'input', 'from'];
   const range = parsed.source.value(path) ?? parsed.source.rangeFor(path);
   const need = spec.limits.margin - up.headroom!;
+  const upMirror = mirrorAt(spec, up.mirrorIndex);
   const f: Finding = {
     severity: 'error', code: 'link-saturation', path, range,
-    message: `${fed.name}: its input node sits at ${formatSI(up.linkV!, 'V')}, ${formatSI(Math.abs(up.headroom!), 'V')} ${up.headroom! >= 0 ? 'inside' : 'beyond'} the compliance limit ${formatSI(up.compliance, 'V')} of \`${up.name}\` (limits.margin ${formatSI(spec.limits.margin, 'V')}): lower ${fed.name}'s input VGS or ${up.name}'s VDSsat by ${formatSI(need, 'V')}, or cascode ${up.mirror}`,
+    message: `${fed.name}: its input node sits at ${formatSI(up.linkV!, 'V')}, ${formatSI(Math.abs(up.headroom!), 'V')} ${up.headroom! >= 0 ? 'inside' : 'beyond'} the compliance limit ${formatSI(up.compliance, 'V')} of \`${up.name}\` (limits.margin ${formatSI(spec.limits.margin, 'V')}): lower ${fed.name}'s input VGS or ${up.name}'s VDSsat by ${formatSI(need, 'V')}${cascodeAdvice(upMirror)}`,
   };
   if (!reanalyze || parsed.withheld) return f;
   const fixes: Fix[] = [];
@@ -133,8 +136,34 @@ function linkSaturation(parsed: ParsedSpec, spec: ResolvedSpec, fed: TemplateMir
       if (!still && fresh.length === 0) { fixes.push({ title: `${side.title(plan.w)}, verified by re-solving the network`, edits: plan.edits }); break; }
     }
   }
+  // The upstream kind changed where that lowers its compliance limit: a standard cascode's
+  // output needs VT + 2·VDSsat, a wide-swing cascode's 2·VDSsat with the same output resistance.
+  const kindPath = ['mirrors', up.mirrorIndex, 'kind'];
+  const kindRange = upMirror?.kind === 'cascode' && isMos(upMirror) ? parsed.source.value(kindPath) : undefined;
+  const kindEdit = kindRange ? replaceValueEdit(parsed, kindPath, quotedLike(parsed.source.text(kindRange), 'wide-swing')) : undefined;
+  const edited = kindEdit ? applySafe(parsed.text, [kindEdit]) : undefined;
+  if (kindEdit && edited !== undefined) {
+    const after = reanalyze(edited);
+    const still = after.findings.some((x) => x.code === 'link-saturation' && x.path.join('/') === path.join('/'));
+    const fresh = [...errorsOf(after)].filter((e) => !before.has(e) && !e.startsWith('link-saturation@') && !e.startsWith('ratio-error@'));
+    if (after.parsed && !still && fresh.length === 0) {
+      fixes.push({ title: `Make ${up.mirror} a wide-swing cascode (\`kind: wide-swing\`: its output needs 2·VDSsat, not VT + 2·VDSsat), verified by re-solving the network`, edits: [kindEdit] });
+    }
+  }
   if (fixes.length > 0) { fixes[0]!.preferred = true; f.fixes = fixes; }
   return f;
+}
+
+/** MOS only: the wide-swing kind has no bipolar form (kinds/wide-swing.ts). */
+const isMos = (m: ResolvedMirror): boolean => m.type === 'nmos' || m.type === 'pmos';
+
+/** The cascode remedy in words: a standard cascode upstream can be made wide-swing; a simple or
+ *  wide-swing output is not helped by cascoding, which adds at least a VDSsat at the link node. */
+function cascodeAdvice(up: ResolvedMirror | undefined): string {
+  if (!up || !isMos(up)) return '';
+  if (up.kind === 'cascode') return `, or make ${up.name} a wide-swing cascode (2·VDSsat instead of VT + 2·VDSsat)`;
+  if (up.kind === 'simple' || up.kind === 'wide-swing') return ` (a cascode on ${up.name} would not help: it needs at least one VDSsat more at the link node)`;
+  return '';
 }
 
 function applySafe(text: string, edits: Fix['edits']): string | undefined {

@@ -9,12 +9,13 @@
  * anything; `solveNetworks` solves the groups and records them in `spec.networks`.
  */
 import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
-import { solveMirror } from '../analysis/solve';
+import { outputCurrent, solveMirror } from '../analysis/solve';
 import { deviceMismatchCurrents, deviceSigmas } from '../circuit/elements/device';
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, key, outputCurrentOf, type JointCircuit } from './joint';
+import { rootStartCurrent } from './root-current';
+import { buildJoint, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import type { PerturbationLike } from '../circuit/templates';
 
 function templateAt(spec: ResolvedSpec) {
@@ -39,10 +40,7 @@ export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
   const changed = new Map<number, TemplateMirror>();
   const at = templateAt(spec);
   for (const g of groups) {
-    const rin = g.root.input;
-    const { vdd, vss } = spec.supplies;
-    // A reference root sets its own current: its children start from a typical 10 µA.
-    const i0 = rin.kind === 'resistor' ? Math.max(vdd - vss - 0.7, 0.1 * (vdd - vss)) / rin.r : rin.kind === 'self' ? 10e-6 : rin.i;
+    const i0 = rootStartCurrent(spec, g.root);
     for (const [i, cur] of intendedInputs(g, i0, at)) {
       const m = at(i);
       if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });
@@ -67,8 +65,10 @@ export function carryLinks(read: ResolvedSpec, solved: ResolvedSpec, i: number):
 }
 
 /** Solve every group of `spec` and hand on its members at the solution; `spec.networks` then
- *  describes each group. A spec without links comes back unchanged. */
-export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): ResolvedSpec {
+ *  describes each group. A spec without links comes back unchanged. `chainSigma: false` leaves
+ *  out the leaves' chain sigmas (one adjoint solve per leaf), which a fix's re-check and a corner
+ *  do not report. */
+export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, opts: { chainSigma?: boolean } = {}): ResolvedSpec {
   const groups = networkGroups(spec);
   if (groups.length === 0) return spec;
   const changed = new Map<number, TemplateMirror>();
@@ -76,7 +76,7 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): R
   for (const g of groups) {
     const j = buildJoint(spec, g, perturb);
     const r = solveMirror(j.mc);
-    const net = describe(spec, g, j, r.converged);
+    const net = describe(spec, g, j, r.converged, opts.chainSigma !== false);
     if (r.note) net.solveNote = r.note;
     networks.push(net);
     if (!r.converged) continue;
@@ -93,34 +93,35 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike): R
   return withMirrors(spec, changed, networks);
 }
 
-/** For Monte Carlo on a leaf output of a network (design §9.1: one draw per device per sample,
- *  so a leaf's spread includes every device above it): the whole group's circuit measured at that
- *  output, and the devices to draw (every device of every mirror on the path from the root).
- *  Undefined when the output is in no network or feeds another mirror. */
-export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): { mc: JointCircuit['mc']; draw: Set<number> } | undefined {
+/** The whole group's circuit measured at one of its outputs, for Monte Carlo (design §9.1: one
+ *  draw per device per sample over the whole group, so the spread of a leaf and of an
+ *  intermediate output includes every device above it, and an intermediate output's also the
+ *  devices below that set its node's voltage). `draw` is every device of the group; `iout` the
+ *  measured output's current at ws.v; `linked` when that output feeds another mirror (its node
+ *  is solved, not held, so it has no compliance to test). Undefined when the output is in no
+ *  network. */
+export interface JointMeasure { mc: JointCircuit['mc']; draw: Set<number>; iout: () => number; linked: boolean }
+
+export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): JointMeasure | undefined {
   if (!spec.networks) return undefined;
   const g = networkGroups(spec).find((x) => x.members.some((m) => indexOf(m) === mirrorIndex));
   const m = g?.members.find((x) => indexOf(x) === mirrorIndex);
-  if (!g || !m || m.outputs[outputIndex]?.feeds !== undefined) return undefined;
+  if (!g || !m || !m.outputs[outputIndex]) return undefined;
   const j = buildJoint(spec, g, undefined, { mirror: mirrorIndex, output: outputIndex });
-  const path = new Set<number>();
-  for (let at: number | undefined = mirrorIndex; at !== undefined; at = g.parent.get(at)?.mirror) path.add(at);
   const draw = new Set<number>();
-  for (const mem of j.members) {
-    if (!path.has(mem.index)) continue;
-    for (let d = mem.first; d < mem.first + mem.wired.deviceNames.length; d++) draw.add(d);
-  }
-  return { mc: j.mc, draw };
+  for (let d = 0; d < j.mc.circuit.devices.length; d++) draw.add(d);
+  const k = key(mirrorIndex, outputIndex);
+  const linked = j.linkNode.has(k);
+  const iout = linked ? () => outputCurrentOf(j, k) : () => outputCurrent(j.mc);
+  return { mc: j.mc, draw, iout, linked };
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
- *  row given as (column, value index) pairs). */
-function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[]): Float64Array | undefined {
-  if (!factorAtSolution(ws)) return undefined;
-  const lam = new Float64Array(ws.n);
+ *  row given as (column, value index) pairs), into `lam` (the LU factored at the solution). */
+function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Array): void {
+  lam.fill(0);
   for (let k = 0; k < row.length; k += 2) lam[row[k]!] = ws.G[row[k + 1]!]!;
   ws.solver.solveTranspose(lam);
-  return lam;
 }
 
 /** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
@@ -139,24 +140,26 @@ function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc'
 }
 
 /** The network's figures at the joint solution (design §9.3). */
-function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean): SolvedNetwork {
+function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converged: boolean, chain: boolean): SolvedNetwork {
   const { ws, circuit: c } = j.mc;
   const outputs: Record<string, SolvedNetworkOutput> = {};
   for (const [k, node] of j.linkNode) outputs[k] = { i: outputCurrentOf(j, k), v: ws.v[node]! };
   // Leaf outputs: iout from the held node; chainSigma from the joint adjoint over the devices of
-  // every mirror on the path from the root.
-  const parentOf = (i: number): number | undefined => g.parent.get(i)?.mirror;
+  // every mirror on the path from the root (walked up by parent: a path is a few mirrors of many).
+  const byIndex = new Map(j.members.map((m) => [m.index, m] as const));
   const saved = { node: c.outNode, sign: c.outSign };
+  const sigmaAt = chain && converged && factorAtSolution(ws);
   // Each leaf's row of the Jacobian (its free columns), gathered in one pass over the pattern:
   // the adjoint's right-hand side without a search per entry.
   const rows = new Map<number, number[]>();
-  for (const node of j.leafNode.values()) rows.set(node, []);
-  if (converged && factorAtSolution(ws)) {
+  if (sigmaAt) {
+    for (const node of j.leafNode.values()) rows.set(node, []);
     const { colPtr, rowIdx } = ws.pattern;
     for (let col = 0; col < ws.n; col++) {
       for (let p = colPtr[col]!; p < colPtr[col + 1]!; p++) rows.get(rowIdx[p]!)?.push(col, p);
     }
   }
+  const lam = sigmaAt ? new Float64Array(ws.n) : undefined;
   let toVdd = 0, toVss = 0;
   for (const mem of j.members) {
     mem.mirror.outputs.forEach((_, o) => {
@@ -167,25 +170,20 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
       const out: SolvedNetworkOutput = { i: iout };
       // A leaf's current flows through its load between the rails.
       if (mem.sign > 0) toVdd += iout; else toVss += iout;
-      if (converged) {
-        const path = new Set<number>();
-        for (let at: number | undefined = mem.index; at !== undefined; at = parentOf(at)) path.add(at);
+      if (lam) {
         c.outNode = node; c.outSign = mem.sign;
-        const lam = leafAdjoint(ws, rows.get(node) ?? []);
-        if (lam) {
-          let sum = 0, any = false;
-          for (const p of j.members) {
-            if (!path.has(p.index)) continue;
-            for (let d = p.first; d < p.first + p.wired.deviceNames.length; d++) {
-              const s = deviceSigmas(c.devices[d]!);
-              if (!s) continue;
-              any = true;
-              const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
-              sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
-            }
+        leafAdjoint(ws, rows.get(node) ?? [], lam);
+        let sum = 0, any = false;
+        for (let at: JointMember | undefined = mem; at; at = byIndex.get(g.parent.get(at.index)?.mirror ?? -1)) {
+          for (let d = at.first; d < at.first + at.wired.deviceNames.length; d++) {
+            const s = deviceSigmas(c.devices[d]!);
+            if (!s) continue;
+            any = true;
+            const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
+            sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
           }
-          if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);
         }
+        if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);
       }
       outputs[k] = out;
     });

@@ -16,6 +16,7 @@ import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
 import { vbiasFor } from '../analysis/measure';
 import type { NetworkGroup } from './groups';
+import { rootStartCurrent } from './root-current';
 
 export interface JointMember {
   mirror: TemplateMirror;
@@ -104,7 +105,8 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
     : rootRef !== undefined ? channelCurrent(c.devices[members[0]!.first + rootRef]!, ws.v)
       : rootIn.kind === 'resistor' || rootIn.kind === 'self' ? NaN : rootIn.i);
   const rail = rootSign > 0 ? vss : vdd;
-  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices);
+  const rootStart = rootStartCurrent(spec, g.root);
+  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices, rootStart);
   const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
   const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
   const fed = measure ? g.parent.get(measure.mirror) : undefined;
@@ -128,20 +130,20 @@ export function outputCurrentOf(j: JointCircuit, k: string): number {
 }
 
 /** Node voltages assuming every device saturated, leaf mirrors first: a linked output's node is
- *  the fed mirror's input node, whose guess is known by the time its feeding mirror is guessed. */
+ *  the fed mirror's input node, whose guess is known by the time its feeding mirror is guessed;
+ *  the currents from the root's (`rootStart`) times the ideal ratios. */
 function jointGuess(
   spec: ResolvedSpec, g: NetworkGroup, members: JointMember[], names: string[], index: Map<string, number>,
-  fixedV: Float64Array, nFree: number, v: Float64Array, devices: DeviceElement[] | readonly unknown[],
+  fixedV: Float64Array, nFree: number, v: Float64Array, devices: DeviceElement[] | readonly unknown[], rootStart: number,
 ): void {
   const { vdd, vss } = spec.supplies;
   const span = vdd - vss;
   for (let k = 0; k < nFree; k++) v[k] = NaN;
   // Currents: the root's (a resistor root: its current at a typical diode drop), then the ideal ratios.
   const current = new Map<number, number>();
-  const rootIn = g.root.input;
-  // A reference root sets its own current (its guess finds it); its taps' mirrors start from a
-  // typical bias current, 10 µA, and Newton takes them from there.
-  const root0 = rootIn.kind === 'resistor' ? Math.max(span - 0.7, 0.1 * span) / rootIn.r : rootIn.kind === 'self' ? 10e-6 : rootIn.i;
+  // A reference root sets its own current: solved alone once (root-current.ts), its taps' mirrors
+  // start from it.
+  const root0 = rootStart;
   current.set(members[0]!.index, root0);
   const byIndex = new Map(members.map((x) => [x.index, x] as const));
   for (const mem of members.slice(1)) {

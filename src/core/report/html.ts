@@ -13,6 +13,7 @@ import { CAUTION } from '../text/format';
 import type { FileReport } from '../types';
 import { renderStaticReport, type ReportStamp } from './static-html';
 import { SCHEMATIC_CSS, type Schematic } from '../schematic';
+import { NETWORK_TREE_CSS, type LaidTree } from '../network-tree';
 
 export type { ReportStamp } from './static-html';
 
@@ -26,7 +27,7 @@ export const REPORT_DATA_ID = 'qpoint-report-data';
 /** One complete HTML page. `assets.script` is the panel bundle's text; `assets.css` optional
  *  extra styles (the bundle carries its own); `stamp` what the page says about its making;
  *  `schematics` each output's drawing by name (`schematicsOf`, laid out beforehand). */
-export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>): string {
+export function renderHtmlReport(report: FileReport, assets: { script: string; css?: string }, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>, trees?: readonly LaidTree[]): string {
   const title = `qpoint report — ${report.title ?? baseName(report.file)}`;
   return [
     '<!DOCTYPE html>',
@@ -43,7 +44,7 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     '</head>',
     '<body class="vscode-light qpoint-report">',
     `<div id="qpoint-caution" class="caution" role="note">${escapeHtml(CAUTION)}</div>`,
-    `<div id="${STATIC_ID}">${renderStaticReport(report, stamp, schematics)}</div>`,
+    `<div id="${STATIC_ID}">${renderStaticReport(report, stamp, schematics, trees)}</div>`,
     '<main id="qpoint-root"></main>',
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,
     `<script>${escapeScript(assets.script)}</script>`,
@@ -209,6 +210,10 @@ const REPORT_THEME = [
   `#${STATIC_ID} .schematic-figure { margin: 8px 0 16px; }`,
   `#${STATIC_ID} .schematic-figure figcaption { color: var(--vscode-descriptionForeground); font-size: 90%; }`,
   SCHEMATIC_CSS,
+  `#${STATIC_ID} .network-figure { margin: 8px 0 16px; }`,
+  `#${STATIC_ID} .network-figure figcaption { color: var(--vscode-descriptionForeground); font-size: 90%; }`,
+  `#${STATIC_ID} svg.net-tree { max-width: none; }`,
+  NETWORK_TREE_CSS,
   // Printing and archiving use the static body, whatever the script drew on screen.
   `@media print { #${STATIC_ID} { display: block !important; } #qpoint-root { display: none !important; } }`,
 ].join('\n');

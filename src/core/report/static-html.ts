@@ -12,6 +12,7 @@ import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
 import { referenceText } from './text';
 import { schematicSvg, type Schematic } from '../schematic';
+import { networkTreeSvg, type LaidTree } from '../network-tree';
 
 /** What the page says about its own making; the caller supplies it (the core has no clock). */
 export interface ReportStamp {
@@ -135,7 +136,7 @@ function mirrorSection(m: MirrorReport, findings: Finding[], schematic: Schemati
 }
 
 /** The whole static body. */
-export function renderStaticReport(report: FileReport, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>): string {
+export function renderStaticReport(report: FileReport, stamp?: ReportStamp, schematics?: ReadonlyMap<string, Schematic>, trees?: readonly LaidTree[]): string {
   const parts = [
     `<h1>${esc(report.title ?? report.file)}</h1>`,
     stampLine(report, stamp),
@@ -143,6 +144,10 @@ export function renderStaticReport(report: FileReport, stamp?: ReportStamp, sche
     ...report.mirrors.map((m) => mirrorSection(m, report.findings, schematics?.get(m.name))),
   ];
   if (report.networks?.length) {
+    // Each network's tree, laid out beforehand by the panel's own layout (network-tree/).
+    for (const t of trees ?? []) {
+      parts.push(`<figure class="network-figure" data-network="${esc(t.tree.root)}">${networkTreeSvg(t)}<figcaption>${esc(t.tree.caption)}</figcaption></figure>`);
+    }
     parts.push(table('Bias networks', ['Root', 'Members', 'Supply current', 'Power', 'Worst leaf'], report.networks.map((n) => [
       esc(n.root), esc(n.members.join(', ')), n.converged ? si(n.supplyCurrent.vdd, 'A', 4) : 'did not converge', si(n.power, 'W'), esc(n.worstLeaf ?? ''),
     ]), 'networks'));

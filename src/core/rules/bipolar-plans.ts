@@ -6,11 +6,11 @@
  */
 import type { BipolarErrorSplit } from '../types';
 import type { RuleContext } from './model';
-import { replaceValueEdit } from '../spec/edit';
+import { quotedLike, replaceValueEdit } from '../spec/edit';
 import { resized, sameRef, sizeOf, type DeviceRef } from '../sizing/devices';
 import { ratioAt } from '../sizing/ratio';
 import { quantizeSize } from '../sizing/quantize';
-import { candidate, devicePlan, fixable, plan, quotedLike, type Candidate } from './plans';
+import { candidate, devicePlan, fixable, plan, type Candidate } from './plans';
 import type { KeyInsert } from './build-edits';
 import { shortDecimal } from '../sizing/token-style';
 import type { Site } from './sites';

@@ -13,7 +13,7 @@ import { widthForRatio, countForRatio } from '../sizing/ratio';
 import { pickedVbias } from '../sizing/vbias';
 import { balancedBalSize } from '../sizing/balance';
 import { shortDecimal } from '../sizing/token-style';
-import { replaceValueEdit } from '../spec/edit';
+import { quotedLike, replaceValueEdit } from '../spec/edit';
 import { formatValue, notesText, planSizeEdits, type SizeChange } from './size-edits';
 import { buildEdits, type KeyInsert } from './build-edits';
 import { paramsOf, planParamEdits } from './param-edits';
@@ -263,8 +263,3 @@ function modelPlan(rc: RuleContext, mirrorIndex: number): FixPlan | undefined {
   return { title: `Use the ${MODELS[name].title} (\`model: ${name}\`), valid from weak to strong inversion`, edits, scope: 'spec', mirrorIndex, family: 'model' };
 }
 
-/** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
-export function quotedLike(token: string, word: string): string {
-  const q = token.trim()[0];
-  return q === '"' || q === "'" ? `${q}${word}${q}` : word;
-}

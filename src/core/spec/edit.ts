@@ -15,7 +15,7 @@ import { YamlSourceMap } from './source-map';
 function mapOf(p: ParsedSpec): YamlSourceMap | undefined {
   if (p.source instanceof YamlSourceMap && p.source.doc && p.source.lines.text === p.text) return p.source;
   const doc = parseDocument(p.text, { uniqueKeys: false, merge: true, logLevel: 'error' });
-  return doc.errors.length ? undefined : new YamlSourceMap(doc, new LineIndex(p.text));
+  return doc.errors.length ? undefined : new YamlSourceMap(doc, LineIndex.of(p.text));
 }
 
 function isJsonText(p: ParsedSpec): boolean {
@@ -192,4 +192,10 @@ export function insertKeyEdits(p: ParsedSpec, parentPath: SpecPath, key: string,
   const col = src.lines.position(firstKey.range[0]).character;
   const at = src.lines.lineEnd(Math.max(0, trimBack(text, lastEnd) - 1));
   return [{ range: src.lines.range(at, at), newText: blockEntry(keys, value, col, style?.step ?? indentStep(src, src.doc), style?.eol ?? eolOf(text)) }];
+}
+
+/** A word in the quotes of the token it replaces (`"wilson"` → `"wilson-balanced"`). */
+export function quotedLike(token: string, word: string): string {
+  const q = token.trim()[0];
+  return q === '"' || q === "'" ? `${q}${word}${q}` : word;
 }

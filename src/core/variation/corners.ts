@@ -26,7 +26,7 @@ function cornerSpec(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpec {
   let byCorner = cornerSpecs.get(spec);
   if (!byCorner) cornerSpecs.set(spec, byCorner = new Map());
   let cs = byCorner.get(corner);
-  if (!cs) byCorner.set(corner, cs = solveNetworks(applyCorner(spec, corner)));
+  if (!cs) byCorner.set(corner, cs = solveNetworks(applyCorner(spec, corner), undefined, { chainSigma: false }));
   return cs;
 }
 

@@ -22,7 +22,9 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
     if (!mc) continue;
     const site = siteOf(spec, report);
     if (!site) continue;
-    const lin = report.sigma;
+    // An output of a network is sampled with every device above it: its linearized figure is
+    // the chain's (design §9.3).
+    const lin = report.chainSigma ?? report.sigma;
     const valid = mc.samples - (mc.failed ?? 0);
     if (lin !== undefined && lin > 0 && valid > 1) {
       const diff = mc.sigma / lin - 1;
@@ -31,7 +33,7 @@ export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, repor
         out.push({
           severity: 'info', code: 'mc-nonlinear', path: [...site.path, 'require', 'sigma'],
           range: site.require.sigma !== undefined ? requireRange(parsed, site, 'sigma') : nameRange(parsed, site),
-          message: `${report.name}: Monte Carlo sigma ${formatPercent(mc.sigma)} differs from the linearized ${formatPercent(lin)} by ${formatSignedPercent(diff)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
+          message: `${report.name}: Monte Carlo sigma ${formatPercent(mc.sigma)} differs from the linearized${report.chainSigma !== undefined ? ' chain' : ''} ${formatPercent(lin)} by ${formatSignedPercent(diff)}: the mismatch is too large for small-signal analysis; trust the Monte Carlo figure`,
         });
       }
     }

@@ -6,7 +6,10 @@
  *   ΔVT ~ N(0, avt/√(2·m·W·L)),  Δβ/β ~ N(0, abeta/√(2·m·W·L)),  independent.
  * Only the devices that can move the measured output (the shared reference and the measured
  * output's own devices) are perturbed: another output of a bank is held at its own voltage and
- * its gates draw no current, so it cannot change this output's current.
+ * its gates draw no current, so it cannot change this output's current. An output of a bias
+ * network is measured in its whole group's circuit with every device of the group drawn once per
+ * sample (design §9.1): a leaf's spread includes every stage above it, an intermediate output's
+ * too, and the compliance of a linked output (its node solved, not held) is not tested.
  *
  * Yield: the fraction of samples that meet every requirement checkable per sample, cheaply and
  * without a linearization:
@@ -49,7 +52,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     failures: { convergence: n, saturation: 0, ratio: 0, compliance: 0 },
   };
   let mc;
-  // A leaf of a bias network: the whole group is one circuit and every device on the path draws.
+  // An output of a bias network: the whole group is one circuit and every device of it draws.
   let joint: ReturnType<typeof jointForOutput>;
   try {
     joint = jointForOutput(ctx.spec, ctx.mirror.path[1] as number, ctx.outputIndex);
@@ -66,7 +69,10 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
   const req = requirementsOf(ctx);
   const target = req.ratio ?? ratioIdealOf(ctx, mc);
   const errLimit = ctx.spec.limits.tolerance;
-  const vComp = req.compliance;
+  // A linked output's node is the fed mirror's input, solved: it cannot be held elsewhere.
+  const vComp = joint?.linked ? undefined : req.compliance;
+  const solo = mc;
+  const ioutOf = joint?.iout ?? (() => outputCurrent(solo));
   let xComp: Float64Array | undefined;
   if (vComp !== undefined) {
     c.fixedV[c.outNode] = vComp;
@@ -98,7 +104,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
     }
     const r = solveMirror(mc, xNom);
     if (!r.converged) { failed++; failures.convergence++; continue; }
-    const iout = outputCurrent(mc);
+    const iout = ioutOf();
     const iin = mc.iin();
     values[count++] = iout;
     // Welford's update: stable for 1e5 samples of nearly equal currents.

@@ -1,5 +1,5 @@
 /**
- * Pure: what the panel's network tree shows (design §9.3), before any layout. One tree per
+ * What a network tree shows (design §9.3), before any layout — the panel's and the report's. One tree per
  * `FileReport.networks` entry: a node per member mirror, an edge per link (upstream mirror →
  * the mirror it feeds) and one per leaf output (mirror → a small node for the output's load),
  * each edge labelled with its current and chain error. A link in trouble (the upstream output
@@ -7,8 +7,14 @@
  * and a leaf whose chain error exceeds `limits.error` carry words saying so. No numbers are
  * computed here beyond comparing the report's own figures with its limits.
  */
-import type { FileReport, Finding, MirrorReport, NetworkReport, Range } from '../src/core/types';
-import { formatPercent, formatSI, formatSignedPercent } from './format';
+import type { FileReport, Finding, MirrorReport, NetworkReport, Range } from '../types';
+import { formatPercent as percent, formatSI as si, formatSignedPercent as signedPercent } from '../text/format';
+
+// A figure that could not be measured (NaN) reads "—", as in the panel's tables.
+const dash = (v: number, text: () => string): string => (Number.isNaN(v) ? '—' : text());
+const formatSI = (v: number, unit: string): string => dash(v, () => si(v, unit));
+const formatPercent = (v: number): string => dash(v, () => percent(v));
+const formatSignedPercent = (v: number): string => dash(v, () => signedPercent(v));
 
 export interface TreeNode {
   id: string;
