@@ -82,7 +82,7 @@ describe('check', () => {
     const fields = ['name', 'kind', 'type', 'converged', 'iin', 'iout', 'ratio', 'ratioIdeal', 'error', 'rout', 'compliance', 'sigma', 'devices'];
     for (const m of doc.files[0]!.mirrors) for (const f of fields) expect(m, `${String(m.name)}.${f}`).toHaveProperty(f);
     const kinds = new Set(doc.files[0]!.mirrors.map((m) => `${String(m.kind)}/${String(m.type)}`));
-    expect(kinds).toEqual(new Set(['cascode/nmos', 'simple/pmos', 'wide-swing/nmos', 'wilson/nmos', 'wilson-balanced/pmos', 'simple/nmos', 'beta-multiplier/nmos', 'vgs-resistor/nmos', 'vgs-resistor/pmos', 'netlist/nmos', 'beta-helper/npn', 'widlar/npn']));
+    expect(kinds).toEqual(new Set(['cascode/nmos', 'simple/pmos', 'wide-swing/nmos', 'wilson/nmos', 'wilson-balanced/pmos', 'simple/nmos', 'beta-multiplier/nmos', 'vgs-resistor/nmos', 'vgs-resistor/pmos', 'netlist/nmos', 'beta-helper/npn', 'widlar/npn', 'vbe-resistor/npn', 'ptat/npn']));
     // A bipolar device reports its own family's fields (design §10).
     const bjt = (doc.files[0]!.mirrors.find((m) => m.kind === 'widlar')!.devices as Record<string, unknown>[])[0]!;
     for (const f of ['name', 'role', 'type', 'area', 'm', 'ic', 'ib', 'vbe', 'vce', 'margin', 'region', 'gm', 'rpi', 'ro', 'beta']) expect(bjt).toHaveProperty(f);

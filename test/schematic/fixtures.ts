@@ -12,8 +12,8 @@ export const exampleText = readFileSync(join(ROOT, EXAMPLE), 'utf8');
 
 /** The example's header (process, supplies, limits, params) with mirrors of our own. */
 function withMirrors(mirrors: string[]): string {
-  // The example's process has an NPN only: a PNP (invented values) for the PNP mirrors.
-  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:')).replace('\n  npn:', '\n  pnp: { is: 1e-17, bf: 60, vaf: 40 }\n  npn:');
+  // The example's process has both bipolar types (its BiCMOS option's NPN and PNP).
+  const head = exampleText.slice(0, exampleText.indexOf('\nmirrors:'));
   return `${head}\nmirrors:\n${mirrors.join('\n')}\n`;
 }
 
@@ -33,7 +33,7 @@ export const everyKindText = withMirrors(TEMPLATE_KINDS.flatMap((kind) => typesO
     `    type: ${type}`,
     // A self-biased reference sets its own current through its resistor; the others take 10 µA.
     ...(loop
-      ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(kind === 'beta-multiplier' ? ['    k: 4'] : [])]
+      ? ['    resistor: 60k', '    startup: { w: 0.5u, l: 4u }', ...(KINDS[kind].loop?.scaled ? [`    k: ${bipolar ? 8 : 4}`] : [])]
       : ['    input: 10u']),
     ...(bipolar ? [] : [`    size: { w: ${n ? '8u' : '24u'}, l: 1u }`]),
     ...(KINDS[kind].degeneration !== undefined ? ['    degeneration: 5k'] : []),

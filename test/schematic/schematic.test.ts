@@ -8,7 +8,7 @@ import ELK from 'elkjs/lib/elk.bundled.js';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import { exampleTables } from '../example-tables';
-import { TEMPLATE_KINDS } from '../../src/core/kinds';
+import { REFERENCE_KINDS, TEMPLATE_KINDS } from '../../src/core/kinds';
 import { renderHtmlReport } from '../../src/core/report/html';
 import { schematicOf, schematicsOf, schematicSvg, type Box, type Schematic } from '../../src/core/schematic';
 import { formatSI } from '../../src/core/text/format';
@@ -81,6 +81,22 @@ describe('schematics of every kind', () => {
       // The input source sits above the NMOS reference and below the PMOS one.
       if (sinksCurrent(m.type)) expect(input.y + input.h).toBeLessThan(ref.y);
       else expect(input.y).toBeGreaterThan(ref.y + ref.h);
+    }
+  });
+
+  it('every reference kind in both polarities draws its loop resistor with its value and its start-up MOSFET', () => {
+    for (const kind of REFERENCE_KINDS) {
+      for (const type of typesOf(kind)) {
+        const name = `${kind.replace('-', '_')}_${type}`;
+        const m = kinds.mirrors.find((x) => x.name === name)!;
+        const s = drawn.get(name)!;
+        const res = s.parts.find((p) => p.id === 'res:rs');
+        expect(res?.symbol, name).toBe('res');
+        expect(s.labels.some((l) => l.lines.join(' ') === `rs ${formatSI(60e3, 'Ω')}`), name).toBe(true);
+        // The start-up device is a MOSFET of the mirror's side in a bipolar reference too.
+        const startup = m.devices.find((d) => d.role === 'startup')!;
+        expect(s.parts.find((p) => p.device === startup.name)?.symbol, name).toBe(sinksCurrent(m.type) ? 'nmos' : 'pmos');
+      }
     }
   });
 

@@ -41,7 +41,7 @@ describe('schema/qpoint-bias.schema.json', () => {
     const undocumented = all.filter(([, s]) => typeof s.description !== 'string' && !s.$ref).map(([p]) => p);
     expect(undocumented).toEqual([]);
     const byName = new Map(all.map(([p, s]) => [p.split('.').pop(), s]));
-    expect(byName.get('kind')!.enum).toEqual(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor', 'netlist']);
+    expect(byName.get('kind')!.enum).toEqual(['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor', 'ptat', 'vbe-resistor', 'netlist']);
     expect(byName.get('type')!.enum).toEqual(['nmos', 'pmos', 'npn', 'pnp']);
     expect(byName.get('model')!.enum).toEqual(['square-law', 'ekv', 'table']);
     expect(byName.get('bulk')!.enum).toEqual(['rail', 'source']);

@@ -10,7 +10,7 @@ import { gateDriveFor } from '../models/evaluate';
 import { deviceProblem, prepareDevice } from '../models/device';
 import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
 import { paramsOf } from '../flavours';
-import type { DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
+import type { BipolarType, DeviceSize, MirrorOutput, Polarity, ResolvedSpec, TemplateMirror } from '../types';
 import { assertNever } from '../assert-never';
 import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
@@ -100,18 +100,24 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     const full = `${ns}${name}`;
     const d1 = w.perturb?.dvt[full] ?? 0, d2 = w.perturb?.dbeta[full] ?? 0;
     const d = map(conn.d), g = map(conn.g), s = map(conn.s);
-    if (bipolar && isBipolarType(type)) {
-      // Collector, base, emitter on the role's drain, gate and source nodes.
+    if (bipolar && isBipolarType(type) && !startup) {
+      // Collector, base, emitter on the role's drain, gate and source nodes; a reference's
+      // closing mirror is of the other polarity (a PNP mirror on an NPN cell).
+      const t: BipolarType = conn.other ? (type === 'npn' ? 'pnp' : 'npn') : type;
+      const params = (conn.other ? spec.process[t] : bipolar) ?? bipolar;
+      if (conn.other && !spec.process[t]) b.problems.push(`device ${full}: no ${t} parameters`);
       const bsize = { area: size.area ?? 1, m: size.m };
-      const problem = bipolarProblem(bipolar, bsize);
+      const problem = bipolarProblem(params, bsize);
       if (problem) b.problems.push(`device ${full}: ${problem}`);
-      const dev = prepareBipolar(bipolar, bsize, type, proc.temperature, proc.tnom, d1, d2);
-      b.bjt({ name: full, role, type, size, params: bipolar, dev, measured }, d, g, s);
-    } else if (!isBipolarType(type)) {
-      // A reference's closing mirror is of the other polarity, its bulk on the other rail.
-      const t: Polarity = conn.other ? (type === 'nmos' ? 'pmos' : 'nmos') : type;
+      const dev = prepareBipolar(params, bsize, t, proc.temperature, proc.tnom, d1, d2);
+      b.bjt({ name: full, role, type: t, size, params, dev, measured }, d, g, s);
+    } else {
+      // A reference's closing mirror is of the other polarity, its bulk on the other rail; the
+      // start-up device of a bipolar reference is a MOSFET of the mirror's side.
+      const own: Polarity = type === 'npn' ? 'nmos' : type === 'pnp' ? 'pmos' : type;
+      const t: Polarity = conn.other ? (own === 'nmos' ? 'pmos' : 'nmos') : own;
       // A mirror's device flavour (`device:`) is of its own polarity; the other rail's devices use the process's.
-      const params = paramsOf(spec.process, t, m.device);
+      const params = paramsOf(spec.process, t, isBipolarType(type) ? undefined : m.device);
       const problem = deviceProblem(params, size);
       if (problem) b.problems.push(`device ${full}: ${problem}`);
       const dev = prepareDevice(params, size, t, proc, d1, d2);
@@ -288,14 +294,14 @@ export interface GuessContext {
 
 /** A, the loop current of a reference with every device saturated, by bisection on the loop's
  *  own equation (body effect and the model included): beta multiplier VGS_ref − VGS_wide(VSB =
- *  I·R) = I·R; VGS over a resistor VGS_ref = I·R. */
+ *  I·R) = I·R (PTAT: VBE_ref − VBE_wide = I·R); VGS (VBE) over a resistor VGS_ref = I·R. */
 function loopCurrent(g: GuessContext, span: number, r: number): number {
   const dev = (name: string): DeviceElement | undefined => g.devByName.get(name);
   const ref = dev('ref');
   if (!(r > 0) || !ref) return 0;
   const excess = (i: number): number => {
     const vr = i * r;
-    if (g.m.kind === 'beta-multiplier') {
+    if (g.m.kind === 'beta-multiplier' || g.m.kind === 'ptat') {
       const wide = dev('wide');
       return diodeDrive(ref, i, 0) - drive(wide, i, wide?.size.bulk === 'rail' ? vr : 0, span / 2) - vr;
     }
@@ -400,12 +406,14 @@ export function guessNodes(g: GuessContext, i: number): void {
       break;
     }
     case 'beta-multiplier':
-    case 'vgs-resistor': {
+    case 'vgs-resistor':
+    case 'ptat':
+    case 'vbe-resistor': {
       // A reference sets its own current: `i` is not used.
       const span = g.span ?? 0;
       const r = m.resistor ?? 0;
       const loop = loopCurrent(g, span, r);
-      if (m.kind === 'beta-multiplier') {
+      if (m.kind === 'beta-multiplier' || m.kind === 'ptat') {
         u.x = diodeDrive(dev('ref'), loop, 0);
         u.s = loop * r;
       } else {

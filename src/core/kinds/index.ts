@@ -9,7 +9,9 @@ import { betaMultiplier } from './beta-multiplier';
 import { cascode } from './cascode';
 import type { KindSpec } from './kind';
 import { TEMPLATE_KINDS, type MirrorKind, type TemplateKind } from './names';
+import { ptat } from './ptat';
 import { simple } from './simple';
+import { vbeResistor } from './vbe-resistor';
 import { vgsResistor } from './vgs-resistor';
 import { wideSwing } from './wide-swing';
 import { wilson } from './wilson';
@@ -32,6 +34,8 @@ export const KINDS = {
   widlar,
   'beta-multiplier': betaMultiplier,
   'vgs-resistor': vgsResistor,
+  ptat,
+  'vbe-resistor': vbeResistor,
 } satisfies Record<TemplateKind, KindSpec>;
 
 export function isTemplateKind(kind: MirrorKind): kind is TemplateKind {

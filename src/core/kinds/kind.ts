@@ -26,10 +26,13 @@ export interface ReferenceLoop {
   /** The device whose transconductance the loop gain is measured through (Bode's return
    *  difference of its gm: any controlled source of a single loop gives the same figure). */
   breakAt: string;
-  /** Role scaled by `k:` (its width is K times the unit's), when the kind takes `k`. */
+  /** Role scaled by `k:` (a MOSFET's width, a bipolar device's emitter area: K times the
+   *  unit's), when the kind takes `k`. */
   scaled?: string;
   /** Where the start-up device sits: diode-connected from the closing mirror's gate line into
-   *  the loop (conducts while the loop sits at zero current, off once it runs). */
+   *  the loop (conducts while the loop sits at zero current, off once it runs). It is a MOSFET
+   *  of the mirror's side (nmos for npn) in a bipolar kind too: across vdd − 2·VBE a junction
+   *  only falls a decade per 60 mV, a channel with its threshold above that is off. */
   startup: Connection;
   /** The textbook loop current, as the docs print it. */
   current: string;

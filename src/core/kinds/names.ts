@@ -6,7 +6,7 @@
  */
 
 /** Kinds built from a topology template, in the order the docs and messages list them. */
-export const TEMPLATE_KINDS = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor'] as const;
+export const TEMPLATE_KINDS = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced', 'beta-helper', 'widlar', 'beta-multiplier', 'vgs-resistor', 'ptat', 'vbe-resistor'] as const;
 export type TemplateKind = (typeof TEMPLATE_KINDS)[number];
 
 /** Every value of a mirror's `kind`: the template kinds and `netlist` (the designer's own wiring). */

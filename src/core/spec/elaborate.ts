@@ -3,7 +3,7 @@
  * (src/core/defaults.ts). Each part is read defensively: whatever the schema let through, a bad
  * value becomes a finding at that value, never an exception.
  */
-import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec } from '../types';
+import type { DeviceParams, DeviceType, ProcessSpec, ResolvedMirror, ResolvedSpec, TemplateMirror } from '../types';
 import { DEFAULTS } from '../defaults';
 import { DEVICE_TYPES, isBipolarDevice, isBipolarType } from '../device-types';
 import { familyOf, KINDS } from '../kinds/index';
@@ -29,6 +29,18 @@ export interface ElaborateReuse {
   items: readonly unknown[];
   mirrors: readonly ResolvedMirror[];
   except: number;
+}
+
+/** Device types a bipolar reference takes beyond its own: the closing mirror's other polarity
+ *  (PNP on an NPN cell) and its MOSFET start-up device (nmos for npn). A MOSFET reference's other
+ *  polarity keeps borrowing the written one as before. */
+function borrowedTypes(m: TemplateMirror): DeviceType[] {
+  const loop = KINDS[m.kind].loop;
+  if (!loop || !isBipolarType(m.type)) return [];
+  const out: DeviceType[] = [];
+  if (Object.values(KINDS[m.kind].reference).some((c) => c.other)) out.push(m.type === 'npn' ? 'pnp' : 'npn');
+  if (m.startup) out.push(m.type === 'npn' ? 'nmos' : 'pmos');
+  return out;
 }
 
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
@@ -64,7 +76,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : known.device ? [] : [known.type];
+      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [...(known.device ? [] : [known.type]), ...borrowedTypes(known)];
       for (const t of types) if (!used.has(t)) used.set(t, known.name);
       mirrors.push(known);
       return;
@@ -104,6 +116,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     const params = flavour ? proc?.devices?.[flavour]?.params : type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined;
     const tm = readTemplateMirror(scope, m, i, { name, kind, type }, params, supplies, (j) => fed.has(`${i}:${j}`));
     if (tm && flavour) tm.device = flavour;
+    if (tm) for (const t of borrowedTypes(tm)) if (!used.has(t)) used.set(t, name);
     if (tm) mirrors.push(tm);
   });
 

@@ -162,7 +162,7 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
   if (loop) {
     if (m.input !== undefined) misplaced(sink, [...path, 'input'], `a ${kind} sets its own current (its loop and \`resistor\`); it takes no \`input\``);
     if (m.design !== undefined) misplaced(sink, [...path, 'design'], `\`design\` sizes mirrors fed by an input current; a ${kind} sets its own`);
-    if (m.k !== undefined && !loop.scaled) misplaced(sink, [...path, 'k'], `\`k\` applies to beta-multiplier references (the width ratio of \`wide\` to \`ref\`)`);
+    if (m.k !== undefined && !loop.scaled) misplaced(sink, [...path, 'k'], `\`k\` applies to ${REFERENCE_KINDS.filter((r) => KINDS[r].loop?.scaled).join(' and ')} references (the width or emitter-area ratio of \`wide\` to \`ref\`)`);
   } else {
     for (const k of REFERENCE_KEYS) if (m[k] !== undefined) misplaced(sink, [...path, k], `\`${k}\` applies to the self-biased references (${REFERENCE_KINDS.join(', ')})`);
     if (bipolar && m.design !== undefined) sink.error('bad-value', '`design` targets size MOSFETs; a bipolar mirror is sized by `area` and `m`', [...path, 'design'], 'key');
@@ -199,11 +199,13 @@ export function readTemplateMirror(scope: ValueScope, m: Data, index: number, he
     const s = size(role);
     if (s) devices[role] = s;
   }
-  // `k:` widens the beta multiplier's degenerated device K times (its W/L over ref's).
+  // `k:` scales the degenerated device K times: the beta multiplier's W/L, the PTAT cell's
+  // emitter area (over ref's).
   const scaled = loop?.scaled;
-  if (scaled && devices[scaled]) {
-    if (k !== undefined) devices[scaled] = { ...devices[scaled]!, w: devices[scaled]!.w * k };
-    else if (m.k === undefined && !mirrorLayers.has(scaled)) missing(sink, path, 'k', ` (the width ratio of \`${scaled}\` to \`ref\`, e.g. 4)`);
+  const dev = scaled ? devices[scaled] : undefined;
+  if (scaled && dev) {
+    if (k !== undefined) devices[scaled] = bipolar ? { ...dev, area: (dev.area ?? 1) * k } : { ...dev, w: dev.w * k };
+    else if (m.k === undefined && !mirrorLayers.has(scaled)) missing(sink, path, 'k', ` (the ${bipolar ? 'emitter-area' : 'width'} ratio of \`${scaled}\` to \`ref\`, e.g. ${bipolar ? 8 : 4})`);
   }
   const mirrorOutput = m.output === undefined ? undefined : readOutput(scope, m.output, [...path, 'output'], supplies);
   const mirrorRequire = m.require === undefined ? {} : readRequire(scope, m.require, [...path, 'require']) ?? {};

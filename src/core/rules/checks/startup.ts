@@ -6,7 +6,7 @@
  * current there goes as 1/L), verified by re-solving.
  */
 import type { ReferenceReport, SpecPath } from '../../types';
-import { isBipolarDevice } from '../../device-types';
+import { isBipolarDevice, isBipolarType } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { kindRange, valueRange, type Site } from '../sites';
@@ -33,7 +33,8 @@ function startupWhere(site: Site): string {
   const m = site.mirror;
   if (!isTemplateKind(m.kind)) return 'a `startup:` device that conducts while every loop device is off';
   const s = KINDS[m.kind].loop?.startup;
-  return s ? `\`startup: { w, l }\`, a diode-connected device from ${code(s.d)} into ${code(s.s)}` : '`startup:`';
+  const mos = m.type === 'npn' ? ' nmos' : m.type === 'pnp' ? ' pmos' : '';
+  return s ? `\`startup: { w, l }\`, a diode-connected${mos} device from ${code(s.d)} into ${code(s.s)}` : '`startup:`';
 }
 
 export function checkStartup(rc: RuleContext, site: Site): Draft[] {
@@ -58,9 +59,10 @@ export function checkStartup(rc: RuleContext, site: Site): Draft[] {
         // weak one leaks least once the loop runs (the startup-leak check judges that next).
         const m = site.mirror;
         if (m.kind === 'netlist' || !KINDS[m.kind].loop) return;
-        const p = m.type === 'nmos' ? rc.spec.process.nmos : rc.spec.process.pmos;
+        // A MOSFET of the mirror's side, in a bipolar reference too (kinds/kind.ts).
+        const p = m.type === 'nmos' || m.type === 'npn' ? rc.spec.process.nmos : rc.spec.process.pmos;
         const grid = rc.spec.process.grid;
-        const unit = m.devices.ref;
+        const unit = isBipolarType(m.type) ? undefined : m.devices.ref;
         const w = quantizeSize(Math.max(p.wmin ?? 0, (unit?.w ?? 1e-6) / 4), grid, 'up');
         const l = quantizeSize(Math.max(p.lmin ?? 0, 4 * (unit?.l ?? 1e-6)), grid, 'up');
         const parent: SpecPath = ['mirrors', i, 'startup'];
