@@ -85,6 +85,33 @@ export function faultyExampleText(example: string): string {
 }
 
 /**
+ * `n` mirrors of every template kind and both polarities with random currents, sizes and output
+ * voltages (a fixed-seed generator, so the text is the same every run): a large spec with
+ * findings, many of them with verified fixes — the text an editor analyses on every keystroke
+ * while a designer is still sizing. About 150 characters a mirror.
+ */
+export function faultySpecText(n: number, seed = 2024): string {
+  let s = seed;
+  const rnd = (): number => { s = (s * 1103515245 + 12345) % 2147483648; return s / 2147483648; };
+  const kinds = ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced'] as const;
+  const lines: string[] = [HALDEN_HEADER];
+  for (let i = 0; i < n; i++) {
+    const kind = kinds[i % kinds.length]!;
+    const type = Math.floor(i / kinds.length) % 2 === 0 ? 'nmos' : 'pmos';
+    const iin = (5 + Math.round(45 * rnd())).toString();
+    const l = (0.3 + Math.round(20 * rnd()) / 10).toFixed(1);
+    const w = (Number(l) * (1 + Math.round(24 * rnd()))).toFixed(1);
+    const m = 1 + Math.floor(3 * rnd());
+    const v = type === 'nmos' ? (0.3 + 1.3 * rnd()).toFixed(2) : (0.2 + 1.3 * rnd()).toFixed(2);
+    const outs = kind === 'wilson' || kind === 'wilson-balanced' ? '' : kind === 'simple' ? `\n    devices: { out: { m: ${m} } }` : `\n    devices: { out: { m: ${m} }, outc: { m: ${m} } }`;
+    const ratio = kind === 'wilson' || kind === 'wilson-balanced' ? 1 : m;
+    lines.push(`  - name: ${kind.replace('-', '_')}_${type}_${i}`, `    kind: ${kind}`, `    type: ${type}`, `    input: ${iin}u`,
+      `    size: { w: ${w}u, l: ${l}u }${outs}`, `    output: { v: ${v} }`, `    require: { ratio: ${ratio}${i % 4 === 0 ? ', compliance: 0.5' : ''} }`);
+  }
+  return lines.join('\n') + '\n';
+}
+
+/**
  * A bias network of `n` simple mirrors as a binary tree, polarity alternating level by level:
  * every mirror is a two-output bank whose outputs feed the next level's mirrors; the last level's
  * outputs are leaves held at their own voltage. With `linked: false` the same mirrors are

@@ -17,6 +17,7 @@ import { variationFindings } from './variation/findings';
 import { withCornerFixes } from './variation/corner-fixes';
 import { sortFindings } from './findings';
 import { indexOf, mirrorAt } from './mirror-at';
+import type { AnalysisCache } from './analysis-cache';
 import { attachNetworks } from './network/report';
 import { networkFindings } from './network/findings';
 
@@ -46,9 +47,21 @@ export interface AnalyzeOptions {
 export interface AnalyzeHooks {
   /** Monte Carlo samples done over all outputs, and their total. */
   mcProgress?: (done: number, total: number) => void;
+  /** This file's results kept from its earlier analyses (analysis-cache.ts); the report is the same without it. */
+  cache?: AnalysisCache;
 }
 
 export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {}, hooks: AnalyzeHooks = {}): FileReport {
+  const cache = hooks.cache;
+  cache?.begin();
+  try {
+    return analyze(text, file, opts, hooks);
+  } finally {
+    cache?.end();
+  }
+}
+
+function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: AnalyzeHooks): FileReport {
   let parsed: ParsedSpec | undefined;
   try {
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
@@ -59,14 +72,14 @@ export function analyzeText(text: string, file: string, opts: AnalyzeOptions = {
     if (!spec) {
       return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
     }
-    const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve }));
+    const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve, units: hooks.cache?.units }));
     const net = attachNetworks(spec, solved);
     const mirrors: MirrorReport[] = attachVariation(spec, net.reports, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     let findings: Finding[] = [
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : {}),
+      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units }),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {

@@ -2,10 +2,14 @@
  * The analysis worker thread (bundled to dist/worker.js): runs the core off the extension host's
  * main thread so typing never stutters. Requests that arrive while an analysis runs are queued by
  * key; only the newest per key is analysed, the older ones are answered `superseded`.
+ *
+ * Each key (a document) keeps what its analyses solved (core/analysis-cache.ts): a keystroke in
+ * one mirror solves and re-checks that mirror again and reads the others' results back.
  */
 import { parentPort } from 'node:worker_threads';
 import { analyzeText, type AnalyzeOptions } from '../core/analyze';
 import { fixAll } from '../core/rules/fix-all';
+import { AnalysisCache } from '../core/analysis-cache';
 import { isWorkerRequest, type WorkerRequest, type WorkerResponse } from './workerProtocol';
 import { readTables, type TableCache } from '../node/tables';
 
@@ -13,6 +17,19 @@ const port = parentPort;
 if (!port) throw new Error('qpoint worker: must run in a worker thread');
 
 const pending = new Map<string, WorkerRequest>();
+
+/** The caches of the documents analysed last (a Map keeps insertion order: the first is the oldest). */
+const caches = new Map<string, AnalysisCache>();
+const MAX_CACHES = 8;
+
+function cacheOf(key: string): AnalysisCache {
+  let c = caches.get(key);
+  if (c) caches.delete(key);
+  else c = new AnalysisCache();
+  caches.set(key, c);
+  if (caches.size > MAX_CACHES) caches.delete(caches.keys().next().value!);
+  return c;
+}
 let scheduled = false;
 
 function send(m: WorkerResponse): void {
@@ -36,7 +53,8 @@ function run(req: WorkerRequest): WorkerResponse {
       const result = fixAll(req.text, req.file, (text) => analyzeText(text, req.file, req.opts));
       return { type: 'fixed', seq: req.seq, key: req.key, result, ms: performance.now() - t0 };
     }
-    const report = analyzeText(req.text, req.file, req.opts, req.opts.mc ? { mcProgress: progressOf(req) } : {});
+    const cache = cacheOf(req.key);
+    const report = analyzeText(req.text, req.file, req.opts, req.opts.mc ? { mcProgress: progressOf(req), cache } : { cache });
     return { type: 'report', seq: req.seq, key: req.key, report, ms: performance.now() - t0 };
   } catch (err) {
     return { type: 'failed', seq: req.seq, key: req.key, message: err instanceof Error ? err.message : String(err) };

@@ -27,7 +27,7 @@
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { failedReport, measure, vbiasFor } from './measure';
 import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
-import { RepeatedMirrors } from './repeats';
+import { RepeatedMirrors, type SolvedUnits } from './repeats';
 import { sweepCircuit } from './sweep';
 
 export interface MirrorContext { spec: ResolvedSpec; mirror: ResolvedMirror; outputIndex: number }
@@ -80,16 +80,19 @@ export function sweepVout(ctx: MirrorContext, vouts: number[]): CurvePoint[] {
 }
 
 /** All mirrors and all outputs of a spec, in order. Identical mirrors are solved once
- *  (repeats.ts) unless opts.repeats is false (the engine benchmark). */
-export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeats?: boolean }): MirrorReport[] {
+ *  (repeats.ts) unless opts.repeats is false (the engine benchmark); with `units`, a mirror
+ *  solved by an earlier analysis in the same context is not solved again. */
+export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeats?: boolean; units?: SolvedUnits }): MirrorReport[] {
   const reports: MirrorReport[] = [];
-  const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true);
+  // The settings a report is computed with join its key in the store (every option but the store's own).
+  const { units, repeats: _, ...settings } = opts ?? {};
+  const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true, spec, units, settings);
   for (const mirror of spec.mirrors ?? []) {
     const outputs = mirror.kind === 'netlist' ? undefined : mirror.outputs;
     const n = Array.isArray(outputs) ? Math.max(1, outputs.length) : 1;
     for (let j = 0; j < n; j++) {
       const ctx: MirrorContext = { spec, mirror, outputIndex: j };
-      reports.push(repeats ? repeats.report(ctx, () => measureMirror(ctx, opts)) : measureMirror(ctx, opts));
+      reports.push(repeats ? repeats.report(ctx, () => measureMirror(ctx, { curve: opts?.curve })) : measureMirror(ctx, { curve: opts?.curve }));
     }
   }
   return reports;

@@ -6,9 +6,22 @@
  * with its own identity. A bank's output names stay in the key: they name its devices.
  * The copy shares the first report's devices, nodes and curve: reports are values that nothing
  * changes after analysis.
+ *
+ * The same holds from one analysis to the next (the editor analyses the file on every
+ * keystroke): a `SolvedUnits` store, kept by the caller, holds each solve unit's report under a
+ * key of everything it was computed from, each part serialised whole (canonical.ts), so a field
+ * the spec gains later is in the key without an edit here: the mirror's circuit, the resolved
+ * spec but its mirrors (process with its flavours and tables, supplies, limits, params, corners
+ * and whatever else it holds: `solveContext`), the analysis settings, and for a linked mirror
+ * every member of its network and the joint solution (`linkedInputs`). An unchanged mirror is not
+ * solved again (one whose solve needed a fallback is: its time budget, not its circuit, may have
+ * decided the result). Entries an analysis did not use are dropped after it (`sweep`), so the
+ * store holds one file's worth.
  */
 import { isBank } from '../circuit/templates';
-import type { MirrorReport, ResolvedMirror } from '../types';
+import { canonicalJson, digest } from '../canonical';
+import { indexOf, mirrorAt } from '../mirror-at';
+import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { reportIdentity, type ReportIdentity } from './measure';
 import type { MirrorContext } from './index';
 
@@ -19,25 +32,116 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
     const bank = isBank(mirror);
     what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
   }
-  return `${outputIndex}|${curve ? 1 : 0}|${JSON.stringify(what)}`;
+  return `${outputIndex}|${curve ? 1 : 0}|${canonicalJson(what)}`;
+}
+
+/**
+ * What a mirror's solve may read besides the mirror itself, as one digest: the resolved spec
+ * without its mirrors (each its own unit) and networks (`linkedInputs`), and the settings the
+ * analysis was asked for. Two mirrors with one circuit and one context have one report.
+ */
+export function solveContext(spec: ResolvedSpec, settings: object = {}): string {
+  return digest(canonicalJson([{ ...spec, mirrors: undefined, networks: undefined }, settings]));
+}
+
+/**
+ * For each linked mirror (by file index), the digest of its network as solved: every member as
+ * resolved and the joint solution. A member's report reads what the joint solve handed it; the
+ * whole group is keyed so that an edit of any member solves its network's members again.
+ * Computed once per spec.
+ */
+export function linkedInputs(spec: ResolvedSpec): ReadonlyMap<number, string> {
+  let known = linkedBySpec.get(spec);
+  if (known) return known;
+  known = new Map();
+  for (const n of spec.networks ?? []) {
+    const d = digest(canonicalJson([n, n.members.map((i) => mirrorAt(spec, i) ?? null)]));
+    for (const i of n.members) known.set(i, d);
+  }
+  linkedBySpec.set(spec, known);
+  return known;
+}
+const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
+
+/** Solved reports kept across analyses of one file, by solve unit (see above). */
+export class SolvedUnits {
+  private readonly solved = new Map<string, { report: MirrorReport; used: number }>();
+  private generation = 0;
+  /** Of the last analysis: reports solved, and reports read back. */
+  solvedNow = 0;
+  reusedNow = 0;
+
+  /** Starts an analysis: what it does not use is dropped by the next `sweep`. */
+  begin(): void {
+    this.generation++;
+    this.solvedNow = 0;
+    this.reusedNow = 0;
+  }
+
+  get(key: string): MirrorReport | undefined {
+    const e = this.solved.get(key);
+    if (!e) return undefined;
+    e.used = this.generation;
+    this.reusedNow++;
+    return e.report;
+  }
+
+  set(key: string, report: MirrorReport): void {
+    this.solvedNow++;
+    this.solved.set(key, { report, used: this.generation });
+  }
+
+  /** Drops every report the last analysis did not use. */
+  sweep(): void {
+    for (const [k, e] of this.solved) if (e.used !== this.generation) this.solved.delete(k);
+  }
+
+  get size(): number {
+    return this.solved.size;
+  }
 }
 
 export class RepeatedMirrors {
-  private readonly solved = new Map<string, MirrorReport>();
+  private readonly solved: Map<string, MirrorReport> | SolvedUnits;
+  private readonly context: string;
+  private readonly linked: ReadonlyMap<number, string> | undefined;
 
-  constructor(private readonly curve: boolean) {}
+  /** `units`: the store kept across analyses (the spec's solve context, the analysis `settings`
+   *  and a linked mirror's network join each key). */
+  constructor(private readonly curve: boolean, spec?: ResolvedSpec, units?: SolvedUnits, settings: object = { curve }) {
+    this.solved = units ?? new Map<string, MirrorReport>();
+    this.context = units && spec ? `${solveContext(spec, settings)}|` : '';
+    this.linked = units && spec ? linkedInputs(spec) : undefined;
+  }
 
   /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after. */
   report(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
-    const key = circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    const group = this.linked?.get(indexOf(ctx.mirror));
+    const key = this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
     const known = this.solved.get(key);
     if (!known) {
       const r = measure();
-      this.solved.set(key, r);
-      return r;
+      if (!(this.solved instanceof SolvedUnits)) {
+        this.solved.set(key, r);
+        return r;
+      }
+      // Kept for later analyses only when its clock could not matter (`clockFree`). The stored
+      // report is never handed out itself: the next analysis copies it.
+      if (clockFree(r)) this.solved.set(key, r);
+      return withIdentity({ ...r }, reportIdentity(ctx));
     }
     return withIdentity({ ...known }, reportIdentity(ctx));
   }
+}
+
+/**
+ * True when the report's operating point came from the plain Newton solve, which ends by its
+ * iteration count alone. The fallbacks after it (source and gmin stepping) run against the solve's
+ * time budget (circuit/newton.ts): what they give depends on the clock, so it is not kept for
+ * another analysis (which would then differ from a fresh one).
+ */
+export function clockFree(r: MirrorReport): boolean {
+  return r.converged && r.solveNote === undefined;
 }
 
 function withIdentity(r: MirrorReport, id: ReportIdentity): MirrorReport {

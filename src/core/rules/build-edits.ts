@@ -58,5 +58,5 @@ function styleOf(parsed: ParsedSpec): InsertStyle | undefined {
 /** The YAML tree of an edited text (all an insertion needs: no schema, no elaboration). */
 function reread(text: string, json: boolean | undefined): ParsedSpec {
   const doc = parseDocument(text, YAML_OPTIONS);
-  return { text, parsed: doc.errors.length === 0, findings: [], source: new YamlSourceMap(doc, new LineIndex(text)), json };
+  return { text, parsed: doc.errors.length === 0, findings: [], source: new YamlSourceMap(doc, LineIndex.of(text)), json };
 }

@@ -10,7 +10,8 @@ import type { Draft, FixPlan, RuleContext } from './model';
 import { keyPath } from './model';
 import { isAutoSized, siteOf, type Site } from './sites';
 import { MirrorFragments, sharesValues } from '../spec/fragment';
-import { accepts, recheck, type Baseline, type Recheck } from './verify';
+import { accepts, recheck, recheckContext, type Baseline, type Recheck, type Rechecks, type RecheckStore } from './verify';
+import type { SolvedUnits } from '../analysis/repeats';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
@@ -40,12 +41,18 @@ export interface RulesOptions {
    * offer the same fixes (test/fuzz/verify-local.test.ts); 'whole-file' is the reference.
    */
   reread?: 'local' | 'whole-file';
+  /** Local re-check results kept from earlier analyses of this file (the editor's worker). */
+  rechecks?: Rechecks;
+  /** Solved reports kept from earlier analyses (a process fix re-solves every mirror). */
+  units?: SolvedUnits;
 }
 
 const DEFAULT_RECHECKS = 120;
 const DEFAULT_BUDGET_MS = 4000;
 
 interface Budget {
+  /** Where local re-checks are kept across analyses, with this file's context (verify.ts). */
+  store?: RecheckStore;
   left: number;
   deadline: number;
   now: () => number;
@@ -126,6 +133,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
       left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
       widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m)))),
     };
+    if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units };
     return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {
     return [];
@@ -152,7 +160,7 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
         // The same edit answers several findings (the balanced Wilson, the EKV model): re-check once.
         // A whole-file re-check does not depend on the mirror the plan came from.
         const id = p.scope === 'spec' ? `spec:${JSON.stringify(p.edits)}` : `mirror:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
-        if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect)); }
+        if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect, budget.store)); }
         const after = memo.get(id);
         if (after && !Array.isArray(after)) { untrusted ??= after; untrustedFamilies.add(p.family); }
         if (!accepts(after, d, p, baseline)) continue;

@@ -19,18 +19,44 @@ export const SQUARE_LAW_MIN_IC = 1;
  * reports count (an unsolved one has no operating point, and its own finding).
  */
 export function untrustedMove(before: readonly MirrorReport[], after: readonly MirrorReport[]): DeviceReport | undefined {
-  const was = new Map<string, number>();
-  for (const r of before) if (r.converged) for (const d of r.devices) was.set(`${r.path.join('/')}|${d.name}`, d.ic);
+  const was = icIndex(before);
   for (const r of after) {
     if (!r.converged) continue;
+    let own: Map<string, number> | undefined;
     for (const d of r.devices) {
       // A bipolar device's `ic` is its collector current, and its model holds at any current. A
       // start-up element is meant to sit near cutoff at the operating point: its figure there is
       // the start-up check's, not a square-law operating point.
       if (isBipolarReport(d) || d.role === 'startup' || !(d.ic < SQUARE_LAW_MIN_IC)) continue;
-      const ic = was.get(`${r.path.join('/')}|${d.name}`);
+      own ??= was.get(pathKey(r));
+      const ic = own?.get(d.name);
       if (ic === undefined || d.ic < Math.min(SQUARE_LAW_MIN_IC, ic) * (1 - 1e-6)) return d;
     }
   }
   return undefined;
+}
+
+/**
+ * Each solved report's device ICs by report path, then device name: built once per `before` list
+ * (a file's reports, against which every one of its fixes is compared), not once per fix.
+ */
+const icIndexes = new WeakMap<readonly MirrorReport[], Map<string, Map<string, number>>>();
+
+function icIndex(reports: readonly MirrorReport[]): Map<string, Map<string, number>> {
+  let index = icIndexes.get(reports);
+  if (index) return index;
+  index = new Map();
+  for (const r of reports) {
+    if (!r.converged) continue;
+    const key = pathKey(r);
+    let devices = index.get(key);
+    if (!devices) index.set(key, devices = new Map());
+    for (const d of r.devices) devices.set(d.name, d.ic);
+  }
+  icIndexes.set(reports, index);
+  return index;
+}
+
+function pathKey(r: MirrorReport): string {
+  return r.path.join('/');
 }

@@ -7,8 +7,12 @@
  * re-reads that mirror's lines alone, validates and elaborates the data with that mirror
  * replaced, and re-solves it — the same elaborator and solver on the same data as a whole-file
  * re-read, at a fraction of the cost. Otherwise the whole edited text is parsed again.
+ *
+ * What a local re-check finds depends only on the mirror's item before and after the edit and on
+ * what lies outside every item (`recheckContext`), and for a linked mirror on its network: a `Rechecks` store kept across analyses of
+ * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
-import type { MirrorReport, ResolvedSpec } from '../types';
+import type { MirrorReport, ResolvedSpec, TextEdit } from '../types';
 import type { ParsedSpec } from '../spec/index';
 import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
@@ -19,9 +23,12 @@ import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
+import { clockFree, linkedInputs, type SolvedUnits } from '../analysis/repeats';
+import { canonicalJson, digest } from '../canonical';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
 import { applyEdits } from '../text/edits';
+import { LineIndex } from '../text/lines';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { untrustedMove } from './trust';
 import { mirrorAt } from '../mirror-at';
@@ -52,21 +59,114 @@ export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): Mirror
 /** A fix whose re-solve puts a square-law device below IC 1, where the numbers that verified it are not true. */
 export interface Untrusted { untrusted: string; ic: number }
 
-export type Recheck = Draft[] | Untrusted | undefined;
+/** What `accepts` reads of a draft found in the edited text. */
+export interface Found { key: string; error: boolean; mirrorIndex: number }
+
+export type Recheck = Found[] | Untrusted | undefined;
+
+/** What re-checks may keep across analyses of one file: local re-checks, and solved reports. */
+export interface RecheckStore {
+  rechecks: Rechecks;
+  /** recheckContext of the file being analysed. */
+  context: string;
+  units?: SolvedUnits;
+}
+
+/** Local re-check results kept across analyses of one file; entries one analysis did not use are
+ *  dropped after it (`sweep`). */
+export class Rechecks {
+  /** 'whole': the re-check of that key is not local (the whole text is read again every time). */
+  private readonly known = new Map<string, { found: Recheck | 'whole'; used: number }>();
+  private generation = 0;
+  /** Of the last analysis: local re-checks run, and read back. */
+  runNow = 0;
+  reusedNow = 0;
+
+  begin(): void {
+    this.generation++;
+    this.runNow = 0;
+    this.reusedNow = 0;
+  }
+
+  get(key: string): { found: Recheck | 'whole' } | undefined {
+    const e = this.known.get(key);
+    if (e) { e.used = this.generation; this.reusedNow++; }
+    return e;
+  }
+
+  set(key: string, found: Recheck | 'whole'): void {
+    this.runNow++;
+    this.known.set(key, { found, used: this.generation });
+  }
+
+  sweep(): void {
+    for (const [k, e] of this.known) if (e.used !== this.generation) this.known.delete(k);
+  }
+
+  get size(): number {
+    return this.known.size;
+  }
+}
+
+/**
+ * Everything outside the mirror items that a local re-check reads, as one digest: the data beside
+ * `mirrors`, the resolved spec but its mirrors (process with its flavours and tables, supplies,
+ * limits, params, corners, the solved networks, and whatever else it holds, serialised whole:
+ * canonical.ts), every mirror's name, kind and polarities (elaboration checks names and the
+ * polarities the process must describe), the file's kind and name.
+ */
+export function recheckContext(rc: RuleContext): string {
+  const data = rc.parsed.data;
+  const root = isRecord(data) ? { ...data, mirrors: undefined } : undefined;
+  const mirrors = rc.spec.mirrors.map((m) => [m.name, m.kind, m.kind === 'netlist' ? m.devices.map((d) => d.type) : m.type]);
+  return digest(canonicalJson([root, { ...rc.spec, mirrors: undefined }, mirrors, rc.json, rc.file]));
+}
+
+function found(drafts: Draft[]): Found[] {
+  return drafts.map((d) => ({ key: d.key, error: d.finding.severity === 'error', mirrorIndex: d.mirrorIndex }));
+}
 
 /**
  * Re-check the text with the plan applied: the drafts found there, Untrusted when the square
  * law no longer holds for a device the fix moved (rules/trust.ts), or undefined when the text no
  * longer parses cleanly.
  */
-export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect): Recheck {
+export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, detect: Detect, store?: RecheckStore): Recheck {
   try {
+    const key = store && localKey(rc, plan, store.context);
+    const kept = key === undefined ? undefined : store!.rechecks.get(key);
+    if (kept && kept.found !== 'whole') return kept.found;
     const text = applyEdits(rc.parsed.text, plan.edits);
-    const local = rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect) : WHOLE;
-    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect) : local;
+    const solved = { clockFree: true };
+    const local = !kept && rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect, solved) : WHOLE;
+    if (key !== undefined && !kept && solved.clockFree) store!.rechecks.set(key, local === WHOLE ? 'whole' : local);
+    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect, store?.units) : local;
   } catch {
     return undefined;
   }
+}
+
+/**
+ * The key of a plan's local re-check: its mirror's index and item before and after the edit, and
+ * the context outside the items. Undefined when the re-check cannot be local (then it is never
+ * kept: it reads the whole file).
+ */
+function localKey(rc: RuleContext, plan: FixPlan, context: string): string | undefined {
+  const frags = rc.fragments;
+  if (!frags || plan.scope !== 'mirror' || !localPossible(rc) || !frags.holds(plan.mirrorIndex, plan.edits)) return undefined;
+  const item = frags.itemTexts(plan.mirrorIndex, plan.edits);
+  // The mirror as resolved, and for a linked one every member of its network as resolved and the
+  // joint solution: the re-check solves that network again with this mirror edited.
+  const resolved = canonicalJson(mirrorAt(rc.spec, plan.mirrorIndex) ?? null);
+  const linked = linkedInputs(rc.spec).get(plan.mirrorIndex) ?? '';
+  return item && `${plan.mirrorIndex}\u0000${item.original}\u0000${item.edited}\u0000${resolved}\u0000${linked}\u0000${context}`;
+}
+
+/** The original spec reads without error and its data lists every mirror: the preconditions of a local re-read. */
+function localPossible(rc: RuleContext): boolean {
+  const data = rc.parsed.data;
+  return isRecord(data) && Array.isArray(data.mirrors) && rc.parsed.source instanceof YamlSourceMap &&
+    !rc.parsed.findings.some((f) => f.severity === 'error') && data.mirrors.length === rc.spec.mirrors.length;
 }
 
 /** Untrusted when the edited spec is square law and a device moved below IC 1. */
@@ -76,7 +176,7 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
   return d ? { untrusted: d.name, ic: d.ic } : undefined;
 }
 
-function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect): Recheck {
+function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, units?: SolvedUnits): Recheck {
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
   const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) });
@@ -84,9 +184,10 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
   if (spec.mirrors.length !== rc.spec.mirrors.length) return undefined;
-  const reports = plan.scope === 'spec' ? analyzeSpec(spec) : reportsOfMirror(spec, plan.mirrorIndex);
+  // A process edit (the EKV fix) solves every mirror in the new process: kept by solve unit too.
+  const reports = plan.scope === 'spec' ? analyzeSpec(spec, { units }) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return trusted(rc, spec, reports) ?? detect({ ...rc, parsed, spec, reports, quick: true });
+  return trusted(rc, spec, reports) ?? found(detect({ ...rc, parsed, spec, reports, quick: true }));
 }
 
 const WHOLE = Symbol('re-read the whole text');
@@ -96,7 +197,7 @@ const WHOLE = Symbol('re-read the whole text');
  * spec had no error (it has a resolved spec), so the edited one is usable exactly when reading
  * the edited mirror adds none.
  */
-function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect): Recheck | typeof WHOLE {
+function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Detect, solved: { clockFree: boolean }): Recheck | typeof WHOLE {
   const frags = rc.fragments;
   const i = plan.mirrorIndex;
   const data = rc.parsed.data;
@@ -119,17 +220,25 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, undefined, { chainSigma: false });
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
+  // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).
+  solved.clockFree = reports.every(clockFree);
   const untrusted = trusted(rc, spec, reports);
   if (untrusted) return untrusted;
-  const lineDelta = countLines(text) - countLines(rc.parsed.text);
+  const lineDelta = addedLines(rc.parsed.text, plan.edits);
   const source = new SplicedSourceMap(base, i, frag, span.last, lineDelta, text);
   const parsed: ParsedSpec = { text, parsed: true, findings: sink.list, source, json: rc.parsed.json, data: { ...data, mirrors: items }, spec };
-  return detect({ ...rc, parsed, spec, reports, quick: true });
+  return found(detect({ ...rc, parsed, spec, reports, quick: true }));
 }
 
-function countLines(text: string): number {
-  let n = 1;
-  for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) n++;
+/** Lines the edits add to `text` (or remove, negative): line breaks written minus line breaks
+ *  replaced. Edits of one plan never overlap (applyEdits checks), so their counts add. */
+function addedLines(text: string, edits: readonly TextEdit[]): number {
+  const lines = LineIndex.of(text);
+  let n = 0;
+  for (const e of edits) {
+    for (let i = e.newText.indexOf('\n'); i >= 0; i = e.newText.indexOf('\n', i + 1)) n++;
+    n -= lines.lineOf(lines.offset(e.range.end)) - lines.lineOf(lines.offset(e.range.start));
+  }
   return n;
 }
 
@@ -137,6 +246,6 @@ function countLines(text: string): number {
 export function accepts(after: Recheck, draft: Draft, plan: FixPlan, baseline: Baseline): boolean {
   if (!after || !Array.isArray(after)) return false;
   if (after.some((d) => d.key === draft.key)) return false;
-  return !after.some((d) => d.finding.severity === 'error' && !baseline.errors.has(d.key) &&
+  return !after.some((d) => d.error && !baseline.errors.has(d.key) &&
     (plan.scope === 'spec' || d.mirrorIndex === plan.mirrorIndex));
 }

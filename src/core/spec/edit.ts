@@ -15,7 +15,7 @@ import { YamlSourceMap } from './source-map';
 function mapOf(p: ParsedSpec): YamlSourceMap | undefined {
   if (p.source instanceof YamlSourceMap && p.source.doc && p.source.lines.text === p.text) return p.source;
   const doc = parseDocument(p.text, { uniqueKeys: false, merge: true, logLevel: 'error' });
-  return doc.errors.length ? undefined : new YamlSourceMap(doc, new LineIndex(p.text));
+  return doc.errors.length ? undefined : new YamlSourceMap(doc, LineIndex.of(p.text));
 }
 
 function isJsonText(p: ParsedSpec): boolean {

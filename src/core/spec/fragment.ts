@@ -164,6 +164,28 @@ export class MirrorFragments {
     };
   }
 
+  /**
+   * Mirror `index`'s item as written in the original text (from the start of its first line), and
+   * its text from its first key with `edits` applied (they must lie inside it: `holds`): what
+   * `read` reads of the edited text, without building that text. Undefined when the spec is not
+   * plain or an edit reaches outside the item.
+   */
+  itemTexts(index: number, edits: readonly TextEdit[]): { original: string; edited: string } | undefined {
+    const sp = this.spans[index];
+    if (!sp) return undefined;
+    const item = this.original.slice(sp.content, sp.end);
+    const spans = edits.map((e) => ({ s: this.lines.offset(e.range.start) - sp.content, e: this.lines.offset(e.range.end) - sp.content, t: e.newText }));
+    spans.sort((a, b) => a.s - b.s);
+    let edited = '';
+    let pos = 0;
+    for (const x of spans) {
+      if (x.s < pos || x.e < x.s || x.e > item.length) return undefined;
+      edited += item.slice(pos, x.s) + x.t;
+      pos = x.e;
+    }
+    return { original: this.original.slice(sp.lineStart, sp.end), edited: edited + item.slice(pos) };
+  }
+
   /** The line of the original text where mirror `index`'s fragment starts, and where it ends. */
   lineSpan(index: number): { first: number; last: number } | undefined {
     const sp = this.spans[index];
@@ -201,7 +223,7 @@ export class SplicedSourceMap implements SourceMap {
   private editedLines?: LineIndex;
 
   text(range: Range): string {
-    this.editedLines ??= new LineIndex(this.edited);
+    this.editedLines ??= LineIndex.of(this.edited);
     return this.editedLines.slice(range);
   }
 

@@ -73,7 +73,7 @@ function looksJson(text: string, file?: string): boolean {
 
 export function parseSpec(text: string, file?: string, opts: ParseOptions = {}): ParsedSpec {
   const src = typeof text === 'string' ? text : '';
-  const lines = new LineIndex(src);
+  const lines = LineIndex.of(src);
   let source = new YamlSourceMap(undefined, lines);
   const json = looksJson(src, file);
   try {

@@ -11,6 +11,7 @@ import { readTable, type TableRead } from '../models/table/read';
 import type { FindingSink } from './findings';
 import { typeName } from './values';
 import { isRecord } from './params';
+import { digestOf, recordSource } from '../canonical';
 
 /** Table texts by the name the spec writes (`table:` value), or why the front end could not
  *  read that file. */
@@ -24,6 +25,8 @@ function parseCached(text: string, file: string): TableRead {
   const hit = parsedByText.get(text);
   if (hit && (!hit.ok || hit.table.file === file)) return hit;
   const read = readTable(text, file);
+  // A result kept across analyses is keyed by the table's text, not by its grid (canonical.ts).
+  if (read.ok) recordSource(read.table.id, () => text);
   if (parsedByText.size >= CACHE_TEXTS) parsedByText.delete(parsedByText.keys().next().value!);
   parsedByText.set(text, read);
   return read;
@@ -87,6 +90,7 @@ function mergeTemperatures(sink: FindingSink, list: DeviceTable[], path: SpecPat
   const per = first.id.length;
   const id = new Float64Array(per * sorted.length);
   sorted.forEach((t, k) => id.set(t.id, k * per));
+  recordSource(id, () => sorted.map((t) => digestOf(t.id)).join(' '));
   return { file: sorted.map((t) => t.file).join(', '), l: first.l, vgs: first.vgs, vds: first.vds, vsb: first.vsb, temperature: sorted.map((t) => t.temperature![0]!), id };
 }
 

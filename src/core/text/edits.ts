@@ -16,7 +16,7 @@ import { LineIndex } from './lines';
 
 /** Apply non-overlapping edits (LSP ranges in `text`). Throws on overlapping edits. */
 export function applyEdits(text: string, edits: TextEdit[]): string {
-  const lines = new LineIndex(text);
+  const lines = LineIndex.of(text);
   const spans = edits.map((e, i) => ({ s: lines.offset(e.range.start), e: lines.offset(e.range.end), t: e.newText, i }));
   spans.sort((a, b) => a.s - b.s || a.i - b.i);
   for (let k = 1; k < spans.length; k++) {

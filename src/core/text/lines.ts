@@ -13,6 +13,18 @@ import type { Position, Range } from '../types';
 const BOM = 0xfeff;
 
 export class LineIndex {
+  /**
+   * The index of `text`, shared: the last few texts indexed are kept, so every finding, fix and
+   * edit of one text (the spec being analysed, a fix's edited text) scans its line starts once.
+   */
+  static of(text: string): LineIndex {
+    for (const l of recent) if (l.text === text) return l;
+    const l = new LineIndex(text);
+    recent[next] = l;
+    next = (next + 1) % recent.length;
+    return l;
+  }
+
   /** Offset of the first character of each line. A line ends at \n (a \r before it stays on the line). */
   private readonly starts: number[] = [0];
   /** 1 when the text starts with a byte-order mark, else 0. */
@@ -79,5 +91,10 @@ export class LineIndex {
     return line === 0 ? this.bom : this.starts[line];
   }
 }
+
+/** The texts LineIndex.of indexed last (a ring: the analysed text and a few edited ones). */
+const recent: LineIndex[] = [];
+for (let i = 0; i < 4; i++) recent.push(new LineIndex(''));
+let next = 0;
 
 export const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
