@@ -228,6 +228,8 @@ const HOSTILE_HEAD = 'format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45, lambda
 const HOSTILE_MIRROR = (w: string, name = 'a') =>
   `  - name: ${name}\n    kind: simple\n    type: nmos\n    input: 10u\n    size: { w: ${w}, l: 1u }\n    output: { v: 0.9 }\n`;
 
+export const MANY_FINDINGS_KINDS = ['unknown-key', 'bad-name', 'empty-mirror', 'unknown-param', 'duplicate-key', 'unknown-role'] as const;
+
 /**
  * Many findings of one kind (issue 14): past SPEC_LIMITS.maxFindingsPerCode they are counted in
  * one `more-findings`, and every position lookup is indexed. Sizes keep a case within the 200 ms
@@ -235,8 +237,11 @@ const HOSTILE_MIRROR = (w: string, name = 'a') =>
  */
 export const arbManyFindings: fc.Arbitrary<FuzzInput> = fc.record({
   n: fc.integer({ min: 90, max: 1000 }),
-  kind: fc.constantFrom('unknown-key', 'bad-name', 'empty-mirror', 'unknown-param', 'duplicate-key', 'unknown-role'),
-}).map(({ n, kind }) => {
+  kind: fc.constantFrom(...MANY_FINDINGS_KINDS),
+}).map(({ n, kind }) => manyFindings(kind, n));
+
+/** One case of arbManyFindings: `n` of one kind. */
+export function manyFindings(kind: (typeof MANY_FINDINGS_KINDS)[number], n: number): FuzzInput {
   let body = '';
   if (kind === 'unknown-key') body = 'mirrors:\n' + HOSTILE_MIRROR('2u') + Array.from({ length: n }, (_, i) => `k${i}: 1\n`).join('');
   else if (kind === 'bad-name') body = 'params:\n' + Array.from({ length: n }, (_, i) => `  ${i}x: 1\n`).join('') + 'mirrors:\n' + HOSTILE_MIRROR('2u');
@@ -248,7 +253,7 @@ export const arbManyFindings: fc.Arbitrary<FuzzInput> = fc.record({
   } else if (kind === 'duplicate-key') body = 'params:\n' + '  p: 1\n'.repeat(n) + 'mirrors:\n' + HOSTILE_MIRROR('p*1u');
   else body = 'mirrors:\n' + HOSTILE_MIRROR('2u') + '    devices:\n' + Array.from({ length: n }, (_, i) => `      r${i}: { m: 2 }\n`).join('');
   return { kind: 'hostile', text: HOSTILE_HEAD + body, file: `many-${kind}.bias.yaml` };
-});
+}
 
 /** Long param chains and loops (issue 14): an iterative, linear dependency walk; each param of a
  *  loop reported once, with a short message. `back`: every param also uses p0. */

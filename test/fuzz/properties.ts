@@ -2,7 +2,10 @@
  * What must hold for any text given to `analyzeText` (design: "bad input always yields a clear
  * finding at the right line/column — never a crash or hang"):
  *  - it returns (no exception) and reports no `internal-error` (a caught defect is still a defect);
- *  - it answers within a time bound (checked by the caller, after warm-up);
+ *  - its work is bounded by the input's size (src/core/work.ts, counted, never timed): did-you-mean
+ *    edit distances at most WORK_PER_CHAR.distances per character (plus a fixed list's worth),
+ *    characters re-read to check did-you-mean fixes at most MAX_SUGGESTION_CHECKS times the text;
+ *    `npm run fuzz` also holds each case to a 200 ms wall-clock bound;
  *  - every range it hands out — findings, related locations, fix edits, anchors — lies inside
  *    the document, in the Language Server Protocol's terms: line < line count, character ≤ the
  *    line's length (lines split at \r\n, \n and \r, as LSP and YAML both do);
@@ -12,7 +15,9 @@
  */
 import type { FileReport, Range } from '../../src/core/types';
 import { analyzeText } from '../../src/core/analyze';
+import { MAX_SUGGESTION_CHECKS } from '../../src/core/spec/suggestion-fixes';
 import { applyEdits } from '../../src/core/text/edits';
+import { WORK } from '../../src/core/work';
 
 /** Line lengths of a text, with LSP's line breaks. */
 export function lineLengths(text: string): number[] {
@@ -68,21 +73,54 @@ export function reportProblems(text: string, report: FileReport): string[] {
   return out;
 }
 
+/**
+ * The work bounds, per character of input. A name's did-you-mean is searched once, on the first
+ * read, among at most 500 candidates of about its length (spec/suggest.ts), and the re-reads that
+ * check the fixes search none: the generated inputs stay near one distance per character (the
+ * 990-param file with 50 unknown names: 0.3); four leaves room for denser files and fails at once
+ * if every check searches again (that file: 5.5). A check re-reads at most the whole text, one
+ * mirror's lines where that is exact (spec/suggestion-fixes.ts).
+ */
+export const WORK_PER_CHAR = { distances: 4, rereadChars: MAX_SUGGESTION_CHECKS } as const;
+/** Distances a short text may take whatever its size: one search over the schema's keys. */
+const FIXED_DISTANCES = 50;
+
+export type Work = { -readonly [K in keyof typeof WORK]: number };
+
+/** The work bounds that `work`, done on `text`, breaks (empty when it holds them). */
+export function workProblems(text: string, work: Work): string[] {
+  const out: string[] = [];
+  const n = text.length;
+  if (work.distances > WORK_PER_CHAR.distances * n + FIXED_DISTANCES) {
+    out.push(`${work.distances} edit distances for ${n} characters (bound ${WORK_PER_CHAR.distances} per character + ${FIXED_DISTANCES})`);
+  }
+  if (work.rereadChars > WORK_PER_CHAR.rereadChars * n) {
+    out.push(`${work.rereadChars} characters re-read for ${n} characters (bound ${WORK_PER_CHAR.rereadChars} per character)`);
+  }
+  return out;
+}
+
 export interface Checked {
   problems: string[];
+  /** Wall time of the call: a figure to print (and `npm run fuzz`'s bound), never a test's assertion. */
   ms: number;
+  /** The counted work of the call (src/core/work.ts). */
+  work: Work;
   report?: FileReport;
 }
 
-/** Analyse one text and list what is wrong; `ms` is the wall time of the call. */
+/** Analyse one text and list what is wrong, the work bounds included. */
 export function checkText(text: string, file: string): Checked {
+  const before = { ...WORK };
+  const done = (): Work => Object.fromEntries(Object.entries(WORK).map(([k, v]) => [k, v - before[k as keyof Work]])) as Work;
   const t0 = performance.now();
   let report: FileReport;
   try {
     report = analyzeText(text, file);
   } catch (e) {
-    return { problems: [`analyzeText threw: ${(e as Error)?.stack ?? String(e)}`], ms: performance.now() - t0 };
+    return { problems: [`analyzeText threw: ${(e as Error)?.stack ?? String(e)}`], ms: performance.now() - t0, work: done() };
   }
   const ms = performance.now() - t0;
-  return { problems: reportProblems(text, report), ms, report };
+  const work = done();
+  return { problems: [...reportProblems(text, report), ...workProblems(text, work)], ms, work, report };
 }

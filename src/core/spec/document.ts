@@ -117,9 +117,13 @@ function flowTooDeep(text: string, max: number): number {
   return -1;
 }
 
-export function readDocument(text: string, lines: LineIndex): ReadDocument {
+/**
+ * What refuses a text before YAML reads it (too large, a bare CR, a control byte, runaway flow
+ * nesting): its finding, else undefined. A linear scan of the text.
+ */
+export function refusal(text: string, lines: LineIndex): Finding | undefined {
   if (text.length > SPEC_LIMITS.maxChars) {
-    return { parsed: false, findings: [at(lines, 0, 0, 'too-large', tooLargeMessage(text.length))] };
+    return at(lines, 0, 0, 'too-large', tooLargeMessage(text.length));
   }
   // A carriage return alone ends a line for YAML and for editors (LSP), but not for the line
   // arithmetic of every tool that reads the positions back; such files come from old editors or
@@ -129,19 +133,25 @@ export function readDocument(text: string, lines: LineIndex): ReadDocument {
   const cr = /\r(?!\n)/.exec(text);
   if (cr && (!bin || cr.index < bin.index)) {
     const start = lines.lineStart(cr.index);
-    return { parsed: false, findings: [at(lines, start, cr.index, 'bare-cr',
-      `line ${lines.position(cr.index).line + 1} ends with a bare carriage return (CR without LF); save the file with LF or CRLF line breaks`)] };
+    return at(lines, start, cr.index, 'bare-cr',
+      `line ${lines.position(cr.index).line + 1} ends with a bare carriage return (CR without LF); save the file with LF or CRLF line breaks`);
   }
   if (bin) {
     const code = bin[0].charCodeAt(0).toString(16).toUpperCase().padStart(4, '0');
-    return { parsed: false, findings: [at(lines, bin.index, bin.index + 1, 'binary-input',
-      `the file holds a control or invalid byte (U+${code}); a bias spec is UTF-8 text`)] };
+    return at(lines, bin.index, bin.index + 1, 'binary-input',
+      `the file holds a control or invalid byte (U+${code}); a bias spec is UTF-8 text`);
   }
   const deepAt = flowTooDeep(text, SPEC_LIMITS.maxFlowDepth);
   if (deepAt >= 0) {
-    return { parsed: false, findings: [at(lines, deepAt, deepAt + 1, 'too-deep',
-      'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it')] };
+    return at(lines, deepAt, deepAt + 1, 'too-deep',
+      'the file nests deeper than qpoint reads (a bias spec needs about 6 levels); flatten it');
   }
+  return undefined;
+}
+
+export function readDocument(text: string, lines: LineIndex): ReadDocument {
+  const refused = refusal(text, lines);
+  if (refused) return { parsed: false, findings: [refused] };
   const findings: Finding[] = [];
   let doc: Document;
   try {

@@ -42,7 +42,12 @@ export class FindingSink {
   private readonly errorMirrors = new Set<number>();
   private errorOutsideMirrors = false;
 
-  constructor(readonly src: YamlSourceMap, private readonly maxPerCode: number = SPEC_LIMITS.maxFindingsPerCode) {}
+  /**
+   * `words` false: a re-read that only asks which findings an edit leaves (a did-you-mean fix's
+   * check), whose messages nobody reads, so no did-you-mean is searched for.
+   */
+  constructor(readonly src: YamlSourceMap, private readonly maxPerCode: number = SPEC_LIMITS.maxFindingsPerCode,
+    private readonly words = true) {}
 
   /**
    * Add a finding. `once` names the fact (e.g. 'missing-key:size'); a second finding with the same
@@ -112,6 +117,12 @@ export class FindingSink {
    *  no costly hint. */
   listing(code: string): boolean {
     return (this.perCode.get(code) ?? 0) < this.maxPerCode;
+  }
+
+  /** True when a did-you-mean for a finding of `code` is worth its search: the finding is listed
+   *  and its message is read. */
+  suggesting(code: string): boolean {
+    return this.words && this.listing(code);
   }
 
   /** True when a finding with this fact (or, without `once`, any finding) was made at path. */

@@ -5,11 +5,11 @@
  *
  * This is exact only where YAML's meaning of those lines cannot depend on the rest of the file, so
  * a spec qualifies only when it is plain: no anchor, alias or tag anywhere (an anchor in one mirror
- * can be read by another), no duplicate key or YAML warning, `mirrors` a block sequence whose items
- * are mappings. An item qualifies when every line after its first is blank or indented at least
- * to its first key: then those lines are the item in the file and the same mapping standing alone
- * (the `- ` before the first key is blanked to spaces, so columns and offsets stay). Anything else
- * answers undefined and the caller re-reads the whole text.
+ * can be read by another), no `%YAML` directive but 1.2, no duplicate key or YAML warning,
+ * `mirrors` a block sequence whose items are mappings. An item qualifies when every line after its
+ * first is blank or indented at least to its first key: then those lines are the item in the file
+ * and the same mapping standing alone (the `- ` before the first key is blanked to spaces, so
+ * columns and offsets stay). Anything else answers undefined and the caller re-reads the whole text.
  */
 import { isMap, isSeq, parseDocument, visit } from 'yaml';
 import type { Document } from 'yaml';
@@ -99,7 +99,8 @@ export class MirrorFragments {
     const doc = this.src.doc!;
     if (doc.errors.length > 0 || doc.warnings.length > 0) return null;
     if (this.parsed.findings.some((f) => f.code === 'duplicate-key' || f.code === 'yaml-warning')) return null;
-    if (!isMap(doc.contents) || !plain(doc)) return null;
+    // A `%YAML 1.1` directive retypes plain scalars (`yes`, `017`); the lines alone read as 1.2.
+    if (!isMap(doc.contents) || !plain(doc) || doc.directives?.yaml.version !== '1.2') return null;
     const mirrors = doc.contents.items.filter((p) => keyName(p.key) === 'mirrors');
     if (mirrors.length !== 1 || doc.contents.items.some((p) => keyName(p.key) === '<<')) return null;
     const seq = mirrors[0].value;

@@ -44,6 +44,8 @@ export interface ParsedSpec {
 export interface ParseOptions {
   /** Characterisation-table texts by the name the spec writes (front ends read the files). */
   tables?: TableTexts;
+  /** False for a re-read that only asks which findings an edit leaves: no did-you-mean search. */
+  words?: boolean;
 }
 
 /** The table files a spec names (`table:` values), for the front end to read before analysing. */
@@ -78,7 +80,7 @@ export function parseSpec(text: string, file?: string, opts: ParseOptions = {}):
     const read = readDocument(src, lines);
     source = new YamlSourceMap(read.doc, lines);
     if (!read.parsed) return { text: src, parsed: false, findings: sortSpecFindings(read.findings), source, json };
-    const sink = new FindingSink(source);
+    const sink = new FindingSink(source, undefined, opts.words ?? true);
     for (const f of read.findings) sink.add(f.severity, f.code, f.message, f.path, f.range, `${f.code}:${f.range.start.line}:${f.range.start.character}`);
     if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
     validateSchema(read.data, sink);

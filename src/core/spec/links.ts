@@ -50,7 +50,7 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
     const link = linkOf(m);
     if (!link) continue;
     const i = m.path[1] as number;
-    const r = resolveLinkPath(link.from, targets, (w, c) => (sink.listing('link-unknown') ? suggestion(w, c) : undefined));
+    const r = resolveLinkPath(link.from, targets, (w, c) => (sink.suggesting('link-unknown') ? suggestion(w, c) : undefined));
     if (!r.ok) {
       sink.error('link-unknown', r.message + (r.word !== undefined ? `; did you mean \`${r.word}\`?` : ''), fromPath(m), undefined, undefined, r.word);
       bad.add(i);

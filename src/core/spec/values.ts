@@ -87,8 +87,9 @@ export function resolveValue(scope: ValueScope, raw: unknown, path: SpecPath, q:
           return undefined;
         }
         const defined = scope.params.size + failed.size;
-        // A suggestion only where the finding is listed: past the cap it would be counted only.
-        const word = r.code === 'unknown-param' && r.name && sink.listing(r.code) ? suggestion(r.name, paramNames(scope)) : undefined;
+        // A suggestion only where the finding is listed (past the cap it would be counted only) and
+        // its message is read (a fix's re-read asks only which findings remain).
+        const word = r.code === 'unknown-param' && r.name && sink.suggesting(r.code) ? suggestion(r.name, paramNames(scope)) : undefined;
         const known = r.code === 'unknown-param' && defined === 0 ? ' (the spec defines no `params`)' : '';
         // The fix replaces the name only where the source spells it verbatim (range found).
         sink.error(r.code, `\`${field}\`: ${r.message}${askIf(word)}${known}`, path, range, undefined, range ? word : undefined);
