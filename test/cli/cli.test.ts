@@ -1,6 +1,6 @@
 /**
  * The `qpoint` command as CI runs it: exit codes, text and JSON goldens, SARIF, fix, report,
- * sweep, several files per run, standard input. Physics is checked in test/engine; here one
+ * sweep, several files per run, standard input. Physics is checked in test/analysis, test/circuit, test/models and test/kinds; here one
  * end-to-end check (YAML → CLI → numbers) is held against a published-formula value.
  * Goldens: test/cli/golden/*; regenerate with UPDATE_GOLDEN=1 after an intended change.
  */

@@ -9,7 +9,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { useCli } from './harness';
-import { span, tableCsv } from '../tables/make-table';
+import { span, tableCsv } from '../models/table/make-table';
 
 const run = useCli('tables');
 

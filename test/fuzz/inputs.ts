@@ -301,7 +301,7 @@ export const arbEscapes: fc.Arbitrary<FuzzInput> = fc.record({
  * resistor from vdd (a star of resistor pairs, issue 14 item 1). Up to 40 devices with loads
  * that keep the outputs saturated: what the whole analysis, fix verification included, finishes
  * within the 200 ms bound; netlists of thousands of elements are the solver's own tests
- * (test/engine/), and a star whose every output leaves saturation costs a verified fix per output.
+ * (test/circuit/large-netlists.test.ts), and a star whose every output leaves saturation costs a verified fix per output.
  */
 export const arbLargeNetlist: fc.Arbitrary<FuzzInput> = fc.record({
   n: fc.integer({ min: 2, max: 40 }),

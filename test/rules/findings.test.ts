@@ -5,7 +5,7 @@
  * applied to the text (re-parsed and re-solved, no new error).
  *
  * The faults are set by the textbook relations the engine implements (design §3/§4, checked
- * against docs/references.md in test/engine/): simple-mirror VOV = √(2·I/β), compliance of a simple
+ * against docs/references.md in test/analysis/): simple-mirror VOV = √(2·I/β), compliance of a simple
  * mirror = VOV, of a cascode ≈ VT + 2·VOV (Johns & Martin ch. 3, from memory), ro = 1/(λ·I)
  * (Razavi §2, from memory), Wilson error (1+λVDS,d)/(1+λVDS,in) − 1 (Gray et al. ch. 4, from
  * memory), Pelgrom σ ∝ 1/√(W·L) (Pelgrom 1989). Each row says what the numbers are.

@@ -36,7 +36,7 @@ describe('bad input never throws and stays bounded', () => {
     const mc = runMonteCarlo({ spec, mirror: spec.mirrors[0]!, outputIndex: 0 }, 1000, 1);
     expect(mc.yield).toBe(0);
     expect(mc.failed).toBe(1000);
-    // Every solve is bounded by the engine's iteration and time limits (test/engine/robustness);
+    // Every solve is bounded by the engine's iteration and time limits (test/circuit/robustness.test.ts);
     // a hang would fail through the test timeout.
   });
 

@@ -3,8 +3,8 @@
  * where a size or value fixes it, gone once the fix is applied; and the spec keys' own findings.
  */
 import { describe, expect, it } from 'vitest';
-import { RULES_BY_CODE } from '../../src/core/rules/catalog';
-import { apply, check, header, owner, preferred, textOf } from '../rules/helpers';
+import { RULES_BY_CODE } from '../../../src/core/rules/catalog';
+import { apply, check, header, owner, preferred, textOf } from '../../rules/helpers';
 
 const FLICKER = ', kf: 1e-25, cox: 8.5m';
 /** The Halden header with flicker constants on nmos and an `analysis:` block (lines 0–8). */

@@ -3,9 +3,9 @@
  * values of docs/references.md §13, and against independent re-solves of the whole circuit.
  */
 import { describe, expect, it } from 'vitest';
-import { measureMirror } from '../../src/core/analysis/index';
-import type { MirrorReport, ResolvedSpec } from '../../src/core/types';
-import { ctxOf, makeSpec, netlist, sz, template } from '../engine/builders';
+import { measureMirror } from '../../../src/core/analysis/index';
+import type { MirrorReport, ResolvedSpec } from '../../../src/core/types';
+import { ctxOf, makeSpec, netlist, sz, template } from '../builders';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 const run = (spec: ResolvedSpec): MirrorReport => measureMirror(ctxOf(spec));

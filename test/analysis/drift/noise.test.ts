@@ -3,10 +3,10 @@
  * §13 (set D: k′ = 134 µA/V², W/L = 10, 100 µA, gm = 517.687 µS, T = 300 K, γ = 2/3).
  */
 import { describe, expect, it } from 'vitest';
-import { measureMirror } from '../../src/core/analysis/index';
-import { BOLTZMANN } from '../../src/core/defaults';
-import type { MirrorReport, MosDeviceReport, ResolvedSpec, TemplateMirror } from '../../src/core/types';
-import { ctxOf, makeSpec, sz, template } from '../engine/builders';
+import { measureMirror } from '../../../src/core/analysis/index';
+import { BOLTZMANN } from '../../../src/core/defaults';
+import type { MirrorReport, MosDeviceReport, ResolvedSpec, TemplateMirror } from '../../../src/core/types';
+import { ctxOf, makeSpec, sz, template } from '../builders';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 const run = (spec: ResolvedSpec, curve = false): MirrorReport => measureMirror(ctxOf(spec), { curve });

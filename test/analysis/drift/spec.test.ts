@@ -1,10 +1,10 @@
 /** The drift and noise keys of the spec (design §12): read with their defaults, bad values as
  *  findings at the value. */
 import { describe, expect, it } from 'vitest';
-import { parseSpec } from '../../src/core/spec/index';
-import { applyCorner } from '../../src/core/variation/corners';
-import type { TemplateMirror } from '../../src/core/types';
-import { header, textOf } from '../rules/helpers';
+import { parseSpec } from '../../../src/core/spec/index';
+import { applyCorner } from '../../../src/core/variation/corners';
+import type { TemplateMirror } from '../../../src/core/types';
+import { header, textOf } from '../../rules/helpers';
 
 const MIRROR = ['  - name: rb', '    kind: simple', '    type: nmos', '    input: { resistor: 120k, tc1: 1m, tolerance: 20% }',
   '    size: { w: 2u, l: 1u }', '    filter: { r: 1M, c: 10p }', '    output: { v: 0.9 }', '    require: { noise: 2p, tc: 200, supplySensitivity: 0.5 }'];

@@ -3,12 +3,12 @@
  * the EKV universal gm/ID curve recovered from a table.
  */
 import { describe, expect, it } from 'vitest';
-import { evalSlice, sliceAt, type SlicePoint } from '../../src/core/models/table/slice';
-import { thermalVoltage } from '../../src/core/models/thermal';
+import { evalSlice, sliceAt, type SlicePoint } from '../../../src/core/models/table/slice';
+import { thermalVoltage } from '../../../src/core/models/thermal';
 import { modelChannel, span, tableOf } from './make-table';
-import { numberAt } from '../../src/core/models/table/read';
-import { TABLE } from '../../src/core/models/table/model';
-import type { ModelDevice } from '../../src/core/models/device';
+import { numberAt } from '../../../src/core/models/table/read';
+import { TABLE } from '../../../src/core/models/table/model';
+import type { ModelDevice } from '../../../src/core/models/device';
 
 const T = 300.15;
 /** An EKV NMOS (references §2 "D" values, n = 1.3, no length modulation). */

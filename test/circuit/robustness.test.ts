@@ -7,7 +7,7 @@ import { analyzeSpec, measureMirror, solveAt, sweepVout } from '../../src/core/a
 import { buildMirror } from '../../src/core/analysis/solve';
 import { solveDc } from '../../src/core/circuit/newton';
 import type { MirrorReport, ResolvedSpec } from '../../src/core/types';
-import { ctxOf, makeSpec, netlist, sz, template } from './builders';
+import { ctxOf, makeSpec, netlist, sz, template } from '../analysis/builders';
 
 // No wall-clock limits here: a solve that hung would fail through the test timeout
 // (vitest.config.ts), and the solver's own iteration and time bounds are tested below with

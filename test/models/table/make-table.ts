@@ -2,8 +2,8 @@
  * Test-only: a characterisation table (design §11 CSV) written from a channel function on a
  * grid, so a table device can be checked against the equations it was made from.
  */
-import { evalDevice } from '../../src/core/models/evaluate';
-import type { DeviceParams, DeviceTable, ModelKind } from '../../src/core/types';
+import { evalDevice } from '../../../src/core/models/evaluate';
+import type { DeviceParams, DeviceTable, ModelKind } from '../../../src/core/types';
 
 export interface Grid { l: number[]; vgs: number[]; vds: number[]; vsb: number[]; temperature?: number[] }
 

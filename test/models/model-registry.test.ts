@@ -8,12 +8,12 @@ import { MODELS, MODEL_NAMES, WEAK_INVERSION_MODEL } from '../../src/core/models
 import type { DeviceModel } from '../../src/core/models/model';
 import { newChannelEval } from '../../src/core/models/core';
 import { prepareDevice, sizingContextOf } from '../../src/core/models/device';
-import { forModel } from '../tables/make-table';
+import { forModel } from './table/make-table';
 import { thermalVoltage } from '../../src/core/models/thermal';
 import { parseSpec } from '../../src/core/spec/index';
 import type { ModelKind } from '../../src/core/types';
 import { BASE, withText } from '../spec/helpers';
-import { RAZAVI_N } from './builders';
+import { RAZAVI_N } from '../analysis/builders';
 
 const D_SIZE = { w: 10e-6, l: 1e-6, m: 1 };          // W/L = 10 (references §2 "D")
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);

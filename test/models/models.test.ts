@@ -6,9 +6,9 @@ import { describe, expect, it } from 'vitest';
 import { evalDevice, gateDriveFor, inversionOf, prepareDevice, thermalVoltage } from '../../src/core/models/index';
 import { newChannelEval } from '../../src/core/models/core';
 import { MODEL_NAMES } from '../../src/core/models/registry';
-import { forModel } from '../tables/make-table';
+import { forModel } from './table/make-table';
 import { evalTerminal } from '../../src/core/models/terminal';
-import { RAZAVI_N, RAZAVI_P } from './builders';
+import { RAZAVI_N, RAZAVI_P } from '../analysis/builders';
 
 const D_SIZE = { w: 10e-6, l: 1e-6, m: 1 };          // W/L = 10 (references §2 "D")
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);

@@ -4,11 +4,11 @@
  * read off the table's gm/ID curve; Monte Carlo on table devices.
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../src/core/analyze';
-import { readTable } from '../../src/core/models/table/read';
-import type { MosDeviceReport } from '../../src/core/types';
+import { analyzeText } from '../../../src/core/analyze';
+import { readTable } from '../../../src/core/models/table/read';
+import type { MosDeviceReport } from '../../../src/core/types';
 import { modelChannel, span, tableCsv } from './make-table';
-import { marked } from '../spec/helpers';
+import { marked } from '../../spec/helpers';
 
 /** An EKV NMOS and PMOS of the example's invented process (examples/sensor-afe.bias.yaml). */
 const N = { kp: 280e-6, vt0: 0.45, lambda: 0.08, lref: 1e-6, gamma: 0.45, phi: 0.85, n: 1.3, tcv: -1e-3, bex: -1.5 };

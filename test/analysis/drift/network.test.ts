@@ -7,10 +7,10 @@
  * on the path (docs/references.md §13, the simple 1:1 mirror's 8kTγ·gm, computed).
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../src/core/analyze';
-import { BOLTZMANN } from '../../src/core/defaults';
-import type { FileReport, MirrorReport } from '../../src/core/types';
-import { textOf } from '../rules/helpers';
+import { analyzeText } from '../../../src/core/analyze';
+import { BOLTZMANN } from '../../../src/core/defaults';
+import type { FileReport, MirrorReport } from '../../../src/core/types';
+import { textOf } from '../../rules/helpers';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 

@@ -5,15 +5,15 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { resolveText } from '../../src/core/resolve';
-import { analyzeSpec } from '../../src/core/analysis/index';
-import type { DeviceParams, MirrorReport, ModelKind, ResolvedSpec } from '../../src/core/types';
-import { KINDS } from '../../src/core/kinds/index';
-import { mainCurrent } from '../../src/core/device-types';
-import { exampleTables } from '../example-tables';
+import { resolveText } from '../../../src/core/resolve';
+import { analyzeSpec } from '../../../src/core/analysis/index';
+import type { DeviceParams, MirrorReport, ModelKind, ResolvedSpec } from '../../../src/core/types';
+import { KINDS } from '../../../src/core/kinds/index';
+import { mainCurrent } from '../../../src/core/device-types';
+import { exampleTables } from '../../example-tables';
 import { modelChannel, span, tableOf, type Grid } from './make-table';
 
-const EXAMPLE = readFileSync(new URL('../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
+const EXAMPLE = readFileSync(new URL('../../../examples/sensor-afe.bias.yaml', import.meta.url), 'utf8');
 
 /** Cover the example's supplies (1.8 V) and its lengths (1, 2, 4, 12, 16, 20 µm) as grid points. */
 const GRID: Grid = { l: [1e-6, 2e-6, 4e-6, 12e-6, 16e-6, 20e-6], vgs: span(0, 1.8, 181), vds: span(0, 1.8, 73), vsb: span(0, 1, 21) };

@@ -11,7 +11,7 @@ import { measureMirror, sweepVout } from '../../src/core/analysis/index';
 import { buildMirror, outputCurrent, solveMirror } from '../../src/core/analysis/solve';
 import { SOLVER } from '../../src/core/defaults';
 import type { NetlistDevice, NetlistResistor } from '../../src/core/types';
-import { ctxOf, makeSpec, netlist, sz, template } from './builders';
+import { ctxOf, makeSpec, netlist, sz, template } from '../analysis/builders';
 
 const W = 10e-6, L = 1e-6, IIN = 100e-6, VOUT = 2;
 

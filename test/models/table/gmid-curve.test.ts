@@ -5,9 +5,9 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../src/core/analyze';
-import type { MosDeviceReport } from '../../src/core/types';
-import { EXAMPLE_PATH, exampleTables } from '../example-tables';
+import { analyzeText } from '../../../src/core/analyze';
+import type { MosDeviceReport } from '../../../src/core/types';
+import { EXAMPLE_PATH, exampleTables } from '../../example-tables';
 
 const report = analyzeText(readFileSync(EXAMPLE_PATH, 'utf8'), 'sensor-afe.bias.yaml', { curve: true, tables: exampleTables() });
 const resBias = report.mirrors.find((m) => m.name === 'res_bias')!;

@@ -5,8 +5,8 @@
  * (the check device DB of §12 without the Early effect, at 300.15 K).
  */
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../src/core/analyze';
-import type { MirrorReport } from '../../src/core/types';
+import { analyzeText } from '../../../src/core/analyze';
+import type { MirrorReport } from '../../../src/core/types';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 

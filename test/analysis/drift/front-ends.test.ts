@@ -6,13 +6,13 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { analyzeText } from '../../src/core/analyze';
-import { renderText } from '../../src/core/report/text';
-import { renderStaticReport } from '../../src/core/report/static-html';
-import { mirrorFigures } from '../../src/extension/present';
-import { summaryFigures } from '../../webview/view-model';
-import { driftPlotData, noisePlotData } from '../../webview/plot-data';
-import { EXAMPLE_PATH, exampleTables } from '../example-tables';
+import { analyzeText } from '../../../src/core/analyze';
+import { renderText } from '../../../src/core/report/text';
+import { renderStaticReport } from '../../../src/core/report/static-html';
+import { mirrorFigures } from '../../../src/extension/present';
+import { summaryFigures } from '../../../webview/view-model';
+import { driftPlotData, noisePlotData } from '../../../webview/plot-data';
+import { EXAMPLE_PATH, exampleTables } from '../../example-tables';
 
 describe('the example, every output, every front end', () => {
   const report = analyzeText(readFileSync(EXAMPLE_PATH, 'utf8'), 'sensor-afe.bias.yaml', { tables: exampleTables(), curve: true });

@@ -15,8 +15,8 @@ import { prepareDevice } from '../../src/core/models/device';
 import { MODEL_NAMES } from '../../src/core/models/registry';
 import { evalTerminal } from '../../src/core/models/terminal';
 import type { ModelKind, NetlistMirror, Polarity, TemplateMirror } from '../../src/core/types';
-import { makeSpec, netlist, RAZAVI_N, template } from './builders';
-import { forModel } from '../tables/make-table';
+import { makeSpec, netlist, RAZAVI_N, template } from '../analysis/builders';
+import { forModel } from '../models/table/make-table';
 
 const H = 1e-6;
 
