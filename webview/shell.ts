@@ -18,7 +18,7 @@ export interface ShellOptions {
  *  are constructed stylesheets (adoptedStyleSheets) and CSSOM properties, which style-src does
  *  not restrict; the toolkit's one probe <style> element carries the nonce (it reads it from the
  *  `csp-nonce` meta tag); files would come only from the webview's own resource origin. */
-export function panelCsp(o: Pick<ShellOptions, 'cspSource' | 'nonce'>): string {
+function panelCsp(o: Pick<ShellOptions, 'cspSource' | 'nonce'>): string {
   return [
     "default-src 'none'",
     `script-src 'nonce-${o.nonce}'`,

@@ -79,7 +79,7 @@ export function selectMirror(state: PanelState, name: string): PanelState {
 }
 
 /** The selection after a new report: the same name if it is still there, else the first. */
-export function keepSelection(report: FileReport, selected: string | undefined): string | undefined {
+function keepSelection(report: FileReport, selected: string | undefined): string | undefined {
   if (selected !== undefined && report.mirrors.some((m) => m.name === selected)) return selected;
   return report.mirrors[0]?.name;
 }

@@ -22,7 +22,7 @@ function startsWith(path: SpecPath, prefix: SpecPath): boolean {
 }
 
 /** ['mirrors', i] of a mirror report's path (an output of a bank sits below it). */
-export function mirrorRoot(path: SpecPath): SpecPath {
+function mirrorRoot(path: SpecPath): SpecPath {
   return path.slice(0, 2);
 }
 
@@ -44,13 +44,13 @@ export function fileFindings(report: FileReport): Finding[] {
   return report.findings.filter((f) => !report.mirrors.some((m) => concerns(m, f)));
 }
 
-export function worstSeverity(findings: readonly Finding[]): Severity | undefined {
+function worstSeverity(findings: readonly Finding[]): Severity | undefined {
   let worst: Severity | undefined;
   for (const f of findings) if (!worst || SEVERITY_RANK[f.severity] < SEVERITY_RANK[worst]) worst = f.severity;
   return worst;
 }
 
-export function countSeverities(findings: readonly Finding[]): Record<Severity, number> {
+function countSeverities(findings: readonly Finding[]): Record<Severity, number> {
   const n: Record<Severity, number> = { error: 0, warning: 0, info: 0 };
   for (const f of findings) n[f.severity]++;
   return n;
@@ -59,7 +59,7 @@ export function countSeverities(findings: readonly Finding[]): Record<Severity, 
 // ───────────────────────────── requirements ─────────────────────────────
 
 export type RequirementKey = keyof Requirements;
-export const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma', 'noise', 'tc', 'supplySensitivity'];
+const REQUIREMENT_KEYS: readonly RequirementKey[] = ['ratio', 'rout', 'compliance', 'sigma', 'noise', 'tc', 'supplySensitivity'];
 
 /** Words in a finding code that name a requirement (codes are kebab-case, e.g. `rout-low`). */
 const CODE_WORDS: Record<RequirementKey, readonly string[]> = {
@@ -438,7 +438,7 @@ export function monteCarloFigures(mirror: MirrorReport): FigureView[] {
 
 /** What the yield counts, in samples, so that 99.55 % cannot read as a pass: the per-sample
  *  checks (variation/montecarlo.ts) when all pass, else how many samples fail and why. */
-export function yieldDetail(mirror: MirrorReport): string {
+function yieldDetail(mirror: MirrorReport): string {
   const mc = mirror.mc!;
   const failing = mc.samples - Math.round(mc.yield * mc.samples);   // yield is pass/N: exact in samples
   if (failing === 0) {

@@ -68,7 +68,7 @@ export function runFix(c: FixCommand): number {
 
 /** Diff header names: `a/<path>` and `b/<path>` for a path relative to here (apply with
  *  `patch -p1`); an absolute path as given on both sides (`patch -p0`), never `a//tmp/…`. */
-export function diffLabels(name: string): [string, string] {
+function diffLabels(name: string): [string, string] {
   if (name === '<stdin>') return ['a/<stdin>', 'b/<stdin>'];
   if (/^([/\\]|[A-Za-z]:[/\\])/.test(name)) return [name, name];
   const rel = name.replace(/^(\.[/\\])+/, '');

@@ -13,7 +13,7 @@ import { readTables } from '../node/tables';
 type ReportCommand = Extract<Command, { cmd: 'report' }>;
 
 /** The webview bundle sits beside the CLI bundle in dist/. */
-export function webviewAssets(): { script: string } {
+function webviewAssets(): { script: string } {
   return { script: readFileSync(join(__dirname, 'webview.js'), 'utf8') };
 }
 

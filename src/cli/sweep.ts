@@ -52,7 +52,7 @@ export function runSweep(c: SweepCommand): number {
 
 /** FROM, FROM+STEP, … TO, each rounded to the decimals of FROM and STEP, so 0.1 + 5·0.1 is
  *  the 0.6 it stands for (not 0.6000000000000001) in the solve and in the CSV. */
-export function voutGrid(v: { from: number; to: number; step: number }): number[] {
+function voutGrid(v: { from: number; to: number; step: number }): number[] {
   const d = Math.max(decimals(v.from), decimals(v.step));
   const n = Math.floor((v.to - v.from) / v.step + 1e-9) + 1;
   return Array.from({ length: n }, (_, k) => Number((v.from + k * v.step).toFixed(d)));

@@ -51,6 +51,6 @@ function addDeviceAnchors(parsed: ParsedSpec, anchors: Anchor[], seen: Set<strin
   }
 }
 
-export function pathKey(path: SpecPath): string {
+function pathKey(path: SpecPath): string {
   return path.join('/');
 }

@@ -18,12 +18,6 @@ export function mirrorIndexOfPath(path: readonly (string | number)[]): number | 
   return path[0] === 'mirrors' && typeof path[1] === 'number' ? path[1] : undefined;
 }
 
-/** The mirror a finding path (['mirrors', i, …]) is in. */
-export function mirrorOfPath(spec: ResolvedSpec, path: readonly (string | number)[]): ResolvedMirror | undefined {
-  const index = mirrorIndexOfPath(path);
-  return index === undefined ? undefined : mirrorAt(spec, index);
-}
-
 /** The mirror's index in the file's list. */
 export function indexOf(mirror: ResolvedMirror): number {
   // Defensive: a malformed mirror (a defect upstream) still gets a report saying so.

@@ -38,9 +38,9 @@ interface Inflight {
  * file qpoint reads takes well under a second; the verification of fixes stops itself after 4 s)
  * and far below the 20 s the single worker used to be allowed while every other file waited.
  */
-export const ANALYSIS_BUDGET_MS = 6000;
+const ANALYSIS_BUDGET_MS = 6000;
 /** Fix-all re-analyses the file a few rounds: its budget is this many analyses. */
-export const FIX_ALL_BUDGET_FACTOR = 3;
+const FIX_ALL_BUDGET_FACTOR = 3;
 
 export interface WorkerAnalyzerOptions {
   /** The budget of one analysis (ms; fix-all gets FIX_ALL_BUDGET_FACTOR times it); 0: no limit
@@ -51,7 +51,7 @@ export interface WorkerAnalyzerOptions {
 }
 
 /** What the editor shows for a file whose analysis ran over its budget. */
-export function timeoutReport(file: string, budgetMs: number): FileReport {
+function timeoutReport(file: string, budgetMs: number): FileReport {
   return {
     file, parsed: true, mirrors: [], anchors: [],
     findings: [{

@@ -9,15 +9,15 @@ import { pathAt } from './specPath';
 import type { LinkSites } from '../core/network/link-sites';
 import { linkHoverAt } from './linkNav';
 
-export const DIAGNOSTIC_SOURCE = 'qpoint';
+const DIAGNOSTIC_SOURCE = 'qpoint';
 export const FIX_ALL_KIND = vscode.CodeActionKind.SourceFixAll.append('qpoint');
 const FINDINGS_DOC = 'https://github.com/qpoint-dev/qpoint/blob/main/docs/findings.md';
 
-export function findingDocUri(code: string): vscode.Uri {
+function findingDocUri(code: string): vscode.Uri {
   return vscode.Uri.parse(`${FINDINGS_DOC}#${code}`);
 }
 
-export function toPosition(p: Position): vscode.Position {
+function toPosition(p: Position): vscode.Position {
   return new vscode.Position(Math.max(p.line, 0), Math.max(p.character, 0));
 }
 
@@ -29,17 +29,13 @@ export function fromPosition(p: vscode.Position): Position {
   return { line: p.line, character: p.character };
 }
 
-export function fromRange(r: vscode.Range): Range {
-  return { start: fromPosition(r.start), end: fromPosition(r.end) };
-}
-
 const SEVERITY: Record<Severity, vscode.DiagnosticSeverity> = {
   error: vscode.DiagnosticSeverity.Error,
   warning: vscode.DiagnosticSeverity.Warning,
   info: vscode.DiagnosticSeverity.Information,
 };
 
-export function toDiagnostic(f: Finding, uri: vscode.Uri): vscode.Diagnostic {
+function toDiagnostic(f: Finding, uri: vscode.Uri): vscode.Diagnostic {
   const d = new vscode.Diagnostic(toRange(f.range), f.message, SEVERITY[f.severity]);
   d.source = DIAGNOSTIC_SOURCE;
   d.code = { value: f.code, target: findingDocUri(f.code) };
@@ -55,7 +51,7 @@ export function toDiagnostics(report: FileReport, uri: vscode.Uri): vscode.Diagn
 }
 
 /** The stable finding code of a qpoint diagnostic. */
-export function diagnosticCode(d: vscode.Diagnostic): string | undefined {
+function diagnosticCode(d: vscode.Diagnostic): string | undefined {
   if (d.source !== DIAGNOSTIC_SOURCE) return undefined;
   const c = d.code;
   if (typeof c === 'string') return c;
@@ -64,7 +60,7 @@ export function diagnosticCode(d: vscode.Diagnostic): string | undefined {
 }
 
 /** The finding behind a diagnostic: same code, same range. */
-export function findingFor(report: FileReport, d: vscode.Diagnostic): Finding | undefined {
+function findingFor(report: FileReport, d: vscode.Diagnostic): Finding | undefined {
   const code = diagnosticCode(d);
   if (!code) return undefined;
   return report.findings.find((f) => f.code === code && toRange(f.range).isEqual(d.range));
@@ -76,7 +72,7 @@ export function toWorkspaceEdit(uri: vscode.Uri, edits: TextEdit[]): vscode.Work
   return we;
 }
 
-export function toQuickFix(fix: Fix, uri: vscode.Uri, diagnostic: vscode.Diagnostic): vscode.CodeAction {
+function toQuickFix(fix: Fix, uri: vscode.Uri, diagnostic: vscode.Diagnostic): vscode.CodeAction {
   const a = new vscode.CodeAction(fix.title, vscode.CodeActionKind.QuickFix);
   a.diagnostics = [diagnostic];
   a.isPreferred = fix.preferred === true;

@@ -12,7 +12,7 @@ export type LinkSpot =
   | { kind: 'link'; link: LinkSite; part: 'mirror' | 'output' | 'whole' }
   | { kind: 'name'; name: NameSite };
 
-export function spotAt(sites: LinkSites, pos: Position): LinkSpot | undefined {
+function spotAt(sites: LinkSites, pos: Position): LinkSpot | undefined {
   for (const link of sites.links) {
     if (!contains(link.range, pos)) continue;
     const part = link.outputPart && contains(link.outputPart, pos) && !(link.mirrorPart && contains(link.mirrorPart, pos)) ? 'output'
@@ -33,7 +33,7 @@ function outputName(sites: LinkSites, mirror: number, output: number): NameSite 
 
 /** The name a `from` value resolves to: the output's `name` for `mirror.output` (or a bank of one
  *  output), else the mirror's `name`. */
-export function definitionOf(sites: LinkSites, link: LinkSite): NameSite | undefined {
+function definitionOf(sites: LinkSites, link: LinkSite): NameSite | undefined {
   const t = link.target;
   if (!t) return undefined;
   return (t.outputName !== undefined ? outputName(sites, t.mirror, t.output) : undefined) ?? mirrorName(sites, t.mirror);

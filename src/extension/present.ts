@@ -8,7 +8,6 @@ import type { DeviceType } from '../core/types';
 import type { Anchor, DeviceReport, FileReport, MirrorReport, NetworkReport, Position, Range, SpecPath } from '../core/types';
 import { CAUTION as CAUTION_TEXT, formatPercent, formatPlain, formatSI, formatSignedPercent } from '../core/text/format';
 
-export { formatPercent, formatPlain, formatSignedPercent };
 
 /** Output resistance, where an ideal source gives ∞. */
 const formatOhm = (r: number): string => formatSI(r, 'Ω', 3);
@@ -154,13 +153,13 @@ function pairTable(rows: [string, string][]): string {
 
 /** One title line, five table rows, the caution: short enough that the editor's hover shows it
  *  whole, below a diagnostic or two, without scrolling. */
-export function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
+function deviceHoverMarkdown(report: MirrorReport, d: DeviceReport): string {
   const head = `Operating point of **${escapeMd(d.name)}** · ${polarity(d.type)} · ${escapeMd(d.role)} of ${escapeMd(report.name)} · ${sizeLine(d)}${d.table ? ` · from table ${escapeMd(d.table)}` : ''}`;
   const note = report.converged ? '' : `\n\n**Did not converge**${report.solveNote ? `: ${escapeMd(report.solveNote)}` : ''} — the numbers are the last iterate.`;
   return `${head}${note}\n\n${pairTable(deviceFigures(d))}\n\n${CAUTION}`;
 }
 
-export function devicesHoverMarkdown(title: string, devices: DeviceReport[]): string {
+function devicesHoverMarkdown(title: string, devices: DeviceReport[]): string {
   const lines = [
     `**${escapeMd(title)}** · devices`,
     '',
@@ -214,7 +213,7 @@ function convergenceNote(reports: MirrorReport[]): string {
   return '\n\n' + bad.map((r) => `**${escapeMd(r.name)} did not converge**${r.solveNote ? `: ${escapeMd(r.solveNote)}` : ''}`).join('  \n');
 }
 
-export function outputHoverMarkdown(r: MirrorReport): string {
+function outputHoverMarkdown(r: MirrorReport): string {
   const rows = mirrorFigures(r);
   const table = ['| | |', '|:--|--:|', ...rows.map(([k, v]) => `| **${k}** | ${v} |`)].join('\n');
   return `**${escapeMd(r.name)}** · ${kindLine(r)} · Vout ${formatSI(r.vout, 'V')}${convergenceNote([r])}\n\n${table}\n\n${CAUTION}`;
@@ -313,7 +312,7 @@ export function linkHoverMarkdown(up: MirrorReport, fed: MirrorReport | undefine
 }
 
 /** One line above a network's root: what the network draws and its worst leaf. */
-export function networkLensTitle(n: NetworkReport, file: FileReport): string {
+function networkLensTitle(n: NetworkReport, file: FileReport): string {
   if (!n.converged) return `network ${n.root}: did not converge`;
   const { vdd, vss } = n.supplyCurrent;
   const supply = Math.abs(vdd - vss) <= 1e-9 * Math.max(Math.abs(vdd), Math.abs(vss))

@@ -3,7 +3,7 @@ import * as vscode from 'vscode';
 import { DEFAULTS, MC_SAMPLES } from '../core/defaults';
 import { MC_SEED_DEFAULT } from './monteCarloText';
 
-export const SECTION = 'qpoint';
+const SECTION = 'qpoint';
 
 export interface Settings {
   /** ms between the last keystroke and the re-analysis. */

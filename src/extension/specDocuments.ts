@@ -2,7 +2,7 @@
  *  language mode (a user may have mapped the files to YAML or JSON). */
 import * as vscode from 'vscode';
 
-export const LANGUAGE_ID = 'qpoint-bias';
+const LANGUAGE_ID = 'qpoint-bias';
 export const SPEC_GLOBS = ['**/*.bias.yaml', '**/*.bias.yml', '**/*.bias.json'] as const;
 const SPEC_NAME = /\.bias\.(ya?ml|json)$/i;
 /** Read-only views of a file (history, diffs, logs) get no diagnostics of their own. */
@@ -13,7 +13,7 @@ export const SPEC_SELECTOR: vscode.DocumentSelector = [
   ...SPEC_GLOBS.map((pattern) => ({ pattern })),
 ];
 
-export function isSpecName(path: string): boolean {
+function isSpecName(path: string): boolean {
   return SPEC_NAME.test(path);
 }
 

@@ -12,7 +12,7 @@ import { tableFiles, type TableTexts } from '../core/spec/index';
 import { reasonOf } from '../cli/io';
 
 /** Bytes of one table (design §14: up to 20 MB are accepted). */
-export const TABLE_LIMIT_BYTES = 20 * 1024 * 1024;
+const TABLE_LIMIT_BYTES = 20 * 1024 * 1024;
 
 /** Every table `text` names, read relative to `specFile` (`-`: the working folder). With a
  *  `cache`, a file whose size and modification time are unchanged is not read again (the editor

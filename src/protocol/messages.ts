@@ -96,19 +96,19 @@ const BIPOLAR_REGIONS: readonly string[] = ['cutoff', 'saturation', 'forward-act
 const INVERSIONS: readonly string[] = ['weak', 'moderate', 'strong'];
 const ANCHOR_KINDS: readonly string[] = ['mirror', 'output', 'device'];
 
-export function isPosition(v: unknown): v is Position {
+function isPosition(v: unknown): v is Position {
   return isRecord(v) && isCount(v.line) && isCount(v.character);
 }
 
-export function isRange(v: unknown): v is Range {
+function isRange(v: unknown): v is Range {
   return isRecord(v) && isPosition(v.start) && isPosition(v.end);
 }
 
-export function isSpecPath(v: unknown): v is SpecPath {
+function isSpecPath(v: unknown): v is SpecPath {
   return Array.isArray(v) && v.every((s) => isString(s) || isCount(s));
 }
 
-export function isFinding(v: unknown): v is Finding {
+function isFinding(v: unknown): v is Finding {
   return isRecord(v) && oneOf(v.severity, SEVERITIES) && isString(v.code) && isString(v.message) &&
     isSpecPath(v.path) && isRange(v.range) &&
     optional(v.related, (r) => arrayOf(r, (x) => isRecord(x) && isSpecPath(x.path) && isRange(x.range) && isString(x.message))) &&
@@ -116,7 +116,7 @@ export function isFinding(v: unknown): v is Finding {
       arrayOf(f.edits, (e) => isRecord(e) && isRange(e.range) && isString(e.newText))));
 }
 
-export function isAnchor(v: unknown): v is Anchor {
+function isAnchor(v: unknown): v is Anchor {
   return isRecord(v) && oneOf(v.kind, ANCHOR_KINDS) && isSpecPath(v.path) && isRange(v.range) &&
     isString(v.report) && optional(v.device, isString);
 }
@@ -126,7 +126,7 @@ const DEVICE_NUMBERS = ['w', 'l', 'm', 'id', 'vgs', 'vds', 'vbs', 'vth', 'vov', 
 
 const BIPOLAR_NUMBERS = ['area', 'm', 'ic', 'ib', 'vbe', 'vce', 'vcesat', 'margin', 'gm', 'rpi', 'ro', 'gds', 'beta'] as const;
 
-export function isDeviceReport(v: unknown): v is DeviceReport {
+function isDeviceReport(v: unknown): v is DeviceReport {
   if (isRecord(v) && oneOf(v.type, BIPOLAR_TYPES)) {
     return isString(v.name) && isString(v.role) && oneOf(v.region, BIPOLAR_REGIONS) && BIPOLAR_NUMBERS.every((k) => isNumber(v[k]));
   }
@@ -135,17 +135,17 @@ export function isDeviceReport(v: unknown): v is DeviceReport {
     DEVICE_NUMBERS.every((k) => isNumber(v[k]));
 }
 
-export function isCurvePoint(v: unknown): v is CurvePoint {
+function isCurvePoint(v: unknown): v is CurvePoint {
   return isRecord(v) && isNumber(v.vout) && isNumber(v.iout) && isNumber(v.rout) && isBoolean(v.converged);
 }
 
-export function isCornerResult(v: unknown): v is CornerResult {
+function isCornerResult(v: unknown): v is CornerResult {
   return isRecord(v) && isString(v.name) && isBoolean(v.converged) &&
     ['iin', 'iout', 'ratio', 'error', 'rout', 'compliance'].every((k) => isNumber(v[k])) &&
     optional(v.sigma, isNumber) && optional(v.minMargin, isNumber) && optional(v.minMarginDevice, isString);
 }
 
-export function isMonteCarloResult(v: unknown): v is MonteCarloResult {
+function isMonteCarloResult(v: unknown): v is MonteCarloResult {
   return isRecord(v) && ['samples', 'seed', 'mean', 'sigma', 'min', 'max', 'yield'].every((k) => isNumber(v[k])) &&
     optional(v.failed, isNumber) &&
     optional(v.histogram, (h) => isRecord(h) && arrayOf(h.edges, isNumber) && arrayOf(h.counts, isNumber) &&
@@ -190,7 +190,7 @@ export function isMirrorReport(v: unknown): v is MirrorReport {
     optional(v.require, isRequirements);
 }
 
-export function isNetworkReport(v: unknown): v is NetworkReport {
+function isNetworkReport(v: unknown): v is NetworkReport {
   return isRecord(v) && isString(v.root) && isCount(v.rootIndex) && arrayOf(v.members, isString) &&
     isBoolean(v.converged) && isRecord(v.supplyCurrent) && isNumber(v.supplyCurrent.vdd) && isNumber(v.supplyCurrent.vss) &&
     isNumber(v.power) && arrayOf(v.leaves, isString) && optional(v.worstLeaf, isString);

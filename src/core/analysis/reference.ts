@@ -14,7 +14,7 @@ import { loopGain } from './loop-gain';
 import { zeroCurrentState } from './zero-state';
 
 /** Whether the mirror is self-biased: a reference kind, or a netlist without `input`. */
-export function isSelfBiased(m: ResolvedMirror): boolean {
+function isSelfBiased(m: ResolvedMirror): boolean {
   return isTemplateKind(m.kind) ? KINDS[m.kind].loop !== undefined : m.kind === 'netlist' && m.input === undefined;
 }
 

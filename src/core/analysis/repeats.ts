@@ -40,7 +40,7 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
  * without its mirrors (each its own unit) and networks (`linkedInputs`), and the settings the
  * analysis was asked for. Two mirrors with one circuit and one context have one report.
  */
-export function solveContext(spec: ResolvedSpec, settings: object = {}): string {
+function solveContext(spec: ResolvedSpec, settings: object = {}): string {
   return digest(canonicalJson([{ ...spec, mirrors: undefined, networks: undefined }, settings]));
 }
 

@@ -50,7 +50,7 @@ export function knownVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasCho
   return hit && hit.spec === spec ? hit.choice : undefined;
 }
 
-export function resolveVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
+function resolveVbias(spec: ResolvedSpec, mirror: TemplateMirror): VbiasChoice {
   const known = knownVbias(spec, mirror);
   if (known) return known;
   const target = { spec, mirror, outputIndex: 0 };

@@ -14,7 +14,7 @@ import { resistanceAt } from './resistance';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { PerturbationLike } from './templates';
 
-export function railName(node: string): string {
+function railName(node: string): string {
   const n = node.trim();
   const lower = n.toLowerCase();
   if (lower === 'vss' || lower === 'gnd' || n === '0') return 'vss';

@@ -324,7 +324,7 @@ function drive(x: DeviceElement | undefined, i: number, vsb: number, vds: number
 }
 
 /** A diode-connected device (VDS = VGS): two fixed-point steps on the length modulation. */
-export function diodeDrive(x: DeviceElement | undefined, i: number, vsb: number): number {
+function diodeDrive(x: DeviceElement | undefined, i: number, vsb: number): number {
   let v = drive(x, i, vsb, 0);
   v = drive(x, i, vsb, v);
   return drive(x, i, vsb, v);

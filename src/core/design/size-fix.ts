@@ -24,7 +24,7 @@ interface Token { path: SpecPath; whole: boolean; uses: Use[] }
 const same = (a: number, b: number): boolean => Math.abs(a - b) <= 1e-9 * Math.max(Math.abs(a), Math.abs(b));
 
 /** A length as a designer writes it: `6.85u`, `350n`. */
-export function lengthText(v: number): string {
+function lengthText(v: number): string {
   const [scale, prefix] = v >= 1e-6 ? [1e-6, 'u'] : [1e-9, 'n'];
   return `${Number((v / scale).toPrecision(6))}${prefix}`;
 }

@@ -66,11 +66,6 @@ export function familyOf(type: DeviceType): DeviceFamily {
   return isBipolarType(type) ? 'bipolar' : 'mosfet';
 }
 
-/** Whether a kind may be built from devices of this type. */
-export function kindTakes(kind: TemplateKind, type: DeviceType): boolean {
-  return KINDS[kind].families.includes(familyOf(type));
-}
-
 /** The kind's textbook Rout for the family of `type`, if it has one. */
 export function routFormula(kind: TemplateKind, type: DeviceType): RoutFormula | undefined {
   const k = KINDS[kind];

@@ -10,8 +10,8 @@ import { networkTrees } from './model';
 import { layoutTree, type LaidTree, type TextMeasure } from './layout';
 import { drawNetworkTree } from './draw';
 
-export { networkTree, networkTrees, mirrorGroups, type NetworkTree, type TreeEdge, type TreeNode } from './model';
-export { layoutTree, graphOf, edgeLines, estimateText, TREE_TEXT, type LaidTree, type TextMeasure } from './layout';
+export { networkTrees, mirrorGroups, type NetworkTree, type TreeEdge, type TreeNode } from './model';
+export { layoutTree, graphOf, estimateText, TREE_TEXT, type LaidTree, type TextMeasure } from './layout';
 export { drawNetworkTree, NETWORK_TREE_CSS } from './draw';
 
 /** Every network of the report laid out (a tree ELK cannot place is left out). */

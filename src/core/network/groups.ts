@@ -15,10 +15,6 @@ export interface NetworkGroup {
   parent: Map<number, { mirror: number; output: number }>;
 }
 
-export function isLinked(m: TemplateMirror): boolean {
-  return m.input.kind === 'link' && m.input.mirror >= 0;
-}
-
 /** Groups in file order of their roots; a mirror neither linked nor feeding belongs to none. */
 export function networkGroups(spec: ResolvedSpec): NetworkGroup[] {
   const templates = new Map<number, TemplateMirror>();

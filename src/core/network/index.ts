@@ -49,21 +49,6 @@ export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
   return withMirrors(spec, changed);
 }
 
-/** Mirror `i` of `read` (read again after an edit) given the solved link values of `solved`:
- *  the current that arrives at its input and the voltage of each output it feeds with. */
-export function carryLinks(read: ResolvedSpec, solved: ResolvedSpec, i: number): ResolvedSpec {
-  const m = mirrorAt(read, i), was = mirrorAt(solved, i);
-  if (!m || !was || m.kind === 'netlist' || was.kind === 'netlist') return { ...read, ...(solved.networks ? { networks: solved.networks } : {}) };
-  const input = m.input.kind === 'link' && was.input.kind === 'link' ? { ...m.input, i: was.input.i } : m.input;
-  const outputs = m.outputs.map((o, j) => {
-    const w = was.outputs[j];
-    return o.feeds !== undefined && w && w.feeds !== undefined ? { ...o, output: { ...o.output, v: w.output.v } } : o;
-  });
-  const out = withMirrors(read, new Map([[i, { ...m, input, outputs }]]));
-  if (solved.networks) out.networks = solved.networks;
-  return out;
-}
-
 /** Solve every group of `spec` and hand on its members at the solution; `spec.networks` then
  *  describes each group. A spec without links comes back unchanged. `chainSigma: false` leaves
  *  out the leaves' chain sigmas (one adjoint solve per leaf), which a fix's re-check and a corner

@@ -52,7 +52,7 @@ export function linkPathOf(data: unknown, index: number): string | undefined {
 
 /** Every path a link may write, for did-you-means and completion: `m` for a single-output
  *  mirror, `m.o` for each output of a bank. */
-export function linkPaths(targets: readonly LinkTarget[]): string[] {
+function linkPaths(targets: readonly LinkTarget[]): string[] {
   const out: string[] = [];
   for (const t of targets) {
     if (t.kind === 'netlist') continue;

@@ -24,7 +24,7 @@ export function rootStartCurrent(spec: ResolvedSpec, root: TemplateMirror): numb
 
 /** A, the loop current of reference `root` solved as a mirror of its own; undefined when it
  *  does not converge. */
-export function referenceAlone(spec: ResolvedSpec, root: TemplateMirror): number | undefined {
+function referenceAlone(spec: ResolvedSpec, root: TemplateMirror): number | undefined {
   try {
     const t = { spec, mirror: root, outputIndex: 0 };
     const mc = buildMirror(t, nominalVout(t), root.vbias ?? vbiasFor(t)?.vbias);

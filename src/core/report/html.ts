@@ -83,7 +83,7 @@ export function parseEmbeddedReport(text: string): unknown {
 
 const HTML_ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
 
-export function escapeHtml(text: string): string {
+function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => HTML_ENTITIES[c] ?? c);
 }
 

@@ -20,7 +20,7 @@ export interface SarifTool {
 /** SARIF `level` per severity: SARIF has no "info", its "note" is the same idea. */
 const LEVEL: Record<Severity, 'error' | 'warning' | 'note'> = { error: 'error', warning: 'warning', info: 'note' };
 
-export const SARIF_SCHEMA_URI = 'https://json.schemastore.org/sarif-2.1.0.json';
+const SARIF_SCHEMA_URI = 'https://json.schemastore.org/sarif-2.1.0.json';
 
 export function toSarif(files: { file: string; findings: Finding[]; networks?: NetworkReport[] }[], tool: SarifTool): object {
   const known = new Map<string, RuleInfo>();

@@ -33,7 +33,7 @@ export function* betaHelperPlans(rc: RuleContext, site: Site): Generator<Candida
 }
 
 /** Emitter area of `device` for iout/iin = target: a proportional step, then secant steps. */
-export function areaForRatio(rc: RuleContext, site: Site, device: DeviceRef, target: number): number | undefined {
+function areaForRatio(rc: RuleContext, site: Site, device: DeviceRef, target: number): number | undefined {
   const size = sizeOf(rc.spec, device);
   if (!size || !(target > 0)) return undefined;
   const f = (area: number): number => ratioAt(resized(rc.spec, site.mirrorIndex, (r, s) => (sameRef(r, device) ? { ...s, area } : undefined)), site.mirrorIndex, site.outputIndex) / target - 1;

@@ -24,8 +24,7 @@ import { checkStartup } from './checks/startup';
 import { checkTableRange } from './checks/table-range';
 import { indexOf } from '../mirror-at';
 
-export { DESIGN_RULES, RULES_BY_CODE, type RuleInfo } from './catalog';
-export { fixAll } from './fix-all';
+export { type RuleInfo } from './catalog';
 
 /** Upper bound on verified candidates per finding (each costs a parse and a solve). */
 const MAX_VERIFICATIONS = 6;
@@ -66,7 +65,7 @@ interface Budget {
 }
 
 /** Every check over every report, without fixes. Never throws: a failing check yields nothing. */
-export function detect(rc: RuleContext): Draft[] {
+function detect(rc: RuleContext): Draft[] {
   const drafts: Draft[] = [];
   const keys = new Set<string>();
   const inversionSeen = new Set<string>();

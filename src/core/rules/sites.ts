@@ -92,7 +92,7 @@ export function sizeToken(parsed: ParsedSpec, spec: ResolvedSpec, ref: DeviceRef
 }
 
 /** True when a token belongs to this device alone (not the shared `size:`). */
-export function isDeviceLevel(token: SizeToken): boolean {
+function isDeviceLevel(token: SizeToken): boolean {
   return token.path[2] === 'devices' || token.path[2] === 'outputs';
 }
 

@@ -43,7 +43,7 @@ export interface Baseline {
 }
 
 /** Every output of one mirror of a spec. */
-export function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[] | undefined {
+function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[] | undefined {
   const m = mirrorAt(spec, mirrorIndex);
   if (!m) return undefined;
   const n = m.kind === 'netlist' ? 1 : m.outputs.length;

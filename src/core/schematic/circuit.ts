@@ -43,7 +43,7 @@ export interface CircuitNet {
 export interface Circuit { parts: CircuitPart[]; nets: Map<string, CircuitNet> }
 
 /** A device's polarity as a symbol: MOSFETs by type, bipolar devices (npn/pnp) as they come. */
-export function symbolOf(d: { type: string }): SymbolKind {
+function symbolOf(d: { type: string }): SymbolKind {
   const t = d.type;
   if (t === 'npn' || t === 'pnp' || t === 'pmos') return t;
   return 'nmos';

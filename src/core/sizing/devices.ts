@@ -77,13 +77,13 @@ export function scaled(spec: ResolvedSpec, mirrorIndex: number, k: { w?: number;
   return resized(spec, mirrorIndex, (ref, s) => (only && !only(ref) ? undefined : { ...s, w: s.w * (k.w ?? 1), l: s.l * (k.l ?? 1) }));
 }
 
-export function contextOf(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): MirrorContext | undefined {
+function contextOf(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): MirrorContext | undefined {
   const mirror = mirrorAt(spec, mirrorIndex);
   return mirror ? { spec, mirror, outputIndex } : undefined;
 }
 
 /** Nominal output voltage of an output. */
-export function nominalVout(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): number {
+function nominalVout(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): number {
   const m = mirrorAt(spec, mirrorIndex);
   if (!m) return NaN;
   return m.kind === 'netlist' ? m.output.v : m.outputs[outputIndex]?.output.v ?? NaN;

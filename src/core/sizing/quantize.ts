@@ -9,7 +9,7 @@
 export type RoundDirection = 'up' | 'down' | 'nearest';
 
 /** Significant digits of a computed size without a grid. */
-export const SIZE_DIGITS = 3;
+const SIZE_DIGITS = 3;
 
 /** Round `value` to a multiple of `grid` (m), never below one grid step. */
 export function snapToGrid(value: number, grid: number, direction: RoundDirection): number {
@@ -46,6 +46,6 @@ export function quantizeSize(value: number, grid: number | undefined, direction:
 }
 
 /** Drop binary noise (3.4000000000000003e-6 → 3.4e-6) without moving the value by more than 1e-12 relative. */
-export function cleanDecimal(value: number): number {
+function cleanDecimal(value: number): number {
   return Number(value.toPrecision(12));
 }

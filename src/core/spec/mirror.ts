@@ -18,7 +18,7 @@ const NETLIST_KEYS = ['currents', 'voltages', 'resistors', 'pair'];
 /** Keys of the self-biased reference kinds only. */
 const REFERENCE_KEYS = ['resistor', 'k', 'startup'];
 
-export function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
+function readInput(scope: ValueScope, raw: unknown, path: SpecPath): InputSource | undefined {
   if (raw === undefined) {
     missing(scope.sink, path.slice(0, -1), 'input', ' (an input current, e.g. `10u`, { resistor: R } or { from: mirror.output })');
     return undefined;

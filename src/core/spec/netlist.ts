@@ -20,7 +20,7 @@ const NODE = /^[A-Za-z_][A-Za-z0-9_]*$/;
 const TEMPLATE_KEYS = ['size', 'vbias', 'outputs', 'design', 'resistor', 'k'];
 
 /** Rail name for a node, or undefined for a free node. */
-export function railOf(node: string): 'vdd' | 'vss' | undefined {
+function railOf(node: string): 'vdd' | 'vss' | undefined {
   const n = node.toLowerCase();
   if (n === 'vdd') return 'vdd';
   if (n === 'vss' || n === 'gnd' || n === '0') return 'vss';

@@ -77,7 +77,7 @@ export function resolveParams(raw: unknown, sink: FindingSink): ValueScope {
  * already reported are skipped over along the path (path-compressed pointers), so many
  * references back into one long loop cost no more than the loop.
  */
-export function dependencyOrder(names: Iterable<string>, deps: ReadonlyMap<string, readonly string[]>,
+function dependencyOrder(names: Iterable<string>, deps: ReadonlyMap<string, readonly string[]>,
   cycle: (name: string, loop: string) => void): { order: string[]; inCycle: Set<string> } {
   const order: string[] = [];
   const done = new Set<string>();

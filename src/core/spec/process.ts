@@ -34,7 +34,7 @@ export const DEVICE_PARAM_RULES: Record<NumericParam, ParamRule> = {
 export const DEVICE_PARAM_KEYS = Object.keys(DEVICE_PARAM_RULES) as NumericParam[];
 
 /** Quantity and sign rule of each bipolar parameter (design §10). */
-export const BIPOLAR_PARAM_RULES: Record<keyof BipolarParams, ParamRule> = {
+const BIPOLAR_PARAM_RULES: Record<keyof BipolarParams, ParamRule> = {
   is: { q: 'current', opts: { positive: true } },
   bf: { q: 'plain', opts: { positive: true } },
   br: { q: 'plain', opts: { positive: true } },
@@ -47,7 +47,7 @@ export const BIPOLAR_PARAM_RULES: Record<keyof BipolarParams, ParamRule> = {
   abf: { q: 'ratio', opts: { nonNegative: true } },
 };
 
-export const BIPOLAR_PARAM_KEYS = Object.keys(BIPOLAR_PARAM_RULES) as (keyof BipolarParams)[];
+const BIPOLAR_PARAM_KEYS = Object.keys(BIPOLAR_PARAM_RULES) as (keyof BipolarParams)[];
 
 function readBipolar(scope: ValueScope, raw: unknown, path: SpecPath): BipolarParams | undefined {
   const d = readMap(scope.sink, raw, path);

@@ -8,7 +8,6 @@
  * (scripts/gen-schema-validator.mjs): compiling the schema at start-up cost ~120 ms per CLI run.
  */
 import type { ErrorObject, ValidateFunction } from 'ajv';
-import schemaJson from '../../../schema/qpoint-bias.schema.json';
 import generatedValidator from './schema-validator.generated';
 import type { SpecPath } from '../types';
 import type { FindingSink } from './findings';
@@ -17,8 +16,6 @@ import { askIf, suggestion } from './suggest';
 import { nonFiniteMessage, typeName } from './values';
 
 const validator = generatedValidator as unknown as ValidateFunction;
-
-export const SPEC_SCHEMA: unknown = schemaJson;
 
 function toPath(pointer: string, data: unknown): SpecPath {
   const path: SpecPath = [];

@@ -10,7 +10,7 @@ let rows = [new Int32Array(16), new Int32Array(16), new Int32Array(16)];
  * table stops as soon as no alignment can end within `max` (each row's minimum, with the row
  * before it for a swap, bounds every later row).
  */
-export function editDistance(a: string, b: string, max = Infinity): number {
+function editDistance(a: string, b: string, max = Infinity): number {
   const m = a.length;
   const n = b.length;
   if (Math.abs(m - n) > max) return Math.abs(m - n);
@@ -38,10 +38,10 @@ export function editDistance(a: string, b: string, max = Infinity): number {
 
 /** Candidates compared at most: a spec of 40 000 params must not cost 40 000 comparisons for each
  *  unknown name (a designer's spec has tens). */
-export const MAX_SUGGEST_CANDIDATES = 500;
+const MAX_SUGGEST_CANDIDATES = 500;
 
 /** The closest candidate within a length-dependent distance, or undefined. */
-export function closest(word: string, candidates: Iterable<string>): string | undefined {
+function closest(word: string, candidates: Iterable<string>): string | undefined {
   const w = word.toLowerCase();
   const limit = w.length <= 3 ? 1 : w.length <= 6 ? 2 : 3;
   let best: string | undefined;
@@ -59,11 +59,6 @@ export function closest(word: string, candidates: Iterable<string>): string | un
     }
   }
   return best;
-}
-
-/** " — did you mean `x`?" or "". */
-export function didYouMean(word: string, candidates: Iterable<string>): string {
-  return askIf(suggestion(word, candidates));
 }
 
 /** The words of a suggestion already found ("; did you mean `x`?"), or "" without one. */

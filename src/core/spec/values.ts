@@ -45,7 +45,7 @@ export function typeName(v: unknown): string {
 }
 
 /** Field name for messages: the last string segment of the path. */
-export function fieldName(path: SpecPath): string {
+function fieldName(path: SpecPath): string {
   for (let i = path.length - 1; i >= 0; i--) if (typeof path[i] === 'string') return String(path[i]);
   return 'value';
 }
@@ -149,7 +149,7 @@ const EXAMPLES: Record<Quantity, string> = {
   frequency: '1k', noiseDensity: '2p', plain: '4',
 };
 
-export function example(q: Quantity): string {
+function example(q: Quantity): string {
   return EXAMPLES[q];
 }
 

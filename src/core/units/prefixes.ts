@@ -12,7 +12,7 @@ export interface SiPrefix {
 }
 
 export const MICRO_SIGN = '\u00B5';
-export const GREEK_MU = '\u03BC';
+const GREEK_MU = '\u03BC';
 
 export const SI_PREFIXES: readonly SiPrefix[] = [
   { symbol: 'Q', exponent: 30, name: 'quetta' },

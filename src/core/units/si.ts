@@ -22,7 +22,7 @@ export type Quantity = 'current' | 'voltage' | 'length' | 'resistance' | 'conduc
   | 'plain';
 
 /** How a quantity is named in messages: noun and the unit it takes. */
-export const QUANTITY_NAMES: Record<Quantity, { noun: string; unit: string }> = {
+const QUANTITY_NAMES: Record<Quantity, { noun: string; unit: string }> = {
   current: { noun: 'a current', unit: 'A' },
   voltage: { noun: 'a voltage', unit: 'V' },
   length: { noun: 'a length', unit: 'm' },

@@ -14,7 +14,7 @@ import {
 } from '../rules/sites';
 
 /** "ss (125 °C, vdd 1.62 V)". */
-export function cornerLabel(c: CornerSpec | undefined, name: string): string {
+function cornerLabel(c: CornerSpec | undefined, name: string): string {
   if (!c) return name;
   const parts: string[] = [];
   if (c.temperature !== undefined) {

@@ -31,7 +31,7 @@ function cornerSpec(spec: ResolvedSpec, corner: CornerSpec): ResolvedSpec {
 }
 
 
-export function applyDelta(value: number, delta: ParamDelta): number {
+function applyDelta(value: number, delta: ParamDelta): number {
   return 'add' in delta ? value + delta.add : value * (1 + delta.scale);
 }
 

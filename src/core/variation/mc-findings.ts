@@ -10,10 +10,10 @@ import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { nameRange, requireRange, siteOf } from '../rules/sites';
 
 /** Relative disagreement between Monte Carlo and linearized sigma that counts as nonlinear. */
-export const MC_NONLINEAR = 0.15;
+const MC_NONLINEAR = 0.15;
 
 /** Yield below which `mc-yield` warns: the two-sided 3σ fraction, 99.73 % (common practice). */
-export const MC_YIELD_TARGET = 0.9973;
+const MC_YIELD_TARGET = 0.9973;
 
 export function monteCarloFindings(parsed: ParsedSpec, spec: ResolvedSpec, reports: MirrorReport[]): Finding[] {
   const out: Finding[] = [];

@@ -39,7 +39,7 @@ export interface MonteCarloOptions {
 }
 
 /** Samples between progress calls: rare enough to cost nothing next to 1 024 Newton solves. */
-export const PROGRESS_EVERY = 1024;
+const PROGRESS_EVERY = 1024;
 
 /** A perturbed device: its nominal mismatch parameters and their 1σ. */
 interface Perturbed { k: number; base: [number, number]; sVt: number; sBeta: number }

@@ -25,7 +25,7 @@ const pt: SlicePoint = { id: 0, gm: 0, gds: 0, dvsb: 0 };
 
 /** V, the VDS at which design targets are read: half the table's largest vds (where gm/ID
  *  tables are commonly read, mid-supply). */
-export function referenceVds(s: TableSlice): number {
+function referenceVds(s: TableSlice): number {
   return 0.5 * s.vds.x[s.vds.x.length - 1]!;
 }
 

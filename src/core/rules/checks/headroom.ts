@@ -16,7 +16,7 @@ import { widenPlans } from '../plans';
 import { code, formatSI } from '../../text/format';
 
 /** Voltage left between the input node and the opposite rail, and the stack height. */
-export function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: DeviceReport[]): { room: number; stack: number } | undefined {
+function inputRoom(spec: ResolvedSpec, kind: TemplateKind, devices: DeviceReport[]): { room: number; stack: number } | undefined {
   let stack = 0;
   for (const role of KINDS[kind].inputStack) {
     const d = devices.find((x) => x.role === role && !x.name.includes('.'));

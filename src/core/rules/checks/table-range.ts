@@ -14,7 +14,7 @@ const EDGE = 1e-9;
 
 /** The first axis of `t` that `d` (at temperature `tK`) lies outside, in words. A report's
  *  voltages are device-frame magnitudes (its `vbs` holds VSB). */
-export function outsideTable(t: DeviceTable, d: MosDeviceReport, tK: number): { axis: string; why: string } | undefined {
+function outsideTable(t: DeviceTable, d: MosDeviceReport, tK: number): { axis: string; why: string } | undefined {
   const checks: [string, number, readonly number[], string][] = [
     ['vgs', d.vgs, t.vgs, 'V'], ['vds', Math.abs(d.vds), t.vds, 'V'], ['vsb', d.vbs, t.vsb, 'V'], ['l', d.l, t.l, 'm'],
   ];
