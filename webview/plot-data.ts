@@ -7,6 +7,7 @@
 import { isBipolarReport, sinksCurrent } from '../src/core/device-types';
 import type { DeviceReport, MirrorReport } from '../src/core/types';
 import { ZERO_CELSIUS } from '../src/core/defaults';
+import { NOISE_PART_FLOOR, visibleNoiseParts } from '../src/core/report/noise-parts';
 import { axisScale } from './format';
 
 export interface Scaled { factor: number; unit: string }
@@ -132,7 +133,8 @@ export function noisePlotData(m: MirrorReport): NoisePlotData | undefined {
   const sp = m.noise?.spectrum;
   if (!sp || sp.f.length < 2 || !sp.total.every((v) => v > 0 && Number.isFinite(v))) return undefined;
   const scale = axisScale(sp.total, 'A/√Hz');
-  const parts = Object.entries(sp.parts).map(([name, ys]) => ({ name, y: ys.map((v) => (v > 0 ? v / scale.factor : null)) }));
+  const floor = Math.min(...sp.total) * NOISE_PART_FLOOR;
+  const parts = visibleNoiseParts(sp).map(([name, ys]) => ({ name, y: ys.map((v) => (v >= floor ? v / scale.factor : null)) }));
   const d: NoisePlotData = { x: sp.f, total: sp.total.map((v) => v / scale.factor), parts, scale, f: m.noise!.f };
   if (m.noise!.corner !== undefined) d.corner = m.noise!.corner;
   return d;

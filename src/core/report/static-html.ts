@@ -8,6 +8,7 @@
  */
 import type { BipolarDeviceReport, DeviceReport, FileReport, Finding, MirrorReport, MosDeviceReport } from '../types';
 import { ZERO_CELSIUS } from '../defaults';
+import { NOISE_PART_FLOOR, visibleNoiseParts } from './noise-parts';
 import { isBipolarReport, isBipolarSplit, sinksCurrent } from '../device-types';
 import { formatPercent, formatSI, formatSignedPercent } from '../text/format';
 import { histogramSvg, linePlotSvg } from './svg';
@@ -174,7 +175,7 @@ function driftPlots(m: MirrorReport): string[] {
     plots.push(linePlotSvg({
       title: `Noise density (A/√Hz) versus frequency — ${m.name}`, xUnit: 'Hz', yUnit: '', logX: true, logY: true,
       points: sp.f.map((f, k) => ({ x: f, y: sp.total[k]!, ok: true })),
-      extra: Object.entries(sp.parts).map(([label, ys]) => ({ label, points: sp.f.map((f, k) => ({ x: f, y: ys[k]!, ok: true })) })),
+      extra: visibleNoiseParts(sp).map(([label, ys]) => ({ label, points: sp.f.map((f, k) => ({ x: f, y: ys[k]!, ok: ys[k]! >= Math.min(...sp.total) * NOISE_PART_FLOOR })) })),
       marker: corner !== undefined ? { x: corner, label: 'flicker corner' } : undefined,
     }));
   }
