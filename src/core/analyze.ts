@@ -66,7 +66,9 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
   try {
     // Design targets (`size: auto`) are sized before anything is solved, so every later step
     // sees concrete devices; DeviceReport.sized marks what qpoint computed.
-    const resolved = resolveText(text, file, { limitsDefaults: opts.limitsDefaults, ...(opts.tables ? { tables: opts.tables } : {}) });
+    const resolved = resolveText(text, file, {
+      limitsDefaults: opts.limitsDefaults, ...(opts.tables ? { tables: opts.tables } : {}), ...(hooks.cache ? { parses: { cache: hooks.cache.parses, slot: 'spec' } } : {}),
+    });
     parsed = resolved.parsed;
     const spec = parsed.spec;
     if (!spec) {
@@ -79,7 +81,7 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units }),
+      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units, parses: hooks.cache?.parses }),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {

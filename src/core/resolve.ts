@@ -6,6 +6,7 @@
  */
 import type { Limits, ResolvedSpec } from './types';
 import { parseSpec, type ParsedSpec, type TableTexts } from './spec/index';
+import type { ParseCache } from './spec/incremental';
 import { applyDesignTargets, type SizedDevice } from './design/auto-size';
 import { provisionalLinks, solveNetworks } from './network/index';
 
@@ -16,6 +17,9 @@ export interface ResolveOptions {
   limits?: Limits;
   /** Characterisation-table texts by the name the spec writes (design §11). */
   tables?: TableTexts;
+  /** This file's earlier parses (spec/incremental.ts) and which of its texts this is: an edit
+   *  inside one mirror is read alone. The result is the same without. */
+  parses?: { cache: ParseCache; slot: string };
 }
 
 export interface ResolvedText {
@@ -26,7 +30,8 @@ export interface ResolvedText {
 }
 
 export function resolveText(text: string, file?: string, opts: ResolveOptions = {}): ResolvedText {
-  const parsed = parseSpec(text, file, opts.tables ? { tables: opts.tables } : {});
+  const parseOpts = opts.tables ? { tables: opts.tables } : {};
+  const parsed = opts.parses ? opts.parses.cache.parse(opts.parses.slot, text, file, parseOpts) : parseSpec(text, file, parseOpts);
   if (!parsed.spec) return { parsed, sized: [] };
   // Linked inputs start from their intended currents; once sized, each linked group is solved
   // as one circuit and its mirrors handed on at that solution (network/).

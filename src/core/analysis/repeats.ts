@@ -19,6 +19,7 @@
  * store holds one file's worth.
  */
 import { isBank } from '../circuit/templates';
+import { clockedSolveCount } from '../circuit/newton';
 import { canonicalJson, digest } from '../canonical';
 import { indexOf, mirrorAt } from '../mirror-at';
 import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
@@ -120,14 +121,17 @@ export class RepeatedMirrors {
     const key = this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
     const known = this.solved.get(key);
     if (!known) {
+      const clocked = clockedSolveCount();
       const r = measure();
       if (!(this.solved instanceof SolvedUnits)) {
         this.solved.set(key, r);
         return r;
       }
-      // Kept for later analyses only when its clock could not matter (`clockFree`). The stored
+      // Kept for later analyses only when its clock could not matter: no solve of it could be
+      // ended by a clock (every template circuit: a failure to converge is then as
+      // reproducible as a success), or it converged by plain Newton (`clockFree`). The stored
       // report is never handed out itself: the next analysis copies it.
-      if (clockFree(r)) this.solved.set(key, r);
+      if (clockedSolveCount() === clocked || clockFree(r)) this.solved.set(key, r);
       return withIdentity({ ...r }, reportIdentity(ctx));
     }
     return withIdentity({ ...known }, reportIdentity(ctx));

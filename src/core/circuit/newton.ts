@@ -144,10 +144,23 @@ function newton(c: Circuit, ws: Workspace, alpha: number, gmin: number, budget: 
   return { ok: false, iterations: maxIterations, residual: Infinity, reason: 'iteration cap' };
 }
 
+/** Solves so far that a clock could end (a large circuit, or a clock injected). */
+let clockedSolves = 0;
+
+/**
+ * How many solves so far could have been ended by a clock: work between two readings that did
+ * not move this count depended on its equations alone, converged or not (analysis/repeats.ts
+ * keeps such reports for the next analysis).
+ */
+export function clockedSolveCount(): number {
+  return clockedSolves;
+}
+
 /** Solve from the free-node voltages already in ws.v (the initial guess). */
 export function solveDc(c: Circuit, ws: Workspace, opts: DcOptions = {}): DcResult {
   const maxIterations = opts.maxIterations ?? SOLVER.maxIterations;
   const clock = opts.clock ?? (TOTAL_ITERATIONS_FACTOR * maxIterations * workOf(c) <= CLOCKLESS_WORK ? NEVER : Date.now);
+  if (clock !== NEVER) clockedSolves++;
   const budgetMs = opts.budgetMs ?? SOLVER.timeBudgetMs;
   const budget = new Budget(clock, budgetMs, maxIterations, workOf(c));
   const r = solveWithGmin(c, ws, opts, budget);

@@ -12,6 +12,7 @@ import { isAutoSized, siteOf, type Site } from './sites';
 import { MirrorFragments, sharesValues } from '../spec/fragment';
 import { accepts, recheck, recheckContext, type Baseline, type Recheck, type Rechecks, type RecheckStore } from './verify';
 import type { SolvedUnits } from '../analysis/repeats';
+import type { ParseCache } from '../spec/incremental';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
@@ -45,6 +46,8 @@ export interface RulesOptions {
   rechecks?: Rechecks;
   /** Solved reports kept from earlier analyses (a process fix re-solves every mirror). */
   units?: SolvedUnits;
+  /** Earlier parses of this file's texts (a whole-file re-check reads only what changed). */
+  parses?: ParseCache;
 }
 
 const DEFAULT_RECHECKS = 120;
@@ -137,7 +140,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
       left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
       widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m)))),
     };
-    if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units };
+    if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses };
     return drafts.map((d) => finish(rc, d, baseline, memo, budget));
   } catch {
     return [];

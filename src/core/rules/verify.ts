@@ -24,6 +24,7 @@ import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
 import { analyzeSpec } from '../analysis/index';
 import { clockFree, linkedInputs, type SolvedUnits } from '../analysis/repeats';
+import type { ParseCache } from '../spec/incremental';
 import { canonicalJson, digest } from '../canonical';
 import { applyDesignTargets } from '../design/auto-size';
 import { measure } from '../sizing/devices';
@@ -70,6 +71,7 @@ export interface RecheckStore {
   /** recheckContext of the file being analysed. */
   context: string;
   units?: SolvedUnits;
+  parses?: ParseCache;
 }
 
 /** Local re-check results kept across analyses of one file; entries one analysis did not use are
@@ -140,7 +142,7 @@ export function recheck(rc: RuleContext, plan: FixPlan, baseline: Baseline, dete
     const solved = { clockFree: true };
     const local = !kept && rc.fragments && plan.scope === 'mirror' ? recheckMirror(rc, plan, text, detect, solved) : WHOLE;
     if (key !== undefined && !kept && solved.clockFree) store!.rechecks.set(key, local === WHOLE ? 'whole' : local);
-    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect, store?.units) : local;
+    return local === WHOLE ? recheckWhole(rc, plan, text, baseline, detect, store) : local;
   } catch {
     return undefined;
   }
@@ -176,10 +178,13 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
   return d ? { untrusted: d.name, ic: d.ic } : undefined;
 }
 
-function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, units?: SolvedUnits): Recheck {
+function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, store?: RecheckStore): Recheck {
+  const units = store?.units;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
-  // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
-  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) });
+  // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them). The
+  // edited text of the last analysis with the same fix differs by the designer's edit since.
+  const parses = store?.parses ? { parses: { cache: store.parses, slot: `fix ${plan.scope === 'spec' ? '' : plan.mirrorIndex} ${JSON.stringify(plan.edits)}` } } : {};
+  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}), ...parses });
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;

@@ -62,12 +62,28 @@ function plain(doc: Document): boolean {
 export function sharesValues(parsed: ParsedSpec): boolean {
   const doc = parsed.source instanceof YamlSourceMap ? parsed.source.doc : undefined;
   if (!doc) return false;
+  // Item spans were found: the tree is plain, with no alias.
+  if (parsed.source instanceof YamlSourceMap && spansOf.get(parsed.source)) return false;
   let found = false;
   visit(doc, { Alias() { found = true; return visit.BREAK; } });
   return found;
 }
 
 const FIRST_LINE_PREFIX = /^ *(?:- +)?$/;
+
+/** Item spans by source map (a tree and its text, which nothing changes while its map is in use),
+ *  found once however many analyses' steps ask; null: the spec is not plain. */
+const spansOf = new WeakMap<YamlSourceMap, (ItemSpan | undefined)[] | null>();
+
+/** Where an item of `mirrors` sits in the text, or undefined when its lines do not read alone. */
+function spanOf(item: unknown, text: string, lines: LineIndex): ItemSpan | undefined {
+  if (!isMap(item) || !item.range) return undefined;
+  const content = item.range[0];
+  const lineStart = lines.lineStart(content);
+  if (!FIRST_LINE_PREFIX.test(text.slice(lineStart, content))) return undefined;
+  const end = lines.lineEnd(Math.max(content, item.range[1] - 1));
+  return { lineStart, content, end, line: lines.position(lineStart).line };
+}
 
 export class MirrorFragments {
   /** Item spans, found on first use (a clean file never needs them); null: the spec is not plain. */
@@ -91,8 +107,29 @@ export class MirrorFragments {
   }
 
   private get spans(): (ItemSpan | undefined)[] {
-    if (this.found === undefined) this.found = this.find();
+    if (this.found === undefined) {
+      const known = spansOf.get(this.src);
+      this.found = known !== undefined ? known : this.find();
+      spansOf.set(this.src, this.found);
+    }
     return this.found ?? [];
+  }
+
+  /**
+   * The spans of `to`, the tree of an edit inside item `index` of this spec spliced from this one
+   * (spec/incremental.ts): that item found again, the items after it moved by the edit's
+   * characters and lines. Nothing else changed, so the spec is as plain as this one.
+   */
+  carry(to: YamlSourceMap, index: number, item: unknown, delta: number, lineDelta: number): void {
+    const spans = this.spans;
+    if (this.found === null) return;
+    const out = spans.slice();
+    out[index] = spanOf(item, to.lines.text, to.lines);
+    for (let j = index + 1; j < out.length; j++) {
+      const s = out[j];
+      if (s) out[j] = { lineStart: s.lineStart + delta, content: s.content + delta, end: s.end + delta, line: s.line + lineDelta };
+    }
+    spansOf.set(to, out);
   }
 
   private find(): (ItemSpan | undefined)[] | null {
@@ -107,14 +144,23 @@ export class MirrorFragments {
     if (!isSeq(seq) || seq.flow) return null;
     const text = this.original;
     const lines = this.lines;
-    return seq.items.map((item): ItemSpan | undefined => {
-      if (!isMap(item) || !item.range) return undefined;
-      const content = item.range[0];
-      const lineStart = lines.lineStart(content);
-      if (!FIRST_LINE_PREFIX.test(text.slice(lineStart, content))) return undefined;
-      const end = lines.lineEnd(Math.max(content, item.range[1] - 1));
-      return { lineStart, content, end, line: lines.position(lineStart).line };
-    });
+    return seq.items.map((item) => spanOf(item, text, lines));
+  }
+
+  /** The mirror whose item (from its first key to its last line's end) holds offsets [start, end] of the original text. */
+  itemHolding(start: number, end: number): number | undefined {
+    const spans = this.spans;
+    let lo = 0;
+    let hi = spans.length - 1;
+    while (lo <= hi) {
+      const mid = (lo + hi) >> 1;
+      const sp = spans[mid];
+      if (!sp) return undefined;
+      if (sp.end < start) lo = mid + 1;
+      else if (sp.content > start) hi = mid - 1;
+      else return end <= sp.end ? mid : undefined;
+    }
+    return undefined;
   }
 
   /** True when every edit lies inside mirror `index`'s item (from its first key to its last line's end). */
