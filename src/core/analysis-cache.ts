@@ -16,35 +16,40 @@
 import { SolvedUnits } from './analysis/repeats';
 import { Rechecks } from './rules/verify';
 import { ParseCache } from './spec/incremental';
+import { MirrorFindings } from './rules/by-mirror';
 
 export class AnalysisCache {
   readonly units = new SolvedUnits();
   readonly rechecks = new Rechecks();
   readonly parses = new ParseCache();
+  readonly findings = new MirrorFindings();
 
   /** Starts an analysis: what it does not use is dropped by `end`. */
   begin(): void {
     this.units.begin();
     this.rechecks.begin();
     this.parses.begin();
+    this.findings.begin();
   }
 
   end(): void {
     this.units.sweep();
     this.rechecks.sweep();
     this.parses.sweep();
+    this.findings.sweep();
   }
 
   /** What the last analysis solved and re-checked, and what it read back. */
-  get stats(): { unitsSolved: number; unitsReused: number; rechecksRun: number; rechecksReused: number; textsRead: number; textsSpliced: number } {
+  get stats(): { unitsSolved: number; unitsReused: number; rechecksRun: number; rechecksReused: number; textsRead: number; textsSpliced: number; mirrorsChecked: number; mirrorsReused: number } {
     return {
       unitsSolved: this.units.solvedNow, unitsReused: this.units.reusedNow, rechecksRun: this.rechecks.runNow, rechecksReused: this.rechecks.reusedNow,
       textsRead: this.parses.wholeNow, textsSpliced: this.parses.splicedNow,
+      mirrorsChecked: this.findings.foundNow, mirrorsReused: this.findings.reusedNow,
     };
   }
 
   /** Entries held: solved reports, re-checks. */
-  get size(): { units: number; rechecks: number; parses: number } {
-    return { units: this.units.size, rechecks: this.rechecks.size, parses: this.parses.size };
+  get size(): { units: number; rechecks: number; parses: number; findings: number } {
+    return { units: this.units.size, rechecks: this.rechecks.size, parses: this.parses.size, findings: this.findings.size };
   }
 }

@@ -81,7 +81,7 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
       ...withSuggestionFixes(parsed, file),
       // A partial spec (a mirror with errors left out) gets findings but no fixes yet: a fix is
       // verified against the whole file, which has errors until the designer fixes them.
-      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units, parses: hooks.cache?.parses }),
+      ...runRules(parsed, mirrors, parsed.withheld || opts.ruleFixes === false ? { maxRechecks: 0 } : { rechecks: hooks.cache?.rechecks, units: hooks.cache?.units, parses: hooks.cache?.parses, ...(hooks.cache ? { byMirror: { store: hooks.cache.findings, settings: settingsOf(opts) } } : {}) }),
       ...variationFindings(parsed, spec, mirrors, resolved.sized, file),
     ];
     if (net.networks.length > 0 || spec.limits.supplyCurrent !== undefined) {
@@ -113,6 +113,11 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
     });
     return { file, parsed: parsed?.parsed ?? false, mirrors: [], findings: sortFindings(findings), anchors: [] };
   }
+}
+
+/** The options a report's figures depend on (the tables are in the spec's process, by digest). */
+function settingsOf(opts: AnalyzeOptions): string {
+  return JSON.stringify({ ...opts, tables: undefined });
 }
 
 /** Where each mirror set aside for its errors is written, for the editor's lens on it. */

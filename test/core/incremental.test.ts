@@ -166,9 +166,12 @@ describe('incremental analysis', () => {
     expect(after.unitsReused).toBeGreaterThanOrEqual(29 - failed);
     expect(after.rechecksReused).toBeGreaterThan(0);
     expect(after.rechecksRun).toBeLessThan(first.rechecksRun);
-    // The spec is read again from the last parse: only the edited mirror's lines.
+    // The spec is read again from the last parse: only the edited mirror's lines; the other
+    // mirrors' findings and fixes are read back.
     expect(after.textsSpliced).toBeGreaterThanOrEqual(1);
     expect(after.textsRead).toBe(0);
+    expect(after.mirrorsChecked).toBe(1);
+    expect(after.mirrorsReused).toBe(29);
   });
 
   it('equals a fresh analysis after random edits of the example (a bias network, references, a table flavour) and of its table', () => {

@@ -13,6 +13,7 @@ import { MirrorFragments, sharesValues } from '../spec/fragment';
 import { accepts, recheck, recheckContext, type Baseline, type Recheck, type Rechecks, type RecheckStore } from './verify';
 import type { SolvedUnits } from '../analysis/repeats';
 import type { ParseCache } from '../spec/incremental';
+import { findingsByMirror, RecordingMemo, type MirrorFindings } from './by-mirror';
 import { checkConvergence } from './checks/convergence';
 import { checkSaturation } from './checks/saturation';
 import { checkRatio } from './checks/ratio';
@@ -48,6 +49,8 @@ export interface RulesOptions {
   units?: SolvedUnits;
   /** Earlier parses of this file's texts (a whole-file re-check reads only what changed). */
   parses?: ParseCache;
+  /** Each mirror's findings kept from earlier analyses of this file, and the analysis settings. */
+  byMirror?: { store: MirrorFindings; settings: string };
 }
 
 const DEFAULT_RECHECKS = 120;
@@ -128,13 +131,27 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
     const json = parsed.json ?? /^\s*[{[]/.test(parsed.text);
     const rc: RuleContext = { parsed, spec, reports, quick: false, json, file: json ? 'spec.bias.json' : 'spec.bias.yaml' };
     if (opts.reread !== 'whole-file') rc.fragments = MirrorFragments.of(parsed);
+    const now = opts.now ?? Date.now;
+    if (opts.byMirror && opts.rechecks && rc.fragments) {
+      const memo = new RecordingMemo();
+      const budget: Budget = {
+        left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
+        widen: () => sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m))),
+        store: { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses, found: (q, d) => opts.byMirror!.store.found(q, d) },
+      };
+      const found = findingsByMirror(rc, {
+        store: opts.byMirror.store, recheckStore: budget.store!, settings: opts.byMirror.settings, detect, memo, budget,
+        specErrors: parsed.findings.filter((f) => f.severity === 'error').length,
+        finish: (d, baseline) => finish(rc, d, baseline, memo, budget),
+      });
+      if (found) return found;
+    }
     const drafts = detect(rc);
     const baseline: Baseline = {
       specErrors: parsed.findings.filter((f) => f.severity === 'error').length,
       errors: new Set(drafts.filter((d) => d.finding.severity === 'error').map((d) => d.key)),
     };
     const memo = new Map<string, Recheck>();
-    const now = opts.now ?? Date.now;
     let widen: boolean | undefined;  // found on the first fix built: a clean file never pays for the walk
     const budget: Budget = {
       left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,

@@ -17,7 +17,7 @@ import type { ParsedSpec } from '../spec/index';
 import { resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
-import { SplicedSourceMap } from '../spec/fragment';
+import { MirrorFragments, SplicedSourceMap } from '../spec/fragment';
 import { provisionalLinks, solveNetworks } from '../network/index';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
@@ -72,6 +72,8 @@ export interface RecheckStore {
   context: string;
   units?: SolvedUnits;
   parses?: ParseCache;
+  /** The quick detect of a whole-file re-check, mirror by mirror from earlier analyses (rules/by-mirror.ts). */
+  found?: (rc: RuleContext, detect: Detect) => Found[] | undefined;
 }
 
 /** Local re-check results kept across analyses of one file; entries one analysis did not use are
@@ -83,6 +85,8 @@ export class Rechecks {
   /** Of the last analysis: local re-checks run, and read back. */
   runNow = 0;
   reusedNow = 0;
+  /** While set, every key read or written (rules/by-mirror.ts keeps them with a mirror's findings). */
+  log?: string[];
 
   begin(): void {
     this.generation++;
@@ -92,12 +96,13 @@ export class Rechecks {
 
   get(key: string): { found: Recheck | 'whole' } | undefined {
     const e = this.known.get(key);
-    if (e) { e.used = this.generation; this.reusedNow++; }
+    if (e) { e.used = this.generation; this.reusedNow++; this.log?.push(key); }
     return e;
   }
 
   set(key: string, found: Recheck | 'whole'): void {
     this.runNow++;
+    this.log?.push(key);
     this.known.set(key, { found, used: this.generation });
   }
 
@@ -178,7 +183,15 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
   return d ? { untrusted: d.name, ic: d.ic } : undefined;
 }
 
+/** Mirror-scoped re-checks read on the whole text so far: their result reads every mirror (rules/by-mirror.ts keeps no findings that asked for one). */
+let wholeForMirror = 0;
+
+export function wholeMirrorRechecks(): number {
+  return wholeForMirror;
+}
+
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, store?: RecheckStore): Recheck {
+  if (plan.scope === 'mirror') wholeForMirror++;
   const units = store?.units;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them). The
@@ -192,7 +205,14 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   // A process edit (the EKV fix) solves every mirror in the new process: kept by solve unit too.
   const reports = plan.scope === 'spec' ? analyzeSpec(spec, { units }) : reportsOfMirror(spec, plan.mirrorIndex);
   if (!reports) return undefined;
-  return trusted(rc, spec, reports) ?? found(detect({ ...rc, parsed, spec, reports, quick: true }));
+  const quick: RuleContext = { ...rc, parsed, spec, reports, quick: true };
+  if (store?.found && plan.scope === 'spec') {
+    const untrusted = trusted(rc, spec, reports);
+    if (untrusted) return untrusted;
+    quick.fragments = MirrorFragments.of(parsed);
+    return store.found(quick, detect) ?? found(detect(quick));
+  }
+  return trusted(rc, spec, reports) ?? found(detect(quick));
 }
 
 const WHOLE = Symbol('re-read the whole text');
