@@ -13,9 +13,11 @@
 import { DRIFT } from '../defaults';
 import { assemble } from '../circuit/assemble';
 import type { Circuit } from '../circuit/circuit';
-import type { Workspace } from '../circuit/workspace';
+import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import { circuitAt } from '../circuit/temperature';
+import { Workspace } from '../circuit/workspace';
 import type { ResolvedSpec, TemperaturePoint } from '../types';
-import { probeCurrent, type OutputProbe, type Probed } from './probe';
+import { heldProbe, probeCurrent, type OutputProbe, type Probed } from './probe';
 import { buildMirror, outputCurrent, solveMirror, type MirrorTarget } from './solve';
 
 /** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no held vdd node or iout is 0. */
@@ -38,6 +40,31 @@ export function atTemperature(spec: ResolvedSpec, t: number): ResolvedSpec {
 
 /** The same circuit built at another temperature, and its output read the same way. */
 export interface Rebuilt { circuit: Circuit; ws: Workspace; probe: OutputProbe }
+
+/** What the measured mirror's circuit is built from, so that it can be built at another
+ *  temperature when it cannot be taken there. */
+export interface MirrorBuild { t: MirrorTarget; vout: number; vbias: number | undefined }
+
+function noGuess(): never {
+  throw new Error('a circuit taken to another temperature has no starting guess of its own');
+}
+
+/** The measured mirror's circuit `mc` at temperature temp (K), with a workspace of its own: its
+ *  elements taken there (circuit/temperature.ts), the same as a circuit built there but without
+ *  its starting guess (a solve of it starts warm); undefined where it must be built. */
+function takenTo(mc: MirrorCircuit, spec: ResolvedSpec, temp: number): MirrorCircuit | undefined {
+  const c = circuitAt(mc.circuit, { model: spec.process.model, temperature: temp, tnom: spec.process.tnom });
+  return c && { ...mc, circuit: c, ws: new Workspace(c), guess: noGuess, iin: noGuess };
+}
+
+/** The measured output's circuit at temperature temp (K), read at its held node: what
+ *  temperatureCoefficient's `rebuild` asks of a mirror. */
+export function mirrorRebuild(mc: MirrorCircuit, b: MirrorBuild): (temp: number) => Rebuilt {
+  return (temp) => {
+    const other = takenTo(mc, b.t.spec, temp) ?? buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias);
+    return { circuit: other.circuit, ws: other.ws, probe: heldProbe(other.circuit) };
+  };
+}
 
 /** ppm/K, (1/iout)·∂iout/∂T at the operating temperature T (K); `rebuild` builds the circuit at
  *  another temperature (undefined when it comes out different). */
@@ -62,9 +89,12 @@ export function temperatureCoefficient(
 }
 
 /** Iout re-solved at DRIFT.trangePoints temperatures across [tmin, tmax], each solve starting
- *  from the previous one (the nominal point first). */
+ *  from the previous one (the nominal point first). Each point is the nominal circuit `mc` taken
+ *  to its temperature and solved from there; only when that warm solve fails is the circuit
+ *  built at the temperature and solved as a fresh circuit is (warm, then from its own guess), so
+ *  every point is what a build per temperature gives, without the builds. */
 export function driftCurve(
-  t: MirrorTarget, range: [number, number], vout: number, vbias: number | undefined, warm: Float64Array,
+  mc: MirrorCircuit, b: MirrorBuild, range: [number, number], warm: Float64Array,
 ): TemperaturePoint[] {
   const [lo, hi] = range;
   const n = DRIFT.trangePoints;
@@ -72,10 +102,14 @@ export function driftCurve(
   let start = warm;
   for (let k = 0; k < n; k++) {
     const temp = lo + ((hi - lo) * k) / (n - 1);
-    const mc = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vbias);
-    const r = solveMirror(mc, start);
-    points.push({ t: temp, iout: r.converged ? outputCurrent(mc) : NaN, converged: r.converged });
-    if (r.converged) start = mc.ws.v.slice();
+    let at = takenTo(mc, b.t.spec, temp);
+    let r = at && solveMirror(at, start, { plainOnly: true });
+    if (!at || !r!.converged) {
+      at = buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias);
+      r = solveMirror(at, start);
+    }
+    points.push({ t: temp, iout: r!.converged ? outputCurrent(at) : NaN, converged: r!.converged });
+    if (r!.converged) start = at.ws.v.slice();
   }
   return points;
 }
