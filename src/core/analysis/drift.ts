@@ -18,7 +18,7 @@ import { circuitAt } from '../circuit/temperature';
 import { Workspace } from '../circuit/workspace';
 import type { ResolvedSpec, TemperaturePoint } from '../types';
 import { heldProbe, probeCurrent, type OutputProbe, type Probed } from './probe';
-import { buildMirror, outputCurrent, solveMirror, type MirrorTarget } from './solve';
+import { buildMirror, outputCurrent, solveMirror, type MirrorSolve, type MirrorTarget } from './solve';
 
 /** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no held vdd node or iout is 0. */
 export function supplySensitivity(c: Circuit, ws: Workspace, pr: Probed, iout: number, vdd: number): number | undefined {
@@ -49,12 +49,29 @@ function noGuess(): never {
   throw new Error('a circuit taken to another temperature has no starting guess of its own');
 }
 
-/** The measured mirror's circuit `mc` at temperature temp (K), with a workspace of its own: its
- *  elements taken there (circuit/temperature.ts), the same as a circuit built there but without
- *  its starting guess (a solve of it starts warm); undefined where it must be built. */
+/** `mc` at temperature temp (K), with a workspace of its own: its elements taken there
+ *  (circuit/temperature.ts), the same as a circuit built there but without a starting guess (a
+ *  solve of it starts warm); undefined where it must be built. Only for a circuit built without
+ *  a Monte Carlo perturbation. */
 function takenTo(mc: MirrorCircuit, spec: ResolvedSpec, temp: number): MirrorCircuit | undefined {
   const c = circuitAt(mc.circuit, { model: spec.process.model, temperature: temp, tnom: spec.process.tnom });
   return c && { ...mc, circuit: c, ws: new Workspace(c), guess: noGuess, iin: noGuess };
+}
+
+/** A circuit (or what holds one, such as a network's joint circuit) at temperature temp (K),
+ *  solved from `start`: `from` taken there and solved warm; only when that fails (or it cannot
+ *  be taken there) is `build()` solved as a fresh circuit is (warm, then from its own guess).
+ *  Either way the outcome is that of `solveMirror(build(), start)`, without the build. */
+function solvedAtTemperature<J extends { mc: MirrorCircuit }>(
+  from: J, spec: ResolvedSpec, temp: number, start: Float64Array, build: () => J,
+): { at: J; r: MirrorSolve } {
+  const mc = takenTo(from.mc, spec, temp);
+  if (mc) {
+    const r = solveMirror(mc, start, { plainOnly: true });
+    if (r.converged) return { at: { ...from, mc }, r };
+  }
+  const at = build();
+  return { at, r: solveMirror(at.mc, start) };
 }
 
 /** The measured output's circuit at temperature temp (K), read at its held node: what
@@ -89,10 +106,8 @@ export function temperatureCoefficient(
 }
 
 /** Iout re-solved at DRIFT.trangePoints temperatures across [tmin, tmax], each solve starting
- *  from the previous one (the nominal point first). Each point is the nominal circuit `mc` taken
- *  to its temperature and solved from there; only when that warm solve fails is the circuit
- *  built at the temperature and solved as a fresh circuit is (warm, then from its own guess), so
- *  every point is what a build per temperature gives, without the builds. */
+ *  from the previous one (the nominal point first); each point is the nominal circuit `mc` taken
+ *  to its temperature (solvedAtTemperature), what a build per temperature gives. */
 export function driftCurve(
   mc: MirrorCircuit, b: MirrorBuild, range: [number, number], warm: Float64Array,
 ): TemperaturePoint[] {
@@ -102,14 +117,10 @@ export function driftCurve(
   let start = warm;
   for (let k = 0; k < n; k++) {
     const temp = lo + ((hi - lo) * k) / (n - 1);
-    let at = takenTo(mc, b.t.spec, temp);
-    let r = at && solveMirror(at, start, { plainOnly: true });
-    if (!at || !r!.converged) {
-      at = buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias);
-      r = solveMirror(at, start);
-    }
-    points.push({ t: temp, iout: r!.converged ? outputCurrent(at) : NaN, converged: r!.converged });
-    if (r!.converged) start = at.ws.v.slice();
+    const build = (): { mc: MirrorCircuit } => ({ mc: buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias) });
+    const { at, r } = solvedAtTemperature({ mc }, b.t.spec, temp, start, build);
+    points.push({ t: temp, iout: r.converged ? outputCurrent(at.mc) : NaN, converged: r.converged });
+    if (r.converged) start = at.mc.ws.v.slice();
   }
   return points;
 }
