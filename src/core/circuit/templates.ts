@@ -14,10 +14,12 @@ import type { BipolarType, DeviceSize, MirrorOutput, Polarity, ResolvedSpec, Tem
 import { assertNever } from '../assert-never';
 import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
+import { widlarRatio } from '../kinds/widlar';
+import { thermalVoltage } from '../models/thermal';
 import { CircuitBuilder, type MosDescription } from './circuit';
 import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
-import { resistanceAt } from './resistance';
+import { resistanceOf, resistorLaw } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
@@ -43,6 +45,15 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   if (!sa || !sb) return undefined;
   const r = sizeWeight(sb) / sizeWeight(sa);
   return Number.isFinite(r) ? r : undefined;
+}
+
+/** The ratio output j is designed to give at input current `iin` and temperature T (K): the
+ *  pair's geometric ratio, or for a degenerated pair (the Widlar) the Widlar law's with ideal
+ *  devices — its emitter resistor sets the current by design. Undefined where it cannot be said. */
+export function designRatio(m: TemplateMirror, j: number, iin: number, temperature: number): number | undefined {
+  const n = idealRatio(m, j);
+  if (n === undefined || KINDS[m.kind].degeneration === undefined) return n;
+  return m.degeneration === undefined ? undefined : widlarRatio(n, iin, m.degeneration, thermalVoltage(temperature));
 }
 
 /** How one template mirror is wired into a builder that may hold other mirrors too (a linked
@@ -196,8 +207,9 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current(`${ns}input`, 'vdd', inputNode, i); else b.current(`${ns}input`, inputNode, 'vss', i);
   } else {
-    const ohms = resistanceAt(m.input.r, m.input, spec.process);
-    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms) : b.resistor(`${ns}input`, inputNode, 'vss', ohms);
+    const law = resistorLaw(m.input.r, m.input, spec.process);
+    const ohms = resistanceOf(law, spec.process.temperature);
+    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms, law) : b.resistor(`${ns}input`, inputNode, 'vss', ohms, law);
   }
   return out;
 }
