@@ -23,7 +23,7 @@
  * check), and require.sigma, which is a property of the population that `sigma` itself answers.
  */
 import type { MirrorContext } from '../analysis/index';
-import { idealRatio } from '../circuit/templates';
+import { designRatio } from '../circuit/templates';
 import { vbiasFor } from '../analysis/vbias';
 import { deviceSigmas, mismatchBase, setMismatch } from '../circuit/elements/device';
 import { buildMirror, nominalVout, outputCurrent, solveMirror, worstMargin } from '../analysis/solve';
@@ -67,7 +67,7 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
   const vNom = c.fixedV[c.outNode]!;
 
   const req = requirementsOf(ctx);
-  const target = req.ratio ?? ratioIdealOf(ctx, mc);
+  const target = req.ratio ?? ratioIdealOf(ctx, mc, mc.iin());
   const errLimit = ctx.spec.limits.tolerance;
   // A linked output's node is the fed mirror's input, solved: it cannot be held elsewhere.
   const vComp = joint?.linked ? undefined : req.compliance;
@@ -146,8 +146,10 @@ function requirementsOf(ctx: MirrorContext): Requirements {
   return (m.outputs[ctx.outputIndex] ?? m.outputs[0])?.require ?? {};
 }
 
-function ratioIdealOf(ctx: MirrorContext, mc: ReturnType<typeof buildMirror>): number | undefined {
-  if (ctx.mirror.kind !== 'netlist') return idealRatio(ctx.mirror, ctx.outputIndex);
+/** The ratio a sample is judged against without require.ratio: the one the mirror is designed
+ *  to give at its nominal input (a Widlar's law; the geometry's otherwise). */
+function ratioIdealOf(ctx: MirrorContext, mc: ReturnType<typeof buildMirror>, iin: number): number | undefined {
+  if (ctx.mirror.kind !== 'netlist') return designRatio(ctx.mirror, ctx.outputIndex, iin, ctx.spec.process.temperature);
   if (!mc.pair) return undefined;
   const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
   const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
