@@ -13,10 +13,12 @@
 import { DRIFT } from '../defaults';
 import { assemble } from '../circuit/assemble';
 import type { Circuit } from '../circuit/circuit';
-import type { Workspace } from '../circuit/workspace';
+import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import { circuitAt } from '../circuit/temperature';
+import { Workspace } from '../circuit/workspace';
 import type { ResolvedSpec, TemperaturePoint } from '../types';
-import { probeCurrent, type OutputProbe, type Probed } from './probe';
-import { buildMirror, outputCurrent, solveMirror, type MirrorTarget } from './solve';
+import { heldProbe, probeCurrent, type OutputProbe, type Probed } from './probe';
+import { buildMirror, outputCurrent, solveMirror, type MirrorSolve, type MirrorTarget } from './solve';
 
 /** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no held vdd node or iout is 0. */
 export function supplySensitivity(c: Circuit, ws: Workspace, pr: Probed, iout: number, vdd: number): number | undefined {
@@ -38,6 +40,48 @@ export function atTemperature(spec: ResolvedSpec, t: number): ResolvedSpec {
 
 /** The same circuit built at another temperature, and its output read the same way. */
 export interface Rebuilt { circuit: Circuit; ws: Workspace; probe: OutputProbe }
+
+/** What the measured mirror's circuit is built from, so that it can be built at another
+ *  temperature when it cannot be taken there. */
+export interface MirrorBuild { t: MirrorTarget; vout: number; vbias: number | undefined }
+
+function noGuess(): never {
+  throw new Error('a circuit taken to another temperature has no starting guess of its own');
+}
+
+/** `mc` at temperature temp (K), with a workspace of its own: its elements taken there
+ *  (circuit/temperature.ts), the same as a circuit built there but without a starting guess (a
+ *  solve of it starts warm); undefined where it must be built. Only for a circuit built without
+ *  a Monte Carlo perturbation. */
+function takenTo(mc: MirrorCircuit, spec: ResolvedSpec, temp: number): MirrorCircuit | undefined {
+  const c = circuitAt(mc.circuit, { model: spec.process.model, temperature: temp, tnom: spec.process.tnom });
+  return c && { ...mc, circuit: c, ws: new Workspace(c), guess: noGuess, iin: noGuess };
+}
+
+/** A circuit (or what holds one, such as a network's joint circuit) at temperature temp (K),
+ *  solved from `start`: `from` taken there and solved warm; only when that fails (or it cannot
+ *  be taken there) is `build()` solved as a fresh circuit is (warm, then from its own guess).
+ *  Either way the outcome is that of `solveMirror(build(), start)`, without the build. */
+function solvedAtTemperature<J extends { mc: MirrorCircuit }>(
+  from: J, spec: ResolvedSpec, temp: number, start: Float64Array, build: () => J,
+): { at: J; r: MirrorSolve } {
+  const mc = takenTo(from.mc, spec, temp);
+  if (mc) {
+    const r = solveMirror(mc, start, { plainOnly: true });
+    if (r.converged) return { at: { ...from, mc }, r };
+  }
+  const at = build();
+  return { at, r: solveMirror(at.mc, start) };
+}
+
+/** The measured output's circuit at temperature temp (K), read at its held node: what
+ *  temperatureCoefficient's `rebuild` asks of a mirror. */
+export function mirrorRebuild(mc: MirrorCircuit, b: MirrorBuild): (temp: number) => Rebuilt {
+  return (temp) => {
+    const other = takenTo(mc, b.t.spec, temp) ?? buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias);
+    return { circuit: other.circuit, ws: other.ws, probe: heldProbe(other.circuit) };
+  };
+}
 
 /** ppm/K, (1/iout)·∂iout/∂T at the operating temperature T (K); `rebuild` builds the circuit at
  *  another temperature (undefined when it comes out different). */
@@ -74,9 +118,10 @@ export function coefficientFrom(n: number, pr: Probed, iout: number, up: AtEnd, 
 }
 
 /** Iout re-solved at DRIFT.trangePoints temperatures across [tmin, tmax], each solve starting
- *  from the previous one (the nominal point first). */
+ *  from the previous one (the nominal point first); each point is the nominal circuit `mc` taken
+ *  to its temperature (solvedAtTemperature), what a build per temperature gives. */
 export function driftCurve(
-  t: MirrorTarget, range: [number, number], vout: number, vbias: number | undefined, warm: Float64Array,
+  mc: MirrorCircuit, b: MirrorBuild, range: [number, number], warm: Float64Array,
 ): TemperaturePoint[] {
   const [lo, hi] = range;
   const n = DRIFT.trangePoints;
@@ -84,10 +129,10 @@ export function driftCurve(
   let start = warm;
   for (let k = 0; k < n; k++) {
     const temp = lo + ((hi - lo) * k) / (n - 1);
-    const mc = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vbias);
-    const r = solveMirror(mc, start);
-    points.push({ t: temp, iout: r.converged ? outputCurrent(mc) : NaN, converged: r.converged });
-    if (r.converged) start = mc.ws.v.slice();
+    const build = (): { mc: MirrorCircuit } => ({ mc: buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias) });
+    const { at, r } = solvedAtTemperature({ mc }, b.t.spec, temp, start, build);
+    points.push({ t: temp, iout: r.converged ? outputCurrent(at.mc) : NaN, converged: r.converged });
+    if (r.converged) start = at.mc.ws.v.slice();
   }
   return points;
 }

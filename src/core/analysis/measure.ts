@@ -9,7 +9,7 @@ import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
-import { atTemperature, boxCoefficient, driftCurve, supplySensitivity, temperatureCoefficient, type Rebuilt } from './drift';
+import { boxCoefficient, driftCurve, mirrorRebuild, supplySensitivity, temperatureCoefficient } from './drift';
 import { DEFAULT_ANALYSIS, outputNoise } from './noise';
 import { heldProbe, probeRow, type Probed } from './probe';
 import { jointDrift } from '../network/drift';
@@ -154,10 +154,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     const pr: Probed = { probe: heldProbe(mc.circuit), row: probeRow(mc.ws, heldProbe(mc.circuit)), lam };
     const s = supplySensitivity(mc.circuit, mc.ws, pr, iout, t.spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;
-    const rebuild = (temp: number): Rebuilt => {
-      const other = buildMirror({ ...t, spec: atTemperature(t.spec, temp) }, vout, vb?.vbias);
-      return { circuit: other.circuit, ws: other.ws, probe: heldProbe(other.circuit) };
-    };
+    const rebuild = mirrorRebuild(mc, { t, vout, vbias: vb?.vbias });
     const tc = temperatureCoefficient(mc.circuit, mc.ws, pr, iout, t.spec.process.temperature, rebuild);
     if (tc !== undefined) base.tc = tc;
     const noise = outputNoise(mc.circuit, mc.ws, pr, t.spec.process.temperature, t.spec.analysis ?? DEFAULT_ANALYSIS, opts.curve === true);
@@ -175,7 +172,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   const xNom = mc.ws.v.slice();
   const uNom = mc.sign * (vout - mc.rail);
   if (trange && box && !joint) {
-    const drift = driftCurve(t, trange, vout, vb?.vbias, xNom);
+    const drift = driftCurve(mc, { t, vout, vbias: vb?.vbias }, trange, xNom);
     if (opts.curve) base.drift = drift;
     const box = boxCoefficient(drift, iout);
     if (box !== undefined) base.tcBox = box;

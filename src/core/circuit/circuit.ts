@@ -11,6 +11,7 @@ import type {
 import { hasSlots, patternOf } from './elements/stamp';
 import { JacobianPattern } from './jacobian';
 import { minimumDegree } from './ordering';
+import type { ResistorLaw } from './resistance';
 
 /** What a template or netlist says of a MOSFET; the builder adds its terminals. */
 export type MosInstance = MosElement;
@@ -94,11 +95,13 @@ export class CircuitBuilder {
     this.pending.push({ kind: 'current', e: { kind: 'current', name, from: 0, to: 0, i }, from, to });
   }
 
-  /** A resistor of r Ω; the returned element gets its node indices when the circuit is built. */
-  resistor(name: string, a: string, b: string, r: number): ResistorElement {
+  /** A resistor of r Ω (`law`: r follows the temperature by it); the returned element gets its
+   *  node indices when the circuit is built. */
+  resistor(name: string, a: string, b: string, r: number, law?: ResistorLaw): ResistorElement {
     this.node(a); this.node(b);
     if (!(r > 0) || !Number.isFinite(r)) this.problems.push(`resistor ${name}: ${r} Ω is not a positive resistance`);
     const e: ResistorElement = { kind: 'resistor', name, a: 0, b: 0, g: r > 0 && Number.isFinite(r) ? 1 / r : 0, slot: 0 };
+    if (law) e.law = law;
     this.pending.push({ kind: 'resistor', e, a, b });
     return e;
   }

@@ -10,7 +10,7 @@ import { bipolarProblem, prepareBipolar, vbeFor } from '../models/bipolar';
 import { isBipolarDevice, polaritySign } from '../device-types';
 import type { NetlistMirror, ResolvedSpec } from '../types';
 import { CircuitBuilder, type BjtDescription, type MosDescription } from './circuit';
-import { resistanceAt } from './resistance';
+import { resistanceOf, resistorLaw } from './resistance';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { PerturbationLike } from './templates';
 
@@ -67,7 +67,10 @@ export function buildNetlist(spec: ResolvedSpec, m: NetlistMirror, vout: number,
     if (!Number.isFinite(s.i)) b.problems.push(`current source ${s.name}: ${s.i} A is not a number`);
     b.current(s.name, railName(s.from), railName(s.to), s.i);
   }
-  for (const r of m.resistors) b.resistor(r.name, railName(r.a), railName(r.b), resistanceAt(r.r, r, spec.process));
+  for (const r of m.resistors) {
+    const law = resistorLaw(r.r, r, spec.process);
+    b.resistor(r.name, railName(r.a), railName(r.b), resistanceOf(law, spec.process.temperature), law);
+  }
   const input = m.input;
   const inputIndex = input ? m.currents.findIndex((s) => s.name === input.source) : -1;
   if (input && inputIndex < 0) b.problems.push(`input source ${input.source} is not a current source of this netlist`);

@@ -19,7 +19,7 @@ import { thermalVoltage } from '../models/thermal';
 import { CircuitBuilder, type MosDescription } from './circuit';
 import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
-import { resistanceAt } from './resistance';
+import { resistanceOf, resistorLaw } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 
@@ -207,8 +207,9 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     if (!(i > 0) || !Number.isFinite(i)) b.problems.push(`input current ${i} A is not positive`);
     if (sign > 0) b.current(`${ns}input`, 'vdd', inputNode, i); else b.current(`${ns}input`, inputNode, 'vss', i);
   } else {
-    const ohms = resistanceAt(m.input.r, m.input, spec.process);
-    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms) : b.resistor(`${ns}input`, inputNode, 'vss', ohms);
+    const law = resistorLaw(m.input.r, m.input, spec.process);
+    const ohms = resistanceOf(law, spec.process.temperature);
+    out.inputResistor = sign > 0 ? b.resistor(`${ns}input`, 'vdd', inputNode, ohms, law) : b.resistor(`${ns}input`, inputNode, 'vss', ohms, law);
   }
   return out;
 }

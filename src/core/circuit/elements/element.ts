@@ -6,6 +6,7 @@
 import type { BipolarParams, BipolarType, DeviceParams, DeviceSize, Polarity } from '../../types';
 import type { ModelDevice } from '../../models/device';
 import type { BipolarDevice } from '../../models/bipolar';
+import type { ResistorLaw } from '../resistance';
 
 /** A MOSFET: terminals d, g, s, b are node indices. */
 export interface MosElement {
@@ -44,8 +45,8 @@ export interface BjtElement {
   slot: number;
 }
 
-/** Conductance g (S) between nodes a and b. */
-export interface ResistorElement { kind: 'resistor'; name: string; a: number; b: number; g: number; slot: number }
+/** Conductance g (S) between nodes a and b; `law` when g follows the temperature. */
+export interface ResistorElement { kind: 'resistor'; name: string; a: number; b: number; g: number; slot: number; law?: ResistorLaw }
 
 /** Ideal current `i` (A) flowing from node `from` through the source into node `to`. */
 export interface CurrentSourceElement { kind: 'current'; name: string; from: number; to: number; i: number }

@@ -14,8 +14,8 @@ import { axisOf, intervalOf, monotoneSlopes, newWeights, weightsAt, type Axis, t
 
 export interface TableSlice {
   table: DeviceTable;
-  /** m and K the slice was taken at. */
-  l: number; temperature: number;
+  /** m, the length the slice was taken at. */
+  l: number;
   vgs: Float64Array; vds: Axis; vsb: Axis;
   /** ln(id/W) at [k vsb][j vds][i vgs]; rows with vds = 0 hold 0 and are skipped (id = 0). */
   ln: Float64Array;
@@ -37,15 +37,28 @@ function bracket(axis: readonly number[], v: number): [number, number] {
 const cache = new WeakMap<DeviceTable, Map<string, TableSlice>>();
 const CACHE_SLICES = 64;
 
-/** The slice at length l (m) and temperature (K), clamped to the grid; cached per table. */
+/** K, the temperature a slice at `temperature` is interpolated at: clamped to the table's own
+ *  temperatures (the slice beyond them is the end one's), and one for every temperature when
+ *  the table has a single one or none (the slice does not depend on it then). */
+function sliceTemperature(table: DeviceTable, temperature: number): number {
+  const temps = table.temperature;
+  if (!temps || temps.length < 2) return NaN;
+  return Math.min(Math.max(temperature, temps[0]!), temps[temps.length - 1]!);
+}
+
+/** The slice at length l (m) and temperature (K), clamped to the grid; cached per table and
+ *  per length and the temperature it depends on (a drift analysis asks for thirteen
+ *  temperatures of each length: a table without a temperature column makes one slice of them),
+ *  the oldest slice dropped first beyond CACHE_SLICES. */
 export function sliceAt(table: DeviceTable, l: number, temperature: number): TableSlice {
   let byKey = cache.get(table);
   if (!byKey) cache.set(table, byKey = new Map());
-  const key = `${l}|${temperature}`;
+  const t = sliceTemperature(table, temperature);
+  const key = `${l}|${t}`;
   const hit = byKey.get(key);
   if (hit) return hit;
-  if (byKey.size >= CACHE_SLICES) byKey.clear();
-  const s = makeSlice(table, l, temperature);
+  if (byKey.size >= CACHE_SLICES) byKey.delete(byKey.keys().next().value!);
+  const s = makeSlice(table, l, Number.isNaN(t) ? temperature : t);
   byKey.set(key, s);
   return s;
 }
@@ -78,7 +91,7 @@ function makeSlice(table: DeviceTable, l: number, temperature: number): TableSli
   for (let line = 0; line < nS * nD; line++) {
     if (!zero[line % nD]) monotoneSlopes(vgs, ln, line * nG, 1, slope);
   }
-  return { table, l, temperature, vgs, vds: axisOf(table.vds), vsb: axisOf(table.vsb), ln, slope, zero };
+  return { table, l, vgs, vds: axisOf(table.vds), vsb: axisOf(table.vsb), ln, slope, zero };
 }
 
 /** Result of one slice evaluation, per metre of width: A/m and its partial derivatives. */
