@@ -136,7 +136,8 @@ describe('every output of a network from one solve per sample', () => {
     const calls: [number, number][] = [];
     const out = analyzeText(CHAIN, 'chain.bias.yaml', { mc: { samples: 3000, seed: 1 }, anchors: false }, { mcProgress: (d, t) => calls.push([d, t]) });
     const total = 3000 * out.mirrors.length;
-    expect(calls.length).toBeGreaterThanOrEqual(3);
+    // A call at least every 1 024 output-samples (montecarlo.ts), whichever way they are solved.
+    expect(calls.length).toBeGreaterThanOrEqual(Math.floor(total / 1024));
     expect(calls.every(([, t]) => t === total)).toBe(true);
     for (let k = 1; k < calls.length; k++) expect(calls[k]![0]).toBeGreaterThanOrEqual(calls[k - 1]![0]);
     expect(calls.at(-1)![0]).toBe(total);

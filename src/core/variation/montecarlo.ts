@@ -39,11 +39,13 @@ import { networkSampling, type SampledOutput } from '../network/sampling';
 export interface MonteCarloOptions {
   /** Histogram bins (default: √N clamped to 10…60). */
   bins?: number;
-  /** Called with the samples done so far, every PROGRESS_EVERY samples and at the end. */
+  /** Called with the samples done so far, every PROGRESS_EVERY output-samples and at the end. */
   onSamples?: (done: number) => void;
 }
 
-/** Samples between progress calls: rare enough to cost nothing next to 1 024 Newton solves. */
+/** Output-samples between progress calls: rare enough to cost nothing next to 1 024 Newton
+ *  solves. A network's sample covers every output sampled with it, so its calls come that many
+ *  times sooner (the editor's worker passes on at most a few a second). */
 const PROGRESS_EVERY = 1024;
 
 /** A perturbed device: its nominal mismatch parameters and their 1σ. */
@@ -201,8 +203,9 @@ function sample(mc: MirrorCircuit, perturbed: Perturbed[], readings: Reading[], 
   const devices = c.devices;
   const rng = Xoshiro128.fromSeed(seed);
   const pending = new Int32Array(readings.length);
+  const every = Math.max(1, Math.floor(PROGRESS_EVERY / readings.length));
   for (let i = 0; i < n; i++) {
-    if (onSamples && i > 0 && i % PROGRESS_EVERY === 0) onSamples(i);
+    if (onSamples && i > 0 && i % every === 0) onSamples(i);
     // Draw every deviation first, in device order, so a sample's numbers depend only on the seed.
     for (const p of perturbed) {
       const dvt = p.sVt * rng.nextGaussian();
