@@ -220,6 +220,17 @@ describe('Widlar: IOUT·R = UT·ln(IIN/IOUT) (Gray et al. §4.4.1; docs/referenc
     expect(rel(one({ kind: 'widlar', type: 'npn', vout: 3, input: '1m', extra: 'degeneration: 10k' }, huge).iout, 11.535913e-6)).toBeLessThan(1e-5);
     expect(rel(one({ kind: 'widlar', type: 'npn', vout: 3, input: '1m', extra: 'degeneration: 10k' }, 'is: 1e-16, bf: 100').iout, 11.421457e-6)).toBeLessThan(1e-5);
   });
+  it('the ratio it is designed to give is the law\'s, so its error is what base currents add (references §12: 11.281736 / 11.166114 µA from 100 µA)', () => {
+    const ideal = one({ kind: 'widlar', type: 'npn', vout: 3 }, huge);
+    expect(rel(ideal.ratioIdeal!, 0.11281736)).toBeLessThan(1e-6);
+    expect(Math.abs(ideal.error!)).toBeLessThan(1e-5);
+    const q = one({ kind: 'widlar', type: 'npn', vout: 3 }, 'is: 1e-16, bf: 100');
+    expect(rel(q.ratioIdeal!, 0.11281736)).toBeLessThan(1e-6);
+    // The law's ratio times the error gives back the β = 100 current of references §12.
+    expect(rel(q.iin! * q.ratioIdeal! * (1 + q.error!), 11.166114e-6)).toBeLessThan(1e-5);
+    // Its ratio departs from the area ratio by design: no split against the geometry.
+    expect(q.errorSplit).toBeUndefined();
+  });
   it('design 1 mA → 10 µA: R = 11.9053 kΩ; Rout ≈ ro·(1 + gm·(R ∥ rπ)) within 0.5 %; compliance IOUT·R + vcesat', () => {
     const r = one({ kind: 'widlar', type: 'pnp', vout: 2, input: '1m', extra: 'degeneration: 11.9053k' }, undefined, 'is: 1e-16, bf: 1e12');
     expect(rel(r.iout, 10e-6)).toBeLessThan(1e-5);

@@ -345,3 +345,35 @@ describe('network findings', () => {
     expect(r.findings.find((x) => x.code === 'chain-error')).toBeUndefined();
   });
 });
+
+describe('a Widlar in a network is intended to give its law\'s current (references §12)', () => {
+  // A PNP root (β and VA huge: it copies 100 µA exactly) feeds a Widlar with 5 kΩ: the law gives
+  // 11.281736 µA (Gray et al. §4.4.1; references §12), which is what the leaf is intended to carry.
+  const text = `format: 1
+process:
+  tnom: 300 K
+  npn: { is: 1e-16, bf: 1e12 }
+  pnp: { is: 1e-16, bf: 1e12 }
+supplies: { vdd: 3.3 }
+mirrors:
+  - name: top
+    kind: simple
+    type: pnp
+    input: 100u
+    output: { v: 1.5 }
+  - name: trickle
+    kind: widlar
+    type: npn
+    input: { from: top }
+    degeneration: 5k
+    output: { v: 0.9 }
+`;
+  it('intended 11.281736 µA, chain error near zero, no chain-error finding', () => {
+    const r = analyzeText(text, 'widlar.bias.yaml');
+    const leaf = report(r, 'trickle');
+    expect(rel(leaf.intended!, 11.281736e-6)).toBeLessThan(1e-5);
+    expect(rel(leaf.iout, 11.281736e-6)).toBeLessThan(1e-5);
+    expect(Math.abs(leaf.chainError!)).toBeLessThan(1e-4);
+    expect(r.findings.map((f) => f.code)).not.toContain('chain-error');
+  });
+});

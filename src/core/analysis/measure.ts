@@ -3,8 +3,8 @@
  * the compliance search and (on request) the curve.
  */
 import { outputAdjoint, outputConductance, outputSensitivities } from '../circuit/smallSignal';
-import { idealRatio, isBank } from '../circuit/templates';
-import { takesVbias } from '../kinds/index';
+import { designRatio, idealRatio, isBank } from '../circuit/templates';
+import { KINDS, takesVbias } from '../kinds/index';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
 import type { MirrorReport } from '../types';
 import { indexOf } from '../mirror-at';
@@ -68,7 +68,8 @@ function blankReport(t: MirrorTarget, vout: number): MirrorReport {
 }
 
 
-function ratioIdealOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
+/** The pair's geometric ratio (m·W/L or area·m, out over ref): what the error split reads. */
+function geometricRatioOf(t: MirrorTarget, mc: MirrorCircuit): number | undefined {
   if (t.mirror.kind !== 'netlist') return idealRatio(t.mirror, t.outputIndex);
   if (!mc.pair) return undefined;
   const r = sizeWeight(mc.circuit.devices[mc.pair.out]!.size) / sizeWeight(mc.circuit.devices[mc.pair.ref]!.size);
@@ -112,7 +113,9 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   if (sol.note) base.solveNote = sol.note;
   if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }
-  const ideal = ratioIdealOf(t, mc);
+  // The ratio the mirror is designed to give: its geometry's, or a Widlar's law's at this input.
+  const geometric = geometricRatioOf(t, mc);
+  const ideal = m.kind === 'netlist' ? geometric : designRatio(m, t.outputIndex, iin, t.spec.process.temperature);
   if (ideal !== undefined) base.ratioIdeal = ideal;
   const reference = referenceReport(m, mc, devices, sol.converged);
   if (reference) base.reference = reference;
@@ -120,9 +123,12 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
 
   if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
+    // The split explains a departure from the geometric ratio; a degenerated pair (the Widlar)
+    // departs from it by design, so its error against the law is left unsplit.
+    const split = m.kind === 'netlist' || KINDS[m.kind].degeneration === undefined ? geometric : undefined;
     const a = mc.pair && mc.circuit.devices[mc.pair.ref], b = mc.pair && mc.circuit.devices[mc.pair.out];
-    if (a && b && a.kind === 'mos' && b.kind === 'mos') base.errorSplit = splitError(a, b, ideal, mc.ws.v);
-    else if (a && b && a.kind === 'bjt' && b.kind === 'bjt') base.errorSplit = splitBipolarError(a, b, ideal, ratio, mc.ws.v);
+    if (split !== undefined && a && b && a.kind === 'mos' && b.kind === 'mos') base.errorSplit = splitError(a, b, split, mc.ws.v);
+    else if (split !== undefined && a && b && a.kind === 'bjt' && b.kind === 'bjt') base.errorSplit = splitBipolarError(a, b, split, ratio, mc.ws.v);
   }
   const lam = outputAdjoint(mc.circuit, mc.ws);
   if (lam) {

@@ -14,6 +14,8 @@ import type { BipolarType, DeviceSize, MirrorOutput, Polarity, ResolvedSpec, Tem
 import { assertNever } from '../assert-never';
 import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
+import { widlarRatio } from '../kinds/widlar';
+import { thermalVoltage } from '../models/thermal';
 import { CircuitBuilder, type MosDescription } from './circuit';
 import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
@@ -43,6 +45,15 @@ export function idealRatio(m: TemplateMirror, j: number): number | undefined {
   if (!sa || !sb) return undefined;
   const r = sizeWeight(sb) / sizeWeight(sa);
   return Number.isFinite(r) ? r : undefined;
+}
+
+/** The ratio output j is designed to give at input current `iin` and temperature T (K): the
+ *  pair's geometric ratio, or for a degenerated pair (the Widlar) the Widlar law's with ideal
+ *  devices — its emitter resistor sets the current by design. Undefined where it cannot be said. */
+export function designRatio(m: TemplateMirror, j: number, iin: number, temperature: number): number | undefined {
+  const n = idealRatio(m, j);
+  if (n === undefined || KINDS[m.kind].degeneration === undefined) return n;
+  return m.degeneration === undefined ? undefined : widlarRatio(n, iin, m.degeneration, thermalVoltage(temperature));
 }
 
 /** How one template mirror is wired into a builder that may hold other mirrors too (a linked

@@ -29,3 +29,24 @@ export const widlar: KindSpec = {
     },
   },
 };
+
+/**
+ * The ratio x = IOUT/IIN the Widlar law gives with ideal devices (no base current, no Early
+ * effect): x·IIN·R = UT·ln(n/x), n the emitter-area ratio out/ref (Gray et al. §4.4.1, from
+ * memory; docs/references.md §12). This is what a Widlar is designed to deliver, so its error
+ * is read against it, not against n. Newton on u = ln x from u = ln n: f(u) = IIN·R·e^u −
+ * UT·(ln n − u) is increasing and convex, so the iterates fall monotonically onto the one root.
+ */
+export function widlarRatio(n: number, iin: number, r: number, ut: number): number | undefined {
+  if (!(n > 0 && iin > 0 && r > 0 && ut > 0) || !Number.isFinite(n * iin * r)) return undefined;
+  const a = iin * r, ln = Math.log(n);
+  let u = ln;
+  for (let k = 0; k < 200; k++) {
+    const e = a * Math.exp(u);
+    const step = (e - ut * (ln - u)) / (e + ut);
+    u -= step;
+    if (Math.abs(step) < 1e-15) break;
+  }
+  const x = Math.exp(u);
+  return Number.isFinite(x) ? x : undefined;
+}

@@ -1,6 +1,7 @@
 /**
  * What a network reports (design §9.3), attached to the measured outputs: feeds / fedBy,
- * intended (root current × ideal ratios along the path), chainError, chainSigma, the linked
+ * intended (root current × each stage's design ratio along the path — a Widlar's law at its
+ * intended input), chainError, chainSigma, the linked
  * node's voltage and its headroom; and one NetworkReport per group (root, members, supply
  * currents, power, leaves and the worst of them).
  *
@@ -8,7 +9,7 @@
  * output's compounds its own sigma with its mirror's input: sqrt(chainSigma_in² + sigma²).
  */
 import type { MirrorReport, NetworkReport, ResolvedSpec, TemplateMirror } from '../types';
-import { idealRatio } from '../circuit/templates';
+import { designRatio } from '../circuit/templates';
 import { mirrorAt } from '../mirror-at';
 import { key } from './joint';
 import { sinksCurrent } from '../device-types';
@@ -22,6 +23,7 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
   const out = reports.map((r) => { const c = { ...r }; byKey.set(key(r.mirrorIndex, r.outputIndex), c); return c; });
   const at = (i: number): TemplateMirror | undefined => { const m = mirrorAt(spec, i); return m && m.kind !== 'netlist' ? m : undefined; };
   const networks: NetworkReport[] = [];
+  const T = spec.process.temperature;
   for (const net of nets) {
     const root = at(net.root);
     if (!root) continue;
@@ -35,7 +37,8 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
       const fedBy = m.input.kind === 'link' ? m.input : undefined;
       if (fedBy) {
         const up = at(fedBy.mirror);
-        intendedIn.set(i, (intendedIn.get(fedBy.mirror) ?? NaN) * (up ? idealRatio(up, fedBy.output) ?? 1 : 1));
+        const upIn = intendedIn.get(fedBy.mirror) ?? NaN;
+        intendedIn.set(i, upIn * (up ? designRatio(up, fedBy.output, upIn, T) ?? 1 : 1));
         chainIn.set(i, byKey.get(key(fedBy.mirror, fedBy.output))?.chainSigma ?? NaN);
       }
       m.outputs.forEach((o, j) => {
@@ -43,7 +46,8 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
         if (!r) return;
         r.network = root.name;
         if (fedBy) r.fedBy = byKey.get(key(fedBy.mirror, fedBy.output))?.name ?? fedBy.from;
-        const intended = (intendedIn.get(i) ?? NaN) * (idealRatio(m, j) ?? NaN);
+        const ownIn = intendedIn.get(i) ?? NaN;
+        const intended = ownIn * (designRatio(m, j, ownIn, T) ?? NaN);
         if (Number.isFinite(intended)) {
           r.intended = intended;
           if (r.converged && net.converged) r.chainError = r.iout / intended - 1;

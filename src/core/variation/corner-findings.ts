@@ -6,6 +6,7 @@
  */
 import type { CornerResult, CornerSpec, Finding, MirrorReport, Range, ResolvedSpec, Severity } from '../types';
 import { sinksCurrent } from '../device-types';
+import { KINDS } from '../kinds/index';
 import type { ParsedSpec } from '../spec/index';
 import { formatPercent, formatRatio, formatSI, formatSignedPercent } from '../text/format';
 import { ZERO_CELSIUS } from '../defaults';
@@ -88,8 +89,11 @@ function forSite(parsed: ParsedSpec, spec: ResolvedSpec, site: Site): Finding[] 
     }
   }
 
-  // Ratio against require.ratio, else the geometric ratio.
-  const target = site.require.ratio ?? nominal.ratioIdeal;
+  // Ratio against require.ratio, else the design ratio. A degenerated pair (the Widlar) is
+  // judged against require.ratio only, as the ratio check judges it: its law moves with UT and
+  // its resistor across corners by design, so the nominal law is no target there.
+  const degenerated = site.mirror.kind !== 'netlist' && KINDS[site.mirror.kind].degeneration !== undefined;
+  const target = site.require.ratio ?? (degenerated ? undefined : nominal.ratioIdeal);
   if (target !== undefined && target > 0 && nominal.ratio !== undefined && Math.abs(nominal.ratio / target - 1) <= limits.error) {
     const bad = solved.map((r) => ({ r, badness: Math.abs(r.ratio / target - 1) })).filter((f) => f.badness > limits.error);
     emit('corner-ratio-error', 'error', bad, site.require.ratio !== undefined ? requireRange(parsed, site, 'ratio') : nameRange(parsed, site),

@@ -25,7 +25,7 @@
  * check), and require.sigma, which is a property of the population that `sigma` itself answers.
  */
 import type { MirrorContext } from '../analysis/index';
-import { idealRatio } from '../circuit/templates';
+import { designRatio } from '../circuit/templates';
 import { vbiasFor } from '../analysis/vbias';
 import { deviceMargin, deviceSigmas, mismatchBase, setMismatch } from '../circuit/elements/device';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
@@ -99,9 +99,11 @@ export function runMonteCarlo(ctx: MirrorContext, samples: number, seed: number,
   const c = mc.circuit;
   const xNom = Float64Array.from(mc.ws.v);
   const req = requirementsOf(ctx.mirror, ctx.outputIndex);
+  // The designed ratio at the nominal input (a Widlar's depends on it), before the compliance solve.
+  const target = req.ratio ?? ratioIdealOf(ctx, mc, mc.iin());
   const solo = mc;
   const reading = newReading(n, () => outputCurrent(solo), () => solo.iin(), () => worstMargin(solo),
-    req.ratio ?? ratioIdealOf(ctx, mc), compliance(mc, c.outNode, req.compliance, xNom));
+    target, compliance(mc, c.outNode, req.compliance, xNom));
   const perturbed: Perturbed[] = [];
   c.devices.forEach((d, k) => { if (d.measured) addPerturbed(perturbed, d, k); });
   sample(mc, perturbed, [reading], n, seed, ctx.spec.limits.tolerance, xNom, opts.onSamples);
@@ -143,10 +145,16 @@ export function runNetworkMonteCarlo(
   const c = mc.circuit;
   const xNom = Float64Array.from(mc.ws.v);
   const ch = newChannelEval();
-  const readings = chosen.map((s) => {
+  // Each output's requirements and designed ratio at the nominal solution (a Widlar's depends on
+  // its input current), all read before any compliance solve moves ws.
+  const nominalOf = chosen.map((s) => {
     const m = mirrorAt(spec, s.mirrorIndex);
     const req = m ? requirementsOf(m, s.outputIndex) : {};
-    const target = req.ratio ?? (m && m.kind !== 'netlist' ? idealRatio(m, s.outputIndex) : undefined);
+    const target = req.ratio ?? (m && m.kind !== 'netlist' ? designRatio(m, s.outputIndex, s.iin(), spec.process.temperature) : undefined);
+    return { req, target };
+  });
+  const readings = chosen.map((s, k) => {
+    const { req, target } = nominalOf[k]!;
     const counted = s.counted;
     const margin = (): number => {
       let worst = Infinity;
@@ -270,8 +278,10 @@ function requirementsOf(m: MirrorContext['mirror'], outputIndex: number): Requir
   return (m.outputs[outputIndex] ?? m.outputs[0])?.require ?? {};
 }
 
-function ratioIdealOf(ctx: MirrorContext, mc: ReturnType<typeof buildMirror>): number | undefined {
-  if (ctx.mirror.kind !== 'netlist') return idealRatio(ctx.mirror, ctx.outputIndex);
+/** The ratio a sample is judged against without require.ratio: the one the mirror is designed
+ *  to give at its nominal input (a Widlar's law; the geometry's otherwise). */
+function ratioIdealOf(ctx: MirrorContext, mc: ReturnType<typeof buildMirror>, iin: number): number | undefined {
+  if (ctx.mirror.kind !== 'netlist') return designRatio(ctx.mirror, ctx.outputIndex, iin, ctx.spec.process.temperature);
   if (!mc.pair) return undefined;
   const a = mc.circuit.devices[mc.pair.ref]!.size, b = mc.circuit.devices[mc.pair.out]!.size;
   const r = (b.m * b.w / b.l) / (a.m * a.w / a.l);
