@@ -45,7 +45,9 @@ const targets = [
     outdir: 'dist' },
   { ...common, entryPoints: { bench: 'scripts/bench.ts' }, platform: 'node', format: 'cjs', target: 'node20',
     outdir: 'dist' },
-  { ...common, entryPoints: { webview: 'webview/main.ts' }, platform: 'browser', format: 'iife',
+  // The panel's script is minified in every build: the HTML report carries it inline (4.1 MB
+  // unminified, 1.7 MB minified, most of it ELK); the linked source map keeps it debuggable.
+  { ...common, minify: true, entryPoints: { webview: 'webview/main.ts' }, platform: 'browser', format: 'iife',
     target: 'es2022', outdir: 'dist', loader: { '.css': 'text' } },
 ];
 

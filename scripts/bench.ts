@@ -233,14 +233,18 @@ function yamlFloorScript(dir: string, file: string): string {
 }
 
 /** Bytes of an entry bundled like esbuild.mjs's --production build (minified), in a temp dir. */
-function productionSize(entry: string, external: string[]): number | undefined {
+/** The minified size of one bundle, built as esbuild.mjs builds it for `--production`: ELK
+ *  (the schematic layout, loaded from dist/elk.js on first use) stays outside the extension and
+ *  the CLI, as it does in the shipped build. */
+function productionSize(entry: string, external: string[], elkApart = false): number | undefined {
   try {
     const esbuild = createRequire(join(process.cwd(), 'package.json'))('esbuild') as {
       buildSync(o: Record<string, unknown>): { outputFiles?: { contents: Uint8Array }[] };
     };
     const out = esbuild.buildSync({
       entryPoints: [entry], bundle: true, minify: true, platform: 'node', format: 'cjs', target: 'node20', write: false,
-      external, legalComments: 'none', logLevel: 'silent', alias: { yaml: './node_modules/yaml/browser/index.js' }, outdir: tmpdir(),
+      external: elkApart ? [...external, './elk.js'] : external, legalComments: 'none', logLevel: 'silent', outdir: tmpdir(),
+      alias: { yaml: './node_modules/yaml/browser/index.js', ...(elkApart ? { 'elkjs/lib/elk.bundled.js': './elk.js' } : {}) },
     });
     return out.outputFiles?.[0]?.contents.length;
   } catch {
@@ -470,9 +474,9 @@ function main(): void {
   const size = (f: string) => (existsSync(join(root, f)) ? statSync(join(root, f)).size : undefined);
   const bundles = {
     extensionDev: size('dist/extension.js'), workerDev: size('dist/worker.js'), cliDev: size('dist/qpoint-cli.js'),
-    extensionProduction: productionSize(join(root, 'src/extension/extension.ts'), ['vscode']),
+    extensionProduction: productionSize(join(root, 'src/extension/extension.ts'), ['vscode'], true),
     workerProduction: productionSize(join(root, 'src/extension/worker.ts'), []),
-    cliProduction: productionSize(join(root, 'src/cli/main.ts'), []),
+    cliProduction: productionSize(join(root, 'src/cli/main.ts'), [], true),
   };
 
   const load1 = loadavg();

@@ -132,6 +132,17 @@ describe('the start-up check of a beta multiplier (references §11, zero-current
     expect(after.m.reference!.startup.conducts).toBe(true);
     expect(codes(after.file)).not.toContain('no-startup');
   });
+  it('of a mirror with a device flavour: the added start-up device respects the flavour\'s drawn minimum width', () => {
+    // The device the fix adds is built from the mirror's flavour (circuit/templates.ts), so its
+    // width is at least that flavour's wmin (4 µm here), not a quarter of the unit width (2.5 µm).
+    const text = spec(beta()).replace('process:\n', 'process:\n  devices: { thick: { type: nmos, kp: 134u, vt0: 0.7, phi: 0.9, wmin: 4u } }\n')
+      .replace('    type: nmos\n', '    type: nmos\n    device: thick\n');
+    const f = analyzeText(text, 'ref.bias.yaml').findings.find((x) => x.code === 'no-startup')!;
+    expect(f.fixes![0]!.title).toBe('Add a start-up device (W 4 µm, L 4 µm)');
+    const after = only(applyEdits(text, f.fixes![0]!.edits));
+    expect(after.m.reference!.startup.conducts).toBe(true);
+    expect(codes(after.file)).not.toContain('no-startup');
+  });
   it('with one at VDD 2.4 V: conducts in the zero-current state, off at the operating point, no finding', () => {
     const { file, m } = only(spec(beta({ startup: '{ w: 1u, l: 4u }' }), { vdd: 2.4 }));
     expect(m.reference!.startup).toMatchObject({ zeroState: true, element: true, conducts: true });

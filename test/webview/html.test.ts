@@ -72,6 +72,12 @@ describe('renderHtmlReport', () => {
     expect(body).not.toMatch(/<script/i);
   });
 
+  it('leaves out the bundle\'s source-map comment: the map it names is not beside a saved page', () => {
+    const html = renderHtmlReport(fixtureReport(), { script: `${script}\n//# sourceMappingURL=webview.js.map\n` });
+    expect(html).not.toContain('sourceMappingURL');
+    expect(html).toContain('document.body.dataset.ran = "1";');
+  });
+
   it('escapes the bundle so a "</script" or "<!--" inside it means the same characters', () => {
     const escaped = escapeScript(script);
     expect(escaped).not.toMatch(/<\/script/i);

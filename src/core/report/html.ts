@@ -47,7 +47,7 @@ export function renderHtmlReport(report: FileReport, assets: { script: string; c
     `<div id="${STATIC_ID}">${renderStaticReport(report, stamp, schematics, trees)}</div>`,
     '<main id="qpoint-root"></main>',
     `<script type="application/json" id="${REPORT_DATA_ID}">${embedReportJson(report)}</script>`,
-    `<script>${escapeScript(assets.script)}</script>`,
+    `<script>${escapeScript(withoutSourceMap(assets.script))}</script>`,
     '</body>',
     '</html>',
     '',
@@ -85,6 +85,11 @@ const HTML_ENTITIES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': 
 
 function escapeHtml(text: string): string {
   return text.replace(/[&<>"']/g, (c) => HTML_ENTITIES[c] ?? c);
+}
+
+/** The bundle's source-map comment names a file beside the bundle, which a saved page has not. */
+function withoutSourceMap(code: string): string {
+  return code.replace(/\n\/\/# sourceMappingURL=[^\n]*\s*$/, '\n');
 }
 
 /** Inline script text cannot contain `</script` (it would end the element) or `<!--` (it

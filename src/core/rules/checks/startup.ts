@@ -16,6 +16,7 @@ import { buildEdits } from '../build-edits';
 import { quantizeSize } from '../../sizing/quantize';
 import { code, formatPercent, formatSI } from '../../text/format';
 import { isTemplateKind, KINDS } from '../../kinds/index';
+import { paramsOf } from '../../flavours';
 
 /** Where a start-up size is written: the template's `startup`, or the netlist's first entry. */
 function startupPath(site: Site): { path: SpecPath; l: number } | undefined {
@@ -59,8 +60,10 @@ export function checkStartup(rc: RuleContext, site: Site): Draft[] {
         // weak one leaks least once the loop runs (the startup-leak check judges that next).
         const m = site.mirror;
         if (m.kind === 'netlist' || !KINDS[m.kind].loop) return;
-        // A MOSFET of the mirror's side, in a bipolar reference too (kinds/kind.ts).
-        const p = m.type === 'nmos' || m.type === 'npn' ? rc.spec.process.nmos : rc.spec.process.pmos;
+        // A MOSFET of the mirror's side, in a bipolar reference too (kinds/kind.ts), of the
+        // mirror's device flavour where it has one (as circuit/templates.ts builds it).
+        const own = m.type === 'nmos' || m.type === 'npn' ? 'nmos' : 'pmos';
+        const p = paramsOf(rc.spec.process, own, isBipolarType(m.type) ? undefined : m.device);
         const grid = rc.spec.process.grid;
         const unit = isBipolarType(m.type) ? undefined : m.devices.ref;
         const w = quantizeSize(Math.max(p.wmin ?? 0, (unit?.w ?? 1e-6) / 4), grid, 'up');
