@@ -13,8 +13,8 @@
  * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
 import type { MirrorReport, ResolvedSpec, TextEdit } from '../types';
-import type { ParsedSpec } from '../spec/index';
-import { resolveText } from '../resolve';
+import { fromRead, looksJson, type ParsedSpec } from '../spec/index';
+import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { SplicedSourceMap } from '../spec/fragment';
@@ -180,7 +180,13 @@ function trusted(rc: RuleContext, spec: ResolvedSpec, reports: MirrorReport[]): 
 function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Baseline, detect: Detect, units?: SolvedUnits): Recheck {
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
-  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) });
+  const opts = { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) };
+  // An edit outside every mirror (the EKV fix) re-reads the lines before the mirrors alone; its
+  // spec findings are only counted, so they are placed on the original's tree as a local re-check's are.
+  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits) : undefined;
+  const { parsed } = outside
+    ? resolveParsed(fromRead(text, outside.read, { source: outside.source, findings: rc.parsed.source as YamlSourceMap }, looksJson(text, rc.file), opts), opts)
+    : resolveText(text, rc.file, opts);
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
