@@ -42,14 +42,15 @@ export interface Baseline {
   errors: Set<string>;
 }
 
-/** Every output of one mirror of a spec. */
+/** Every output of one mirror of a spec, with the drift figures its requirements ask for: the
+ *  re-check's quick rules read no other. */
 function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[] | undefined {
   const m = mirrorAt(spec, mirrorIndex);
   if (!m) return undefined;
   const n = m.kind === 'netlist' ? 1 : m.outputs.length;
   const out: MirrorReport[] = [];
   for (let j = 0; j < n; j++) {
-    const r = measure(spec, mirrorIndex, j);
+    const r = measure(spec, mirrorIndex, j, 'requirements');
     if (!r) return undefined;
     out.push(r);
   }
