@@ -32,6 +32,11 @@ export interface ResolvedText {
 export function resolveText(text: string, file?: string, opts: ResolveOptions = {}): ResolvedText {
   const parseOpts = opts.tables ? { tables: opts.tables } : {};
   const parsed = opts.parses ? opts.parses.cache.parse(opts.parses.slot, text, file, parseOpts) : parseSpec(text, file, parseOpts);
+  return resolveParsed(parsed, opts);
+}
+
+/** The resolve step after the parse (a fix's re-check may read its edited text in parts: rules/verify.ts). */
+export function resolveParsed(parsed: ParsedSpec, opts: ResolveOptions = {}): ResolvedText {
   if (!parsed.spec) return { parsed, sized: [] };
   // Linked inputs start from their intended currents; once sized, each linked group is solved
   // as one circuit and its mirrors handed on at that solution (network/).

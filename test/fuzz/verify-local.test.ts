@@ -7,7 +7,11 @@
  */
 import fc from 'fast-check';
 import { describe, expect, it, vi } from 'vitest';
-import { parseSpec } from '../../src/core/spec/index';
+import { fromRead, parseSpec } from '../../src/core/spec/index';
+import { YamlSourceMap } from '../../src/core/spec/source-map';
+import { applyEdits } from '../../src/core/text/edits';
+import { LineIndex } from '../../src/core/text/lines';
+import { canonicalJson } from '../../src/core/canonical';
 import { resolveText } from '../../src/core/resolve';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import { runRules } from '../../src/core/rules/index';
@@ -140,5 +144,42 @@ describe('local re-reading of edited mirrors', () => {
     const aliased = parseSpec(text.replace('wu: 4u', 'wu: &u 4u\n  wv: *u'), 'a.bias.yaml');
     expect(aliased.spec).toBeDefined();
     expect(MirrorFragments.of(aliased)!.holds(2, [{ range: at, newText: '5' }])).toBe(false);
+  });
+
+  it('reads an edit outside the mirrors alone exactly as the whole edited text reads', () => {
+    // The EKV fix edits the process: the lines before `mirrors:` are read alone and the original
+    // items put back (MirrorFragments.readOutside). Wherever that answers, the data, the resolved
+    // spec and the findings' severities equal a whole read of the edited text; hostile insertions
+    // (anchors, aliases, tags, a second `mirrors`, directives, open flows and quotes, tabs, bad
+    // indentation) must make it decline or read the same.
+    const item = (i: number) => `  - { name: m${i}, kind: simple, type: nmos, input: ${i + 2}u, size: { w: 4u, l: 1u }, output: { v: 0.6 } }`;
+    const text = `${HALDEN_HEADER}\n${[0, 1, 2].map(item).join('\n')}\n`;
+    const parsed = parseSpec(text, 'outside.bias.yaml');
+    const frags = MirrorFragments.of(parsed)!;
+    const lines = LineIndex.of(text);
+    const keyLine = text.split('\n').indexOf('mirrors:');
+    const snippets = ['ekv', 'model: ekv\n  ', '\n', '  ', '&a ', '*a', '!!str ', 'mirrors: []\n', 'mirrors:\n', 'process: 1\n',
+      '%YAML 1.1\n---\n', '[', '{', '"', "'", '#', '\t', 'x: 1\n', '  y: 2\n', ': ', '- ', '<<: {}\n', '\r', 'limits: { margin: 50m }\n', ''];
+    let read = 0;
+    fc.assert(fc.property(fc.integer({ min: 0, max: keyLine - 1 }), fc.integer({ min: 0, max: 200 }), fc.integer({ min: 0, max: 12 }),
+      fc.constantFrom(...snippets), (line, ch, len, newText) => {
+        const start = lines.offset({ line, character: ch });
+        const range = lines.range(start, Math.min(start + len, lines.offset({ line: keyLine, character: 0 }) - 1));
+        const edits = [{ range, newText }];
+        const edited = applyEdits(text, edits);
+        const outside = frags.readOutside(edited, edits);
+        if (!outside) return;
+        read++;
+        const alone = fromRead(edited, outside.read, { source: outside.source, findings: parsed.source as YamlSourceMap }, false);
+        const whole = parseSpec(edited, 'outside.bias.yaml');
+        expect(canonicalJson(alone.data ?? null)).toBe(canonicalJson(whole.data ?? null));
+        expect(canonicalJson(alone.spec ?? null)).toBe(canonicalJson(whole.spec ?? null));
+        expect(alone.findings.map((f) => `${f.severity}:${f.code}`).sort()).toEqual(whole.findings.map((f) => `${f.severity}:${f.code}`).sort());
+        // Where it reads, the mirrors' places in the edited text are right (moved by the added lines).
+        const name = alone.source.value(['mirrors', 2, 'name'])!;
+        expect(alone.source.text(name)).toBe('m2');
+        expect(name).toEqual(whole.source.value(['mirrors', 2, 'name']));
+      }), { numRuns: 400, seed: 7 });
+    expect(read).toBeGreaterThan(60);
   });
 });

@@ -12,6 +12,11 @@ import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import type { FileReport, MirrorReport } from '../../src/core/types';
 import { header } from './helpers';
+import { readFileSync } from 'node:fs';
+import { resolveText } from '../../src/core/resolve';
+import { runMonteCarlo, runNetworkMonteCarlo } from '../../src/core/variation/montecarlo';
+import { indexOf, mirrorAt } from '../../src/core/mirror-at';
+import { EXAMPLE_PATH, exampleTables } from '../example-tables';
 
 const rel = (a: number, b: number): number => Math.abs(a / b - 1);
 const report = (r: FileReport, name: string): MirrorReport => {
@@ -87,5 +92,54 @@ describe('Monte Carlo over a linked group: one draw per device per sample', () =
   });
   it('no mc-nonlinear: a network output is compared with its chain sigma', () => {
     expect(net.findings.filter((f) => f.code === 'mc-nonlinear')).toEqual([]);
+  });
+});
+
+describe('every output of a network from one solve per sample', () => {
+  const spec = resolveText(readFileSync(EXAMPLE_PATH, 'utf8'), 'sensor-afe.bias.yaml', { tables: exampleTables() }).parsed.spec!;
+  const S = 300;
+  for (const net of spec.networks ?? []) {
+    const outputs = net.members.flatMap((i) => {
+      const m = mirrorAt(spec, i)!;
+      return m.kind === 'netlist' ? [] : m.outputs.map((_, o) => [i, o] as const);
+    });
+    it(`network of mirror ${net.root}: each output's result is its own run's, sample for sample`, () => {
+      const together = runNetworkMonteCarlo(spec, outputs, S, 5)!;
+      expect(together.length).toBe(outputs.length);
+      outputs.forEach(([i, o], k) => {
+        expect(together[k]).toEqual(runMonteCarlo({ spec, mirror: mirrorAt(spec, i)!, outputIndex: o }, S, 5));
+      });
+    });
+  }
+  it("a compliance requirement is tested per sample after every output has read the sample", () => {
+    // tail.lna (the example) asked to comply at 50 mV above vss, where no cascode is saturated:
+    // every sample fails there, and the outputs read after its compliance solves keep their figures.
+    const tail = spec.mirrors.find((m) => m.name === 'tail')!;
+    if (tail.kind === 'netlist') throw new Error('fixture: tail is a template mirror');
+    const low = { ...tail, outputs: tail.outputs.map((o, k) => (k === 0 ? { ...o, require: { ...o.require, compliance: 0.05 } } : o)) };
+    const changed = { ...spec, mirrors: spec.mirrors.map((m) => (m === tail ? low : m)) };
+    const net = spec.networks!.find((n) => n.members.includes(indexOf(tail)))!;
+    const outputs = net.members.flatMap((i) => {
+      const m = mirrorAt(spec, i)!;
+      return m.kind === 'netlist' ? [] : m.outputs.map((_, o) => [i, o] as const);
+    });
+    const before = runNetworkMonteCarlo(spec, outputs, S, 5)!;
+    const after = runNetworkMonteCarlo(changed, outputs, S, 5)!;
+    outputs.forEach(([i, o], k) => {
+      if (i !== indexOf(tail) || o !== 0) { expect(after[k]).toEqual(before[k]); return; }
+      expect(after[k]!.failures!.compliance).toBe(S - (before[k]!.failures?.saturation ?? 0) - (before[k]!.failures?.ratio ?? 0));
+      expect(after[k]!.yield).toBe(0);
+      expect(after[k]!.sigma).toBe(before[k]!.sigma);
+    });
+  });
+  it('progress counts every output of the group, rising to the total', () => {
+    const calls: [number, number][] = [];
+    const out = analyzeText(CHAIN, 'chain.bias.yaml', { mc: { samples: 3000, seed: 1 }, anchors: false }, { mcProgress: (d, t) => calls.push([d, t]) });
+    const total = 3000 * out.mirrors.length;
+    // A call at least every 1 024 output-samples (montecarlo.ts), whichever way they are solved.
+    expect(calls.length).toBeGreaterThanOrEqual(Math.floor(total / 1024));
+    expect(calls.every(([, t]) => t === total)).toBe(true);
+    for (let k = 1; k < calls.length; k++) expect(calls[k]![0]).toBeGreaterThanOrEqual(calls[k - 1]![0]);
+    expect(calls.at(-1)![0]).toBe(total);
   });
 });

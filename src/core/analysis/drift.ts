@@ -90,7 +90,7 @@ export function temperatureCoefficient(
 ): number | undefined {
   if (iout === 0) return undefined;
   const h = DRIFT.dT;
-  const at = (temp: number): { F: Float64Array; y: number } | undefined => {
+  const at = (temp: number): AtEnd | undefined => {
     const other = rebuild(temp);
     if (!other || other.circuit.nodeNames.length !== c.nodeNames.length) return undefined;
     other.ws.v.set(ws.v);
@@ -99,8 +99,20 @@ export function temperatureCoefficient(
   };
   const up = at(T + h), down = at(T - h);
   if (!up || !down) return undefined;
+  return coefficientFrom(ws.n, pr, iout, up, down);
+}
+
+/** The circuit's residuals and probed current at one end of T ± DRIFT.dT, node voltages held at
+ *  the operating point. */
+export interface AtEnd { F: Float64Array; y: number }
+
+/** ppm/K from the two ends (`n` free nodes): what temperatureCoefficient computes once they are
+ *  assembled; a network assembles its ends once for every output (network/drift.ts). */
+export function coefficientFrom(n: number, pr: Probed, iout: number, up: AtEnd, down: AtEnd): number | undefined {
+  if (iout === 0) return undefined;
+  const h = DRIFT.dT;
   let d = (up.y - down.y) / (2 * h);
-  for (let j = 0; j < ws.n; j++) d -= pr.probe.sign * pr.lam[j]! * (up.F[j]! - down.F[j]!) / (2 * h);
+  for (let j = 0; j < n; j++) d -= pr.probe.sign * pr.lam[j]! * (up.F[j]! - down.F[j]!) / (2 * h);
   const tc = (d / iout) * 1e6;
   return Number.isFinite(tc) ? tc : undefined;
 }

@@ -31,8 +31,10 @@ export interface MeasureOptions {
   curve?: boolean; curvePoints?: number;
   /** false: leave out supply sensitivity, tc, tcBox and noise (a corner's table shows none);
    *  'required': the linearized figures and noise, but tcBox (eleven re-solves) only for an
-   *  output that requires a tc — what a fix search or its verification needs. */
-  drift?: boolean | 'required';
+   *  output that requires a tc — what a fix search needs; 'requirements': any of them only for
+   *  an output that requires one — all a fix's re-check reads (its quick rules compare no
+   *  other). */
+  drift?: boolean | 'required' | 'requirements';
 }
 
 /** Which output a report is about: what differs between reports of identical mirrors. */
@@ -139,11 +141,16 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   }
   const trange = t.spec.process.trange;
   const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
-  const box = trange !== undefined && opts.drift !== false && (opts.drift !== 'required' || req?.tc !== undefined);
+  // A re-check of a network member without such a requirement then skips its joint circuit's
+  // drift (two more builds of the whole group).
+  const drifts = opts.drift === 'requirements'
+    ? req?.tc !== undefined || req?.noise !== undefined || req?.supplySensitivity !== undefined
+    : opts.drift !== false;
+  const box = trange !== undefined && drifts && (opts.drift === undefined || opts.drift === true || req?.tc !== undefined);
   // A network member drifts and carries noise with everything above it: its joint circuit.
-  const joint = opts.drift !== false ? jointDrift(t.spec, indexOf(m), t.outputIndex, { box, curve: opts.curve === true }) : undefined;
+  const joint = drifts ? jointDrift(t.spec, indexOf(m), t.outputIndex, { box, curve: opts.curve === true }) : undefined;
   if (joint) Object.assign(base, joint);
-  else if (lam && opts.drift !== false) {
+  else if (lam && drifts) {
     const pr: Probed = { probe: heldProbe(mc.circuit), row: probeRow(mc.ws, heldProbe(mc.circuit)), lam };
     const s = supplySensitivity(mc.circuit, mc.ws, pr, iout, t.spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) base.supplySensitivity = s;

@@ -91,16 +91,26 @@ function logGrid(f1: number, f2: number, perDecade: number): number[] {
   return Array.from({ length: steps + 1 }, (_, k) => f1 * Math.pow(f2 / f1, k / steps));
 }
 
+/** The circuit's noise sources at ws.v and its capacitors: what every output of one solution
+ *  shares (network/drift.ts computes them once for a group's outputs). */
+export interface NoiseParts { sources: NoiseSource[]; caps: CapacitorElement[] }
+
+export function noiseParts(c: Circuit, ws: Workspace, temperature: number): NoiseParts {
+  const sources: NoiseSource[] = [];
+  for (const e of c.elements) elementNoise(e, ws.v, ws.ch, temperature, sources);
+  return { sources, caps: c.elements.filter((e): e is CapacitorElement => e.kind === 'capacitor') };
+}
+
 /**
  * The output noise of a converged circuit (ws assembled at the solution; `pr` its output and
  * that output's adjoint), at temperature T (K). Undefined when the AC system is singular.
+ * `given`: the sources and capacitors when the caller has them (noiseParts; sources whose
+ * transfer to this output is exactly zero may be left out: they add nothing anywhere).
  */
 export function outputNoise(
-  c: Circuit, ws: Workspace, pr: Probed, temperature: number, analysis: AnalysisSpec, spectrum: boolean,
+  c: Circuit, ws: Workspace, pr: Probed, temperature: number, analysis: AnalysisSpec, spectrum: boolean, given?: NoiseParts,
 ): NoiseReport | undefined {
-  const sources: NoiseSource[] = [];
-  for (const e of c.elements) elementNoise(e, ws.v, ws.ch, temperature, sources);
-  const caps = c.elements.filter((e): e is CapacitorElement => e.kind === 'capacitor');
+  const { sources, caps } = given ?? noiseParts(c, ws, temperature);
   const { f, band } = analysis.noise;
   const h0 = dcTransfer(ws, pr, sources);
   const transfer: Transfer = caps.length === 0 ? () => h0 : acTransfer(ws, pr, caps, sources);

@@ -9,7 +9,7 @@
  * parameter θ, dy/dθ = ∂y/∂θ − λ·∂F_free/∂θ at fixed node voltages.
  */
 import type { Circuit } from '../circuit/circuit';
-import { loadElement } from '../circuit/elements/stamp';
+import { hasSlots, loadElement, patternOf } from '../circuit/elements/stamp';
 import type { CircuitElement } from '../circuit/elements/element';
 import { factorAtSolution } from '../circuit/smallSignal';
 import type { Workspace } from '../circuit/workspace';
@@ -35,29 +35,75 @@ export function owns(p: OutputProbe, name: string): boolean {
   return p.elements === undefined || p.elements.some((e) => e.name === name);
 }
 
-/** The probed elements' F and G alone, at ws.v (ws itself left as it was). */
-function loadOwn(ws: Workspace, elements: readonly CircuitElement[]): { F: Float64Array; G: Float64Array } {
-  const F = ws.F.slice(), G = ws.G.slice(), absI = ws.absI.slice(), floor = ws.gdsFloor;
-  ws.F.fill(0); ws.G.fill(0);
+/** Where the probed elements stamp: F and absI at `nodes`, G at value index `pos[i]` of entry
+ *  (rows[i], cols[i]), in stamp order (a value index shared by two elements appears twice). */
+interface Stamps { nodes: number[]; rows: number[]; cols: number[]; pos: number[] }
+
+function stamps(ws: Workspace, elements: readonly CircuitElement[]): Stamps {
+  const st: Stamps = { nodes: [], rows: [], cols: [], pos: [] };
+  for (const e of elements) {
+    if (hasSlots(e)) {
+      let i = 0;
+      patternOf(e, (r, c) => { st.nodes.push(r); st.rows.push(r); st.cols.push(c); st.pos.push(ws.slots[e.slot + i++]!); });
+    } else if (e.kind === 'current') st.nodes.push(e.from, e.to);
+  }
+  return st;
+}
+
+/** The probed elements' own current out of node p.node and their entries of its row of G, at
+ *  ws.v: those entries loaded from zero, everything they touched then put back (ws itself left as
+ *  it was; only the entries they stamp are saved, not the whole circuit's). */
+function loadOwn(ws: Workspace, elements: readonly CircuitElement[], node: number): { f: number; row: [number, number][] } {
+  const st = stamps(ws, elements);
+  const { F, G, absI } = ws, floor = ws.gdsFloor;
+  const fSaved = st.nodes.map((k) => F[k]!), aSaved = st.nodes.map((k) => absI[k]!), gSaved = st.pos.map((q) => G[q]!);
+  for (const k of st.nodes) { F[k] = 0; absI[k] = 0; }
+  for (const q of st.pos) G[q] = 0;
   for (const e of elements) loadElement(e, ws, 1, 0);
-  const own = { F: ws.F.slice(), G: ws.G.slice() };
-  ws.F.set(F); ws.G.set(G); ws.absI.set(absI); ws.gdsFloor = floor;
-  return own;
+  const f = F[node]!;
+  const row: [number, number][] = [];
+  st.rows.forEach((r, i) => { if (r === node) row.push([st.cols[i]!, G[st.pos[i]!]!]); });
+  // Put back in reverse, so an entry saved twice ends at its first (untouched) value.
+  for (let i = st.nodes.length - 1; i >= 0; i--) { F[st.nodes[i]!] = fSaved[i]!; absI[st.nodes[i]!] = aSaved[i]!; }
+  for (let i = st.pos.length - 1; i >= 0; i--) G[st.pos[i]!] = gSaved[i]!;
+  ws.gdsFloor = floor;
+  return { f, row };
 }
 
 /** A, the probed current at ws.v (ws assembled there for a held probe). */
 export function probeCurrent(ws: Workspace, p: OutputProbe): number {
-  return p.sign * (p.elements ? loadOwn(ws, p.elements).F[p.node]! : ws.F[p.node]!);
+  return p.sign * (p.elements ? loadOwn(ws, p.elements, p.node).f : ws.F[p.node]!);
+}
+
+/** Each row's entries of a pattern (column, value index), columns ascending: a row read without
+ *  a pass over the whole matrix. */
+const rowsOf = new WeakMap<Workspace['pattern'], { ptr: Int32Array; col: Int32Array; pos: Int32Array }>();
+
+function rowIndex(pattern: Workspace['pattern']): { ptr: Int32Array; col: Int32Array; pos: Int32Array } {
+  let r = rowsOf.get(pattern);
+  if (r) return r;
+  const { colPtr, rowIdx, nt, nnz } = pattern;
+  const ptr = new Int32Array(nt + 1), col = new Int32Array(nnz), pos = new Int32Array(nnz);
+  for (let q = 0; q < nnz; q++) ptr[rowIdx[q]! + 1]++;
+  for (let i = 0; i < nt; i++) ptr[i + 1] += ptr[i]!;
+  const next = ptr.slice(0, nt);
+  for (let j = 0; j < nt; j++) {
+    for (let q = colPtr[j]!; q < colPtr[j + 1]!; q++) { const at = next[rowIdx[q]!]!++; col[at] = j; pos[at] = q; }
+  }
+  r = { ptr, col, pos };
+  rowsOf.set(pattern, r);
+  return r;
 }
 
 /** ∂y/∂v_j over every node (free and held), y = the probed current before its sign. */
 export function probeRow(ws: Workspace, p: OutputProbe): Float64Array {
-  const G = p.elements ? loadOwn(ws, p.elements).G : ws.G;
   const row = new Float64Array(ws.nt);
-  const { colPtr, rowIdx } = ws.pattern;
-  for (let j = 0; j < ws.nt; j++) {
-    for (let q = colPtr[j]!; q < colPtr[j + 1]!; q++) if (rowIdx[q] === p.node) row[j] = G[q]!;
+  if (p.elements) {
+    for (const [j, g] of loadOwn(ws, p.elements, p.node).row) row[j] = g;
+    return row;
   }
+  const { ptr, col, pos } = rowIndex(ws.pattern);
+  for (let q = ptr[p.node]!; q < ptr[p.node + 1]!; q++) row[col[q]!] = ws.G[pos[q]!]!;
   return row;
 }
 

@@ -84,6 +84,9 @@ export interface WiredTemplate {
    *  (relative to the first device this mirror added). */
   deviceNames: string[];
   byRole: Record<string, number>;
+  /** Each output's own devices, as indices like byRole's (Monte Carlo of a network counts them
+   *  per output in one circuit). */
+  outputDevices: number[][];
   /** The input resistor, when the input is one. */
   inputResistor?: ReturnType<CircuitBuilder['resistor']>;
 }
@@ -156,7 +159,10 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
   const filtered = new Set<string>();
   const outNodes: string[] = [];
   const cNodes: (string | undefined)[] = [];
+  const outputDevices: number[][] = [];
   m.outputs.forEach((o: MirrorOutput, j) => {
+    const own: number[] = [];
+    outputDevices.push(own);
     const prefix = bank ? `${o.name}.` : '';
     const linked = w.outNode?.(j);
     const outName = linked ?? `${ns}${prefix}out`;
@@ -175,6 +181,7 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
       if (onLine) filtered.add(g);
       const wired = onLine ? { ...conn, g: `${g}${FILTERED}` } : conn;
       const k = add(`${prefix}${role}`, role, size, wired, map, j === w.outputIndex);
+      own.push(k);
       if (j === w.outputIndex) byRole[role] = k;
     }
     if (kind.degeneration !== undefined) {
@@ -199,7 +206,7 @@ export function wireTemplate(b: CircuitBuilder, spec: ResolvedSpec, m: TemplateM
     if (m.startup) add('startup', 'startup', m.startup, loop.startup, refMap, false, true);
   }
 
-  const out: WiredTemplate = { outNodes, cNodes, inputNode, deviceNames: names, byRole };
+  const out: WiredTemplate = { outNodes, cNodes, inputNode, deviceNames: names, byRole, outputDevices };
   if (w.inputNode !== undefined || m.input.kind === 'self') return out;
   if (m.input.kind === 'current' || m.input.kind === 'link') {
     // A linked input measured alone is the current that arrives (network/ solves it).

@@ -10,13 +10,15 @@
  */
 import { DRIFT } from '../defaults';
 import { solveMirror } from '../analysis/solve';
-import { atTemperature, boxCoefficient, supplySensitivity, temperatureCoefficient, type Rebuilt } from '../analysis/drift';
-import { DEFAULT_ANALYSIS, outputNoise } from '../analysis/noise';
+import { assemble } from '../circuit/assemble';
+import { atTemperature, boxCoefficient, coefficientFrom, supplySensitivity, type AtEnd } from '../analysis/drift';
+import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
+import type { NoiseSource } from '../circuit/elements/noise';
 import { probeAdjoint, probeCurrent, probeRow, type OutputProbe, type Probed } from '../analysis/probe';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
 import { networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, key, type JointCircuit } from './joint';
+import { buildJoint, key, type JointCircuit, type JointMember } from './joint';
 
 /** The drift and noise figures of one output (MirrorReport's fields of the same names). */
 export interface JointDrift {
@@ -28,7 +30,14 @@ export interface JointDrift {
 }
 
 interface Solved { j: JointCircuit; converged: boolean }
-interface GroupCache { group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[] }
+/** The group's circuit built at T ± DRIFT.dT and assembled at the nominal solution: the element
+ *  equations there do not depend on the output read, so every output's tc shares them. */
+interface Ends { up: JointCircuit; down: JointCircuit }
+/** The nominal solution's noise sources, once per group, and which elements sit on each node:
+ *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
+ *  the few mirrors on its path), so each output passes those alone to outputNoise. */
+interface GroupNoise { parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[] }
+interface GroupCache { group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise }
 
 /** Per spec object: its groups by member index, each group's solutions by temperature. */
 const cache = new WeakMap<ResolvedSpec, Map<number, GroupCache>>();
@@ -57,15 +66,93 @@ function solvedAt(spec: ResolvedSpec, gc: GroupCache, t: number, warm?: Float64A
   return s;
 }
 
-/** How output `k` of the joint circuit is read. */
-function probeOf(j: JointCircuit, k: string): OutputProbe | undefined {
-  const mem = j.members.find((x) => k.startsWith(`${x.index}:`));
+/** Each joint circuit's members by file index (a probe per output, without a search). */
+const membersOf = new WeakMap<JointCircuit, Map<number, JointMember>>();
+
+function memberOf(j: JointCircuit, mirrorIndex: number): JointMember | undefined {
+  let m = membersOf.get(j);
+  if (!m) { m = new Map(j.members.map((x) => [x.index, x] as const)); membersOf.set(j, m); }
+  return m.get(mirrorIndex);
+}
+
+/** How output `outputIndex` of mirror `mirrorIndex` in the joint circuit is read. */
+function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): OutputProbe | undefined {
+  const mem = memberOf(j, mirrorIndex);
   if (!mem) return undefined;
+  const k = key(mirrorIndex, outputIndex);
   const leaf = j.leafNode.get(k);
   if (leaf !== undefined) return { node: leaf, sign: mem.sign };
   const link = j.linkNode.get(k);
   if (link === undefined) return undefined;
   return { node: link, sign: mem.sign, elements: (j.outDevices.get(k) ?? []).map((d) => j.mc.circuit.devices[d]!) };
+}
+
+/** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
+ *  circuit comes out different), built once per group. */
+function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: number): Ends | null {
+  if (gc.ends !== undefined) return gc.ends;
+  const end = (temp: number): JointCircuit | undefined => {
+    const other = buildJoint(atTemperature(spec, temp), gc.group);
+    if (other.mc.circuit.nodeNames.length !== nominal.mc.circuit.nodeNames.length) return undefined;
+    other.mc.ws.v.set(nominal.mc.ws.v);
+    assemble(other.mc.circuit, other.mc.ws, 1, 0);
+    return other;
+  };
+  const up = end(T + DRIFT.dT), down = end(T - DRIFT.dT);
+  gc.ends = up && down ? { up, down } : null;
+  return gc.ends;
+}
+
+/** One output read at one end. */
+function endOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
+  const p = probeOf(j, mirrorIndex, outputIndex);
+  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p) } : undefined;
+}
+
+function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
+  if (gc.noise) return gc.noise;
+  const { circuit: c, ws } = j.mc;
+  const parts = noiseParts(c, ws, T);
+  const { sources } = parts;
+  // Each element's sources are consecutive: one run per element, in the circuit's order.
+  const runs: [number, number][] = [], byNode: number[][] = Array.from({ length: ws.nt }, () => []), always: number[] = [];
+  for (let i = 0; i < sources.length;) {
+    let e = i;
+    while (e < sources.length && sources[e]!.element === sources[i]!.element) e++;
+    const r = runs.length;
+    runs.push([i, e]);
+    const nodes = new Set<number>();
+    let finite = true;
+    for (let q = i; q < e; q++) {
+      const x = sources[q]!;
+      nodes.add(x.from); nodes.add(x.to);
+      if (!Number.isFinite(x.white) || !Number.isFinite(x.flicker)) finite = false;
+    }
+    // A source of infinite or undefined density is not silent even at zero gain (0·∞).
+    if (!finite) always.push(r);
+    for (const k of nodes) byNode[k]?.push(r);
+    i = e;
+  }
+  gc.noise = { parts, runs, byNode, always };
+  return gc.noise;
+}
+
+/** The sources that can reach an output: those of every element on the probed node or on a free
+ *  node where its adjoint is not zero, in the circuit's order. Every other source's gain is
+ *  exactly zero (no direct path, λ zero at both ends), so leaving it out changes no sum. With
+ *  capacitors the AC transfer differs from λ: every source. */
+function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array): NoiseParts {
+  if (gn.parts.caps.length > 0) return gn.parts;
+  const picked = new Set<number>(gn.always);
+  for (const r of gn.byNode[probe.node] ?? []) picked.add(r);
+  for (let k = 0; k < lam.length; k++) if (lam[k] !== 0) for (const r of gn.byNode[k]!) picked.add(r);
+  const order = [...picked].sort((a, b) => a - b);
+  const sources: NoiseSource[] = [];
+  for (const r of order) {
+    const [a, b] = gn.runs[r]!;
+    for (let q = a; q < b; q++) sources.push(gn.parts.sources[q]!);
+  }
+  return { sources, caps: gn.parts.caps };
 }
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
@@ -96,9 +183,8 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const T = spec.process.temperature;
   const nominal = solvedAt(spec, gc, T);
   if (!nominal.converged) return undefined;
-  const k = key(mirrorIndex, outputIndex);
   const { j } = nominal;
-  const probe = probeOf(j, k);
+  const probe = probeOf(j, mirrorIndex, outputIndex);
   if (!probe) return undefined;
   const { circuit: c, ws } = j.mc;
   const iout = probeCurrent(ws, probe);
@@ -109,22 +195,19 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     const pr: Probed = { probe, row, lam };
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
-    const rebuild = (temp: number): Rebuilt | undefined => {
-      const other = buildJoint(atTemperature(spec, temp), gc.group);
-      const p = probeOf(other, k);
-      return p ? { circuit: other.mc.circuit, ws: other.mc.ws, probe: p } : undefined;
-    };
-    const tc = temperatureCoefficient(c, ws, pr, iout, T, rebuild);
+    const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
+    const up = ends && endOf(ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends.down, mirrorIndex, outputIndex);
+    const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
-    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve);
-    const mem = j.members.find((x) => x.index === mirrorIndex);
+    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, lam));
+    const mem = memberOf(j, mirrorIndex);
     if (noise && mem) out.noise = renamed(noise, mem.ns);
   }
   const trange = spec.process.trange;
   if (trange && opts.box) {
     const curve = jointCurve(spec, gc, trange, ws.v).map((s, n) => {
       const t = trange[0] + ((trange[1] - trange[0]) * n) / (DRIFT.trangePoints - 1);
-      const p = s?.converged ? probeOf(s.j, k) : undefined;
+      const p = s?.converged ? probeOf(s.j, mirrorIndex, outputIndex) : undefined;
       return { t, iout: p && s ? probeCurrent(s.j.mc.ws, p) : NaN, converged: p !== undefined };
     });
     if (opts.curve) out.drift = curve;

@@ -9,7 +9,7 @@
  * anything; `solveNetworks` solves the groups and records them in `spec.networks`.
  */
 import type { ResolvedMirror, ResolvedSpec, SolvedNetwork, SolvedNetworkOutput, TemplateMirror } from '../types';
-import { outputCurrent, solveMirror } from '../analysis/solve';
+import { solveMirror } from '../analysis/solve';
 import { deviceMismatchCurrents, deviceSigmas } from '../circuit/elements/device';
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
@@ -76,29 +76,6 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
     }
   }
   return withMirrors(spec, changed, networks);
-}
-
-/** The whole group's circuit measured at one of its outputs, for Monte Carlo (design §9.1: one
- *  draw per device per sample over the whole group, so the spread of a leaf and of an
- *  intermediate output includes every device above it, and an intermediate output's also the
- *  devices below that set its node's voltage). `draw` is every device of the group; `iout` the
- *  measured output's current at ws.v; `linked` when that output feeds another mirror (its node
- *  is solved, not held, so it has no compliance to test). Undefined when the output is in no
- *  network. */
-export interface JointMeasure { mc: JointCircuit['mc']; draw: Set<number>; iout: () => number; linked: boolean }
-
-export function jointForOutput(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): JointMeasure | undefined {
-  if (!spec.networks) return undefined;
-  const g = networkGroups(spec).find((x) => x.members.some((m) => indexOf(m) === mirrorIndex));
-  const m = g?.members.find((x) => indexOf(x) === mirrorIndex);
-  if (!g || !m || !m.outputs[outputIndex]) return undefined;
-  const j = buildJoint(spec, g, undefined, { mirror: mirrorIndex, output: outputIndex });
-  const draw = new Set<number>();
-  for (let d = 0; d < j.mc.circuit.devices.length; d++) draw.add(d);
-  const k = key(mirrorIndex, outputIndex);
-  const linked = j.linkNode.has(k);
-  const iout = linked ? () => outputCurrentOf(j, k) : () => outputCurrent(j.mc);
-  return { mc: j.mc, draw, iout, linked };
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the

@@ -153,7 +153,7 @@ export interface MirrorRun {
   /** Finds one draft's fixes with the run's memo and budget (rules/index.ts `finish`). */
   finish: (d: Draft, baseline: Baseline) => Finding;
   memo: RecordingMemo;
-  budget: { left: number; deadline: number; now: () => number };
+  budget: { left: number; chars: number; deadline: number; now: () => number };
   specErrors: number;
 }
 
@@ -248,6 +248,9 @@ function reuse(rc: RuleContext, run: MirrorRun, e: Entry, baseline: Baseline): b
     const hit = Map.prototype.has.call(run.memo, q.id);
     if (hit !== q.hit) return false;
     if (!hit) {
+      // A whole-file re-check spends the file's character budget here as it would in finish.
+      if (run.budget.chars < rc.parsed.text.length) return false;
+      run.budget.chars -= rc.parsed.text.length;
       const plan: FixPlan = { title: '', edits: JSON.parse(q.id.slice('spec:'.length)) as FixPlan['edits'], scope: 'spec', mirrorIndex: q.mirrorIndex, family: '' };
       Map.prototype.set.call(run.memo, q.id, recheck(rc, plan, baseline, run.detect, run.recheckStore));
       added.push(q.id);

@@ -34,7 +34,9 @@ const MAX_VERIFICATIONS = 6;
 export interface RulesOptions {
   /** Re-checks (parse + solve of an edited text) allowed for the whole file; later findings get no fixes. */
   maxRechecks?: number;
-  /** ms for fix verification of the whole file (default 4000); the clock is `now`. */
+  /** ms for fix verification of the whole file, on the clock `now` (default Date.now); without it
+   *  only the count of re-checks bounds the work, so the fixes offered never depend on how busy
+   *  the machine is (the CLI in CI and the editor see the same fixes for the same text). */
   budgetMs?: number;
   now?: () => number;
   /**
@@ -54,12 +56,18 @@ export interface RulesOptions {
 }
 
 const DEFAULT_RECHECKS = 120;
-const DEFAULT_BUDGET_MS = 4000;
+/** Characters the whole-file re-checks of one analysis may re-read (4 Mi: about five seconds of
+ *  parsing on a quiet machine, some hundred re-checks of an ordinary spec): the bound that keeps
+ *  a large file sharing values through aliases in bounded time, counted, so the fixes offered are
+ *  the same however busy the machine. */
+const WHOLE_FILE_CHARS = 4 * 1024 * 1024;
 
 interface Budget {
   /** Where local re-checks are kept across analyses, with this file's context (verify.ts). */
   store?: RecheckStore;
   left: number;
+  /** Characters whole-file re-checks may still re-read. */
+  chars: number;
   deadline: number;
   now: () => number;
   /**
@@ -131,11 +139,12 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
     const json = parsed.json ?? /^\s*[{[]/.test(parsed.text);
     const rc: RuleContext = { parsed, spec, reports, quick: false, json, file: json ? 'spec.bias.json' : 'spec.bias.yaml' };
     if (opts.reread !== 'whole-file') rc.fragments = MirrorFragments.of(parsed);
-    const now = opts.now ?? Date.now;
+    const timed = opts.budgetMs !== undefined;
+    const now = timed ? opts.now ?? Date.now : (): number => 0;
     if (opts.byMirror && opts.rechecks && rc.fragments) {
       const memo = new RecordingMemo();
       const budget: Budget = {
-        left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
+        left: opts.maxRechecks ?? DEFAULT_RECHECKS, chars: WHOLE_FILE_CHARS, deadline: timed ? now() + (opts.budgetMs ?? 0) : Infinity, now,
         widen: () => sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m))),
         store: { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses, found: (q, d) => opts.byMirror!.store.found(q, d) },
       };
@@ -154,7 +163,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
     const memo = new Map<string, Recheck>();
     let widen: boolean | undefined;  // found on the first fix built: a clean file never pays for the walk
     const budget: Budget = {
-      left: opts.maxRechecks ?? DEFAULT_RECHECKS, deadline: now() + (opts.budgetMs ?? DEFAULT_BUDGET_MS), now,
+      left: opts.maxRechecks ?? DEFAULT_RECHECKS, chars: WHOLE_FILE_CHARS, deadline: timed ? now() + (opts.budgetMs ?? 0) : Infinity, now,
       widen: () => (widen ??= sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m)))),
     };
     if (opts.rechecks && rc.fragments) budget.store = { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses };
@@ -184,7 +193,14 @@ function finish(rc: RuleContext, d: Draft, baseline: Baseline, memo: Map<string,
         // The same edit answers several findings (the balanced Wilson, the EKV model): re-check once.
         // A whole-file re-check does not depend on the mirror the plan came from.
         const id = p.scope === 'spec' ? `spec:${JSON.stringify(p.edits)}` : `mirror:${p.mirrorIndex}:${JSON.stringify(p.edits)}`;
-        if (!memo.has(id)) { budget.left--; memo.set(id, recheck(rc, p, baseline, detect, budget.store)); }
+        if (!memo.has(id)) {
+          // A whole-file re-check re-reads the text; a local one a mirror's lines (not counted).
+          const whole = p.scope === 'spec' || !rc.fragments;
+          if (whole && budget.chars < rc.parsed.text.length) break;
+          if (whole) budget.chars -= rc.parsed.text.length;
+          budget.left--;
+          memo.set(id, recheck(rc, p, baseline, detect, budget.store));
+        }
         const after = memo.get(id);
         if (after && !Array.isArray(after)) { untrusted ??= after; untrustedFamilies.add(p.family); }
         if (!accepts(after, d, p, baseline)) continue;

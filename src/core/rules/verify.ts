@@ -13,8 +13,8 @@
  * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
 import type { MirrorReport, ResolvedSpec, TextEdit } from '../types';
-import type { ParsedSpec } from '../spec/index';
-import { resolveText } from '../resolve';
+import { fromRead, looksJson, type ParsedSpec } from '../spec/index';
+import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { MirrorFragments, SplicedSourceMap } from '../spec/fragment';
@@ -43,14 +43,15 @@ export interface Baseline {
   errors: Set<string>;
 }
 
-/** Every output of one mirror of a spec. */
+/** Every output of one mirror of a spec, with the drift figures its requirements ask for: the
+ *  re-check's quick rules read no other. */
 function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[] | undefined {
   const m = mirrorAt(spec, mirrorIndex);
   if (!m) return undefined;
   const n = m.kind === 'netlist' ? 1 : m.outputs.length;
   const out: MirrorReport[] = [];
   for (let j = 0; j < n; j++) {
-    const r = measure(spec, mirrorIndex, j);
+    const r = measure(spec, mirrorIndex, j, 'requirements');
     if (!r) return undefined;
     out.push(r);
   }
@@ -194,10 +195,17 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   if (plan.scope === 'mirror') wholeForMirror++;
   const units = store?.units;
   // Limits may carry front-end defaults (the editor's margin); a fix never edits them. Sizes
-  // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them). The
-  // edited text of the last analysis with the same fix differs by the designer's edit since.
+  // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
+  const opts = { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) };
+  // An edit outside every mirror (the EKV fix) re-reads the lines before the mirrors alone; its
+  // spec findings are only counted, so they are placed on the original's tree as a local re-check's are.
+  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits) : undefined;
+  // Otherwise the edited text of the last analysis with the same fix differs by the designer's
+  // edit since: the file's parse cache reads only what changed (spec/incremental.ts).
   const parses = store?.parses ? { parses: { cache: store.parses, slot: `fix ${plan.scope === 'spec' ? '' : plan.mirrorIndex} ${JSON.stringify(plan.edits)}` } } : {};
-  const { parsed } = resolveText(text, rc.file, { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}), ...parses });
+  const { parsed } = outside
+    ? resolveParsed(fromRead(text, outside.read, { source: outside.source, findings: rc.parsed.source as YamlSourceMap }, looksJson(text, rc.file), opts), opts)
+    : resolveText(text, rc.file, { ...opts, ...parses });
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;

@@ -5,6 +5,7 @@
 import { isBipolarDevice } from '../device-types';
 import type { DeviceSize, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { measureMirror, solveAt, type MirrorContext, type OperatingPoint } from '../analysis/index';
+import type { MeasureOptions } from '../analysis/measure';
 import { mirrorAt, withMirrorAt } from '../mirror-at';
 
 /** One device of a mirror: a role (of output `output` for output roles), or a netlist device name. */
@@ -90,11 +91,11 @@ function nominalVout(spec: ResolvedSpec, mirrorIndex: number, outputIndex: numbe
 }
 
 /** The full report of one output of a (modified) spec; undefined if the engine throws. */
-export function measure(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number): MirrorReport | undefined {
+export function measure(spec: ResolvedSpec, mirrorIndex: number, outputIndex: number, drift: MeasureOptions['drift'] = 'required'): MirrorReport | undefined {
   const ctx = contextOf(spec, mirrorIndex, outputIndex);
   if (!ctx) return undefined;
   try {
-    return measureMirror(ctx, { drift: 'required' });
+    return measureMirror(ctx, { drift });
   } catch {
     return undefined;
   }

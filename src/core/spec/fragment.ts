@@ -16,7 +16,7 @@ import type { Document } from 'yaml';
 import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import type { ParsedSpec } from './index';
-import { duplicateKeys, YAML_OPTIONS } from './document';
+import { duplicateKeys, readDocument, refusal, YAML_OPTIONS, type ReadDocument } from './document';
 import { LineIndex } from '../text/lines';
 import type { SourceMap } from './source-map';
 import { YamlSourceMap } from './source-map';
@@ -74,6 +74,9 @@ const FIRST_LINE_PREFIX = /^ *(?:- +)?$/;
 /** Item spans by source map (a tree and its text, which nothing changes while its map is in use),
  *  found once however many analyses' steps ask; null: the spec is not plain. */
 const spansOf = new WeakMap<YamlSourceMap, (ItemSpan | undefined)[] | null>();
+/** Where the `mirrors` key and its items start, found with the spans (an edit inside an item moves neither). */
+const outsideOf = new WeakMap<YamlSourceMap, Outside | undefined>();
+interface Outside { key: number; keyLineStart: number; itemsStart: number }
 
 /** Where an item of `mirrors` sits in the text, or undefined when its lines do not read alone. */
 function spanOf(item: unknown, text: string, lines: LineIndex): ItemSpan | undefined {
@@ -88,6 +91,8 @@ function spanOf(item: unknown, text: string, lines: LineIndex): ItemSpan | undef
 export class MirrorFragments {
   /** Item spans, found on first use (a clean file never needs them); null: the spec is not plain. */
   private found: (ItemSpan | undefined)[] | null | undefined;
+  /** Where the `mirrors` key and its first item's line start, when `mirrors` is the root's last key (found with the spans). */
+  private outside?: Outside;
 
   private constructor(private readonly parsed: ParsedSpec, private readonly src: YamlSourceMap) {}
 
@@ -109,6 +114,7 @@ export class MirrorFragments {
   private get spans(): (ItemSpan | undefined)[] {
     if (this.found === undefined) {
       const known = spansOf.get(this.src);
+      if (known !== undefined) this.outside = outsideOf.get(this.src);
       this.found = known !== undefined ? known : this.find();
       spansOf.set(this.src, this.found);
     }
@@ -130,6 +136,7 @@ export class MirrorFragments {
       if (s) out[j] = { lineStart: s.lineStart + delta, content: s.content + delta, end: s.end + delta, line: s.line + lineDelta };
     }
     spansOf.set(to, out);
+    outsideOf.set(to, this.outside);
   }
 
   private find(): (ItemSpan | undefined)[] | null {
@@ -144,6 +151,13 @@ export class MirrorFragments {
     if (!isSeq(seq) || seq.flow) return null;
     const text = this.original;
     const lines = this.lines;
+    const key = (mirrors[0].key as { range?: [number, number, number] } | null)?.range;
+    if (doc.contents.items[doc.contents.items.length - 1] === mirrors[0] && key && seq.range) {
+      const keyLineStart = lines.lineStart(key[0]);
+      const itemsStart = lines.lineStart(seq.range[0]);
+      if (itemsStart > keyLineStart) this.outside = { key: key[0], keyLineStart, itemsStart };
+    }
+    outsideOf.set(this.src, this.outside);
     return seq.items.map((item) => spanOf(item, text, lines));
   }
 
@@ -232,6 +246,42 @@ export class MirrorFragments {
     return { original: this.original.slice(sp.lineStart, sp.end), edited: edited + item.slice(pos) };
   }
 
+  /**
+   * The edited text outside the mirror items, read alone: `text` is an edit of the original that
+   * changed nothing from the `mirrors` key's line on (a process edit: the EKV fix), and `mirrors`
+   * is the root's last key. The lines before its first item read as a document of their own
+   * (where `mirrors:` reads null), and the original items go back into that data: what the whole
+   * edited text reads as, without reading every mirror again. Undefined when that is not exact
+   * (then the caller reads the whole text): the edited lines must read cleanly and plainly alone.
+   */
+  readOutside(text: string, edits: readonly TextEdit[]): { read: ReadDocument; source: SourceMap } | undefined {
+    if (this.spans.length === 0 || !this.outside || !Array.isArray((this.parsed.data as { mirrors?: unknown } | undefined)?.mirrors)) return undefined;
+    const { key, keyLineStart, itemsStart } = this.outside;
+    if (!edits.every((e) => this.lines.offset(e.range.end) < keyLineStart && positionExists(this.lines, e.range.start) && positionExists(this.lines, e.range.end))) return undefined;
+    const delta = text.length - this.original.length;
+    if (keyLineStart + delta < 0 || text.slice(keyLineStart + delta) !== this.original.slice(keyLineStart)) return undefined;
+    // The whole text is refused (too large, a control byte, runaway flow nesting) as a whole read would.
+    if (refusal(text, LineIndex.of(text))) return undefined;
+    const cut = text.slice(0, itemsStart + delta);
+    const lines = new LineIndex(cut);
+    const read = readDocument(cut, lines);
+    const doc = read.doc;
+    if (!read.parsed || read.findings.length > 0 || !doc || doc.errors.length > 0 || doc.warnings.length > 0) return undefined;
+    if (!isMap(doc.contents) || !plain(doc) || doc.directives?.yaml.version !== '1.2') return undefined;
+    const items = doc.contents.items;
+    const last = items[items.length - 1];
+    const lastKey = (last?.key as { range?: [number, number, number] } | null)?.range;
+    if (!last || keyName(last.key) !== 'mirrors' || !lastKey || lastKey[0] !== key + delta || items.some((p) => keyName(p.key) === '<<')) return undefined;
+    const data = read.data as Record<string, unknown> | null;
+    if (!data || typeof data !== 'object' || data.mirrors !== null) return undefined;
+    const original = this.parsed.data as { mirrors: unknown[] };
+    const lineDelta = lines.lineOf(cut.length) - this.lines.lineOf(itemsStart);
+    return {
+      read: { doc, parsed: true, findings: [], data: { ...data, mirrors: original.mirrors } },
+      source: new OutsideSourceMap(new YamlSourceMap(doc, lines), this.parsed.source, lineDelta, text),
+    };
+  }
+
   /** The line of the original text where mirror `index`'s fragment starts, and where it ends. */
   lineSpan(index: number): { first: number; last: number } | undefined {
     const sp = this.spans[index];
@@ -300,5 +350,44 @@ export class SplicedSourceMap implements SourceMap {
   rangeFor(path: SpecPath): Range {
     if (this.inItem(path)) return this.fromFragment(this.fragment.parsed.source.rangeFor(path.slice(2)))!;
     return this.fromBase(this.base.rangeFor(path))!;
+  }
+}
+
+/**
+ * The source map of a text edited outside its mirror items (`MirrorFragments.readOutside`): the
+ * mirrors from the original map, moved down by the lines the edit added; everything else from the
+ * edited lines before them, read alone (the same offsets as in the edited text).
+ */
+class OutsideSourceMap implements SourceMap {
+  constructor(
+    private readonly head: YamlSourceMap,
+    private readonly base: SourceMap,
+    private readonly lineDelta: number,
+    /** The edited text this map describes. */
+    private readonly edited: string,
+  ) {}
+
+  private editedLines?: LineIndex;
+
+  text(range: Range): string {
+    this.editedLines ??= LineIndex.of(this.edited);
+    return this.editedLines.slice(range);
+  }
+
+  private moved(r: Range | undefined): Range | undefined {
+    const d = this.lineDelta;
+    return r && { start: { line: r.start.line + d, character: r.start.character }, end: { line: r.end.line + d, character: r.end.character } };
+  }
+
+  value(path: SpecPath): Range | undefined {
+    return path[0] === 'mirrors' ? this.moved(this.base.value(path)) : this.head.value(path);
+  }
+
+  key(path: SpecPath): Range | undefined {
+    return path[0] === 'mirrors' ? this.moved(this.base.key(path)) : this.head.key(path);
+  }
+
+  rangeFor(path: SpecPath): Range {
+    return path[0] === 'mirrors' ? this.moved(this.base.rangeFor(path))! : this.head.rangeFor(path);
   }
 }

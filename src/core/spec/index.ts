@@ -9,7 +9,7 @@
  * the file indices of the mirrors left out until their errors are fixed.
  */
 import type { Finding, ResolvedSpec } from '../types';
-import { readDocument } from './document';
+import { readDocument, type ReadDocument } from './document';
 import { elaborate } from './elaborate';
 import { FindingSink, type SpecSuggestion } from './findings';
 import { LineIndex, ZERO_RANGE } from '../text/lines';
@@ -48,8 +48,13 @@ export interface ParseOptions {
   words?: boolean;
 }
 
-/** The table files a spec names (`table:` values), for the front end to read before analysing. */
+/**
+ * The table files a spec names (`table:` values), for the front end to read before analysing.
+ * A text without the word `table` and without a backslash (an escape could spell it in a quoted
+ * key) names none: most specs, which are then not read twice.
+ */
 export function tableFiles(text: string): string[] {
+  if (typeof text === 'string' && !text.includes('table') && !text.includes('\\')) return [];
   try {
     const read = readDocument(typeof text === 'string' ? text : '', new LineIndex(text));
     return read.parsed ? tableNames(read.data) : [];
@@ -66,7 +71,7 @@ export function sortSpecFindings(list: Finding[]): Finding[] {
     || SEVERITY_ORDER[a.severity] - SEVERITY_ORDER[b.severity]);
 }
 
-function looksJson(text: string, file?: string): boolean {
+export function looksJson(text: string, file?: string): boolean {
   if (file) return /\.json$/i.test(file);
   return /^\s*\{/.test(text) && /\}\s*$/.test(text);
 }
@@ -74,30 +79,13 @@ function looksJson(text: string, file?: string): boolean {
 export function parseSpec(text: string, file?: string, opts: ParseOptions = {}): ParsedSpec {
   const src = typeof text === 'string' ? text : '';
   const lines = LineIndex.of(src);
-  let source = new YamlSourceMap(undefined, lines);
+  let source: SourceMap = new YamlSourceMap(undefined, lines);
   const json = looksJson(src, file);
   try {
     const read = readDocument(src, lines);
-    source = new YamlSourceMap(read.doc, lines);
-    if (!read.parsed) return { text: src, parsed: false, findings: sortSpecFindings(read.findings), source, json };
-    const sink = new FindingSink(source, undefined, opts.words ?? true);
-    for (const f of read.findings) sink.add(f.severity, f.code, f.message, f.path, f.range, `${f.code}:${f.range.start.line}:${f.range.start.character}`);
-    if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
-    validateSchema(read.data, sink);
-    const spec = elaborate(read.data, sink, undefined, opts.tables);
-    const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
-    if (opts.tables) out.tables = opts.tables;
-    if (sink.suggestions.length > 0) out.suggestions = sink.suggestions;
-    if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
-    else if (spec !== undefined) {
-      const withheld = sink.mirrorsInError();
-      if (withheld) {
-        const setAside = new Set(withheld);
-        out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(indexOf(m))) };
-        out.withheld = withheld;
-      }
-    }
-    return out;
+    const yaml = new YamlSourceMap(read.doc, lines);
+    source = yaml;
+    return fromRead(src, read, { source, findings: yaml }, json, opts);
   } catch (e) {
     // A defect in qpoint must not take the designer's diagnostics with it.
     const message = e instanceof Error ? e.message : String(e);
@@ -107,4 +95,34 @@ export function parseSpec(text: string, file?: string, opts: ParseOptions = {}):
         message: `qpoint could not read this spec (${message}); please report it with the file attached` }],
     };
   }
+}
+
+/**
+ * A read document's data through the schema and the elaborator: `maps.source` is the text's source
+ * map, `maps.findings` the tree the findings are placed on. `parseSpec` reads the document from
+ * the text (one map for both); a fix's re-check may hand in data it spliced from parts it read
+ * alone (spec/fragment.ts), whose findings it only counts. Throws only on a defect (parseSpec
+ * turns that into a finding).
+ */
+export function fromRead(src: string, read: ReadDocument, maps: { source: SourceMap; findings: YamlSourceMap }, json: boolean, opts: ParseOptions = {}): ParsedSpec {
+  const source = maps.source;
+  if (!read.parsed) return { text: src, parsed: false, findings: sortSpecFindings(read.findings), source, json };
+  const sink = new FindingSink(maps.findings, undefined, opts.words ?? true);
+  for (const f of read.findings) sink.add(f.severity, f.code, f.message, f.path, f.range, `${f.code}:${f.range.start.line}:${f.range.start.character}`);
+  if (read.data === undefined || read.data === null) return { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json };
+  validateSchema(read.data, sink);
+  const spec = elaborate(read.data, sink, undefined, opts.tables);
+  const out: ParsedSpec = { text: src, parsed: true, findings: sortSpecFindings(sink.list), source, json, data: read.data };
+  if (opts.tables) out.tables = opts.tables;
+  if (sink.suggestions.length > 0) out.suggestions = sink.suggestions;
+  if (spec !== undefined && sink.errorCount === 0) out.spec = spec;
+  else if (spec !== undefined) {
+    const withheld = sink.mirrorsInError();
+    if (withheld) {
+      const setAside = new Set(withheld);
+      out.spec = { ...spec, mirrors: spec.mirrors.filter((m) => !setAside.has(indexOf(m))) };
+      out.withheld = withheld;
+    }
+  }
+  return out;
 }

@@ -16,13 +16,13 @@ import { suggestion } from './suggest';
 /** `mirrorIndex:outputIndex` of every output some mirror's `from` names (for `output.v` being
  *  optional there), from the plain data alone. */
 export function fedOutputs(data: unknown): Set<string> {
-  const targets = linkTargets(data);
+  let targets: ReturnType<typeof linkTargets> | undefined;  // listed at the first link: most specs have none
   const fed = new Set<string>();
   const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
   for (let i = 0; i < items.length; i++) {
     const from = linkPathOf(data, i);
     if (from === undefined) continue;
-    const r = resolveLinkPath(from, targets);
+    const r = resolveLinkPath(from, targets ??= linkTargets(data));
     if (r.ok && r.link.mirror !== i) fed.add(`${r.link.mirror}:${r.link.output}`);
   }
   return fed;
@@ -36,6 +36,8 @@ function linkOf(m: ResolvedMirror): LinkInput | undefined {
  *  mirrors with links resolved and fed outputs marked, as new objects where anything changes (a
  *  re-check after a fix reuses the mirror objects of the first reading). */
 export function checkLinks(data: unknown, given: ResolvedMirror[], sink: FindingSink): ResolvedMirror[] {
+  // No link and no fed output: nothing to check or mark (every fix's re-check of a plain spec).
+  if (given.every((m) => m.kind === 'netlist' || (m.input.kind !== 'link' && m.outputs.every((o) => o.feeds === undefined)))) return given;
   const mirrors = given.map((m): ResolvedMirror => {
     if (m.kind === 'netlist') return m;
     const outputs = m.outputs.map((o) => { if (o.feeds === undefined) return o; const c = { ...o }; delete c.feeds; return c; });

@@ -47,7 +47,8 @@ export class EditLog {
 
   /** Record edits made on the current text (non-overlapping among themselves). */
   apply(edits: TextEdit[]): void {
-    const lines = new LineIndex(this.current);
+    // The original's index is shared (LineIndex.of); a text edited along the way is indexed once here.
+    const lines = this.current === this.original ? LineIndex.of(this.original) : new LineIndex(this.current);
     const batch = edits
       .map((e) => ({ cs: lines.offset(e.range.start), ce: lines.offset(e.range.end), text: e.newText }))
       .sort((a, b) => b.cs - a.cs); // last first: earlier offsets stay valid
@@ -94,7 +95,7 @@ export class EditLog {
 
   /** The recorded change as edits on the original text. */
   edits(): TextEdit[] {
-    const lines = new LineIndex(this.original);
+    const lines = LineIndex.of(this.original);
     return this.spans
       .filter((sp) => !(sp.e === sp.s && sp.text === '') && this.original.slice(sp.s, sp.e) !== sp.text)
       .map((sp) => ({ range: lines.range(sp.s, sp.e), newText: sp.text }));

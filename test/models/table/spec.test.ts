@@ -5,6 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../../src/core/analyze';
+import { tableFiles } from '../../../src/core/spec/index';
 import { readTable } from '../../../src/core/models/table/read';
 import type { MosDeviceReport } from '../../../src/core/types';
 import { modelChannel, span, tableCsv } from './make-table';
@@ -159,5 +160,19 @@ describe('a netlist device names its own flavour (`device:`)', () => {
   it('`device` on the netlist mirror itself is misplaced, pointing at the per-device spelling', () => {
     const r = analyzeText(netlist('', '    device: lvt\n'), 'a.bias.yaml', { tables: { 'lvt.csv': LVT } });
     expect(r.findings.find((x) => x.code === 'unknown-key')?.message).toMatch(/written per device/);
+  });
+});
+
+describe('the table files a spec names (what a front end reads before analysing)', () => {
+  it('lists every `table:` of the process, its flavours and corners, however its keys are written', () => {
+    expect(tableFiles(spec('{ table: n.csv }'))).toEqual(['n.csv', 'p.csv']);
+    // A double-quoted key may spell the word with an escape: the text is then read in full.
+    expect(tableFiles('format: 1\nprocess:\n  nmos: { "t\\x61ble": esc.csv }\n')).toEqual(['esc.csv']);
+    expect(tableFiles('format: 1\nprocess:\n  devices:\n    lvt: { type: nmos, table: [a.csv, b.csv] }\ncorners:\n  slow: { nmos: { table: s.csv } }\n')).toEqual(['a.csv', 'b.csv', 's.csv']);
+  });
+
+  it('names none in a spec without the word (which is then not read for it)', () => {
+    expect(tableFiles('format: 1\nprocess:\n  nmos: { kp: 280u, vt0: 0.45 }\nsupplies: { vdd: 1.8 }\nmirrors: []\n')).toEqual([]);
+    expect(tableFiles('format: 1\nprocess:\n  nmos: { "k\\x70": 280u, stable: yes }\n')).toEqual([]);
   });
 });
