@@ -5,7 +5,7 @@ import type { ParsedSpec } from '../spec/index';
 import { YAML_OPTIONS } from '../spec/document';
 import { insertKeyEdits, insertStyle, type InsertStyle } from '../spec/edit';
 import type { MirrorFragments } from '../spec/fragment';
-import { LineIndex } from '../text/lines';
+import { LineIndex, linesDown } from '../text/lines';
 import { YamlSourceMap } from '../spec/source-map';
 import { EditLog } from '../text/edits';
 
@@ -40,11 +40,7 @@ function insertLocally(frags: MirrorFragments, parsed: ParsedSpec, log: EditLog,
   const frag = frags.read(log.text, index);
   const style = styleOf(parsed);
   if (!frag || !style) return undefined;
-  const d = frag.line;
-  return insertKeyEdits(frag.parsed, ins.parent.slice(2), ins.key, ins.text, style).map((e) => ({
-    newText: e.newText,
-    range: { start: { line: e.range.start.line + d, character: e.range.start.character }, end: { line: e.range.end.line + d, character: e.range.end.character } },
-  }));
+  return insertKeyEdits(frag.parsed, ins.parent.slice(2), ins.key, ins.text, style).map((e) => ({ newText: e.newText, range: linesDown(e.range, frag.line) }));
 }
 
 const styles = new WeakMap<ParsedSpec, InsertStyle | undefined>();

@@ -17,7 +17,7 @@ import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import type { ParsedSpec } from './index';
 import { duplicateKeys, readDocument, refusal, YAML_OPTIONS, type ReadDocument } from './document';
-import { LineIndex } from '../text/lines';
+import { LineIndex, linesDown } from '../text/lines';
 import type { SourceMap } from './source-map';
 import { YamlSourceMap } from './source-map';
 
@@ -328,15 +328,11 @@ export class SplicedSourceMap implements SourceMap {
   }
 
   private fromFragment(r: Range | undefined): Range | undefined {
-    if (!r) return undefined;
-    const l = this.fragment.line;
-    return { start: { line: r.start.line + l, character: r.start.character }, end: { line: r.end.line + l, character: r.end.character } };
+    return r && linesDown(r, this.fragment.line);
   }
 
   private fromBase(r: Range | undefined): Range | undefined {
-    if (!r || r.start.line <= this.originalLast) return r;
-    const d = this.lineDelta;
-    return { start: { line: r.start.line + d, character: r.start.character }, end: { line: r.end.line + d, character: r.end.character } };
+    return !r || r.start.line <= this.originalLast ? r : linesDown(r, this.lineDelta);
   }
 
   value(path: SpecPath): Range | undefined {
@@ -375,8 +371,7 @@ class OutsideSourceMap implements SourceMap {
   }
 
   private moved(r: Range | undefined): Range | undefined {
-    const d = this.lineDelta;
-    return r && { start: { line: r.start.line + d, character: r.start.character }, end: { line: r.end.line + d, character: r.end.character } };
+    return r && linesDown(r, this.lineDelta);
   }
 
   value(path: SpecPath): Range | undefined {

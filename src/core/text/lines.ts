@@ -98,3 +98,8 @@ for (let i = 0; i < 4; i++) recent.push(new LineIndex(''));
 let next = 0;
 
 export const ZERO_RANGE: Range = { start: { line: 0, character: 0 }, end: { line: 0, character: 0 } };
+
+/** The range `d` lines further down (a fragment's range placed in its file, or a range below an edit that added lines). */
+export function linesDown(r: Range, d: number): Range {
+  return { start: { line: r.start.line + d, character: r.start.character }, end: { line: r.end.line + d, character: r.end.character } };
+}
