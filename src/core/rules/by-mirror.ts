@@ -22,6 +22,7 @@ import { accepts, recheck, recheckContext, wholeMirrorRechecks, type Baseline, t
 import { canonicalJson, digest } from '../canonical';
 import { linkedInputs } from '../analysis/repeats';
 import { LineIndex } from '../text/lines';
+import type { MirrorFragments } from '../spec/fragment';
 
 /** A whole-file re-check of a spec-wide fix, as one mirror's findings asked for it. */
 interface SpecQuery {
@@ -75,10 +76,11 @@ export class MirrorFindings {
   /**
    * The drafts a whole-file re-check finds (`detect` in its quick form, which plans no fix), each
    * mirror's read back by the same key as its findings; undefined when the edited spec's items
-   * are not known (then the caller detects them all).
+   * are not known (then the caller detects them all). `items`: where the edited text's items are
+   * written (the edited text's own fragments, or the original's when the edit lies outside them).
    */
-  found(rc: RuleContext, detect: Detect): Found[] | undefined {
-    const frags = rc.fragments;
+  found(rc: RuleContext, detect: Detect, items: MirrorFragments | undefined): Found[] | undefined {
+    const frags = items;
     const groups = frags && frags.lineSpan(0) ? mirrorGroups(rc.reports) : undefined;
     if (!frags || !groups) return undefined;
     const context = digest(canonicalJson([recheckContext(rc), 'quick']));

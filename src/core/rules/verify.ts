@@ -74,7 +74,7 @@ export interface RecheckStore {
   units?: SolvedUnits;
   parses?: ParseCache;
   /** The quick detect of a whole-file re-check, mirror by mirror from earlier analyses (rules/by-mirror.ts). */
-  found?: (rc: RuleContext, detect: Detect) => Found[] | undefined;
+  found?: (rc: RuleContext, detect: Detect, items: MirrorFragments | undefined) => Found[] | undefined;
 }
 
 /** Local re-check results kept across analyses of one file; entries one analysis did not use are
@@ -218,7 +218,8 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
     const untrusted = trusted(rc, spec, reports);
     if (untrusted) return untrusted;
     quick.fragments = MirrorFragments.of(parsed);
-    return store.found(quick, detect) ?? found(detect(quick));
+    // Read outside the items, the edited text's items are the original's, as written.
+    return store.found(quick, detect, outside ? rc.fragments : quick.fragments) ?? found(detect(quick));
   }
   return trusted(rc, spec, reports) ?? found(detect(quick));
 }
