@@ -88,6 +88,15 @@ function spanOf(item: unknown, text: string, lines: LineIndex): ItemSpan | undef
   return { lineStart, content, end, line: lines.position(lineStart).line };
 }
 
+/** An edited text read outside its mirror items (`MirrorFragments.readOutside`). */
+export interface OutsideRead {
+  /** The edited lines before the first item, read alone, with the original items put back. */
+  read: ReadDocument;
+  source: SourceMap;
+  /** Those lines (the same lines read the same data). */
+  head: string;
+}
+
 export class MirrorFragments {
   /** Item spans, found on first use (a clean file never needs them); null: the spec is not plain. */
   private found: (ItemSpan | undefined)[] | null | undefined;
@@ -254,7 +263,7 @@ export class MirrorFragments {
    * edited text reads as, without reading every mirror again. Undefined when that is not exact
    * (then the caller reads the whole text): the edited lines must read cleanly and plainly alone.
    */
-  readOutside(text: string, edits: readonly TextEdit[]): { read: ReadDocument; source: SourceMap } | undefined {
+  readOutside(text: string, edits: readonly TextEdit[]): OutsideRead | undefined {
     if (this.spans.length === 0 || !this.outside || !Array.isArray((this.parsed.data as { mirrors?: unknown } | undefined)?.mirrors)) return undefined;
     const { key, keyLineStart, itemsStart } = this.outside;
     if (!edits.every((e) => this.lines.offset(e.range.end) < keyLineStart && positionExists(this.lines, e.range.start) && positionExists(this.lines, e.range.end))) return undefined;
@@ -279,6 +288,7 @@ export class MirrorFragments {
     return {
       read: { doc, parsed: true, findings: [], data: { ...data, mirrors: original.mirrors } },
       source: new OutsideSourceMap(new YamlSourceMap(doc, lines), this.parsed.source, lineDelta, text),
+      head: cut,
     };
   }
 
