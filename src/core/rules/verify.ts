@@ -203,8 +203,8 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   // from that analysis's re-check of the same fix. Otherwise the edited text of the last analysis
   // with the same fix differs by the designer's edit since: the file's parse cache reads only
   // what changed (spec/incremental.ts).
-  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits) : undefined;
   const slot = `fix ${plan.scope === 'spec' ? '' : plan.mirrorIndex} ${JSON.stringify(plan.edits)}`;
+  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits, store?.parses?.lastOutside(slot)) : undefined;
   const base = rc.parsed.source as YamlSourceMap;
   const json = looksJson(text, rc.file);
   const { parsed } = !outside ? resolveText(text, rc.file, { ...opts, ...(store?.parses ? { parses: { cache: store.parses, slot } } : {}) })

@@ -37,6 +37,7 @@ interface Base {
 /** The last read outside the items of one whole-file re-check (`fromOutside`). */
 interface OutsideBase {
   head: string;
+  read: OutsideRead;
   json: boolean;
   /** As `fromRead` gave it (elaborated, before the design targets and networks). */
   parsed: ParsedSpec;
@@ -88,8 +89,13 @@ export class ParseCache {
       ? elaboratedAgain(b.parsed, text, outside, maps, json, opts) : undefined;
     if (out) this.splicedNow++;
     else out = fromRead(text, outside.read, maps, json, opts);
-    if (out.spec && out.findings.length === 0 && !out.withheld && !out.suggestions) this.outsides.set(slot, { head: outside.head, json, parsed: out, opts, used: this.generation });
+    if (out.spec && out.findings.length === 0 && !out.withheld && !out.suggestions) this.outsides.set(slot, { head: outside.head, read: outside, json, parsed: out, opts, used: this.generation });
     return out;
+  }
+
+  /** The slot's last read outside the items (`fromOutside`), for `MirrorFragments.readOutside`. */
+  lastOutside(slot: string): OutsideRead | undefined {
+    return this.outsides.get(slot)?.read;
   }
 
   /** `parseSpec(text, file, opts)`, from the slot's last parse where an edit allows. */
