@@ -8,14 +8,16 @@
  * in the document's AnalysisCache): keyed by the mirror's index, its item as written and those
  * names, with lines counted from the item's first line, and moved to where it now starts.
  */
-import type { Anchor, MirrorReport, ResolvedMirror, SpecPath } from './types';
+import type { Anchor, DeviceReport, MirrorReport, ResolvedMirror, SpecPath } from './types';
 import type { ParsedSpec } from './spec/index';
 import { MirrorFragments } from './spec/fragment';
 import { indexOf } from './mirror-at';
 
 /** Each mirror's anchors by key (above); what an analysis did not use is dropped after it. */
 export class MirrorAnchors {
-  private readonly known = new Map<string, { anchors: Anchor[]; used: number }>();
+  /** Anchors with lines counted from the item's first line, and as last placed (at `first`):
+   *  read back at the same line, they are those objects again (values nothing changes). */
+  private readonly known = new Map<string, { anchors: Anchor[]; used: number; placed?: { first: number; anchors: Anchor[] } }>();
   private generation = 0;
 
   begin(): void {
@@ -30,10 +32,13 @@ export class MirrorAnchors {
     return this.known.size;
   }
 
-  get(key: string): Anchor[] | undefined {
+  /** The anchors kept under `key`, placed at the item's first line `first`. */
+  get(key: string, first: number): Anchor[] | undefined {
     const e = this.known.get(key);
-    if (e) e.used = this.generation;
-    return e?.anchors;
+    if (!e) return undefined;
+    e.used = this.generation;
+    if (e.placed?.first !== first) e.placed = { first, anchors: e.anchors.map((a) => moved(a, first)) };
+    return e.placed.anchors;
   }
 
   set(key: string, anchors: Anchor[]): void {
@@ -58,25 +63,37 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[], store?
     const span = frags?.lineSpan(i);
     const item = span && frags!.itemTexts(i, []);
     const key = item && `${i}\u0000${item.original}\u0000${JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])])}`;
-    const kept = key === undefined ? undefined : store!.get(key);
+    const kept = key === undefined ? undefined : store!.get(key, span!.first);
     if (kept) {
-      for (const a of kept) anchors.push({ ...a, range: { start: { line: a.range.start.line + span!.first, character: a.range.start.character }, end: { line: a.range.end.line + span!.first, character: a.range.end.character } } });
+      anchors.push(...kept);
       return;
     }
     const own = mirrorAnchors(parsed, mirror, i, first, outputs);
     anchors.push(...own);
     // Kept only when every range lies inside the item (lines counted from its first line).
     if (key !== undefined && own.every((a) => a.range.start.line >= span!.first && a.range.end.line <= span!.last)) {
-      store!.set(key, own.map((a) => ({ ...a, range: { start: { line: a.range.start.line - span!.first, character: a.range.start.character }, end: { line: a.range.end.line - span!.first, character: a.range.end.character } } })));
+      store!.set(key, own.map((a) => moved(a, -span!.first)));
     }
   });
   return anchors;
 }
 
-/** What a mirror's anchors read of a report: its name and its devices' names and roles. */
-function named(r: MirrorReport): unknown[] {
-  return [r.name, r.devices.map((d) => [d.name, d.role])];
+/** The anchor `lines` lines further down. */
+function moved(a: Anchor, lines: number): Anchor {
+  return { ...a, range: { start: { line: a.range.start.line + lines, character: a.range.start.character }, end: { line: a.range.end.line + lines, character: a.range.end.character } } };
 }
+
+/** What a mirror's anchors read of a report: its name and its devices' names and roles (a
+ *  report read back from the solved units shares its device list: written once). */
+function named(r: MirrorReport): string {
+  let devices = deviceNames.get(r.devices);
+  if (devices === undefined) {
+    devices = JSON.stringify(r.devices.map((d) => [d.name, d.role]));
+    deviceNames.set(r.devices, devices);
+  }
+  return `${JSON.stringify(r.name)}:${devices}`;
+}
+const deviceNames = new WeakMap<readonly DeviceReport[], string>();
 
 /** One mirror's anchors: its name, each bank output's, each device key written. */
 function mirrorAnchors(parsed: ParsedSpec, mirror: ResolvedMirror, index: number, first: MirrorReport, outputs: { path: SpecPath; report?: MirrorReport }[]): Anchor[] {

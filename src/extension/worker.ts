@@ -82,7 +82,10 @@ function drain(): void {
   const [key, req] = next.value;
   pending.delete(key);
   send({ type: 'started', seq: req.seq, key: req.key });
-  send(run(req));
+  const answer = run(req);
+  // The findings first: the editor's diagnostics do not wait for the whole report to be copied.
+  if (answer.type === 'report') send({ type: 'findings', seq: answer.seq, key: answer.key, findings: answer.report.findings, ms: answer.ms });
+  send(answer);
   schedule();
 }
 

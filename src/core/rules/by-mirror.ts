@@ -50,6 +50,9 @@ interface Entry {
   /** Local re-checks it read (kept for the next analysis as if read again). */
   rechecks: string[];
   used: number;
+  /** The findings as last placed, and the item's first line then: read back at the same line,
+   *  they are those objects again (findings are values nothing changes once made). */
+  placed?: { first: number; findings: Finding[] };
 }
 
 /** Each mirror's findings by key (above); what an analysis did not use is dropped after it. */
@@ -295,7 +298,9 @@ function relative(found: Finding[], first: number, last: number, headerEnd: numb
 }
 
 function placed(e: Entry, first: number): Finding[] {
+  if (e.placed?.first === first) return e.placed.findings;
   const fs = JSON.parse(e.findings) as Finding[];
+  e.placed = { first, findings: fs };
   let k = 0;
   for (const r of rangesOf(fs)) {
     if (e.relative[k++]) {
