@@ -10,7 +10,7 @@
 import * as vscode from 'vscode';
 import type { HostAnalyzeOptions } from './workerProtocol';
 import type { FileReport, Finding } from '../core/types';
-import type { Analyzer } from './analyzer';
+import type { Analyzer, EarlyFindings } from './analyzer';
 import { toDiagnostics } from './convert';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
@@ -27,6 +27,10 @@ export interface ReportUpdate { uri: vscode.Uri; report: FileReport; version: nu
 export interface AnalysisTiming {
   version: number;
   startedAt: number;
+  /** When the worker began the analysis, posted its findings, and they arrived here. */
+  workerStartedAt?: number;
+  findingsSentAt?: number;
+  findingsReceivedAt?: number;
   diagnosticsAt?: number;
   reportAt?: number;
   workerMs?: number;
@@ -242,12 +246,16 @@ export class AnalysisManager implements vscode.Disposable {
     const timing: AnalysisTiming = { version, startedAt: performance.now() };
     // The diagnostics as soon as the findings arrive, on the terms the report is published on.
     let shown: Finding[] | undefined;
-    const early = (findings: Finding[], ms: number): void => {
+    const early: EarlyFindings = (findings, ms, at) => {
       if (this.entries.get(doc.uri.toString()) !== e || (e.pinnedVersion !== undefined && e.pinnedVersion >= version)) return;
       this.diagnostics.set(doc.uri, toDiagnostics({ findings }, doc.uri));
       shown = findings;
       timing.diagnosticsAt = performance.now();
       timing.workerMs = ms;
+      // The worker's clock to this one's: both count from the epoch.
+      timing.workerStartedAt = at.started - performance.timeOrigin;
+      timing.findingsSentAt = at.sent - performance.timeOrigin;
+      timing.findingsReceivedAt = at.received - performance.timeOrigin;
       e.timing = timing;
     };
     let report: FileReport | undefined;

@@ -25,8 +25,10 @@ export interface Analyzer {
 }
 
 export type Progress = (done: number, total: number) => void;
-/** Hears an analysis's findings just before its report arrives (`ms`: the analysis inside the worker). */
-export type EarlyFindings = (findings: Finding[], ms: number) => void;
+/** Hears an analysis's findings (without their fixes) just before its report arrives: `ms` the
+ *  analysis inside the worker; `at` when the worker began it, posted the findings and the host
+ *  received them, in ms since the epoch. */
+export type EarlyFindings = (findings: Finding[], ms: number, at: { started: number; sent: number; received: number }) => void;
 
 interface Inflight {
   req: WorkerRequest;
@@ -153,7 +155,7 @@ export class WorkerAnalyzer implements Analyzer {
         return;
       case 'findings':
         // The report follows at once: the job still runs for the watchdog.
-        this.inflight.get(m.seq)?.onFindings?.(m.findings, m.ms);
+        this.inflight.get(m.seq)?.onFindings?.(m.findings, m.ms, { started: m.startedAt, sent: m.sentAt, received: performance.timeOrigin + performance.now() });
         return;
       case 'superseded':
         this.settle(m.seq, undefined);
