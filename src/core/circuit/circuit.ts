@@ -80,6 +80,9 @@ export class CircuitBuilder {
 
   isHeld(name: string): boolean { return this.nodes.get(name)?.fixed === true; }
 
+  /** Elements added so far (each built in this order after the held nodes' sources). */
+  get added(): number { return this.pending.length; }
+
   mos(m: MosDescription, d: string, g: string, s: string, b: string): void {
     this.node(d); this.node(g); this.node(s); this.node(b);
     this.pending.push({ kind: 'mos', m, nodes: [d, g, s, b] });

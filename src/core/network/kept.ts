@@ -1,0 +1,26 @@
+/**
+ * The joint circuit of each network the analysis solved, kept with its solution beside the
+ * network it describes (`SolvedNetwork`, as long as that lives): a fix's re-check solves the same
+ * group with one member edited, starting from here (edited.ts) instead of a build and a cold
+ * Newton start.
+ */
+import type { SolvedNetwork } from '../types';
+import type { NetworkGroup } from './groups';
+import type { JointCircuit } from './joint';
+
+export interface KeptJoint {
+  group: NetworkGroup;
+  joint: JointCircuit;
+  /** V, every node at the solution (the circuit's workspace is the solver's, not kept still). */
+  v: Float64Array;
+}
+
+const kept = new WeakMap<SolvedNetwork, KeptJoint>();
+
+export function keepJoint(net: SolvedNetwork, group: NetworkGroup, joint: JointCircuit): void {
+  kept.set(net, { group, joint, v: joint.mc.ws.v.slice() });
+}
+
+export function keptJoint(net: SolvedNetwork): KeptJoint | undefined {
+  return kept.get(net);
+}
