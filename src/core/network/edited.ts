@@ -45,12 +45,46 @@ export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: Re
   const networks: SolvedNetwork[] = [];
   for (const g of groups) {
     const k = byRoot.get(indexOf(g.root));
-    const patched = k && sameLinks(g, k.group) ? withEdit(spec, g, k.joint, edited) : undefined;
-    const j = patched ?? buildJoint(spec, g);
-    const r = patched && k ? solveMirror(j.mc, k.v) : solveMirror(j.mc);
-    networks.push(handOn(spec, g, j, r, false, changed));
+    const kept = k && sameLinks(g, k.group) ? k : undefined;
+    const patched = kept && withEdit(spec, g, kept, edited);
+    const replayed = !patched && kept ? rebuilt(spec, g, kept, edited) : undefined;
+    const j = patched ?? replayed?.j ?? buildJoint(spec, g);
+    const warm = patched ? kept?.v : replayed?.warm;
+    networks.push(handOn(spec, g, j, warm ? solveMirror(j.mc, warm) : solveMirror(j.mc), false, changed));
   }
   return withMirrors(spec, changed, networks);
+}
+
+/**
+ * The group built again with the edited mirror (and the mirror feeding it, whose output now
+ * drives another input node name) wired anew and every other member's builder calls replayed
+ * from the kept build: the very circuit buildJoint builds, without wiring a thousand mirrors.
+ * Newton starts from the kept solution at every node it still has, the topology guess elsewhere.
+ */
+function rebuilt(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): { j: JointCircuit; warm: Float64Array } | undefined {
+  const log = k.joint.log;
+  if (!log) return undefined;
+  const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
+  const feeding = g.parent.get(edited)?.mirror;
+  const j = buildJoint(spec, g, undefined, undefined, {
+    replay: (i, b) => {
+      const mem = byIndex.get(i);
+      // Wired anew: the edit, its feeding mirror, a member whose vbias its input current picks, an input resistor the joint reads.
+      if (!mem?.ops || i === edited || i === feeding || KINDS[mem.mirror.kind].vbias || mem.wired.inputResistor) return undefined;
+      b.replay(log, mem.ops[0], mem.ops[1]);
+      return mem.wired;
+    },
+  });
+  if (j.mc.circuit.problems.length > 0) return undefined;
+  const c = j.mc.circuit, bc = k.joint.mc.circuit;
+  const index = k.index();
+  j.mc.guess();
+  const warm = j.mc.ws.v.slice();
+  for (let x = 0; x < c.nFree; x++) {
+    const at = index.get(c.nodeNames[x]!);
+    if (at !== undefined && at < bc.nFree) warm[x] = k.v[at]!;
+  }
+  return { j, warm };
 }
 
 /** The same members in the same order, each fed by the same output. */
@@ -67,10 +101,10 @@ function sameLinks(g: NetworkGroup, h: NetworkGroup): boolean {
 
 /** The kept joint circuit with `spec`'s members: the edited one's elements wired again in place,
  *  every held vbias picked again; undefined when the edited mirror wires differently. */
-function withEdit(spec: ResolvedSpec, g: NetworkGroup, base: JointCircuit, edited: number): JointCircuit | undefined {
-  const bc = base.mc.circuit;
+function withEdit(spec: ResolvedSpec, g: NetworkGroup, kept: KeptJoint, edited: number): JointCircuit | undefined {
+  const base = kept.joint, bc = base.mc.circuit;
   const { vdd, vss } = spec.supplies;
-  const index = new Map(bc.nodeNames.map((n, k) => [n, k] as const));
+  const index = kept.index();
   const fixedV = bc.fixedV.slice();
   if (fixedV[index.get('vdd') ?? -1] !== vdd || fixedV[index.get('vss') ?? -1] !== vss) return undefined;
   const members: JointMember[] = base.members.map((mem, n) => ({ ...mem, mirror: g.members[n]! }));

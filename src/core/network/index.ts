@@ -61,13 +61,14 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
   const changed = new Map<number, TemplateMirror>();
   const networks: SolvedNetwork[] = [];
   const chain = opts.chainSigma !== false;
+  // The analysis's own solve (with chain sigmas, unperturbed) is kept: a fix's re-check starts from it (edited.ts).
+  const keep = chain && !perturb;
   for (const g of groups) {
-    const j = buildJoint(spec, g, perturb);
+    const j = buildJoint(spec, g, perturb, undefined, { record: keep });
     const r = solveMirror(j.mc);
     const net = handOn(spec, g, j, r, chain, changed);
     networks.push(net);
-    // The analysis's own solve: a fix's re-check starts from it (edited.ts).
-    if (chain && !perturb && r.converged) keepJoint(net, g, j);
+    if (keep && r.converged) keepJoint(net, g, j);
   }
   return withMirrors(spec, changed, networks);
 }

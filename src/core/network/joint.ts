@@ -5,7 +5,7 @@
  * circuit/ for a big group — from a starting guess built leaf to root with each kind's own guess.
  */
 import { KINDS } from '../kinds/index';
-import { CircuitBuilder, type Circuit } from '../circuit/circuit';
+import { CircuitBuilder, type BuilderOp, type Circuit } from '../circuit/circuit';
 import type { DeviceElement } from '../circuit/elements/element';
 import { mainCurrent, polaritySign } from '../device-types';
 import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
@@ -28,6 +28,8 @@ export interface JointMember {
   /** The elements it added, in the builder's order (circuit.elements past the held nodes'
    *  sources): from, to (exclusive). */
   added: [number, number];
+  /** Its builder calls, when the build was logged (JointCircuit.log): from, to (exclusive). */
+  ops?: [number, number];
   sign: 1 | -1;
 }
 
@@ -43,6 +45,15 @@ export interface JointCircuit {
   vssNode: number;
   /** A, the root's input current at ws.v. */
   rootCurrent(): number;
+  /** Every builder call of the build, with `record` (network/edited.ts replays members from it). */
+  log?: BuilderOp[];
+}
+
+/** How buildJoint wires: `record` logs the builder's calls; `replay` wires member `i` itself
+ *  (the same calls a wiring of it makes) or leaves it to wireTemplate (undefined). */
+export interface JointWiring {
+  record?: boolean;
+  replay?: (i: number, b: CircuitBuilder) => WiredTemplate | undefined;
 }
 
 export const key = (mirror: number, output: number): string => `${mirror}:${output}`;
@@ -50,9 +61,10 @@ export const key = (mirror: number, output: number): string => `${mirror}:${outp
 /** Build the group's circuit; `perturb` is keyed by joint device names (`mirror/device`). With
  *  `measure` (a leaf output), that output's node is the circuit's output, only its mirror's
  *  devices count as measured, and `mc.iin` is the current arriving at that mirror. */
-export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }): JointCircuit {
+export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }, how: JointWiring = {}): JointCircuit {
   const { vdd, vss } = spec.supplies;
   const b = new CircuitBuilder();
+  if (how.record) b.log = [];
   b.hold('vdd', vdd);
   b.hold('vss', vss);
   // The node a linked output drives is the fed mirror's input node.
@@ -67,14 +79,16 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
     const ns = `${m.name}/`;
     const inputNode = m === g.root ? undefined : `${ns}${KINDS[m.kind].inputNode}`;
     const own = measure?.mirror === i;
-    const from = b.added;
-    const wired = wireTemplate(b, spec, m, {
+    const from = b.added, opsFrom = b.log?.length ?? 0;
+    const wired = how.replay?.(i, b) ?? wireTemplate(b, spec, m, {
       ns, outputIndex: own ? measure!.output : -1, vout: own ? m.outputs[measure!.output]?.output.v ?? 0 : 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb,
       ...(inputNode ? { inputNode } : {}),
       outNode: (j) => fedBy.get(key(i, j)),
     });
     const sign = polaritySign(m.type);
-    members.push({ mirror: m, index: i, ns, wired, first, added: [from, b.added], sign });
+    const mem: JointMember = { mirror: m, index: i, ns, wired, first, added: [from, b.added], sign };
+    if (b.log) mem.ops = [opsFrom, b.log.length];
+    members.push(mem);
     first += wired.deviceNames.length;
     wired.outNodes.forEach((n, j) => {
       const pick = measure ? own && j === measure.output : measured === undefined;
@@ -93,7 +107,9 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       outDevices.set(key(mem.index, j), devs);
     });
   }
-  return jointOf(spec, g, members, c, { index, leafNode, linkNode, outDevices }, measure);
+  const j = jointOf(spec, g, members, c, { index, leafNode, linkNode, outDevices }, measure);
+  if (b.log) j.log = b.log;
+  return j;
 }
 
 /** Where a joint circuit's outputs are: node indices by name, each output's node (leaf or

@@ -13,12 +13,16 @@ export interface KeptJoint {
   joint: JointCircuit;
   /** V, every node at the solution (the circuit's workspace is the solver's, not kept still). */
   v: Float64Array;
+  /** The circuit's node indices by name, made on first use. */
+  index(): Map<string, number>;
 }
 
 const kept = new WeakMap<SolvedNetwork, KeptJoint>();
 
 export function keepJoint(net: SolvedNetwork, group: NetworkGroup, joint: JointCircuit): void {
-  kept.set(net, { group, joint, v: joint.mc.ws.v.slice() });
+  let index: Map<string, number> | undefined;
+  const names = joint.mc.circuit.nodeNames;
+  kept.set(net, { group, joint, v: joint.mc.ws.v.slice(), index: () => (index ??= new Map(names.map((n, k) => [n, k] as const))) });
 }
 
 export function keptJoint(net: SolvedNetwork): KeptJoint | undefined {
