@@ -18,7 +18,8 @@ import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { MirrorFragments, SplicedSourceMap } from '../spec/fragment';
-import { provisionalLinks, solveNetworks } from '../network/index';
+import { provisionalLinks } from '../network/index';
+import { solveEditedNetworks } from '../network/edited';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -254,8 +255,8 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it (its
-  // findings need no chain sigma).
-  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, undefined, { chainSigma: false });
+  // findings need no chain sigma), from the analysis's own solve of it (network/edited.ts).
+  const spec = solveEditedNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, i, rc.spec);
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).
