@@ -136,6 +136,8 @@ export function driftCurve(
   // One workspace for every point taken there: a solve of a dense circuit reads nothing from its
   // workspace but the start it is given (a sparse factorization keeps its pivots: one each).
   const ws = mc.circuit.ordering ? undefined : new Workspace(mc.circuit);
+  // Where each converged point is kept as the next one's start (`warm` is the caller's).
+  const last = new Float64Array(warm.length);
   let start = warm;
   for (let k = 0; k < n; k++) {
     const temp = lo + ((hi - lo) * k) / (n - 1);
@@ -143,7 +145,7 @@ export function driftCurve(
     const taken = takenTo(mc, b.t.spec, temp, ws);
     const { at, r } = solvedAtTemperature(taken && { mc: taken }, start, build);
     points.push({ t: temp, iout: r.converged ? outputCurrent(at.mc) : NaN, converged: r.converged });
-    if (r.converged) start = at.mc.ws.v.slice();
+    if (r.converged) { last.set(at.mc.ws.v); start = last; }
   }
   return points;
 }
