@@ -49,29 +49,36 @@ function noGuess(): never {
   throw new Error('a circuit taken to another temperature has no starting guess of its own');
 }
 
-/** `mc` at temperature temp (K), with a workspace of its own: its elements taken there
- *  (circuit/temperature.ts), the same as a circuit built there but without a starting guess (a
- *  solve of it starts warm); undefined where it must be built. Only for a circuit built without
- *  a Monte Carlo perturbation. */
-function takenTo(mc: MirrorCircuit, spec: ResolvedSpec, temp: number): MirrorCircuit | undefined {
+/** `mc` at temperature temp (K), with a workspace of its own (or `ws`, one made for `mc`'s circuit
+ *  and free to overwrite): its elements taken there (circuit/temperature.ts), the same as a circuit
+ *  built there but without a starting guess (a solve of it starts warm); undefined where it must
+ *  be built. Only for a circuit built without a Monte Carlo perturbation. */
+export function takenTo(mc: MirrorCircuit, spec: ResolvedSpec, temp: number, ws?: Workspace): MirrorCircuit | undefined {
   const c = circuitAt(mc.circuit, { model: spec.process.model, temperature: temp, tnom: spec.process.tnom });
-  return c && { ...mc, circuit: c, ws: new Workspace(c), guess: noGuess, iin: noGuess };
+  return c && { ...mc, circuit: c, ws: ws ?? new Workspace(c), guess: noGuess, iin: noGuess };
 }
 
-/** A circuit (or what holds one, such as a network's joint circuit) at temperature temp (K),
- *  solved from `start`: `from` taken there and solved warm; only when that fails (or it cannot
- *  be taken there) is `build()` solved as a fresh circuit is (warm, then from its own guess).
- *  Either way the outcome is that of `solveMirror(build(), start)`, without the build. */
-function solvedAtTemperature<J extends { mc: MirrorCircuit }>(
-  from: J, spec: ResolvedSpec, temp: number, start: Float64Array, build: () => J,
+/** A circuit (or what holds one, such as a network's joint circuit) at another temperature,
+ *  solved from `start`: `taken` (the nominal one taken there, takenTo) solved warm; only when
+ *  that fails (or it could not be taken there) is `build()` solved as a fresh circuit is (warm,
+ *  then from its own guess). Either way the outcome is that of `solveMirror(build(), start)`,
+ *  without the build. */
+export function solvedAtTemperature<J extends { mc: MirrorCircuit }>(
+  taken: J | undefined, start: Float64Array, build: () => J,
 ): { at: J; r: MirrorSolve } {
-  const mc = takenTo(from.mc, spec, temp);
-  if (mc) {
-    const r = solveMirror(mc, start, { plainOnly: true });
-    if (r.converged) return { at: { ...from, mc }, r };
+  let failed = false;
+  if (taken) {
+    const r = solveMirror(taken.mc, start, { plainOnly: true });
+    if (r.converged) return { at: taken, r };
+    // Newton failed (not a point beyond the rails, which the build's warm solve would keep).
+    failed = r.beyond === undefined;
   }
   const at = build();
-  return { at, r: solveMirror(at.mc, start) };
+  // The build's warm solve would repeat the failed one step for step (the same equations from
+  // the same start): a dense circuit goes to its guess at once, as that solve would next (it
+  // overwrites every unknown, and a dense factorization keeps nothing between solves; its
+  // iteration count is not read). A sparse one keeps its pivot sequence: it goes the whole way.
+  return { at, r: solveMirror(at.mc, failed && !at.mc.circuit.ordering ? undefined : start) };
 }
 
 /** The measured output's circuit at temperature temp (K), read at its held node: what
@@ -126,13 +133,19 @@ export function driftCurve(
   const [lo, hi] = range;
   const n = DRIFT.trangePoints;
   const points: TemperaturePoint[] = [];
+  // One workspace for every point taken there: a solve of a dense circuit reads nothing from its
+  // workspace but the start it is given (a sparse factorization keeps its pivots: one each).
+  const ws = mc.circuit.ordering ? undefined : new Workspace(mc.circuit);
+  // Where each converged point is kept as the next one's start (`warm` is the caller's).
+  const last = new Float64Array(warm.length);
   let start = warm;
   for (let k = 0; k < n; k++) {
     const temp = lo + ((hi - lo) * k) / (n - 1);
     const build = (): { mc: MirrorCircuit } => ({ mc: buildMirror({ ...b.t, spec: atTemperature(b.t.spec, temp) }, b.vout, b.vbias) });
-    const { at, r } = solvedAtTemperature({ mc }, b.t.spec, temp, start, build);
+    const taken = takenTo(mc, b.t.spec, temp, ws);
+    const { at, r } = solvedAtTemperature(taken && { mc: taken }, start, build);
     points.push({ t: temp, iout: r.converged ? outputCurrent(at.mc) : NaN, converged: r.converged });
-    if (r.converged) start = at.mc.ws.v.slice();
+    if (r.converged) { last.set(at.mc.ws.v); start = last; }
   }
   return points;
 }

@@ -77,6 +77,14 @@ type Pending =
   | { kind: 'current'; e: CurrentSourceElement; from: string; to: string }
   | { kind: 'capacitor'; e: CapacitorElement; a: string; b: string };
 
+/** The stamp entries of the circuit being built, read by JacobianPattern only: one buffer for
+ *  every build (a typed array's allocation costs more than filling it). */
+let entriesBuf = new Int32Array(256);
+function entryScratch(len: number): Int32Array {
+  if (entriesBuf.length < len) entriesBuf = new Int32Array(2 * len);
+  return entriesBuf.subarray(0, len);
+}
+
 /** A builder call as `CircuitBuilder.log` records it and `replay` makes it again. */
 export type BuilderOp =
   | { op: 'node'; name: string }
@@ -218,7 +226,7 @@ export class CircuitBuilder {
     }
     let count = 0;
     for (const e of elements) patternOf(e, () => { count++; });
-    const entries = new Int32Array(2 * count);
+    const entries = entryScratch(2 * count);
     let filled = 0;
     const add = (row: number, col: number): void => { entries[filled++] = row; entries[filled++] = col; };
     for (const e of elements) {

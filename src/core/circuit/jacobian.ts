@@ -5,6 +5,14 @@
  * place and a Newton iteration costs O(nonzeros), never O(nodes²). Free nodes come first, so
  * the free block of each column (what Newton factors) is a prefix of it.
  */
+/** The sort keys of the pattern being built: one buffer for every pattern (read only while
+ *  the constructor runs). */
+let keysBuf = new Float64Array(512);
+function keyScratch(len: number): Float64Array {
+  if (keysBuf.length < len) keysBuf = new Float64Array(2 * len);
+  return keysBuf.subarray(0, len);
+}
+
 export class JacobianPattern {
   /** Every node, and the unknown (free) ones: indices 0 … n−1. */
   readonly nt: number;
@@ -26,7 +34,7 @@ export class JacobianPattern {
     this.n = n;
     const count = entries.length >> 1;
     // Key col·nt + row sorts by column, then row; nt² stays far below 2⁵³.
-    const keys = new Float64Array(2 * (count + n));
+    const keys = keyScratch(2 * (count + n));
     for (let k = 0; k < count; k++) keys[k] = entries[2 * k + 1]! * nt + entries[2 * k]!;
     for (let k = 0; k < n; k++) keys[count + k] = k * nt + k;
     const sorted = keys.subarray(count + n);

@@ -21,12 +21,13 @@ export class DenseSolver implements LinearSolver {
   private readonly lu: Float64Array;
   private readonly perm: Int32Array;
   private readonly tmp: Float64Array;
-  /** `buf` holds n² + n values for the factors and a scratch vector (the workspace's). */
-  constructor(private readonly pattern: JacobianPattern, buf: Float64Array) {
+  /** `buf` holds n² + n values for the factors and a scratch vector, `perm` n pivots (the
+   *  workspace's). */
+  constructor(private readonly pattern: JacobianPattern, buf: Float64Array, perm: Int32Array) {
     const n = pattern.n;
     this.lu = buf.subarray(0, n * n);
     this.tmp = buf.subarray(n * n, n * n + n);
-    this.perm = new Int32Array(n);
+    this.perm = perm;
   }
   factor(values: Float64Array): boolean {
     const { n, colPtr, rowIdx, freeEnd } = this.pattern;

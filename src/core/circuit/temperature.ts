@@ -2,9 +2,10 @@
  * The same circuit at another temperature: every element's temperature law applied again (a
  * MOSFET's kp(T), VT(T) and U_T — a table device's slice at T —, a bipolar device's IS(T), βF(T)
  * and U_T, a resistor's tc1), its nodes, Jacobian pattern and elimination order shared with the
- * circuit it comes from. The elements come out exactly as a circuit built at that temperature
- * would have them, so a solve of it is the solve of the rebuilt circuit, without the build
- * (the drift figures ask for thirteen temperatures per output).
+ * circuit it comes from — and its held voltages, the same array (a taken circuit is solved and
+ * read while the one it comes from holds its output still). The elements come out exactly as a
+ * circuit built at that temperature would have them, so a solve of it is the solve of the
+ * rebuilt circuit, without the build (the drift figures ask for thirteen temperatures per output).
  *
  * For a circuit built without a Monte Carlo perturbation only (the device laws are applied with
  * no ΔVT, Δβ).
@@ -45,5 +46,5 @@ export function circuitAt(c: Circuit, proc: ProcessConditions): Circuit | undefi
       default: elements.push(e);
     }
   }
-  return { ...c, fixedV: c.fixedV.slice(), elements, devices };
+  return { ...c, elements, devices };
 }

@@ -33,13 +33,17 @@ export class Workspace {
     this.nt = nt;
     this.pattern = c.jacobian;
     this.slots = c.jacobian.slots;
-    // One allocation for the node buffers: a workspace is built for each measured output.
+    // One allocation for the node buffers and a dense solver's factors and pivots: a workspace
+    // is built for each measured output and each temperature its drift is read at.
     const n = c.nFree, dense = c.ordering ? 0 : n * n + n;
-    const buf = new Float64Array(6 * nt + c.jacobian.nnz + dense);
+    const floats = 6 * nt + c.jacobian.nnz + dense;
+    const mem = new ArrayBuffer(8 * floats + (c.ordering ? 0 : 4 * n));
+    const buf = new Float64Array(mem, 0, floats);
     let at = 0;
     const take = (len: number): Float64Array => { const a = buf.subarray(at, at + len); at += len; return a; };
     this.v = take(nt); this.F = take(nt); this.absI = take(nt); this.dx = take(nt);
     this.saved = take(nt); this.best = take(nt); this.G = take(c.jacobian.nnz);
-    this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering) : new DenseSolver(c.jacobian, take(dense));
+    this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering)
+      : new DenseSolver(c.jacobian, take(dense), new Int32Array(mem, 8 * floats, n));
   }
 }

@@ -11,7 +11,8 @@
 import { DRIFT } from '../defaults';
 import { solveMirror } from '../analysis/solve';
 import { assemble } from '../circuit/assemble';
-import { atTemperature, boxCoefficient, coefficientFrom, supplySensitivity, type AtEnd } from '../analysis/drift';
+import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, supplySensitivity, takenTo, type AtEnd } from '../analysis/drift';
+import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
 import type { NoiseSource } from '../circuit/elements/noise';
 import { probeAdjoint, probeCurrent, probeRow, type OutputProbe, type Probed } from '../analysis/probe';
@@ -55,12 +56,36 @@ function groupOf(spec: ResolvedSpec, mirrorIndex: number): GroupCache | undefine
   return groups.get(mirrorIndex);
 }
 
-/** The group's joint circuit at temperature T (K), solved (from `warm` when given). */
+/** Whether the group's circuit at another temperature is its nominal circuit taken there
+ *  (analysis/drift.ts `takenTo`): not when a member's vbias is picked, which a build at that
+ *  temperature picks again there. */
+function takesTemperature(g: NetworkGroup): boolean {
+  return g.members.every((m) => !takesVbias(m) || m.vbias !== undefined);
+}
+
+/** The nominal joint circuit `j` at temperature temp (K), without a build: its members, nodes
+ *  and probes are the nominal's, its outputs are read through probes (no guess, no root current
+ *  of its own: a solve of it starts warm); undefined where it must be built. */
+function takenJoint(j: JointCircuit, g: NetworkGroup, spec: ResolvedSpec, temp: number): JointCircuit | undefined {
+  const mc = takesTemperature(g) ? takenTo(j.mc, spec, temp) : undefined;
+  return mc && { ...j, mc, rootCurrent: mc.iin };
+}
+
+/** The group's joint circuit at temperature T (K), solved (from `warm` when given): away from
+ *  the operating temperature, the nominal circuit taken there and solved warm, built only when
+ *  that fails (solvedAtTemperature: the outcome of the build's solve, without the build). */
 function solvedAt(spec: ResolvedSpec, gc: GroupCache, t: number, warm?: Float64Array): Solved {
   let s = gc.at.get(t);
   if (!s) {
-    const j = buildJoint(atTemperature(spec, t), gc.group);
-    s = { j, converged: solveMirror(j.mc, warm).converged };
+    const build = (): JointCircuit => buildJoint(atTemperature(spec, t), gc.group);
+    const from = warm ? gc.at.get(spec.process.temperature) : undefined;
+    if (warm && from?.converged) {
+      const { at, r } = solvedAtTemperature(takenJoint(from.j, gc.group, spec, t), warm, build);
+      s = { j: at, converged: r.converged };
+    } else {
+      const j = build();
+      s = { j, converged: solveMirror(j.mc, warm).converged };
+    }
     gc.at.set(t, s);
   }
   return s;
@@ -88,11 +113,12 @@ function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Out
 }
 
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
- *  circuit comes out different), built once per group. */
+ *  circuit comes out different), once per group: the nominal circuit taken there, built only
+ *  where it cannot be. */
 function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: number): Ends | null {
   if (gc.ends !== undefined) return gc.ends;
   const end = (temp: number): JointCircuit | undefined => {
-    const other = buildJoint(atTemperature(spec, temp), gc.group);
+    const other = takenJoint(nominal, gc.group, spec, temp) ?? buildJoint(atTemperature(spec, temp), gc.group);
     if (other.mc.circuit.nodeNames.length !== nominal.mc.circuit.nodeNames.length) return undefined;
     other.mc.ws.v.set(nominal.mc.ws.v);
     assemble(other.mc.circuit, other.mc.ws, 1, 0);

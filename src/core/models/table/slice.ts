@@ -17,12 +17,17 @@ export interface TableSlice {
   /** m, the length the slice was taken at. */
   l: number;
   vgs: Float64Array; vds: Axis; vsb: Axis;
-  /** ln(id/W) at [k vsb][j vds][i vgs]; rows with vds = 0 hold 0 and are skipped (id = 0). */
+  /** ln(id/W) at [k vsb][j vds][i vgs]; rows with vds = 0 hold 0 and are skipped (id = 0).
+   *  A grid line (k, j) is filled on first use (`lineOf`): a device reads a few of them. */
   ln: Float64Array;
   /** ∂ln(id)/∂vgs at the nodes (monotone slopes), same layout. */
   slope: Float64Array;
   /** vds node j carries no current (vds = 0). */
   zero: Uint8Array;
+  /** Line k·nD + j of ln and slope has been filled. */
+  filled: Uint8Array;
+  /** The grid planes (offset into table.id, weight) the slice interpolates between. */
+  planes: [number, number][];
 }
 
 /** Fractional place of v on an ascending axis: lower index and weight of the upper, clamped. */
@@ -78,20 +83,25 @@ function makeSlice(table: DeviceTable, l: number, temperature: number): TableSli
   }
   const zero = new Uint8Array(nD);
   table.vds.forEach((v, j) => { zero[j] = v > 0 ? 0 : 1; });
-  const ln = new Float64Array(per);
-  const id = table.id;
-  for (let line = 0; line < nS * nD; line++) {
-    if (zero[line % nD]) continue;
-    for (const [base, w] of planes) {
-      for (let p = line * nG, end = p + nG; p < end; p++) ln[p]! += w * Math.log(id[base + p]!);
-    }
+  return {
+    table, l, vgs: Float64Array.from(table.vgs), vds: axisOf(table.vds), vsb: axisOf(table.vsb),
+    ln: new Float64Array(per), slope: new Float64Array(per), zero, filled: new Uint8Array(nS * nD), planes,
+  };
+}
+
+/** Offset of grid line `line` (k·nD + j) in ln and slope, filled first if it is not yet: ln(id)
+ *  interpolated between the planes, then its monotone vgs slopes (each line on its own). */
+function lineOf(s: TableSlice, line: number): number {
+  const nG = s.vgs.length, at = line * nG;
+  if (s.filled[line]) return at;
+  s.filled[line] = 1;
+  if (s.zero[line % s.zero.length]) return at;
+  const { ln } = s, id = s.table.id;
+  for (const [base, w] of s.planes) {
+    for (let p = at, end = p + nG; p < end; p++) ln[p]! += w * Math.log(id[base + p]!);
   }
-  const vgs = Float64Array.from(table.vgs);
-  const slope = new Float64Array(per);
-  for (let line = 0; line < nS * nD; line++) {
-    if (!zero[line % nD]) monotoneSlopes(vgs, ln, line * nG, 1, slope);
-  }
-  return { table, l, vgs, vds: axisOf(table.vds), vsb: axisOf(table.vsb), ln, slope, zero };
+  monotoneSlopes(s.vgs, ln, at, 1, s.slope);
+  return at;
 }
 
 /** Result of one slice evaluation, per metre of width: A/m and its partial derivatives. */
@@ -134,7 +144,7 @@ export function evalSlice(s: TableSlice, vgs: number, vds: number, vsb: number, 
     for (let b = 0; b < wS.count; b++) {
       const k = wS.first + b;
       if (k < 0 || k >= s.vsb.x.length) continue;
-      const base = (k * nD + j) * nG;
+      const base = lineOf(s, k * nD + j);
       let v: number, g: number;
       if (mode === -1) {
         v = s.ln[base]! + s.slope[base]! * dv; g = s.slope[base]!;
@@ -161,7 +171,7 @@ export function vgsNear(s: TableSlice, lnId: number, vsb: number): number {
   const x = s.vgs, nG = x.length, nD = s.vds.x.length, sb = s.vsb.x, nS = sb.length;
   const k = nS > 1 ? intervalOf(sb, vsb) : 0;
   const a = nS > 1 ? Math.min(Math.max((vsb - sb[k]!) / (sb[k + 1]! - sb[k]!), 0), 1) : 0;
-  const b0 = (k * nD + nD - 1) * nG, b1 = nS > 1 ? ((k + 1) * nD + nD - 1) * nG : b0;
+  const b0 = lineOf(s, k * nD + nD - 1), b1 = nS > 1 ? lineOf(s, (k + 1) * nD + nD - 1) : b0;
   const at = (i: number): number => (1 - a) * s.ln[b0 + i]! + a * s.ln[b1 + i]!;
   if (lnId <= at(0)) return x[0]!;
   if (lnId >= at(nG - 1)) return x[nG - 1]!;
