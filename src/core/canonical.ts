@@ -67,36 +67,55 @@ export function digestOf(view: ArrayBufferView): string {
 
 /** `value` as canonical JSON (see above); undefined members are left out as JSON leaves them. */
 export function canonicalJson(value: unknown): string {
-  return write(value) ?? 'null';
+  const out: Out = { s: '' };
+  return write(value, out) ? out.s : 'null';
 }
 
-function write(v: unknown): string | undefined {
+/** The text written so far: one string appended in place, not one string per nested value (a
+ *  500-mirror spec keys every mirror; the keys' garbage was most of their cost). */
+interface Out { s: string }
+
+/** A key or string JSON writes as it is between quotes. */
+const PLAIN = /^[\w$.:@/+ -]*$/;
+
+function quote(s: string): string {
+  return PLAIN.test(s) ? `"${s}"` : JSON.stringify(s);
+}
+
+/** Writes `v` to `out`; false (nothing written) for what JSON leaves out: undefined, functions, symbols. */
+function write(v: unknown, out: Out): boolean {
   switch (typeof v) {
-    case 'string': return JSON.stringify(v);
-    case 'number': return Number.isFinite(v) ? (Object.is(v, -0) ? '-0' : String(v)) : `"${String(v)}"`;
-    case 'boolean': return v ? 'true' : 'false';
-    case 'bigint': return `"${v}n"`;
+    case 'string': out.s += quote(v); return true;
+    case 'number': out.s += Number.isFinite(v) ? (Object.is(v, -0) ? '-0' : String(v)) : `"${String(v)}"`; return true;
+    case 'boolean': out.s += v ? 'true' : 'false'; return true;
+    case 'bigint': out.s += `"${v}n"`; return true;
     case 'object': {
-      if (v === null) return 'null';
-      if (ArrayBuffer.isView(v)) return `{"#":"${digestOf(v)}"}`;
+      if (v === null) { out.s += 'null'; return true; }
+      if (ArrayBuffer.isView(v)) { out.s += `{"#":"${digestOf(v)}"}`; return true; }
       if (Array.isArray(v)) {
-        let s = '[';
-        for (let i = 0; i < v.length; i++) s += (i > 0 ? ',' : '') + (write(v[i]) ?? 'null');
-        return `${s}]`;
+        out.s += '[';
+        for (let i = 0; i < v.length; i++) {
+          if (i > 0) out.s += ',';
+          if (!write(v[i], out)) out.s += 'null';
+        }
+        out.s += ']';
+        return true;
       }
-      if (v instanceof Map) return write({ Map: [...v.entries()] });
-      if (v instanceof Set) return write({ Set: [...v.values()] });
+      if (v instanceof Map) return write({ Map: [...v.entries()] }, out);
+      if (v instanceof Set) return write({ Set: [...v.values()] }, out);
       const o = v as Record<string, unknown>;
-      let s = '{';
+      out.s += '{';
       let first = true;
       for (const k of Object.keys(o).sort()) {
-        const w = write(o[k]);
-        if (w === undefined) continue;
-        s += `${first ? '' : ','}${JSON.stringify(k)}:${w}`;
+        const x = o[k];
+        if (x === undefined || typeof x === 'function' || typeof x === 'symbol') continue;
+        out.s += first ? `${quote(k)}:` : `,${quote(k)}:`;
         first = false;
+        write(x, out);
       }
-      return `${s}}`;
+      out.s += '}';
+      return true;
     }
-    default: return undefined;  // undefined, functions, symbols: as JSON leaves them out
+    default: return false;  // undefined, functions, symbols: as JSON leaves them out
   }
 }

@@ -43,6 +43,46 @@ function borrowedTypes(m: TemplateMirror): DeviceType[] {
   return out;
 }
 
+/** What elaboration reads outside the mirrors before them: the title, params, process, supplies, limits. */
+interface RootRead {
+  title: string | undefined;
+  scope: ValueScope;
+  proc: ReturnType<typeof readProcess>;
+  supplies: ReturnType<typeof readSupplies>;
+  limits: ReturnType<typeof readLimits>;
+}
+
+/**
+ * Root reads kept by the mirror list they were read beside (`data.mirrors`, which a re-check after
+ * a fix names as `reuse.items`), with the root's values they were read from and the table texts.
+ * Only a read that said nothing and asked nothing of its sink is kept: reading the same values
+ * again would then add nothing to any sink, so skipping it is exact.
+ */
+const roots = new WeakMap<readonly unknown[], { data: Record<string, unknown>; tables: TableTexts | undefined; read: RootRead }>();
+
+/** The root's values other than `mirrors` are the same (the very objects) in both. */
+function sameRoot(a: Record<string, unknown>, b: Record<string, unknown>): boolean {
+  const keys = Object.keys(a).filter((k) => k !== 'mirrors');
+  if (keys.length !== Object.keys(b).filter((k) => k !== 'mirrors').length) return false;
+  return keys.every((k) => Object.hasOwn(b, k) && Object.is(a[k], b[k]));
+}
+
+/** The root read for `data`: a re-check's is the original's (with its own sink) when its root is the original's. */
+function readRoot(data: Record<string, unknown>, sink: FindingSink, reuse: ElaborateReuse | undefined, tables: TableTexts | undefined): RootRead {
+  const kept = reuse ? roots.get(reuse.items) : undefined;
+  if (kept && kept.tables === tables && sameRoot(kept.data, data)) return { ...kept.read, scope: { ...kept.read.scope, sink } };
+  const before = sink.touches;
+  const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
+  const scope: ValueScope = { ...resolveParams(data.params, sink), ...(tables ? { tables } : {}) };
+  const proc = readProcess(scope, data.process);
+  const supplies = readSupplies(scope, data.supplies);
+  const limits = readLimits(scope, data.limits);
+  const read = { title, scope, proc, supplies, limits };
+  // The first read beside a list is the file's own (a process fix's re-read puts the same list beside another root).
+  if (!reuse && Array.isArray(data.mirrors) && sink.touches === before && !roots.has(data.mirrors)) roots.set(data.mirrors, { data, tables, read });
+  return read;
+}
+
 /** Elaborate; undefined when the spec cannot be analysed. Findings go to sink. */
 export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReuse, tables?: TableTexts): ResolvedSpec | undefined {
   if (!isRecord(data)) {
@@ -56,11 +96,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     sink.error('bad-value', `this qpoint reads \`format: 1\`; got ${typeName(data.format)}`, ['format'], undefined, 'enum');
     formatOk = false;
   }
-  const title = data.title === undefined ? undefined : readString(sink, data.title, ['title']);
-  const scope: ValueScope = { ...resolveParams(data.params, sink), ...(tables ? { tables } : {}) };
-  const proc = readProcess(scope, data.process);
-  const supplies = readSupplies(scope, data.supplies);
-  const limits = readLimits(scope, data.limits);
+  const { title, scope, proc, supplies, limits } = readRoot(data, sink, reuse, tables);
 
   const mirrors: ResolvedMirror[] = [];
   const used = new Map<DeviceType, string>();  // device type → first mirror using it

@@ -41,6 +41,8 @@ export class FindingSink {
   private errors = 0;
   private readonly errorMirrors = new Set<number>();
   private errorOutsideMirrors = false;
+  /** Calls that added to the sink or asked it something: a reader that made none did not depend on it. */
+  private asked = 0;
 
   /**
    * `words` false: a re-read that only asks which findings an edit leaves (a did-you-mean fix's
@@ -56,6 +58,7 @@ export class FindingSink {
    * 40 000 unknown keys would otherwise bury the editor and every report in lines.
    */
   add(severity: Severity, code: string, message: string, path: SpecPath, at?: At, once?: string): Finding | undefined {
+    this.asked++;
     const p = JSON.stringify(path);
     const fact = once ?? code;
     let facts = this.seen.get(p);
@@ -116,19 +119,27 @@ export class FindingSink {
   /** True while findings of `code` are still listed (below the cap): what is only counted needs
    *  no costly hint. */
   listing(code: string): boolean {
+    this.asked++;
     return (this.perCode.get(code) ?? 0) < this.maxPerCode;
   }
 
   /** True when a did-you-mean for a finding of `code` is worth its search: the finding is listed
    *  and its message is read. */
   suggesting(code: string): boolean {
+    this.asked++;
     return this.words && this.listing(code);
   }
 
   /** True when a finding with this fact (or, without `once`, any finding) was made at path. */
   has(path: SpecPath, once?: string): boolean {
+    this.asked++;
     const facts = this.seen.get(JSON.stringify(path));
     return facts !== undefined && (once === undefined ? facts.size > 0 : facts.has(once));
+  }
+
+  /** How many times findings were added or asked about so far (see `asked`). */
+  get touches(): number {
+    return this.asked;
   }
 
   get errorCount(): number {

@@ -334,7 +334,19 @@ export class SplicedSourceMap implements SourceMap {
 
   private editedLines?: LineIndex;
 
+  /** A range's text without indexing the whole edited text (a fix's re-check asks for size tokens):
+   *  inside the item from the fragment's lines, before or after it from the original's. */
   text(range: Range): string {
+    const f = this.fragment;
+    const own = f.parsed.source instanceof YamlSourceMap ? f.parsed.source.lines : undefined;
+    const last = own ? f.line + own.lineCount - 1 : -1;
+    if (own && range.start.line >= f.line && range.end.line <= last) {
+      // The fragment's lines are the edited text's, offsets shifted by its start (a blanked prefix keeps its length).
+      const at = (p: Range['start']): number => own.offset({ line: p.line - f.line, character: p.character }) + f.start;
+      return this.edited.slice(at(range.start), at(range.end));
+    }
+    if (own && range.end.line < f.line) return this.base.text(range);
+    if (own && range.start.line > last) return this.base.text(linesDown(range, -this.lineDelta));
     this.editedLines ??= LineIndex.of(this.edited);
     return this.editedLines.slice(range);
   }
