@@ -14,11 +14,14 @@ import { assemble } from '../circuit/assemble';
 import { atTemperature, boxCoefficient, coefficientFrom, supplySensitivity, type AtEnd } from '../analysis/drift';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
 import type { NoiseSource } from '../circuit/elements/noise';
-import { probeAdjoint, probeCurrent, probeRow, type OutputProbe, type Probed } from '../analysis/probe';
+import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
+import { circuitAt } from '../circuit/temperature';
+import { Workspace } from '../circuit/workspace';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
 import { networkGroups, type NetworkGroup } from './groups';
 import { buildJoint, key, type JointCircuit, type JointMember } from './joint';
+import { handedJoint, sameAfterHandOn } from './handed';
 
 /** The drift and noise figures of one output (MirrorReport's fields of the same names). */
 export interface JointDrift {
@@ -31,13 +34,18 @@ export interface JointDrift {
 
 interface Solved { j: JointCircuit; converged: boolean }
 /** The group's circuit built at T ± DRIFT.dT and assembled at the nominal solution: the element
- *  equations there do not depend on the output read, so every output's tc shares them. */
-interface Ends { up: JointCircuit; down: JointCircuit }
+ *  equations there do not depend on the output read, so every output's tc shares them.
+ *  `finite`: every free node's residual at both ends is. */
+interface Ends { up: JointCircuit; down: JointCircuit; finite: boolean }
 /** The nominal solution's noise sources, once per group, and which elements sit on each node:
  *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
  *  the few mirrors on its path), so each output passes those alone to outputNoise. */
 interface GroupNoise { parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[] }
-interface GroupCache { group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise }
+interface GroupCache {
+  group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise;
+  /** Each output's row and adjoint at the nominal solution. */
+  adjoint?: AdjointScratch;
+}
 
 /** Per spec object: its groups by member index, each group's solutions by temperature. */
 const cache = new WeakMap<ResolvedSpec, Map<number, GroupCache>>();
@@ -55,9 +63,14 @@ function groupOf(spec: ResolvedSpec, mirrorIndex: number): GroupCache | undefine
   return groups.get(mirrorIndex);
 }
 
-/** The group's joint circuit at temperature T (K), solved (from `warm` when given). */
+/** The group's joint circuit at temperature T (K), solved (from `warm` when given); at the
+ *  spec's own temperature, the one solveNetworks solved where it is the same (handed.ts). */
 function solvedAt(spec: ResolvedSpec, gc: GroupCache, t: number, warm?: Float64Array): Solved {
   let s = gc.at.get(t);
+  if (!s && !warm && t === spec.process.temperature) {
+    s = handedJoint(spec, gc.group);
+    if (s) gc.at.set(t, s);
+  }
   if (!s) {
     const j = buildJoint(atTemperature(spec, t), gc.group);
     s = { j, converged: solveMirror(j.mc, warm).converged };
@@ -88,25 +101,31 @@ function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Out
 }
 
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
- *  circuit comes out different), built once per group. */
+ *  circuit comes out different), made once per group: the nominal circuit taken there
+ *  (circuit/temperature.ts, the same elements a build there gives) where the build would read
+ *  nothing else of the spec at that temperature (handed.ts: no picked vbias), else built. */
 function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: number): Ends | null {
   if (gc.ends !== undefined) return gc.ends;
+  const { model, tnom } = spec.process;
   const end = (temp: number): JointCircuit | undefined => {
-    const other = buildJoint(atTemperature(spec, temp), gc.group);
+    const taken = sameAfterHandOn(gc.group) ? circuitAt(nominal.mc.circuit, { model, temperature: temp, tnom }) : undefined;
+    const other = taken ? { ...nominal, mc: { ...nominal.mc, circuit: taken, ws: new Workspace(taken) } } : buildJoint(atTemperature(spec, temp), gc.group);
     if (other.mc.circuit.nodeNames.length !== nominal.mc.circuit.nodeNames.length) return undefined;
     other.mc.ws.v.set(nominal.mc.ws.v);
     assemble(other.mc.circuit, other.mc.ws, 1, 0);
     return other;
   };
   const up = end(T + DRIFT.dT), down = end(T - DRIFT.dT);
-  gc.ends = up && down ? { up, down } : null;
+  let finite = true;
+  if (up && down) for (let k = 0; k < nominal.mc.ws.n && finite; k++) finite = Number.isFinite(up.mc.ws.F[k]! - down.mc.ws.F[k]!);
+  gc.ends = up && down ? { up, down, finite } : null;
   return gc.ends;
 }
 
 /** One output read at one end. */
-function endOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
+function endOf(ends: Ends, j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
   const p = probeOf(j, mirrorIndex, outputIndex);
-  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p) } : undefined;
+  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p), finite: ends.finite } : undefined;
 }
 
 function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
@@ -138,14 +157,16 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
 }
 
 /** The sources that can reach an output: those of every element on the probed node or on a free
- *  node where its adjoint is not zero, in the circuit's order. Every other source's gain is
- *  exactly zero (no direct path, λ zero at both ends), so leaving it out changes no sum. With
- *  capacitors the AC transfer differs from λ: every source. */
-function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array): NoiseParts {
+ *  node where its adjoint is not zero (within `support`, when known), in the circuit's order.
+ *  Every other source's gain is exactly zero (no direct path, λ zero at both ends), so leaving
+ *  it out changes no sum. With capacitors the AC transfer differs from λ: every source. */
+function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
   const picked = new Set<number>(gn.always);
   for (const r of gn.byNode[probe.node] ?? []) picked.add(r);
-  for (let k = 0; k < lam.length; k++) if (lam[k] !== 0) for (const r of gn.byNode[k]!) picked.add(r);
+  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) picked.add(r); };
+  if (support) for (const k of support) at(k);
+  else for (let k = 0; k < lam.length; k++) at(k);
   const order = [...picked].sort((a, b) => a - b);
   const sources: NoiseSource[] = [];
   for (const r of order) {
@@ -189,17 +210,16 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const { circuit: c, ws } = j.mc;
   const iout = probeCurrent(ws, probe);
   const out: JointDrift = {};
-  const row = probeRow(ws, probe);
-  const lam = probeAdjoint(ws, row);
-  if (lam) {
-    const pr: Probed = { probe, row, lam };
+  gc.adjoint ??= new AdjointScratch(ws);
+  const pr = gc.adjoint.probe(probe);
+  if (pr) {
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
     const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
-    const up = ends && endOf(ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends.down, mirrorIndex, outputIndex);
+    const up = ends && endOf(ends, ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, mirrorIndex, outputIndex);
     const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
-    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, lam));
+    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, pr.lam, pr.support));
     const mem = memberOf(j, mirrorIndex);
     if (noise && mem) out.noise = renamed(noise, mem.ns);
   }

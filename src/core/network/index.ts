@@ -17,6 +17,7 @@ import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
 import { rootStartCurrent } from './root-current';
 import { buildJoint, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import type { PerturbationLike } from '../circuit/templates';
+import { keepJoints, sameAfterHandOn, type SolvedJoint } from './handed';
 
 function templateAt(spec: ResolvedSpec) {
   return (i: number): TemplateMirror | undefined => {
@@ -58,9 +59,11 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
   if (groups.length === 0) return spec;
   const changed = new Map<number, TemplateMirror>();
   const networks: SolvedNetwork[] = [];
+  const joints = new Map<number, SolvedJoint>();
   for (const g of groups) {
     const j = buildJoint(spec, g, perturb);
     const r = solveMirror(j.mc);
+    if (!perturb && sameAfterHandOn(g)) joints.set(indexOf(g.root), { j, converged: r.converged });
     const net = describe(spec, g, j, r.converged, opts.chainSigma !== false);
     if (r.note) net.solveNote = r.note;
     networks.push(net);
@@ -75,15 +78,23 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
       changed.set(mem.index, { ...m, input, outputs });
     }
   }
-  return withMirrors(spec, changed, networks);
+  const out = withMirrors(spec, changed, networks);
+  keepJoints(out, joints);
+  return out;
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
- *  row given as (column, value index) pairs), into `lam` (the LU factored at the solution). */
-function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Array): void {
-  lam.fill(0);
-  for (let k = 0; k < row.length; k += 2) lam[row[k]!] = ws.G[row[k + 1]!]!;
-  ws.solver.solveTranspose(lam);
+ *  row given as (column, value index) pairs), into `lam` (the LU factored at the solution, `lam`
+ *  zero but where the last call left its support: cleared here). Solved only where the row
+ *  reaches (a leaf's path) where the factors allow; returns the support, or undefined (every
+ *  node). */
+function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Array, last: number[] | undefined): number[] | undefined {
+  if (last) for (const k of last) lam[k] = 0; else lam.fill(0);
+  const seeds: number[] = [];
+  for (let k = 0; k < row.length; k += 2) { lam[row[k]!] = ws.G[row[k + 1]!]!; seeds.push(row[k]!); }
+  const support = ws.solver.solveTransposeSparse(lam, seeds);
+  if (!support) ws.solver.solveTranspose(lam);
+  return support;
 }
 
 /** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
@@ -122,6 +133,7 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
     }
   }
   const lam = sigmaAt ? new Float64Array(ws.n) : undefined;
+  let support: number[] | undefined = [];
   let toVdd = 0, toVss = 0;
   for (const mem of j.members) {
     mem.mirror.outputs.forEach((_, o) => {
@@ -134,7 +146,7 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
       if (mem.sign > 0) toVdd += iout; else toVss += iout;
       if (lam) {
         c.outNode = node; c.outSign = mem.sign;
-        leafAdjoint(ws, rows.get(node) ?? [], lam);
+        support = leafAdjoint(ws, rows.get(node) ?? [], lam, support);
         let sum = 0, any = false;
         for (let at: JointMember | undefined = mem; at; at = byIndex.get(g.parent.get(at.index)?.mirror ?? -1)) {
           for (let d = at.first; d < at.first + at.wired.deviceNames.length; d++) {
