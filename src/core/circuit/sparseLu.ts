@@ -251,7 +251,7 @@ export class SparseLu {
       const k = list[h]!;
       for (let p = r.lPtr[k]!; p < r.lPtr[k + 1]!; p++) { const j = r.lIdx[p]!; if (mark[j] !== stamp) { mark[j] = stamp; list.push(j); } }
     }
-    const up = list.slice(0, nU).sort((a, b) => a - b);
+    const up = ascending(list.slice(0, nU));
     for (const k of list) w[k] = c[q[k]!]!;
     for (const j of up) {
       const diag = Up[j + 1]! - 1;
@@ -259,8 +259,9 @@ export class SparseLu {
       for (let p = Up[j]!; p < diag; p++) s -= Ux[p]! * w[Ui[p]!]!;
       w[j] = s / Ux[diag]!;
     }
-    list.sort((a, b) => b - a);
-    for (const j of list) {
+    ascending(list);
+    for (let h = list.length - 1; h >= 0; h--) {
+      const j = list[h]!;
       let s = w[j]!;
       for (let p = Lp[j]! + 1; p < Lp[j + 1]!; p++) s -= Lx[p]! * w[Li[p]!]!;
       w[j] = s;
@@ -268,7 +269,7 @@ export class SparseLu {
     for (const i of nz) c[i] = 0;
     const out: number[] = [];
     for (const k of list) { const i = r.prow[k]!; c[i] = w[k]!; w[k] = 0; out.push(i); }
-    return out.sort((a, b) => a - b);
+    return ascending(out);
   }
 }
 
@@ -303,4 +304,17 @@ function reachIndex(n: number, q: Int32Array, pinv: Int32Array, Lp: Int32Array, 
 function allFinite(x: Float64Array, len: number): boolean {
   for (let p = 0; p < len; p++) if (!Number.isFinite(x[p]!)) return false;
   return true;
+}
+
+/** Sorts a short list of indices in place (a reach is a few entries: insertion sort, nothing
+ *  allocated), a long one by Array.prototype.sort. */
+function ascending(a: number[]): number[] {
+  if (a.length > 32) return a.sort((x, y) => x - y);
+  for (let i = 1; i < a.length; i++) {
+    const x = a[i]!;
+    let k = i - 1;
+    while (k >= 0 && a[k]! > x) { a[k + 1] = a[k]!; k--; }
+    a[k + 1] = x;
+  }
+  return a;
 }

@@ -182,11 +182,14 @@ function renamed(n: NoiseReport, ns: string): NoiseReport {
   const name = (x: string): string => (x.startsWith(ns) ? x.slice(ns.length) : x);
   const shares: Record<string, number> = {};
   for (const [k, v] of Object.entries(n.shares)) shares[name(k)] = v;
-  const out: NoiseReport = { ...n, shares };
+  // Copied by assignment: a spread copy would get a map of its own (see report.ts).
+  const out: NoiseReport = Object.assign({}, n);
+  out.shares = shares;
   if (n.spectrum) {
     const parts: Record<string, number[]> = {};
     for (const [k, v] of Object.entries(n.spectrum.parts)) parts[name(k)] = v;
-    out.spectrum = { ...n.spectrum, parts };
+    out.spectrum = Object.assign({}, n.spectrum);
+    out.spectrum.parts = parts;
   }
   return out;
 }
