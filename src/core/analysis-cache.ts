@@ -17,12 +17,14 @@ import { SolvedUnits } from './analysis/repeats';
 import { Rechecks } from './rules/verify';
 import { ParseCache } from './spec/incremental';
 import { MirrorFindings } from './rules/by-mirror';
+import { MirrorAnchors } from './anchors';
 
 export class AnalysisCache {
   readonly units = new SolvedUnits();
   readonly rechecks = new Rechecks();
   readonly parses = new ParseCache();
   readonly findings = new MirrorFindings();
+  readonly anchors = new MirrorAnchors();
 
   /** Starts an analysis: what it does not use is dropped by `end`. */
   begin(): void {
@@ -30,6 +32,7 @@ export class AnalysisCache {
     this.rechecks.begin();
     this.parses.begin();
     this.findings.begin();
+    this.anchors.begin();
   }
 
   end(): void {
@@ -37,6 +40,7 @@ export class AnalysisCache {
     this.rechecks.sweep();
     this.parses.sweep();
     this.findings.sweep();
+    this.anchors.sweep();
   }
 
   /** What the last analysis solved and re-checked, and what it read back. */
@@ -49,7 +53,7 @@ export class AnalysisCache {
   }
 
   /** Entries held: solved reports, re-checks. */
-  get size(): { units: number; rechecks: number; parses: number; findings: number } {
-    return { units: this.units.size, rechecks: this.rechecks.size, parses: this.parses.size, findings: this.findings.size };
+  get size(): { units: number; rechecks: number; parses: number; findings: number; anchors: number } {
+    return { units: this.units.size, rechecks: this.rechecks.size, parses: this.parses.size, findings: this.findings.size, anchors: this.anchors.size };
   }
 }

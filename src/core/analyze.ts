@@ -93,7 +93,7 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
       const again: AnalyzeOptions = { corners: true, cornerFixes: false, anchors: false, ...(opts.limitsDefaults ? { limitsDefaults: opts.limitsDefaults } : {}), ...(opts.tables ? { tables: opts.tables } : {}) };
       findings = withCornerFixes(parsed, spec, mirrors, findings, (t) => analyzeText(t, file, again).findings);
     }
-    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors);
+    const anchors: Anchor[] = opts.anchors === false ? [] : buildAnchors(parsed, mirrors, hooks.cache?.anchors);
     const report: FileReport = {
       file, parsed: true, title: spec.title, mirrors, findings: sortFindings(findings), anchors,
       limits: { error: spec.limits.error, margin: spec.limits.margin },

@@ -2,12 +2,51 @@
  * Anchors tie source positions to reports: a mirror's name, each output of a bank, each device
  * key written in the spec. Hover, CodeLens and the panel's "reveal" use them, so the front ends
  * never need the YAML tree.
+ *
+ * A mirror's anchors read only its own item (every range is under `mirrors[i]`) and the names its
+ * reports give it and its devices, so the editor keeps them across keystrokes (`MirrorAnchors`,
+ * in the document's AnalysisCache): keyed by the mirror's index, its item as written and those
+ * names, with lines counted from the item's first line, and moved to where it now starts.
  */
-import type { Anchor, MirrorReport, SpecPath } from './types';
+import type { Anchor, DeviceReport, MirrorReport, ResolvedMirror, SpecPath } from './types';
 import type { ParsedSpec } from './spec/index';
+import { MirrorFragments } from './spec/fragment';
 import { indexOf } from './mirror-at';
 
-export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Anchor[] {
+/** Each mirror's anchors by key (above); what an analysis did not use is dropped after it. */
+export class MirrorAnchors {
+  /** Anchors with lines counted from the item's first line, and as last placed (at `first`):
+   *  read back at the same line, they are those objects again (values nothing changes). */
+  private readonly known = new Map<string, { anchors: Anchor[]; used: number; placed?: { first: number; anchors: Anchor[] } }>();
+  private generation = 0;
+
+  begin(): void {
+    this.generation++;
+  }
+
+  sweep(): void {
+    for (const [k, e] of this.known) if (e.used !== this.generation) this.known.delete(k);
+  }
+
+  get size(): number {
+    return this.known.size;
+  }
+
+  /** The anchors kept under `key`, placed at the item's first line `first`. */
+  get(key: string, first: number): Anchor[] | undefined {
+    const e = this.known.get(key);
+    if (!e) return undefined;
+    e.used = this.generation;
+    if (e.placed?.first !== first) e.placed = { first, anchors: e.anchors.map((a) => moved(a, first)) };
+    return e.placed.anchors;
+  }
+
+  set(key: string, anchors: Anchor[]): void {
+    this.known.set(key, { anchors, used: this.generation });
+  }
+}
+
+export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[], store?: MirrorAnchors): Anchor[] {
   const spec = parsed.spec;
   if (!spec) return [];
   const anchors: Anchor[] = [];
@@ -15,23 +54,61 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[]): Ancho
   const byPath = new Map(reports.map((r) => [pathKey(r.path), r]));
   const firstByMirror = new Map<string, MirrorReport>();
   for (const r of reports) if (!firstByMirror.has(r.mirror)) firstByMirror.set(r.mirror, r);
-  const devicePaths = new Set<string>();
+  const frags = store ? MirrorFragments.of(parsed) : undefined;
   spec.mirrors.forEach((mirror) => {
-    const mirrorPath: SpecPath = ['mirrors', indexOf(mirror)];
     const first = firstByMirror.get(mirror.name);
     if (!first) return;
-    const nameRange = parsed.source.value([...mirrorPath, 'name']);
-    anchors.push({ kind: 'mirror', path: mirrorPath, range: nameRange ?? parsed.source.rangeFor(mirrorPath), report: first.name });
-    addDeviceAnchors(parsed, anchors, devicePaths, [...mirrorPath, 'devices'], first, mirror.kind === 'netlist');
-    if (mirror.kind === 'netlist') return;
-    mirror.outputs.forEach((out) => {
-      const report = byPath.get(pathKey(out.path));
-      if (!report || out.path.length === 2) return;
-      const range = parsed.source.value([...out.path, 'name']) ?? parsed.source.rangeFor(out.path);
-      anchors.push({ kind: 'output', path: out.path, range, report: report.name });
-      addDeviceAnchors(parsed, anchors, devicePaths, [...out.path, 'devices'], report, false);
-    });
+    const outputs = mirror.kind === 'netlist' ? [] : mirror.outputs.map((out) => ({ path: out.path, report: byPath.get(pathKey(out.path)) }));
+    const i = indexOf(mirror);
+    const span = frags?.lineSpan(i);
+    const item = span && frags!.itemTexts(i, []);
+    const key = item && `${i}\u0000${item.original}\u0000${JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])])}`;
+    const kept = key === undefined ? undefined : store!.get(key, span!.first);
+    if (kept) {
+      anchors.push(...kept);
+      return;
+    }
+    const own = mirrorAnchors(parsed, mirror, i, first, outputs);
+    anchors.push(...own);
+    // Kept only when every range lies inside the item (lines counted from its first line).
+    if (key !== undefined && own.every((a) => a.range.start.line >= span!.first && a.range.end.line <= span!.last)) {
+      store!.set(key, own.map((a) => moved(a, -span!.first)));
+    }
   });
+  return anchors;
+}
+
+/** The anchor `lines` lines further down. */
+function moved(a: Anchor, lines: number): Anchor {
+  return { ...a, range: { start: { line: a.range.start.line + lines, character: a.range.start.character }, end: { line: a.range.end.line + lines, character: a.range.end.character } } };
+}
+
+/** What a mirror's anchors read of a report: its name and its devices' names and roles (a
+ *  report read back from the solved units shares its device list: written once). */
+function named(r: MirrorReport): string {
+  let devices = deviceNames.get(r.devices);
+  if (devices === undefined) {
+    devices = JSON.stringify(r.devices.map((d) => [d.name, d.role]));
+    deviceNames.set(r.devices, devices);
+  }
+  return `${JSON.stringify(r.name)}:${devices}`;
+}
+const deviceNames = new WeakMap<readonly DeviceReport[], string>();
+
+/** One mirror's anchors: its name, each bank output's, each device key written. */
+function mirrorAnchors(parsed: ParsedSpec, mirror: ResolvedMirror, index: number, first: MirrorReport, outputs: { path: SpecPath; report?: MirrorReport }[]): Anchor[] {
+  const anchors: Anchor[] = [];
+  const devicePaths = new Set<string>();
+  const mirrorPath: SpecPath = ['mirrors', index];
+  const nameRange = parsed.source.value([...mirrorPath, 'name']);
+  anchors.push({ kind: 'mirror', path: mirrorPath, range: nameRange ?? parsed.source.rangeFor(mirrorPath), report: first.name });
+  addDeviceAnchors(parsed, anchors, devicePaths, [...mirrorPath, 'devices'], first, mirror.kind === 'netlist');
+  for (const { path, report } of outputs) {
+    if (!report || path.length === 2) continue;
+    const range = parsed.source.value([...path, 'name']) ?? parsed.source.rangeFor(path);
+    anchors.push({ kind: 'output', path, range, report: report.name });
+    addDeviceAnchors(parsed, anchors, devicePaths, [...path, 'devices'], report, false);
+  }
   return anchors;
 }
 

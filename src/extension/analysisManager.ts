@@ -9,14 +9,32 @@
  */
 import * as vscode from 'vscode';
 import type { HostAnalyzeOptions } from './workerProtocol';
-import type { FileReport } from '../core/types';
-import type { Analyzer } from './analyzer';
+import type { FileReport, Finding } from '../core/types';
+import type { Analyzer, EarlyFindings } from './analyzer';
 import { toDiagnostics } from './convert';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
 import { PANEL_VIEW_TYPE } from './panel';
 
 export interface ReportUpdate { uri: vscode.Uri; report: FileReport; version: number }
+
+/**
+ * One analysis of a document as the editor saw it, on the extension host's clock
+ * (`performance.now()`): when it was asked of the worker (after the debounce, for an edit), when
+ * its diagnostics were set (the findings arrive just before the report), when its report was
+ * published, and how long it took inside the worker.
+ */
+export interface AnalysisTiming {
+  version: number;
+  startedAt: number;
+  /** When the worker began the analysis, posted its findings, and they arrived here. */
+  workerStartedAt?: number;
+  findingsSentAt?: number;
+  findingsReceivedAt?: number;
+  diagnosticsAt?: number;
+  reportAt?: number;
+  workerMs?: number;
+}
 
 interface Entry {
   uri: vscode.Uri;
@@ -28,6 +46,8 @@ interface Entry {
   /** Version whose report came from a Monte Carlo run: a plain analysis of the same version
    *  (a race, a panel opening) must not replace it. */
   pinnedVersion?: number;
+  /** The last analysis whose diagnostics were set. */
+  timing?: AnalysisTiming;
 }
 
 /** Settings that change what the core computes: a change re-analyses every open spec. */
@@ -92,6 +112,11 @@ export class AnalysisManager implements vscode.Disposable {
   /** The report of the document's current text, if it is finished. */
   reportFor(uri: vscode.Uri): FileReport | undefined {
     return this.entries.get(uri.toString())?.report;
+  }
+
+  /** The timing of the last analysis of `uri` whose diagnostics were set. */
+  timingFor(uri: vscode.Uri): AnalysisTiming | undefined {
+    return this.entries.get(uri.toString())?.timing;
   }
 
   /** The report of exactly this version of the document, analysing now if needed. */
@@ -218,10 +243,25 @@ export class AnalysisManager implements vscode.Disposable {
 
   private async run(doc: vscode.TextDocument, e: Entry, curve: boolean): Promise<FileReport | undefined> {
     const version = doc.version;
+    const timing: AnalysisTiming = { version, startedAt: performance.now() };
+    // The diagnostics as soon as the findings arrive, on the terms the report is published on.
+    let shown: Finding[] | undefined;
+    const early: EarlyFindings = (findings, ms, at) => {
+      if (this.entries.get(doc.uri.toString()) !== e || (e.pinnedVersion !== undefined && e.pinnedVersion >= version)) return;
+      this.diagnostics.set(doc.uri, toDiagnostics({ findings }, doc.uri));
+      shown = findings;
+      timing.diagnosticsAt = performance.now();
+      timing.workerMs = ms;
+      // The worker's clock to this one's: both count from the epoch.
+      timing.workerStartedAt = at.started - performance.timeOrigin;
+      timing.findingsSentAt = at.sent - performance.timeOrigin;
+      timing.findingsReceivedAt = at.received - performance.timeOrigin;
+      e.timing = timing;
+    };
     let report: FileReport | undefined;
     try {
       report = await this.analyzer.analyze(doc.uri.toString(), doc.getText(),
-        vscode.workspace.asRelativePath(doc.uri, false), this.optionsFor(doc.uri, curve));
+        vscode.workspace.asRelativePath(doc.uri, false), this.optionsFor(doc.uri, curve), undefined, early);
     } catch (err) {
       this.log.error(`analysis of ${doc.uri.toString()} failed: ${String(err)}`);
       if (!this.failureShown) {
@@ -235,15 +275,18 @@ export class AnalysisManager implements vscode.Disposable {
     // A Monte Carlo report of this text (or newer) stays: it holds everything this one does.
     if (e.pinnedVersion !== undefined && e.pinnedVersion >= version) return e.report;
     e.pinnedVersion = undefined;
-    this.publish(doc.uri, e, report, version, curve);
+    // Its findings set the diagnostics already, unless the report is another (the worker's
+    // budget ran out between the two messages).
+    this.publish(doc.uri, e, report, version, curve, shown !== undefined && sameDiagnostics(shown, report.findings));
+    if (e.timing === timing) timing.reportAt = performance.now();
     return report;
   }
 
-  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean): void {
+  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean, diagnosticsSet = false): void {
     e.report = report;
     e.reportVersion = version;
     e.hasCurve = curve;
-    this.diagnostics.set(uri, toDiagnostics(report, uri));
+    if (!diagnosticsSet) this.diagnostics.set(uri, toDiagnostics(report, uri));
     this.count++;
     this.emitter.fire({ uri, report, version });
   }
@@ -253,6 +296,16 @@ export class AnalysisManager implements vscode.Disposable {
     this.entries.clear();
     for (const d of this.disposables.splice(0)) d.dispose();
   }
+}
+
+/** Two lists of findings give the same diagnostics (what toDiagnostics reads of each). */
+function sameDiagnostics(a: Finding[], b: Finding[]): boolean {
+  const at = (r: Finding['range']): string => `${r.start.line}:${r.start.character}-${r.end.line}:${r.end.character}`;
+  return a.length === b.length && a.every((f, k) => {
+    const g = b[k]!;
+    return f.code === g.code && f.severity === g.severity && f.message === g.message && at(f.range) === at(g.range) &&
+      (f.related ?? []).length === (g.related ?? []).length && (f.related ?? []).every((r, j) => r.message === g.related![j]!.message && at(r.range) === at(g.related![j]!.range));
+  });
 }
 
 function panelIsOpen(): boolean {

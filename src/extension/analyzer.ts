@@ -11,24 +11,29 @@
  */
 import { Worker } from 'node:worker_threads';
 import type { HostAnalyzeOptions } from './workerProtocol';
-import type { FileReport } from '../core/types';
+import type { FileReport, Finding } from '../core/types';
 import type { FixAllResult } from '../core/rules/fix-all';
 import { isWorkerResponse, type Job, type WorkerRequest, type WorkerResponse } from './workerProtocol';
 
 export interface Analyzer {
   /** Resolves undefined when a newer request for `key` superseded this one. `onProgress` hears a
    *  Monte Carlo job's samples done of total while it runs. */
-  analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined>;
+  analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress, onFindings?: EarlyFindings): Promise<FileReport | undefined>;
   /** The core's verified multi-round fix-all, off the main thread. */
   fixAll(key: string, text: string, file: string, opts: HostAnalyzeOptions): Promise<FixAllResult | undefined>;
   dispose(): void;
 }
 
 export type Progress = (done: number, total: number) => void;
+/** Hears an analysis's findings (without their fixes) just before its report arrives: `ms` the
+ *  analysis inside the worker; `at` when the worker began it, posted the findings and the host
+ *  received them, in ms since the epoch. */
+export type EarlyFindings = (findings: Finding[], ms: number, at: { started: number; sent: number; received: number }) => void;
 
 interface Inflight {
   req: WorkerRequest;
   onProgress?: Progress;
+  onFindings?: EarlyFindings;
   resolve(r: WorkerResponse | undefined): void;
   reject(e: Error): void;
 }
@@ -85,8 +90,8 @@ export class WorkerAnalyzer implements Analyzer {
     this.log = opts.log ?? (() => undefined);
   }
 
-  async analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<FileReport | undefined> {
-    const r = await this.request('analyze', key, text, file, opts, onProgress);
+  async analyze(key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress, onFindings?: EarlyFindings): Promise<FileReport | undefined> {
+    const r = await this.request('analyze', key, text, file, opts, onProgress, onFindings);
     return r?.type === 'report' ? r.report : undefined;
   }
 
@@ -95,7 +100,7 @@ export class WorkerAnalyzer implements Analyzer {
     return r?.type === 'fixed' ? r.result : undefined;
   }
 
-  private request(job: Job, key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress): Promise<WorkerResponse | undefined> {
+  private request(job: Job, key: string, text: string, file: string, opts: HostAnalyzeOptions, onProgress?: Progress, onFindings?: EarlyFindings): Promise<WorkerResponse | undefined> {
     if (this.disposed) return Promise.resolve(undefined);
     const seq = ++this.seq;
     const older = this.latest.get(key);
@@ -104,7 +109,7 @@ export class WorkerAnalyzer implements Analyzer {
     const worker = this.ensureWorker();
     return new Promise<WorkerResponse | undefined>((resolve, reject) => {
       const req: WorkerRequest = { job, seq, key, text, file, opts };
-      this.inflight.set(seq, { req, resolve, reject, onProgress });
+      this.inflight.set(seq, { req, resolve, reject, onProgress, onFindings });
       worker.postMessage(req);
       // A running job keeps its own budget; otherwise the worker must start something in time.
       if (!this.watchdog) this.arm();
@@ -147,6 +152,10 @@ export class WorkerAnalyzer implements Analyzer {
         return;
       case 'progress':
         this.inflight.get(m.seq)?.onProgress?.(m.done, m.total);
+        return;
+      case 'findings':
+        // The report follows at once: the job still runs for the watchdog.
+        this.inflight.get(m.seq)?.onFindings?.(m.findings, m.ms, { started: m.startedAt, sent: m.sentAt, received: performance.timeOrigin + performance.now() });
         return;
       case 'superseded':
         this.settle(m.seq, undefined);

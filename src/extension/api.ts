@@ -1,7 +1,7 @@
 /** What `activate()` returns: a small typed API for the extension-host tests. */
 import type * as vscode from 'vscode';
 import type { FileReport } from '../core/types';
-import type { ReportUpdate } from './analysisManager';
+import type { AnalysisTiming, ReportUpdate } from './analysisManager';
 
 export interface QpointApi {
   /** Analyses whose report reached the editor since activation. */
@@ -12,6 +12,10 @@ export interface QpointApi {
   readonly activationMs: number;
   /** Time the last job took inside the worker (ms). */
   lastAnalysisMs(): number;
+  /** The last analysis of an open spec whose diagnostics were set: when it was asked of the
+   *  worker (after the debounce), when its diagnostics and its report reached the editor, on
+   *  this process's `performance.now()` clock, and its time inside the worker. */
+  lastTiming(uri: vscode.Uri): AnalysisTiming | undefined;
   /** Fires when a report reaches the editor. */
   readonly onDidUpdate: vscode.Event<ReportUpdate>;
   /** True while a Monte Carlo thread computes; false again once a cancelled one has exited. */

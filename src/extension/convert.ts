@@ -46,7 +46,7 @@ function toDiagnostic(f: Finding, uri: vscode.Uri): vscode.Diagnostic {
   return d;
 }
 
-export function toDiagnostics(report: FileReport, uri: vscode.Uri): vscode.Diagnostic[] {
+export function toDiagnostics(report: Pick<FileReport, 'findings'>, uri: vscode.Uri): vscode.Diagnostic[] {
   return report.findings.map((f) => toDiagnostic(f, uri));
 }
 

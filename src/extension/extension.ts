@@ -49,6 +49,7 @@ export function activate(context: vscode.ExtensionContext): QpointApi {
     lastReport: (uri) => manager.reportFor(uri),
     activationMs,
     lastAnalysisMs: () => analyzer.lastJobMs,
+    lastTiming: (uri) => manager.timingFor(uri),
     onDidUpdate: manager.onDidUpdate,
     monteCarloBusy: () => monteCarlo.busy(),
     monteCarloProgress: () => monteCarlo.progress(),

@@ -82,7 +82,14 @@ function drain(): void {
   const [key, req] = next.value;
   pending.delete(key);
   send({ type: 'started', seq: req.seq, key: req.key });
-  send(run(req));
+  const startedAt = performance.timeOrigin + performance.now();
+  const answer = run(req);
+  // The findings first: the editor's diagnostics do not wait for the whole report to be copied.
+  if (answer.type === 'report') {
+    const findings = answer.report.findings.map(({ fixes: _fixes, ...f }) => f);
+    send({ type: 'findings', seq: answer.seq, key: answer.key, findings, ms: answer.ms, startedAt, sentAt: performance.timeOrigin + performance.now() });
+  }
+  send(answer);
   schedule();
 }
 

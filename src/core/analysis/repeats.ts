@@ -26,15 +26,25 @@ import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { reportIdentity, type ReportIdentity } from './measure';
 import type { MirrorContext } from './index';
 
-/** The mirror without what says where it is (paths, its name; an output's name outside a bank). */
+/** The mirror without what says where it is (paths, its name; an output's name outside a bank),
+ *  as a digest: serialised once per mirror object (a resolved mirror is a value nothing changes
+ *  after it is read, and the editor's next parse hands on the unedited mirrors' objects:
+ *  spec/incremental.ts), so an analysis that solves one mirror keys the others without writing
+ *  them out again. */
 function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean): string {
-  const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
-  if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
-    const bank = isBank(mirror);
-    what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
+  let known = circuitKeys.get(mirror);
+  if (known === undefined) {
+    const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
+    if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
+      const bank = isBank(mirror);
+      what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
+    }
+    known = digest(canonicalJson(what));
+    circuitKeys.set(mirror, known);
   }
-  return `${outputIndex}|${curve ? 1 : 0}|${canonicalJson(what)}`;
+  return `${outputIndex}|${curve ? 1 : 0}|${known}`;
 }
+const circuitKeys = new WeakMap<ResolvedMirror, string>();
 
 /**
  * A cheap part of circuitKey: equal keys have equal prints, so a mirror whose print no other

@@ -50,6 +50,25 @@ export interface Circuit {
 
 type NodeEntry = { fixed: false } | { fixed: true; v: number };
 
+/** A pending element's node names, in the order its method creates them. */
+function pendingNodes(p: Pending): readonly string[] {
+  switch (p.kind) {
+    case 'mos': case 'bjt': return p.nodes;
+    case 'resistor': case 'capacitor': return [p.a, p.b];
+    case 'current': return [p.from, p.to];
+  }
+}
+
+/** A pending element again, with its own element object where the build writes node indices (a resistor's is the input resistor a caller may hold). */
+function copyPending(p: Pending): Pending {
+  switch (p.kind) {
+    case 'mos': case 'bjt': return p;
+    case 'resistor': return { ...p, e: { ...p.e } };
+    case 'current': return { ...p, e: { ...p.e } };
+    case 'capacitor': return { ...p, e: { ...p.e } };
+  }
+}
+
 /** An element as added, with node names; built into a CircuitElement with node indices. */
 type Pending =
   | { kind: 'mos'; m: MosDescription; nodes: [string, string, string, string] }
@@ -58,16 +77,26 @@ type Pending =
   | { kind: 'current'; e: CurrentSourceElement; from: string; to: string }
   | { kind: 'capacitor'; e: CapacitorElement; a: string; b: string };
 
+/** A builder call as `CircuitBuilder.log` records it and `replay` makes it again. */
+export type BuilderOp =
+  | { op: 'node'; name: string }
+  | { op: 'hold'; name: string; v: number }
+  | { op: 'pending'; p: Pending };
+
 /** Collects nodes by name and elements by node name, then numbers them (free nodes first). */
 export class CircuitBuilder {
   private readonly nodes = new Map<string, NodeEntry>();
   private readonly order: string[] = [];
   private readonly pending: Pending[] = [];
   readonly problems: string[] = [];
+  /** When set, every node, hold and element added, in order (a network re-check replays a
+   *  member's calls instead of wiring it again: network/edited.ts). Problems are not logged:
+   *  only a circuit without any is replayed. */
+  log?: BuilderOp[];
 
   /** A free node (created on first use). */
   node(name: string): string {
-    if (!this.nodes.has(name)) { this.nodes.set(name, { fixed: false }); this.order.push(name); }
+    if (!this.nodes.has(name)) { this.nodes.set(name, { fixed: false }); this.order.push(name); this.log?.push({ op: 'node', name }); }
     return name;
   }
 
@@ -75,24 +104,49 @@ export class CircuitBuilder {
   hold(name: string, v: number): string {
     if (!this.nodes.has(name)) this.order.push(name);
     this.nodes.set(name, { fixed: true, v });
+    this.log?.push({ op: 'hold', name, v });
     return name;
+  }
+
+  /** Make logged calls `ops[from … to)` again, as the methods that logged them would (each
+   *  element's nodes first; the elements as new objects). */
+  replay(ops: readonly BuilderOp[], from: number, to: number): void {
+    for (let k = from; k < to; k++) {
+      const o = ops[k]!;
+      switch (o.op) {
+        case 'node': this.node(o.name); break;
+        case 'hold': this.hold(o.name, o.v); break;
+        case 'pending':
+          for (const n of pendingNodes(o.p)) this.node(n);
+          this.add(copyPending(o.p));
+          break;
+      }
+    }
+  }
+
+  private add(p: Pending): void {
+    this.pending.push(p);
+    this.log?.push({ op: 'pending', p });
   }
 
   isHeld(name: string): boolean { return this.nodes.get(name)?.fixed === true; }
 
+  /** Elements added so far (each built in this order after the held nodes' sources). */
+  get added(): number { return this.pending.length; }
+
   mos(m: MosDescription, d: string, g: string, s: string, b: string): void {
     this.node(d); this.node(g); this.node(s); this.node(b);
-    this.pending.push({ kind: 'mos', m, nodes: [d, g, s, b] });
+    this.add({ kind: 'mos', m, nodes: [d, g, s, b] });
   }
 
   bjt(q: BjtDescription, c: string, b: string, e: string): void {
     this.node(c); this.node(b); this.node(e);
-    this.pending.push({ kind: 'bjt', q, nodes: [c, b, e] });
+    this.add({ kind: 'bjt', q, nodes: [c, b, e] });
   }
 
   current(name: string, from: string, to: string, i: number): void {
     this.node(from); this.node(to);
-    this.pending.push({ kind: 'current', e: { kind: 'current', name, from: 0, to: 0, i }, from, to });
+    this.add({ kind: 'current', e: { kind: 'current', name, from: 0, to: 0, i }, from, to });
   }
 
   /** A resistor of r Ω (`law`: r follows the temperature by it); the returned element gets its
@@ -102,7 +156,7 @@ export class CircuitBuilder {
     if (!(r > 0) || !Number.isFinite(r)) this.problems.push(`resistor ${name}: ${r} Ω is not a positive resistance`);
     const e: ResistorElement = { kind: 'resistor', name, a: 0, b: 0, g: r > 0 && Number.isFinite(r) ? 1 / r : 0, slot: 0 };
     if (law) e.law = law;
-    this.pending.push({ kind: 'resistor', e, a, b });
+    this.add({ kind: 'resistor', e, a, b });
     return e;
   }
 
@@ -110,7 +164,7 @@ export class CircuitBuilder {
   capacitor(name: string, a: string, b: string, c: number): void {
     this.node(a); this.node(b);
     if (!(c > 0) || !Number.isFinite(c)) this.problems.push(`capacitor ${name}: ${c} F is not a positive capacitance`);
-    this.pending.push({ kind: 'capacitor', e: { kind: 'capacitor', name, a: 0, b: 0, c }, a, b });
+    this.add({ kind: 'capacitor', e: { kind: 'capacitor', name, a: 0, b: 0, c }, a, b });
   }
 
   build(out: string, outSign: 1 | -1, vss: number, vdd: number): Circuit {

@@ -17,6 +17,8 @@ import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
 import { rootStartCurrent } from './root-current';
 import { buildJoint, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import type { PerturbationLike } from '../circuit/templates';
+import type { DcResult } from '../circuit/newton';
+import { keepJoint } from './kept';
 import { keepJoints, sameAfterHandOn, type SolvedJoint } from './handed';
 
 function templateAt(spec: ResolvedSpec) {
@@ -27,7 +29,7 @@ function templateAt(spec: ResolvedSpec) {
 }
 
 /** Replace mirrors by file index (new spec and mirror objects; the input is not changed). */
-function withMirrors(spec: ResolvedSpec, changed: Map<number, TemplateMirror>, networks?: SolvedNetwork[]): ResolvedSpec {
+export function withMirrors(spec: ResolvedSpec, changed: Map<number, TemplateMirror>, networks?: SolvedNetwork[]): ResolvedSpec {
   const mirrors: ResolvedMirror[] = spec.mirrors.map((m) => changed.get(indexOf(m)) ?? m);
   const out: ResolvedSpec = { ...spec, mirrors };
   if (networks) out.networks = networks;
@@ -59,28 +61,40 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
   if (groups.length === 0) return spec;
   const changed = new Map<number, TemplateMirror>();
   const networks: SolvedNetwork[] = [];
+  const chain = opts.chainSigma !== false;
+  // The analysis's own solve (with chain sigmas, unperturbed) is kept: a fix's re-check starts from it (edited.ts).
+  const keep = chain && !perturb;
+  // And the member outputs' drift and noise start from it (handed.ts).
   const joints = new Map<number, SolvedJoint>();
   for (const g of groups) {
-    const j = buildJoint(spec, g, perturb);
+    const j = buildJoint(spec, g, perturb, undefined, { record: keep });
     const r = solveMirror(j.mc);
     if (!perturb && sameAfterHandOn(g)) joints.set(indexOf(g.root), { j, converged: r.converged });
-    const net = describe(spec, g, j, r.converged, opts.chainSigma !== false);
-    if (r.note) net.solveNote = r.note;
+    const net = handOn(spec, g, j, r, chain, changed);
     networks.push(net);
-    if (!r.converged) continue;
-    for (const mem of j.members) {
-      const m = mem.mirror;
-      const outputs = m.outputs.map((o, k) => {
-        const v = net.outputs[key(mem.index, k)]?.v;
-        return v === undefined ? o : { ...o, output: { ...o.output, v } };
-      });
-      const input = m.input.kind === 'link' ? { ...m.input, i: net.outputs[key(m.input.mirror, m.input.output)]!.i } : m.input;
-      changed.set(mem.index, { ...m, input, outputs });
-    }
+    if (keep && r.converged) keepJoint(net, g, j);
   }
   const out = withMirrors(spec, changed, networks);
   keepJoints(out, joints);
   return out;
+}
+
+/** The group's figures at the solve `r` of its joint circuit `j` (design §9.3), each member handed
+ *  on at the solution into `changed` (when it converged). */
+export function handOn(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, r: DcResult, chain: boolean, changed: Map<number, TemplateMirror>): SolvedNetwork {
+  const net = describe(spec, g, j, r.converged, chain);
+  if (r.note) net.solveNote = r.note;
+  if (!r.converged) return net;
+  for (const mem of j.members) {
+    const m = mem.mirror;
+    const outputs = m.outputs.map((o, k) => {
+      const v = net.outputs[key(mem.index, k)]?.v;
+      return v === undefined ? o : { ...o, output: { ...o.output, v } };
+    });
+    const input = m.input.kind === 'link' ? { ...m.input, i: net.outputs[key(m.input.mirror, m.input.output)]!.i } : m.input;
+    changed.set(mem.index, { ...m, input, outputs });
+  }
+  return net;
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the

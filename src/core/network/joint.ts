@@ -5,7 +5,7 @@
  * circuit/ for a big group — from a starting guess built leaf to root with each kind's own guess.
  */
 import { KINDS } from '../kinds/index';
-import { CircuitBuilder } from '../circuit/circuit';
+import { CircuitBuilder, type BuilderOp, type Circuit } from '../circuit/circuit';
 import type { DeviceElement } from '../circuit/elements/element';
 import { mainCurrent, polaritySign } from '../device-types';
 import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
@@ -25,6 +25,11 @@ export interface JointMember {
   wired: WiredTemplate;
   /** Index into circuit.devices of this member's first device. */
   first: number;
+  /** The elements it added, in the builder's order (circuit.elements past the held nodes'
+   *  sources): from, to (exclusive). */
+  added: [number, number];
+  /** Its builder calls, when the build was logged (JointCircuit.log): from, to (exclusive). */
+  ops?: [number, number];
   sign: 1 | -1;
 }
 
@@ -40,6 +45,15 @@ export interface JointCircuit {
   vssNode: number;
   /** A, the root's input current at ws.v. */
   rootCurrent(): number;
+  /** Every builder call of the build, with `record` (network/edited.ts replays members from it). */
+  log?: BuilderOp[];
+}
+
+/** How buildJoint wires: `record` logs the builder's calls; `replay` wires member `i` itself
+ *  (the same calls a wiring of it makes) or leaves it to wireTemplate (undefined). */
+export interface JointWiring {
+  record?: boolean;
+  replay?: (i: number, b: CircuitBuilder) => WiredTemplate | undefined;
 }
 
 export const key = (mirror: number, output: number): string => `${mirror}:${output}`;
@@ -47,9 +61,10 @@ export const key = (mirror: number, output: number): string => `${mirror}:${outp
 /** Build the group's circuit; `perturb` is keyed by joint device names (`mirror/device`). With
  *  `measure` (a leaf output), that output's node is the circuit's output, only its mirror's
  *  devices count as measured, and `mc.iin` is the current arriving at that mirror. */
-export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }): JointCircuit {
+export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: PerturbationLike, measure?: { mirror: number; output: number }, how: JointWiring = {}): JointCircuit {
   const { vdd, vss } = spec.supplies;
   const b = new CircuitBuilder();
+  if (how.record) b.log = [];
   b.hold('vdd', vdd);
   b.hold('vss', vss);
   // The node a linked output drives is the fed mirror's input node.
@@ -64,22 +79,23 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
     const ns = `${m.name}/`;
     const inputNode = m === g.root ? undefined : `${ns}${KINDS[m.kind].inputNode}`;
     const own = measure?.mirror === i;
-    const wired = wireTemplate(b, spec, m, {
+    const from = b.added, opsFrom = b.log?.length ?? 0;
+    const wired = how.replay?.(i, b) ?? wireTemplate(b, spec, m, {
       ns, outputIndex: own ? measure!.output : -1, vout: own ? m.outputs[measure!.output]?.output.v ?? 0 : 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb,
       ...(inputNode ? { inputNode } : {}),
       outNode: (j) => fedBy.get(key(i, j)),
     });
     const sign = polaritySign(m.type);
-    members.push({ mirror: m, index: i, ns, wired, first, sign });
+    const mem: JointMember = { mirror: m, index: i, ns, wired, first, added: [from, b.added], sign };
+    if (b.log) mem.ops = [opsFrom, b.log.length];
+    members.push(mem);
     first += wired.deviceNames.length;
     wired.outNodes.forEach((n, j) => {
       const pick = measure ? own && j === measure.output : measured === undefined;
       if (pick && !fedBy.has(key(i, j))) { measured = n; measuredSign = sign; }
     });
   }
-  const rootSign = polaritySign(g.root.type);
   const c = b.build(measured ?? 'vss', measuredSign, vss, vdd);
-  const ws = makeWorkspace(c);
   const index = new Map(c.nodeNames.map((n, k) => [n, k] as const));
   const leafNode = new Map<string, number>(), linkNode = new Map<string, number>(), outDevices = new Map<string, number[]>();
   for (const mem of members) {
@@ -91,6 +107,27 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
       outDevices.set(key(mem.index, j), devs);
     });
   }
+  const j = jointOf(spec, g, members, c, { index, leafNode, linkNode, outDevices }, measure);
+  if (b.log) j.log = b.log;
+  return j;
+}
+
+/** Where a joint circuit's outputs are: node indices by name, each output's node (leaf or
+ *  linked) and the devices on it. The same for every circuit of the group wired alike. */
+export interface JointNodes {
+  index: Map<string, number>;
+  leafNode: Map<string, number>;
+  linkNode: Map<string, number>;
+  outDevices: Map<string, number[]>;
+}
+
+/** The joint circuit around built circuit `c` of the group's `members` (buildJoint's, or one
+ *  with the same nodes and elements of the same kinds: network/edited.ts). */
+export function jointOf(spec: ResolvedSpec, g: NetworkGroup, members: JointMember[], c: Circuit, nodes: JointNodes, measure?: { mirror: number; output: number }): JointCircuit {
+  const { vdd, vss } = spec.supplies;
+  const { index, leafNode, linkNode, outDevices } = nodes;
+  const rootSign = polaritySign(g.root.type);
+  const ws = makeWorkspace(c);
   if (measure) {
     for (const mem of members) {
       if (mem.index === measure.mirror) continue;
@@ -105,8 +142,9 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
     : rootRef !== undefined ? channelCurrent(c.devices[members[0]!.first + rootRef]!, ws.v)
       : rootIn.kind === 'resistor' || rootIn.kind === 'self' ? NaN : rootIn.i);
   const rail = rootSign > 0 ? vss : vdd;
-  const rootStart = rootStartCurrent(spec, g.root);
-  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices, rootStart);
+  // Only a cold start reads it (a reference root is solved alone for it).
+  let rootStart: number | undefined;
+  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices, rootStart ??= rootStartCurrent(spec, g.root));
   const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
   const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
   const fed = measure ? g.parent.get(measure.mirror) : undefined;

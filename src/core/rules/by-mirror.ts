@@ -22,6 +22,7 @@ import { accepts, recheck, recheckContext, wholeMirrorRechecks, type Baseline, t
 import { canonicalJson, digest } from '../canonical';
 import { linkedInputs } from '../analysis/repeats';
 import { LineIndex } from '../text/lines';
+import type { MirrorFragments } from '../spec/fragment';
 
 /** A whole-file re-check of a spec-wide fix, as one mirror's findings asked for it. */
 interface SpecQuery {
@@ -49,6 +50,9 @@ interface Entry {
   /** Local re-checks it read (kept for the next analysis as if read again). */
   rechecks: string[];
   used: number;
+  /** The findings as last placed, and the item's first line then: read back at the same line,
+   *  they are those objects again (findings are values nothing changes once made). */
+  placed?: { first: number; findings: Finding[] };
 }
 
 /** Each mirror's findings by key (above); what an analysis did not use is dropped after it. */
@@ -75,10 +79,11 @@ export class MirrorFindings {
   /**
    * The drafts a whole-file re-check finds (`detect` in its quick form, which plans no fix), each
    * mirror's read back by the same key as its findings; undefined when the edited spec's items
-   * are not known (then the caller detects them all).
+   * are not known (then the caller detects them all). `items`: where the edited text's items are
+   * written (the edited text's own fragments, or the original's when the edit lies outside them).
    */
-  found(rc: RuleContext, detect: Detect): Found[] | undefined {
-    const frags = rc.fragments;
+  found(rc: RuleContext, detect: Detect, items: MirrorFragments | undefined): Found[] | undefined {
+    const frags = items;
     const groups = frags && frags.lineSpan(0) ? mirrorGroups(rc.reports) : undefined;
     if (!frags || !groups) return undefined;
     const context = digest(canonicalJson([recheckContext(rc), 'quick']));
@@ -293,7 +298,9 @@ function relative(found: Finding[], first: number, last: number, headerEnd: numb
 }
 
 function placed(e: Entry, first: number): Finding[] {
+  if (e.placed?.first === first) return e.placed.findings;
   const fs = JSON.parse(e.findings) as Finding[];
+  e.placed = { first, findings: fs };
   let k = 0;
   for (const r of rangesOf(fs)) {
     if (e.relative[k++]) {

@@ -146,7 +146,7 @@ export function runRules(parsed: ParsedSpec, reports: MirrorReport[], opts: Rule
       const budget: Budget = {
         left: opts.maxRechecks ?? DEFAULT_RECHECKS, chars: WHOLE_FILE_CHARS, deadline: timed ? now() + (opts.budgetMs ?? 0) : Infinity, now,
         widen: () => sharesValues(parsed) && !spec.mirrors.some((m) => isAutoSized(spec, indexOf(m))),
-        store: { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses, found: (q, d) => opts.byMirror!.store.found(q, d) },
+        store: { rechecks: opts.rechecks, context: recheckContext(rc), units: opts.units, parses: opts.parses, found: (q, d, items) => opts.byMirror!.store.found(q, d, items) },
       };
       const found = findingsByMirror(rc, {
         store: opts.byMirror.store, recheckStore: budget.store!, settings: opts.byMirror.settings, detect, memo, budget,

@@ -18,7 +18,8 @@ import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
 import { FindingSink } from '../spec/findings';
 import { MirrorFragments, SplicedSourceMap } from '../spec/fragment';
-import { provisionalLinks, solveNetworks } from '../network/index';
+import { provisionalLinks } from '../network/index';
+import { solveEditedNetworks } from '../network/edited';
 import { isRecord } from '../spec/params';
 import { validateSchema } from '../spec/schema';
 import { YamlSourceMap } from '../spec/source-map';
@@ -74,7 +75,7 @@ export interface RecheckStore {
   units?: SolvedUnits;
   parses?: ParseCache;
   /** The quick detect of a whole-file re-check, mirror by mirror from earlier analyses (rules/by-mirror.ts). */
-  found?: (rc: RuleContext, detect: Detect) => Found[] | undefined;
+  found?: (rc: RuleContext, detect: Detect, items: MirrorFragments | undefined) => Found[] | undefined;
 }
 
 /** Local re-check results kept across analyses of one file; entries one analysis did not use are
@@ -198,14 +199,18 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
   // written `auto` are sized again, as the analysis sizes them (a vbias fix moves them).
   const opts = { limits: rc.spec.limits, ...(rc.parsed.tables ? { tables: rc.parsed.tables } : {}) };
   // An edit outside every mirror (the EKV fix) re-reads the lines before the mirrors alone; its
-  // spec findings are only counted, so they are placed on the original's tree as a local re-check's are.
-  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits) : undefined;
-  // Otherwise the edited text of the last analysis with the same fix differs by the designer's
-  // edit since: the file's parse cache reads only what changed (spec/incremental.ts).
-  const parses = store?.parses ? { parses: { cache: store.parses, slot: `fix ${plan.scope === 'spec' ? '' : plan.mirrorIndex} ${JSON.stringify(plan.edits)}` } } : {};
-  const { parsed } = outside
-    ? resolveParsed(fromRead(text, outside.read, { source: outside.source, findings: rc.parsed.source as YamlSourceMap }, looksJson(text, rc.file), opts), opts)
-    : resolveText(text, rc.file, { ...opts, ...parses });
+  // spec findings are only counted, so they are placed on the original's tree as a local re-check's
+  // are. The mirrors the designer did not edit since the last analysis keep their elaborations
+  // from that analysis's re-check of the same fix. Otherwise the edited text of the last analysis
+  // with the same fix differs by the designer's edit since: the file's parse cache reads only
+  // what changed (spec/incremental.ts).
+  const slot = `fix ${plan.scope === 'spec' ? '' : plan.mirrorIndex} ${JSON.stringify(plan.edits)}`;
+  const outside = rc.fragments && localPossible(rc) ? rc.fragments.readOutside(text, plan.edits, store?.parses?.lastOutside(slot)) : undefined;
+  const base = rc.parsed.source as YamlSourceMap;
+  const json = looksJson(text, rc.file);
+  const { parsed } = !outside ? resolveText(text, rc.file, { ...opts, ...(store?.parses ? { parses: { cache: store.parses, slot } } : {}) })
+    : resolveParsed(store?.parses ? store.parses.fromOutside(slot, text, outside, base, json, opts)
+      : fromRead(text, outside.read, { source: outside.source, findings: base }, json, opts), opts);
   const spec = parsed.spec;
   if (!parsed.parsed || !spec) return undefined;
   if (parsed.findings.filter((f) => f.severity === 'error').length > baseline.specErrors) return undefined;
@@ -218,7 +223,8 @@ function recheckWhole(rc: RuleContext, plan: FixPlan, text: string, baseline: Ba
     const untrusted = trusted(rc, spec, reports);
     if (untrusted) return untrusted;
     quick.fragments = MirrorFragments.of(parsed);
-    return store.found(quick, detect) ?? found(detect(quick));
+    // Read outside the items, the edited text's items are the original's, as written.
+    return store.found(quick, detect, outside ? rc.fragments : quick.fragments) ?? found(detect(quick));
   }
   return trusted(rc, spec, reports) ?? found(detect(quick));
 }
@@ -249,8 +255,8 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it (its
-  // findings need no chain sigma).
-  const spec = solveNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, undefined, { chainSigma: false });
+  // findings need no chain sigma), from the analysis's own solve of it (network/edited.ts).
+  const spec = solveEditedNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, i, rc.spec);
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).

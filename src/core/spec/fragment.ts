@@ -88,6 +88,17 @@ function spanOf(item: unknown, text: string, lines: LineIndex): ItemSpan | undef
   return { lineStart, content, end, line: lines.position(lineStart).line };
 }
 
+/** An edited text read outside its mirror items (`MirrorFragments.readOutside`). */
+export interface OutsideRead {
+  /** The edited lines before the first item, read alone, with the original items put back. */
+  read: ReadDocument;
+  source: SourceMap;
+  /** Those lines (the same lines read the same data). */
+  head: string;
+  /** Their read alone (`mirrors:` null) and its source map, for the next read of the same lines. */
+  alone: { read: ReadDocument; map: YamlSourceMap };
+}
+
 export class MirrorFragments {
   /** Item spans, found on first use (a clean file never needs them); null: the spec is not plain. */
   private found: (ItemSpan | undefined)[] | null | undefined;
@@ -254,7 +265,7 @@ export class MirrorFragments {
    * edited text reads as, without reading every mirror again. Undefined when that is not exact
    * (then the caller reads the whole text): the edited lines must read cleanly and plainly alone.
    */
-  readOutside(text: string, edits: readonly TextEdit[]): { read: ReadDocument; source: SourceMap } | undefined {
+  readOutside(text: string, edits: readonly TextEdit[], prior?: OutsideRead): OutsideRead | undefined {
     if (this.spans.length === 0 || !this.outside || !Array.isArray((this.parsed.data as { mirrors?: unknown } | undefined)?.mirrors)) return undefined;
     const { key, keyLineStart, itemsStart } = this.outside;
     if (!edits.every((e) => this.lines.offset(e.range.end) < keyLineStart && positionExists(this.lines, e.range.start) && positionExists(this.lines, e.range.end))) return undefined;
@@ -263,8 +274,10 @@ export class MirrorFragments {
     // The whole text is refused (too large, a control byte, runaway flow nesting) as a whole read would.
     if (refusal(text, LineIndex.of(text))) return undefined;
     const cut = text.slice(0, itemsStart + delta);
-    const lines = new LineIndex(cut);
-    const read = readDocument(cut, lines);
+    // The same lines read the same document: an earlier read of them is taken as it is.
+    const again = prior?.head === cut ? prior.alone : undefined;
+    const lines = again ? again.map.lines : new LineIndex(cut);
+    const read = again ? again.read : readDocument(cut, lines);
     const doc = read.doc;
     if (!read.parsed || read.findings.length > 0 || !doc || doc.errors.length > 0 || doc.warnings.length > 0) return undefined;
     if (!isMap(doc.contents) || !plain(doc) || doc.directives?.yaml.version !== '1.2') return undefined;
@@ -276,9 +289,12 @@ export class MirrorFragments {
     if (!data || typeof data !== 'object' || data.mirrors !== null) return undefined;
     const original = this.parsed.data as { mirrors: unknown[] };
     const lineDelta = lines.lineOf(cut.length) - this.lines.lineOf(itemsStart);
+    const map = again ? again.map : new YamlSourceMap(doc, lines);
     return {
       read: { doc, parsed: true, findings: [], data: { ...data, mirrors: original.mirrors } },
-      source: new OutsideSourceMap(new YamlSourceMap(doc, lines), this.parsed.source, lineDelta, text),
+      source: new OutsideSourceMap(map, this.parsed.source, lineDelta, text),
+      head: cut,
+      alone: { read, map },
     };
   }
 

@@ -17,10 +17,11 @@ import { isMap, isNode, isPair, isSeq, visit } from 'yaml';
 import type { Node } from 'yaml';
 import { elaborate } from './elaborate';
 import { FindingSink } from './findings';
-import { MirrorFragments } from './fragment';
+import { MirrorFragments, type OutsideRead } from './fragment';
 import { fedOutputs } from './links';
 import { isRecord } from './params';
-import { parseSpec, type ParsedSpec, type ParseOptions } from './index';
+import { fromRead, parseSpec, type ParsedSpec, type ParseOptions } from './index';
+import type { SourceMap } from './source-map';
 import { refusal } from './document';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
@@ -33,6 +34,17 @@ interface Base {
   used: number;
 }
 
+/** The last read outside the items of one whole-file re-check (`fromOutside`). */
+interface OutsideBase {
+  head: string;
+  read: OutsideRead;
+  json: boolean;
+  /** As `fromRead` gave it (elaborated, before the design targets and networks). */
+  parsed: ParsedSpec;
+  opts: ParseOptions;
+  used: number;
+}
+
 /**
  * The last parse of each text a file's analyses read (the spec itself, and each whole-file fix
  * re-check by its edit: `slot`), so the next analysis reads only what the designer changed. One
@@ -40,6 +52,7 @@ interface Base {
  */
 export class ParseCache {
   private readonly bases = new Map<string, Base>();
+  private readonly outsides = new Map<string, OutsideBase>();
   private generation = 0;
   /** Of the last analysis: texts read whole, and texts read from a base. */
   wholeNow = 0;
@@ -53,10 +66,36 @@ export class ParseCache {
 
   sweep(): void {
     for (const [k, b] of this.bases) if (b.used !== this.generation) this.bases.delete(k);
+    for (const [k, b] of this.outsides) if (b.used !== this.generation) this.outsides.delete(k);
   }
 
   get size(): number {
-    return this.bases.size;
+    return this.bases.size + this.outsides.size;
+  }
+
+  /**
+   * `fromRead` of a text edited outside its items (rules/verify.ts: the EKV fix's `model:`), read
+   * by `MirrorFragments.readOutside`. When the slot's last such read had the same lines before the
+   * items and no finding, only the items that are not the very objects it read (the designer's
+   * edit since: the spliced parse hands on the others) are validated and elaborated again, the
+   * others' elaborations reused, as `spliced` does; any finding, or a link written or removed,
+   * and the whole is elaborated by `fromRead`.
+   */
+  fromOutside(slot: string, text: string, outside: OutsideRead, findings: YamlSourceMap, json: boolean, opts: ParseOptions = {}): ParsedSpec {
+    const b = this.outsides.get(slot);
+    this.outsides.delete(slot);
+    const maps = { source: outside.source, findings };
+    let out = b && b.head === outside.head && b.json === json && sameParseOptions(b.opts, opts)
+      ? elaboratedAgain(b.parsed, text, outside, maps, json, opts) : undefined;
+    if (out) this.splicedNow++;
+    else out = fromRead(text, outside.read, maps, json, opts);
+    if (out.spec && out.findings.length === 0 && !out.withheld && !out.suggestions) this.outsides.set(slot, { head: outside.head, read: outside, json, parsed: out, opts, used: this.generation });
+    return out;
+  }
+
+  /** The slot's last read outside the items (`fromOutside`), for `MirrorFragments.readOutside`. */
+  lastOutside(slot: string): OutsideRead | undefined {
+    return this.outsides.get(slot)?.read;
   }
 
   /** `parseSpec(text, file, opts)`, from the slot's last parse where an edit allows. */
@@ -76,9 +115,13 @@ export class ParseCache {
 }
 
 function sameOptions(b: Base, file: string | undefined, opts: ParseOptions): boolean {
-  if (b.file !== file || (b.opts.words ?? true) !== (opts.words ?? true)) return false;
-  const x = b.opts.tables;
-  const y = opts.tables;
+  return b.file === file && sameParseOptions(b.opts, opts);
+}
+
+function sameParseOptions(a: ParseOptions, b: ParseOptions): boolean {
+  if ((a.words ?? true) !== (b.words ?? true)) return false;
+  const x = a.tables;
+  const y = b.tables;
   if (x === y) return true;
   if (!x || !y) return false;
   const kx = Object.keys(x);
@@ -153,6 +196,29 @@ function spliced(base: ParsedSpec, text: string, opts: ParseOptions): ParsedSpec
   const source = new YamlSourceMap(doc, lines);
   frags.carry(source, index, newItem, delta, lines.lineCount - src.lines.lineCount);
   const out: ParsedSpec = { text, parsed: true, findings: [], source, json: base.json, data: edited };
+  if (opts.tables) out.tables = opts.tables;
+  out.spec = read;
+  return out;
+}
+
+/** `fromRead` of `outside` from `base`, a read of the same lines before the items; undefined when it must be elaborated whole. */
+function elaboratedAgain(base: ParsedSpec, text: string, outside: OutsideRead, maps: { source: SourceMap; findings: YamlSourceMap }, json: boolean, opts: ParseOptions): ParsedSpec | undefined {
+  const was = base.data;
+  const data = outside.read.data;
+  const spec = base.spec;
+  if (!outside.read.parsed || !spec || base.findings.length > 0 || base.withheld || base.suggestions || !isRecord(was) || !Array.isArray(was.mirrors)) return undefined;
+  if (!isRecord(data) || !Array.isArray(data.mirrors) || data.mirrors.length !== was.mirrors.length || spec.mirrors.length !== was.mirrors.length) return undefined;
+  const items = data.mirrors;
+  const before = was.mirrors;
+  const changed = items.filter((item, i) => item !== before[i]);
+  if (!sameSet(fedOutputs(was), fedOutputs(data))) return undefined;
+  const sink = new FindingSink(maps.findings, undefined, opts.words ?? true);
+  // The same lines read the same root, which validated cleanly: only the changed items are new.
+  if (changed.length > 0) validateSchema({ ...data, mirrors: changed }, sink);
+  if (sink.list.length > 0) return undefined;
+  const read = elaborate(data, sink, { items: before, mirrors: spec.mirrors, except: -1 }, opts.tables);
+  if (!read || sink.list.length > 0 || sink.suggestions.length > 0 || sink.errorCount > 0 || read.mirrors.length !== items.length) return undefined;
+  const out: ParsedSpec = { text, parsed: true, findings: [], source: maps.source, json, data };
   if (opts.tables) out.tables = opts.tables;
   out.spec = read;
   return out;

@@ -38,11 +38,20 @@ function linkOf(m: ResolvedMirror): LinkInput | undefined {
 export function checkLinks(data: unknown, given: ResolvedMirror[], sink: FindingSink): ResolvedMirror[] {
   // No link and no fed output: nothing to check or mark (every fix's re-check of a plain spec).
   if (given.every((m) => m.kind === 'netlist' || (m.input.kind !== 'link' && m.outputs.every((o) => o.feeds === undefined)))) return given;
+  // A mirror neither linked nor fed stays the object it was (a keystroke's next parse hands the
+  // unedited mirrors on, and their solved reports are keyed by object: analysis/repeats.ts);
+  // what changes here is a copy made here (`made`), an output marked fed a copy of its own.
+  const made = new Set<ResolvedMirror>();
   const mirrors = given.map((m): ResolvedMirror => {
     if (m.kind === 'netlist') return m;
-    const outputs = m.outputs.map((o) => { if (o.feeds === undefined) return o; const c = { ...o }; delete c.feeds; return c; });
-    return { ...m, input: m.input.kind === 'link' ? { ...m.input, mirror: -1, output: -1 } : m.input, outputs };
+    const fed = m.outputs.some((o) => o.feeds !== undefined);
+    if (m.input.kind !== 'link' && !fed) return m;
+    const outputs = fed ? m.outputs.map((o) => { if (o.feeds === undefined) return o; const c = { ...o }; delete c.feeds; return c; }) : m.outputs.slice();
+    const c = { ...m, input: m.input.kind === 'link' ? { ...m.input, mirror: -1, output: -1 } : m.input, outputs };
+    made.add(c);
+    return c;
   });
+  const at = new Map<number, number>(mirrors.map((m, k) => [m.path[1] as number, k]));
   const targets = linkTargets(data);
   const byIndex = new Map<number, ResolvedMirror>(mirrors.map((m) => [m.path[1] as number, m]));
   const bad = new Set<number>();
@@ -136,10 +145,16 @@ export function checkLinks(data: unknown, given: ResolvedMirror[], sink: Finding
   for (const m of mirrors) {
     const link = linkOf(m);
     if (!link || bad.has(m.path[1] as number)) continue;
-    const up = byIndex.get(link.mirror) as TemplateMirror | undefined;
+    let up = byIndex.get(link.mirror) as TemplateMirror | undefined;
     const out = up?.outputs[link.output];
     if (!up || !out) continue;
-    out.feeds = m.path[1] as number;
+    if (!made.has(up)) {
+      up = { ...up, outputs: up.outputs.slice() };
+      made.add(up);
+      byIndex.set(link.mirror, up);
+      mirrors[at.get(link.mirror)!] = up;
+    }
+    up.outputs[link.output] = { ...out, feeds: m.path[1] as number };
     if (writtenV(items[link.mirror], out.path.length > up.path.length ? link.output : undefined)) {
       sink.warning('link-output-v', `\`output.v\` is not used: this output feeds \`${m.name}\`, so its voltage is the solved input voltage of that mirror`, [...out.path, 'output', 'v'], 'key');
     }

@@ -1,0 +1,209 @@
+/**
+ * A network solved again with one member edited (a fix's re-check, rules/verify.ts), as
+ * `solveNetworks(spec, undefined, { chainSigma: false })` solves it, without building the group's
+ * circuit again or starting Newton cold.
+ *
+ * The analysis kept each group's joint circuit and solution (kept.ts). A fix edits one mirror;
+ * when the edited mirror wires into the same nodes with elements of the same kinds and names (a
+ * new size, a new device count: what a sizing fix writes), the group's circuit is the kept one with
+ * that mirror's elements replaced — the same nodes, Jacobian pattern and elimination order, so
+ * nothing else is built (as circuit/temperature.ts takes a circuit to another temperature). Every
+ * other member's elements are the kept ones: a local re-check reads only the edited mirror again
+ * (spec/fragment.ts), so the others are the mirrors the analysis wired, but for a held vbias that
+ * the member's input current picks, picked again here as the build picks it. The whole group is
+ * then solved by Newton from the kept solution — a fix moves the operating point a little, so a
+ * few iterations reach it, to the solver's own tolerances —, falling back to the cold start a
+ * build solves from, which then gives exactly what a build gives. A fix that rewires the mirror
+ * (another kind), a group whose members or links changed, or a network the analysis did not keep
+ * is built and solved as before.
+ */
+import type { ResolvedSpec, SolvedNetwork, TemplateMirror } from '../types';
+import { CircuitBuilder, type Circuit } from '../circuit/circuit';
+import { assertNever, type CircuitElement } from '../circuit/elements/element';
+import { wireTemplate } from '../circuit/templates';
+import { KINDS } from '../kinds/index';
+import { vbiasFor } from '../analysis/vbias';
+import { solveMirror } from '../analysis/solve';
+import { indexOf } from '../mirror-at';
+import { networkGroups, type NetworkGroup } from './groups';
+import { buildJoint, jointOf, type JointCircuit, type JointMember } from './joint';
+import { handOn, withMirrors } from './index';
+import { keptJoint, type KeptJoint } from './kept';
+
+/** `spec`'s networks solved, `edited` (a file index) being the one mirror that differs from
+ *  `base`, the analysed spec whose networks were kept; what solveNetworks gives without chain
+ *  sigmas. */
+export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: ResolvedSpec): ResolvedSpec {
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
+  const byRoot = new Map<number, KeptJoint>();
+  for (const n of base.networks ?? []) {
+    const k = keptJoint(n);
+    if (k) byRoot.set(n.root, k);
+  }
+  const changed = new Map<number, TemplateMirror>();
+  const networks: SolvedNetwork[] = [];
+  for (const g of groups) {
+    const k = byRoot.get(indexOf(g.root));
+    const kept = k && sameLinks(g, k.group) ? k : undefined;
+    const patched = kept && withEdit(spec, g, kept, edited);
+    const replayed = !patched && kept ? rebuilt(spec, g, kept, edited) : undefined;
+    const j = patched ?? replayed?.j ?? buildJoint(spec, g);
+    const warm = patched ? kept?.v : replayed?.warm;
+    networks.push(handOn(spec, g, j, warm ? solveMirror(j.mc, warm) : solveMirror(j.mc), false, changed));
+  }
+  return withMirrors(spec, changed, networks);
+}
+
+/**
+ * The group built again with the edited mirror (and the mirror feeding it, whose output now
+ * drives another input node name) wired anew and every other member's builder calls replayed
+ * from the kept build: the very circuit buildJoint builds, without wiring a thousand mirrors.
+ * Newton starts from the kept solution at every node it still has, the topology guess elsewhere.
+ */
+function rebuilt(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): { j: JointCircuit; warm: Float64Array } | undefined {
+  const log = k.joint.log;
+  if (!log) return undefined;
+  const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
+  const feeding = g.parent.get(edited)?.mirror;
+  const j = buildJoint(spec, g, undefined, undefined, {
+    replay: (i, b) => {
+      const mem = byIndex.get(i);
+      // Wired anew: the edit, its feeding mirror, a member whose vbias its input current picks, an input resistor the joint reads.
+      if (!mem?.ops || i === edited || i === feeding || KINDS[mem.mirror.kind].vbias || mem.wired.inputResistor) return undefined;
+      b.replay(log, mem.ops[0], mem.ops[1]);
+      return mem.wired;
+    },
+  });
+  if (j.mc.circuit.problems.length > 0) return undefined;
+  const c = j.mc.circuit, bc = k.joint.mc.circuit;
+  const index = k.index();
+  j.mc.guess();
+  const warm = j.mc.ws.v.slice();
+  for (let x = 0; x < c.nFree; x++) {
+    const at = index.get(c.nodeNames[x]!);
+    if (at !== undefined && at < bc.nFree) warm[x] = k.v[at]!;
+  }
+  return { j, warm };
+}
+
+/** The same members in the same order, each fed by the same output. */
+function sameLinks(g: NetworkGroup, h: NetworkGroup): boolean {
+  if (g.members.length !== h.members.length) return false;
+  for (let n = 0; n < g.members.length; n++) {
+    const i = indexOf(g.members[n]!);
+    if (i !== indexOf(h.members[n]!)) return false;
+    const p = g.parent.get(i), q = h.parent.get(i);
+    if (p?.mirror !== q?.mirror || p?.output !== q?.output) return false;
+  }
+  return true;
+}
+
+/** The kept joint circuit with `spec`'s members: the edited one's elements wired again in place,
+ *  every held vbias picked again; undefined when the edited mirror wires differently. */
+function withEdit(spec: ResolvedSpec, g: NetworkGroup, kept: KeptJoint, edited: number): JointCircuit | undefined {
+  const base = kept.joint, bc = base.mc.circuit;
+  const { vdd, vss } = spec.supplies;
+  const index = kept.index();
+  const fixedV = bc.fixedV.slice();
+  if (fixedV[index.get('vdd') ?? -1] !== vdd || fixedV[index.get('vss') ?? -1] !== vss) return undefined;
+  const members: JointMember[] = base.members.map((mem, n) => ({ ...mem, mirror: g.members[n]! }));
+  // A vbias the build picks from the member's own circuit (its input current moves with an edit upstream).
+  for (const mem of members) {
+    const m = mem.mirror;
+    if (!KINDS[m.kind].vbias) continue;
+    const at = index.get(`${mem.ns}vbias`);
+    if (at === undefined || at < bc.nFree) return undefined;
+    fixedV[at] = m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias ?? 0.5 * (vdd + vss);
+  }
+  let circuit: Circuit = { ...bc, fixedV };
+  const at = members.findIndex((mem) => mem.index === edited);
+  if (at >= 0) {
+    const rewired = rewire(spec, g, members[at]!, at === 0, index, circuit);
+    if (!rewired) return undefined;
+    circuit = rewired.circuit;
+    members[at] = { ...members[at]!, wired: rewired.wired };
+  }
+  return jointOf(spec, g, members, circuit, { index, leafNode: base.leafNode, linkNode: base.linkNode, outDevices: base.outDevices });
+}
+
+/** Member `mem` (its mirror edited) wired alone with the names buildJoint gives it, put in place of
+ *  its elements in `c`; undefined unless it has as many elements, of the same kinds and names, on
+ *  the same nodes, each held node held. */
+function rewire(spec: ResolvedSpec, g: NetworkGroup, mem: JointMember, root: boolean, index: Map<string, number>, c: Circuit) {
+  const { vdd, vss } = spec.supplies;
+  const m = mem.mirror;
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  const fed = new Map<number, string>();
+  for (const x of g.members) {
+    const p = g.parent.get(indexOf(x));
+    if (p?.mirror === mem.index) fed.set(p.output, `${x.name}/${KINDS[x.kind].inputNode}`);
+  }
+  const wired = wireTemplate(b, spec, m, {
+    ns: mem.ns, outputIndex: -1, vout: 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias,
+    ...(root ? {} : { inputNode: `${mem.ns}${KINDS[m.kind].inputNode}` }),
+    outNode: (j) => fed.get(j),
+  });
+  // A root fed through a resistor: the joint's root current reads that element itself.
+  if (b.problems.length > 0 || wired.inputResistor || wired.deviceNames.length !== mem.wired.deviceNames.length) return undefined;
+  const alone = b.build('vss', 1, vss, vdd);
+  const held = c.nodeNames.length - c.nFree, heldAlone = alone.nodeNames.length - alone.nFree;
+  const [from, to] = mem.added;
+  if (alone.elements.length - heldAlone !== to - from) return undefined;
+  // Node k of the mirror alone is node place[k] of the group; held in both or in neither.
+  const place = new Int32Array(alone.nodeNames.length);
+  const fixedV = c.fixedV;
+  for (let k = 0; k < alone.nodeNames.length; k++) {
+    const n = index.get(alone.nodeNames[k]!);
+    if (n === undefined || (n < c.nFree) !== (k < alone.nFree)) return undefined;
+    place[k] = n;
+    if (k >= alone.nFree) fixedV[n] = alone.fixedV[k]!;
+  }
+  const elements = c.elements.slice(), devices = c.devices.slice();
+  let d = mem.first;
+  for (let q = 0; q < to - from; q++) {
+    const e = alone.elements[heldAlone + q]!, was = c.elements[held + from + q]!;
+    const x = inPlace(e, was, place);
+    if (!x) return undefined;
+    elements[held + from + q] = x;
+    if (x.kind === 'mos' || x.kind === 'bjt') {
+      if (devices[d] !== was) return undefined;
+      devices[d++] = x;
+    }
+  }
+  if (d !== mem.first + mem.wired.deviceNames.length) return undefined;
+  return { circuit: { ...c, elements, devices }, wired };
+}
+
+/** Element `e` of the mirror alone as element `was` of the group (its nodes, its Jacobian slots),
+ *  or undefined when they are not the same element on the same nodes. */
+function inPlace(e: CircuitElement, was: CircuitElement, place: Int32Array): CircuitElement | undefined {
+  if (e.kind !== was.kind || e.name !== was.name) return undefined;
+  const same = (a: number, b: number): boolean => place[a] === b;
+  switch (e.kind) {
+    case 'mos': {
+      const w = was as typeof e;
+      return same(e.d, w.d) && same(e.g, w.g) && same(e.s, w.s) && same(e.b, w.b) ? { ...e, d: w.d, g: w.g, s: w.s, b: w.b, slot: w.slot } : undefined;
+    }
+    case 'bjt': {
+      const w = was as typeof e;
+      return same(e.c, w.c) && same(e.b, w.b) && same(e.e, w.e) ? { ...e, c: w.c, b: w.b, e: w.e, slot: w.slot } : undefined;
+    }
+    case 'resistor': {
+      const w = was as typeof e;
+      return same(e.a, w.a) && same(e.b, w.b) ? { ...e, a: w.a, b: w.b, slot: w.slot } : undefined;
+    }
+    case 'capacitor': {
+      const w = was as typeof e;
+      return same(e.a, w.a) && same(e.b, w.b) ? { ...e, a: w.a, b: w.b } : undefined;
+    }
+    case 'current': {
+      const w = was as typeof e;
+      return same(e.from, w.from) && same(e.to, w.to) ? { ...e, from: w.from, to: w.to } : undefined;
+    }
+    case 'voltage': return undefined;
+    default: return assertNever(e);
+  }
+}
