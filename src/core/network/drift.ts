@@ -40,7 +40,11 @@ interface Ends { up: JointCircuit; down: JointCircuit; finite: boolean }
 /** The nominal solution's noise sources, once per group, and which elements sit on each node:
  *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
  *  the few mirrors on its path), so each output passes those alone to outputNoise. */
-interface GroupNoise { parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[] }
+interface GroupNoise {
+  parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[];
+  /** Runs picked for the output at hand (`picked[r] === stamp`): a set without one per output. */
+  picked: Int32Array; stamp: number;
+}
 interface GroupCache {
   group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise;
   /** Each output's row and adjoint at the nominal solution. */
@@ -152,7 +156,7 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
     for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
-  gc.noise = { parts, runs, byNode, always };
+  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0 };
   return gc.noise;
 }
 
@@ -162,12 +166,15 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
  *  it out changes no sum. With capacitors the AC transfer differs from λ: every source. */
 function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
-  const picked = new Set<number>(gn.always);
-  for (const r of gn.byNode[probe.node] ?? []) picked.add(r);
-  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) picked.add(r); };
+  const stamp = ++gn.stamp;
+  const order: number[] = [];
+  const pick = (r: number): void => { if (gn.picked[r] !== stamp) { gn.picked[r] = stamp; order.push(r); } };
+  for (const r of gn.always) pick(r);
+  for (const r of gn.byNode[probe.node] ?? []) pick(r);
+  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) pick(r); };
   if (support) for (const k of support) at(k);
   else for (let k = 0; k < lam.length; k++) at(k);
-  const order = [...picked].sort((a, b) => a - b);
+  order.sort((a, b) => a - b);
   const sources: NoiseSource[] = [];
   for (const r of order) {
     const [a, b] = gn.runs[r]!;
@@ -178,20 +185,8 @@ function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
  *  their own names, every other element by its path. */
-function renamed(n: NoiseReport, ns: string): NoiseReport {
-  const name = (x: string): string => (x.startsWith(ns) ? x.slice(ns.length) : x);
-  const shares: Record<string, number> = {};
-  for (const [k, v] of Object.entries(n.shares)) shares[name(k)] = v;
-  // Copied by assignment: a spread copy would get a map of its own (see report.ts).
-  const out: NoiseReport = Object.assign({}, n);
-  out.shares = shares;
-  if (n.spectrum) {
-    const parts: Record<string, number[]> = {};
-    for (const [k, v] of Object.entries(n.spectrum.parts)) parts[name(k)] = v;
-    out.spectrum = Object.assign({}, n.spectrum);
-    out.spectrum.parts = parts;
-  }
-  return out;
+function localNames(ns: string): (element: string) => string {
+  return (x) => (x.startsWith(ns) ? x.slice(ns.length) : x);
 }
 
 /**
@@ -222,9 +217,9 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     const up = ends && endOf(ends, ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, mirrorIndex, outputIndex);
     const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
-    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, pr.lam, pr.support));
     const mem = memberOf(j, mirrorIndex);
-    if (noise && mem) out.noise = renamed(noise, mem.ns);
+    const noise = mem && outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, pr.lam, pr.support), localNames(mem.ns));
+    if (noise) out.noise = noise;
   }
   const trange = spec.process.trange;
   if (trange && opts.box) {

@@ -111,18 +111,30 @@ function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Ar
   return support;
 }
 
-/** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
+/** What a device's mismatch does at the solution, whichever output reads it: its sigmas and
+ *  the derivatives of the currents leaving its nodes (node, d1, d2 in turn). */
+interface DeviceMismatch { sigmas: [number, number] | undefined; currents: number[] }
+
+function deviceMismatch(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], d: number): DeviceMismatch {
+  const currents: number[] = [];
+  const sigmas = deviceSigmas(c.devices[d]!);
+  if (sigmas) deviceMismatchCurrents(c.devices[d]!, ws.v, ws.ch, (node, d1, d2) => { currents.push(node, d1, d2); });
+  return { sigmas, currents };
+}
+
+/** d ln(iout)/dθ of a device's two mismatch parameters, from the output's adjoint λ (as
  *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
  *  network). */
-function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], lam: Float64Array, d: number, iout: number): [number, number] {
+function pathSensitivity(c: JointCircuit['mc']['circuit'], n: number, lam: Float64Array, currents: number[], iout: number): [number, number] {
   let w1 = 0, w2 = 0;
   // Summed over the nodes the device's currents leave (a bipolar device: its base too).
-  deviceMismatchCurrents(c.devices[d]!, ws.v, ws.ch, (node, d1, d2) => {
+  for (let k = 0; k < currents.length; k += 3) {
+    const node = currents[k]!;
     let w = 0;
     if (node === c.outNode) w += 1;
-    if (node < ws.n) w -= lam[node]!;
-    w1 += w * d1; w2 += w * d2;
-  });
+    if (node < n) w -= lam[node]!;
+    w1 += w * currents[k + 1]!; w2 += w * currents[k + 2]!;
+  }
   return [c.outSign * w1 / iout, c.outSign * w2 / iout];
 }
 
@@ -148,6 +160,8 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
   }
   const lam = sigmaAt ? new Float64Array(ws.n) : undefined;
   let support: number[] | undefined = [];
+  // Each device's mismatch figures, made the first time a leaf's path reaches it.
+  const mismatch: (DeviceMismatch | undefined)[] = [];
   let toVdd = 0, toVss = 0;
   for (const mem of j.members) {
     mem.mirror.outputs.forEach((_, o) => {
@@ -164,10 +178,11 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
         let sum = 0, any = false;
         for (let at: JointMember | undefined = mem; at; at = byIndex.get(g.parent.get(at.index)?.mirror ?? -1)) {
           for (let d = at.first; d < at.first + at.wired.deviceNames.length; d++) {
-            const s = deviceSigmas(c.devices[d]!);
+            const dm = (mismatch[d] ??= deviceMismatch(c, ws, d));
+            const s = dm.sigmas;
             if (!s) continue;
             any = true;
-            const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
+            const [svt, sb] = pathSensitivity(c, ws.n, lam, dm.currents, iout);
             sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
           }
         }
