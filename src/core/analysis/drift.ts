@@ -20,15 +20,32 @@ import type { ResolvedSpec, TemperaturePoint } from '../types';
 import { heldProbe, probeCurrent, type OutputProbe, type Probed } from './probe';
 import { buildMirror, outputCurrent, solveMirror, type MirrorSolve, type MirrorTarget } from './solve';
 
+/** Index of each circuit's held vdd node (−1 without one): read once, not per output. */
+const vddNodes = new WeakMap<Circuit, number>();
+
+function vddNode(c: Circuit): number {
+  let k = vddNodes.get(c);
+  if (k === undefined) { k = c.nodeNames.indexOf('vdd'); vddNodes.set(c, k); }
+  return k;
+}
+
 /** (vdd/iout)·∂iout/∂vdd; undefined when the circuit has no held vdd node or iout is 0. */
 export function supplySensitivity(c: Circuit, ws: Workspace, pr: Probed, iout: number, vdd: number): number | undefined {
-  const k = c.nodeNames.indexOf('vdd');
+  const k = vddNode(c);
   if (k < c.nFree || iout === 0) return undefined;
   const { colPtr, rowIdx } = ws.pattern;
   let d = pr.row[k]!;
-  for (let p = colPtr[k]!; p < colPtr[k + 1]!; p++) {
-    const i = rowIdx[p]!;
-    if (i < ws.n) d -= pr.lam[i]! * ws.G[p]!;
+  if (pr.support) {
+    // Only where λ is not zero, in the column's (ascending) row order: the same sum.
+    for (const i of pr.support) {
+      const p = ws.pattern.index(i, k);
+      if (p >= 0) d -= pr.lam[i]! * ws.G[p]!;
+    }
+  } else {
+    for (let p = colPtr[k]!; p < colPtr[k + 1]!; p++) {
+      const i = rowIdx[p]!;
+      if (i < ws.n) d -= pr.lam[i]! * ws.G[p]!;
+    }
   }
   return (vdd / iout) * pr.probe.sign * d;
 }
@@ -110,8 +127,9 @@ export function temperatureCoefficient(
 }
 
 /** The circuit's residuals and probed current at one end of T ± DRIFT.dT, node voltages held at
- *  the operating point. */
-export interface AtEnd { F: Float64Array; y: number }
+ *  the operating point; `finite`: every free node's residual is finite (what lets a sum over
+ *  λ's support leave out the rest). */
+export interface AtEnd { F: Float64Array; y: number; finite?: boolean }
 
 /** ppm/K from the two ends (`n` free nodes): what temperatureCoefficient computes once they are
  *  assembled; a network assembles its ends once for every output (network/drift.ts). */
@@ -119,7 +137,10 @@ export function coefficientFrom(n: number, pr: Probed, iout: number, up: AtEnd, 
   if (iout === 0) return undefined;
   const h = DRIFT.dT;
   let d = (up.y - down.y) / (2 * h);
-  for (let j = 0; j < n; j++) d -= pr.probe.sign * pr.lam[j]! * (up.F[j]! - down.F[j]!) / (2 * h);
+  const term = (j: number): void => { d -= pr.probe.sign * pr.lam[j]! * (up.F[j]! - down.F[j]!) / (2 * h); };
+  // λ's support (a network's output): every other term is a zero, as long as the ends are finite.
+  if (pr.support && up.finite && down.finite) for (const j of pr.support) term(j);
+  else for (let j = 0; j < n; j++) term(j);
   const tc = (d / iout) * 1e6;
   return Number.isFinite(tc) ? tc : undefined;
 }

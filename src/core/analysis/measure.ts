@@ -6,7 +6,7 @@ import { outputAdjoint, outputConductance, outputSensitivities } from '../circui
 import { designRatio, idealRatio, isBank } from '../circuit/templates';
 import { KINDS, takesVbias } from '../kinds/index';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
-import type { MirrorReport } from '../types';
+import type { MirrorReport, ResolvedMirror } from '../types';
 import { indexOf } from '../mirror-at';
 import { findCompliance } from './compliance';
 import { boxCoefficient, driftCurve, mirrorRebuild, supplySensitivity, temperatureCoefficient } from './drift';
@@ -88,13 +88,27 @@ function safeNominal(t: MirrorTarget): number {
   try { return nominalVout(t); } catch { return NaN; }
 }
 
+/** A bank's circuit as built for one of its outputs, by mirror (the spec it was built in): the
+ *  next output's circuit is made from it (MirrorCircuit.forOutput) rather than built again. */
+const banks = new WeakMap<ResolvedMirror, { spec: MirrorTarget['spec']; forOutput: (j: number) => MirrorCircuit | undefined }>();
+
+function otherOutput(t: MirrorTarget): MirrorCircuit | undefined {
+  const m = t.mirror;
+  const known = banks.get(m);
+  if (!known || known.spec !== t.spec) return undefined;
+  // The last output of the bank: nothing after it needs the first circuit.
+  if (m.kind !== 'netlist' && t.outputIndex === m.outputs.length - 1) banks.delete(m);
+  return known.forOutput(t.outputIndex);
+}
+
 export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorReport {
   const vout = nominalVout(t);
   // A wide-swing pick still due is made on this very circuit; its last solve is the nominal
   // point, so the nominal solve below starts there.
   const m = t.mirror;
   let vb = takesVbias(m) ? knownVbias(t.spec, m) : undefined;
-  const mc = buildMirror(t, vout, vb?.vbias);
+  const mc = otherOutput(t) ?? buildMirror(t, vout, vb?.vbias);
+  if (m.kind !== 'netlist' && !takesVbias(m) && mc.forOutput) banks.set(m, { spec: t.spec, forOutput: mc.forOutput });
   let warm: Float64Array | undefined;
   if (takesVbias(m) && !vb) {
     vb = pickVbiasOn(t.spec, m, mc);

@@ -106,9 +106,12 @@ export function noiseParts(c: Circuit, ws: Workspace, temperature: number): Nois
  * that output's adjoint), at temperature T (K). Undefined when the AC system is singular.
  * `given`: the sources and capacitors when the caller has them (noiseParts; sources whose
  * transfer to this output is exactly zero may be left out: they add nothing anywhere).
+ * `rename`: the name each element's part is reported under (a network member's own devices by
+ * their own names), where the caller names them otherwise than the circuit does.
  */
 export function outputNoise(
   c: Circuit, ws: Workspace, pr: Probed, temperature: number, analysis: AnalysisSpec, spectrum: boolean, given?: NoiseParts,
+  rename?: (element: string) => string,
 ): NoiseReport | undefined {
   const { sources, caps } = given ?? noiseParts(c, ws, temperature);
   const { f, band } = analysis.noise;
@@ -120,7 +123,7 @@ export function outputNoise(
   if (!Number.isFinite(s)) return undefined;
   const shares: Record<string, number> = {};
   // Elements that cannot reach this output (a bank's other outputs) are left out.
-  for (const [name, p] of parts) if (p > 0) shares[name] = s > 0 ? p / s : 0;
+  for (const [name, p] of parts) if (p > 0) shares[rename ? rename(name) : name] = s > 0 ? p / s : 0;
 
   let integrated: number;
   const [f1, f2] = band;
@@ -151,7 +154,7 @@ export function outputNoise(
     for (const x of fs) {
       const pm = new Map<string, number>();
       total.push(Math.sqrt(psd(sources, transfer(x), x, pm)));
-      for (const [name, p] of pm) byName[name]?.push(Math.sqrt(p));
+      for (const [name, p] of pm) byName[rename ? rename(name) : name]?.push(Math.sqrt(p));
     }
     report.spectrum = { f: fs, total, parts: byName };
   }

@@ -22,8 +22,10 @@ export interface OutputProbe {
   elements?: readonly CircuitElement[];
 }
 
-/** A probe with its gradient row and its adjoint, what the linearized figures are read from. */
-export interface Probed { probe: OutputProbe; row: Float64Array; lam: Float64Array }
+/** A probe with its gradient row and its adjoint, what the linearized figures are read from.
+ *  `support`: the free nodes where λ may be nonzero, ascending (λ is exactly zero elsewhere, and
+ *  every value a sum would add there is finite); absent, any. */
+export interface Probed { probe: OutputProbe; row: Float64Array; lam: Float64Array; support?: readonly number[] }
 
 /** The measured output of a circuit: its held output node, every element on it. */
 export function heldProbe(c: Circuit): OutputProbe {
@@ -107,10 +109,53 @@ export function probeRow(ws: Workspace, p: OutputProbe): Float64Array {
   return row;
 }
 
-/** λ with Jᵀ·λ = ∂y/∂v_free; undefined when the Jacobian is singular. */
-export function probeAdjoint(ws: Workspace, row: Float64Array): Float64Array | undefined {
-  if (!factorAtSolution(ws)) return undefined;
-  const lam = row.slice(0, ws.n);
-  ws.solver.solveTranspose(lam);
-  return lam;
+/**
+ * The probes of one assembled solution of a big circuit (a network's joint circuit, whose every
+ * output is probed): each output's row and adjoint written into buffers kept from one output to
+ * the next, the adjoint solved only where its row reaches (`solveTransposeSparse`: a leaf's
+ * reaches the few nodes of its path), so an output costs its path, not the circuit. The values
+ * are solveTranspose's on a row.slice, bit for bit; `support` is set only when every Jacobian
+ * entry is finite (a zero of λ times any of them is then zero). One probe at a time: the next
+ * call reuses the buffers.
+ */
+export class AdjointScratch {
+  private readonly row: Float64Array;
+  private readonly lam: Float64Array;
+  private readonly finite: boolean;
+  private cols: number[] = [];
+  private support: number[] | undefined = [];
+
+  constructor(private readonly ws: Workspace) {
+    this.row = new Float64Array(ws.nt);
+    this.lam = new Float64Array(ws.n);
+    let finite = true;
+    for (let p = 0; p < ws.pattern.nnz; p++) if (!Number.isFinite(ws.G[p]!)) { finite = false; break; }
+    this.finite = finite;
+  }
+
+  /** λ with Jᵀ·λ = ∂y/∂v_free for probe `p`; undefined when the Jacobian is singular. */
+  probe(p: OutputProbe): Probed | undefined {
+    const { ws, row, lam } = this;
+    for (const j of this.cols) row[j] = 0;
+    if (this.support) for (const j of this.support) lam[j] = 0; else lam.fill(0);
+    const cols: number[] = [];
+    if (p.elements) {
+      for (const [j, g] of loadOwn(ws, p.elements, p.node).row) { row[j] = g; cols.push(j); }
+    } else {
+      const { ptr, col, pos } = rowIndex(ws.pattern);
+      for (let q = ptr[p.node]!; q < ptr[p.node + 1]!; q++) { row[col[q]!] = ws.G[pos[q]!]!; cols.push(col[q]!); }
+    }
+    this.cols = cols;
+    this.support = [];
+    if (!factorAtSolution(ws)) return undefined;
+    const seeds = cols.filter((j) => j < ws.n);
+    for (const j of seeds) lam[j] = row[j]!;
+    this.support = this.finite ? ws.solver.solveTransposeSparse(lam, seeds) : undefined;
+    if (!this.support) {
+      lam.set(row.subarray(0, ws.n));
+      ws.solver.solveTranspose(lam);
+      return { probe: p, row, lam };
+    }
+    return { probe: p, row, lam, support: this.support };
+  }
 }

@@ -47,6 +47,19 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
 const circuitKeys = new WeakMap<ResolvedMirror, string>();
 
 /**
+ * A cheap part of circuitKey: equal keys have equal prints, so a mirror whose print no other
+ * mirror of the spec has had is solved without its key being written (a linked mirror's is its
+ * own: one output feeds one input). Undefined: no print, the key is written.
+ */
+function circuitPrint(mirror: ResolvedMirror, outputIndex: number): string | undefined {
+  if (mirror.kind === 'netlist') return undefined;
+  // Defensive: a malformed mirror (a defect upstream) is keyed whole, as it always was.
+  const i: typeof mirror.input | undefined = mirror.input;
+  if (typeof i !== 'object' || i === null) return undefined;
+  return `${outputIndex}|${mirror.kind}|${i.kind === 'link' ? `${i.mirror}:${i.output}` : i.kind}`;
+}
+
+/**
  * What a mirror's solve may read besides the mirror itself, as one digest: the resolved spec
  * without its mirrors (each its own unit) and networks (`linkedInputs`), and the settings the
  * analysis was asked for. Two mirrors with one circuit and one context have one report.
@@ -114,6 +127,9 @@ export class SolvedUnits {
 
 export class RepeatedMirrors {
   private readonly solved: Map<string, MirrorReport> | SolvedUnits;
+  /** Within one spec (no store): the first mirror of each print, keyed only once a second
+   *  mirror has the same print. */
+  private readonly printed = new Map<string, { ctx?: MirrorContext; report: MirrorReport }>();
   private readonly context: string;
   private readonly linked: ReadonlyMap<number, string> | undefined;
 
@@ -127,8 +143,29 @@ export class RepeatedMirrors {
 
   /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after. */
   report(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
+    const print = this.solved instanceof SolvedUnits ? undefined : circuitPrint(ctx.mirror, ctx.outputIndex);
+    if (print !== undefined) {
+      const first = this.printed.get(print);
+      if (!first) {
+        const r = measure();
+        this.printed.set(print, { ctx, report: r });
+        return r;
+      }
+      if (first.ctx) {
+        this.solved.set(this.keyOf(first.ctx), first.report);
+        first.ctx = undefined;
+      }
+    }
+    return this.keyed(ctx, measure);
+  }
+
+  private keyOf(ctx: MirrorContext): string {
     const group = this.linked?.get(indexOf(ctx.mirror));
-    const key = this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    return this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+  }
+
+  private keyed(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
+    const key = this.keyOf(ctx);
     const known = this.solved.get(key);
     if (!known) {
       const clocked = clockedSolveCount();

@@ -15,6 +15,11 @@ export interface LinearSolver {
   solve(b: Float64Array): void;
   /** Aᵀ·y = c in place. */
   solveTranspose(c: Float64Array): void;
+  /** Aᵀ·y = c in place for c zero but at the free nodes `nz`, in time proportional to the
+   *  entries a nonzero reaches; returns the nodes where y may be nonzero (ascending), or
+   *  undefined where it cannot (then nothing is done: use solveTranspose). Agrees with
+   *  solveTranspose bit for bit but for the sign of a zero. */
+  solveTransposeSparse(c: Float64Array, nz: readonly number[]): number[] | undefined;
 }
 
 export class DenseSolver implements LinearSolver {
@@ -38,6 +43,7 @@ export class DenseSolver implements LinearSolver {
   }
   solve(b: Float64Array): void { luSolve(this.lu, this.pattern.n, this.perm, b, this.tmp); }
   solveTranspose(c: Float64Array): void { luSolveTranspose(this.lu, this.pattern.n, this.perm, c, this.tmp); }
+  solveTransposeSparse(): undefined { return undefined; }
 }
 
 export class SparseSolver implements LinearSolver {
@@ -48,4 +54,5 @@ export class SparseSolver implements LinearSolver {
   factor(values: Float64Array): boolean { return this.lu.factor(values); }
   solve(b: Float64Array): void { this.lu.solve(b); }
   solveTranspose(c: Float64Array): void { this.lu.solveTranspose(c); }
+  solveTransposeSparse(c: Float64Array, nz: readonly number[]): number[] | undefined { return this.lu.solveTransposeSparse(c, nz); }
 }

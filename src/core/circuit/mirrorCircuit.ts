@@ -24,6 +24,9 @@ export interface MirrorCircuit {
   byRole: Record<string, number>;
   /** Held node of the wide-swing cascode gate. */
   vbiasNode?: number;
+  /** A bank's circuit for its output j, made from this one without a build: what building it
+   *  for output j gives (templates.ts); undefined where it cannot. */
+  forOutput?: (j: number) => MirrorCircuit | undefined;
 }
 
 export function makeWorkspace(c: Circuit): Workspace { return new Workspace(c); }

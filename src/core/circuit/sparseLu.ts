@@ -34,6 +34,10 @@ export class SparseLu {
   private stamp = 0;
   /** Whether L and U hold a pattern and pivot sequence a refactorization may reuse. */
   private havePattern = false;
+  /** What a transpose solve with a sparse right-hand side reads (`reachIndex`): built once per
+   *  pivot sequence; `finite` is checked once per factorization. */
+  private reach?: ReachIndex;
+  private finite: boolean | undefined;
 
   /** The free block is column j's entries colPtr[j] … colEnd[j]−1 (rows < n). */
   constructor(n: number, colPtr: Int32Array, rowIdx: Int32Array, colEnd: Int32Array, order: Int32Array) {
@@ -55,6 +59,7 @@ export class SparseLu {
   /** Factor the free block whose entries are values[p] for the pattern's positions p. Returns
    *  false when the matrix is singular (or not finite). */
   factor(values: Float64Array): boolean {
+    this.finite = undefined;
     if (this.havePattern && this.refactor(values)) return true;
     this.havePattern = this.pivoting(values);
     return this.havePattern;
@@ -105,6 +110,7 @@ export class SparseLu {
   /** Factorization with threshold partial pivoting (Davis 2006, cs_lu). */
   private pivoting(values: Float64Array): boolean {
     const { n, colPtr, rowIdx, colEnd, q, pinv, x, xi } = this;
+    this.reach = undefined;
     pinv.fill(-1);
     x.fill(0);
     let lnz = 0, unz = 0;
@@ -215,4 +221,100 @@ export class SparseLu {
     }
     for (let i = 0; i < n; i++) c[i] = w[pinv[i]!]!;
   }
+
+  /**
+   * Aᵀ·y = c in place for a right-hand side that is zero but at the nodes `nz`, visiting only
+   * the entries a nonzero can reach through Uᵀ and then Lᵀ (Gilbert and Peierls's reach, on the
+   * transposed graphs). Returns the nodes where y may be nonzero, ascending; y is (exactly) zero
+   * elsewhere. Every entry it computes takes the same operations in the same order as
+   * `solveTranspose` (each dot product over its whole column; the entries outside the reach it
+   * reads are zeros there too), so the two agree bit for bit but for the sign of a zero. Undefined
+   * (and c untouched) when a factor is not finite: a zero times it would not be zero.
+   */
+  solveTransposeSparse(c: Float64Array, nz: readonly number[]): number[] | undefined {
+    if (this.finite === undefined) this.finite = allFinite(this.Lx, this.Lp[this.n]!) && allFinite(this.Ux, this.Up[this.n]!);
+    if (!this.finite) return undefined;
+    const r = (this.reach ??= reachIndex(this.n, this.q, this.pinv, this.Lp, this.Li, this.Up, this.Ui));
+    const { q, Lp, Li, Lx, Up, Ui, Ux, mark } = this;
+    const w = r.w;
+    const stamp = ++this.stamp;
+    const list: number[] = [];
+    for (const i of nz) { const k = r.qinv[i]!; if (mark[k] !== stamp) { mark[k] = stamp; list.push(k); } }
+    // Uᵀ: entry j reads entry k when U(k, j) ≠ 0.
+    for (let h = 0; h < list.length; h++) {
+      const k = list[h]!;
+      for (let p = r.uPtr[k]!; p < r.uPtr[k + 1]!; p++) { const j = r.uIdx[p]!; if (mark[j] !== stamp) { mark[j] = stamp; list.push(j); } }
+    }
+    const nU = list.length;
+    // Lᵀ: entry j reads entry k when L(k, j) ≠ 0.
+    for (let h = 0; h < list.length; h++) {
+      const k = list[h]!;
+      for (let p = r.lPtr[k]!; p < r.lPtr[k + 1]!; p++) { const j = r.lIdx[p]!; if (mark[j] !== stamp) { mark[j] = stamp; list.push(j); } }
+    }
+    const up = ascending(list.slice(0, nU));
+    for (const k of list) w[k] = c[q[k]!]!;
+    for (const j of up) {
+      const diag = Up[j + 1]! - 1;
+      let s = w[j]!;
+      for (let p = Up[j]!; p < diag; p++) s -= Ux[p]! * w[Ui[p]!]!;
+      w[j] = s / Ux[diag]!;
+    }
+    ascending(list);
+    for (let h = list.length - 1; h >= 0; h--) {
+      const j = list[h]!;
+      let s = w[j]!;
+      for (let p = Lp[j]! + 1; p < Lp[j + 1]!; p++) s -= Lx[p]! * w[Li[p]!]!;
+      w[j] = s;
+    }
+    for (const i of nz) c[i] = 0;
+    const out: number[] = [];
+    for (const k of list) { const i = r.prow[k]!; c[i] = w[k]!; w[k] = 0; out.push(i); }
+    return ascending(out);
+  }
+}
+
+/** The transposed patterns of U and L (for each pivot index k, the columns j whose entries read
+ *  row k), the inverse column order and pivot rows, and a zeroed scratch vector. */
+interface ReachIndex {
+  qinv: Int32Array; prow: Int32Array;
+  uPtr: Int32Array; uIdx: Int32Array; lPtr: Int32Array; lIdx: Int32Array;
+  w: Float64Array;
+}
+
+function transposed(n: number, ptr: Int32Array, idx: Int32Array, skip: (j: number, p: number) => boolean): { tPtr: Int32Array; tIdx: Int32Array } {
+  const tPtr = new Int32Array(n + 1);
+  for (let j = 0; j < n; j++) for (let p = ptr[j]!; p < ptr[j + 1]!; p++) if (!skip(j, p)) tPtr[idx[p]! + 1]++;
+  for (let k = 0; k < n; k++) tPtr[k + 1] += tPtr[k]!;
+  const next = tPtr.slice(0, n);
+  const tIdx = new Int32Array(tPtr[n]!);
+  for (let j = 0; j < n; j++) for (let p = ptr[j]!; p < ptr[j + 1]!; p++) if (!skip(j, p)) tIdx[next[idx[p]!]!++] = j;
+  return { tPtr, tIdx };
+}
+
+function reachIndex(n: number, q: Int32Array, pinv: Int32Array, Lp: Int32Array, Li: Int32Array, Up: Int32Array, Ui: Int32Array): ReachIndex {
+  const qinv = new Int32Array(n), prow = new Int32Array(n);
+  for (let k = 0; k < n; k++) qinv[q[k]!] = k;
+  for (let i = 0; i < n; i++) prow[pinv[i]!] = i;
+  // U's last entry of each column is its diagonal, L's first its unit diagonal: neither is read.
+  const u = transposed(n, Up, Ui, (j, p) => p === Up[j + 1]! - 1);
+  const l = transposed(n, Lp, Li, (j, p) => p === Lp[j]!);
+  return { qinv, prow, uPtr: u.tPtr, uIdx: u.tIdx, lPtr: l.tPtr, lIdx: l.tIdx, w: new Float64Array(n) };
+}
+
+function allFinite(x: Float64Array, len: number): boolean {
+  for (let p = 0; p < len; p++) if (!Number.isFinite(x[p]!)) return false;
+  return true;
+}
+
+/** Sorts a short list of indices in place (a reach is a few entries: insertion sort, nothing
+ *  allocated), a long one by Array.prototype.sort. */
+function ascending(a: number[]): number[] {
+  if (a.length > 32) return a.sort((x, y) => x - y);
+  for (let i = 1; i < a.length; i++) {
+    const x = a[i]!;
+    let k = i - 1;
+    while (k >= 0 && a[k]! > x) { a[k + 1] = a[k]!; k--; }
+    a[k + 1] = x;
+  }
+  return a;
 }

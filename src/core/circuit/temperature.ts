@@ -25,14 +25,17 @@ export function circuitAt(c: Circuit, proc: ProcessConditions): Circuit | undefi
   const devices: DeviceElement[] = [];
   for (const e of c.elements) {
     switch (e.kind) {
+      // Copied by assignment, not spread: V8 gives each spread copy a map of its own, and a
+      // circuit of such elements is slower in every later assembly (its stamps see many maps).
       case 'mos': {
-        const x = { ...e, dev: prepareDevice(e.params, e.size, e.type, proc) };
+        const x = Object.assign({}, e);
+        x.dev = prepareDevice(e.params, e.size, e.type, proc);
         elements.push(x); devices.push(x);
         break;
       }
       case 'bjt': {
-        const dev = prepareBipolar(e.params, { area: e.size.area ?? 1, m: e.size.m }, e.type, T, proc.tnom);
-        const x = { ...e, dev };
+        const x = Object.assign({}, e);
+        x.dev = prepareBipolar(e.params, { area: e.size.area ?? 1, m: e.size.m }, e.type, T, proc.tnom);
         elements.push(x); devices.push(x);
         break;
       }
@@ -40,7 +43,9 @@ export function circuitAt(c: Circuit, proc: ProcessConditions): Circuit | undefi
         if (!e.law) { elements.push(e); break; }
         const r = resistanceOf(e.law, T);
         if (!(r > 0) || !Number.isFinite(r)) return undefined;
-        elements.push({ ...e, g: 1 / r });
+        const x = Object.assign({}, e);
+        x.g = 1 / r;
+        elements.push(x);
         break;
       }
       default: elements.push(e);

@@ -16,7 +16,7 @@ import { isBipolarType, polaritySign } from '../device-types';
 import { KINDS, type Connection } from '../kinds/index';
 import { widlarRatio } from '../kinds/widlar';
 import { thermalVoltage } from '../models/thermal';
-import { CircuitBuilder, type MosDescription } from './circuit';
+import { CircuitBuilder, type Circuit, type MosDescription } from './circuit';
 import type { DeviceElement } from './elements/element';
 import { channelCurrent } from './elements/device';
 import { resistanceOf, resistorLaw } from './resistance';
@@ -227,15 +227,54 @@ export function buildTemplate(
 ): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
   const sign = polaritySign(m.type);
-  const rail = sign > 0 ? vss : vdd;
-  const other = sign > 0 ? vdd : vss;
-  const bank = isBank(m);
   const kind = KINDS[m.kind];
   const b = new CircuitBuilder();
   b.hold('vdd', vdd);
   b.hold('vss', vss);
   const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
-  const { outNodes, cNodes, byRole } = wired;
+  const measuredOut = wired.outNodes[outputIndex] ?? 'out';
+  if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
+  const c = b.build(measuredOut, sign, vss, vdd);
+  const mc = templateCircuit(spec, m, c, wired, wired.byRole);
+  // Every output is wired and held alike whichever is measured (its own output.v), so another
+  // output's circuit differs only in which devices are measured and the output node.
+  if (!perturb && m.outputs.length > 1 && wired.outNodes[outputIndex] !== undefined) {
+    const fixedV = c.fixedV.slice();
+    const refRoles: Record<string, number> = {};
+    for (const [role, k] of Object.entries(wired.byRole)) if (!kind.outputRoles.includes(role)) refRoles[role] = k;
+    mc.forOutput = (j) => {
+      const own = wired.outputDevices[j];
+      const node = c.nodeNames.indexOf(wired.outNodes[j] ?? '');
+      if (!own || node < 0) return undefined;
+      const byRole = { ...refRoles };
+      const swap = new Map<DeviceElement, DeviceElement>();
+      wired.outputDevices.forEach((devs, o) => {
+        for (const k of devs) {
+          const d = c.devices[k]!;
+          if (o === j) byRole[d.role] = k;
+          if (d.measured !== (o === j)) { const x = Object.assign({}, d); x.measured = o === j; swap.set(d, x); }
+        }
+      });
+      const elements = c.elements.map((e) => (e.kind === 'mos' || e.kind === 'bjt' ? swap.get(e) ?? e : e));
+      const devices = c.devices.map((d) => swap.get(d) ?? d);
+      const variant: Circuit = Object.assign({}, c);
+      variant.fixedV = fixedV.slice(); variant.elements = elements; variant.devices = devices; variant.outNode = node;
+      return templateCircuit(spec, m, variant, wired, byRole);
+    };
+  }
+  return mc;
+}
+
+/** The mirror circuit of `c`, wired by `wired`, its measured output's devices by role `byRole`:
+ *  the workspace, the starting guess, the input current. */
+function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wired: WiredTemplate, byRole: Record<string, number>): MirrorCircuit {
+  const { vdd, vss } = spec.supplies;
+  const sign = polaritySign(m.type);
+  const rail = sign > 0 ? vss : vdd;
+  const other = sign > 0 ? vdd : vss;
+  const bank = isBank(m);
+  const kind = KINDS[m.kind];
+  const { outNodes, cNodes } = wired;
   const input = kind.inputNode;
   const res = wired.inputResistor;
   const loopRef = m.input.kind === 'self' ? byRole[kind.pair.ref] : undefined;
@@ -243,9 +282,6 @@ export function buildTemplate(
     // A reference: the loop current of the device it is named after (the taps copy it).
     : loopRef !== undefined ? (v) => channelCurrent(c.devices[loopRef]!, v)
       : () => (m.input.kind === 'resistor' || m.input.kind === 'self' ? NaN : m.input.i);
-  const measuredOut = outNodes[outputIndex] ?? 'out';
-  if (outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
-  const c = b.build(measuredOut, sign, vss, vdd);
   const ws = makeWorkspace(c);
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;

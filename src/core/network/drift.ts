@@ -15,11 +15,12 @@ import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, su
 import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
 import type { NoiseSource } from '../circuit/elements/noise';
-import { probeAdjoint, probeCurrent, probeRow, type OutputProbe, type Probed } from '../analysis/probe';
+import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
 import { networkGroups, type NetworkGroup } from './groups';
 import { buildJoint, key, type JointCircuit, type JointMember } from './joint';
+import { handedJoint } from './handed';
 
 /** The drift and noise figures of one output (MirrorReport's fields of the same names). */
 export interface JointDrift {
@@ -32,13 +33,22 @@ export interface JointDrift {
 
 interface Solved { j: JointCircuit; converged: boolean }
 /** The group's circuit built at T ± DRIFT.dT and assembled at the nominal solution: the element
- *  equations there do not depend on the output read, so every output's tc shares them. */
-interface Ends { up: JointCircuit; down: JointCircuit }
+ *  equations there do not depend on the output read, so every output's tc shares them.
+ *  `finite`: every free node's residual at both ends is. */
+interface Ends { up: JointCircuit; down: JointCircuit; finite: boolean }
 /** The nominal solution's noise sources, once per group, and which elements sit on each node:
  *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
  *  the few mirrors on its path), so each output passes those alone to outputNoise. */
-interface GroupNoise { parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[] }
-interface GroupCache { group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise }
+interface GroupNoise {
+  parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[];
+  /** Runs picked for the output at hand (`picked[r] === stamp`): a set without one per output. */
+  picked: Int32Array; stamp: number;
+}
+interface GroupCache {
+  group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise;
+  /** Each output's row and adjoint at the nominal solution. */
+  adjoint?: AdjointScratch;
+}
 
 /** Per spec object: its groups by member index, each group's solutions by temperature. */
 const cache = new WeakMap<ResolvedSpec, Map<number, GroupCache>>();
@@ -73,9 +83,14 @@ function takenJoint(j: JointCircuit, g: NetworkGroup, spec: ResolvedSpec, temp: 
 
 /** The group's joint circuit at temperature T (K), solved (from `warm` when given): away from
  *  the operating temperature, the nominal circuit taken there and solved warm, built only when
- *  that fails (solvedAtTemperature: the outcome of the build's solve, without the build). */
+ *  that fails (solvedAtTemperature: the outcome of the build's solve, without the build); at the
+ *  spec's own temperature, the one solveNetworks solved where it is the same (handed.ts). */
 function solvedAt(spec: ResolvedSpec, gc: GroupCache, t: number, warm?: Float64Array): Solved {
   let s = gc.at.get(t);
+  if (!s && !warm && t === spec.process.temperature) {
+    s = handedJoint(spec, gc.group);
+    if (s) gc.at.set(t, s);
+  }
   if (!s) {
     const build = (): JointCircuit => buildJoint(atTemperature(spec, t), gc.group);
     const from = warm ? gc.at.get(spec.process.temperature) : undefined;
@@ -113,8 +128,9 @@ function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Out
 }
 
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
- *  circuit comes out different), once per group: the nominal circuit taken there, built only
- *  where it cannot be. */
+ *  circuit comes out different), made once per group: the nominal circuit taken there
+ *  (takenJoint: the same elements a build there gives) where the build would read nothing
+ *  else of the spec at that temperature (no picked vbias), else built. */
 function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: number): Ends | null {
   if (gc.ends !== undefined) return gc.ends;
   const end = (temp: number): JointCircuit | undefined => {
@@ -125,14 +141,16 @@ function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: nu
     return other;
   };
   const up = end(T + DRIFT.dT), down = end(T - DRIFT.dT);
-  gc.ends = up && down ? { up, down } : null;
+  let finite = true;
+  if (up && down) for (let k = 0; k < nominal.mc.ws.n && finite; k++) finite = Number.isFinite(up.mc.ws.F[k]! - down.mc.ws.F[k]!);
+  gc.ends = up && down ? { up, down, finite } : null;
   return gc.ends;
 }
 
 /** One output read at one end. */
-function endOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
+function endOf(ends: Ends, j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
   const p = probeOf(j, mirrorIndex, outputIndex);
-  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p) } : undefined;
+  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p), finite: ends.finite } : undefined;
 }
 
 function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
@@ -159,20 +177,25 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
     for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
-  gc.noise = { parts, runs, byNode, always };
+  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0 };
   return gc.noise;
 }
 
 /** The sources that can reach an output: those of every element on the probed node or on a free
- *  node where its adjoint is not zero, in the circuit's order. Every other source's gain is
- *  exactly zero (no direct path, λ zero at both ends), so leaving it out changes no sum. With
- *  capacitors the AC transfer differs from λ: every source. */
-function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array): NoiseParts {
+ *  node where its adjoint is not zero (within `support`, when known), in the circuit's order.
+ *  Every other source's gain is exactly zero (no direct path, λ zero at both ends), so leaving
+ *  it out changes no sum. With capacitors the AC transfer differs from λ: every source. */
+function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
-  const picked = new Set<number>(gn.always);
-  for (const r of gn.byNode[probe.node] ?? []) picked.add(r);
-  for (let k = 0; k < lam.length; k++) if (lam[k] !== 0) for (const r of gn.byNode[k]!) picked.add(r);
-  const order = [...picked].sort((a, b) => a - b);
+  const stamp = ++gn.stamp;
+  const order: number[] = [];
+  const pick = (r: number): void => { if (gn.picked[r] !== stamp) { gn.picked[r] = stamp; order.push(r); } };
+  for (const r of gn.always) pick(r);
+  for (const r of gn.byNode[probe.node] ?? []) pick(r);
+  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) pick(r); };
+  if (support) for (const k of support) at(k);
+  else for (let k = 0; k < lam.length; k++) at(k);
+  order.sort((a, b) => a - b);
   const sources: NoiseSource[] = [];
   for (const r of order) {
     const [a, b] = gn.runs[r]!;
@@ -183,17 +206,8 @@ function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array): NoiseP
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
  *  their own names, every other element by its path. */
-function renamed(n: NoiseReport, ns: string): NoiseReport {
-  const name = (x: string): string => (x.startsWith(ns) ? x.slice(ns.length) : x);
-  const shares: Record<string, number> = {};
-  for (const [k, v] of Object.entries(n.shares)) shares[name(k)] = v;
-  const out: NoiseReport = { ...n, shares };
-  if (n.spectrum) {
-    const parts: Record<string, number[]> = {};
-    for (const [k, v] of Object.entries(n.spectrum.parts)) parts[name(k)] = v;
-    out.spectrum = { ...n.spectrum, parts };
-  }
-  return out;
+function localNames(ns: string): (element: string) => string {
+  return (x) => (x.startsWith(ns) ? x.slice(ns.length) : x);
 }
 
 /**
@@ -215,19 +229,18 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const { circuit: c, ws } = j.mc;
   const iout = probeCurrent(ws, probe);
   const out: JointDrift = {};
-  const row = probeRow(ws, probe);
-  const lam = probeAdjoint(ws, row);
-  if (lam) {
-    const pr: Probed = { probe, row, lam };
+  gc.adjoint ??= new AdjointScratch(ws);
+  const pr = gc.adjoint.probe(probe);
+  if (pr) {
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
     const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
-    const up = ends && endOf(ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends.down, mirrorIndex, outputIndex);
+    const up = ends && endOf(ends, ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, mirrorIndex, outputIndex);
     const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
-    const noise = outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, lam));
     const mem = memberOf(j, mirrorIndex);
-    if (noise && mem) out.noise = renamed(noise, mem.ns);
+    const noise = mem && outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, pr.lam, pr.support), localNames(mem.ns));
+    if (noise) out.noise = noise;
   }
   const trange = spec.process.trange;
   if (trange && opts.box) {

