@@ -9,10 +9,9 @@
  */
 import * as vscode from 'vscode';
 import type { HostAnalyzeOptions } from './workerProtocol';
-import type { FileReport, Finding } from '../core/types';
+import type { FileReport } from '../core/types';
 import type { Analyzer, EarlyFindings } from './analyzer';
 import type { SpecDiagnostics } from './specDiagnostics';
-import { sameDiagnostics } from './diagnosticParts';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
 import { PANEL_VIEW_TYPE } from './panel';
@@ -244,11 +243,9 @@ export class AnalysisManager implements vscode.Disposable {
     const version = doc.version;
     const timing: AnalysisTiming = { version, startedAt: performance.now() };
     // The diagnostics as soon as the findings arrive, on the terms the report is published on.
-    let shown: Finding[] | undefined;
     const early: EarlyFindings = (findings, ms, at) => {
       if (this.entries.get(doc.uri.toString()) !== e || (e.pinnedVersion !== undefined && e.pinnedVersion >= version)) return;
       this.diagnostics.set(doc.uri, findings);
-      shown = findings;
       timing.diagnosticsAt = performance.now();
       timing.workerMs = ms;
       // The worker's clock to this one's: both count from the epoch.
@@ -274,18 +271,18 @@ export class AnalysisManager implements vscode.Disposable {
     // A Monte Carlo report of this text (or newer) stays: it holds everything this one does.
     if (e.pinnedVersion !== undefined && e.pinnedVersion >= version) return e.report;
     e.pinnedVersion = undefined;
-    // Its findings set the diagnostics already, unless the report is another (the worker's
-    // budget ran out between the two messages).
-    this.publish(doc.uri, e, report, version, curve, shown !== undefined && sameDiagnostics(shown, report.findings));
+    // Its findings set the diagnostics already (handing VS Code nothing again), unless the report
+    // is another (the worker's budget ran out between the two messages).
+    this.publish(doc.uri, e, report, version, curve);
     if (e.timing === timing) timing.reportAt = performance.now();
     return report;
   }
 
-  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean, diagnosticsSet = false): void {
+  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean): void {
     e.report = report;
     e.reportVersion = version;
     e.hasCurve = curve;
-    if (!diagnosticsSet) this.diagnostics.set(uri, report.findings);
+    this.diagnostics.set(uri, report.findings);
     this.count++;
     this.emitter.fire({ uri, report, version });
   }

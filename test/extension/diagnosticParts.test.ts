@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { analyzeText } from '../../src/core/analyze';
 import { AnalysisCache } from '../../src/core/analysis-cache';
 import type { Finding } from '../../src/core/types';
-import { changedParts, MIRRORS_PER_PART, partOf, sameDiagnostics, splitParts } from '../../src/extension/diagnosticParts';
+import { changedParts, compactParts, expandParts, MIRRORS_PER_PART, partOf, sameDiagnostics, SentParts, splitParts } from '../../src/extension/diagnosticParts';
 import { faultySpecText } from '../../scripts/spec-texts';
 
 const at = (line: number) => ({ start: { line, character: 4 }, end: { line, character: 9 } });
@@ -70,5 +70,38 @@ describe('parts of a file\'s findings', () => {
     const moved = replaceLine(text, line, '    # typed\n    input: 27u');
     const third = analyzeText(moved, 'big.bias.yaml', {}, { cache }).findings;
     expect(changedParts(splitParts(second), splitParts(third))).toEqual({ set: [1, 2, 3], clear: [] });
+  });
+
+  it('sends the parts that changed and null for the rest; the receiver puts them back together', () => {
+    const one = [finding(['mirrors', 1], 1), finding(['mirrors', 70], 20)];
+    const first = compactParts(one, undefined);
+    // Every part is sent the first time, the empty one between too.
+    expect(first.message.map((p) => p?.length ?? null)).toEqual([1, 0, 1]);
+    const two = [finding(['mirrors', 1], 1), finding(['mirrors', 70], 20, 'other')];
+    const second = compactParts(two, first.parts);
+    expect(second.message.map((p) => p?.length ?? null)).toEqual([null, null, 1]);
+    const got = expandParts(second.message, expandParts(first.message, undefined));
+    expect(got?.flat()).toEqual(two);
+    // A path alone is a change too (the receiver's findings are the sender's).
+    expect(compactParts([finding(['mirrors', 2], 1), two[1]!], second.parts).message.map((p) => p?.length ?? null)).toEqual([1, null, null]);
+    // Without the message referred to, nothing is put together.
+    expect(expandParts(second.message, undefined)).toBeUndefined();
+  });
+
+  it('both sides forget the same files: the least recently sent beyond MAX_FILES', () => {
+    const worker = new SentParts();
+    const host = new SentParts();
+    for (let i = 0; i <= SentParts.MAX_FILES; i++) {
+      worker.set(`f${i}`, i, []);
+      host.set(`f${i}`, i, []);
+    }
+    worker.set('f1', 99, []);
+    host.set('f1', 99, []);
+    worker.set('g', 100, []);
+    host.set('g', 100, []);
+    expect(SentParts.MAX_FILES).toBe(16);
+    for (const k of ['f0', 'f2']) expect([worker.get(k), host.get(k)]).toEqual([undefined, undefined]);
+    expect(worker.get('f1')?.seq).toBe(99);
+    expect(host.get('f3')?.seq).toBe(3);
   });
 });
