@@ -177,6 +177,10 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
     for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
+  // Runs of one name each (joint element names carry their mirror's path): outputNoise then
+  // finds each element's part without a search.
+  const names = new Set(runs.map(([a]) => sources[a]!.element));
+  if (names.size === runs.length) parts.distinct = true;
   gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0 };
   return gc.noise;
 }
@@ -201,7 +205,9 @@ function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support
     const [a, b] = gn.runs[r]!;
     for (let q = a; q < b; q++) sources.push(gn.parts.sources[q]!);
   }
-  return { sources, caps: gn.parts.caps };
+  const out: NoiseParts = { sources, caps: gn.parts.caps };
+  if (gn.parts.distinct) out.distinct = true;
+  return out;
 }
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
@@ -227,10 +233,11 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const probe = probeOf(j, mirrorIndex, outputIndex);
   if (!probe) return undefined;
   const { circuit: c, ws } = j.mc;
-  const iout = probeCurrent(ws, probe);
   const out: JointDrift = {};
   gc.adjoint ??= new AdjointScratch(ws);
+  // The probed current is read in the same pass as the adjoint's row (probeCurrent's value).
   const pr = gc.adjoint.probe(probe);
+  const iout = gc.adjoint.current;
   if (pr) {
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
