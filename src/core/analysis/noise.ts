@@ -177,7 +177,7 @@ export function outputNoise(
   const count = { n: 0 };
   const s = psdParts(sources, transfer(f), f, given?.distinct === true, count);
   if (!Number.isFinite(s)) return undefined;
-  const shares = dictionary();
+  const shares = rename ? dictionary() : {};
   // Elements that cannot reach this output (a bank's other outputs) are left out.
   for (let k = 0; k < count.n; k++) {
     const name = partNames[k]!, p = partValues[k]!;
