@@ -24,7 +24,7 @@ import {
   type MirrorSolve, type MirrorTarget,
 } from './solve';
 import { clockedSolveCount } from '../circuit/newton';
-import type { WorkspaceState } from '../circuit/workspace';
+import type { Workspace, WorkspaceState } from '../circuit/workspace';
 import { linspace, sweepCircuit } from './sweep';
 import { tableCurve } from '../models/table/curve';
 import { knownVbias, pickVbiasOn } from './vbias';
@@ -95,8 +95,10 @@ function safeNominal(t: MirrorTarget): number {
  *  `solved`: that circuit's solve and the workspace it left, where another output's own solve
  *  would be the same one (below). */
 interface Bank {
-  spec: MirrorTarget['spec']; forOutput: (j: number) => MirrorCircuit | undefined;
-  solved?: { sol: MirrorSolve; state: WorkspaceState };
+  spec: MirrorTarget['spec']; forOutput: NonNullable<MirrorCircuit['forOutput']>;
+  /** `ws`: the first output's workspace, which the next output's circuit takes over (restored
+   *  whole from `state` first), its measurement being done by then. */
+  solved?: { sol: MirrorSolve; state: WorkspaceState; ws: Workspace };
 }
 const banks = new WeakMap<ResolvedMirror, Bank>();
 
@@ -107,7 +109,7 @@ function otherOutput(t: MirrorTarget): { mc: MirrorCircuit; solved?: Bank['solve
   if (!known || known.spec !== t.spec) return undefined;
   // The last output of the bank: nothing after it needs the first circuit.
   if (m.kind !== 'netlist' && t.outputIndex === m.outputs.length - 1) banks.delete(m);
-  const mc = known.forOutput(t.outputIndex);
+  const mc = known.forOutput(t.outputIndex, known.solved?.ws);
   return mc && { mc, solved: known.solved };
 }
 
@@ -123,7 +125,7 @@ function solveBank(mc: MirrorCircuit, solved: Bank['solved'], bank: Bank | undef
   const clocked = clockedSolveCount();
   const sol = solveMirror(mc);
   const state = bank && clockedSolveCount() === clocked ? mc.ws.snapshot() : undefined;
-  if (bank && state) bank.solved = { sol: copySolve(sol), state };
+  if (bank && state) bank.solved = { sol: copySolve(sol), state, ws: mc.ws };
   return sol;
 }
 

@@ -115,8 +115,11 @@ function memberOf(j: JointCircuit, mirrorIndex: number): JointMember | undefined
   return m.get(mirrorIndex);
 }
 
-/** How output `outputIndex` of mirror `mirrorIndex` in the joint circuit is read. */
-function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): OutputProbe | undefined {
+/** Where an output of a joint circuit is read: its node, its sign, and for an output feeding
+ *  another mirror its own devices (indices into circuit.devices). */
+interface Where { node: number; sign: 1 | -1; devices?: readonly number[] }
+
+function whereOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Where | undefined {
   const mem = memberOf(j, mirrorIndex);
   if (!mem) return undefined;
   const k = key(mirrorIndex, outputIndex);
@@ -124,7 +127,24 @@ function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Out
   if (leaf !== undefined) return { node: leaf, sign: mem.sign };
   const link = j.linkNode.get(k);
   if (link === undefined) return undefined;
-  return { node: link, sign: mem.sign, elements: (j.outDevices.get(k) ?? []).map((d) => j.mc.circuit.devices[d]!) };
+  return { node: link, sign: mem.sign, devices: j.outDevices.get(k) ?? [] };
+}
+
+/** The probe of `w` in joint circuit `j` (its devices are j's own). */
+function probeAt(j: JointCircuit, w: Where): OutputProbe {
+  return w.devices ? { node: w.node, sign: w.sign, elements: w.devices.map((d) => j.mc.circuit.devices[d]!) } : { node: w.node, sign: w.sign };
+}
+
+/** How output `outputIndex` of mirror `mirrorIndex` in the joint circuit is read. */
+function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): OutputProbe | undefined {
+  const w = whereOf(j, mirrorIndex, outputIndex);
+  return w && probeAt(j, w);
+}
+
+/** Whether `other` is `j` taken to another temperature (takenJoint: the same members, nodes and
+ *  outputs, its own elements), where an output is read where it is read in `j`. */
+function sameLayout(other: JointCircuit, j: JointCircuit): boolean {
+  return other.members === j.members && other.leafNode === j.leafNode && other.linkNode === j.linkNode && other.outDevices === j.outDevices;
 }
 
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
@@ -147,10 +167,10 @@ function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: nu
   return gc.ends;
 }
 
-/** One output read at one end. */
-function endOf(ends: Ends, j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
-  const p = probeOf(j, mirrorIndex, outputIndex);
-  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p), finite: ends.finite } : undefined;
+/** One output read at one end `e` (where it is read in the nominal circuit `j`, `w`). */
+function endOf(ends: Ends, e: JointCircuit, j: JointCircuit, w: Where, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
+  const p = sameLayout(e, j) ? probeAt(e, w) : probeOf(e, mirrorIndex, outputIndex);
+  return p ? { F: e.mc.ws.F, y: probeCurrent(e.mc.ws, p), finite: ends.finite } : undefined;
 }
 
 function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
@@ -230,8 +250,9 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const nominal = solvedAt(spec, gc, T);
   if (!nominal.converged) return undefined;
   const { j } = nominal;
-  const probe = probeOf(j, mirrorIndex, outputIndex);
-  if (!probe) return undefined;
+  const where = whereOf(j, mirrorIndex, outputIndex);
+  if (!where) return undefined;
+  const probe = probeAt(j, where);
   const { circuit: c, ws } = j.mc;
   const out: JointDrift = {};
   gc.adjoint ??= new AdjointScratch(ws);
@@ -242,7 +263,7 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
     const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
-    const up = ends && endOf(ends, ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, mirrorIndex, outputIndex);
+    const up = ends && endOf(ends, ends.up, j, where, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, j, where, mirrorIndex, outputIndex);
     const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
     const mem = memberOf(j, mirrorIndex);
