@@ -14,7 +14,6 @@ import { assemble } from '../circuit/assemble';
 import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, supplySensitivity, takenTo, type AtEnd } from '../analysis/drift';
 import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
-import type { NoiseSource } from '../circuit/elements/noise';
 import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
@@ -43,6 +42,9 @@ interface GroupNoise {
   parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[];
   /** Runs picked for the output at hand (`picked[r] === stamp`): a set without one per output. */
   picked: Int32Array; stamp: number;
+  /** The picked runs, and the sources they hold (what `reaching` returns, rewritten for each
+   *  output: outputNoise keeps none of it). */
+  order: Int32Array; reached: NoiseParts;
 }
 interface GroupCache {
   group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise;
@@ -201,7 +203,9 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
   // finds each element's part without a search.
   const names = new Set(runs.map(([a]) => sources[a]!.element));
   if (names.size === runs.length) parts.distinct = true;
-  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0 };
+  const reached: NoiseParts = { sources: [], caps: parts.caps };
+  if (parts.distinct) reached.distinct = true;
+  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0, order: new Int32Array(runs.length), reached };
   return gc.noise;
 }
 
@@ -212,22 +216,25 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
 function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
   const stamp = ++gn.stamp;
-  const order: number[] = [];
-  const pick = (r: number): void => { if (gn.picked[r] !== stamp) { gn.picked[r] = stamp; order.push(r); } };
-  for (const r of gn.always) pick(r);
-  for (const r of gn.byNode[probe.node] ?? []) pick(r);
-  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) pick(r); };
-  if (support) for (const k of support) at(k);
-  else for (let k = 0; k < lam.length; k++) at(k);
-  order.sort((a, b) => a - b);
-  const sources: NoiseSource[] = [];
-  for (const r of order) {
-    const [a, b] = gn.runs[r]!;
+  const { picked, order, byNode } = gn;
+  let n = 0;
+  for (const r of gn.always) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  for (const r of byNode[probe.node] ?? []) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  const count = support ? support.length : lam.length;
+  for (let i = 0; i < count; i++) {
+    const k = support ? support[i]! : i;
+    if (lam[k] === 0) continue;
+    for (const r of byNode[k]!) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  }
+  // Each run at most once: n ≤ runs. A typed array sorts numerically, in place.
+  const sorted = order.subarray(0, n).sort();
+  const { sources } = gn.reached;
+  sources.length = 0;
+  for (let i = 0; i < n; i++) {
+    const [a, b] = gn.runs[sorted[i]!]!;
     for (let q = a; q < b; q++) sources.push(gn.parts.sources[q]!);
   }
-  const out: NoiseParts = { sources, caps: gn.parts.caps };
-  if (gn.parts.distinct) out.distinct = true;
-  return out;
+  return gn.reached;
 }
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
