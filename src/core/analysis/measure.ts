@@ -21,8 +21,10 @@ import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
   buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror,
-  type MirrorTarget,
+  type MirrorSolve, type MirrorTarget,
 } from './solve';
+import { clockedSolveCount } from '../circuit/newton';
+import type { Workspace, WorkspaceState } from '../circuit/workspace';
 import { linspace, sweepCircuit } from './sweep';
 import { tableCurve } from '../models/table/curve';
 import { knownVbias, pickVbiasOn } from './vbias';
@@ -89,16 +91,48 @@ function safeNominal(t: MirrorTarget): number {
 }
 
 /** A bank's circuit as built for one of its outputs, by mirror (the spec it was built in): the
- *  next output's circuit is made from it (MirrorCircuit.forOutput) rather than built again. */
-const banks = new WeakMap<ResolvedMirror, { spec: MirrorTarget['spec']; forOutput: (j: number) => MirrorCircuit | undefined }>();
+ *  next output's circuit is made from it (MirrorCircuit.forOutput) rather than built again.
+ *  `solved`: that circuit's solve and the workspace it left, where another output's own solve
+ *  would be the same one (below). */
+interface Bank {
+  spec: MirrorTarget['spec']; forOutput: NonNullable<MirrorCircuit['forOutput']>;
+  /** `ws`: the first output's workspace, which the next output's circuit takes over (restored
+   *  whole from `state` first), its measurement being done by then. */
+  solved?: { sol: MirrorSolve; state: WorkspaceState; ws: Workspace };
+}
+const banks = new WeakMap<ResolvedMirror, Bank>();
 
-function otherOutput(t: MirrorTarget): MirrorCircuit | undefined {
+/** Output t's circuit made from the first's, with the first's solve where it stands for its own. */
+function otherOutput(t: MirrorTarget): { mc: MirrorCircuit; solved?: Bank['solved'] } | undefined {
   const m = t.mirror;
   const known = banks.get(m);
   if (!known || known.spec !== t.spec) return undefined;
   // The last output of the bank: nothing after it needs the first circuit.
   if (m.kind !== 'netlist' && t.outputIndex === m.outputs.length - 1) banks.delete(m);
-  return known.forOutput(t.outputIndex);
+  const mc = known.forOutput(t.outputIndex, known.solved?.ws);
+  return mc && { mc, solved: known.solved };
+}
+
+/** Solve a bank's circuit for one output from its guess, or take the solve of the same circuit
+ *  for another output: every output is held at its own voltage whichever is measured
+ *  (templates.ts forOutput), and the solve reads neither which devices are measured nor which
+ *  node is the output, so from the same fresh workspace and the same guess it is the same
+ *  solve, step for step — its result and every bit it leaves in the workspace. Taken only
+ *  from a solve no clock could end (newton.ts clockedSolveCount), so its iterations and outcome
+ *  depend on the equations alone. */
+function solveBank(mc: MirrorCircuit, solved: Bank['solved'], bank: Bank | undefined): MirrorSolve {
+  if (solved && mc.ws.restore(solved.state)) return copySolve(solved.sol);
+  const clocked = clockedSolveCount();
+  const sol = solveMirror(mc);
+  const state = bank && clockedSolveCount() === clocked ? mc.ws.snapshot() : undefined;
+  if (bank && state) bank.solved = { sol: copySolve(sol), state, ws: mc.ws };
+  return sol;
+}
+
+function copySolve(s: MirrorSolve): MirrorSolve {
+  const c: MirrorSolve = { ...s };
+  if (s.beyond) c.beyond = { ...s.beyond, stack: s.beyond.stack.slice() };
+  return c;
 }
 
 export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorReport {
@@ -107,14 +141,20 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   // point, so the nominal solve below starts there.
   const m = t.mirror;
   let vb = takesVbias(m) ? knownVbias(t.spec, m) : undefined;
-  const mc = otherOutput(t) ?? buildMirror(t, vout, vb?.vbias);
-  if (m.kind !== 'netlist' && !takesVbias(m) && mc.forOutput) banks.set(m, { spec: t.spec, forOutput: mc.forOutput });
+  const other = otherOutput(t);
+  const mc = other?.mc ?? buildMirror(t, vout, vb?.vbias);
+  let bank: Bank | undefined;
+  if (m.kind !== 'netlist' && !takesVbias(m) && mc.forOutput) {
+    bank = { spec: t.spec, forOutput: mc.forOutput };
+    banks.set(m, bank);
+  }
   let warm: Float64Array | undefined;
   if (takesVbias(m) && !vb) {
     vb = pickVbiasOn(t.spec, m, mc);
     warm = mc.ws.v.slice();
   }
-  const sol = solveMirror(mc, warm);
+  // A bank (no vbias to pick: no warm start) solves once for all its outputs.
+  const sol = warm ? solveMirror(mc, warm) : solveBank(mc, other?.solved, bank);
   const devices = deviceReports(mc);
   // A self-biased netlist has no input: no iin, ratio or error (design §14).
   const noInput = m.kind === 'netlist' && m.input === undefined;

@@ -32,11 +32,62 @@ function gainOf(p: OutputProbe, n: number, re: Float64Array, im: Float64Array | 
   });
 }
 
-/** The DC transfer from the output adjoint λ (capacitors open). */
+/** The DC transfer's buffer, kept from one output to the next (its first sources.length entries
+ *  are an output's; a network reads 2 000 outputs). */
+let dcGains = new Float64Array(256);
+
+/** The DC transfer from the output adjoint λ (capacitors open), in dcGains (valid until the
+ *  next call). */
 function dcTransfer(ws: Workspace, pr: Probed, sources: NoiseSource[]): Float64Array {
-  const h = new Float64Array(sources.length);
-  gainOf(pr.probe, ws.n, pr.lam, undefined, sources, h);
-  return h;
+  if (dcGains.length < sources.length) dcGains = new Float64Array(2 * sources.length);
+  gainOf(pr.probe, ws.n, pr.lam, undefined, sources, dcGains);
+  return dcGains;
+}
+
+/** Each element's part of the density at f, in order of first appearance (what a Map by name
+ *  summed source by source gives, without one): names and values, kept from one call to the
+ *  next. */
+const partNames: string[] = [];
+let partValues = new Float64Array(64);
+
+/** An empty plain object that keeps its properties in a hash table from the start (deleting a
+ *  property other than the last makes V8 leave its hidden classes): the shares of each output
+ *  of a network are named by a path of their own, and as hidden-class properties every new
+ *  set of names made classes that outlived the analysis (most of the noise figure's cost). The
+ *  same object to every reader: the same keys in the same order. */
+function dictionary(): Record<string, number> {
+  const o: Record<string, number> = { a: 0, b: 0 };
+  delete o.a; delete o.b;
+  return o;
+}
+
+/** A², Σ_k |H_k(f)|²·(white_k + flicker_k/f), in the order psd adds it, each element's part into
+ *  partNames/partValues (returns their count in `count`). `distinct`: no element name comes back
+ *  after another element's sources (each element's are consecutive and names are unique), so a
+ *  name is looked for only among the parts just before it. */
+function psdParts(sources: NoiseSource[], h: Float64Array, f: number, distinct: boolean, count: { n: number }): number {
+  let total = 0, n = 0, last = -1;
+  let lastName: string | undefined;
+  for (let i = 0; i < sources.length; i++) {
+    const s = sources[i]!;
+    const p = h[i]! * (s.white + s.flicker / f);
+    total += p;
+    const name = s.element;
+    if (name !== lastName) {
+      last = -1;
+      if (!distinct) for (let k = 0; k < n; k++) if (partNames[k] === name) { last = k; break; }
+      if (last < 0) {
+        last = n++;
+        partNames[last] = name;
+        if (partValues.length < n) { const b = new Float64Array(2 * n); b.set(partValues); partValues = b; }
+        partValues[last] = 0;
+      }
+      lastName = name;
+    }
+    partValues[last] = partValues[last]! + p;
+  }
+  count.n = n;
+  return total;
 }
 
 /** The AC transfer: Yᵀ·λ = y_out with Y = G + jωC over the free nodes, solved as the real
@@ -93,7 +144,12 @@ function logGrid(f1: number, f2: number, perDecade: number): number[] {
 
 /** The circuit's noise sources at ws.v and its capacitors: what every output of one solution
  *  shares (network/drift.ts computes them once for a group's outputs). */
-export interface NoiseParts { sources: NoiseSource[]; caps: CapacitorElement[] }
+export interface NoiseParts {
+  sources: NoiseSource[]; caps: CapacitorElement[];
+  /** Each element's sources are consecutive and no two elements share a name (a network's
+   *  sources by element, drift.ts): a part is then found without a search. */
+  distinct?: boolean;
+}
 
 export function noiseParts(c: Circuit, ws: Workspace, temperature: number): NoiseParts {
   const sources: NoiseSource[] = [];
@@ -118,19 +174,24 @@ export function outputNoise(
   const h0 = dcTransfer(ws, pr, sources);
   const transfer: Transfer = caps.length === 0 ? () => h0 : acTransfer(ws, pr, caps, sources);
 
-  const parts = new Map<string, number>();
-  const s = psd(sources, transfer(f), f, parts);
+  const count = { n: 0 };
+  const s = psdParts(sources, transfer(f), f, given?.distinct === true, count);
   if (!Number.isFinite(s)) return undefined;
-  const shares: Record<string, number> = {};
+  const shares = rename ? dictionary() : {};
   // Elements that cannot reach this output (a bank's other outputs) are left out.
-  for (const [name, p] of parts) if (p > 0) shares[rename ? rename(name) : name] = s > 0 ? p / s : 0;
+  for (let k = 0; k < count.n; k++) {
+    const name = partNames[k]!, p = partValues[k]!;
+    if (p > 0) shares[rename ? rename(name) : name] = s > 0 ? p / s : 0;
+  }
+  partNames.length = 0;
 
+  // The DC transfer's white and flicker sums (the integral without capacitors, and the corner).
+  let white0 = 0, flicker0 = 0;
+  for (let i = 0; i < sources.length; i++) { const x = sources[i]!; white0 += h0[i]! * x.white; flicker0 += h0[i]! * x.flicker; }
   let integrated: number;
   const [f1, f2] = band;
   if (caps.length === 0) {
-    let white = 0, flicker = 0;
-    sources.forEach((x, i) => { white += h0[i]! * x.white; flicker += h0[i]! * x.flicker; });
-    integrated = white * (f2 - f1) + flicker * Math.log(f2 / f1);
+    integrated = white0 * (f2 - f1) + flicker0 * Math.log(f2 / f1);
   } else {
     const grid = logGrid(f1, f2, DRIFT.integralPerDecade);
     integrated = 0;
@@ -143,8 +204,6 @@ export function outputNoise(
   }
 
   const report: NoiseReport = { f, density: Math.sqrt(s), band: [f1, f2], integrated: Math.sqrt(Math.max(integrated, 0)), shares };
-  let white0 = 0, flicker0 = 0;
-  sources.forEach((x, i) => { white0 += h0[i]! * x.white; flicker0 += h0[i]! * x.flicker; });
   if (flicker0 > 0 && white0 > 0) report.corner = flicker0 / white0;
   if (spectrum) {
     const fs = logGrid(f1, f2, DRIFT.spectrumPerDecade);

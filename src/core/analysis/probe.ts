@@ -37,44 +37,86 @@ export function owns(p: OutputProbe, name: string): boolean {
   return p.elements === undefined || p.elements.some((e) => e.name === name);
 }
 
-/** Where the probed elements stamp: F and absI at `nodes`, G at value index `pos[i]` of entry
- *  (rows[i], cols[i]), in stamp order (a value index shared by two elements appears twice). */
-interface Stamps { nodes: number[]; rows: number[]; cols: number[]; pos: number[] }
+/** loadOwn's buffers, kept from one call to the next and grown as needed (a probe is read per
+ *  output, 2 000 times in a big network: nothing of it should outlive the call). Where the probed
+ *  elements stamp: F and absI at `nodes`, G at value index `pos[i]` of entry (rows[i], cols[i]),
+ *  in stamp order (a value index shared by two elements appears twice); after the call, the
+ *  probed node's row (column, value) in `rowCol`/`rowVal`, `rowLen` of them. */
+interface OwnScratch {
+  nodes: Int32Array; nNodes: number; rows: Int32Array; cols: Int32Array; pos: Int32Array; nPos: number;
+  fSaved: Float64Array; aSaved: Float64Array; gSaved: Float64Array;
+  rowCol: Int32Array; rowVal: Float64Array; rowLen: number;
+  /** The workspace's stamp slots, the element at hand's first slot, its entries so far. */
+  slots: Int32Array; slot: number; i: number;
+}
+const own: OwnScratch = {
+  nodes: new Int32Array(64), nNodes: 0, rows: new Int32Array(64), cols: new Int32Array(64), pos: new Int32Array(64), nPos: 0,
+  fSaved: new Float64Array(64), aSaved: new Float64Array(64), gSaved: new Float64Array(64),
+  rowCol: new Int32Array(64), rowVal: new Float64Array(64), rowLen: 0,
+  slots: new Int32Array(0), slot: 0, i: 0,
+};
 
-function stamps(ws: Workspace, elements: readonly CircuitElement[]): Stamps {
-  const st: Stamps = { nodes: [], rows: [], cols: [], pos: [] };
-  for (const e of elements) {
-    if (hasSlots(e)) {
-      let i = 0;
-      patternOf(e, (r, c) => { st.nodes.push(r); st.rows.push(r); st.cols.push(c); st.pos.push(ws.slots[e.slot + i++]!); });
-    } else if (e.kind === 'current') st.nodes.push(e.from, e.to);
-  }
-  return st;
+function grownInt(a: Int32Array, need: number): Int32Array {
+  if (need <= a.length) return a;
+  const b = new Int32Array(2 * need); b.set(a); return b;
+}
+function grownFloat(a: Float64Array, need: number): Float64Array {
+  if (need <= a.length) return a;
+  const b = new Float64Array(2 * need); b.set(a); return b;
 }
 
-/** The probed elements' own current out of node p.node and their entries of its row of G, at
- *  ws.v: those entries loaded from zero, everything they touched then put back (ws itself left as
- *  it was; only the entries they stamp are saved, not the whole circuit's). */
-function loadOwn(ws: Workspace, elements: readonly CircuitElement[], node: number): { f: number; row: [number, number][] } {
-  const st = stamps(ws, elements);
+function ownNode(k: number): void {
+  own.nodes = grownInt(own.nodes, own.nNodes + 1);
+  own.nodes[own.nNodes++] = k;
+}
+
+/** patternOf's callback for the element at hand (own.slots from its slot on). */
+function ownEntry(r: number, c: number): void {
+  ownNode(r);
+  const at = own.nPos++;
+  if (at >= own.rows.length) { own.rows = grownInt(own.rows, at + 1); own.cols = grownInt(own.cols, at + 1); own.pos = grownInt(own.pos, at + 1); }
+  own.rows[at] = r; own.cols[at] = c; own.pos[at] = own.slots[own.slot + own.i++]!;
+}
+
+function stamps(ws: Workspace, elements: readonly CircuitElement[]): void {
+  own.nNodes = 0; own.nPos = 0; own.slots = ws.slots;
+  for (const e of elements) {
+    if (hasSlots(e)) { own.slot = e.slot; own.i = 0; patternOf(e, ownEntry); }
+    else if (e.kind === 'current') { ownNode(e.from); ownNode(e.to); }
+  }
+}
+
+/** The probed elements' own current out of node p.node (returned) and their entries of its row of
+ *  G (into own.rowCol/rowVal), at ws.v: those entries loaded from zero, everything they touched
+ *  then put back (ws itself left as it was; only the entries they stamp are saved, not the whole
+ *  circuit's). */
+function loadOwn(ws: Workspace, elements: readonly CircuitElement[], node: number): number {
+  stamps(ws, elements);
   const { F, G, absI } = ws, floor = ws.gdsFloor;
-  const fSaved = st.nodes.map((k) => F[k]!), aSaved = st.nodes.map((k) => absI[k]!), gSaved = st.pos.map((q) => G[q]!);
-  for (const k of st.nodes) { F[k] = 0; absI[k] = 0; }
-  for (const q of st.pos) G[q] = 0;
+  const { nodes, nNodes, rows, cols, pos, nPos } = own;
+  if (own.fSaved.length < nNodes) { own.fSaved = grownFloat(own.fSaved, nNodes); own.aSaved = grownFloat(own.aSaved, nNodes); }
+  own.gSaved = grownFloat(own.gSaved, nPos);
+  const { fSaved, aSaved, gSaved } = own;
+  for (let i = 0; i < nNodes; i++) { fSaved[i] = F[nodes[i]!]!; aSaved[i] = absI[nodes[i]!]!; }
+  for (let i = 0; i < nPos; i++) gSaved[i] = G[pos[i]!]!;
+  for (let i = 0; i < nNodes; i++) { F[nodes[i]!] = 0; absI[nodes[i]!] = 0; }
+  for (let i = 0; i < nPos; i++) G[pos[i]!] = 0;
   for (const e of elements) loadElement(e, ws, 1, 0);
   const f = F[node]!;
-  const row: [number, number][] = [];
-  st.rows.forEach((r, i) => { if (r === node) row.push([st.cols[i]!, G[st.pos[i]!]!]); });
+  own.rowCol = grownInt(own.rowCol, nPos); own.rowVal = grownFloat(own.rowVal, nPos);
+  let len = 0;
+  for (let i = 0; i < nPos; i++) if (rows[i] === node) { own.rowCol[len] = cols[i]!; own.rowVal[len++] = G[pos[i]!]!; }
+  own.rowLen = len;
   // Put back in reverse, so an entry saved twice ends at its first (untouched) value.
-  for (let i = st.nodes.length - 1; i >= 0; i--) { F[st.nodes[i]!] = fSaved[i]!; absI[st.nodes[i]!] = aSaved[i]!; }
-  for (let i = st.pos.length - 1; i >= 0; i--) G[st.pos[i]!] = gSaved[i]!;
+  for (let i = nNodes - 1; i >= 0; i--) { F[nodes[i]!] = fSaved[i]!; absI[nodes[i]!] = aSaved[i]!; }
+  for (let i = nPos - 1; i >= 0; i--) G[pos[i]!] = gSaved[i]!;
   ws.gdsFloor = floor;
-  return { f, row };
+  return f;
 }
 
 /** A, the probed current at ws.v (ws assembled there for a held probe). */
 export function probeCurrent(ws: Workspace, p: OutputProbe): number {
-  return p.sign * (p.elements ? loadOwn(ws, p.elements, p.node).f : ws.F[p.node]!);
+  return p.sign * (p.elements ? loadOwn(ws, p.elements, p.node) : ws.F[p.node]!);
 }
 
 /** Each row's entries of a pattern (column, value index), columns ascending: a row read without
@@ -101,7 +143,8 @@ function rowIndex(pattern: Workspace['pattern']): { ptr: Int32Array; col: Int32A
 export function probeRow(ws: Workspace, p: OutputProbe): Float64Array {
   const row = new Float64Array(ws.nt);
   if (p.elements) {
-    for (const [j, g] of loadOwn(ws, p.elements, p.node).row) row[j] = g;
+    loadOwn(ws, p.elements, p.node);
+    for (let i = 0; i < own.rowLen; i++) row[own.rowCol[i]!] = own.rowVal[i]!;
     return row;
   }
   const { ptr, col, pos } = rowIndex(ws.pattern);
@@ -122,8 +165,11 @@ export class AdjointScratch {
   private readonly row: Float64Array;
   private readonly lam: Float64Array;
   private readonly finite: boolean;
-  private cols: number[] = [];
+  private readonly cols: number[] = [];
+  private readonly seeds: number[] = [];
   private support: number[] | undefined = [];
+  /** A, the current of the probe last given to `probe` (probeCurrent's, read in the same pass). */
+  current = NaN;
 
   constructor(private readonly ws: Workspace) {
     this.row = new Float64Array(ws.nt);
@@ -133,22 +179,26 @@ export class AdjointScratch {
     this.finite = finite;
   }
 
-  /** λ with Jᵀ·λ = ∂y/∂v_free for probe `p`; undefined when the Jacobian is singular. */
+  /** λ with Jᵀ·λ = ∂y/∂v_free for probe `p`; undefined when the Jacobian is singular. Sets
+   *  `current` either way. */
   probe(p: OutputProbe): Probed | undefined {
-    const { ws, row, lam } = this;
-    for (const j of this.cols) row[j] = 0;
+    const { ws, row, lam, cols } = this;
+    for (const j of cols) row[j] = 0;
     if (this.support) for (const j of this.support) lam[j] = 0; else lam.fill(0);
-    const cols: number[] = [];
+    cols.length = 0;
     if (p.elements) {
-      for (const [j, g] of loadOwn(ws, p.elements, p.node).row) { row[j] = g; cols.push(j); }
+      this.current = p.sign * loadOwn(ws, p.elements, p.node);
+      for (let i = 0; i < own.rowLen; i++) { const j = own.rowCol[i]!; row[j] = own.rowVal[i]!; cols.push(j); }
     } else {
+      this.current = p.sign * ws.F[p.node]!;
       const { ptr, col, pos } = rowIndex(ws.pattern);
       for (let q = ptr[p.node]!; q < ptr[p.node + 1]!; q++) { row[col[q]!] = ws.G[pos[q]!]!; cols.push(col[q]!); }
     }
-    this.cols = cols;
     this.support = [];
     if (!factorAtSolution(ws)) return undefined;
-    const seeds = cols.filter((j) => j < ws.n);
+    const seeds = this.seeds;
+    seeds.length = 0;
+    for (const j of cols) if (j < ws.n) seeds.push(j);
     for (const j of seeds) lam[j] = row[j]!;
     this.support = this.finite ? ws.solver.solveTransposeSparse(lam, seeds) : undefined;
     if (!this.support) {

@@ -47,9 +47,13 @@ export class DenseSolver implements LinearSolver {
 }
 
 export class SparseSolver implements LinearSolver {
-  private readonly lu: SparseLu;
-  constructor(pattern: JacobianPattern, order: Int32Array) {
-    this.lu = new SparseLu(pattern.n, pattern.colPtr, pattern.rowIdx, pattern.freeEnd, order);
+  private made?: SparseLu;
+  constructor(private readonly pattern: JacobianPattern, private readonly order: Int32Array) {}
+  /** The factorization's buffers, made on first use: a workspace that is only assembled (a
+   *  network's joint circuit at T ± dT, network/drift.ts) never needs them. */
+  private get lu(): SparseLu {
+    const p = this.pattern;
+    return (this.made ??= new SparseLu(p.n, p.colPtr, p.rowIdx, p.freeEnd, this.order));
   }
   factor(values: Float64Array): boolean { return this.lu.factor(values); }
   solve(b: Float64Array): void { this.lu.solve(b); }

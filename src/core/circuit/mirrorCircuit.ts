@@ -25,8 +25,10 @@ export interface MirrorCircuit {
   /** Held node of the wide-swing cascode gate. */
   vbiasNode?: number;
   /** A bank's circuit for its output j, made from this one without a build: what building it
-   *  for output j gives (templates.ts); undefined where it cannot. */
-  forOutput?: (j: number) => MirrorCircuit | undefined;
+   *  for output j gives (templates.ts); undefined where it cannot. `ws`: a workspace of this
+   *  circuit's to take over instead of a new one, for a caller that overwrites all of it
+   *  (Workspace.restore) before anything reads it. */
+  forOutput?: (j: number, ws?: Workspace) => MirrorCircuit | undefined;
 }
 
 export function makeWorkspace(c: Circuit): Workspace { return new Workspace(c); }

@@ -22,6 +22,7 @@ import { channelCurrent } from './elements/device';
 import { resistanceOf, resistorLaw } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
+import type { Workspace } from './workspace';
 
 /** Suffix of a filtered gate line's node (`a~f` is node a seen through the filter). */
 const FILTERED = '~f';
@@ -242,7 +243,7 @@ export function buildTemplate(
     const fixedV = c.fixedV.slice();
     const refRoles: Record<string, number> = {};
     for (const [role, k] of Object.entries(wired.byRole)) if (!kind.outputRoles.includes(role)) refRoles[role] = k;
-    mc.forOutput = (j) => {
+    mc.forOutput = (j, ws) => {
       const own = wired.outputDevices[j];
       const node = c.nodeNames.indexOf(wired.outNodes[j] ?? '');
       if (!own || node < 0) return undefined;
@@ -259,7 +260,7 @@ export function buildTemplate(
       const devices = c.devices.map((d) => swap.get(d) ?? d);
       const variant: Circuit = Object.assign({}, c);
       variant.fixedV = fixedV.slice(); variant.elements = elements; variant.devices = devices; variant.outNode = node;
-      return templateCircuit(spec, m, variant, wired, byRole);
+      return templateCircuit(spec, m, variant, wired, byRole, ws);
     };
   }
   return mc;
@@ -267,7 +268,7 @@ export function buildTemplate(
 
 /** The mirror circuit of `c`, wired by `wired`, its measured output's devices by role `byRole`:
  *  the workspace, the starting guess, the input current. */
-function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wired: WiredTemplate, byRole: Record<string, number>): MirrorCircuit {
+function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wired: WiredTemplate, byRole: Record<string, number>, given?: Workspace): MirrorCircuit {
   const { vdd, vss } = spec.supplies;
   const sign = polaritySign(m.type);
   const rail = sign > 0 ? vss : vdd;
@@ -282,7 +283,7 @@ function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wire
     // A reference: the loop current of the device it is named after (the taps copy it).
     : loopRef !== undefined ? (v) => channelCurrent(c.devices[loopRef]!, v)
       : () => (m.input.kind === 'resistor' || m.input.kind === 'self' ? NaN : m.input.i);
-  const ws = makeWorkspace(c);
+  const ws = given ?? makeWorkspace(c);
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;
 

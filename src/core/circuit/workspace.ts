@@ -1,5 +1,5 @@
 /** Preallocated buffers of one circuit; nothing is allocated inside a Newton iteration. */
-import { newChannelEval } from '../models/core';
+import { newChannelEval, type ChannelEval } from '../models/core';
 import type { Circuit } from './circuit';
 import type { JacobianPattern } from './jacobian';
 import { DenseSolver, SparseSolver, type LinearSolver } from './linearSolver';
@@ -26,6 +26,8 @@ export class Workspace {
   /** Whether the solver holds the factors of the free block at v. */
   factored = false;
   readonly ch = newChannelEval();
+  /** The one buffer behind the node buffers, G and a dense solver's factors and pivots. */
+  private readonly mem: ArrayBuffer;
 
   constructor(c: Circuit) {
     const nt = c.nodeNames.length;
@@ -38,6 +40,7 @@ export class Workspace {
     const n = c.nFree, dense = c.ordering ? 0 : n * n + n;
     const floats = 6 * nt + c.jacobian.nnz + dense;
     const mem = new ArrayBuffer(8 * floats + (c.ordering ? 0 : 4 * n));
+    this.mem = mem;
     const buf = new Float64Array(mem, 0, floats);
     let at = 0;
     const take = (len: number): Float64Array => { const a = buf.subarray(at, at + len); at += len; return a; };
@@ -46,4 +49,26 @@ export class Workspace {
     this.solver = c.ordering ? new SparseSolver(c.jacobian, c.ordering)
       : new DenseSolver(c.jacobian, take(dense), new Int32Array(mem, 8 * floats, n));
   }
+
+  /** Everything a solve leaves here, for `restore` into a workspace of the same circuit (the
+   *  same nodes and pattern) solved dense; undefined for a sparse one (its factorization keeps
+   *  state of its own). */
+  snapshot(): WorkspaceState | undefined {
+    if (!(this.solver instanceof DenseSolver)) return undefined;
+    return { bytes: this.mem.slice(0), gdsFloor: this.gdsFloor, factored: this.factored, ch: { ...this.ch } };
+  }
+
+  /** This workspace as `s` left another one: the same bits in every buffer; false (nothing
+   *  done) when `s` is of a workspace of another size. */
+  restore(s: WorkspaceState): boolean {
+    if (s.bytes.byteLength !== this.mem.byteLength || !(this.solver instanceof DenseSolver)) return false;
+    new Uint8Array(this.mem).set(new Uint8Array(s.bytes));
+    this.gdsFloor = s.gdsFloor;
+    this.factored = s.factored;
+    Object.assign(this.ch, s.ch);
+    return true;
+  }
 }
+
+/** A dense workspace's whole state (Workspace.snapshot). */
+export interface WorkspaceState { bytes: ArrayBuffer; gdsFloor: number; factored: boolean; ch: ChannelEval }

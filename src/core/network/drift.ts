@@ -14,7 +14,6 @@ import { assemble } from '../circuit/assemble';
 import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, supplySensitivity, takenTo, type AtEnd } from '../analysis/drift';
 import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
-import type { NoiseSource } from '../circuit/elements/noise';
 import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
@@ -43,6 +42,9 @@ interface GroupNoise {
   parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[];
   /** Runs picked for the output at hand (`picked[r] === stamp`): a set without one per output. */
   picked: Int32Array; stamp: number;
+  /** The picked runs, and the sources they hold (what `reaching` returns, rewritten for each
+   *  output: outputNoise keeps none of it). */
+  order: Int32Array; reached: NoiseParts;
 }
 interface GroupCache {
   group: NetworkGroup; at: Map<number, Solved>; curve?: (Solved | undefined)[]; ends?: Ends | null; noise?: GroupNoise;
@@ -115,8 +117,11 @@ function memberOf(j: JointCircuit, mirrorIndex: number): JointMember | undefined
   return m.get(mirrorIndex);
 }
 
-/** How output `outputIndex` of mirror `mirrorIndex` in the joint circuit is read. */
-function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): OutputProbe | undefined {
+/** Where an output of a joint circuit is read: its node, its sign, and for an output feeding
+ *  another mirror its own devices (indices into circuit.devices). */
+interface Where { node: number; sign: 1 | -1; devices?: readonly number[] }
+
+function whereOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Where | undefined {
   const mem = memberOf(j, mirrorIndex);
   if (!mem) return undefined;
   const k = key(mirrorIndex, outputIndex);
@@ -124,7 +129,24 @@ function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Out
   if (leaf !== undefined) return { node: leaf, sign: mem.sign };
   const link = j.linkNode.get(k);
   if (link === undefined) return undefined;
-  return { node: link, sign: mem.sign, elements: (j.outDevices.get(k) ?? []).map((d) => j.mc.circuit.devices[d]!) };
+  return { node: link, sign: mem.sign, devices: j.outDevices.get(k) ?? [] };
+}
+
+/** The probe of `w` in joint circuit `j` (its devices are j's own). */
+function probeAt(j: JointCircuit, w: Where): OutputProbe {
+  return w.devices ? { node: w.node, sign: w.sign, elements: w.devices.map((d) => j.mc.circuit.devices[d]!) } : { node: w.node, sign: w.sign };
+}
+
+/** How output `outputIndex` of mirror `mirrorIndex` in the joint circuit is read. */
+function probeOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): OutputProbe | undefined {
+  const w = whereOf(j, mirrorIndex, outputIndex);
+  return w && probeAt(j, w);
+}
+
+/** Whether `other` is `j` taken to another temperature (takenJoint: the same members, nodes and
+ *  outputs, its own elements), where an output is read where it is read in `j`. */
+function sameLayout(other: JointCircuit, j: JointCircuit): boolean {
+  return other.members === j.members && other.leafNode === j.leafNode && other.linkNode === j.linkNode && other.outDevices === j.outDevices;
 }
 
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
@@ -147,10 +169,10 @@ function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: nu
   return gc.ends;
 }
 
-/** One output read at one end. */
-function endOf(ends: Ends, j: JointCircuit, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
-  const p = probeOf(j, mirrorIndex, outputIndex);
-  return p ? { F: j.mc.ws.F, y: probeCurrent(j.mc.ws, p), finite: ends.finite } : undefined;
+/** One output read at one end `e` (where it is read in the nominal circuit `j`, `w`). */
+function endOf(ends: Ends, e: JointCircuit, j: JointCircuit, w: Where, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
+  const p = sameLayout(e, j) ? probeAt(e, w) : probeOf(e, mirrorIndex, outputIndex);
+  return p ? { F: e.mc.ws.F, y: probeCurrent(e.mc.ws, p), finite: ends.finite } : undefined;
 }
 
 function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
@@ -177,7 +199,13 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
     for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
-  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0 };
+  // Runs of one name each (joint element names carry their mirror's path): outputNoise then
+  // finds each element's part without a search.
+  const names = new Set(runs.map(([a]) => sources[a]!.element));
+  if (names.size === runs.length) parts.distinct = true;
+  const reached: NoiseParts = { sources: [], caps: parts.caps };
+  if (parts.distinct) reached.distinct = true;
+  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0, order: new Int32Array(runs.length), reached };
   return gc.noise;
 }
 
@@ -188,20 +216,25 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
 function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
   const stamp = ++gn.stamp;
-  const order: number[] = [];
-  const pick = (r: number): void => { if (gn.picked[r] !== stamp) { gn.picked[r] = stamp; order.push(r); } };
-  for (const r of gn.always) pick(r);
-  for (const r of gn.byNode[probe.node] ?? []) pick(r);
-  const at = (k: number): void => { if (lam[k] !== 0) for (const r of gn.byNode[k]!) pick(r); };
-  if (support) for (const k of support) at(k);
-  else for (let k = 0; k < lam.length; k++) at(k);
-  order.sort((a, b) => a - b);
-  const sources: NoiseSource[] = [];
-  for (const r of order) {
-    const [a, b] = gn.runs[r]!;
+  const { picked, order, byNode } = gn;
+  let n = 0;
+  for (const r of gn.always) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  for (const r of byNode[probe.node] ?? []) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  const count = support ? support.length : lam.length;
+  for (let i = 0; i < count; i++) {
+    const k = support ? support[i]! : i;
+    if (lam[k] === 0) continue;
+    for (const r of byNode[k]!) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  }
+  // Each run at most once: n ≤ runs. A typed array sorts numerically, in place.
+  const sorted = order.subarray(0, n).sort();
+  const { sources } = gn.reached;
+  sources.length = 0;
+  for (let i = 0; i < n; i++) {
+    const [a, b] = gn.runs[sorted[i]!]!;
     for (let q = a; q < b; q++) sources.push(gn.parts.sources[q]!);
   }
-  return { sources, caps: gn.parts.caps };
+  return gn.reached;
 }
 
 /** Joint element names (`mirror/device`) as the report names them: its own mirror's devices by
@@ -224,18 +257,20 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
   const nominal = solvedAt(spec, gc, T);
   if (!nominal.converged) return undefined;
   const { j } = nominal;
-  const probe = probeOf(j, mirrorIndex, outputIndex);
-  if (!probe) return undefined;
+  const where = whereOf(j, mirrorIndex, outputIndex);
+  if (!where) return undefined;
+  const probe = probeAt(j, where);
   const { circuit: c, ws } = j.mc;
-  const iout = probeCurrent(ws, probe);
   const out: JointDrift = {};
   gc.adjoint ??= new AdjointScratch(ws);
+  // The probed current is read in the same pass as the adjoint's row (probeCurrent's value).
   const pr = gc.adjoint.probe(probe);
+  const iout = gc.adjoint.current;
   if (pr) {
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
     const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
-    const up = ends && endOf(ends, ends.up, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, mirrorIndex, outputIndex);
+    const up = ends && endOf(ends, ends.up, j, where, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, j, where, mirrorIndex, outputIndex);
     const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
     if (tc !== undefined) out.tc = tc;
     const mem = memberOf(j, mirrorIndex);

@@ -16,14 +16,19 @@ import { sinksCurrent } from '../device-types';
 
 export interface NetworkFigures { reports: MirrorReport[]; networks: NetworkReport[] }
 
+/** The network figures of every group of `spec`, added to `reports` themselves (the caller's
+ *  own: analyzeSpec's, or copies of them — analyze.ts's carry each output's requirements), which
+ *  come back as `reports`. A copy here would be a third of the figures' cost: every copy of a
+ *  report made by assignment outgrows V8's fast properties and is kept as a hash table. */
 export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): NetworkFigures {
   const nets = spec.networks;
   if (!nets || nets.length === 0) return { reports, networks: [] };
-  const byKey = new Map<string, MirrorReport>();
-  // Object.assign, not a spread: V8 gives each spread copy of a report a map of its own, so
-  // every field added below would make new maps (ten times the cost of the copy); copies made
-  // by assignment share theirs. The same fields in the same order either way.
-  const out = reports.map((r) => { const c = Object.assign({}, r); byKey.set(key(r.mirrorIndex, r.outputIndex), c); return c; });
+  // Each output's report by (mirror, output), without a key string per look-up.
+  let stride = 1;
+  for (const r of reports) stride = Math.max(stride, r.outputIndex + 1);
+  const byOutput = new Map<number, MirrorReport>();
+  for (const r of reports) byOutput.set(r.mirrorIndex * stride + r.outputIndex, r);
+  const reportOf = (i: number, j: number): MirrorReport | undefined => (j < stride ? byOutput.get(i * stride + j) : undefined);
   const at = (i: number): TemplateMirror | undefined => { const m = mirrorAt(spec, i); return m && m.kind !== 'netlist' ? m : undefined; };
   const networks: NetworkReport[] = [];
   const T = spec.process.temperature;
@@ -42,13 +47,13 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
         const up = at(fedBy.mirror);
         const upIn = intendedIn.get(fedBy.mirror) ?? NaN;
         intendedIn.set(i, upIn * (up ? designRatio(up, fedBy.output, upIn, T) ?? 1 : 1));
-        chainIn.set(i, byKey.get(key(fedBy.mirror, fedBy.output))?.chainSigma ?? NaN);
+        chainIn.set(i, reportOf(fedBy.mirror, fedBy.output)?.chainSigma ?? NaN);
       }
       m.outputs.forEach((o, j) => {
-        const r = byKey.get(key(i, j));
+        const r = reportOf(i, j);
         if (!r) return;
         r.network = root.name;
-        if (fedBy) r.fedBy = byKey.get(key(fedBy.mirror, fedBy.output))?.name ?? fedBy.from;
+        if (fedBy) r.fedBy = reportOf(fedBy.mirror, fedBy.output)?.name ?? fedBy.from;
         const ownIn = intendedIn.get(i) ?? NaN;
         const intended = ownIn * (designRatio(m, j, ownIn, T) ?? NaN);
         if (Number.isFinite(intended)) {
@@ -79,5 +84,5 @@ export function attachNetworks(spec: ResolvedSpec, reports: MirrorReport[]): Net
     if (worst) report.worstLeaf = worst.name;
     networks.push(report);
   }
-  return { reports: out, networks };
+  return { reports, networks };
 }
