@@ -133,3 +133,35 @@ describe('every member of the example\'s networks edited in turn', () => {
     expectSameSolution(solveEditedNetworks(edited, indexOf(plain), base), solveNetworks(edited, undefined, { chainSigma: false }));
   });
 });
+
+describe('a re-check that reads the edited mirror alone: that mirror as the whole answer hands it on, nothing else solved', () => {
+  // Check values: solveEditedNetworks's whole answer on the same edited spec (the same solve, so
+  // the edited mirror must be the same to the bit; common practice for a narrowed computation).
+  const tables = exampleTables();
+  const text = readFileSync(EXAMPLE_PATH, 'utf8');
+  const base = resolveText(text, 'sensor-afe.bias.yaml', { tables }).parsed.spec!;
+  const pre = presolved(text, tables);
+  const groups = networkGroups(pre);
+
+  for (const g of groups) {
+    for (const m of g.members) {
+      it(`${m.name} widened`, () => {
+        const i = indexOf(m);
+        const edited = withMirror(pre, i, widened);
+        const whole = solveEditedNetworks(edited, i, base);
+        const alone = solveEditedNetworks(edited, i, base, { only: 'edited' });
+        expect(mirrorAt(alone, i)).toEqual(mirrorAt(whole, i));
+        expect(alone.networks).toBeUndefined();
+        // Every other member is left as the re-check gave it (linked inputs at their intended currents).
+        for (const x of alone.mirrors) if (indexOf(x) !== i) expect(x).toBe(mirrorAt(edited, indexOf(x)));
+      });
+    }
+  }
+
+  it('t2 of a tree made a cascode (the group wired again around it)', () => {
+    const tree15 = tree(15);
+    const treeBase = resolveText(tree15, 'case.bias.yaml').parsed.spec!;
+    const edited = presolved(tree15.replace('name: t2, kind: simple', 'name: t2, kind: cascode'));
+    expect(mirrorAt(solveEditedNetworks(edited, 2, treeBase, { only: 'edited' }), 2)).toEqual(mirrorAt(solveEditedNetworks(edited, 2, treeBase), 2));
+  });
+});

@@ -24,35 +24,53 @@ import { wireTemplate } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
 import { vbiasFor } from '../analysis/vbias';
 import { solveMirror } from '../analysis/solve';
-import { indexOf } from '../mirror-at';
+import { indexOf, mirrorAt } from '../mirror-at';
 import { networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, jointOf, type JointCircuit, type JointMember } from './joint';
-import { handOn, withMirrors } from './index';
+import { buildJoint, jointOf, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
+import { handedOn, handOn, withMirrors } from './index';
 import { keptJoint, type KeptJoint } from './kept';
 
 /** `spec`'s networks solved, `edited` (a file index) being the one mirror that differs from
  *  `base`, the analysed spec whose networks were kept; what solveNetworks gives without chain
- *  sigmas. */
-export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: ResolvedSpec): ResolvedSpec {
-  const groups = networkGroups(spec);
-  if (groups.length === 0) return spec;
+ *  sigmas. With `only: 'edited'`, what a re-check that reads the edited mirror alone needs (its
+ *  report without a joint drift): that mirror handed on at its group's solution, no other group
+ *  solved, no other member handed on and no `networks` described — the same solve, so the
+ *  edited mirror is the one the whole answer hands on. */
+export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: ResolvedSpec, opts: { only?: 'edited' } = {}): ResolvedSpec {
+  const only = opts.only === 'edited';
   const byRoot = new Map<number, KeptJoint>();
   for (const n of base.networks ?? []) {
     const k = keptJoint(n);
     if (k) byRoot.set(n.root, k);
   }
+  const groups = (only && keptGroups(spec, edited, byRoot)) || networkGroups(spec);
+  if (groups.length === 0) return spec;
   const changed = new Map<number, TemplateMirror>();
   const networks: SolvedNetwork[] = [];
   for (const g of groups) {
+    if (only && !g.parent.has(edited) && indexOf(g.root) !== edited) continue;
     const k = byRoot.get(indexOf(g.root));
     const kept = k && sameLinks(g, k.group) ? k : undefined;
     const patched = kept && withEdit(spec, g, kept, edited);
     const replayed = !patched && kept ? rebuilt(spec, g, kept, edited) : undefined;
     const j = patched ?? replayed?.j ?? buildJoint(spec, g);
     const warm = patched ? kept?.v : replayed?.warm;
-    networks.push(handOn(spec, g, j, warm ? solveMirror(j.mc, warm) : solveMirror(j.mc), false, changed));
+    const r = warm ? solveMirror(j.mc, warm) : solveMirror(j.mc);
+    if (!only) networks.push(handOn(spec, g, j, r, false, changed));
+    else if (r.converged) handOnEdited(j, edited, changed);
   }
-  return withMirrors(spec, changed, networks);
+  return only ? withMirrors(spec, changed) : withMirrors(spec, changed, networks);
+}
+
+/** The edited member alone handed on at the solution of `j` (as handOn hands every member on). */
+function handOnEdited(j: JointCircuit, edited: number, changed: Map<number, TemplateMirror>): void {
+  const mem = j.members.find((x) => x.index === edited);
+  if (!mem) return;
+  const v = j.mc.ws.v;
+  changed.set(edited, handedOn(mem.mirror, (k) => {
+    const node = j.linkNode.get(k);
+    return node === undefined ? undefined : { i: outputCurrentOf(j, k), v: v[node]! };
+  }));
 }
 
 /**
@@ -78,13 +96,52 @@ function rebuilt(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: numb
   if (j.mc.circuit.problems.length > 0) return undefined;
   const c = j.mc.circuit, bc = k.joint.mc.circuit;
   const index = k.index();
-  j.mc.guess();
+  // Only the edited mirror's nodes can be new, and its guess reads only the guesses below it.
+  j.guessOnly(subtree(g, edited));
   const warm = j.mc.ws.v.slice();
   for (let x = 0; x < c.nFree; x++) {
     const at = index.get(c.nodeNames[x]!);
     if (at !== undefined && at < bc.nFree) warm[x] = k.v[at]!;
   }
   return { j, warm };
+}
+
+/**
+ * The group of the edited mirror, as networkGroups would list it, from a kept group without
+ * listing the file's groups: every member as `spec` has it, each linked as in the kept group
+ * (only the edited mirror differs from the analysed spec, so no other mirror joins or leaves
+ * it); none when the edited mirror is neither linked nor fed and in no kept group. Undefined
+ * when that is not known (networkGroups then lists them).
+ */
+function keptGroups(spec: ResolvedSpec, edited: number, byRoot: Map<number, KeptJoint>): NetworkGroup[] | undefined {
+  const e = mirrorAt(spec, edited);
+  if (!e || e.kind === 'netlist') return undefined;
+  for (const k of byRoot.values()) {
+    const h = k.group;
+    if (!h.parent.has(edited) && indexOf(h.root) !== edited) continue;
+    const members: TemplateMirror[] = [];
+    for (const x of h.members) {
+      const i = indexOf(x);
+      const m = mirrorAt(spec, i);
+      const p = h.parent.get(i);
+      if (!m || m.kind === 'netlist') return undefined;
+      if (p ? m.input.kind !== 'link' || m.input.mirror !== p.mirror || m.input.output !== p.output : m.input.kind === 'link') return undefined;
+      members.push(m);
+    }
+    return [{ root: members[0]!, members, parent: h.parent }];
+  }
+  return e.input.kind === 'link' || e.outputs.some((o) => o.feeds !== undefined) ? undefined : [];
+}
+
+/** Mirror `top` and every member it feeds, directly or not (members list each after its feeder). */
+function subtree(g: NetworkGroup, top: number): Set<number> {
+  const out = new Set<number>([top]);
+  for (const m of g.members) {
+    const i = indexOf(m);
+    const p = g.parent.get(i);
+    if (p && out.has(p.mirror)) out.add(i);
+  }
+  return out;
 }
 
 /** The same members in the same order, each fed by the same output. */
