@@ -12,20 +12,20 @@ import type { Anchor, DeviceReport, MirrorReport, ResolvedMirror, SpecPath } fro
 import type { ParsedSpec } from './spec/index';
 import { MirrorFragments } from './spec/fragment';
 import { indexOf } from './mirror-at';
+import { SweptMap } from './swept-map';
 
 /** Each mirror's anchors by key (above); what an analysis did not use is dropped after it. */
 export class MirrorAnchors {
   /** Anchors with lines counted from the item's first line, and as last placed (at `first`):
    *  read back at the same line, they are those objects again (values nothing changes). */
-  private readonly known = new Map<string, { anchors: Anchor[]; used: number; placed?: { first: number; anchors: Anchor[] } }>();
-  private generation = 0;
+  private readonly known = new SweptMap<string, { anchors: Anchor[]; placed?: { first: number; anchors: Anchor[] } }>();
 
   begin(): void {
-    this.generation++;
+    this.known.begin();
   }
 
   sweep(): void {
-    for (const [k, e] of this.known) if (e.used !== this.generation) this.known.delete(k);
+    this.known.sweep();
   }
 
   get size(): number {
@@ -36,13 +36,12 @@ export class MirrorAnchors {
   get(key: string, first: number): Anchor[] | undefined {
     const e = this.known.get(key);
     if (!e) return undefined;
-    e.used = this.generation;
     if (e.placed?.first !== first) e.placed = { first, anchors: e.anchors.map((a) => moved(a, first)) };
     return e.placed.anchors;
   }
 
   set(key: string, anchors: Anchor[]): void {
-    this.known.set(key, { anchors, used: this.generation });
+    this.known.set(key, { anchors });
   }
 }
 

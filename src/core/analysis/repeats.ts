@@ -22,6 +22,7 @@ import { isBank } from '../circuit/templates';
 import { clockedSolveCount } from '../circuit/newton';
 import { canonicalJson, digest } from '../canonical';
 import { indexOf, mirrorAt } from '../mirror-at';
+import { SweptMap } from '../swept-map';
 import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
 import { reportIdentity, type ReportIdentity } from './measure';
 import type { MirrorContext } from './index';
@@ -89,35 +90,32 @@ const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
 
 /** Solved reports kept across analyses of one file, by solve unit (see above). */
 export class SolvedUnits {
-  private readonly solved = new Map<string, { report: MirrorReport; used: number }>();
-  private generation = 0;
+  private readonly solved = new SweptMap<string, MirrorReport>();
   /** Of the last analysis: reports solved, and reports read back. */
   solvedNow = 0;
   reusedNow = 0;
 
   /** Starts an analysis: what it does not use is dropped by the next `sweep`. */
   begin(): void {
-    this.generation++;
+    this.solved.begin();
     this.solvedNow = 0;
     this.reusedNow = 0;
   }
 
   get(key: string): MirrorReport | undefined {
-    const e = this.solved.get(key);
-    if (!e) return undefined;
-    e.used = this.generation;
-    this.reusedNow++;
-    return e.report;
+    const report = this.solved.get(key);
+    if (report) this.reusedNow++;
+    return report;
   }
 
   set(key: string, report: MirrorReport): void {
     this.solvedNow++;
-    this.solved.set(key, { report, used: this.generation });
+    this.solved.set(key, report);
   }
 
   /** Drops every report the last analysis did not use. */
   sweep(): void {
-    for (const [k, e] of this.solved) if (e.used !== this.generation) this.solved.delete(k);
+    this.solved.sweep();
   }
 
   get size(): number {

@@ -22,6 +22,7 @@ import { accepts, recheck, recheckContext, wholeMirrorRechecks, type Baseline, t
 import { canonicalJson, digest } from '../canonical';
 import { linkedInputs } from '../analysis/repeats';
 import { LineIndex } from '../text/lines';
+import { SweptMap } from '../swept-map';
 import type { MirrorFragments } from '../spec/fragment';
 
 /** A whole-file re-check of a spec-wide fix, as one mirror's findings asked for it. */
@@ -49,7 +50,6 @@ interface Entry {
   queries: SpecQuery[];
   /** Local re-checks it read (kept for the next analysis as if read again). */
   rechecks: string[];
-  used: number;
   /** The findings as last placed, and the item's first line then: read back at the same line,
    *  they are those objects again (findings are values nothing changes once made). */
   placed?: { first: number; findings: Finding[] };
@@ -57,23 +57,23 @@ interface Entry {
 
 /** Each mirror's findings by key (above); what an analysis did not use is dropped after it. */
 export class MirrorFindings {
-  private readonly known = new Map<string, Entry>();
+  private readonly known = new SweptMap<string, Entry>();
   /** What the quick detect of a whole-file re-check found in each mirror (no ranges: nothing moves). */
-  private readonly quick = new Map<string, { found: Found[]; used: number }>();
-  private generation = 0;
+  private readonly quick = new SweptMap<string, Found[]>();
   /** Of the last analysis: mirrors whose findings were found, and read back. */
   foundNow = 0;
   reusedNow = 0;
 
   begin(): void {
-    this.generation++;
+    this.known.begin();
+    this.quick.begin();
     this.foundNow = 0;
     this.reusedNow = 0;
   }
 
   sweep(): void {
-    for (const [k, e] of this.known) if (e.used !== this.generation) this.known.delete(k);
-    for (const [k, e] of this.quick) if (e.used !== this.generation) this.quick.delete(k);
+    this.known.sweep();
+    this.quick.sweep();
   }
 
   /**
@@ -94,12 +94,11 @@ export class MirrorFindings {
       const key = item && `${g.mirrorIndex}\u0000${item.original}\u0000${linked.get(g.mirrorIndex) ?? ''}\u0000${context}`;
       const kept = key === undefined ? undefined : this.quick.get(key);
       if (kept) {
-        kept.used = this.generation;
-        out.push(...kept.found);
+        out.push(...kept);
         continue;
       }
       const found = detect({ ...rc, reports: g.reports }).map((d) => ({ key: d.key, error: d.finding.severity === 'error', mirrorIndex: d.mirrorIndex }));
-      if (key !== undefined) this.quick.set(key, { found, used: this.generation });
+      if (key !== undefined) this.quick.set(key, found);
       out.push(...found);
     }
     return out;
@@ -110,13 +109,11 @@ export class MirrorFindings {
   }
 
   get(key: string): Entry | undefined {
-    const e = this.known.get(key);
-    if (e) e.used = this.generation;
-    return e;
+    return this.known.get(key);
   }
 
-  set(key: string, e: Omit<Entry, 'used'>): void {
-    this.known.set(key, { ...e, used: this.generation });
+  set(key: string, e: Entry): void {
+    this.known.set(key, { ...e });
   }
 }
 

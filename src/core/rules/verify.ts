@@ -34,6 +34,7 @@ import { LineIndex } from '../text/lines';
 import type { Draft, FixPlan, RuleContext } from './model';
 import { untrustedMove } from './trust';
 import { mirrorAt } from '../mirror-at';
+import { SweptMap } from '../swept-map';
 
 export type Detect = (rc: RuleContext) => Draft[];
 
@@ -92,8 +93,7 @@ export interface RecheckStore {
  *  dropped after it (`sweep`). */
 export class Rechecks {
   /** 'whole': the re-check of that key is not local (the whole text is read again every time). */
-  private readonly known = new Map<string, { found: Recheck | 'whole'; used: number }>();
-  private generation = 0;
+  private readonly known = new SweptMap<string, { found: Recheck | 'whole' }>();
   /** Of the last analysis: local re-checks run, and read back. */
   runNow = 0;
   reusedNow = 0;
@@ -101,25 +101,25 @@ export class Rechecks {
   log?: string[];
 
   begin(): void {
-    this.generation++;
+    this.known.begin();
     this.runNow = 0;
     this.reusedNow = 0;
   }
 
   get(key: string): { found: Recheck | 'whole' } | undefined {
     const e = this.known.get(key);
-    if (e) { e.used = this.generation; this.reusedNow++; this.log?.push(key); }
+    if (e) { this.reusedNow++; this.log?.push(key); }
     return e;
   }
 
   set(key: string, found: Recheck | 'whole'): void {
     this.runNow++;
     this.log?.push(key);
-    this.known.set(key, { found, used: this.generation });
+    this.known.set(key, { found });
   }
 
   sweep(): void {
-    for (const [k, e] of this.known) if (e.used !== this.generation) this.known.delete(k);
+    this.known.sweep();
   }
 
   get size(): number {

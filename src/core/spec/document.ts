@@ -9,6 +9,7 @@ import type { Finding } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import { LineIndex } from '../text/lines';
 import { YAML_OPTIONS } from './yaml-options';
+import { documentData } from './data';
 
 export { YAML_OPTIONS } from './yaml-options';
 
@@ -184,7 +185,7 @@ export function readDocument(text: string, lines: LineIndex): ReadDocument {
   duplicateKeys(doc, lines, findings);
   let data: unknown;
   try {
-    data = doc.toJS({ maxAliasCount: SPEC_LIMITS.maxAliasCount });
+    data = documentData(doc, SPEC_LIMITS.maxAliasCount);
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
     if (/alias/i.test(msg)) {

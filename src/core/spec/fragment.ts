@@ -17,6 +17,7 @@ import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import type { ParsedSpec } from './index';
 import { duplicateKeys, readDocument, refusal, YAML_OPTIONS, type ReadDocument } from './document';
+import { documentData } from './data';
 import { LineIndex, linesDown } from '../text/lines';
 import type { SourceMap } from './source-map';
 import { YamlSourceMap } from './source-map';
@@ -242,7 +243,7 @@ export class MirrorFragments {
     if (dup.length > 0) return undefined;
     let data: unknown;
     try {
-      data = doc.toJS({ maxAliasCount: SPEC_LIMITS.maxAliasCount });
+      data = documentData(doc, SPEC_LIMITS.maxAliasCount);
     } catch {
       return undefined;
     }

@@ -26,12 +26,12 @@ import { refusal } from './document';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
 import { LineIndex } from '../text/lines';
+import { SweptMap } from '../swept-map';
 
 interface Base {
   parsed: ParsedSpec;
   file?: string;
   opts: ParseOptions;
-  used: number;
 }
 
 /** The last read outside the items of one whole-file re-check (`fromOutside`). */
@@ -42,7 +42,6 @@ interface OutsideBase {
   /** As `fromRead` gave it (elaborated, before the design targets and networks). */
   parsed: ParsedSpec;
   opts: ParseOptions;
-  used: number;
 }
 
 /**
@@ -51,22 +50,22 @@ interface OutsideBase {
  * parse is a base once: a spliced parse takes over its YAML tree.
  */
 export class ParseCache {
-  private readonly bases = new Map<string, Base>();
-  private readonly outsides = new Map<string, OutsideBase>();
-  private generation = 0;
+  private readonly bases = new SweptMap<string, Base>();
+  private readonly outsides = new SweptMap<string, OutsideBase>();
   /** Of the last analysis: texts read whole, and texts read from a base. */
   wholeNow = 0;
   splicedNow = 0;
 
   begin(): void {
-    this.generation++;
+    this.bases.begin();
+    this.outsides.begin();
     this.wholeNow = 0;
     this.splicedNow = 0;
   }
 
   sweep(): void {
-    for (const [k, b] of this.bases) if (b.used !== this.generation) this.bases.delete(k);
-    for (const [k, b] of this.outsides) if (b.used !== this.generation) this.outsides.delete(k);
+    this.bases.sweep();
+    this.outsides.sweep();
   }
 
   get size(): number {
@@ -89,13 +88,13 @@ export class ParseCache {
       ? elaboratedAgain(b.parsed, text, outside, maps, json, opts) : undefined;
     if (out) this.splicedNow++;
     else out = fromRead(text, outside.read, maps, json, opts);
-    if (out.spec && out.findings.length === 0 && !out.withheld && !out.suggestions) this.outsides.set(slot, { head: outside.head, read: outside, json, parsed: out, opts, used: this.generation });
+    if (out.spec && out.findings.length === 0 && !out.withheld && !out.suggestions) this.outsides.set(slot, { head: outside.head, read: outside, json, parsed: out, opts });
     return out;
   }
 
   /** The slot's last read outside the items (`fromOutside`), for `MirrorFragments.readOutside`. */
   lastOutside(slot: string): OutsideRead | undefined {
-    return this.outsides.get(slot)?.read;
+    return this.outsides.peek(slot)?.read;
   }
 
   /** `parseSpec(text, file, opts)`, from the slot's last parse where an edit allows. */
@@ -109,7 +108,7 @@ export class ParseCache {
       out = parseSpec(text, file, opts);
     }
     // Only a parse without findings can be a base: keep no other.
-    if (out.spec && out.findings.length === 0 && !out.withheld) this.bases.set(slot, { parsed: out, file, opts, used: this.generation });
+    if (out.spec && out.findings.length === 0 && !out.withheld) this.bases.set(slot, { parsed: out, file, opts });
     return out;
   }
 }
