@@ -52,9 +52,11 @@ function relinkable(reuse: ElaborateReuse | undefined, list: readonly unknown[] 
 /** Device types a bipolar reference takes beyond its own: the closing mirror's other polarity
  *  (PNP on an NPN cell) and its MOSFET start-up device (nmos for npn). A MOSFET reference's other
  *  polarity keeps borrowing the written one as before. */
-function borrowedTypes(m: TemplateMirror): DeviceType[] {
+const NONE: readonly DeviceType[] = [];
+
+function borrowedTypes(m: TemplateMirror): readonly DeviceType[] {
   const loop = KINDS[m.kind].loop;
-  if (!loop || !isBipolarType(m.type)) return [];
+  if (!loop || !isBipolarType(m.type)) return NONE;
   const out: DeviceType[] = [];
   if (Object.values(KINDS[m.kind].reference).some((c) => c.other)) out.push(m.type === 'npn' ? 'pnp' : 'npn');
   if (m.startup) out.push(m.type === 'npn' ? 'nmos' : 'pmos');
@@ -118,6 +120,7 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
 
   const mirrors: ResolvedMirror[] = [];
   const used = new Map<DeviceType, string>();  // device type → first mirror using it
+  const useType = (t: DeviceType, name: string): void => { if (!used.has(t)) used.set(t, name); };
   if (data.mirrors === undefined) missing(sink, [], 'mirrors', ' (the list of current mirrors)');
   const list = data.mirrors === undefined ? [] : Array.isArray(data.mirrors) ? data.mirrors : undefined;
   if (!list) sink.error('wrong-type', `\`mirrors\` must be a list; got ${typeName(data.mirrors)}`, ['mirrors'], undefined, 'type');
@@ -134,8 +137,11 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [...(known.device ? [] : [known.type]), ...borrowedTypes(known)];
-      for (const t of types) if (!used.has(t)) used.set(t, known.name);
+      if (known.kind === 'netlist') for (const d of known.devices) useType(d.type, known.name);
+      else {
+        if (!known.device) useType(known.type, known.name);
+        for (const t of borrowedTypes(known)) useType(t, known.name);
+      }
       mirrors.push(known);
       return;
     }
