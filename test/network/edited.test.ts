@@ -14,10 +14,11 @@ import { parseSpec, type TableTexts } from '../../src/core/spec/index';
 import { resolveText } from '../../src/core/resolve';
 import { applyDesignTargets } from '../../src/core/design/auto-size';
 import { provisionalLinks, solveNetworks } from '../../src/core/network/index';
-import { solveEditedNetworks } from '../../src/core/network/edited';
+import { solvedLocally, solveEditedNetworks } from '../../src/core/network/edited';
+import { keptJoint } from '../../src/core/network/kept';
 import { networkGroups } from '../../src/core/network/groups';
 import { indexOf, mirrorAt } from '../../src/core/mirror-at';
-import type { DeviceSize, ResolvedSpec, TemplateMirror } from '../../src/core/types';
+import type { DeviceSize, ResolvedMirror, ResolvedSpec, TemplateMirror } from '../../src/core/types';
 import { EXAMPLE_PATH, exampleTables } from '../example-tables';
 import { header } from './helpers';
 
@@ -132,4 +133,56 @@ describe('every member of the example\'s networks edited in turn', () => {
     const edited = withMirror(pre, indexOf(plain), widened);
     expectSameSolution(solveEditedNetworks(edited, indexOf(plain), base), solveNetworks(edited, undefined, { chainSigma: false }));
   });
+});
+
+/** The handed-on mirror alike: every field the same, its input current within 1e-8 relative and
+ *  each output voltage within 1e-8 V (the tolerances above). */
+function expectSameMember(got: ResolvedMirror | undefined, want: ResolvedMirror | undefined): void {
+  const a = got as TemplateMirror, b = want as TemplateMirror;
+  const plain = (m: TemplateMirror) => ({ ...m, input: { ...m.input, i: 0 }, outputs: m.outputs.map((o) => ({ ...o, output: { ...o.output, v: 0 } })) });
+  expect(plain(a)).toEqual(plain(b));
+  if (a.input.kind === 'link' && b.input.kind === 'link') expect(Math.abs(a.input.i / b.input.i - 1), 'input current').toBeLessThan(1e-8);
+  b.outputs.forEach((o, j) => expect(Math.abs(a.outputs[j]!.output.v - o.output.v), `output ${j} voltage`).toBeLessThan(1e-8));
+}
+
+describe('a re-check that reads the edited mirror alone: that mirror as the whole network hands it on, nothing else solved', () => {
+  // Check values: the whole edited network built and solved cold (solveNetworks), as above; where
+  // the edited mirror's subtree is solved alone (its feeder's output devices MOSFETs on a rail),
+  // the same equations to the same tolerances.
+  const tables = exampleTables();
+  const text = readFileSync(EXAMPLE_PATH, 'utf8');
+  const base = resolveText(text, 'sensor-afe.bias.yaml', { tables }).parsed.spec!;
+  const pre = presolved(text, tables);
+  const groups = networkGroups(pre);
+
+  for (const g of groups) {
+    for (const m of g.members) {
+      it(`${m.name} widened`, () => {
+        const i = indexOf(m);
+        const edited = withMirror(pre, i, widened);
+        const alone = solveEditedNetworks(edited, i, base, { only: 'edited' });
+        expectSameMember(mirrorAt(alone, i), mirrorAt(solveNetworks(edited, undefined, { chainSigma: false }), i));
+        expect(alone.networks).toBeUndefined();
+        // Every other member is left as the re-check gave it (linked inputs at their intended currents).
+        for (const x of alone.mirrors) if (indexOf(x) !== i) expect(x).toBe(mirrorAt(edited, indexOf(x)));
+      });
+    }
+  }
+
+  const tree15 = tree(15);
+  const treeBase = resolveText(tree15, 'case.bias.yaml').parsed.spec!;
+  for (const i of [0, 1, 2, 5, 14]) {
+    it(`t${i} of a tree resized, and made a cascode`, () => {
+      const resized = presolved(tree15.replace(new RegExp(`(name: t${i}, .*?size: \\{ w: )(\\d+)u`), (_, a: string, w: string) => `${a}${Number(w) * 1.21}u`));
+      const cascode = presolved(tree15.replace(`name: t${i}, kind: simple`, `name: t${i}, kind: cascode`));
+      for (const edited of [resized, cascode]) {
+        const want = mirrorAt(solveNetworks(edited, undefined, { chainSigma: false }), i);
+        expectSameMember(mirrorAt(solveEditedNetworks(edited, i, treeBase, { only: 'edited' }), i), want);
+        // Below the root, the subtree alone (its feeders' outputs are simple MOSFET outputs on a rail).
+        const local = solvedLocally(edited, networkGroups(edited)[0]!, keptJoint(treeBase.networks![0]!)!, i);
+        if (i === 0) expect(local).toBeUndefined();
+        else expectSameMember(local, want);
+      }
+    });
+  }
 });

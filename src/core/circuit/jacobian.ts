@@ -5,12 +5,12 @@
  * place and a Newton iteration costs O(nonzeros), never O(nodes²). Free nodes come first, so
  * the free block of each column (what Newton factors) is a prefix of it.
  */
-/** The sort keys of the pattern being built: one buffer for every pattern (read only while
- *  the constructor runs). */
-let keysBuf = new Float64Array(512);
-function keyScratch(len: number): Float64Array {
-  if (keysBuf.length < len) keysBuf = new Float64Array(2 * len);
-  return keysBuf.subarray(0, len);
+/** The scratch of the pattern being built: one buffer for every pattern (read only while the
+ *  constructor runs). */
+let scratchBuf = new Int32Array(1024);
+function scratch(len: number): Int32Array {
+  if (scratchBuf.length < len) scratchBuf = new Int32Array(2 * len);
+  return scratchBuf;
 }
 
 export class JacobianPattern {
@@ -33,35 +33,45 @@ export class JacobianPattern {
     this.nt = nt;
     this.n = n;
     const count = entries.length >> 1;
-    // Key col·nt + row sorts by column, then row; nt² stays far below 2⁵³.
-    const keys = keyScratch(2 * (count + n));
-    for (let k = 0; k < count; k++) keys[k] = entries[2 * k + 1]! * nt + entries[2 * k]!;
-    for (let k = 0; k < n; k++) keys[count + k] = k * nt + k;
-    const sorted = keys.subarray(count + n);
-    sorted.set(keys.subarray(0, count + n));
-    sorted.sort();
+    // The entries and each free node's diagonal bucketed by column (a counting sort: linear in
+    // the entries), then each column's rows sorted and made unique in place.
+    const buf0 = scratch(2 * (nt + 1) + count + n);
+    const start = buf0.subarray(0, nt + 1).fill(0), fill = buf0.subarray(nt + 1, 2 * (nt + 1));
+    const rows = buf0.subarray(2 * (nt + 1), 2 * (nt + 1) + count + n);
+    for (let k = 0; k < count; k++) start[entries[2 * k + 1]! + 1]!++;
+    for (let k = 0; k < n; k++) start[k + 1]!++;
+    for (let j = 0; j < nt; j++) start[j + 1] = start[j + 1]! + start[j]!;
+    fill.set(start);
+    for (let k = 0; k < count; k++) rows[fill[entries[2 * k + 1]!]!++] = entries[2 * k]!;
+    for (let k = 0; k < n; k++) rows[fill[k]!++] = k;
+    // Column j's unique rows move down to rows[fill[j] …] (fill now the new column starts).
     let nnz = 0;
-    for (let k = 0; k < sorted.length; k++) if (k === 0 || sorted[k] !== sorted[k - 1]) sorted[nnz++] = sorted[k]!;
+    for (let j = 0; j < nt; j++) {
+      const from = start[j]!, to = start[j + 1]!;
+      const col = rows.subarray(from, to);
+      if (to - from > 16) col.sort();
+      else {
+        for (let a = 1; a < col.length; a++) {
+          const x = col[a]!;
+          let b = a - 1;
+          while (b >= 0 && col[b]! > x) { col[b + 1] = col[b]!; b--; }
+          col[b + 1] = x;
+        }
+      }
+      fill[j] = nnz;
+      for (let a = 0; a < col.length; a++) if (a === 0 || col[a] !== col[a - 1]) rows[nnz++] = col[a]!;
+    }
+    fill[nt] = nnz;
     this.nnz = nnz;
     // One allocation for the index arrays: a pattern is built for each measured output.
     const buf = new Int32Array(nt + 1 + nnz + count + 2 * n);
     let at = 0;
     const take = (len: number): Int32Array => { const a = buf.subarray(at, at + len); at += len; return a; };
     this.colPtr = take(nt + 1); this.rowIdx = take(nnz); this.slots = take(count); this.diag = take(n); this.freeEnd = take(n);
-    for (let p = 0; p < nnz; p++) {
-      const key = sorted[p]!;
-      const col = Math.floor(key / nt);
-      this.rowIdx[p] = key - col * nt;
-      this.colPtr[col + 1]!++;
-    }
-    for (let j = 0; j < nt; j++) this.colPtr[j + 1] = this.colPtr[j + 1]! + this.colPtr[j]!;
-    const find = (key: number): number => {
-      let lo = 0, hi = nnz - 1;
-      while (lo < hi) { const mid = (lo + hi) >> 1; if (sorted[mid]! < key) lo = mid + 1; else hi = mid; }
-      return lo;
-    };
-    for (let k = 0; k < count; k++) this.slots[k] = find(keys[k]!);
-    for (let k = 0; k < n; k++) this.diag[k] = find(k * nt + k);
+    this.colPtr.set(fill.subarray(0, nt + 1));
+    this.rowIdx.set(rows.subarray(0, nnz));
+    for (let k = 0; k < count; k++) this.slots[k] = this.index(entries[2 * k]!, entries[2 * k + 1]!);
+    for (let k = 0; k < n; k++) this.diag[k] = this.index(k, k);
     for (let j = 0; j < n; j++) {
       let p = this.colPtr[j]!;
       const end = this.colPtr[j + 1]!;

@@ -15,44 +15,173 @@
  * few iterations reach it, to the solver's own tolerances —, falling back to the cold start a
  * build solves from, which then gives exactly what a build gives. A fix that rewires the mirror
  * (another kind), a group whose members or links changed, or a network the analysis did not keep
- * is built and solved as before.
+ * is built and solved as before. A re-check that reads the edited mirror alone solves its subtree
+ * alone where that is the group's own solution (`solvedLocally`).
  */
 import type { ResolvedSpec, SolvedNetwork, TemplateMirror } from '../types';
 import { CircuitBuilder, type Circuit } from '../circuit/circuit';
 import { assertNever, type CircuitElement } from '../circuit/elements/element';
+import { deviceReport } from '../circuit/elements/device';
+import { mainCurrent } from '../device-types';
 import { wireTemplate } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
 import { vbiasFor } from '../analysis/vbias';
 import { solveMirror } from '../analysis/solve';
-import { indexOf } from '../mirror-at';
+import { indexOf, mirrorAt } from '../mirror-at';
 import { networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, jointOf, type JointCircuit, type JointMember } from './joint';
-import { handOn, withMirrors } from './index';
+import { buildJoint, jointOf, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
+import { handedOn, handOn, withMirrors } from './index';
 import { keptJoint, type KeptJoint } from './kept';
 
 /** `spec`'s networks solved, `edited` (a file index) being the one mirror that differs from
  *  `base`, the analysed spec whose networks were kept; what solveNetworks gives without chain
- *  sigmas. */
-export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: ResolvedSpec): ResolvedSpec {
-  const groups = networkGroups(spec);
-  if (groups.length === 0) return spec;
+ *  sigmas. With `only: 'edited'`, what a re-check that reads the edited mirror alone needs (its
+ *  report without a joint drift): that mirror handed on at its group's solution, no other group
+ *  solved, no other member handed on and no `networks` described — the same solve, so the
+ *  edited mirror is the one the whole answer hands on. */
+export function solveEditedNetworks(spec: ResolvedSpec, edited: number, base: ResolvedSpec, opts: { only?: 'edited' } = {}): ResolvedSpec {
+  const only = opts.only === 'edited';
   const byRoot = new Map<number, KeptJoint>();
   for (const n of base.networks ?? []) {
     const k = keptJoint(n);
     if (k) byRoot.set(n.root, k);
   }
+  const groups = (only && keptGroups(spec, edited, byRoot)) || networkGroups(spec);
+  if (groups.length === 0) return spec;
   const changed = new Map<number, TemplateMirror>();
   const networks: SolvedNetwork[] = [];
   for (const g of groups) {
+    if (only && !g.parent.has(edited) && indexOf(g.root) !== edited) continue;
     const k = byRoot.get(indexOf(g.root));
     const kept = k && sameLinks(g, k.group) ? k : undefined;
+    const local = only && kept ? solvedLocally(spec, g, kept, edited) : undefined;
+    if (local) { changed.set(edited, local); continue; }
     const patched = kept && withEdit(spec, g, kept, edited);
     const replayed = !patched && kept ? rebuilt(spec, g, kept, edited) : undefined;
     const j = patched ?? replayed?.j ?? buildJoint(spec, g);
     const warm = patched ? kept?.v : replayed?.warm;
-    networks.push(handOn(spec, g, j, warm ? solveMirror(j.mc, warm) : solveMirror(j.mc), false, changed));
+    const r = warm ? solveMirror(j.mc, warm) : solveMirror(j.mc);
+    if (!only) networks.push(handOn(spec, g, j, r, false, changed));
+    else if (r.converged) handOnEdited(j, edited, changed);
   }
-  return withMirrors(spec, changed, networks);
+  return only ? withMirrors(spec, changed) : withMirrors(spec, changed, networks);
+}
+
+/** The edited member alone handed on at the solution of `j` (as handOn hands every member on). */
+function handOnEdited(j: JointCircuit, edited: number, changed: Map<number, TemplateMirror>): void {
+  const mem = j.members.find((x) => x.index === edited);
+  if (!mem) return;
+  const v = j.mc.ws.v;
+  changed.set(edited, handedOn(mem.mirror, (k) => {
+    const node = j.linkNode.get(k);
+    return node === undefined ? undefined : { i: outputCurrentOf(j, k), v: v[node]! };
+  }));
+}
+
+/**
+ * The edited mirror handed on from a solve of its subtree alone, when that is the group's own
+ * solution: the group's equations are then block-triangular. The mirror feeding it drives its
+ * input node through output devices that are MOSFETs with their sources on a rail — a channel's
+ * current enters only its drain and source, so no equation outside the subtree reads a node of
+ * it — and the subtree's mirrors wire nodes of their own (namespaced) and the rails. The rest of
+ * the group is then solved by the kept solution as it was (the edit changes no equation there),
+ * and the subtree by its own equations with the feeder's gate held there: the subtree's members
+ * as the build wires them (the edited one wired anew, the others replayed from the kept build),
+ * the feeder's output devices with their gate and source held, Newton from the kept solution
+ * (the topology guess at a node the edit added). The same equations, converged to the same
+ * tolerances, as the whole group solved (test/network/edited.test.ts); undefined when any of
+ * that does not hold or the solve does not converge (the whole group is solved then).
+ */
+export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): TemplateMirror | undefined {
+  const log = k.joint.log;
+  const p = g.parent.get(edited);
+  if (!log || !p) return undefined;
+  const top = mirrorAt(spec, edited);
+  if (!top || top.kind === 'netlist') return undefined;
+  const below = subtree(g, edited);
+  const members = g.members.filter((m) => below.has(indexOf(m)));
+  const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
+  for (const m of members) {
+    const mem = byIndex.get(indexOf(m));
+    if (!mem?.ops || KINDS[m.kind].vbias || mem.wired.inputResistor) return undefined;
+  }
+  // The feeder's output devices: MOSFETs with their sources held, the only elements on the input node but the edited mirror's.
+  const bc = k.joint.mc.circuit;
+  const index = k.index();
+  if (bc.fixedV[index.get('vdd') ?? -1] !== spec.supplies.vdd || bc.fixedV[index.get('vss') ?? -1] !== spec.supplies.vss) return undefined;
+  const feederKey = `${p.mirror}:${p.output}`;
+  const inNode = k.joint.linkNode.get(feederKey);
+  const outs = k.joint.outDevices.get(feederKey);
+  const own = byIndex.get(edited)!;
+  if (inNode === undefined || !outs || outs.length === 0) return undefined;
+  const held = bc.nodeNames.length - bc.nFree;
+  for (let q = 0; q < bc.elements.length; q++) {
+    const e = bc.elements[q]!;
+    if (q - held >= own.added[0] && q - held < own.added[1]) continue;
+    const touches = e.kind === 'mos' ? e.d === inNode || e.s === inNode || e.g === inNode || e.b === inNode
+      : e.kind === 'bjt' ? e.c === inNode || e.b === inNode || e.e === inNode
+        : e.kind === 'resistor' || e.kind === 'capacitor' ? e.a === inNode || e.b === inNode
+          : e.kind === 'current' ? e.from === inNode || e.to === inNode : e.node === inNode;
+    if (!touches) continue;
+    if (e.kind !== 'mos' || e.d !== inNode || e.s < bc.nFree || (e.b !== e.s && e.b < bc.nFree) || !outs.some((d) => bc.devices[d] === e)) return undefined;
+  }
+  const inputNode = `${top.name}/${KINDS[top.kind].inputNode}`;
+  const fed = new Map<number, string>();
+  for (const m of members) {
+    const q = g.parent.get(indexOf(m));
+    if (q?.mirror === edited) fed.set(q.output, `${m.name}/${KINDS[m.kind].inputNode}`);
+  }
+  const last = indexOf(members[members.length - 1]!);
+  const sub: NetworkGroup = { root: top, members, parent: g.parent };
+  let feeders: [number, number] = [0, 0];
+  let firstDevice = 0;
+  const j = buildJoint(spec, sub, undefined, undefined, {
+    replay: (i, b) => {
+      const mem = byIndex.get(i)!;
+      let wired = mem.wired;
+      if (i === edited) {
+        wired = wireTemplate(b, spec, top, {
+          ns: `${top.name}/`, outputIndex: -1, vout: 0, vbias: top.vbias ?? vbiasFor({ spec, mirror: top, outputIndex: 0 })?.vbias,
+          inputNode, outNode: (o) => fed.get(o),
+        });
+      } else b.replay(log, mem.ops![0], mem.ops![1]);
+      firstDevice += wired.deviceNames.length;
+      if (i === last) {
+        // After every member's devices, so the members' device indices are the build's.
+        feeders = [firstDevice, firstDevice + outs.length];
+        for (const d of outs) {
+          const e = bc.devices[d]! as Extract<CircuitElement, { kind: 'mos' }>;
+          const gate = b.hold(`${e.name}:gate`, k.v[e.g]!);
+          const source = b.hold(bc.nodeNames[e.s]!, bc.fixedV[e.s]!);
+          const bulk = e.b === e.s ? source : b.hold(bc.nodeNames[e.b]!, bc.fixedV[e.b]!);
+          const desc = { name: e.name, role: e.role, type: e.type, size: e.size, params: e.params, dev: e.dev, measured: e.measured, ...(e.startup ? { startup: true as const } : {}) };
+          b.mos(desc, inputNode, gate, source, bulk);
+        }
+      }
+      return wired;
+    },
+  });
+  const c = j.mc.circuit;
+  if (c.problems.length > 0 || c.devices.length !== feeders[1]) return undefined;
+  // The kept solution at every node it has; the guess only where the edit added one.
+  const warm = j.mc.ws.v;
+  let added = false;
+  for (let x = 0; x < c.nFree && !added; x++) added = !((index.get(c.nodeNames[x]!) ?? Infinity) < bc.nFree);
+  if (added) j.mc.guess();
+  for (let x = 0; x < c.nFree; x++) {
+    const at = index.get(c.nodeNames[x]!);
+    if (at !== undefined && at < bc.nFree) warm[x] = k.v[at]!;
+  }
+  if (!solveMirror(j.mc, warm.slice()).converged) return undefined;
+  const v = j.mc.ws.v;
+  let iin = 0;
+  for (let d = feeders[0]; d < feeders[1]; d++) iin += mainCurrent(deviceReport(c.devices[d]!, v));
+  const mem = j.members[0]!;
+  return handedOn(mem.mirror, (key) => {
+    if (key === feederKey) return { i: iin };
+    const node = j.linkNode.get(key);
+    return node === undefined ? undefined : { i: outputCurrentOf(j, key), v: v[node]! };
+  });
 }
 
 /**
@@ -78,13 +207,52 @@ function rebuilt(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: numb
   if (j.mc.circuit.problems.length > 0) return undefined;
   const c = j.mc.circuit, bc = k.joint.mc.circuit;
   const index = k.index();
-  j.mc.guess();
+  // Only the edited mirror's nodes can be new, and its guess reads only the guesses below it.
+  j.guessOnly(subtree(g, edited));
   const warm = j.mc.ws.v.slice();
   for (let x = 0; x < c.nFree; x++) {
     const at = index.get(c.nodeNames[x]!);
     if (at !== undefined && at < bc.nFree) warm[x] = k.v[at]!;
   }
   return { j, warm };
+}
+
+/**
+ * The group of the edited mirror, as networkGroups would list it, from a kept group without
+ * listing the file's groups: every member as `spec` has it, each linked as in the kept group
+ * (only the edited mirror differs from the analysed spec, so no other mirror joins or leaves
+ * it); none when the edited mirror is neither linked nor fed and in no kept group. Undefined
+ * when that is not known (networkGroups then lists them).
+ */
+function keptGroups(spec: ResolvedSpec, edited: number, byRoot: Map<number, KeptJoint>): NetworkGroup[] | undefined {
+  const e = mirrorAt(spec, edited);
+  if (!e || e.kind === 'netlist') return undefined;
+  for (const k of byRoot.values()) {
+    const h = k.group;
+    if (!h.parent.has(edited) && indexOf(h.root) !== edited) continue;
+    const members: TemplateMirror[] = [];
+    for (const x of h.members) {
+      const i = indexOf(x);
+      const m = mirrorAt(spec, i);
+      const p = h.parent.get(i);
+      if (!m || m.kind === 'netlist') return undefined;
+      if (p ? m.input.kind !== 'link' || m.input.mirror !== p.mirror || m.input.output !== p.output : m.input.kind === 'link') return undefined;
+      members.push(m);
+    }
+    return [{ root: members[0]!, members, parent: h.parent }];
+  }
+  return e.input.kind === 'link' || e.outputs.some((o) => o.feeds !== undefined) ? undefined : [];
+}
+
+/** Mirror `top` and every member it feeds, directly or not (members list each after its feeder). */
+function subtree(g: NetworkGroup, top: number): Set<number> {
+  const out = new Set<number>([top]);
+  for (const m of g.members) {
+    const i = indexOf(m);
+    const p = g.parent.get(i);
+    if (p && out.has(p.mirror)) out.add(i);
+  }
+  return out;
 }
 
 /** The same members in the same order, each fed by the same output. */

@@ -58,3 +58,24 @@ export function intendedInputs(g: NetworkGroup, rootCurrent: number, byIndex: (i
   }
   return out;
 }
+
+/** A of member `i` alone: the value intendedInputs gives it (the same product, in the same order),
+ *  its links walked up to the root; undefined when `i` is not linked or its links do not reach a
+ *  template root (`byIndex` gives templates only) within `count` steps. */
+export function intendedInputOf(i: number, rootCurrent: (root: TemplateMirror) => number, byIndex: (i: number) => TemplateMirror | undefined, count: number): number | undefined {
+  const path: TemplateMirror[] = [];
+  let m = byIndex(i);
+  while (m && m.input.kind === 'link') {
+    if (path.length > count) return undefined;
+    path.push(m);
+    m = byIndex(m.input.mirror);
+  }
+  if (!m || path.length === 0) return undefined;
+  let cur = rootCurrent(m);
+  for (let k = path.length - 1; k >= 0; k--) {
+    const link = path[k]!.input;
+    if (link.kind !== 'link') return undefined;
+    cur *= idealRatio(k === path.length - 1 ? m : path[k + 1]!, link.output) ?? 1;
+  }
+  return cur;
+}

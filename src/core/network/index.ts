@@ -13,12 +13,13 @@ import { solveMirror } from '../analysis/solve';
 import { deviceMismatchCurrents, deviceSigmas } from '../circuit/elements/device';
 import { factorAtSolution } from '../circuit/smallSignal';
 import { indexOf, mirrorAt } from '../mirror-at';
-import { intendedInputs, networkGroups, type NetworkGroup } from './groups';
+import { intendedInputOf, intendedInputs, networkGroups, type NetworkGroup } from './groups';
 import { rootStartCurrent } from './root-current';
 import { buildJoint, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import type { PerturbationLike } from '../circuit/templates';
 import type { DcResult } from '../circuit/newton';
 import { keepJoint } from './kept';
+import { takesVbias } from '../kinds/index';
 import { keepJoints, sameAfterHandOn, type SolvedJoint } from './handed';
 
 function templateAt(spec: ResolvedSpec) {
@@ -36,15 +37,30 @@ export function withMirrors(spec: ResolvedSpec, changed: Map<number, TemplateMir
   return out;
 }
 
-/** Each linked input's current set to its intended value (root current × ideal ratios). */
-export function provisionalLinks(spec: ResolvedSpec): ResolvedSpec {
-  const groups = networkGroups(spec);
-  if (groups.length === 0) return spec;
+/** Each linked input's current set to its intended value (root current × ideal ratios). With
+ *  `only` (a file index), the inputs a re-check of that one mirror reads (network/edited.ts with
+ *  `only: 'edited'`: the joint circuit reads no linked input's current but where a `vbias` is
+ *  picked from it): that mirror's own, and every one of its group if a member there takes a
+ *  `vbias`; the other mirrors are kept as they are. */
+export function provisionalLinks(spec: ResolvedSpec, opts: { only?: number } = {}): ResolvedSpec {
   const changed = new Map<number, TemplateMirror>();
   const at = templateAt(spec);
+  const only = opts.only;
+  // No vbias to pick: that mirror's input alone, along its path (no group listed).
+  if (only !== undefined && !spec.mirrors.some(takesVbias)) {
+    const m = at(only);
+    if (!m || m.input.kind !== 'link') return spec;
+    const cur = intendedInputOf(only, (root) => rootStartCurrent(spec, root), at, spec.mirrors.length);
+    if (cur !== undefined) return withMirrors(spec, new Map([[only, { ...m, input: { ...m.input, i: cur } }]]));
+  }
+  const groups = networkGroups(spec);
+  if (groups.length === 0) return spec;
   for (const g of groups) {
+    const whole = only === undefined || g.members.some(takesVbias);
+    if (!whole && !g.parent.has(only)) continue;
     const i0 = rootStartCurrent(spec, g.root);
     for (const [i, cur] of intendedInputs(g, i0, at)) {
+      if (!whole && i !== only) continue;
       const m = at(i);
       if (m && m.input.kind === 'link') changed.set(i, { ...m, input: { ...m.input, i: cur } });
     }
@@ -85,16 +101,20 @@ export function handOn(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, r: 
   const net = describe(spec, g, j, r.converged, chain);
   if (r.note) net.solveNote = r.note;
   if (!r.converged) return net;
-  for (const mem of j.members) {
-    const m = mem.mirror;
-    const outputs = m.outputs.map((o, k) => {
-      const v = net.outputs[key(mem.index, k)]?.v;
-      return v === undefined ? o : { ...o, output: { ...o.output, v } };
-    });
-    const input = m.input.kind === 'link' ? { ...m.input, i: net.outputs[key(m.input.mirror, m.input.output)]!.i } : m.input;
-    changed.set(mem.index, { ...m, input, outputs });
-  }
+  for (const mem of j.members) changed.set(mem.index, handedOn(mem.mirror, (k) => net.outputs[k]));
   return net;
+}
+
+/** Member `m` at a joint solution: its linked input the current that arrives, each linked output
+ *  at its node's voltage (`at`: the solved output `mirror:output`, a leaf's without `v`). */
+export function handedOn(m: TemplateMirror, at: (k: string) => SolvedNetworkOutput | undefined): TemplateMirror {
+  const i = indexOf(m);
+  const outputs = m.outputs.map((o, k) => {
+    const v = at(key(i, k))?.v;
+    return v === undefined ? o : { ...o, output: { ...o.output, v } };
+  });
+  const input = m.input.kind === 'link' ? { ...m.input, i: at(key(m.input.mirror, m.input.output))!.i } : m.input;
+  return { ...m, input, outputs };
 }
 
 /** λ with Jᵀ·λ = the leaf's row of G over the free columns (smallSignal.outputAdjoint, with the

@@ -47,6 +47,10 @@ export interface JointCircuit {
   rootCurrent(): number;
   /** Every builder call of the build, with `record` (network/edited.ts replays members from it). */
   log?: BuilderOp[];
+  /** The starting guess (mc.guess) of the given members' nodes alone, each as the whole guess
+   *  has it when they are a member and everything it feeds, directly or not (a subtree: the
+   *  guess runs leaf to root); every other free node at the supplies' midpoint. */
+  guessOnly(members: ReadonlySet<number>): void;
 }
 
 /** How buildJoint wires: `record` logs the builder's calls; `replay` wires member `i` itself
@@ -144,9 +148,9 @@ export function jointOf(spec: ResolvedSpec, g: NetworkGroup, members: JointMembe
   const rail = rootSign > 0 ? vss : vdd;
   // Only a cold start reads it (a reference root is solved alone for it).
   let rootStart: number | undefined;
-  const guess = (): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices, rootStart ??= rootStartCurrent(spec, g.root));
-  const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess, iin: rootCurrent, byRole: {} };
-  const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent };
+  const guessOnly = (only?: ReadonlySet<number>): void => jointGuess(spec, g, members, c.nodeNames, index, c.fixedV, c.nFree, ws.v, c.devices, rootStart ??= rootStartCurrent(spec, g.root), only);
+  const mc: MirrorCircuit = { circuit: c, ws, sign: rootSign, rail, span: vdd - vss, guess: () => guessOnly(), iin: rootCurrent, byRole: {} };
+  const joint: JointCircuit = { mc, members, leafNode, linkNode, outDevices, vddNode: index.get('vdd')!, vssNode: index.get('vss')!, rootCurrent, guessOnly };
   const fed = measure ? g.parent.get(measure.mirror) : undefined;
   if (fed) {
     const k = key(fed.mirror, fed.output);
@@ -173,6 +177,7 @@ export function outputCurrentOf(j: JointCircuit, k: string): number {
 function jointGuess(
   spec: ResolvedSpec, g: NetworkGroup, members: JointMember[], names: string[], index: Map<string, number>,
   fixedV: Float64Array, nFree: number, v: Float64Array, devices: DeviceElement[] | readonly unknown[], rootStart: number,
+  only?: ReadonlySet<number>,
 ): void {
   const { vdd, vss } = spec.supplies;
   const span = vdd - vss;
@@ -191,6 +196,7 @@ function jointGuess(
   }
   for (let n = members.length - 1; n >= 0; n--) {
     const mem = members[n]!;
+    if (only && !only.has(mem.index)) continue;
     const m = mem.mirror;
     const rail = mem.sign > 0 ? vss : vdd;
     const devByName = new Map<string, DeviceElement>();

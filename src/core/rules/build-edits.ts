@@ -36,8 +36,8 @@ export function buildEdits(parsed: ParsedSpec, replacements: TextEdit[], inserts
 function insertLocally(frags: MirrorFragments, parsed: ParsedSpec, log: EditLog, ins: KeyInsert): TextEdit[] | undefined {
   const [root, index] = ins.parent;
   if (root !== 'mirrors' || typeof index !== 'number') return undefined;
-  if (!frags.holds(index, log.edits())) return undefined;
-  const frag = frags.read(log.text, index);
+  // The log's edits on the original make its text: the item is read from them alone.
+  const frag = frags.readEdits(index, log.edits());
   const style = styleOf(parsed);
   if (!frag || !style) return undefined;
   return insertKeyEdits(frag.parsed, ins.parent.slice(2), ins.key, ins.text, style).map((e) => ({ newText: e.newText, range: linesDown(e.range, frag.line) }));

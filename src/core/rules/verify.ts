@@ -12,7 +12,7 @@
  * what lies outside every item (`recheckContext`), and for a linked mirror on its network: a `Rechecks` store kept across analyses of
  * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
-import type { MirrorReport, ResolvedSpec, TextEdit } from '../types';
+import type { MirrorReport, Requirements, ResolvedSpec, TextEdit } from '../types';
 import { fromRead, looksJson, type ParsedSpec } from '../spec/index';
 import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
@@ -58,6 +58,16 @@ function reportsOfMirror(spec: ResolvedSpec, mirrorIndex: number): MirrorReport[
     out.push(r);
   }
   return out;
+}
+
+/** Whether the re-check's measurements of mirror `i` (reportsOfMirror) read its network beyond
+ *  the mirror handed on: a drift figure a requirement asks for is measured through the joint
+ *  circuit of the spec's described networks (analysis/measure.ts, network/drift.ts). */
+function readsNetwork(spec: ResolvedSpec, i: number): boolean {
+  const m = mirrorAt(spec, i);
+  if (!m) return true;
+  const asks = (r: Requirements | undefined) => r?.tc !== undefined || r?.noise !== undefined || r?.supplySensitivity !== undefined;
+  return m.kind === 'netlist' ? asks(m.require) : m.outputs.some((o) => asks(o.require));
 }
 
 /** A fix whose re-solve puts a square-law device below IC 1, where the numbers that verified it are not true. */
@@ -244,7 +254,7 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   if (!frags || !isRecord(data) || !Array.isArray(data.mirrors) || !(base instanceof YamlSourceMap)) return WHOLE;
   if (rc.parsed.findings.some((f) => f.severity === 'error') || data.mirrors.length !== rc.spec.mirrors.length) return WHOLE;
   if (!frags.holds(i, plan.edits)) return WHOLE;
-  const frag = frags.read(text, i);
+  const frag = frags.readEdits(i, plan.edits);
   const span = frags.lineSpan(i);
   if (!frag || !span) return WHOLE;
   const sink = new FindingSink(base);
@@ -252,11 +262,14 @@ function recheckMirror(rc: RuleContext, plan: FixPlan, text: string, detect: Det
   validateSchema({ ...data, mirrors: [frag.data] }, sink);
   if (sink.errorCount > 0) return undefined;
   const items = data.mirrors.map((m: unknown, k: number) => (k === i ? frag.data : m));
-  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i }, rc.parsed.tables);
+  const read = elaborate({ ...data, mirrors: items }, sink, { items: data.mirrors, mirrors: rc.spec.mirrors, except: i, relink: true }, rc.parsed.tables);
   if (!read || sink.errorCount > 0 || read.mirrors.length !== rc.spec.mirrors.length) return undefined;
   // A linked mirror is re-solved with its whole network, as the whole-file re-read solves it (its
   // findings need no chain sigma), from the analysis's own solve of it (network/edited.ts).
-  const spec = solveEditedNetworks(applyDesignTargets(provisionalLinks({ ...read, limits: rc.spec.limits }), i).spec, i, rc.spec);
+  // Unless its measurements read the network (a drift requirement), only this mirror is handed on.
+  const whole = readsNetwork(read, i);
+  const linked = provisionalLinks({ ...read, limits: rc.spec.limits }, whole ? {} : { only: i });
+  const spec = solveEditedNetworks(applyDesignTargets(linked, i).spec, i, rc.spec, whole ? {} : { only: 'edited' });
   const reports = reportsOfMirror(spec, i);
   if (!reports) return undefined;
   // A solve its time budget decided is not kept for another analysis (analysis/repeats.ts).

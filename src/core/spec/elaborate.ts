@@ -12,7 +12,7 @@ import { MIRROR_KINDS, type MirrorKind } from '../kinds/names';
 import { readCorners } from './corners';
 import type { FindingSink } from './findings';
 import { readTemplateMirror } from './mirror';
-import { checkLinks, fedOutputs } from './links';
+import { checkLinks, fedOutputs, relinkEdited, sameLinkShape } from './links';
 import { readFlavour } from './flavour';
 import { readNetlistMirror } from './netlist';
 import { isRecord, resolveParams } from './params';
@@ -29,14 +29,34 @@ export interface ElaborateReuse {
   items: readonly unknown[];
   mirrors: readonly ResolvedMirror[];
   except: number;
+  /**
+   * `mirrors` are an error-free spec's own (links resolved, fed outputs marked) and the caller
+   * counts only the errors it is told (a fix's re-check): when item `except` names, types and
+   * links as before and every other item is the very one, only that mirror's links are taken
+   * again (spec/links.ts `relinkEdited`), not every link of the file checked again.
+   */
+  relink?: boolean;
+}
+
+/** The mirror at `except` as `reuse` had it, when the re-read item links exactly as before and
+ *  every other item is the very one (`ElaborateReuse.relink`). */
+function relinkable(reuse: ElaborateReuse | undefined, list: readonly unknown[] | undefined): ResolvedMirror | undefined {
+  if (!reuse?.relink || !list || list.length !== reuse.items.length || list.length !== reuse.mirrors.length) return undefined;
+  const i = reuse.except;
+  const before = reuse.mirrors[i];
+  if (!before || before.path[1] !== i || !sameLinkShape(list[i], reuse.items[i])) return undefined;
+  for (let k = 0; k < list.length; k++) if (k !== i && (list[k] !== reuse.items[k] || reuse.mirrors[k]!.path[1] !== k)) return undefined;
+  return before;
 }
 
 /** Device types a bipolar reference takes beyond its own: the closing mirror's other polarity
  *  (PNP on an NPN cell) and its MOSFET start-up device (nmos for npn). A MOSFET reference's other
  *  polarity keeps borrowing the written one as before. */
-function borrowedTypes(m: TemplateMirror): DeviceType[] {
+const NONE: readonly DeviceType[] = [];
+
+function borrowedTypes(m: TemplateMirror): readonly DeviceType[] {
   const loop = KINDS[m.kind].loop;
-  if (!loop || !isBipolarType(m.type)) return [];
+  if (!loop || !isBipolarType(m.type)) return NONE;
   const out: DeviceType[] = [];
   if (Object.values(KINDS[m.kind].reference).some((c) => c.other)) out.push(m.type === 'npn' ? 'pnp' : 'npn');
   if (m.startup) out.push(m.type === 'npn' ? 'nmos' : 'pmos');
@@ -100,11 +120,16 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
 
   const mirrors: ResolvedMirror[] = [];
   const used = new Map<DeviceType, string>();  // device type → first mirror using it
+  const useType = (t: DeviceType, name: string): void => { if (!used.has(t)) used.set(t, name); };
   if (data.mirrors === undefined) missing(sink, [], 'mirrors', ' (the list of current mirrors)');
   const list = data.mirrors === undefined ? [] : Array.isArray(data.mirrors) ? data.mirrors : undefined;
   if (!list) sink.error('wrong-type', `\`mirrors\` must be a list; got ${typeName(data.mirrors)}`, ['mirrors'], undefined, 'type');
   const names = new Map<string, number>();
-  const fed = fedOutputs(data);
+  const before = relinkable(reuse, list);
+  // Which outputs some link feeds (their `output.v` is optional), found when a mirror is read.
+  let fed: Set<string> | undefined;
+  const isFed = (i: number, j: number): boolean => (before && i === reuse!.except ? before.kind !== 'netlist' && before.outputs[j]?.feeds !== undefined
+    : (fed ??= fedOutputs(data)).has(`${i}:${j}`));
   (list ?? []).forEach((item: unknown, i: number) => {
     const path = ['mirrors', i];
     const known = reuse && i !== reuse.except && reuse.items[i] === item ? reuse.mirrors[i] : undefined;
@@ -112,8 +137,11 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
       const first = names.get(known.name);
       if (first !== undefined) sink.error('duplicate-name', `mirror name \`${known.name}\` is already used by mirror ${first + 1}; names must be unique`, [...path, 'name']);
       else names.set(known.name, i);
-      const types = known.kind === 'netlist' ? known.devices.map((d) => d.type) : [...(known.device ? [] : [known.type]), ...borrowedTypes(known)];
-      for (const t of types) if (!used.has(t)) used.set(t, known.name);
+      if (known.kind === 'netlist') for (const d of known.devices) useType(d.type, known.name);
+      else {
+        if (!known.device) useType(known.type, known.name);
+        for (const t of borrowedTypes(known)) useType(t, known.name);
+      }
       mirrors.push(known);
       return;
     }
@@ -150,13 +178,13 @@ export function elaborate(data: unknown, sink: FindingSink, reuse?: ElaborateReu
     if (flavour === null) return;
     if (!flavour && !used.has(type)) used.set(type, name);
     const params = flavour ? proc?.devices?.[flavour]?.params : type === 'nmos' || type === 'pmos' ? proc?.[type] : undefined;
-    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, params, supplies, (j) => fed.has(`${i}:${j}`));
+    const tm = readTemplateMirror(scope, m, i, { name, kind, type }, params, supplies, (j) => isFed(i, j));
     if (tm && flavour) tm.device = flavour;
     if (tm) for (const t of borrowedTypes(tm)) if (!used.has(t)) used.set(t, name);
     if (tm) mirrors.push(tm);
   });
 
-  const linked = checkLinks(data, mirrors, sink);
+  const linked = (before && relinkEdited(data, mirrors, reuse!.except, before, sink)) || checkLinks(data, mirrors, sink);
 
   // Each polarity a mirror uses must have parameters; an unused one borrows the other's so the
   // resolved process is complete (nothing reads it).

@@ -190,7 +190,7 @@ export class MirrorFragments {
   }
 
   /** True when every edit lies inside mirror `index`'s item (from its first key to its last line's end). */
-  holds(index: number, edits: TextEdit[]): boolean {
+  holds(index: number, edits: readonly TextEdit[]): boolean {
     const sp = this.spans[index];
     if (!sp) return false;
     return edits.every((e) => this.lines.offset(e.range.start) >= sp.content && this.lines.offset(e.range.end) <= sp.end &&
@@ -209,8 +209,25 @@ export class MirrorFragments {
     if (end < sp.content || text.slice(0, sp.content) !== this.original.slice(0, sp.content) || text.slice(end) !== this.original.slice(sp.end)) {
       return undefined;
     }
+    return this.readItem(sp, text.slice(sp.content, end), end);
+  }
+
+  /**
+   * Mirror `index` of the original with `edits` applied, each inside that item (`holds`, checked):
+   * what `read` reads of the edited text, made from the item alone (a big file's text outside it
+   * is neither built nor compared). Undefined as `read`.
+   */
+  readEdits(index: number, edits: readonly TextEdit[]): Fragment | undefined {
+    const sp = this.spans[index];
+    if (!sp || !this.holds(index, edits)) return undefined;
+    const item = this.itemTexts(index, edits);
+    return item && this.readItem(sp, item.edited, sp.content + item.edited.length);
+  }
+
+  /** Item `sp` read alone from its edited text `item` (from its first key), which ends at `end` of the edited text. */
+  private readItem(sp: ItemSpan, item: string, end: number): Fragment | undefined {
     const indent = sp.content - sp.lineStart;
-    const body = ' '.repeat(indent) + text.slice(sp.content, end);
+    const body = ' '.repeat(indent) + item;
     for (let at = body.indexOf('\n'); at >= 0; at = body.indexOf('\n', at + 1)) {
       let i = at + 1;
       while (i < body.length && body.charCodeAt(i) === 32) i++;
@@ -343,8 +360,12 @@ export class SplicedSourceMap implements SourceMap {
     const last = own ? f.line + own.lineCount - 1 : -1;
     if (own && range.start.line >= f.line && range.end.line <= last) {
       // The fragment's lines are the edited text's, offsets shifted by its start (a blanked prefix keeps its length).
-      const at = (p: Range['start']): number => own.offset({ line: p.line - f.line, character: p.character }) + f.start;
-      return this.edited.slice(at(range.start), at(range.end));
+      const at = (p: Range['start']): number => own.offset({ line: p.line - f.line, character: p.character });
+      const a = at(range.start), body = f.parsed.text;
+      // Past that prefix they are its very characters: sliced there, the big edited text is not flattened.
+      let prefix = 0;
+      while (range.start.line === f.line && body.charCodeAt(prefix) === 32) prefix++;
+      return a >= prefix ? body.slice(a, at(range.end)) : this.edited.slice(a + f.start, at(range.end) + f.start);
     }
     if (own && range.end.line < f.line) return this.base.text(range);
     if (own && range.start.line > last) return this.base.text(linesDown(range, -this.lineDelta));

@@ -28,6 +28,50 @@ export function fedOutputs(data: unknown): Set<string> {
   return fed;
 }
 
+/** Item `a` names, types and links exactly as item `b` does, as the link checks read them (its
+ *  name, whether it is a netlist, its type, its outputs' names, its `from`): in the same list,
+ *  every link resolves alike with either. */
+export function sameLinkShape(a: unknown, b: unknown): boolean {
+  if (!isRecord(a) || !isRecord(b)) return false;
+  if (typeof a.name !== 'string' || a.name !== b.name || a.type !== b.type || (a.kind === 'netlist') !== (b.kind === 'netlist')) return false;
+  if (typeof a.type !== 'string' || typeof a.kind !== 'string' || typeof b.kind !== 'string') return false;
+  const outs = (x: Record<string, unknown>) => (Array.isArray(x.outputs) ? x.outputs.map((o: unknown) => (isRecord(o) && typeof o.name === 'string' ? o.name : '')).join('\u0000') : undefined);
+  if (outs(a) !== outs(b)) return false;
+  const from = (x: Record<string, unknown>) => (isRecord(x.input) ? [typeof x.input.from === 'string', x.input.from] : [false, undefined]);
+  const [fa, pa] = from(a), [fb, pb] = from(b);
+  return fa === fb && pa === pb;
+}
+
+/**
+ * The links of `mirrors` where only mirror `edited` was read again, from an item of the same link
+ * shape (`sameLinkShape`) as the one `before` (that mirror as an error-free spec resolved it, the
+ * other mirrors being that spec's own): checkLinks would resolve every link as it did there, so
+ * the edited mirror takes `before`'s link and fed outputs, and the others stay as they are. Only
+ * the edited mirror's own `link-output-v` warnings are given again. Undefined when the edited
+ * mirror was not read (checkLinks then says why).
+ */
+export function relinkEdited(data: unknown, mirrors: ResolvedMirror[], edited: number, before: ResolvedMirror, sink: FindingSink): ResolvedMirror[] | undefined {
+  const at = mirrors[edited]?.path[1] === edited ? edited : mirrors.findIndex((x) => x.path[1] === edited);
+  const m = mirrors[at];
+  if (!m || m.kind === 'netlist' || before.kind === 'netlist' || m.outputs.length !== before.outputs.length) return undefined;
+  const link = linkOf(before);
+  if ((m.input.kind === 'link') !== (link !== undefined)) return undefined;
+  const items = isRecord(data) && Array.isArray(data.mirrors) ? data.mirrors : [];
+  const outputs = m.outputs.map((o, j) => {
+    const feeds = before.outputs[j]!.feeds;
+    if (feeds === undefined) return o;
+    const fed = mirrors[feeds]?.path[1] === feeds ? mirrors[feeds] : mirrors.find((x) => x.path[1] === feeds);
+    if (writtenV(items[edited], o.path.length > m.path.length ? j : undefined)) {
+      sink.warning('link-output-v', `\`output.v\` is not used: this output feeds \`${fed?.name ?? `mirror ${feeds + 1}`}\`, so its voltage is the solved input voltage of that mirror`, [...o.path, 'output', 'v'], 'key');
+    }
+    return { ...o, feeds };
+  });
+  const input = m.input.kind === 'link' && link ? { ...m.input, mirror: link.mirror, output: link.output } : m.input;
+  const out = mirrors.slice();
+  out[at] = { ...m, input, outputs };
+  return out;
+}
+
 function linkOf(m: ResolvedMirror): LinkInput | undefined {
   return m.kind !== 'netlist' && m.input.kind === 'link' ? m.input : undefined;
 }
