@@ -9,9 +9,9 @@
  */
 import * as vscode from 'vscode';
 import type { HostAnalyzeOptions } from './workerProtocol';
-import type { FileReport, Finding } from '../core/types';
+import type { FileReport } from '../core/types';
 import type { Analyzer, EarlyFindings } from './analyzer';
-import { toDiagnostics } from './convert';
+import type { SpecDiagnostics } from './specDiagnostics';
 import { readSettings } from './settings';
 import { isSpecDocument } from './specDocuments';
 import { PANEL_VIEW_TYPE } from './panel';
@@ -66,7 +66,7 @@ export class AnalysisManager implements vscode.Disposable {
 
   constructor(
     private readonly analyzer: Analyzer,
-    private readonly diagnostics: vscode.DiagnosticCollection,
+    private readonly diagnostics: SpecDiagnostics,
     private readonly log: vscode.LogOutputChannel,
   ) {
     this.disposables.push(
@@ -208,12 +208,10 @@ export class AnalysisManager implements vscode.Disposable {
   /** Diagnostics of `uri` and, for a folder, of every file below it. */
   private forgetUnder(uri: vscode.Uri): void {
     const prefix = uri.toString().replace(/\/?$/, '/');
-    const gone: vscode.Uri[] = [];
-    this.diagnostics.forEach((u) => {
+    for (const u of this.diagnostics.uris()) {
       const k = u.toString();
-      if (k === uri.toString() || k.startsWith(prefix)) gone.push(u);
-    });
-    for (const u of gone) this.diagnostics.delete(u);
+      if (k === uri.toString() || k.startsWith(prefix)) this.diagnostics.delete(u);
+    }
   }
 
   private activeChanged(editor: vscode.TextEditor | undefined): void {
@@ -245,11 +243,9 @@ export class AnalysisManager implements vscode.Disposable {
     const version = doc.version;
     const timing: AnalysisTiming = { version, startedAt: performance.now() };
     // The diagnostics as soon as the findings arrive, on the terms the report is published on.
-    let shown: Finding[] | undefined;
     const early: EarlyFindings = (findings, ms, at) => {
       if (this.entries.get(doc.uri.toString()) !== e || (e.pinnedVersion !== undefined && e.pinnedVersion >= version)) return;
-      this.diagnostics.set(doc.uri, toDiagnostics({ findings }, doc.uri));
-      shown = findings;
+      this.diagnostics.set(doc.uri, findings);
       timing.diagnosticsAt = performance.now();
       timing.workerMs = ms;
       // The worker's clock to this one's: both count from the epoch.
@@ -275,18 +271,18 @@ export class AnalysisManager implements vscode.Disposable {
     // A Monte Carlo report of this text (or newer) stays: it holds everything this one does.
     if (e.pinnedVersion !== undefined && e.pinnedVersion >= version) return e.report;
     e.pinnedVersion = undefined;
-    // Its findings set the diagnostics already, unless the report is another (the worker's
-    // budget ran out between the two messages).
-    this.publish(doc.uri, e, report, version, curve, shown !== undefined && sameDiagnostics(shown, report.findings));
+    // Its findings set the diagnostics already (handing VS Code nothing again), unless the report
+    // is another (the worker's budget ran out between the two messages).
+    this.publish(doc.uri, e, report, version, curve);
     if (e.timing === timing) timing.reportAt = performance.now();
     return report;
   }
 
-  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean, diagnosticsSet = false): void {
+  private publish(uri: vscode.Uri, e: Entry, report: FileReport, version: number, curve: boolean): void {
     e.report = report;
     e.reportVersion = version;
     e.hasCurve = curve;
-    if (!diagnosticsSet) this.diagnostics.set(uri, toDiagnostics(report, uri));
+    this.diagnostics.set(uri, report.findings);
     this.count++;
     this.emitter.fire({ uri, report, version });
   }
@@ -296,16 +292,6 @@ export class AnalysisManager implements vscode.Disposable {
     this.entries.clear();
     for (const d of this.disposables.splice(0)) d.dispose();
   }
-}
-
-/** Two lists of findings give the same diagnostics (what toDiagnostics reads of each). */
-function sameDiagnostics(a: Finding[], b: Finding[]): boolean {
-  const at = (r: Finding['range']): string => `${r.start.line}:${r.start.character}-${r.end.line}:${r.end.character}`;
-  return a.length === b.length && a.every((f, k) => {
-    const g = b[k]!;
-    return f.code === g.code && f.severity === g.severity && f.message === g.message && at(f.range) === at(g.range) &&
-      (f.related ?? []).length === (g.related ?? []).length && (f.related ?? []).every((r, j) => r.message === g.related![j]!.message && at(r.range) === at(g.related![j]!.range));
-  });
 }
 
 function panelIsOpen(): boolean {

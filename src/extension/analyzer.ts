@@ -14,6 +14,7 @@ import type { HostAnalyzeOptions } from './workerProtocol';
 import type { FileReport, Finding } from '../core/types';
 import type { FixAllResult } from '../core/rules/fix-all';
 import { isWorkerResponse, type Job, type WorkerRequest, type WorkerResponse } from './workerProtocol';
+import { expandParts, SentParts } from './diagnosticParts';
 
 export interface Analyzer {
   /** Resolves undefined when a newer request for `key` superseded this one. `onProgress` hears a
@@ -82,6 +83,8 @@ export class WorkerAnalyzer implements Analyzer {
   /** Fires when the running job is over its budget, or when a worker with jobs waiting has
    *  said nothing for a budget (then the worker itself is stuck). */
   private watchdog: NodeJS.Timeout | undefined;
+  /** The parts of each key's last findings message from the current worker (`diagnosticParts.ts`). */
+  private readonly received = new SentParts();
   /** Analysis time of the last finished job inside the worker (ms). */
   lastJobMs = 0;
 
@@ -130,6 +133,7 @@ export class WorkerAnalyzer implements Analyzer {
   private ensureWorker(): Worker {
     if (this.worker) return this.worker;
     const w = new Worker(this.workerPath, { name: 'qpoint-analysis' });
+    this.received.clear();
     // A replaced worker may still have answers on their way: its jobs were handed to the new one.
     w.on('message', (m: unknown) => { if (this.worker === w) this.receive(m); });
     w.on('error', (e) => this.failAll(w, `analysis worker failed: ${e.message}`));
@@ -153,10 +157,21 @@ export class WorkerAnalyzer implements Analyzer {
       case 'progress':
         this.inflight.get(m.seq)?.onProgress?.(m.done, m.total);
         return;
-      case 'findings':
-        // The report follows at once: the job still runs for the watchdog.
-        this.inflight.get(m.seq)?.onFindings?.(m.findings, m.ms, { started: m.startedAt, sent: m.sentAt, received: performance.timeOrigin + performance.now() });
+      case 'findings': {
+        // The report follows at once: the job still runs for the watchdog. Its parts are read
+        // whether or not anyone waits for them: the next message of the key may refer to them.
+        const received = performance.timeOrigin + performance.now();
+        const last = m.base === undefined ? undefined : this.received.get(m.key);
+        const parts = expandParts(m.parts, last?.seq === m.base ? last?.parts : undefined);
+        if (!parts) {
+          this.received.delete(m.key);
+          this.log(`findings of ${m.key} referred to a message not received; the report brings them`);
+          return;
+        }
+        this.received.set(m.key, m.seq, parts);
+        this.inflight.get(m.seq)?.onFindings?.(parts.flat(), m.ms, { started: m.startedAt, sent: m.sentAt, received });
         return;
+      }
       case 'superseded':
         this.settle(m.seq, undefined);
         return;

@@ -9,7 +9,8 @@ import { schematicsOf } from '../core/schematic';
 import { networkTreesOf } from '../core/network-tree';
 import type { AnalysisManager } from './analysisManager';
 import type { Analyzer } from './analyzer';
-import { toDiagnostics, toWorkspaceEdit } from './convert';
+import { toWorkspaceEdit } from './convert';
+import type { SpecDiagnostics } from './specDiagnostics';
 import { minimalEdit } from '../core/text/edits';
 import { countFindings } from './present';
 import { isSpecDocument, SPEC_GLOBS } from './specDocuments';
@@ -24,7 +25,7 @@ export interface CommandContext {
   version: string;
   manager: AnalysisManager;
   analyzer: Analyzer;
-  diagnostics: vscode.DiagnosticCollection;
+  diagnostics: SpecDiagnostics;
   log: vscode.LogOutputChannel;
 }
 
@@ -61,7 +62,7 @@ export async function checkWorkspace(c: CommandContext): Promise<CheckSummary> {
           } else {
             const text = new TextDecoder('utf-8').decode(await vscode.workspace.fs.readFile(uri));
             report = await c.analyzer.analyze(`check:${uri.toString()}`, text, rel, c.manager.optionsFor(uri, false));
-            if (report) c.diagnostics.set(uri, toDiagnostics(report, uri));
+            if (report) c.diagnostics.set(uri, report.findings);
           }
         } catch (err) {
           c.log.error(`could not check ${rel}: ${String(err)}`);

@@ -11,11 +11,12 @@ import { MonteCarloCommand, RUN_MONTE_CARLO_COMMAND } from './monteCarlo';
 import { registerPanel } from './panel';
 import { OPEN_PANEL_COMMAND, registerProviders } from './providers';
 import { registerStatusBar } from './statusBar';
+import { SpecDiagnostics } from './specDiagnostics';
 
 export function activate(context: vscode.ExtensionContext): QpointApi {
   const t0 = performance.now();
   const log = vscode.window.createOutputChannel('qpoint', { log: true });
-  const diagnostics = vscode.languages.createDiagnosticCollection('qpoint');
+  const diagnostics = new SpecDiagnostics();
   const analyzer = new WorkerAnalyzer(vscode.Uri.joinPath(context.extensionUri, 'dist', 'worker.js').fsPath,
     { log: (m) => log.warn(m) });
   const manager = new AnalysisManager(analyzer, diagnostics, log);

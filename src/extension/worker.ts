@@ -12,6 +12,7 @@ import { fixAll } from '../core/rules/fix-all';
 import { AnalysisCache } from '../core/analysis-cache';
 import { isWorkerRequest, type WorkerRequest, type WorkerResponse } from './workerProtocol';
 import { readTables, type TableCache } from '../node/tables';
+import { compactParts, SentParts } from './diagnosticParts';
 
 const port = parentPort;
 if (!port) throw new Error('qpoint worker: must run in a worker thread');
@@ -31,6 +32,9 @@ function cacheOf(key: string): AnalysisCache {
   return c;
 }
 let scheduled = false;
+
+/** What each key's last findings message carried (the host keeps the same). */
+const sent = new SentParts();
 
 function send(m: WorkerResponse): void {
   port!.postMessage(m);
@@ -85,9 +89,13 @@ function drain(): void {
   const startedAt = performance.timeOrigin + performance.now();
   const answer = run(req);
   // The findings first: the editor's diagnostics do not wait for the whole report to be copied.
+  // By part, the parts the host has from this key's last findings message as null.
   if (answer.type === 'report') {
     const findings = answer.report.findings.map(({ fixes: _fixes, ...f }) => f);
-    send({ type: 'findings', seq: answer.seq, key: answer.key, findings, ms: answer.ms, startedAt, sentAt: performance.timeOrigin + performance.now() });
+    const last = sent.get(answer.key);
+    const { parts, message } = compactParts(findings, last?.parts);
+    sent.set(answer.key, answer.seq, parts);
+    send({ type: 'findings', seq: answer.seq, key: answer.key, parts: message, ...(last ? { base: last.seq } : {}), ms: answer.ms, startedAt, sentAt: performance.timeOrigin + performance.now() });
   }
   send(answer);
   schedule();

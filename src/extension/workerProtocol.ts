@@ -5,7 +5,8 @@
  * Pure: no `vscode`, no Node.
  */
 import type { AnalyzeOptions } from '../core/analyze';
-import type { FileReport, Finding } from '../core/types';
+import type { FileReport } from '../core/types';
+import type { FindingParts } from './diagnosticParts';
 import type { FixAllResult } from '../core/rules/fix-all';
 
 export type Job = 'analyze' | 'fixAll';
@@ -29,10 +30,12 @@ export type WorkerResponse =
   | { type: 'started'; seq: number; key: string }
   /** An analysis's findings without their fixes, sent just before its report: the diagnostics
    *  need only these, and they cross the thread boundary in a fraction of the report's time (a
-   *  500-mirror report is over a megabyte to copy). `ms`: the analysis inside the worker;
+   *  500-mirror report is over a megabyte to copy). By part (diagnosticParts.ts: blocks of
+   *  mirrors), a part the same as in this key's findings message `base` sent as `null`: a
+   *  keystroke in one mirror sends that mirror's part. `ms`: the analysis inside the worker;
    *  `startedAt`, `sentAt`: when the worker began it and posted this, in ms since the epoch
    *  (`performance.timeOrigin + performance.now()`, comparable across threads). */
-  | { type: 'findings'; seq: number; key: string; findings: Finding[]; ms: number; startedAt: number; sentAt: number }
+  | { type: 'findings'; seq: number; key: string; parts: FindingParts; base?: number; ms: number; startedAt: number; sentAt: number }
   | { type: 'report'; seq: number; key: string; report: FileReport; ms: number }
   | { type: 'fixed'; seq: number; key: string; result: FixAllResult; ms: number }
   | { type: 'superseded'; seq: number; key: string }
@@ -52,7 +55,7 @@ export function isWorkerRequest(m: unknown): m is WorkerRequest {
 export function isWorkerResponse(m: unknown): m is WorkerResponse {
   if (!isRecord(m) || typeof m.seq !== 'number' || typeof m.key !== 'string') return false;
   switch (m.type) {
-    case 'findings': return Array.isArray(m.findings) && typeof m.ms === 'number' && typeof m.startedAt === 'number' && typeof m.sentAt === 'number';
+    case 'findings': return Array.isArray(m.parts) && (m.base === undefined || typeof m.base === 'number') && typeof m.ms === 'number' && typeof m.startedAt === 'number' && typeof m.sentAt === 'number';
     case 'report': return isRecord(m.report) && typeof m.ms === 'number';
     case 'fixed': return isRecord(m.result) && typeof m.ms === 'number';
     case 'started':

@@ -12,6 +12,9 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { isWorkerRequest, isWorkerResponse } from '../../src/extension/workerProtocol';
 import { D_SPEC, trackedAnalyzers, WORKER } from './worker-fixtures';
+import { splitParts } from '../../src/extension/diagnosticParts';
+import { faultySpecText } from '../../scripts/spec-texts';
+import type { Finding } from '../../src/core/types';
 
 const make = trackedAnalyzers();
 
@@ -25,6 +28,8 @@ describe('worker protocol guards', () => {
     expect(isWorkerResponse({ type: 'report', seq: 1, key: 'k', ms: 1 })).toBe(false);
     expect(isWorkerResponse({ type: 'superseded', seq: 1 })).toBe(false);
     expect(isWorkerResponse({ type: 'failed', seq: 1, key: 'k', message: 3 })).toBe(false);
+    expect(isWorkerResponse({ type: 'findings', seq: 1, key: 'k', parts: [null, []], base: 0, ms: 1, startedAt: 0, sentAt: 0 })).toBe(true);
+    expect(isWorkerResponse({ type: 'findings', seq: 1, key: 'k', parts: [], base: '0', ms: 1, startedAt: 0, sentAt: 0 })).toBe(false);
   });
 });
 
@@ -53,6 +58,25 @@ describe('WorkerAnalyzer with dist/worker.js', () => {
     // by √2, so the check is the input branch: iin equals the ideal 200 µA source.
     expect(r3!.mirrors[0].iin).toBeCloseTo(200e-6, 12);
     expect(r4!.mirrors[0].iout).toBeCloseTo(103.9103e-6, 9);
+  });
+
+  it('hands over the findings before the report, the unchanged parts read from the last message', async () => {
+    const a = make();
+    const text = faultySpecText(40);
+    const early: Finding[][] = [];
+    const onFindings = (f: Finding[]): void => { early.push(f); };
+    const r1 = await a.analyze('doc', text, 'big.bias.yaml', {}, undefined, onFindings);
+    // Mirror 35 (the second part of 32 mirrors) typed over.
+    const at = text.indexOf('input: ', text.indexOf('_35\n'));
+    const r2 = await a.analyze('doc', `${text.slice(0, at)}input: 27u${text.slice(text.indexOf('\n', at))}`, 'big.bias.yaml', {}, undefined, onFindings);
+    expect(early.length).toBe(2);
+    const bare = (fs: Finding[]) => splitParts(fs).flat().map(({ fixes: _fixes, ...f }) => f);
+    expect(early[0]).toEqual(bare(r1!.findings));
+    expect(early[1]).toEqual(bare(r2!.findings));
+    // The first part came from the first message: the same objects.
+    const first = splitParts(early[0]!)[0]!;
+    expect(first.length).toBeGreaterThan(0);
+    expect(splitParts(early[1]!)[0]!.every((f, k) => f === first[k])).toBe(true);
   });
 
   it('replaces a hung worker and fails only the job that hung', async () => {

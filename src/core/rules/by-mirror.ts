@@ -184,7 +184,8 @@ export function findingsByMirror(rc: RuleContext, run: MirrorRun): Finding[] | u
   if (!groups) return undefined;
   const lines = LineIndex.of(rc.parsed.text);
   const header = rc.parsed.text.slice(0, lines.offset({ line: top.first, character: 0 }));
-  const context = digest(canonicalJson([recheckContext(rc), header, run.settings]));
+  // recheckContext(rc), computed once for the run's local re-checks.
+  const context = digest(canonicalJson([run.recheckStore.context, header, run.settings]));
   const linked = linkedInputs(rc.spec);
   const errors = new Set<string>();
   for (const g of groups) {
