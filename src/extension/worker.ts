@@ -90,12 +90,13 @@ function drain(): void {
   const answer = run(req);
   // The findings first: the editor's diagnostics do not wait for the whole report to be copied.
   // By part, the parts the host has from this key's last findings message as null.
+  // The fixes stay behind (they come with the report), copied off the parts sent only.
   if (answer.type === 'report') {
-    const findings = answer.report.findings.map(({ fixes: _fixes, ...f }) => f);
     const last = sent.get(answer.key);
-    const { parts, message } = compactParts(findings, last?.parts);
+    const { parts, message } = compactParts(answer.report.findings, last?.parts);
     sent.set(answer.key, answer.seq, parts);
-    send({ type: 'findings', seq: answer.seq, key: answer.key, parts: message, ...(last ? { base: last.seq } : {}), ms: answer.ms, startedAt, sentAt: performance.timeOrigin + performance.now() });
+    const bare = message.map((p) => p && p.map(({ fixes: _fixes, ...f }) => f));
+    send({ type: 'findings', seq: answer.seq, key: answer.key, parts: bare, ...(last ? { base: last.seq } : {}), ms: answer.ms, startedAt, sentAt: performance.timeOrigin + performance.now() });
   }
   send(answer);
   schedule();
