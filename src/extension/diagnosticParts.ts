@@ -46,28 +46,22 @@ function sameRange(a: Range, b: Range): boolean {
 
 /** Two lists of findings give the same diagnostics (what `toDiagnostics` reads of each). */
 export function sameDiagnostics(a: readonly Finding[], b: readonly Finding[]): boolean {
-  return a.length === b.length && a.every((f, k) => {
-    const g = b[k]!;
-    if (f === g) return true;
-    const fr = f.related ?? [];
-    const gr = g.related ?? [];
-    return f.code === g.code && f.severity === g.severity && f.message === g.message && sameRange(f.range, g.range)
-      && fr.length === gr.length && fr.every((r, j) => r.message === gr[j]!.message && sameRange(r.range, gr[j]!.range));
-  });
+  return a.length === b.length && a.every((f, k) => sameFinding(f, b[k]!, false));
 }
 
 /** A file's findings as the worker sends them (without their fixes): by part, a part the same as
  *  in the last message of that file `null` (then the receiver reads it from that message). */
 export type FindingParts = (Finding[] | null)[];
 
-/** Two findings the same in everything a message carries (code, severity, message, path, ranges,
- *  related locations; not the fixes). */
-function sameFinding(f: Finding, g: Finding): boolean {
+/** Two findings the same in code, severity, message, ranges and related locations (what a
+ *  diagnostic shows), and with `paths` in their spec paths too (what a message carries; never
+ *  the fixes). */
+function sameFinding(f: Finding, g: Finding, paths: boolean): boolean {
   if (f === g) return true;
   const fr = f.related ?? [];
   const gr = g.related ?? [];
-  return f.code === g.code && f.severity === g.severity && f.message === g.message && samePath(f.path, g.path) && sameRange(f.range, g.range)
-    && fr.length === gr.length && fr.every((r, j) => r.message === gr[j]!.message && samePath(r.path, gr[j]!.path) && sameRange(r.range, gr[j]!.range));
+  return f.code === g.code && f.severity === g.severity && f.message === g.message && (!paths || samePath(f.path, g.path)) && sameRange(f.range, g.range)
+    && fr.length === gr.length && fr.every((r, j) => r.message === gr[j]!.message && (!paths || samePath(r.path, gr[j]!.path)) && sameRange(r.range, gr[j]!.range));
 }
 
 function samePath(a: Finding['path'], b: Finding['path']): boolean {
@@ -80,7 +74,7 @@ export function compactParts(findings: readonly Finding[], last: readonly Findin
   const parts = Array.from({ length: split.length }, (_, k) => split[k] ?? []);
   const message = parts.map((p, k) => {
     const was = last?.[k];
-    return was && was.length === p.length && p.every((f, j) => sameFinding(f, was[j]!)) ? null : p;
+    return was && was.length === p.length && p.every((f, j) => sameFinding(f, was[j]!, true)) ? null : p;
   });
   return { parts, message };
 }
