@@ -215,8 +215,12 @@ async function suite(folder: vscode.Uri): Promise<void> {
       assert(aside, `no "not solved" lens on line ${first + 1}: ${lenses.map((l) => `${l.range.start.line}:${l.command?.title}`).join(' | ')}`);
     } finally {
       await setText(editor, new vscode.Range(kindAt, kindAt.translate(0, 'wide-swng'.length)), 'wide-swing');
-      await waitFor('the typo\'s error to clear', () => !qpointDiagnostics(faultyUri)
-        .some((x) => x.severity === vscode.DiagnosticSeverity.Error && x.range.start.line === kindAt.line));
+      // The diagnostics arrive before the report (whose fixes the next check reads; a spec with an
+      // error has its fixes withheld): wait for the restored text's report too.
+      await waitFor('the typo\'s error to clear and the restored text\'s report', () => qp.lastTiming(faultyUri)?.version === doc.version
+        && qp.lastTiming(faultyUri)?.reportAt !== undefined && !qpointDiagnostics(faultyUri)
+        .some((x) => x.severity === vscode.DiagnosticSeverity.Error && x.range.start.line === kindAt.line),
+      20_000, [vscode.languages.onDidChangeDiagnostics, qp.onDidUpdate]);
     }
   });
 
