@@ -23,6 +23,7 @@ import { resistanceOf, resistorLaw } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { Workspace } from './workspace';
+import { shapedCircuit, shapeOf, type Shape } from './shapes';
 
 /** Suffix of a filtered gate line's node (`a~f` is node a seen through the filter). */
 const FILTERED = '~f';
@@ -226,16 +227,13 @@ export function buildTemplate(
   spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
   vbias: number | undefined, perturb?: PerturbationLike,
 ): MirrorCircuit {
-  const { vdd, vss } = spec.supplies;
-  const sign = polaritySign(m.type);
   const kind = KINDS[m.kind];
-  const b = new CircuitBuilder();
-  b.hold('vdd', vdd);
-  b.hold('vss', vss);
-  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
-  const measuredOut = wired.outNodes[outputIndex] ?? 'out';
-  if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
-  const c = b.build(measuredOut, sign, vss, vdd);
+  // A mirror of a shape built before in this spec takes that circuit, copied (shapes.ts); the
+  // first of a shape keeps its build and takes a copy too, so nothing changes the kept one.
+  const found = perturb ? undefined : shapeOf(spec, m, isBank(m), outputIndex, vbias);
+  let shape = found && 'known' in found ? found.known : undefined;
+  if (found && 'keep' in found) { shape = builtShape(spec, m, outputIndex, vout, vbias); found.keep(shape); }
+  const { c, wired } = shape ? { c: shapedCircuit(shape, m, outputIndex, vout), wired: shape.wired } : builtShape(spec, m, outputIndex, vout, vbias, perturb);
   const mc = templateCircuit(spec, m, c, wired, wired.byRole);
   // Every output is wired and held alike whichever is measured (its own output.v), so another
   // output's circuit differs only in which devices are measured and the output node.
@@ -264,6 +262,19 @@ export function buildTemplate(
     };
   }
   return mc;
+}
+
+/** Mirror `m` wired alone into a circuit of its own (its rails held). */
+function builtShape(spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number, vbias: number | undefined, perturb?: PerturbationLike): Shape {
+  const { vdd, vss } = spec.supplies;
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
+  const measuredOut = wired.outNodes[outputIndex] ?? 'out';
+  if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
+  const c = b.build(measuredOut, polaritySign(m.type), vss, vdd);
+  return { m, c, wired, outIdx: wired.outNodes.map((n) => c.nodeNames.indexOf(n)) };
 }
 
 /** The mirror circuit of `c`, wired by `wired`, its measured output's devices by role `byRole`:
