@@ -12,7 +12,8 @@
  */
 import type { MirrorOutput, ResolvedSpec, TemplateMirror } from '../types';
 import type { Circuit } from './circuit';
-import type { CircuitElement, DeviceElement } from './elements/element';
+import { mosWith, type CircuitElement, type DeviceElement } from './elements/element';
+import { copyDevice } from '../models/device';
 import type { WiredTemplate } from './templates';
 
 /** A shape's circuit as first built, the mirror it was built for, and where its outputs are held. */
@@ -93,8 +94,7 @@ export function shapedCircuit(s: Shape, m: TemplateMirror, outputIndex: number, 
   for (const e of c.elements) {
     switch (e.kind) {
       case 'mos': {
-        const x = Object.assign({}, e);
-        x.dev = Object.assign({}, e.dev);
+        const x = mosWith(e, copyDevice(e.dev));
         elements.push(x); devices.push(x);
         break;
       }
