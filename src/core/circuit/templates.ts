@@ -298,16 +298,21 @@ function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wire
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;
 
-  // Everything the guess needs that does not change between solves, gathered once.
-  const devByName = new Map(c.devices.map((x) => [x.name, x] as const));
-  const outIdx = outNodes.map((n) => index(n));
-  const vbIdx = kind.vbias ? index('vbias') : -1;
-  const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
-  const freeNames = c.nodeNames.slice(0, c.nFree);
+  // Everything the guess needs that does not change between solves, gathered at its first call
+  // (a bank's output whose circuit takes its first's solve never guesses).
   const span = Math.abs(other - rail);
-  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
+  const vbIdx = kind.vbias ? index('vbias') : -1;
+  let known: { g: GuessContext; outIdx: number[]; freeNames: string[] } | undefined;
+  const context = (): NonNullable<typeof known> => {
+    const devByName = new Map(c.devices.map((x) => [x.name, x] as const));
+    const outIdx = outNodes.map((n) => index(n));
+    const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
+    const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
+    return { g, outIdx, freeNames: c.nodeNames.slice(0, c.nFree) };
+  };
 
   const guess = (): void => {
+    const { g, outIdx, freeNames } = (known ??= context());
     // Node voltages in the polarity frame u = sign·(v − rail), then mapped back.
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;

@@ -202,21 +202,26 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
   const { sources } = parts;
   // Each element's sources are consecutive: one run per element, in the circuit's order.
   const runs: [number, number][] = [], byNode: number[][] = Array.from({ length: ws.nt }, () => []), always: number[] = [];
+  // Each run listed once per node its sources touch (`listed[k] === r + 1`: already on node k).
+  const listed = new Int32Array(ws.nt);
+  const list = (k: number, r: number): void => {
+    if (k < 0 || k >= ws.nt || listed[k] === r + 1) return;
+    listed[k] = r + 1;
+    byNode[k]!.push(r);
+  };
   for (let i = 0; i < sources.length;) {
     let e = i;
     while (e < sources.length && sources[e]!.element === sources[i]!.element) e++;
     const r = runs.length;
     runs.push([i, e]);
-    const nodes = new Set<number>();
     let finite = true;
     for (let q = i; q < e; q++) {
       const x = sources[q]!;
-      nodes.add(x.from); nodes.add(x.to);
+      list(x.from, r); list(x.to, r);
       if (!Number.isFinite(x.white) || !Number.isFinite(x.flicker)) finite = false;
     }
     // A source of infinite or undefined density is not silent even at zero gain (0·∞).
     if (!finite) always.push(r);
-    for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
   // Runs of one name each (joint element names carry their mirror's path): outputNoise then
