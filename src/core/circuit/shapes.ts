@@ -109,7 +109,10 @@ export function shapedCircuit(s: Shape, m: TemplateMirror, outputIndex: number, 
       default: elements.push(e);
     }
   }
-  const out: Circuit = Object.assign({}, c);
-  out.fixedV = fixedV; out.elements = elements; out.devices = devices; out.problems = c.problems.slice();
-  return out;
+  // Field by field, as CircuitBuilder.build makes it (Object.assign gives a property store of its own).
+  return {
+    nodeNames: c.nodeNames, nFree: c.nFree, fixedV, elements, devices, jacobian: c.jacobian, ordering: c.ordering,
+    hasCurrentSources: c.hasCurrentSources, outNode: c.outNode, outSign: c.outSign, vmid: c.vmid, vss: c.vss,
+    problems: c.problems.slice(),
+  };
 }

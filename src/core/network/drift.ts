@@ -126,15 +126,26 @@ function memberOf(j: JointCircuit, mirrorIndex: number): JointMember | undefined
  *  another mirror its own devices (indices into circuit.devices). */
 interface Where { node: number; sign: 1 | -1; devices?: readonly number[] }
 
+/** Each joint circuit's outputs as whereOf reads them, by file index and output: found once
+ *  per member (its outputs are read at the nominal point and at each end). */
+const wheres = new WeakMap<JointCircuit, Map<number, (Where | undefined)[]>>();
+
 function whereOf(j: JointCircuit, mirrorIndex: number, outputIndex: number): Where | undefined {
-  const mem = memberOf(j, mirrorIndex);
-  if (!mem) return undefined;
-  const k = key(mirrorIndex, outputIndex);
-  const leaf = j.leafNode.get(k);
-  if (leaf !== undefined) return { node: leaf, sign: mem.sign };
-  const link = j.linkNode.get(k);
-  if (link === undefined) return undefined;
-  return { node: link, sign: mem.sign, devices: j.outDevices.get(k) ?? [] };
+  let byMirror = wheres.get(j);
+  if (!byMirror) { byMirror = new Map(); wheres.set(j, byMirror); }
+  let known = byMirror.get(mirrorIndex);
+  if (!known) {
+    known = [];
+    const mem = memberOf(j, mirrorIndex);
+    for (let o = 0; mem && o < mem.mirror.outputs.length; o++) {
+      const k = key(mirrorIndex, o);
+      const leaf = j.leafNode.get(k), link = j.linkNode.get(k);
+      known.push(leaf !== undefined ? { node: leaf, sign: mem.sign }
+        : link !== undefined ? { node: link, sign: mem.sign, devices: j.outDevices.get(k) ?? [] } : undefined);
+    }
+    byMirror.set(mirrorIndex, known);
+  }
+  return known[outputIndex];
 }
 
 /** The probe of `w` in joint circuit `j` (its devices are j's own). */
