@@ -20,7 +20,7 @@ import { isBipolarReport } from '../device-types';
 import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
-  buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror,
+  buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, shownReports, solveMirror,
   type MirrorSolve, type MirrorTarget,
 } from './solve';
 import { clockedSolveCount } from '../circuit/newton';
@@ -155,7 +155,8 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   }
   // A bank (no vbias to pick: no warm start) solves once for all its outputs.
   const sol = warm ? solveMirror(mc, warm) : solveBank(mc, other?.solved, bank);
-  const devices = deviceReports(mc);
+  // Every device's report for a netlist or a reference (its loop reads them all), else the shown ones'.
+  const devices = m.kind === 'netlist' || KINDS[m.kind].loop !== undefined ? deviceReports(mc) : shownReports(mc);
   // A self-biased netlist has no input: no iin, ratio or error (design §14).
   const noInput = m.kind === 'netlist' && m.input === undefined;
   const iin = mc.iin();

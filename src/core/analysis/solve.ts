@@ -140,6 +140,16 @@ export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
   return mc.circuit.devices.map((d) => deviceReport(d, v));
 }
 
+/** Reports of the devices a report shows (shownDevices'), each at its circuit index, the others
+ *  left out: a bank's other outputs' devices belong to their own reports, and a template
+ *  mirror's measurement reads none of them (a reference's loop reads every device: not for it). */
+export function shownReports(mc: MirrorCircuit): DeviceReport[] {
+  const v = mc.ws.v;
+  const out: DeviceReport[] = [];
+  mc.circuit.devices.forEach((d, k) => { if (d.measured || d.startup === true) out[k] = deviceReport(d, v); });
+  return out;
+}
+
 /** The devices a report shows: the shared reference and the measured output's devices (a
  *  bank's other outputs are in the circuit but belong to their own reports). */
 export function shownDevices(mc: MirrorCircuit, all: DeviceReport[]): DeviceReport[] {

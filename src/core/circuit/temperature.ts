@@ -13,7 +13,7 @@
 import { prepareBipolar } from '../models/bipolar';
 import { prepareDevice, type ProcessConditions } from '../models/device';
 import type { Circuit } from './circuit';
-import type { CircuitElement, DeviceElement } from './elements/element';
+import { mosWith, type CircuitElement, type DeviceElement } from './elements/element';
 import { resistanceOf } from './resistance';
 
 /** `c` with its elements at temperature `proc.temperature` (K); undefined when a resistor's
@@ -25,11 +25,10 @@ export function circuitAt(c: Circuit, proc: ProcessConditions): Circuit | undefi
   const devices: DeviceElement[] = [];
   for (const e of c.elements) {
     switch (e.kind) {
-      // Copied by assignment, not spread: V8 gives each spread copy a map of its own, and a
+      // Copied field by field, not spread: V8 gives each spread copy a map of its own, and a
       // circuit of such elements is slower in every later assembly (its stamps see many maps).
       case 'mos': {
-        const x = Object.assign({}, e);
-        x.dev = prepareDevice(e.params, e.size, e.type, proc);
+        const x = mosWith(e, prepareDevice(e.params, e.size, e.type, proc));
         elements.push(x); devices.push(x);
         break;
       }

@@ -23,6 +23,7 @@ import { resistanceOf, resistorLaw } from './resistance';
 import { resistorCurrent } from './elements/resistor';
 import { makeWorkspace, type MirrorCircuit } from './mirrorCircuit';
 import type { Workspace } from './workspace';
+import { shapedCircuit, shapeOf, type Shape } from './shapes';
 
 /** Suffix of a filtered gate line's node (`a~f` is node a seen through the filter). */
 const FILTERED = '~f';
@@ -226,16 +227,13 @@ export function buildTemplate(
   spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number,
   vbias: number | undefined, perturb?: PerturbationLike,
 ): MirrorCircuit {
-  const { vdd, vss } = spec.supplies;
-  const sign = polaritySign(m.type);
   const kind = KINDS[m.kind];
-  const b = new CircuitBuilder();
-  b.hold('vdd', vdd);
-  b.hold('vss', vss);
-  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
-  const measuredOut = wired.outNodes[outputIndex] ?? 'out';
-  if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
-  const c = b.build(measuredOut, sign, vss, vdd);
+  // A mirror of a shape built before in this spec takes that circuit, copied (shapes.ts); the
+  // first of a shape keeps its build and takes a copy too, so nothing changes the kept one.
+  const found = perturb ? undefined : shapeOf(spec, m, isBank(m), outputIndex, vbias);
+  let shape = found && 'known' in found ? found.known : undefined;
+  if (found && 'keep' in found) { shape = builtShape(spec, m, outputIndex, vout, vbias); found.keep(shape); }
+  const { c, wired } = shape ? { c: shapedCircuit(shape, m, outputIndex, vout), wired: shape.wired } : builtShape(spec, m, outputIndex, vout, vbias, perturb);
   const mc = templateCircuit(spec, m, c, wired, wired.byRole);
   // Every output is wired and held alike whichever is measured (its own output.v), so another
   // output's circuit differs only in which devices are measured and the output node.
@@ -266,6 +264,19 @@ export function buildTemplate(
   return mc;
 }
 
+/** Mirror `m` wired alone into a circuit of its own (its rails held). */
+function builtShape(spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, vout: number, vbias: number | undefined, perturb?: PerturbationLike): Shape {
+  const { vdd, vss } = spec.supplies;
+  const b = new CircuitBuilder();
+  b.hold('vdd', vdd);
+  b.hold('vss', vss);
+  const wired = wireTemplate(b, spec, m, { ns: '', outputIndex, vout, vbias, perturb });
+  const measuredOut = wired.outNodes[outputIndex] ?? 'out';
+  if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
+  const c = b.build(measuredOut, polaritySign(m.type), vss, vdd);
+  return { m, c, wired, outIdx: wired.outNodes.map((n) => c.nodeNames.indexOf(n)) };
+}
+
 /** The mirror circuit of `c`, wired by `wired`, its measured output's devices by role `byRole`:
  *  the workspace, the starting guess, the input current. */
 function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wired: WiredTemplate, byRole: Record<string, number>, given?: Workspace): MirrorCircuit {
@@ -287,16 +298,21 @@ function templateCircuit(spec: ResolvedSpec, m: TemplateMirror, c: Circuit, wire
   const index = (name: string): number => c.nodeNames.indexOf(name);
   const { ref: pa, out: pb } = kind.pair;
 
-  // Everything the guess needs that does not change between solves, gathered once.
-  const devByName = new Map(c.devices.map((x) => [x.name, x] as const));
-  const outIdx = outNodes.map((n) => index(n));
-  const vbIdx = kind.vbias ? index('vbias') : -1;
-  const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
-  const freeNames = c.nodeNames.slice(0, c.nFree);
+  // Everything the guess needs that does not change between solves, gathered at its first call
+  // (a bank's output whose circuit takes its first's solve never guesses).
   const span = Math.abs(other - rail);
-  const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
+  const vbIdx = kind.vbias ? index('vbias') : -1;
+  let known: { g: GuessContext; outIdx: number[]; freeNames: string[] } | undefined;
+  const context = (): NonNullable<typeof known> => {
+    const devByName = new Map(c.devices.map((x) => [x.name, x] as const));
+    const outIdx = outNodes.map((n) => index(n));
+    const ratios = m.outputs.map((_, j) => idealRatio(m, j) ?? 1);
+    const g: GuessContext = { m, devByName, bank, ratios, uOuts: outIdx.map(() => 0), uVb: 0, cNodes, u: {}, span };
+    return { g, outIdx, freeNames: c.nodeNames.slice(0, c.nFree) };
+  };
 
   const guess = (): void => {
+    const { g, outIdx, freeNames } = (known ??= context());
     // Node voltages in the polarity frame u = sign·(v − rail), then mapped back.
     for (let j = 0; j < outIdx.length; j++) g.uOuts[j] = sign * (c.fixedV[outIdx[j]!]! - rail);
     g.uVb = vbIdx >= 0 ? sign * (c.fixedV[vbIdx]! - rail) : 0;

@@ -33,6 +33,13 @@ export interface ModelDevice {
   table?: TableSlice;
 }
 
+/** A copy of `d`, field by field as prepareDevice makes it. */
+export function copyDevice(d: ModelDevice): ModelDevice {
+  const x: ModelDevice = { model: d.model, sign: d.sign, beta: d.beta, vt0: d.vt0, gamma: d.gamma, phi: d.phi, lambda: d.lambda, n: d.n, ut: d.ut };
+  if (d.table) x.table = d.table;
+  return x;
+}
+
 export interface DeviceSizeLike { w: number; l: number; m: number }
 
 export interface ProcessConditions { model: ModelKind; temperature: number; tnom: number }

@@ -15,6 +15,7 @@ import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, su
 import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
 import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
+import { Workspace } from '../circuit/workspace';
 import { indexOf } from '../mirror-at';
 import type { NoiseReport, ResolvedSpec, TemperaturePoint } from '../types';
 import { networkGroups, type NetworkGroup } from './groups';
@@ -31,10 +32,14 @@ export interface JointDrift {
 }
 
 interface Solved { j: JointCircuit; converged: boolean }
-/** The group's circuit built at T ± DRIFT.dT and assembled at the nominal solution: the element
- *  equations there do not depend on the output read, so every output's tc shares them.
- *  `finite`: every free node's residual at both ends is. */
-interface Ends { up: JointCircuit; down: JointCircuit; finite: boolean }
+/** The group at one end of T ± DRIFT.dT, assembled at the nominal solution: its residuals, and
+ *  every output's probed current there (by slot: `Ends.slots`; NaN where the output is not read
+ *  there), read as the end is made — the element equations there do not depend on the output
+ *  read, so every output's tc shares them, and the circuit itself is not kept. */
+interface End { F: Float64Array; y: Float64Array }
+/** `finite`: every free node's residual at both ends is; `slots`: each member's first output's
+ *  slot in `End.y`, by file index. */
+interface Ends { up: End; down: End; finite: boolean; slots: Map<number, number> }
 /** The nominal solution's noise sources, once per group, and which elements sit on each node:
  *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
  *  the few mirrors on its path), so each output passes those alone to outputNoise. */
@@ -78,8 +83,8 @@ function takesTemperature(g: NetworkGroup): boolean {
 /** The nominal joint circuit `j` at temperature temp (K), without a build: its members, nodes
  *  and probes are the nominal's, its outputs are read through probes (no guess, no root current
  *  of its own: a solve of it starts warm); undefined where it must be built. */
-function takenJoint(j: JointCircuit, g: NetworkGroup, spec: ResolvedSpec, temp: number): JointCircuit | undefined {
-  const mc = takesTemperature(g) ? takenTo(j.mc, spec, temp) : undefined;
+function takenJoint(j: JointCircuit, g: NetworkGroup, spec: ResolvedSpec, temp: number, ws?: Workspace): JointCircuit | undefined {
+  const mc = takesTemperature(g) ? takenTo(j.mc, spec, temp, ws) : undefined;
   return mc && { ...j, mc, rootCurrent: mc.iin };
 }
 
@@ -152,27 +157,42 @@ function sameLayout(other: JointCircuit, j: JointCircuit): boolean {
 /** The group's ends at T ± DRIFT.dT with the node voltages of `nominal` (null when a rebuilt
  *  circuit comes out different), made once per group: the nominal circuit taken there
  *  (takenJoint: the same elements a build there gives) where the build would read nothing
- *  else of the spec at that temperature (no picked vbias), else built. */
+ *  else of the spec at that temperature (no picked vbias), else built. Both ends taken there
+ *  share one workspace: each end's residuals and probes are read before the next is assembled. */
 function endsOf(spec: ResolvedSpec, gc: GroupCache, nominal: JointCircuit, T: number): Ends | null {
   if (gc.ends !== undefined) return gc.ends;
-  const end = (temp: number): JointCircuit | undefined => {
-    const other = takenJoint(nominal, gc.group, spec, temp) ?? buildJoint(atTemperature(spec, temp), gc.group);
+  const slots = new Map<number, number>();
+  let count = 0;
+  for (const mem of nominal.members) { slots.set(mem.index, count); count += mem.mirror.outputs.length; }
+  let ws: Workspace | undefined;
+  const end = (temp: number): End | undefined => {
+    const taken = takesTemperature(gc.group) ? takenJoint(nominal, gc.group, spec, temp, ws ??= new Workspace(nominal.mc.circuit)) : undefined;
+    const other = taken ?? buildJoint(atTemperature(spec, temp), gc.group);
     if (other.mc.circuit.nodeNames.length !== nominal.mc.circuit.nodeNames.length) return undefined;
     other.mc.ws.v.set(nominal.mc.ws.v);
     assemble(other.mc.circuit, other.mc.ws, 1, 0);
-    return other;
+    const y = new Float64Array(count);
+    const same = sameLayout(other, nominal);
+    for (const mem of nominal.members) {
+      const first = slots.get(mem.index)!;
+      for (let o = 0; o < mem.mirror.outputs.length; o++) {
+        const w = whereOf(nominal, mem.index, o);
+        const p = !w ? undefined : same ? probeAt(other, w) : probeOf(other, mem.index, o);
+        y[first + o] = p ? probeCurrent(other.mc.ws, p) : NaN;
+      }
+    }
+    return { F: other.mc.ws.F.slice(), y };
   };
   const up = end(T + DRIFT.dT), down = end(T - DRIFT.dT);
   let finite = true;
-  if (up && down) for (let k = 0; k < nominal.mc.ws.n && finite; k++) finite = Number.isFinite(up.mc.ws.F[k]! - down.mc.ws.F[k]!);
-  gc.ends = up && down ? { up, down, finite } : null;
+  if (up && down) for (let k = 0; k < nominal.mc.ws.n && finite; k++) finite = Number.isFinite(up.F[k]! - down.F[k]!);
+  gc.ends = up && down ? { up, down, finite, slots } : null;
   return gc.ends;
 }
 
-/** One output read at one end `e` (where it is read in the nominal circuit `j`, `w`). */
-function endOf(ends: Ends, e: JointCircuit, j: JointCircuit, w: Where, mirrorIndex: number, outputIndex: number): AtEnd | undefined {
-  const p = sameLayout(e, j) ? probeAt(e, w) : probeOf(e, mirrorIndex, outputIndex);
-  return p ? { F: e.mc.ws.F, y: probeCurrent(e.mc.ws, p), finite: ends.finite } : undefined;
+/** One output read at one end `e` (NaN where it is not read there: no figure, as undefined). */
+function endOf(ends: Ends, e: End, mirrorIndex: number, outputIndex: number): AtEnd {
+  return { F: e.F, y: e.y[ends.slots.get(mirrorIndex)! + outputIndex]!, finite: ends.finite };
 }
 
 function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
@@ -182,21 +202,26 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
   const { sources } = parts;
   // Each element's sources are consecutive: one run per element, in the circuit's order.
   const runs: [number, number][] = [], byNode: number[][] = Array.from({ length: ws.nt }, () => []), always: number[] = [];
+  // Each run listed once per node its sources touch (`listed[k] === r + 1`: already on node k).
+  const listed = new Int32Array(ws.nt);
+  const list = (k: number, r: number): void => {
+    if (k < 0 || k >= ws.nt || listed[k] === r + 1) return;
+    listed[k] = r + 1;
+    byNode[k]!.push(r);
+  };
   for (let i = 0; i < sources.length;) {
     let e = i;
     while (e < sources.length && sources[e]!.element === sources[i]!.element) e++;
     const r = runs.length;
     runs.push([i, e]);
-    const nodes = new Set<number>();
     let finite = true;
     for (let q = i; q < e; q++) {
       const x = sources[q]!;
-      nodes.add(x.from); nodes.add(x.to);
+      list(x.from, r); list(x.to, r);
       if (!Number.isFinite(x.white) || !Number.isFinite(x.flicker)) finite = false;
     }
     // A source of infinite or undefined density is not silent even at zero gain (0·∞).
     if (!finite) always.push(r);
-    for (const k of nodes) byNode[k]?.push(r);
     i = e;
   }
   // Runs of one name each (joint element names carry their mirror's path): outputNoise then
@@ -270,8 +295,7 @@ export function jointDrift(spec: ResolvedSpec, mirrorIndex: number, outputIndex:
     const s = supplySensitivity(c, ws, pr, iout, spec.supplies.vdd);
     if (s !== undefined && Number.isFinite(s)) out.supplySensitivity = s;
     const ends = iout !== 0 ? endsOf(spec, gc, j, T) : null;
-    const up = ends && endOf(ends, ends.up, j, where, mirrorIndex, outputIndex), down = ends && endOf(ends, ends.down, j, where, mirrorIndex, outputIndex);
-    const tc = up && down ? coefficientFrom(ws.n, pr, iout, up, down) : undefined;
+    const tc = ends ? coefficientFrom(ws.n, pr, iout, endOf(ends, ends.up, mirrorIndex, outputIndex), endOf(ends, ends.down, mirrorIndex, outputIndex)) : undefined;
     if (tc !== undefined) out.tc = tc;
     const mem = memberOf(j, mirrorIndex);
     const noise = mem && outputNoise(c, ws, pr, T, spec.analysis ?? DEFAULT_ANALYSIS, opts.curve, reaching(groupNoise(gc, j, T), probe, pr.lam, pr.support), localNames(mem.ns));

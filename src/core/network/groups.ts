@@ -17,17 +17,26 @@ export interface NetworkGroup {
 
 /** Groups in file order of their roots; a mirror neither linked nor feeding belongs to none. */
 export function networkGroups(spec: ResolvedSpec): NetworkGroup[] {
+  // Keys in first-insertion order, read by index (a Map's entries would make an array each).
   const templates = new Map<number, TemplateMirror>();
-  for (const m of spec.mirrors) if (m.kind !== 'netlist') templates.set(indexOf(m), m);
+  const keys: number[] = [];
+  for (const m of spec.mirrors) {
+    if (m.kind === 'netlist') continue;
+    const i = indexOf(m);
+    if (!templates.has(i)) keys.push(i);
+    templates.set(i, m);
+  }
   const children = new Map<number, number[]>();
-  for (const [i, m] of templates) {
+  for (const i of keys) {
+    const m = templates.get(i)!;
     if (m.input.kind !== 'link' || !templates.has(m.input.mirror)) continue;
     const list = children.get(m.input.mirror) ?? [];
     list.push(i);
     children.set(m.input.mirror, list);
   }
   const groups: NetworkGroup[] = [];
-  for (const [i, root] of templates) {
+  for (const i of keys) {
+    const root = templates.get(i)!;
     if (root.input.kind === 'link' || !children.has(i)) continue;
     const members: TemplateMirror[] = [root];
     const parent = new Map<number, { mirror: number; output: number }>();

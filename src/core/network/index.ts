@@ -142,10 +142,10 @@ function deviceMismatch(c: JointCircuit['mc']['circuit'], ws: JointCircuit['mc']
   return { sigmas, currents };
 }
 
-/** d ln(iout)/dθ of a device's two mismatch parameters, from the output's adjoint λ (as
- *  smallSignal.outputSensitivities, for one device: a leaf's path is a small part of a big
- *  network). */
-function pathSensitivity(c: JointCircuit['mc']['circuit'], n: number, lam: Float64Array, currents: number[], iout: number): [number, number] {
+/** A device's part of a leaf's chain variance, Σ (d ln(iout)/dθ)²·σ² over its two mismatch
+ *  parameters, from the output's adjoint λ (as smallSignal.outputSensitivities, for one device:
+ *  a leaf's path is a small part of a big network). */
+function pathVariance(c: JointCircuit['mc']['circuit'], n: number, lam: Float64Array, currents: number[], iout: number, s: [number, number]): number {
   let w1 = 0, w2 = 0;
   // Summed over the nodes the device's currents leave (a bipolar device: its base too).
   for (let k = 0; k < currents.length; k += 3) {
@@ -155,7 +155,8 @@ function pathSensitivity(c: JointCircuit['mc']['circuit'], n: number, lam: Float
     if (node < n) w -= lam[node]!;
     w1 += w * currents[k + 1]!; w2 += w * currents[k + 2]!;
   }
-  return [c.outSign * w1 / iout, c.outSign * w2 / iout];
+  const svt = c.outSign * w1 / iout, sb = c.outSign * w2 / iout;
+  return svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
 }
 
 /** The network's figures at the joint solution (design §9.3). */
@@ -202,8 +203,7 @@ function describe(spec: ResolvedSpec, g: NetworkGroup, j: JointCircuit, converge
             const s = dm.sigmas;
             if (!s) continue;
             any = true;
-            const [svt, sb] = pathSensitivity(c, ws.n, lam, dm.currents, iout);
-            sum += svt * svt * s[0] * s[0] + sb * sb * s[1] * s[1];
+            sum += pathVariance(c, ws.n, lam, dm.currents, iout, s);
           }
         }
         if (any && Number.isFinite(sum)) out.chainSigma = Math.sqrt(sum);

@@ -28,6 +28,17 @@ export interface MosElement {
   slot: number;
 }
 
+/** `e` with model device `dev`, copied field by field as the builder makes it (one hidden class
+ *  for built and copied elements; Object.assign gives each copy a property store of its own). */
+export function mosWith(e: MosElement, dev: ModelDevice): MosElement {
+  const x: MosElement = {
+    kind: 'mos', name: e.name, role: e.role, type: e.type, size: e.size, params: e.params, dev,
+    measured: e.measured, d: e.d, g: e.g, s: e.s, b: e.b, slot: e.slot,
+  };
+  if (e.startup) x.startup = true;
+  return x;
+}
+
 /** A bipolar transistor: terminals c, b, e are node indices. */
 export interface BjtElement {
   kind: 'bjt';
