@@ -155,7 +155,9 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
 function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
   return reports.map((r) => {
     const mirror = mirrorAt(spec, r.mirrorIndex);
-    if (!mirror) return r;
+    // Always a copy: the analysis adds to its reports (networks, variation), and a report read
+    // back from the file's solved units may be the last analysis's object (analysis/repeats.ts).
+    if (!mirror) return { ...r };
     if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
     const out = mirror.outputs[r.outputIndex];
     return out ? { ...r, require: out.require } : r;

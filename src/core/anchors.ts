@@ -5,7 +5,7 @@
  *
  * A mirror's anchors read only its own item (every range is under `mirrors[i]`) and the names its
  * reports give it and its devices, so the editor keeps them across keystrokes (`MirrorAnchors`,
- * in the document's AnalysisCache): keyed by the mirror's index, its item as written and those
+ * in the document's AnalysisCache): keyed by the mirror's index, its item as written (by digest) and those
  * names, with lines counted from the item's first line, and moved to where it now starts.
  */
 import type { Anchor, DeviceReport, MirrorReport, ResolvedMirror, SpecPath } from './types';
@@ -60,8 +60,7 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[], store?
     const outputs = mirror.kind === 'netlist' ? [] : mirror.outputs.map((out) => ({ path: out.path, report: byPath.get(pathKey(out.path)) }));
     const i = indexOf(mirror);
     const span = frags?.lineSpan(i);
-    const item = span && frags!.itemTexts(i, []);
-    const key = item && `${i}\u0000${item.original}\u0000${JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])])}`;
+    const key = span && frags!.itemKey(i, JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])]));
     const kept = key === undefined ? undefined : store!.get(key, span!.first);
     if (kept) {
       anchors.push(...kept);

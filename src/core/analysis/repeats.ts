@@ -46,6 +46,8 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
   return `${outputIndex}|${curve ? 1 : 0}|${known}`;
 }
 const circuitKeys = new WeakMap<ResolvedMirror, string>();
+/** Each mirror's last store keys by output (`RepeatedMirrors.keyOf`), with what they were made with. */
+const keysOf = new WeakMap<ResolvedMirror, { prefix: string; curve: boolean; keys: string[] }>();
 
 /**
  * A cheap part of circuitKey: equal keys have equal prints, so a mirror whose print no other
@@ -113,6 +115,27 @@ export class SolvedUnits {
     this.solved.set(key, report);
   }
 
+  /**
+   * The kept report `r` with identity `id`: the copy handed out last time with that identity,
+   * else a new one. Read back unchanged, a mirror gets the very object of the last analysis (a
+   * report is a value nothing changes after the analysis; the analysis's callers copy it before
+   * adding to it), so a keystroke does not copy 500 reports twice over. Copies are kept for the
+   * analysis that made them and the next.
+   */
+  copy(r: MirrorReport, id: ReportIdentity): MirrorReport {
+    const generation = this.solved.generation;
+    let c = copies.get(r);
+    if (!c || c.generation !== generation) {
+      c = { generation, now: [], before: c ? (c.generation === generation - 1 ? c.now : []) : [] };
+      copies.set(r, c);
+    }
+    for (const x of c.now) if (sameIdentity(x, id)) return x;
+    let out = c.before.find((x) => sameIdentity(x, id));
+    out ??= withIdentity({ ...r }, id);
+    c.now.push(out);
+    return out;
+  }
+
   /** Drops every report the last analysis did not use. */
   sweep(): void {
     this.solved.sweep();
@@ -159,7 +182,13 @@ export class RepeatedMirrors {
 
   private keyOf(ctx: MirrorContext): string {
     const group = this.linked?.get(indexOf(ctx.mirror));
-    return this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    const prefix = group === undefined ? this.context : `${this.context}${group}|`;
+    // The key string itself is kept with the mirror object: a store looks a string up by its
+    // hash, which V8 keeps in the string, so an unchanged mirror's key is neither written nor
+    // hashed again on the next keystroke.
+    let memo = keysOf.get(ctx.mirror);
+    if (memo?.prefix !== prefix || memo.curve !== this.curve) keysOf.set(ctx.mirror, memo = { prefix, curve: this.curve, keys: [] });
+    return memo.keys[ctx.outputIndex] ??= prefix + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
   }
 
   private keyed(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
@@ -179,7 +208,7 @@ export class RepeatedMirrors {
       if (clockedSolveCount() === clocked || clockFree(r)) this.solved.set(key, r);
       return withIdentity({ ...r }, reportIdentity(ctx));
     }
-    return withIdentity({ ...known }, reportIdentity(ctx));
+    return this.solved instanceof SolvedUnits ? this.solved.copy(known, reportIdentity(ctx)) : withIdentity({ ...known }, reportIdentity(ctx));
   }
 }
 
@@ -191,6 +220,18 @@ export class RepeatedMirrors {
  */
 export function clockFree(r: MirrorReport): boolean {
   return r.converged && r.solveNote === undefined;
+}
+
+/** The copies of a kept report handed out (`SolvedUnits.copy`), by the analysis (generation) that made them. */
+const copies = new WeakMap<MirrorReport, { generation: number; now: MirrorReport[]; before: MirrorReport[] }>();
+
+/** The report carries identity `id` (what withIdentity writes). */
+function sameIdentity(r: MirrorReport, id: ReportIdentity): boolean {
+  if (r.name !== id.name || r.mirror !== id.mirror || r.mirrorIndex !== id.mirrorIndex || r.outputIndex !== id.outputIndex || r.output !== id.output) return false;
+  if (r.path === id.path) return true;
+  if (r.path.length !== id.path.length) return false;
+  for (let k = 0; k < r.path.length; k++) if (r.path[k] !== id.path[k]) return false;
+  return true;
 }
 
 function withIdentity(r: MirrorReport, id: ReportIdentity): MirrorReport {

@@ -22,12 +22,11 @@ import { fedOutputs } from './links';
 import { isRecord } from './params';
 import { fromRead, parseSpec, type ParsedSpec, type ParseOptions } from './index';
 import type { SourceMap } from './source-map';
-import { refusal } from './document';
+import { refusal, refusesAsBefore } from './document';
 import { validateSchema } from './schema';
 import { YamlSourceMap } from './source-map';
 import { LineIndex } from '../text/lines';
 import { SweptMap } from '../swept-map';
-import { SPEC_LIMITS } from '../defaults';
 
 interface Base {
   parsed: ParsedSpec;
@@ -199,31 +198,6 @@ function spliced(base: ParsedSpec, text: string, opts: ParseOptions): ParsedSpec
   if (opts.tables) out.tables = opts.tables;
   out.spec = read;
   return out;
-}
-
-/**
- * The edited text is refused (document.ts `refusal`) exactly as the base was — not at all, a base
- * has no finding — when it is no longer than the limit and the edit (between the common prefix
- * `a` and suffix `s`) writes and removes only plain characters on one line, beside neighbours that
- * no scan reads differently: no line break, carriage return, control or invalid character, nothing
- * the flow-depth scan acts on (brackets, quotes, `#`) or an escape, so every scan of the text reads
- * the same marks in the same states. Anything else is scanned whole, as before.
- */
-function refusesAsBefore(old: string, text: string, a: number, s: number): boolean {
-  if (text.length > SPEC_LIMITS.maxChars) return false;
-  if (a > 0 && !quiet(text.charCodeAt(a - 1))) return false;
-  if (s > 0 && !quiet(text.charCodeAt(text.length - s))) return false;
-  for (let i = a; i < text.length - s; i++) if (!quiet(text.charCodeAt(i))) return false;
-  for (let i = a; i < old.length - s; i++) if (!quiet(old.charCodeAt(i))) return false;
-  return true;
-}
-
-/** A character no refusal scan acts on or looks behind: printable, a tab, or a space. */
-function quiet(c: number): boolean {
-  if (c === 9) return true;
-  if (c < 0x20 || c === 0x7f || c === 0xfffd) return false;
-  // " # ' [ \ ] { }
-  return c !== 34 && c !== 35 && c !== 39 && c !== 91 && c !== 92 && c !== 93 && c !== 123 && c !== 125;
 }
 
 /** `fromRead` of `outside` from `base`, a read of the same lines before the items; undefined when it must be elaborated whole. */
