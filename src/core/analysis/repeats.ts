@@ -90,9 +90,13 @@ export function linkedInputs(spec: ResolvedSpec): ReadonlyMap<number, string> {
 }
 const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
 
+/** A kept report, and the copies of it handed out (`SolvedUnits.read`): by the analysis that
+ *  handed them out (`generation`) and the one before it. */
+interface Unit { report: MirrorReport; generation: number; now: MirrorReport[]; before: MirrorReport[] }
+
 /** Solved reports kept across analyses of one file, by solve unit (see above). */
 export class SolvedUnits {
-  private readonly solved = new SweptMap<string, MirrorReport>();
+  private readonly solved = new SweptMap<string, Unit>();
   /** Of the last analysis: reports solved, and reports read back. */
   solvedNow = 0;
   reusedNow = 0;
@@ -104,36 +108,33 @@ export class SolvedUnits {
     this.reusedNow = 0;
   }
 
-  get(key: string): MirrorReport | undefined {
-    const report = this.solved.get(key);
-    if (report) this.reusedNow++;
-    return report;
+  /**
+   * The kept report of `key` with identity `id`, or undefined. Read back with the identity it had
+   * in the last analysis, a mirror gets the very copy handed out then (a report is a value nothing
+   * changes after the analysis; the analysis copies its reports before adding to them), so a
+   * keystroke does not copy 500 reports for each spec it solves.
+   */
+  read(key: string, id: ReportIdentity): MirrorReport | undefined {
+    const u = this.solved.get(key);
+    if (!u) return undefined;
+    this.reusedNow++;
+    const generation = this.solved.generation;
+    if (u.generation !== generation) {
+      const last = u.generation === generation - 1 ? u.now : undefined;
+      u.now = u.before;
+      u.now.length = 0;
+      u.before = last ?? [];
+      u.generation = generation;
+    }
+    for (const x of u.now) if (sameIdentity(x, id)) return x;
+    const out = u.before.find((x) => sameIdentity(x, id)) ?? withIdentity({ ...u.report }, id);
+    u.now.push(out);
+    return out;
   }
 
   set(key: string, report: MirrorReport): void {
     this.solvedNow++;
-    this.solved.set(key, report);
-  }
-
-  /**
-   * The kept report `r` with identity `id`: the copy handed out last time with that identity,
-   * else a new one. Read back unchanged, a mirror gets the very object of the last analysis (a
-   * report is a value nothing changes after the analysis; the analysis's callers copy it before
-   * adding to it), so a keystroke does not copy 500 reports twice over. Copies are kept for the
-   * analysis that made them and the next.
-   */
-  copy(r: MirrorReport, id: ReportIdentity): MirrorReport {
-    const generation = this.solved.generation;
-    let c = copies.get(r);
-    if (!c || c.generation !== generation) {
-      c = { generation, now: [], before: c ? (c.generation === generation - 1 ? c.now : []) : [] };
-      copies.set(r, c);
-    }
-    for (const x of c.now) if (sameIdentity(x, id)) return x;
-    let out = c.before.find((x) => sameIdentity(x, id));
-    out ??= withIdentity({ ...r }, id);
-    c.now.push(out);
-    return out;
+    this.solved.set(key, { report, generation: this.solved.generation, now: [], before: [] });
   }
 
   /** Drops every report the last analysis did not use. */
@@ -193,7 +194,11 @@ export class RepeatedMirrors {
 
   private keyed(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
     const key = this.keyOf(ctx);
-    const known = this.solved.get(key);
+    if (this.solved instanceof SolvedUnits) {
+      const read = this.solved.read(key, reportIdentity(ctx));
+      if (read) return read;
+    }
+    const known = this.solved instanceof SolvedUnits ? undefined : this.solved.get(key);
     if (!known) {
       const clocked = clockedSolveCount();
       const r = measure();
@@ -208,7 +213,7 @@ export class RepeatedMirrors {
       if (clockedSolveCount() === clocked || clockFree(r)) this.solved.set(key, r);
       return withIdentity({ ...r }, reportIdentity(ctx));
     }
-    return this.solved instanceof SolvedUnits ? this.solved.copy(known, reportIdentity(ctx)) : withIdentity({ ...known }, reportIdentity(ctx));
+    return withIdentity({ ...known }, reportIdentity(ctx));
   }
 }
 
@@ -221,9 +226,6 @@ export class RepeatedMirrors {
 export function clockFree(r: MirrorReport): boolean {
   return r.converged && r.solveNote === undefined;
 }
-
-/** The copies of a kept report handed out (`SolvedUnits.copy`), by the analysis (generation) that made them. */
-const copies = new WeakMap<MirrorReport, { generation: number; now: MirrorReport[]; before: MirrorReport[] }>();
 
 /** The report carries identity `id` (what withIdentity writes). */
 function sameIdentity(r: MirrorReport, id: ReportIdentity): boolean {

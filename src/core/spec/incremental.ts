@@ -140,10 +140,8 @@ function spliced(base: ParsedSpec, text: string, opts: ParseOptions): ParsedSpec
   // The edit: what lies between the common prefix and the common suffix of the two texts.
   const old = base.text;
   const n = Math.min(text.length, old.length);
-  let a = 0;
-  while (a < n && text.charCodeAt(a) === old.charCodeAt(a)) a++;
-  let s = 0;
-  while (s < n - a && text.charCodeAt(text.length - 1 - s) === old.charCodeAt(old.length - 1 - s)) s++;
+  const a = commonPrefix(old, text, n);
+  const s = commonSuffix(old, text, n - a);
   const index = frags.itemHolding(a, old.length - s);
   if (index === undefined) return undefined;
   const lines = LineIndex.of(text);
@@ -198,6 +196,26 @@ function spliced(base: ParsedSpec, text: string, opts: ParseOptions): ParsedSpec
   if (opts.tables) out.tables = opts.tables;
   out.spec = read;
   return out;
+}
+
+/** Characters the compares of common ends take at a time: the engine compares two slices
+ *  natively, far faster than a loop over characters (a 500-mirror text is 95 000 of them). */
+const CHUNK = 1024;
+
+/** The length of the common prefix of `x` and `y`, at most `n`. */
+function commonPrefix(x: string, y: string, n: number): number {
+  let a = 0;
+  while (a + CHUNK <= n && x.slice(a, a + CHUNK) === y.slice(a, a + CHUNK)) a += CHUNK;
+  while (a < n && x.charCodeAt(a) === y.charCodeAt(a)) a++;
+  return a;
+}
+
+/** The length of the common suffix of `x` and `y`, at most `n`. */
+function commonSuffix(x: string, y: string, n: number): number {
+  let s = 0;
+  while (s + CHUNK <= n && x.slice(x.length - s - CHUNK, x.length - s) === y.slice(y.length - s - CHUNK, y.length - s)) s += CHUNK;
+  while (s < n && x.charCodeAt(x.length - 1 - s) === y.charCodeAt(y.length - 1 - s)) s++;
+  return s;
 }
 
 /** `fromRead` of `outside` from `base`, a read of the same lines before the items; undefined when it must be elaborated whole. */
