@@ -90,9 +90,9 @@ export function linkedInputs(spec: ResolvedSpec): ReadonlyMap<number, string> {
 }
 const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
 
-/** A kept report, and the copies of it handed out (`SolvedUnits.read`): by the analysis that
- *  handed them out (`generation`) and the one before it. */
-interface Unit { report: MirrorReport; generation: number; now: MirrorReport[]; before: MirrorReport[] }
+/** A kept report, and the copies of it handed out (`SolvedUnits.read`), each with the last
+ *  analysis (generation) that handed it out. */
+interface Unit { report: MirrorReport; copies: { report: MirrorReport; used: number }[] }
 
 /** Solved reports kept across analyses of one file, by solve unit (see above). */
 export class SolvedUnits {
@@ -109,32 +109,31 @@ export class SolvedUnits {
   }
 
   /**
-   * The kept report of `key` with identity `id`, or undefined. Read back with the identity it had
-   * in the last analysis, a mirror gets the very copy handed out then (a report is a value nothing
-   * changes after the analysis; the analysis copies its reports before adding to them), so a
-   * keystroke does not copy 500 reports for each spec it solves.
+   * The kept report of `key` with identity `id`, or undefined. Read back with an identity it had
+   * in this analysis or the last, a mirror gets the very copy handed out then (a report is a
+   * value nothing changes after the analysis; the analysis copies its reports before adding to
+   * them), so a keystroke does not copy 500 reports for each spec it solves.
    */
   read(key: string, id: ReportIdentity): MirrorReport | undefined {
     const u = this.solved.get(key);
     if (!u) return undefined;
     this.reusedNow++;
     const generation = this.solved.generation;
-    if (u.generation !== generation) {
-      const last = u.generation === generation - 1 ? u.now : undefined;
-      u.now = u.before;
-      u.now.length = 0;
-      u.before = last ?? [];
-      u.generation = generation;
+    for (const c of u.copies) {
+      if (c.used >= generation - 1 && sameIdentity(c.report, id)) {
+        c.used = generation;
+        return c.report;
+      }
     }
-    for (const x of u.now) if (sameIdentity(x, id)) return x;
-    const out = u.before.find((x) => sameIdentity(x, id)) ?? withIdentity({ ...u.report }, id);
-    u.now.push(out);
-    return out;
+    if (u.copies.length >= 4) u.copies = u.copies.filter((c) => c.used >= generation - 1);
+    const report = withIdentity({ ...u.report }, id);
+    u.copies.push({ report, used: generation });
+    return report;
   }
 
   set(key: string, report: MirrorReport): void {
     this.solvedNow++;
-    this.solved.set(key, { report, generation: this.solved.generation, now: [], before: [] });
+    this.solved.set(key, { report, copies: [] });
   }
 
   /** Drops every report the last analysis did not use. */
