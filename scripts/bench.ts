@@ -14,7 +14,8 @@
  *            500-mirror one, analysed with the document's cache as the editor's worker does,
  *            ≤ 20 ms warm; 10 000 Monte Carlo samples of a 20-mirror linked network ≤ 1 s (with progress); a
  *            512 KiB spec analysed in under 200 MB peak (a child process's maxRSS). Each is
- *            printed beside the engine's own cost for the same mirrors
+ *            printed beside the engine's own cost for the same mirrors, and the text ones beside
+ *            the yaml package's reading of the same text (the floor under any analysis of it)
  *   netlist  a tree of 1 000 linked mirror stages (4 002 devices) as one Newton system: shown
  *   network  a bias network of 1 000 linked mirrors (a binary tree ten levels deep, polarity
  *            alternating): its joint solve and every mirror's analysis in process ≤ 100 ms; through
@@ -43,7 +44,9 @@ import { existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync 
 import { createRequire } from 'node:module';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { parseDocument } from 'yaml';
 import { analyzeSpec } from '../src/core/analysis/index';
+import { YAML_OPTIONS } from '../src/core/spec/yaml-options';
 import { buildMirror, solveMirror } from '../src/core/analysis/solve';
 import { analyzeText } from '../src/core/analyze';
 import { AnalysisCache } from '../src/core/analysis-cache';
@@ -275,6 +278,13 @@ function findingsFigures(runs: number, quick: boolean): FindingsFigures {
   const report300 = analyzeText(text300, 'findings.bias.yaml');
   const text300Ms = timeFn(runs, 3, () => analyzeText(text300, 'findings.bias.yaml'));
   const engine300 = timeFn(runs, 3, () => analyzeSpec(structuredClone(resolved300), { repeats: false }));
+  // The floor under any analysis of that text: the yaml package reading it, as the core reads it.
+  const parse300 = timeFn(runs, 3, () => parseDocument(text300, YAML_OPTIONS));
+  // The same floor for the CLI's per-mirror figure: the yaml package's cost of 400 more such mirrors.
+  const text100 = faultySpecText(100);
+  const text500 = faultySpecText(500);
+  const parse100 = timeFn(runs, 3, () => parseDocument(text100, YAML_OPTIONS));
+  const parse500 = timeFn(runs, 3, () => parseDocument(text500, YAML_OPTIONS));
 
   const { keystroke, keystrokeStats, typed } = keystrokeFigure(runs);
   const fresh500 = timeFn(Math.max(3, runs >> 2), 1, () => analyzeText(typed(), 'findings.bias.yaml'));
@@ -292,7 +302,8 @@ function findingsFigures(runs: number, quick: boolean): FindingsFigures {
   return {
     textWithFindings: {
       mirrors: 300, findings: report300.findings.length, fixes: report300.findings.reduce((n, f) => n + (f.fixes?.length ?? 0), 0),
-      analyzeText: text300Ms, engine: engine300,
+      analyzeText: text300Ms, engine: engine300, parse: parse300,
+      parsePerAdditionalMirrorUs: ((parse500.median - parse100.median) * 1000) / 400,
     },
     keystroke: {
       mirrors: 500, cached: keystroke, fresh: fresh500, engineOneMirror: engineOne,
@@ -326,7 +337,12 @@ function keystrokeOnly(runs: number): void {
 }
 
 interface FindingsFigures {
-  textWithFindings: { mirrors: number; findings: number; fixes: number; analyzeText: Timing; engine: Timing };
+  textWithFindings: {
+    mirrors: number; findings: number; fixes: number; analyzeText: Timing; engine: Timing;
+    /** The yaml package reading the text (the floor under analyzeText), and its cost per mirror
+     *  of 400 more such mirrors (the floor under the CLI's per-mirror figure). */
+    parse: Timing; parsePerAdditionalMirrorUs: number;
+  };
   keystroke: {
     mirrors: number; cached: Timing; fresh: Timing; engineOneMirror: Timing;
     unitsSolved: number; unitsReused: number; rechecksRun: number; rechecksReused: number;
@@ -613,6 +629,7 @@ function main(): void {
   console.log(`specs with findings (generated: every kind, both polarities, random sizes)`);
   console.log(`  ${ok(checks.textWithFindingsMs)} ${tf.mirrors} mirrors, ${tf.findings} findings, ${tf.fixes} fixes: analyzeText ${t(tf.analyzeText)}   (≤ 50 ms)`);
   console.log(`         the engine on those mirrors      ${t(tf.engine)}`);
+  console.log(`         the yaml package reading it      ${t(tf.parse)}   (the floor: parseDocument alone)`);
   console.log(`  ${ok(checks.keystrokeMs)} keystroke in one mirror of ${ks.mirrors}, cached ${t(ks.cached)}   (≤ 20 ms; ${ks.unitsSolved} solved, ${ks.unitsReused} reused; ${ks.rechecksRun} re-checks run, ${ks.rechecksReused} reused)`);
   console.log(`         the same text analysed fresh     ${t(ks.fresh)}`);
   console.log(`         the engine, a mirror of those 500  ${t(ks.engineOneMirror)}`);
@@ -631,7 +648,7 @@ function main(): void {
     console.log(`       … 500 distinct mirrors          ${t(cliResult.check500Distinct)}   (no two circuits alike; exit ${cliResult.check500Distinct.status})`);
     console.log(`       check, 100 mirrors with findings ${t(cliResult.checkFindings100)}`);
     console.log(`       check, 500 mirrors with findings ${t(cliResult.checkFindings500)}`);
-    console.log(`  ${ok(checks.cliPerMirrorUs)} per additional mirror (500 − 100) ${cliResult.perAdditionalMirrorUs.toFixed(0).padStart(7)} µs   (≤ 200 µs; the engine: ${f(result.perMirrorUs.median)} µs a mirror)`);
+    console.log(`  ${ok(checks.cliPerMirrorUs)} per additional mirror (500 − 100) ${cliResult.perAdditionalMirrorUs.toFixed(0).padStart(7)} µs   (≤ 200 µs; the engine: ${f(result.perMirrorUs.median)} µs a mirror; the yaml package reading it: ${tf.parsePerAdditionalMirrorUs.toFixed(0)} µs a mirror)`);
     const mb = cliResult.limitPeakBytes === undefined ? 'n/a' : `${(cliResult.limitPeakBytes / 1048576).toFixed(0)} MB`;
     console.log(`  ${ok(checks.limitPeakBytes)} peak memory, ${(limit.chars / 1024).toFixed(0)} KiB spec analysed     ${mb}   (< 200 MB; a child process's maxRSS, Node included)`);
   } else {
