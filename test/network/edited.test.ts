@@ -178,11 +178,25 @@ describe('a re-check that reads the edited mirror alone: that mirror as the whol
       for (const edited of [resized, cascode]) {
         const want = mirrorAt(solveNetworks(edited, undefined, { chainSigma: false }), i);
         expectSameMember(mirrorAt(solveEditedNetworks(edited, i, treeBase, { only: 'edited' }), i), want);
-        // Below the root, the subtree alone (its feeders' outputs are simple MOSFET outputs on a rail).
+        // Below the root, the subtree alone (its feeders' outputs are simple MOSFET outputs on a
+        // rail), down to the mirrors it feeds (theirs are too).
         const local = solvedLocally(edited, networkGroups(edited)[0]!, keptJoint(treeBase.networks![0]!)!, i);
         if (i === 0) expect(local).toBeUndefined();
         else expectSameMember(local, want);
       }
+    });
+  }
+
+  // t3, fed by t1, a cascode: its outputs' current comes through `outc`, whose source is no rail,
+  // so the nodes it drives are read by its own equations and t1's subtree is solved down to the leaves.
+  const cascodeBelow = tree15.replace('name: t3, kind: simple', 'name: t3, kind: cascode');
+  const cascodeBase = resolveText(cascodeBelow, 'case.bias.yaml').parsed.spec!;
+  for (const i of [1, 3]) {
+    it(`t${i} resized above or at a cascode of a tree`, () => {
+      const edited = presolved(cascodeBelow.replace(new RegExp(`(name: t${i}, .*?size: \\{ w: )(\\d+)u`), (_, a: string, w: string) => `${a}${Number(w) * 1.21}u`));
+      const want = mirrorAt(solveNetworks(edited, undefined, { chainSigma: false }), i);
+      expectSameMember(solvedLocally(edited, networkGroups(edited)[0]!, keptJoint(cascodeBase.networks![0]!)!, i), want);
+      expectSameMember(mirrorAt(solveEditedNetworks(edited, i, cascodeBase, { only: 'edited' }), i), want);
     });
   }
 });

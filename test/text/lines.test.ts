@@ -55,6 +55,23 @@ describe('LineIndex', () => {
     }), { numRuns: 300 });
   });
 
+  it('property: an index spliced from the original\'s equals the edited text\'s own (no text scanned)', () => {
+    // Check value: a LineIndex built by scanning the edited text, position for position.
+    const unit = fc.constantFrom('a', ' ', '\n', '\r\n', 'µ', '\uFEFF');
+    fc.assert(fc.property(fc.boolean(), fc.array(unit, { maxLength: 30 }), fc.nat(), fc.nat(6), fc.array(unit, { maxLength: 4 }), (bom, parts, a, len, ins) => {
+      const text = (bom ? '\uFEFF' : '') + parts.join('');
+      const s = a % (text.length + 1), e = Math.min(text.length, s + len), inserted = ins.join('');
+      const edited = text.slice(0, s) + inserted + text.slice(e);
+      const spliced = new LineIndex(text).spliced(s, e, inserted), fresh = new LineIndex(edited);
+      expect(spliced.lineCount).toBe(fresh.lineCount);
+      for (let off = 0; off <= edited.length; off++) expect(spliced.position(off)).toEqual(fresh.position(off));
+      for (let line = 0; line <= fresh.lineCount; line++) {
+        for (let character = 0; character < 8; character++) expect(spliced.offset(pos(line, character))).toBe(fresh.offset(pos(line, character)));
+      }
+      expect(spliced.text).toBe(edited);
+    }), { numRuns: 300 });
+  });
+
   it('lookups are a binary search: 200 000 lines need no more work per lookup than 20 (counted, not timed)', () => {
     // Count the comparisons through the `starts` array: ⌈log2(lines)⌉ + 1 at most.
     const text = 'x\n'.repeat(200_000);

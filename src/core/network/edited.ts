@@ -88,9 +88,14 @@ function handOnEdited(j: JointCircuit, edited: number, changed: Map<number, Temp
  * and the subtree by its own equations with the feeder's gate held there: the subtree's members
  * as the build wires them (the edited one wired anew, the others replayed from the kept build),
  * the feeder's output devices with their gate and source held, Newton from the kept solution
- * (the topology guess at a node the edit added). The same equations, converged to the same
- * tolerances, as the whole group solved (test/network/edited.test.ts); undefined when any of
- * that does not hold or the solve does not converge (the whole group is solved then).
+ * (the topology guess at a node the edit added). The same cut is made below the mirrors the
+ * edited one feeds, where each of them drives the mirrors it feeds the same way: no equation of
+ * the edited mirror or of those it feeds reads a node further down, so the subtree is solved
+ * down to them alone, the nodes they drive held at the kept solution (a fix of a mirror near a
+ * thousand-mirror tree's root solves three mirrors, not five hundred). The same equations,
+ * converged to the same tolerances, as the whole group solved (test/network/edited.test.ts);
+ * undefined when any of that does not hold or the solve does not converge (the whole group is
+ * solved then).
  */
 export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): TemplateMirror | undefined {
   const log = k.joint.log;
@@ -98,14 +103,7 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
   if (!log || !p) return undefined;
   const top = mirrorAt(spec, edited);
   if (!top || top.kind === 'netlist') return undefined;
-  const below = subtree(g, edited);
-  const members = g.members.filter((m) => below.has(indexOf(m)));
   const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
-  for (const m of members) {
-    const mem = byIndex.get(indexOf(m));
-    if (!mem?.ops || KINDS[m.kind].vbias || mem.wired.inputResistor) return undefined;
-  }
-  // The feeder's output devices: MOSFETs with their sources held, the only elements on the input node but the edited mirror's.
   const bc = k.joint.mc.circuit;
   const index = k.index();
   if (bc.fixedV[index.get('vdd') ?? -1] !== spec.supplies.vdd || bc.fixedV[index.get('vss') ?? -1] !== spec.supplies.vss) return undefined;
@@ -113,17 +111,15 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
   const inNode = k.joint.linkNode.get(feederKey);
   const outs = k.joint.outDevices.get(feederKey);
   const own = byIndex.get(edited)!;
-  if (inNode === undefined || !outs || outs.length === 0) return undefined;
-  const held = bc.nodeNames.length - bc.nFree;
-  for (let q = 0; q < bc.elements.length; q++) {
-    const e = bc.elements[q]!;
-    if (q - held >= own.added[0] && q - held < own.added[1]) continue;
-    const touches = e.kind === 'mos' ? e.d === inNode || e.s === inNode || e.g === inNode || e.b === inNode
-      : e.kind === 'bjt' ? e.c === inNode || e.b === inNode || e.e === inNode
-        : e.kind === 'resistor' || e.kind === 'capacitor' ? e.a === inNode || e.b === inNode
-          : e.kind === 'current' ? e.from === inNode || e.to === inNode : e.node === inNode;
-    if (!touches) continue;
-    if (e.kind !== 'mos' || e.d !== inNode || e.s < bc.nFree || (e.b !== e.s && e.b < bc.nFree) || !outs.some((d) => bc.devices[d] === e)) return undefined;
+  // The feeder's output devices: the only elements on the input node but the edited mirror's.
+  if (inNode === undefined || !outs || !railDrains(bc, inNode, outs, [0, bc.elements.length], own.added)) return undefined;
+  const near = g.members.filter((m) => indexOf(m) === edited || g.parent.get(indexOf(m))?.mirror === edited);
+  const cut = cutBelow(k, near.slice(1), byIndex);
+  const below = cut ? undefined : subtree(g, edited);
+  const members = below ? g.members.filter((m) => below.has(indexOf(m))) : near;
+  for (const m of members) {
+    const mem = byIndex.get(indexOf(m));
+    if (!mem?.ops || KINDS[m.kind].vbias || mem.wired.inputResistor) return undefined;
   }
   const inputNode = `${top.name}/${KINDS[top.kind].inputNode}`;
   const fed = new Map<number, string>();
@@ -144,7 +140,11 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
           ns: `${top.name}/`, outputIndex: -1, vout: 0, vbias: top.vbias ?? vbiasFor({ spec, mirror: top, outputIndex: 0 })?.vbias,
           inputNode, outNode: (o) => fed.get(o),
         });
-      } else b.replay(log, mem.ops![0], mem.ops![1]);
+      } else {
+        // A node cut below: held before the mirror's calls make it a free one.
+        if (cut) for (const o of mem.wired.outNodes) if (cut.has(o)) b.hold(o, cut.get(o)!);
+        b.replay(log, mem.ops![0], mem.ops![1]);
+      }
       firstDevice += wired.deviceNames.length;
       if (i === last) {
         // After every member's devices, so the members' device indices are the build's.
@@ -182,6 +182,51 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
     const node = j.linkNode.get(key);
     return node === undefined ? undefined : { i: outputCurrentOf(j, key), v: v[node]! };
   });
+}
+
+/**
+ * The nodes the mirrors `fed` drive (each output linked on), by name, at the kept solution, when
+ * each is driven only by the mirror's own output devices that are MOSFETs on a rail (railDrains):
+ * the edited mirror's equations and theirs then read no node further down. Undefined otherwise.
+ */
+function cutBelow(k: KeptJoint, fed: readonly TemplateMirror[], byIndex: ReadonlyMap<number, JointMember>): Map<string, number> | undefined {
+  const c = k.joint.mc.circuit;
+  const cut = new Map<string, number>();
+  for (const m of fed) {
+    const mem = byIndex.get(indexOf(m));
+    if (!mem) return undefined;
+    for (let o = 0; o < m.outputs.length; o++) {
+      const at = `${indexOf(m)}:${o}`;
+      const node = k.joint.linkNode.get(at);
+      if (node === undefined) continue;
+      // Only the mirror's own elements are looked at: the ones below it are not built.
+      if (!railDrains(c, node, k.joint.outDevices.get(at), mem.added)) return undefined;
+      cut.set(c.nodeNames[node]!, k.v[node]!);
+    }
+  }
+  return cut;
+}
+
+/**
+ * Whether node `n` of circuit `c` is driven only by MOSFETs `devices`, each with its drain on it
+ * and its source and bulk held (a rail): no other node's equation then reads it (a gate draws no
+ * current). Looked at: the elements in `range` (indices past the held nodes' sources) but those
+ * in `skip`.
+ */
+function railDrains(c: Circuit, n: number, devices: readonly number[] | undefined, range: readonly [number, number], skip?: readonly [number, number]): boolean {
+  if (!devices || devices.length === 0) return false;
+  const held = c.nodeNames.length - c.nFree;
+  for (let q = held + range[0]; q < Math.min(held + range[1], c.elements.length); q++) {
+    if (skip && q - held >= skip[0] && q - held < skip[1]) continue;
+    const e = c.elements[q]!;
+    const touches = e.kind === 'mos' ? e.d === n || e.s === n || e.g === n || e.b === n
+      : e.kind === 'bjt' ? e.c === n || e.b === n || e.e === n
+        : e.kind === 'resistor' || e.kind === 'capacitor' ? e.a === n || e.b === n
+          : e.kind === 'current' ? e.from === n || e.to === n : e.node === n;
+    if (!touches) continue;
+    if (e.kind !== 'mos' || e.d !== n || e.s < c.nFree || (e.b !== e.s && e.b < c.nFree) || !devices.some((d) => c.devices[d] === e)) return false;
+  }
+  return true;
 }
 
 /**

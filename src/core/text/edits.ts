@@ -35,20 +35,32 @@ interface Span { s: number; e: number; text: string }  // original [s, e) become
 
 export class EditLog {
   private spans: Span[] = [];
-  private current: string;
+  /** The current text's line starts, spliced from the original's edit by edit (lines.ts): a
+   *  step's positions are read without scanning, or even building, the text so far. */
+  private lines: LineIndex;
+  private built?: string;
 
   constructor(private readonly original: string) {
-    this.current = original;
+    this.lines = LineIndex.of(original);
   }
 
+  /** The text so far (built when asked, from the original and the recorded edits). */
   get text(): string {
-    return this.current;
+    if (this.built === undefined) {
+      let out = '';
+      let pos = 0;
+      for (const sp of this.spans) {
+        out += this.original.slice(pos, sp.s) + sp.text;
+        pos = sp.e;
+      }
+      this.built = out + this.original.slice(pos);
+    }
+    return this.built;
   }
 
   /** Record edits made on the current text (non-overlapping among themselves). */
   apply(edits: TextEdit[]): void {
-    // The original's index is shared (LineIndex.of); a text edited along the way is indexed once here.
-    const lines = this.current === this.original ? LineIndex.of(this.original) : new LineIndex(this.current);
+    const lines = this.lines;
     const batch = edits
       .map((e) => ({ cs: lines.offset(e.range.start), ce: lines.offset(e.range.end), text: e.newText }))
       .sort((a, b) => b.cs - a.cs); // last first: earlier offsets stay valid
@@ -56,9 +68,11 @@ export class EditLog {
   }
 
   private applyOne(cs: number, ce: number, text: string): void {
-    // Output spans of the recorded edits in current-text offsets.
+    // Output spans of the recorded edits in current-text offsets, and the shift before each.
     let shift = 0;
+    const before: number[] = [];
     const out = this.spans.map((sp) => {
+      before.push(shift);
       const os = sp.s + shift;
       const oe = os + sp.text.length;
       shift += sp.text.length - (sp.e - sp.s);
@@ -72,9 +86,27 @@ export class EditLog {
       }
       return c - d;
     };
+    // The current text's characters [a, b), from the original and the recorded edits.
+    const current = (a: number, b: number): string => {
+      let r = '';
+      let pos = a;
+      for (let i = 0; i < out.length && pos < b; i++) {
+        const { os, oe } = out[i];
+        if (oe <= pos) continue;
+        if (os > pos) {
+          const g = Math.min(os, b);
+          r += this.original.slice(pos - before[i], g - before[i]);
+          pos = g;
+          if (pos >= b) break;
+        }
+        const t = Math.min(oe, b);
+        r += this.spans[i].text.slice(pos - os, t - os);
+        pos = t;
+      }
+      return pos < b ? r + this.original.slice(pos - shift, b - shift) : r;
+    };
     const hit: number[] = [];
     for (let i = 0; i < out.length; i++) if (out[i].os <= ce && out[i].oe >= cs) hit.push(i);
-    const nextCurrent = this.current.slice(0, cs) + text + this.current.slice(ce);
     if (hit.length === 0) {
       const s = toOrig(cs);
       const e = s + (ce - cs);
@@ -86,11 +118,12 @@ export class EditLog {
       const E = Math.max(ce, out[last].oe);
       const origS = S === out[first].os ? this.spans[first].s : toOrig(S);
       const origE = E === out[last].oe ? this.spans[last].e : toOrig(E) ;
-      const merged = nextCurrent.slice(S, E + (text.length - (ce - cs)));
+      const merged = current(S, cs) + text + current(ce, E);
       this.spans.splice(first, last - first + 1, { s: origS, e: origE, text: merged });
     }
     this.spans.sort((a, b) => a.s - b.s || a.e - b.e);
-    this.current = nextCurrent;
+    this.lines = this.lines.spliced(cs, ce, text);
+    this.built = undefined;
   }
 
   /** The recorded change as edits on the original text. */

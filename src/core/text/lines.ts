@@ -29,10 +29,40 @@ export class LineIndex {
   private readonly starts: number[] = [0];
   /** 1 when the text starts with a byte-order mark, else 0. */
   private readonly bom: number;
+  private readonly length: number;
+  /** The text, or how to make it (`spliced`: built only when read). */
+  private source: string | (() => string);
 
-  constructor(readonly text: string) {
+  constructor(text: string, spliced?: { starts: number[]; bom: number; length: number; text: () => string }) {
+    this.source = spliced ? spliced.text : text;
+    if (spliced) {
+      this.starts = spliced.starts;
+      this.bom = spliced.bom;
+      this.length = spliced.length;
+      return;
+    }
     for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) this.starts.push(i + 1);
     this.bom = text.charCodeAt(0) === BOM ? 1 : 0;
+    this.length = text.length;
+  }
+
+  get text(): string {
+    if (typeof this.source !== 'string') this.source = this.source();
+    return this.source;
+  }
+
+  /**
+   * The index of this text with [s, e) replaced by `inserted`, made from this one's line starts:
+   * neither this text nor the edited one is scanned, and the edited text is built only if read
+   * (a fix composed step by step on a big file: text/edits.ts `EditLog`).
+   */
+  spliced(s: number, e: number, inserted: string): LineIndex {
+    const delta = inserted.length - (e - s);
+    const starts = this.starts.slice(0, this.lineOf(s) + 1);
+    for (let i = inserted.indexOf('\n'); i >= 0; i = inserted.indexOf('\n', i + 1)) starts.push(s + i + 1);
+    for (let k = this.lineOf(e) + 1; k < this.starts.length; k++) starts.push(this.starts[k] + delta);
+    const bom = s > 0 ? this.bom : (inserted.length > 0 ? inserted : this.text.slice(e)).charCodeAt(0) === BOM ? 1 : 0;
+    return new LineIndex('', { starts, bom, length: this.length + delta, text: () => this.text.slice(0, s) + inserted + this.text.slice(e) });
   }
 
   get lineCount(): number {
@@ -41,7 +71,7 @@ export class LineIndex {
 
   /** The line holding `offset` (clamped to the text). */
   lineOf(offset: number): number {
-    const o = Math.max(0, Math.min(offset, this.text.length));
+    const o = Math.max(0, Math.min(offset, this.length));
     let lo = 0;
     let hi = this.starts.length - 1;
     while (lo < hi) {
@@ -52,7 +82,7 @@ export class LineIndex {
   }
 
   position(offset: number): Position {
-    const o = Math.max(0, Math.min(offset, this.text.length));
+    const o = Math.max(0, Math.min(offset, this.length));
     const line = this.lineOf(o);
     return { line, character: Math.max(0, o - this.contentStart(line)) };
   }
@@ -64,9 +94,9 @@ export class LineIndex {
   /** Offset of a position; a character past the line's end is clamped to it (before the line
    *  break, as LSP asks), a line past the last to the end of the text. */
   offset(p: Position): number {
-    if (p.line >= this.starts.length) return this.text.length;
+    if (p.line >= this.starts.length) return this.length;
     const line = Math.max(0, p.line);
-    const end = line + 1 < this.starts.length ? this.starts[line + 1] - 1 : this.text.length;
+    const end = line + 1 < this.starts.length ? this.starts[line + 1] - 1 : this.length;
     return Math.min(this.contentStart(line) + Math.max(0, p.character), end);
   }
 
