@@ -74,7 +74,7 @@ function analyze(text: string, file: string, opts: AnalyzeOptions, hooks: Analyz
     if (!spec) {
       return { file, parsed: parsed.parsed, mirrors: [], findings: sortFindings(withSuggestionFixes(parsed, file)), anchors: [] };
     }
-    const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve, units: hooks.cache?.units }));
+    const solved = withRequirements(spec, analyzeSpec(spec, { curve: opts.curve, units: hooks.cache?.units }), hooks.cache !== undefined);
     const net = attachNetworks(spec, solved);
     const mirrors: MirrorReport[] = attachVariation(spec, net.reports, { corners: opts.corners, mc: opts.mc, mcProgress: hooks.mcProgress });
     let findings: Finding[] = [
@@ -151,13 +151,25 @@ function wiringOf(spec: ResolvedSpec): MirrorWiring[] {
   return out;
 }
 
-/** Each report carries the requirements it is checked against, for the panel's "met" column. */
-function withRequirements(spec: ResolvedSpec, reports: MirrorReport[]): MirrorReport[] {
+/**
+ * Each report carries the requirements it is checked against, for the panel's "met" column: a
+ * copy (the analysis adds to its reports: a network's figures in place). In a spec without
+ * networks nothing is added in place, so with the file's cache a report read back from its
+ * solved units (the very copy of the last analysis: analysis/repeats.ts) gets the very copy made
+ * of it then.
+ */
+function withRequirements(spec: ResolvedSpec, reports: MirrorReport[], cached: boolean): MirrorReport[] {
+  const keep = cached && (!spec.networks || spec.networks.length === 0);
   return reports.map((r) => {
     const mirror = mirrorAt(spec, r.mirrorIndex);
-    if (!mirror) return r;
-    if (mirror.kind === 'netlist') return { ...r, require: mirror.require };
-    const out = mirror.outputs[r.outputIndex];
-    return out ? { ...r, require: out.require } : r;
+    if (!mirror) return { ...r };
+    const require = mirror.kind === 'netlist' ? mirror.require : mirror.outputs[r.outputIndex]?.require;
+    if (mirror.kind !== 'netlist' && !mirror.outputs[r.outputIndex]) return { ...r };
+    const kept = keep ? required.get(r) : undefined;
+    if (kept && kept.require === require) return kept.report;
+    const out = { ...r, require };
+    if (keep) required.set(r, { require, report: out });
+    return out;
   });
 }
+const required = new WeakMap<MirrorReport, { require: MirrorReport['require']; report: MirrorReport }>();

@@ -5,7 +5,7 @@
  *
  * A mirror's anchors read only its own item (every range is under `mirrors[i]`) and the names its
  * reports give it and its devices, so the editor keeps them across keystrokes (`MirrorAnchors`,
- * in the document's AnalysisCache): keyed by the mirror's index, its item as written and those
+ * in the document's AnalysisCache): keyed by the mirror's index, its item as written (by digest) and those
  * names, with lines counted from the item's first line, and moved to where it now starts.
  */
 import type { Anchor, DeviceReport, MirrorReport, ResolvedMirror, SpecPath } from './types';
@@ -49,19 +49,22 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[], store?
   const spec = parsed.spec;
   if (!spec) return [];
   const anchors: Anchor[] = [];
-  // Maps and sets, not searches: a 3 000-mirror file has ~12 000 anchors.
-  const byPath = new Map(reports.map((r) => [pathKey(r.path), r]));
+  // Maps and sets, not searches: a 3 000-mirror file has ~12 000 anchors. With a store (the
+  // editor), an output's report is found by its path object first (the report's path is its
+  // output's), by path text only when that misses.
+  let byPath: Map<string, MirrorReport> | undefined;
+  const byRef = store ? new Map(reports.map((r) => [r.path, r])) : undefined;
+  const reportAt = (path: SpecPath): MirrorReport | undefined => byRef?.get(path) ?? (byPath ??= new Map(reports.map((r) => [pathKey(r.path), r]))).get(pathKey(path));
   const firstByMirror = new Map<string, MirrorReport>();
   for (const r of reports) if (!firstByMirror.has(r.mirror)) firstByMirror.set(r.mirror, r);
   const frags = store ? MirrorFragments.of(parsed) : undefined;
   spec.mirrors.forEach((mirror) => {
     const first = firstByMirror.get(mirror.name);
     if (!first) return;
-    const outputs = mirror.kind === 'netlist' ? [] : mirror.outputs.map((out) => ({ path: out.path, report: byPath.get(pathKey(out.path)) }));
+    const outputs = mirror.kind === 'netlist' ? [] : mirror.outputs.map((out) => ({ path: out.path, report: reportAt(out.path) }));
     const i = indexOf(mirror);
     const span = frags?.lineSpan(i);
-    const item = span && frags!.itemTexts(i, []);
-    const key = item && `${i}\u0000${item.original}\u0000${JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])])}`;
+    const key = span && frags!.itemKey(i, namesKey(mirror, first, outputs));
     const kept = key === undefined ? undefined : store!.get(key, span!.first);
     if (kept) {
       anchors.push(...kept);
@@ -81,6 +84,26 @@ export function buildAnchors(parsed: ParsedSpec, reports: MirrorReport[], store?
 function moved(a: Anchor, lines: number): Anchor {
   return { ...a, range: { start: { line: a.range.start.line + lines, character: a.range.start.character }, end: { line: a.range.end.line + lines, character: a.range.end.character } } };
 }
+
+/**
+ * What a mirror's anchors read of its reports, as text: its kind, and each report's name and its
+ * devices' names and roles (`named`). Kept with the mirror object (a value) and the reports'
+ * names and device lists it was written from: a report read back from the solved units shares
+ * its device list, so an unchanged mirror's text is not written again, and its key is the same
+ * string (`MirrorFragments.itemKey`).
+ */
+function namesKey(mirror: ResolvedMirror, first: MirrorReport, outputs: { path: SpecPath; report?: MirrorReport }[]): string {
+  const memo = namesKeys.get(mirror);
+  const same = (r: MirrorReport | undefined, k: number): boolean => {
+    const was = memo!.reports[k];
+    return r === undefined ? was === undefined : was !== undefined && was.name === r.name && was.devices === r.devices;
+  };
+  if (memo && memo.reports.length === outputs.length + 1 && same(first, 0) && outputs.every((o, k) => same(o.report, k + 1))) return memo.text;
+  const text = JSON.stringify([mirror.kind, named(first), outputs.map((o) => [o.path, o.report && named(o.report)])]);
+  namesKeys.set(mirror, { reports: [first, ...outputs.map((o) => o.report)].map((r) => r && { name: r.name, devices: r.devices }), text });
+  return text;
+}
+const namesKeys = new WeakMap<ResolvedMirror, { reports: ({ name: string; devices: readonly DeviceReport[] } | undefined)[]; text: string }>();
 
 /** What a mirror's anchors read of a report: its name and its devices' names and roles (a
  *  report read back from the solved units shares its device list: written once). */

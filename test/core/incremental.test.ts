@@ -236,4 +236,33 @@ describe('incremental analysis', () => {
     expect(cache.stats.unitsSolved).toBe(memberReports);
     expect(cache.stats.unitsReused).toBe(r.mirrors.length - memberReports);
   });
+
+  it('equals a fresh analysis while edits inside other mirrors decide whether the EKV fix is offered, and after edits outside the mirrors', () => {
+    // faultySpecText(6): `simple_nmos_0` runs in weak inversion (square-law-weak-inversion). Its
+    // fix, `model: ekv`, is re-checked on the whole file, where `cascode_nmos_1` and
+    // `wilson_nmos_3` leave saturation in the EKV model until their output voltages are raised:
+    // the fix is offered only while both are. Each keystroke reads the re-check's other mirrors
+    // back (by their items) and finds the edited one's again.
+    const cache = new AnalysisCache();
+    let text = faultySpecText(6);
+    const offersEkv = (r: FileReport): boolean => r.findings.some((f) => f.code === 'square-law-weak-inversion' && (f.fixes ?? []).some((x) => x.edits.some((e) => e.newText === 'ekv')));
+    const offered = [offersEkv(same(text, cache))];
+    const step = (from: string, to: string): void => {
+      const next = text.replace(from, to);
+      expect(next).not.toBe(text);
+      text = next;
+      offered.push(offersEkv(same(text, cache)));
+    };
+    step('output: { v: 0.67 }', 'output: { v: 0.97 }');      // cascode_nmos_1 raised
+    step('output: { v: 0.71 }', 'output: { v: 0.91 }');      // wilson_nmos_3 raised: the fix holds
+    step('output: { v: 0.97 }', 'output: { v: 0.67 }');      // cascode_nmos_1 back: refused again
+    step('output: { v: 0.67 }', 'output: { v: 0.97 }');      // and raised again
+    step('input: 10u', 'input: 10u ');                       // typed at a line's end (a line break after the edit)
+    step('lu: 1u', 'lu: 1u # unit length');                  // a comment outside the mirrors: the whole text is scanned
+    step('grid: 10n', 'grid: 10n ');                         // a space after a process value
+    step('input: 8u', 'input: 8\ru');                        // a bare carriage return: refused for a moment
+    step('input: 8\ru', 'input: 8u');
+    step('name: simple_pmos_5', 'name: simple_pmos_5b');     // a name: every re-check's context
+    expect(offered).toEqual([false, false, true, false, true, true, true, true, false, true, true]);
+  });
 });

@@ -46,6 +46,8 @@ function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean)
   return `${outputIndex}|${curve ? 1 : 0}|${known}`;
 }
 const circuitKeys = new WeakMap<ResolvedMirror, string>();
+/** Each mirror's last store keys by output (`RepeatedMirrors.keyOf`), with what they were made with. */
+const keysOf = new WeakMap<ResolvedMirror, { prefix: string; curve: boolean; keys: string[] }>();
 
 /**
  * A cheap part of circuitKey: equal keys have equal prints, so a mirror whose print no other
@@ -88,9 +90,13 @@ export function linkedInputs(spec: ResolvedSpec): ReadonlyMap<number, string> {
 }
 const linkedBySpec = new WeakMap<ResolvedSpec, Map<number, string>>();
 
+/** A kept report, and the copies of it handed out (`SolvedUnits.read`), each with the last
+ *  analysis (generation) that handed it out. */
+interface Unit { report: MirrorReport; copies: { report: MirrorReport; used: number }[] }
+
 /** Solved reports kept across analyses of one file, by solve unit (see above). */
 export class SolvedUnits {
-  private readonly solved = new SweptMap<string, MirrorReport>();
+  private readonly solved = new SweptMap<string, Unit>();
   /** Of the last analysis: reports solved, and reports read back. */
   solvedNow = 0;
   reusedNow = 0;
@@ -102,15 +108,32 @@ export class SolvedUnits {
     this.reusedNow = 0;
   }
 
-  get(key: string): MirrorReport | undefined {
-    const report = this.solved.get(key);
-    if (report) this.reusedNow++;
+  /**
+   * The kept report of `key` with identity `id`, or undefined. Read back with an identity it had
+   * in this analysis or the last, a mirror gets the very copy handed out then (a report is a
+   * value nothing changes after the analysis; the analysis copies its reports before adding to
+   * them), so a keystroke does not copy 500 reports for each spec it solves.
+   */
+  read(key: string, id: ReportIdentity): MirrorReport | undefined {
+    const u = this.solved.get(key);
+    if (!u) return undefined;
+    this.reusedNow++;
+    const generation = this.solved.generation;
+    for (const c of u.copies) {
+      if (c.used >= generation - 1 && sameIdentity(c.report, id)) {
+        c.used = generation;
+        return c.report;
+      }
+    }
+    if (u.copies.length >= 4) u.copies = u.copies.filter((c) => c.used >= generation - 1);
+    const report = withIdentity({ ...u.report }, id);
+    u.copies.push({ report, used: generation });
     return report;
   }
 
   set(key: string, report: MirrorReport): void {
     this.solvedNow++;
-    this.solved.set(key, report);
+    this.solved.set(key, { report, copies: [] });
   }
 
   /** Drops every report the last analysis did not use. */
@@ -159,12 +182,22 @@ export class RepeatedMirrors {
 
   private keyOf(ctx: MirrorContext): string {
     const group = this.linked?.get(indexOf(ctx.mirror));
-    return this.context + (group === undefined ? '' : `${group}|`) + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
+    const prefix = group === undefined ? this.context : `${this.context}${group}|`;
+    // The key string itself is kept with the mirror object: a store looks a string up by its
+    // hash, which V8 keeps in the string, so an unchanged mirror's key is neither written nor
+    // hashed again on the next keystroke.
+    let memo = keysOf.get(ctx.mirror);
+    if (memo?.prefix !== prefix || memo.curve !== this.curve) keysOf.set(ctx.mirror, memo = { prefix, curve: this.curve, keys: [] });
+    return memo.keys[ctx.outputIndex] ??= prefix + circuitKey(ctx.mirror, ctx.outputIndex, this.curve);
   }
 
   private keyed(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
     const key = this.keyOf(ctx);
-    const known = this.solved.get(key);
+    if (this.solved instanceof SolvedUnits) {
+      const read = this.solved.read(key, reportIdentity(ctx));
+      if (read) return read;
+    }
+    const known = this.solved instanceof SolvedUnits ? undefined : this.solved.get(key);
     if (!known) {
       const clocked = clockedSolveCount();
       const r = measure();
@@ -191,6 +224,15 @@ export class RepeatedMirrors {
  */
 export function clockFree(r: MirrorReport): boolean {
   return r.converged && r.solveNote === undefined;
+}
+
+/** The report carries identity `id` (what withIdentity writes). */
+function sameIdentity(r: MirrorReport, id: ReportIdentity): boolean {
+  if (r.name !== id.name || r.mirror !== id.mirror || r.mirrorIndex !== id.mirrorIndex || r.outputIndex !== id.outputIndex || r.output !== id.output) return false;
+  if (r.path === id.path) return true;
+  if (r.path.length !== id.path.length) return false;
+  for (let k = 0; k < r.path.length; k++) if (r.path[k] !== id.path[k]) return false;
+  return true;
 }
 
 function withIdentity(r: MirrorReport, id: ReportIdentity): MirrorReport {

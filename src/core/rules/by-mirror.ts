@@ -3,7 +3,7 @@
  * editor analyses on every keystroke): a keystroke in one mirror finds and verifies that mirror's
  * findings again and reads the others' back, moved to where their mirror now starts.
  *
- * What a mirror's findings depend on is its key: the mirror's index and item text, its network
+ * What a mirror's findings depend on is its key: the mirror's index and item text (by digest), its network
  * (`linkedInputs`: every member as resolved and the joint solution), everything outside the items
  * (`recheckContext`: the data beside `mirrors`, the resolved spec but its mirrors, every mirror's
  * name, kind and polarities), the text above the first item (a fix's edit there keeps its
@@ -88,10 +88,11 @@ export class MirrorFindings {
     if (!frags || !groups) return undefined;
     const context = digest(canonicalJson([recheckContext(rc), 'quick']));
     const linked = linkedInputs(rc.spec);
+    const unlinked = `\u0000${context}`;
     const out: Found[] = [];
     for (const g of groups) {
-      const item = frags.itemTexts(g.mirrorIndex, []);
-      const key = item && `${g.mirrorIndex}\u0000${item.original}\u0000${linked.get(g.mirrorIndex) ?? ''}\u0000${context}`;
+      const group = linked.get(g.mirrorIndex);
+      const key = frags.itemKey(g.mirrorIndex, group === undefined ? unlinked : `${group}${unlinked}`);
       const kept = key === undefined ? undefined : this.quick.get(key);
       if (kept) {
         out.push(...kept);
@@ -187,14 +188,16 @@ export function findingsByMirror(rc: RuleContext, run: MirrorRun): Finding[] | u
   // recheckContext(rc), computed once for the run's local re-checks.
   const context = digest(canonicalJson([run.recheckStore.context, header, run.settings]));
   const linked = linkedInputs(rc.spec);
+  const unlinked = `\u0000${context}`;
   const errors = new Set<string>();
   for (const g of groups) {
     const span = frags.lineSpan(g.mirrorIndex);
-    const item = frags.itemTexts(g.mirrorIndex, []);
-    if (span && item) {
+    const group = linked.get(g.mirrorIndex);
+    const key = frags.itemKey(g.mirrorIndex, group === undefined ? unlinked : `${group}${unlinked}`);
+    if (span && key !== undefined) {
       g.first = span.first;
       g.last = span.last;
-      g.key = `${g.mirrorIndex}\u0000${item.original}\u0000${linked.get(g.mirrorIndex) ?? ''}\u0000${context}`;
+      g.key = key;
       g.entry = run.store.get(g.key);
     }
     if (g.entry) for (const k of g.entry.errors) errors.add(k);

@@ -12,7 +12,7 @@
  * what lies outside every item (`recheckContext`), and for a linked mirror on its network: a `Rechecks` store kept across analyses of
  * one file answers it again without a parse or a solve while the designer types elsewhere.
  */
-import type { MirrorReport, Requirements, ResolvedSpec, TextEdit } from '../types';
+import type { MirrorReport, Requirements, ResolvedMirror, ResolvedSpec, TextEdit } from '../types';
 import { fromRead, looksJson, type ParsedSpec } from '../spec/index';
 import { resolveParsed, resolveText } from '../resolve';
 import { elaborate } from '../spec/elaborate';
@@ -137,9 +137,28 @@ export class Rechecks {
 export function recheckContext(rc: RuleContext): string {
   const data = rc.parsed.data;
   const root = isRecord(data) ? { ...data, mirrors: undefined } : undefined;
-  const mirrors = rc.spec.mirrors.map((m) => [m.name, m.kind, m.kind === 'netlist' ? m.devices.map((d) => d.type) : m.type]);
-  return digest(canonicalJson([root, { ...rc.spec, mirrors: undefined }, mirrors, rc.json, rc.file]));
+  return digest(canonicalJson([root, { ...rc.spec, mirrors: undefined }, mirrorsDigest(rc.spec.mirrors), rc.json, rc.file]));
 }
+
+/** The digest of every mirror's [name, kind, polarities] in canonical JSON, each mirror's written
+ *  once per mirror object (a value the next parse hands on); the last list's digest is kept, as a
+ *  keystroke changes none of them. */
+function mirrorsDigest(mirrors: readonly ResolvedMirror[]): string {
+  const parts = mirrors.map(namesOf);
+  const last = lastMirrors;
+  if (last && last.parts.length === parts.length && parts.every((p, k) => p === last.parts[k])) return last.digest;
+  lastMirrors = { parts, digest: digest(`[${parts.join(',')}]`) };
+  return lastMirrors.digest;
+}
+let lastMirrors: { parts: string[]; digest: string } | undefined;
+
+/** canonicalJson of a mirror's name, kind and polarities (recheckContext), once per mirror object. */
+function namesOf(m: ResolvedMirror): string {
+  let s = names.get(m);
+  if (s === undefined) names.set(m, s = canonicalJson([m.name, m.kind, m.kind === 'netlist' ? m.devices.map((d) => d.type) : m.type]));
+  return s;
+}
+const names = new WeakMap<ResolvedMirror, string>();
 
 function found(drafts: Draft[]): Found[] {
   return drafts.map((d) => ({ key: d.key, error: d.finding.severity === 'error', mirrorIndex: d.mirrorIndex }));

@@ -156,6 +156,38 @@ export function refusal(text: string, lines: LineIndex): Finding | undefined {
   return undefined;
 }
 
+/**
+ * An edited text is refused (`refusal`) exactly as the text `old` it was edited from — not at all,
+ * for a text read without refusal — when it is no longer than the limit and the edit (between the
+ * common prefix `a` and suffix `s`) writes and removes only plain characters on one line, beside
+ * neighbours that no scan reads differently: no line break (but after the edit), carriage return,
+ * control or invalid character, nothing the flow-depth scan acts on (brackets, quotes, `#`) or an
+ * escape, so every scan of the text reads the same marks in the same states. Anything else is
+ * scanned whole, as before (spec/incremental.ts, and the EKV fix's re-read: spec/fragment.ts).
+ */
+export function refusesAsBefore(old: string, text: string, a: number, s: number): boolean {
+  if (text.length > SPEC_LIMITS.maxChars) return false;
+  if (a > 0 && !quiet(text.charCodeAt(a - 1))) return false;
+  // A line break after the edit is read the same: only its own character and the one after it
+  // (a CR's) decide what a scan makes of it, and neither changed.
+  if (s > 0 && !quiet(text.charCodeAt(text.length - s)) && !lineBreak(text.charCodeAt(text.length - s))) return false;
+  for (let i = a; i < text.length - s; i++) if (!quiet(text.charCodeAt(i))) return false;
+  for (let i = a; i < old.length - s; i++) if (!quiet(old.charCodeAt(i))) return false;
+  return true;
+}
+
+function lineBreak(c: number): boolean {
+  return c === 10 || c === 13;
+}
+
+/** A character no refusal scan acts on or looks behind: printable, a tab, or a space. */
+function quiet(c: number): boolean {
+  if (c === 9) return true;
+  if (c < 0x20 || c === 0x7f || c === 0xfffd) return false;
+  // " # ' [ \ ] { }
+  return c !== 34 && c !== 35 && c !== 39 && c !== 91 && c !== 92 && c !== 93 && c !== 123 && c !== 125;
+}
+
 export function readDocument(text: string, lines: LineIndex): ReadDocument {
   const refused = refusal(text, lines);
   if (refused) return { parsed: false, findings: [refused] };

@@ -16,11 +16,12 @@ import type { Document } from 'yaml';
 import type { Finding, Range, SpecPath, TextEdit } from '../types';
 import { SPEC_LIMITS } from '../defaults';
 import type { ParsedSpec } from './index';
-import { duplicateKeys, readDocument, refusal, YAML_OPTIONS, type ReadDocument } from './document';
+import { duplicateKeys, readDocument, refusal, refusesAsBefore, YAML_OPTIONS, type ReadDocument } from './document';
 import { documentData } from './data';
 import { LineIndex, linesDown } from '../text/lines';
 import type { SourceMap } from './source-map';
 import { YamlSourceMap } from './source-map';
+import { digest } from '../canonical';
 
 /** Where one mirror item sits in the original text (offsets). */
 interface ItemSpan {
@@ -32,6 +33,10 @@ interface ItemSpan {
   end: number;
   /** 0-based line of `lineStart`. */
   line: number;
+  /** The digest of the item's text from `lineStart` to `end`, and the per-mirror cache keys made
+   *  of it (`itemKey`): made on first use, carried with the span while the item's text stays. */
+  digest?: string;
+  keys?: { rest: string; key: string }[];
 }
 
 /** One mirror item of an edited text, read alone. */
@@ -145,7 +150,7 @@ export class MirrorFragments {
     out[index] = spanOf(item, to.lines.text, to.lines);
     for (let j = index + 1; j < out.length; j++) {
       const s = out[j];
-      if (s) out[j] = { lineStart: s.lineStart + delta, content: s.content + delta, end: s.end + delta, line: s.line + lineDelta };
+      if (s) out[j] = { lineStart: s.lineStart + delta, content: s.content + delta, end: s.end + delta, line: s.line + lineDelta, digest: s.digest, keys: s.keys };
     }
     spansOf.set(to, out);
     outsideOf.set(to, this.outside);
@@ -289,8 +294,10 @@ export class MirrorFragments {
     if (!edits.every((e) => this.lines.offset(e.range.end) < keyLineStart && positionExists(this.lines, e.range.start) && positionExists(this.lines, e.range.end))) return undefined;
     const delta = text.length - this.original.length;
     if (keyLineStart + delta < 0 || text.slice(keyLineStart + delta) !== this.original.slice(keyLineStart)) return undefined;
-    // The whole text is refused (too large, a control byte, runaway flow nesting) as a whole read would.
-    if (refusal(text, LineIndex.of(text))) return undefined;
+    // The whole text is refused (too large, a control byte, runaway flow nesting) as a whole read
+    // would; the original was read without refusal, so an edit of plain characters (the EKV fix's
+    // model name) is not scanned again.
+    if (!this.quietEdit(text, edits) && refusal(text, LineIndex.of(text))) return undefined;
     const cut = text.slice(0, itemsStart + delta);
     // The same lines read the same document: an earlier read of them is taken as it is.
     const again = prior?.head === cut ? prior.alone : undefined;
@@ -314,6 +321,40 @@ export class MirrorFragments {
       head: cut,
       alone: { read, map },
     };
+  }
+
+  /**
+   * A per-mirror cache key: mirror `index`, its item as written (`itemTexts(index, []).original`,
+   * by digest) and `rest`. The same string object while the item and `rest` stay the same (a
+   * spliced parse carries the unedited items' keys): a map hashes a string once, so a keystroke
+   * neither writes nor hashes the 500 unedited mirrors' keys again.
+   */
+  itemKey(index: number, rest: string): string | undefined {
+    const sp = this.spans[index];
+    if (!sp) return undefined;
+    sp.digest ??= digest(this.original.slice(sp.lineStart, sp.end));
+    const keys = sp.keys ??= [];
+    for (const k of keys) if (k.rest === rest) return k.key;
+    const key = `${index}\u0000${sp.digest}\u0000${rest}`;
+    // A few caches key each mirror (its findings, its anchors, the EKV fix's re-check of it).
+    if (keys.length >= 4) keys.shift();
+    keys.push({ rest, key });
+    return key;
+  }
+
+  /** `text` is the original with `edits` applied, and refused as the original is (not at all:
+   *  it has a tree) by `refusesAsBefore`. */
+  private quietEdit(text: string, edits: readonly TextEdit[]): boolean {
+    if (edits.length === 0) return false;
+    let a = Infinity;
+    let b = 0;
+    for (const e of edits) {
+      a = Math.min(a, this.lines.offset(e.range.start));
+      b = Math.max(b, this.lines.offset(e.range.end));
+    }
+    const s = this.original.length - b;
+    return a <= b && a <= text.length - s && text.slice(0, a) === this.original.slice(0, a) &&
+      text.slice(text.length - s) === this.original.slice(b) && refusesAsBefore(this.original, text, a, s);
   }
 
   /** The line of the original text where mirror `index`'s fragment starts, and where it ends. */
