@@ -17,6 +17,9 @@ export interface NetworkGroup {
 
 /** Groups in file order of their roots; a mirror neither linked nor feeding belongs to none. */
 export function networkGroups(spec: ResolvedSpec): NetworkGroup[] {
+  // A spec without links has no group: read on every analysis (the editor's keystroke too), so
+  // it costs one pass and no allocation there.
+  if (!spec.mirrors.some((m) => m.kind !== 'netlist' && m.input.kind === 'link')) return [];
   // Keys in first-insertion order, read by index (a Map's entries would make an array each).
   const templates = new Map<number, TemplateMirror>();
   const keys: number[] = [];
