@@ -19,9 +19,14 @@ import type { WiredTemplate } from './templates';
 /** A shape's circuit as first built, the mirror it was built for, and where its outputs are held. */
 export interface Shape { m: TemplateMirror; c: Circuit; wired: WiredTemplate; outIdx: number[] }
 
-/** Per spec, the shapes by a print of what tells them apart most often; a few per print (a
+/** A mirror seen in a spec, and its shape's circuit once a second mirror of that shape (or a
+ *  second build of the same mirror) asked for it: a spec of all-different mirrors builds each
+ *  once and copies nothing. */
+interface Seen { m: TemplateMirror; shape?: Shape }
+
+/** Per spec, the mirrors seen by a print of what tells them apart most often; a few per print (a
  *  spec of all-different mirrors compares each with a few, not with every other). */
-const bySpec = new WeakMap<ResolvedSpec, Map<string, Shape[]>>();
+const bySpec = new WeakMap<ResolvedSpec, Map<string, Seen[]>>();
 const PER_PRINT = 4;
 
 /** Whether two values are the same, field by field (numbers by Object.is: −0, NaN). */
@@ -64,8 +69,8 @@ function sameShape(a: TemplateMirror, b: TemplateMirror): boolean {
 }
 
 /** The shape of `m` built for output `outputIndex` (cascode gate held at `vbias`) in `spec`:
- *  `known` when one was built, else `keep` to record the one built now; undefined when `m`'s
- *  circuit is not shared. `bank`: whether `m` names its devices by output (a path length tells,
+ *  `known` when one was built, `keep` to record the one built now when a mirror of its shape was
+ *  seen before; undefined when `m`'s circuit is not shared (yet). `bank`: whether `m` names its devices by output (a path length tells,
  *  which the comparison leaves out). */
 export function shapeOf(spec: ResolvedSpec, m: TemplateMirror, bank: boolean, outputIndex: number, vbias: number | undefined):
   { known: Shape } | { keep: (s: Shape) => void } | undefined {
@@ -76,10 +81,15 @@ export function shapeOf(spec: ResolvedSpec, m: TemplateMirror, bank: boolean, ou
   if (!prints) { prints = new Map(); bySpec.set(spec, prints); }
   const print = `${m.kind}|${m.type}|${bank ? 1 : 0}|${outputIndex}|${vbias === undefined ? '' : Object.is(vbias, -0) ? '-0' : vbias}`;
   const list = prints.get(print) ?? [];
-  for (const s of list) if (sameShape(s.m, m)) return { known: s };
+  for (const seen of list) {
+    if (!sameShape(seen.m, m)) continue;
+    if (seen.shape) return { known: seen.shape };
+    return { keep: (s) => { seen.shape = s; } };
+  }
   if (list.length >= PER_PRINT) return undefined;
   if (list.length === 0) prints.set(print, list);
-  return { keep: (s) => { list.push(s); } };
+  list.push({ m });
+  return undefined;
 }
 
 /** The shape's circuit for mirror `m`: its input current and held output voltages, elements of

@@ -228,8 +228,9 @@ export function buildTemplate(
   vbias: number | undefined, perturb?: PerturbationLike,
 ): MirrorCircuit {
   const kind = KINDS[m.kind];
-  // A mirror of a shape built before in this spec takes that circuit, copied (shapes.ts); the
-  // first of a shape keeps its build and takes a copy too, so nothing changes the kept one.
+  // A mirror of a shape seen before in this spec takes that circuit, copied (shapes.ts); the
+  // second of a shape builds the kept one and takes a copy too, so nothing changes the kept one;
+  // the first is built as any other (a spec of all-different mirrors copies nothing).
   const found = perturb ? undefined : shapeOf(spec, m, isBank(m), outputIndex, vbias);
   let shape = found && 'known' in found ? found.known : undefined;
   if (found && 'keep' in found) { shape = builtShape(spec, m, outputIndex, vout, vbias); found.keep(shape); }
