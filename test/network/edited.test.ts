@@ -104,12 +104,18 @@ describe('a network re-solved with one member edited equals the network built an
   });
 });
 
-describe('every member of the example\'s networks edited in turn', () => {
+/** The example as the analysis resolves it (`base`), its networks solved and handed on (`pre`),
+ *  and their groups. */
+function exampleNetworks(): { base: ResolvedSpec; pre: ResolvedSpec; groups: ReturnType<typeof networkGroups> } {
   const tables = exampleTables();
   const text = readFileSync(EXAMPLE_PATH, 'utf8');
   const base = resolveText(text, 'sensor-afe.bias.yaml', { tables }).parsed.spec!;
   const pre = presolved(text, tables);
-  const groups = networkGroups(pre);
+  return { base, pre, groups: networkGroups(pre) };
+}
+
+describe('every member of the example\'s networks edited in turn', () => {
+  const { base, pre, groups } = exampleNetworks();
 
   it('the example has networks: a reference root with start-up, a wide-swing member (its vbias picked), bipolar ones', () => {
     expect(groups.length).toBeGreaterThan(1);
@@ -149,11 +155,7 @@ describe('a re-check that reads the edited mirror alone: that mirror as the whol
   // Check values: the whole edited network built and solved cold (solveNetworks), as above; where
   // the edited mirror's subtree is solved alone (its feeder's output devices MOSFETs on a rail),
   // the same equations to the same tolerances.
-  const tables = exampleTables();
-  const text = readFileSync(EXAMPLE_PATH, 'utf8');
-  const base = resolveText(text, 'sensor-afe.bias.yaml', { tables }).parsed.spec!;
-  const pre = presolved(text, tables);
-  const groups = networkGroups(pre);
+  const { base, pre, groups } = exampleNetworks();
 
   for (const g of groups) {
     for (const m of g.members) {

@@ -16,8 +16,8 @@ import { mosWith, type CircuitElement, type DeviceElement } from './elements/ele
 import { copyDevice } from '../models/device';
 import type { WiredTemplate } from './templates';
 
-/** A shape's circuit as first built, the mirror it was built for, and where its outputs are held. */
-export interface Shape { m: TemplateMirror; c: Circuit; wired: WiredTemplate; outIdx: number[] }
+/** A shape's circuit as first built, and where its outputs are held. */
+export interface Shape { c: Circuit; wired: WiredTemplate; outIdx: number[] }
 
 /** A mirror seen in a spec, and its shape's circuit once a second mirror of that shape (or a
  *  second build of the same mirror) asked for it: a spec of all-different mirrors builds each

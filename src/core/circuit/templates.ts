@@ -275,7 +275,7 @@ function builtShape(spec: ResolvedSpec, m: TemplateMirror, outputIndex: number, 
   const measuredOut = wired.outNodes[outputIndex] ?? 'out';
   if (wired.outNodes[outputIndex] === undefined) b.problems.push(`output index ${outputIndex} does not exist`);
   const c = b.build(measuredOut, polaritySign(m.type), vss, vdd);
-  return { m, c, wired, outIdx: wired.outNodes.map((n) => c.nodeNames.indexOf(n)) };
+  return { c, wired, outIdx: wired.outNodes.map((n) => c.nodeNames.indexOf(n)) };
 }
 
 /** The mirror circuit of `c`, wired by `wired`, its measured output's devices by role `byRole`:
