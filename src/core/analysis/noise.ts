@@ -8,7 +8,7 @@
 import { DEFAULTS, DRIFT } from '../defaults';
 import type { Circuit } from '../circuit/circuit';
 import type { CapacitorElement } from '../circuit/elements/element';
-import { elementNoise, type NoiseSource } from '../circuit/elements/noise';
+import { elementNoise, NoiseSources } from '../circuit/elements/noise';
 import { luFactor, luSolve } from '../circuit/lu';
 import type { Workspace } from '../circuit/workspace';
 import type { AnalysisSpec, NoiseReport } from '../types';
@@ -22,14 +22,16 @@ type Transfer = (f: number) => Float64Array;
 
 /** |gain|² of each source: a current leaving node k moves the output by −λ(k) through the node
  *  voltages, and by 1 more when it flows through the probed elements out of the probed node. */
-function gainOf(p: OutputProbe, n: number, re: Float64Array, im: Float64Array | undefined, sources: NoiseSource[], out: Float64Array): void {
+function gainOf(p: OutputProbe, n: number, re: Float64Array, im: Float64Array | undefined, sources: NoiseSources, out: Float64Array): void {
   const wRe = (k: number): number => (k < n ? -re[k]! : 0);
   const wIm = (k: number): number => (im && k < n ? -im[k]! : 0);
-  sources.forEach((s, i) => {
-    const direct = owns(p, s.element) ? (s.from === p.node ? 1 : 0) - (s.to === p.node ? 1 : 0) : 0;
-    const a = direct + wRe(s.from) - wRe(s.to), b = wIm(s.from) - wIm(s.to);
+  const { element, from, to } = sources;
+  for (let i = 0; i < sources.length; i++) {
+    const f = from[i]!, t = to[i]!;
+    const direct = owns(p, element[i]!) ? (f === p.node ? 1 : 0) - (t === p.node ? 1 : 0) : 0;
+    const a = direct + wRe(f) - wRe(t), b = wIm(f) - wIm(t);
     out[i] = a * a + b * b;
-  });
+  }
 }
 
 /** The DC transfer's buffer, kept from one output to the next (its first sources.length entries
@@ -38,7 +40,7 @@ let dcGains = new Float64Array(256);
 
 /** The DC transfer from the output adjoint λ (capacitors open), in dcGains (valid until the
  *  next call). */
-function dcTransfer(ws: Workspace, pr: Probed, sources: NoiseSource[]): Float64Array {
+function dcTransfer(ws: Workspace, pr: Probed, sources: NoiseSources): Float64Array {
   if (dcGains.length < sources.length) dcGains = new Float64Array(2 * sources.length);
   gainOf(pr.probe, ws.n, pr.lam, undefined, sources, dcGains);
   return dcGains;
@@ -65,14 +67,14 @@ function dictionary(): Record<string, number> {
  *  partNames/partValues (returns their count in `count`). `distinct`: no element name comes back
  *  after another element's sources (each element's are consecutive and names are unique), so a
  *  name is looked for only among the parts just before it. */
-function psdParts(sources: NoiseSource[], h: Float64Array, f: number, distinct: boolean, count: { n: number }): number {
+function psdParts(sources: NoiseSources, h: Float64Array, f: number, distinct: boolean, count: { n: number }): number {
   let total = 0, n = 0, last = -1;
   let lastName: string | undefined;
+  const { element, white, flicker } = sources;
   for (let i = 0; i < sources.length; i++) {
-    const s = sources[i]!;
-    const p = h[i]! * (s.white + s.flicker / f);
+    const p = h[i]! * (white[i]! + flicker[i]! / f);
     total += p;
-    const name = s.element;
+    const name = element[i]!;
     if (name !== lastName) {
       last = -1;
       if (!distinct) for (let k = 0; k < n; k++) if (partNames[k] === name) { last = k; break; }
@@ -92,7 +94,7 @@ function psdParts(sources: NoiseSource[], h: Float64Array, f: number, distinct: 
 
 /** The AC transfer: Yᵀ·λ = y_out with Y = G + jωC over the free nodes, solved as the real
  *  system [[A, −B], [B, A]] of twice the size. */
-function acTransfer(ws: Workspace, pr: Probed, caps: CapacitorElement[], sources: NoiseSource[]): Transfer {
+function acTransfer(ws: Workspace, pr: Probed, caps: CapacitorElement[], sources: NoiseSources): Transfer {
   const n = ws.n, m = 2 * n;
   const { colPtr, rowIdx, freeEnd } = ws.pattern;
   const a = new Float64Array(m * m), perm = new Int32Array(m), tmp = new Float64Array(m), rhs = new Float64Array(m);
@@ -127,13 +129,14 @@ function acTransfer(ws: Workspace, pr: Probed, caps: CapacitorElement[], sources
 }
 
 /** A², Σ_k |H_k(f)|²·(white_k + flicker_k/f), and each element's part into `parts` when given. */
-function psd(sources: NoiseSource[], h: Float64Array, f: number, parts?: Map<string, number>): number {
+function psd(sources: NoiseSources, h: Float64Array, f: number, parts?: Map<string, number>): number {
   let total = 0;
-  sources.forEach((s, i) => {
-    const p = h[i]! * (s.white + s.flicker / f);
+  const { element, white, flicker } = sources;
+  for (let i = 0; i < sources.length; i++) {
+    const p = h[i]! * (white[i]! + flicker[i]! / f);
     total += p;
-    if (parts) parts.set(s.element, (parts.get(s.element) ?? 0) + p);
-  });
+    if (parts) parts.set(element[i]!, (parts.get(element[i]!) ?? 0) + p);
+  }
   return total;
 }
 
@@ -145,14 +148,14 @@ function logGrid(f1: number, f2: number, perDecade: number): number[] {
 /** The circuit's noise sources at ws.v and its capacitors: what every output of one solution
  *  shares (network/drift.ts computes them once for a group's outputs). */
 export interface NoiseParts {
-  sources: NoiseSource[]; caps: CapacitorElement[];
+  sources: NoiseSources; caps: CapacitorElement[];
   /** Each element's sources are consecutive and no two elements share a name (a network's
    *  sources by element, drift.ts): a part is then found without a search. */
   distinct?: boolean;
 }
 
 export function noiseParts(c: Circuit, ws: Workspace, temperature: number): NoiseParts {
-  const sources: NoiseSource[] = [];
+  const sources = new NoiseSources();
   for (const e of c.elements) elementNoise(e, ws.v, ws.ch, temperature, sources);
   return { sources, caps: c.elements.filter((e): e is CapacitorElement => e.kind === 'capacitor') };
 }
@@ -187,7 +190,7 @@ export function outputNoise(
 
   // The DC transfer's white and flicker sums (the integral without capacitors, and the corner).
   let white0 = 0, flicker0 = 0;
-  for (let i = 0; i < sources.length; i++) { const x = sources[i]!; white0 += h0[i]! * x.white; flicker0 += h0[i]! * x.flicker; }
+  for (let i = 0; i < sources.length; i++) { white0 += h0[i]! * sources.white[i]!; flicker0 += h0[i]! * sources.flicker[i]!; }
   let integrated: number;
   const [f1, f2] = band;
   if (caps.length === 0) {

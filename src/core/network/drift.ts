@@ -14,6 +14,7 @@ import { assemble } from '../circuit/assemble';
 import { atTemperature, boxCoefficient, coefficientFrom, solvedAtTemperature, supplySensitivity, takenTo, type AtEnd } from '../analysis/drift';
 import { takesVbias } from '../kinds/index';
 import { DEFAULT_ANALYSIS, noiseParts, outputNoise, type NoiseParts } from '../analysis/noise';
+import { NoiseSources } from '../circuit/elements/noise';
 import { AdjointScratch, probeCurrent, type OutputProbe } from '../analysis/probe';
 import { Workspace } from '../circuit/workspace';
 import { indexOf } from '../mirror-at';
@@ -44,7 +45,11 @@ interface Ends { up: End; down: End; finite: boolean; slots: Map<number, number>
  *  an output hears only the elements on its own node and on nodes its adjoint reaches (a leaf:
  *  the few mirrors on its path), so each output passes those alone to outputNoise. */
 interface GroupNoise {
-  parts: NoiseParts; runs: [number, number][]; byNode: number[][]; always: number[];
+  /** Run r (one element's sources) is parts.sources[runStart[r] … runStart[r + 1]); the runs on
+   *  node k are nodeRuns[nodePtr[k] … nodePtr[k + 1]) — typed arrays, not an array per node and
+   *  per run: they live as long as the analysis, and every small object there is copied by each
+   *  young-generation collection until it is promoted. */
+  parts: NoiseParts; runStart: Int32Array; nodePtr: Int32Array; nodeRuns: Int32Array; always: number[];
   /** Runs picked for the output at hand (`picked[r] === stamp`): a set without one per output. */
   picked: Int32Array; stamp: number;
   /** The picked runs, and the sources they hold (what `reaching` returns, rewritten for each
@@ -211,37 +216,54 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
   const { circuit: c, ws } = j.mc;
   const parts = noiseParts(c, ws, T);
   const { sources } = parts;
+  const nt = ws.nt;
   // Each element's sources are consecutive: one run per element, in the circuit's order.
-  const runs: [number, number][] = [], byNode: number[][] = Array.from({ length: ws.nt }, () => []), always: number[] = [];
-  // Each run listed once per node its sources touch (`listed[k] === r + 1`: already on node k).
-  const listed = new Int32Array(ws.nt);
-  const list = (k: number, r: number): void => {
-    if (k < 0 || k >= ws.nt || listed[k] === r + 1) return;
-    listed[k] = r + 1;
-    byNode[k]!.push(r);
-  };
+  const starts: number[] = [];
   for (let i = 0; i < sources.length;) {
     let e = i;
-    while (e < sources.length && sources[e]!.element === sources[i]!.element) e++;
-    const r = runs.length;
-    runs.push([i, e]);
-    let finite = true;
-    for (let q = i; q < e; q++) {
-      const x = sources[q]!;
-      list(x.from, r); list(x.to, r);
-      if (!Number.isFinite(x.white) || !Number.isFinite(x.flicker)) finite = false;
-    }
-    // A source of infinite or undefined density is not silent even at zero gain (0·∞).
-    if (!finite) always.push(r);
+    while (e < sources.length && sources.element[e] === sources.element[i]) e++;
+    starts.push(i);
     i = e;
   }
+  starts.push(sources.length);
+  const runStart = Int32Array.from(starts);
+  const nRuns = runStart.length - 1;
+  // Each run listed once per node its sources touch (`listed[k] === r + 1`: already on node k),
+  // counted in a first pass and placed in a second.
+  const listed = new Int32Array(nt);
+  const nodePtr = new Int32Array(nt + 1);
+  const always: number[] = [];
+  const fill = new Int32Array(nt);
+  /** Run r on the nodes its sources touch: counted (`place` false) or placed. */
+  const each = (r: number, place: boolean): void => {
+    const on = (k: number): void => {
+      if (k < 0 || k >= nt || listed[k] === r + 1) return;
+      listed[k] = r + 1;
+      if (place) nodeRuns[fill[k]!++] = r; else nodePtr[k + 1]!++;
+    };
+    for (let q = runStart[r]!; q < runStart[r + 1]!; q++) { on(sources.from[q]!); on(sources.to[q]!); }
+  };
+  let nodeRuns = new Int32Array(0);
+  for (let r = 0; r < nRuns; r++) {
+    each(r, false);
+    // A source of infinite or undefined density is not silent even at zero gain (0·∞).
+    for (let q = runStart[r]!; q < runStart[r + 1]!; q++) {
+      if (!Number.isFinite(sources.white[q]!) || !Number.isFinite(sources.flicker[q]!)) { always.push(r); break; }
+    }
+  }
+  for (let k = 0; k < nt; k++) nodePtr[k + 1] = nodePtr[k + 1]! + nodePtr[k]!;
+  nodeRuns = new Int32Array(nodePtr[nt]!);
+  fill.set(nodePtr.subarray(0, nt));
+  listed.fill(0);
+  for (let r = 0; r < nRuns; r++) each(r, true);
   // Runs of one name each (joint element names carry their mirror's path): outputNoise then
   // finds each element's part without a search.
-  const names = new Set(runs.map(([a]) => sources[a]!.element));
-  if (names.size === runs.length) parts.distinct = true;
-  const reached: NoiseParts = { sources: [], caps: parts.caps };
+  const names = new Set<string>();
+  for (let r = 0; r < nRuns; r++) names.add(sources.element[runStart[r]!]!);
+  if (names.size === nRuns) parts.distinct = true;
+  const reached: NoiseParts = { sources: new NoiseSources(), caps: parts.caps };
   if (parts.distinct) reached.distinct = true;
-  gc.noise = { parts, runs, byNode, always, picked: new Int32Array(runs.length), stamp: 0, order: new Int32Array(runs.length), reached };
+  gc.noise = { parts, runStart, nodePtr, nodeRuns, always, picked: new Int32Array(nRuns), stamp: 0, order: new Int32Array(nRuns), reached };
   return gc.noise;
 }
 
@@ -252,23 +274,29 @@ function groupNoise(gc: GroupCache, j: JointCircuit, T: number): GroupNoise {
 function reaching(gn: GroupNoise, probe: OutputProbe, lam: Float64Array, support: readonly number[] | undefined): NoiseParts {
   if (gn.parts.caps.length > 0) return gn.parts;
   const stamp = ++gn.stamp;
-  const { picked, order, byNode } = gn;
+  const { picked, order, nodePtr, nodeRuns, runStart } = gn;
   let n = 0;
+  const onNode = (k: number): void => {
+    for (let p = nodePtr[k]!; p < nodePtr[k + 1]!; p++) {
+      const r = nodeRuns[p]!;
+      if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+    }
+  };
   for (const r of gn.always) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
-  for (const r of byNode[probe.node] ?? []) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+  if (probe.node >= 0 && probe.node < nodePtr.length - 1) onNode(probe.node);
   const count = support ? support.length : lam.length;
   for (let i = 0; i < count; i++) {
     const k = support ? support[i]! : i;
     if (lam[k] === 0) continue;
-    for (const r of byNode[k]!) if (picked[r] !== stamp) { picked[r] = stamp; order[n++] = r; }
+    onNode(k);
   }
   // Each run at most once: n ≤ runs. A typed array sorts numerically, in place.
   const sorted = order.subarray(0, n).sort();
   const { sources } = gn.reached;
-  sources.length = 0;
+  sources.clear();
   for (let i = 0; i < n; i++) {
-    const [a, b] = gn.runs[sorted[i]!]!;
-    for (let q = a; q < b; q++) sources.push(gn.parts.sources[q]!);
+    const r = sorted[i]!;
+    for (let q = runStart[r]!; q < runStart[r + 1]!; q++) sources.addFrom(gn.parts.sources, q);
   }
   return gn.reached;
 }

@@ -83,12 +83,12 @@ export function solveNetworks(spec: ResolvedSpec, perturb?: PerturbationLike, op
   // And the member outputs' drift and noise start from it (handed.ts).
   const joints = new Map<number, SolvedJoint>();
   for (const g of groups) {
-    const j = buildJoint(spec, g, perturb, undefined, { record: keep });
+    const j = buildJoint(spec, g, perturb);
     const r = solveMirror(j.mc);
     if (!perturb && sameAfterHandOn(g)) joints.set(indexOf(g.root), { j, converged: r.converged });
     const net = handOn(spec, g, j, r, chain, changed);
     networks.push(net);
-    if (keep && r.converged) keepJoint(net, g, j);
+    if (keep && r.converged) keepJoint(net, spec, g, j);
   }
   const out = withMirrors(spec, changed, networks);
   keepJoints(out, joints);

@@ -9,7 +9,7 @@ import { CUTOFF_IS, evalBipolar, newBipolarEval } from '../../models/bipolar';
 import type { BipolarDeviceReport, Region } from '../../types';
 import type { Workspace } from '../workspace';
 import type { BjtElement } from './element';
-import type { NoiseSource } from './noise';
+import type { NoiseSources } from './noise';
 
 const ev = newBipolarEval();
 
@@ -114,10 +114,10 @@ export function bjtReport(q: BjtElement, v: Float64Array): BipolarDeviceReport {
  * Meyer, Analysis and Design of Analog Integrated Circuits, 5th ed., §11.2, from memory). No
  * flicker noise: the contract leaves bipolar flicker optional and the model has no constant for it.
  */
-export function bjtNoise(q: BjtElement, v: Float64Array, out: NoiseSource[]): void {
+export function bjtNoise(q: BjtElement, v: Float64Array, out: NoiseSources): void {
   const [vbe, vbc] = bjtFrame(q, v);
   evalBipolar(q.dev, vbe, vbc, ev);
   const twoQ = 2 * ELEMENTARY_CHARGE;
-  out.push({ element: q.name, from: q.c, to: q.e, white: twoQ * Math.abs(ev.ic), flicker: 0 });
-  out.push({ element: q.name, from: q.b, to: q.e, white: twoQ * Math.abs(ev.ib), flicker: 0 });
+  out.add(q.name, q.c, q.e, twoQ * Math.abs(ev.ic), 0);
+  out.add(q.name, q.b, q.e, twoQ * Math.abs(ev.ib), 0);
 }

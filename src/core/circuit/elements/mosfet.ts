@@ -11,7 +11,7 @@ import { evalFrame, evalTerminal } from '../../models/terminal';
 import type { DeviceReport } from '../../types';
 import type { Workspace } from '../workspace';
 import type { MosElement } from './element';
-import type { NoiseSource } from './noise';
+import type { NoiseSources } from './noise';
 
 /** Jacobian entries: rows d and s, columns d, g, b, s (this order: the slots follow it). */
 export function mosPattern(m: MosElement, add: (row: number, col: number) => void): void {
@@ -101,7 +101,7 @@ export function mosReport(m: MosElement, v: Float64Array): DeviceReport {
  * kf/(Cox·W·L·f) (kf in V²·F, W·L the whole gate area m·W·L) carried to the drain by gm², so
  * the drain PSD is gm²·kf/(Cox·m·W·L·f). No flicker without both kf and cox.
  */
-export function mosNoise(m: MosElement, v: Float64Array, ch: ChannelEval, temperature: number, out: NoiseSource[]): void {
+export function mosNoise(m: MosElement, v: Float64Array, ch: ChannelEval, temperature: number, out: NoiseSources): void {
   const vs = v[m.s]!;
   evalTerminal(m.dev, v[m.g]! - vs, v[m.d]! - vs, v[m.b]! - vs, ch);
   const gm = Math.abs(ch.gm);
@@ -109,5 +109,5 @@ export function mosNoise(m: MosElement, v: Float64Array, ch: ChannelEval, temper
   const gn = m.params.gn ?? DEFAULTS.device.gn;
   const area = m.size.m * m.size.w * m.size.l;
   const flicker = kf !== undefined && cox !== undefined && area > 0 ? gm * gm * kf / (cox * area) : 0;
-  out.push({ element: m.name, from: m.d, to: m.s, white: 4 * BOLTZMANN * temperature * gn * gm, flicker });
+  out.add(m.name, m.d, m.s, 4 * BOLTZMANN * temperature * gn * gm, flicker);
 }

@@ -1,7 +1,7 @@
 /** The resistor's stamp: g·(va − vb) leaves node a and enters node b. */
 import { BOLTZMANN } from '../../defaults';
 import type { Workspace } from '../workspace';
-import type { NoiseSource } from './noise';
+import type { NoiseSources } from './noise';
 import type { ResistorElement } from './element';
 
 /** Jacobian entries, in slot order: (a,a), (a,b), (b,a), (b,b). */
@@ -28,6 +28,6 @@ export function resistorCurrent(r: ResistorElement, v: Float64Array): number {
 }
 
 /** Its thermal noise, 4kT/R (A²/Hz), a current between a and b (design §12). */
-export function resistorNoise(r: ResistorElement, temperature: number, out: NoiseSource[]): void {
-  if (r.g > 0) out.push({ element: r.name, from: r.a, to: r.b, white: 4 * BOLTZMANN * temperature * r.g, flicker: 0 });
+export function resistorNoise(r: ResistorElement, temperature: number, out: NoiseSources): void {
+  if (r.g > 0) out.add(r.name, r.a, r.b, 4 * BOLTZMANN * temperature * r.g, 0);
 }
