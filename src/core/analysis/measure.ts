@@ -21,7 +21,7 @@ import { outputSigma } from './mismatch';
 import { routApprox, type SmallSignal } from './routApprox';
 import {
   buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, shownReports, solveMirror,
-  type MirrorSolve, type MirrorTarget,
+  type MirrorSolve, type MirrorTarget, type ShownAt,
 } from './solve';
 import { clockedSolveCount } from '../circuit/newton';
 import type { Workspace, WorkspaceState } from '../circuit/workspace';
@@ -98,7 +98,15 @@ interface Bank {
   spec: MirrorTarget['spec']; forOutput: NonNullable<MirrorCircuit['forOutput']>;
   /** `ws`: the first output's workspace, which the next output's circuit takes over (restored
    *  whole from `state` first), its measurement being done by then. */
-  solved?: { sol: MirrorSolve; state: WorkspaceState; ws: Workspace };
+  solved?: {
+    sol: MirrorSolve; state: WorkspaceState; ws: Workspace;
+    /** What the first output's report shows at that solve (its node voltages and device
+     *  reports): an output that takes the solve shares them — the reference's devices are the
+     *  very elements there — rather than holding copies of the same numbers (every object a
+     *  report holds lives as long as the analysis, copied by each young-generation collection
+     *  until it is promoted). */
+    shown?: ShownAt;
+  };
 }
 const banks = new WeakMap<ResolvedMirror, Bank>();
 
@@ -120,13 +128,13 @@ function otherOutput(t: MirrorTarget): { mc: MirrorCircuit; solved?: Bank['solve
  *  solve, step for step — its result and every bit it leaves in the workspace. Taken only
  *  from a solve no clock could end (newton.ts clockedSolveCount), so its iterations and outcome
  *  depend on the equations alone. */
-function solveBank(mc: MirrorCircuit, solved: Bank['solved'], bank: Bank | undefined): MirrorSolve {
-  if (solved && mc.ws.restore(solved.state)) return copySolve(solved.sol);
+function solveBank(mc: MirrorCircuit, solved: Bank['solved'], bank: Bank | undefined): { sol: MirrorSolve; taken?: Bank['solved'] } {
+  if (solved && mc.ws.restore(solved.state)) return { sol: copySolve(solved.sol), taken: solved };
   const clocked = clockedSolveCount();
   const sol = solveMirror(mc);
   const state = bank && clockedSolveCount() === clocked ? mc.ws.snapshot() : undefined;
   if (bank && state) bank.solved = { sol: copySolve(sol), state, ws: mc.ws };
-  return sol;
+  return { sol };
 }
 
 function copySolve(s: MirrorSolve): MirrorSolve {
@@ -154,9 +162,12 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     warm = mc.ws.v.slice();
   }
   // A bank (no vbias to pick: no warm start) solves once for all its outputs.
-  const sol = warm ? solveMirror(mc, warm) : solveBank(mc, other?.solved, bank);
+  const banked = warm ? undefined : solveBank(mc, other?.solved, bank);
+  const sol = banked ? banked.sol : solveMirror(mc, warm);
+  // The first output's, where this output's node voltages are that very solve's (restored whole).
+  const shown = banked?.taken?.shown;
   // Every device's report for a netlist or a reference (its loop reads them all), else the shown ones'.
-  const devices = m.kind === 'netlist' || KINDS[m.kind].loop !== undefined ? deviceReports(mc) : shownReports(mc);
+  const devices = m.kind === 'netlist' || KINDS[m.kind].loop !== undefined ? deviceReports(mc) : shownReports(mc, shown);
   // A self-biased netlist has no input: no iin, ratio or error (design §14).
   const noInput = m.kind === 'netlist' && m.input === undefined;
   const iin = mc.iin();
@@ -166,7 +177,8 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   base.converged = sol.converged; base.iterations = sol.iterations; base.residual = sol.residual;
   base.iout = iout;
   if (noInput) { delete base.iin; delete base.ratio; } else { base.iin = iin; base.ratio = ratio; }
-  base.nodes = nodeVoltages(mc); base.devices = shownDevices(mc, devices);
+  base.nodes = shown ? shown.nodes : nodeVoltages(mc); base.devices = shownDevices(mc, devices);
+  if (bank?.solved && !banked?.taken) bank.solved.shown = { nodes: base.nodes, devices: mc.circuit.devices, reports: devices };
   if (sol.note) base.solveNote = sol.note;
   if (sol.beyond) base.beyondRails = sol.beyond;
   if (vb) { base.vbias = vb.vbias; base.vbiasPicked = vb.picked; }

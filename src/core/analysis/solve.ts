@@ -8,6 +8,7 @@ import { buildNetlist } from '../circuit/netlistCircuit';
 import { solveDc, type DcOptions, type DcResult } from '../circuit/newton';
 import { buildTemplate, type PerturbationLike } from '../circuit/templates';
 import type { MirrorCircuit } from '../circuit/mirrorCircuit';
+import type { DeviceElement } from '../circuit/elements/element';
 import type { DeviceReport, ResolvedMirror, ResolvedSpec } from '../types';
 
 export interface MirrorTarget { spec: ResolvedSpec; mirror: ResolvedMirror; outputIndex: number }
@@ -142,12 +143,24 @@ export function deviceReports(mc: MirrorCircuit): DeviceReport[] {
 
 /** Reports of the devices a report shows (shownDevices'), each at its circuit index, the others
  *  left out: a bank's other outputs' devices belong to their own reports, and a template
- *  mirror's measurement reads none of them (a reference's loop reads every device: not for it). */
-export function shownReports(mc: MirrorCircuit): DeviceReport[] {
+ *  mirror's measurement reads none of them (a reference's loop reads every device: not for it).
+ *  `same`: reports made at these very node voltages, by circuit index with the devices they
+ *  are of — a device that is the very same element takes its report from there. */
+export function shownReports(mc: MirrorCircuit, same?: ShownAt): DeviceReport[] {
   const v = mc.ws.v;
   const out: DeviceReport[] = [];
-  mc.circuit.devices.forEach((d, k) => { if (d.measured || d.startup === true) out[k] = deviceReport(d, v); });
+  mc.circuit.devices.forEach((d, k) => {
+    if (d.measured || d.startup === true) out[k] = (same?.devices[k] === d ? same.reports[k] : undefined) ?? deviceReport(d, v);
+  });
   return out;
+}
+
+/** What a report shows of one solution: its node voltages and device reports (by circuit index,
+ *  with the circuit's devices). */
+export interface ShownAt {
+  nodes: Record<string, number>;
+  devices: readonly DeviceElement[];
+  reports: readonly (DeviceReport | undefined)[];
 }
 
 /** The devices a report shows: the shared reference and the measured output's devices (a
