@@ -57,7 +57,7 @@ import { SPEC_LIMITS } from '../src/core/defaults';
 import { benchVariation } from './bench-variation';
 import { benchTables } from './bench-tables';
 import { readTables } from '../src/node/tables';
-import { cleanSpecText, faultyExampleText, faultySpecText, HALDEN_NMOS, HALDEN_PMOS, networkTreeText } from './spec-texts';
+import { cleanSpecText, faultyExampleText, faultySpecText, HALDEN_NMOS, HALDEN_PMOS, networkTreeText, type TreeConditions } from './spec-texts';
 import { provisionalLinks, solveNetworks } from '../src/core/network/index';
 import { attachNetworks } from '../src/core/network/report';
 import type {
@@ -381,6 +381,20 @@ function networkFigure(runs: number): { network: Timing; netOk: boolean } {
   return { network, netOk };
 }
 
+/** Each mirror's conditions in the solved linked tree of `n` mirrors: the unlinked file the CLI
+ *  figure compares with holds every mirror at them. */
+function treeConditions(n: number): TreeConditions {
+  const spec = parseSpec(networkTreeText(n), 'network.bias.yaml').spec!;
+  const at: TreeConditions = { iin: [], vout: [] };
+  const vout: number[][] = [];
+  for (const r of analyzeSpec(solveNetworks(provisionalLinks(spec)))) {
+    at.iin[r.mirrorIndex] = r.iin ?? NaN;
+    (vout[r.mirrorIndex] ??= [])[r.outputIndex] = r.vout;
+  }
+  at.vout = vout.map((v) => [v[0]!, v[1]!] as const);
+  return at;
+}
+
 function main(): void {
   const args = process.argv.slice(2);
   const probe = args.indexOf('--memory-probe');
@@ -514,7 +528,7 @@ function main(): void {
       const linkedFile = join(dir, 'network.bias.yaml');
       writeFileSync(linkedFile, networkTreeText(1000));
       const unlinkedFile = join(dir, 'unlinked.bias.yaml');
-      writeFileSync(unlinkedFile, networkTreeText(1000, { linked: false }));
+      writeFileSync(unlinkedFile, networkTreeText(1000, treeConditions(1000)));
       cliResult = {
         nodeStart: spawnTiming(cliRuns, ['-e', '0']),
         // The floor under any check of this file: Node plus the yaml package (bundled as the CLI

@@ -111,24 +111,31 @@ export function faultySpecText(n: number, seed = 2024): string {
   return lines.join('\n') + '\n';
 }
 
+/** What each mirror of the linked tree sees in it: the current into its input and the voltage
+ *  at each of its two outputs (a linked output's is the next mirror's input node). */
+export interface TreeConditions { iin: number[]; vout: (readonly [number, number])[] }
+
 /**
  * A bias network of `n` simple mirrors as a binary tree, polarity alternating level by level:
  * every mirror is a two-output bank whose outputs feed the next level's mirrors; the last level's
- * outputs are leaves held at their own voltage. With `linked: false` the same mirrors are
- * written unlinked: each with the ideal input current it gets in the tree and its outputs held
- * at a fixed voltage (the CLI's cost of the same mirrors without a network).
+ * outputs are leaves held at their own voltage. Given `unlinked`, the same mirrors are written
+ * without links, each at the conditions it has in the linked tree (its input current, each
+ * output held at the voltage of the node it drives there): the same mirrors' cost without a
+ * network, mirror for mirror the same operating points and so the same figures and findings
+ * but the chain's.
  */
-export function networkTreeText(n: number, opts: { linked?: boolean } = {}): string {
-  const linked = opts.linked !== false;
+export function networkTreeText(n: number, unlinked?: TreeConditions): string {
   const lines: string[] = [HALDEN_HEADER];
   for (let i = 0; i < n; i++) {
     const level = Math.floor(Math.log2(i + 1));
     const type = level % 2 === 0 ? 'nmos' : 'pmos';
     const size = type === 'nmos' ? '{ w: 8u, l: 4u }' : '{ w: 32u, l: 4u }';
     const parent = (i - 1) >> 1;
-    const input = i === 0 || !linked ? '10u' : `{ from: t${parent}.${i % 2 === 1 ? 'a' : 'b'} }`;
-    const leafV = type === 'nmos' ? 0.9 : 0.9;
-    const out = (k: number) => (2 * i + 1 + k < n && linked ? `{ name: ${k === 0 ? 'a' : 'b'} }` : `{ name: ${k === 0 ? 'a' : 'b'}, output: { v: ${leafV} } }`);
+    const input = unlinked ? String(unlinked.iin[i]) : i === 0 ? '10u' : `{ from: t${parent}.${i % 2 === 1 ? 'a' : 'b'} }`;
+    const leafV = 0.9;
+    const name = (k: number) => (k === 0 ? 'a' : 'b');
+    const out = (k: number) => (unlinked ? `{ name: ${name(k)}, output: { v: ${unlinked.vout[i]![k]} } }`
+      : 2 * i + 1 + k < n ? `{ name: ${name(k)} }` : `{ name: ${name(k)}, output: { v: ${leafV} } }`);
     lines.push(`  - { name: t${i}, kind: simple, type: ${type}, input: ${input}, size: ${size}, outputs: [${out(0)}, ${out(1)}] }`);
   }
   return lines.join('\n') + '\n';
