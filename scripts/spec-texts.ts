@@ -111,25 +111,75 @@ export function faultySpecText(n: number, seed = 2024): string {
   return lines.join('\n') + '\n';
 }
 
+/** What each mirror of the linked tree sees in it: the current into its input and the voltage
+ *  at each of its two outputs (a linked output's is the next mirror's input node). */
+export interface TreeConditions { iin: number[]; vout: (readonly [number, number])[] }
+
 /**
  * A bias network of `n` simple mirrors as a binary tree, polarity alternating level by level:
  * every mirror is a two-output bank whose outputs feed the next level's mirrors; the last level's
- * outputs are leaves held at their own voltage. With `linked: false` the same mirrors are
- * written unlinked: each with the ideal input current it gets in the tree and its outputs held
- * at a fixed voltage (the CLI's cost of the same mirrors without a network).
+ * outputs are leaves held at their own voltage. Given `unlinked`, the same mirrors are written
+ * without links, each at the conditions it has in the linked tree (its input current, each
+ * output held at the voltage of the node it drives there): the same mirrors' cost without a
+ * network, mirror for mirror the same operating points and so the same figures and findings
+ * but the chain's.
  */
-export function networkTreeText(n: number, opts: { linked?: boolean } = {}): string {
-  const linked = opts.linked !== false;
+export function networkTreeText(n: number, unlinked?: TreeConditions): string {
   const lines: string[] = [HALDEN_HEADER];
   for (let i = 0; i < n; i++) {
     const level = Math.floor(Math.log2(i + 1));
     const type = level % 2 === 0 ? 'nmos' : 'pmos';
     const size = type === 'nmos' ? '{ w: 8u, l: 4u }' : '{ w: 32u, l: 4u }';
     const parent = (i - 1) >> 1;
-    const input = i === 0 || !linked ? '10u' : `{ from: t${parent}.${i % 2 === 1 ? 'a' : 'b'} }`;
-    const leafV = type === 'nmos' ? 0.9 : 0.9;
-    const out = (k: number) => (2 * i + 1 + k < n && linked ? `{ name: ${k === 0 ? 'a' : 'b'} }` : `{ name: ${k === 0 ? 'a' : 'b'}, output: { v: ${leafV} } }`);
+    const input = unlinked ? String(unlinked.iin[i]) : i === 0 ? '10u' : `{ from: t${parent}.${i % 2 === 1 ? 'a' : 'b'} }`;
+    const leafV = 0.9;
+    const name = (k: number) => (k === 0 ? 'a' : 'b');
+    const out = (k: number) => (unlinked ? `{ name: ${name(k)}, output: { v: ${unlinked.vout[i]![k]} } }`
+      : 2 * i + 1 + k < n ? `{ name: ${name(k)} }` : `{ name: ${name(k)}, output: { v: ${leafV} } }`);
     lines.push(`  - { name: t${i}, kind: simple, type: ${type}, input: ${input}, size: ${size}, outputs: [${out(0)}, ${out(1)}] }`);
+  }
+  return lines.join('\n') + '\n';
+}
+
+/** The bipolar devices of the Halden 180 BiCMOS option (invented), as the example gives them. */
+const HALDEN_BIPOLAR = [
+  '  npn: { is: 2e-17, bf: 120, vaf: 60 }',
+  '  pnp: { is: 1e-17, bf: 60, vaf: 40 }',
+];
+
+/**
+ * One mirror of every kind in both polarities of its family (MOSFET kinds nmos and pmos, the
+ * bipolar-only ones npn and pnp), and a netlist cascode of each polarity — each written as a
+ * designer would, so that every one has an operating point: the references with their loop
+ * resistor and start-up device, the Widlar with its degeneration, every output where its stack
+ * reaches. What the engine's per-mirror figure solves.
+ */
+export function representativeText(): string {
+  const header = HALDEN_HEADER.replace('\nsupplies:', `\n${HALDEN_BIPOLAR.join('\n')}\nsupplies:`);
+  const lines: string[] = [header];
+  const add = (name: string, body: string[]) => lines.push(`  - name: ${name}`, ...body.map((l) => `    ${l}`));
+  for (const sinks of [true, false]) {
+    const mos = sinks ? 'nmos' : 'pmos', bjt = sinks ? 'npn' : 'pnp';
+    const size = sinks ? '{ w: 8u, l: 1u }' : '{ w: 32u, l: 1u }';
+    const v = sinks ? 1.2 : 0.6;
+    for (const kind of ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced']) {
+      add(`${kind}-${mos}`, [`kind: ${kind}`, `type: ${mos}`, 'input: 20u', `size: ${size}`, 'devices: { out: { m: 2 } }', `output: { v: ${v} }`]);
+    }
+    add(`beta-helper-${bjt}`, ['kind: beta-helper', `type: ${bjt}`, 'input: 20u', 'devices: { out: { area: 2 } }', `output: { v: ${sinks ? 1.4 : 0.4} }`]);
+    add(`widlar-${bjt}`, ['kind: widlar', `type: ${bjt}`, 'input: 100u', 'degeneration: 5k', `output: { v: ${sinks ? 0.9 : 0.9} }`]);
+    add(`beta-multiplier-${mos}`, ['kind: beta-multiplier', `type: ${mos}`, `size: ${sinks ? '{ w: 2u, l: 2u }' : '{ w: 8u, l: 2u }'}`, 'k: 4', 'resistor: 12k',
+      `devices: ${sinks ? '{ top: { w: 4u }, topd: { w: 4u } }' : '{ top: { w: 1u }, topd: { w: 1u } }'}`, 'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 0.8 : 1.0} }`]);
+    add(`vgs-resistor-${mos}`, ['kind: vgs-resistor', `type: ${mos}`, `size: ${sinks ? '{ w: 4u, l: 2u }' : '{ w: 16u, l: 2u }'}`, `resistor: ${sinks ? '60k' : '68k'}`,
+      `devices: ${sinks ? '{ follow: { w: 16u, bulk: source }, top: { w: 32u }, topd: { w: 32u } }' : '{ follow: { w: 64u, bulk: source }, top: { w: 8u }, topd: { w: 8u } }'}`,
+      'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 1.2 : 0.6} }`]);
+    add(`ptat-${bjt}`, ['kind: ptat', `type: ${bjt}`, 'k: 8', 'resistor: 10.8k', 'startup: { w: 0.5u, l: 16u }', `output: { v: ${sinks ? 0.7 : 1.1} }`]);
+    add(`vbe-resistor-${bjt}`, ['kind: vbe-resistor', `type: ${bjt}`, 'resistor: 36k', 'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 1.0 : 0.8} }`]);
+    const rail = sinks ? 'vss' : 'vdd', w = sinks ? '4u' : '16u';
+    add(`netlist-${mos}`, ['kind: netlist', `type: ${mos}`, 'devices:',
+      `  M1: { type: ${mos}, d: a, g: a, s: ${rail}, w: ${w}, l: 1u }`, `  M3: { type: ${mos}, d: b, g: b, s: a, w: ${w}, l: 1u }`,
+      `  M2: { type: ${mos}, d: c, g: a, s: ${rail}, w: ${w}, l: 1u }`, `  M4: { type: ${mos}, d: out, g: b, s: c, w: ${w}, l: 1u }`,
+      `currents: { IREF: { from: ${sinks ? 'vdd' : 'b'}, to: ${sinks ? 'b' : 'vss'}, i: 20u } }`,
+      `output: { node: out, v: ${sinks ? 1.3 : 0.5} }`, 'input: { source: IREF }', 'pair: { ref: M1, out: M2 }']);
   }
   return lines.join('\n') + '\n';
 }

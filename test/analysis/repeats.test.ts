@@ -1,11 +1,15 @@
 /**
- * Identical mirrors are solved once (src/core/analysis/repeats.ts). The check is against the
- * engine solving every mirror on its own (`repeats: false`): same figures, own identity.
+ * Identical mirrors are solved once (src/core/analysis/repeats.ts), and network members alike but
+ * for what feeds them share their own figures. The check is against the engine solving every
+ * mirror on its own (`repeats: false`): same figures, own identity.
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeSpec } from '../../src/core/analysis/index';
 import type { ResolvedMirror, TemplateMirror } from '../../src/core/types';
 import { makeSpec, sz, template, type TemplateOptions } from './builders';
+import { parseSpec } from '../../src/core/spec/index';
+import { provisionalLinks, solveNetworks } from '../../src/core/network/index';
+import { networkTreeText } from '../../scripts/spec-texts';
 
 /** A template mirror placed at list index i (paths follow). */
 function at(i: number, m: TemplateMirror): ResolvedMirror {
@@ -58,5 +62,30 @@ describe('repeated mirrors', () => {
     expect(r[3]!.devices).not.toBe(r[1]!.devices);
     expect(r[5]!.devices).toBe(r[1]!.devices);
     expect(r[5]!.path).toEqual(['mirrors', 2, 'outputs', 1]);
+  });
+});
+
+describe('network members alike', () => {
+  // A binary tree of 31 one-to-one banks: the members of a level get the same current and are
+  // held at the same voltages, so they share their own figures; drift and noise come through
+  // everything above each one and stay its own.
+  const solved = () => solveNetworks(provisionalLinks(parseSpec(networkTreeText(31), 'tree.bias.yaml').spec!));
+
+  it('read exactly as each member measured on its own, field for field and in order', () => {
+    const shared = analyzeSpec(solved());
+    const each = analyzeSpec(solved(), { repeats: false });
+    expect(JSON.stringify(shared)).toBe(JSON.stringify(each));
+  });
+
+  it('share the first member\'s solve and keep their own noise path', () => {
+    const r = analyzeSpec(solved());
+    const t3 = r.find((x) => x.name === 't3.a')!, t5 = r.find((x) => x.name === 't5.a')!; // fed by t1 and by t2
+    expect(t5.devices).toBe(t3.devices);
+    expect(t5.path).toEqual(['mirrors', 5, 'outputs', 0]);
+    // Each names its own devices plainly and the other's by path.
+    expect(Object.keys(t3.noise!.shares)).toEqual(expect.arrayContaining(['ref', 't5/ref']));
+    expect(Object.keys(t3.noise!.shares)).not.toContain('t3/ref');
+    expect(Object.keys(t5.noise!.shares)).toEqual(expect.arrayContaining(['ref', 't3/ref']));
+    expect(Object.keys(t5.noise!.shares)).not.toContain('t5/ref');
   });
 });

@@ -25,10 +25,10 @@
  *   solveAt with a perturbation keeps the nominal pick (the bias comes from elsewhere).
  */
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
-import { failedReport, measure, type MeasureOptions } from './measure';
+import { failedReport, measure, measureAlike, measureParts, type MeasureOptions } from './measure';
 import { vbiasFor } from './vbias';
 import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
-import { RepeatedMirrors, type SolvedUnits } from './repeats';
+import { RepeatedMirrors, type MemberMeasure, type SolvedUnits } from './repeats';
 import { sweepCircuit } from './sweep';
 
 export interface MirrorContext { spec: ResolvedSpec; mirror: ResolvedMirror; outputIndex: number }
@@ -68,6 +68,18 @@ export function measureMirror(ctx: MirrorContext, opts?: MeasureOptions): Mirror
   }
 }
 
+/** measureMirror in parts for a network member, and from a member alike (repeats.ts). Never throws. */
+function memberMeasure(ctx: MirrorContext, opts: MeasureOptions): MemberMeasure {
+  return {
+    parts: () => {
+      try { return measureParts(ctx, opts); } catch (err) { return { report: failedReport(ctx, `internal error: ${message(err)}`) }; }
+    },
+    alike: (like) => {
+      try { return measureAlike(ctx, like, opts); } catch { return undefined; }
+    },
+  };
+}
+
 /** Iout and Rout (linearized) at each vout; warm-starts neighbouring solves. */
 export function sweepVout(ctx: MirrorContext, vouts: number[]): CurvePoint[] {
   try {
@@ -90,10 +102,12 @@ export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeat
   const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true, spec, units, settings);
   for (const mirror of spec.mirrors ?? []) {
     const outputs = mirror.kind === 'netlist' ? undefined : mirror.outputs;
+    const linked = mirror.kind !== 'netlist' && mirror.input.kind === 'link';
     const n = Array.isArray(outputs) ? Math.max(1, outputs.length) : 1;
     for (let j = 0; j < n; j++) {
       const ctx: MirrorContext = { spec, mirror, outputIndex: j };
-      reports.push(repeats ? repeats.report(ctx, () => measureMirror(ctx, { curve: opts?.curve })) : measureMirror(ctx, { curve: opts?.curve }));
+      const mo: MeasureOptions = { curve: opts?.curve };
+      reports.push(repeats ? repeats.report(ctx, () => measureMirror(ctx, mo), linked ? memberMeasure(ctx, mo) : undefined) : measureMirror(ctx, mo));
     }
   }
   return reports;

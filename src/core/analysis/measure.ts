@@ -12,7 +12,7 @@ import { findCompliance } from './compliance';
 import { boxCoefficient, driftCurve, mirrorRebuild, supplySensitivity, temperatureCoefficient } from './drift';
 import { DEFAULT_ANALYSIS, outputNoise } from './noise';
 import { heldProbe, probeRow, type Probed } from './probe';
-import { jointDrift } from '../network/drift';
+import { jointDrift, type JointDrift } from '../network/drift';
 import { referenceReport } from './reference';
 import { splitBipolarError, splitError } from './errorSplit';
 import { sizeWeight } from '../circuit/templates';
@@ -143,7 +143,57 @@ function copySolve(s: MirrorSolve): MirrorSolve {
   return c;
 }
 
+/** A report, and the part of it a network member's joint circuit gave (its drift and noise
+ *  through everything above it): what a member alike in all else does not share. */
+export interface Measured { report: MirrorReport; joint?: JointDrift }
+
 export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorReport {
+  return measureParts(t, opts).report;
+}
+
+/** Which drift figures a measurement with `opts` makes for output t, and the tc box among them. */
+function driftPlan(t: MirrorTarget, opts: MeasureOptions): { drifts: boolean; box: boolean } {
+  const m = t.mirror;
+  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
+  // A re-check of a network member without such a requirement then skips its joint circuit's
+  // drift (two more builds of the whole group).
+  const drifts = opts.drift === 'requirements'
+    ? req?.tc !== undefined || req?.noise !== undefined || req?.supplySensitivity !== undefined
+    : opts.drift !== false;
+  const box = t.spec.process.trange !== undefined && drifts && (opts.drift === undefined || opts.drift === true || req?.tc !== undefined);
+  return { drifts, box };
+}
+
+/** A network member's drift and noise through its joint circuit, as `opts` asks. */
+function jointOf(t: MirrorTarget, opts: MeasureOptions, plan: { drifts: boolean; box: boolean }): JointDrift | undefined {
+  return plan.drifts ? jointDrift(t.spec, indexOf(t.mirror), t.outputIndex, { box: plan.box, curve: opts.curve === true }) : undefined;
+}
+
+/**
+ * Output t's report from `like`, a member's measured with the same options whose mirror is t's
+ * but for its name, place and the output feeding it (repeats.ts `memberKey`): the same circuit at
+ * the same input current and node voltages has the same figures, bit for bit, but its drift and
+ * noise, which come through everything above it — those are t's own. Every field in `like`'s
+ * order, so the two read alike. Undefined when either has no joint part or the two differ in
+ * which figures it holds.
+ */
+export function measureAlike(t: MirrorTarget, like: Measured, opts: MeasureOptions = {}): Measured | undefined {
+  if (!like.joint) return undefined;
+  const joint = jointOf(t, opts, driftPlan(t, opts));
+  if (!joint) return undefined;
+  const own = joint as Record<string, unknown>, theirs = like.joint as Record<string, unknown>;
+  const keys = Object.keys(own);
+  if (keys.length !== Object.keys(theirs).length || keys.some((k) => !(k in theirs))) return undefined;
+  const from = like.report as unknown as Record<string, unknown>;
+  const r: Record<string, unknown> = {};
+  for (const k in from) r[k] = k in own ? own[k] : from[k];
+  const id = reportIdentity(t);
+  r.name = id.name; r.mirror = id.mirror; r.path = id.path; r.mirrorIndex = id.mirrorIndex; r.outputIndex = id.outputIndex;
+  if (id.output !== undefined) r.output = id.output;
+  return { report: r as unknown as MirrorReport, joint };
+}
+
+export function measureParts(t: MirrorTarget, opts: MeasureOptions = {}): Measured {
   const vout = nominalVout(t);
   // A wide-swing pick still due is made on this very circuit; its last solve is the nominal
   // point, so the nominal solve below starts there.
@@ -188,7 +238,7 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
   if (ideal !== undefined) base.ratioIdeal = ideal;
   const reference = referenceReport(m, mc, devices, sol.converged);
   if (reference) base.reference = reference;
-  if (!sol.converged) return base;
+  if (!sol.converged) return { report: base };
 
   if (ideal !== undefined && !noInput && Number.isFinite(ratio)) {
     base.error = ratio / ideal - 1;
@@ -207,15 +257,10 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
     if (sigma !== undefined) base.sigma = sigma;
   }
   const trange = t.spec.process.trange;
-  const req = m.kind === 'netlist' ? m.require : m.outputs[t.outputIndex]?.require;
-  // A re-check of a network member without such a requirement then skips its joint circuit's
-  // drift (two more builds of the whole group).
-  const drifts = opts.drift === 'requirements'
-    ? req?.tc !== undefined || req?.noise !== undefined || req?.supplySensitivity !== undefined
-    : opts.drift !== false;
-  const box = trange !== undefined && drifts && (opts.drift === undefined || opts.drift === true || req?.tc !== undefined);
+  const plan = driftPlan(t, opts);
+  const { drifts, box } = plan;
   // A network member drifts and carries noise with everything above it: its joint circuit.
-  const joint = drifts ? jointDrift(t.spec, indexOf(m), t.outputIndex, { box, curve: opts.curve === true }) : undefined;
+  const joint = jointOf(t, opts, plan);
   if (joint) Object.assign(base, joint);
   else if (lam && drifts) {
     const pr: Probed = { probe: heldProbe(mc.circuit), row: probeRow(mc.ws, heldProbe(mc.circuit)), lam };
@@ -260,5 +305,5 @@ export function measure(t: MirrorTarget, opts: MeasureOptions = {}): MirrorRepor
       if (curve) r.tableCurve = curve;
     });
   }
-  return base;
+  return joint ? { report: base, joint } : { report: base };
 }

@@ -23,8 +23,9 @@ import { clockedSolveCount } from '../circuit/newton';
 import { canonicalJson, digest } from '../canonical';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { SweptMap } from '../swept-map';
-import type { MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
-import { reportIdentity, type ReportIdentity } from './measure';
+import type { MirrorReport, ResolvedMirror, ResolvedSpec, TemplateMirror } from '../types';
+import { reportIdentity, type Measured, type ReportIdentity } from './measure';
+import { takesVbias } from '../kinds/index';
 import type { MirrorContext } from './index';
 
 /** The mirror without what says where it is (paths, its name; an output's name outside a bank),
@@ -35,17 +36,47 @@ import type { MirrorContext } from './index';
 function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean): string {
   let known = circuitKeys.get(mirror);
   if (known === undefined) {
-    const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
-    if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
-      const bank = isBank(mirror);
-      what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
-    }
-    known = digest(canonicalJson(what));
+    known = circuitDigest(mirror);
     circuitKeys.set(mirror, known);
   }
   return `${outputIndex}|${curve ? 1 : 0}|${known}`;
 }
 const circuitKeys = new WeakMap<ResolvedMirror, string>();
+
+function circuitDigest(mirror: ResolvedMirror): string {
+  const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
+  if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
+    const bank = isBank(mirror);
+    what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
+  }
+  return digest(canonicalJson(what));
+}
+
+/**
+ * A linked member's circuit key without the output that feeds it and the mirrors it feeds — its
+ * input is kept as the current that arrives, its outputs at their node voltages
+ * (network/index.ts handedOn) — so that
+ * members alike in all else share their own figures (measure.ts measureAlike): a bank feeding
+ * identical blocks hands each the same current and holds each at the same voltage. Undefined for
+ * any other mirror, and for a member with a `vbias` picked from the spec around it (vbias.ts).
+ */
+function memberKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean): string | undefined {
+  if (mirror.kind === 'netlist' || takesVbias(mirror)) return undefined;
+  const m: TemplateMirror = mirror;
+  if (m.input.kind !== 'link') return undefined;
+  let known = memberKeys.get(mirror);
+  if (known === undefined) {
+    // Which mirror an output feeds is left out too (not whether it feeds one).
+    const outputs = m.outputs.map((o) => (o.feeds === undefined ? o : { ...o, feeds: -1 }));
+    known = circuitDigest({ ...m, input: { kind: m.input.kind, i: m.input.i } as typeof m.input, outputs });
+    memberKeys.set(mirror, known);
+  }
+  return `${outputIndex}|${curve ? 1 : 0}|${known}`;
+}
+const memberKeys = new WeakMap<ResolvedMirror, string>();
+
+/** How to measure a network member in parts, and from a member alike (measure.ts). */
+export interface MemberMeasure { parts: () => Measured; alike: (like: Measured) => Measured | undefined }
 /** Each mirror's last store keys by output (`RepeatedMirrors.keyOf`), with what they were made with. */
 const keysOf = new WeakMap<ResolvedMirror, { prefix: string; curve: boolean; keys: string[] }>();
 
@@ -152,6 +183,8 @@ export class RepeatedMirrors {
    *  mirror has the same print. */
   private readonly printed = new Map<string, { ctx?: MirrorContext; report: MirrorReport }>();
   private readonly context: string;
+  /** Network members by memberKey: the first measured of each. */
+  private readonly members = new Map<string, Measured>();
   private readonly linked: ReadonlyMap<number, string> | undefined;
 
   /** `units`: the store kept across analyses (the spec's solve context, the analysis `settings`
@@ -162,8 +195,11 @@ export class RepeatedMirrors {
     this.linked = units && spec ? linkedInputs(spec) : undefined;
   }
 
-  /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after. */
-  report(ctx: MirrorContext, measure: () => MirrorReport): MirrorReport {
+  /** The report of ctx: measured by `measure` the first time its circuit is seen, copied after.
+   *  `member`: a linked member's measurement in parts, shared with the members alike. */
+  report(ctx: MirrorContext, measure: () => MirrorReport, member?: MemberMeasure): MirrorReport {
+    const mk = member && memberKey(ctx.mirror, ctx.outputIndex, this.curve);
+    if (mk !== undefined) measure = () => this.member(mk, member!);
     const print = this.solved instanceof SolvedUnits ? undefined : circuitPrint(ctx.mirror, ctx.outputIndex);
     if (print !== undefined) {
       const first = this.printed.get(print);
@@ -178,6 +214,16 @@ export class RepeatedMirrors {
       }
     }
     return this.keyed(ctx, measure);
+  }
+
+  /** A member's report from the first member alike (its own drift and noise), else measured. */
+  private member(key: string, m: MemberMeasure): MirrorReport {
+    const like = this.members.get(key);
+    const alike = like && m.alike(like);
+    if (alike) return alike.report;
+    const first = m.parts();
+    if (!like && first.joint) this.members.set(key, first);
+    return first.report;
   }
 
   private keyOf(ctx: MirrorContext): string {
