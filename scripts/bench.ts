@@ -57,48 +57,12 @@ import { SPEC_LIMITS } from '../src/core/defaults';
 import { benchVariation } from './bench-variation';
 import { benchTables } from './bench-tables';
 import { readTables } from '../src/node/tables';
-import { cleanSpecText, faultyExampleText, faultySpecText, HALDEN_NMOS, HALDEN_PMOS, networkTreeText, type TreeConditions } from './spec-texts';
+import { cleanSpecText, faultyExampleText, faultySpecText, HALDEN_NMOS, HALDEN_PMOS, networkTreeText, representativeText, type TreeConditions } from './spec-texts';
 import { provisionalLinks, solveNetworks } from '../src/core/network/index';
 import { attachNetworks } from '../src/core/network/report';
-import type {
-  DeviceSize, MirrorOutput, NetlistMirror, Polarity, ResolvedMirror, ResolvedSpec,
-  TemplateKind, TemplateMirror,
-} from '../src/core/types';
-import { KINDS, referenceRoles, TEMPLATE_KINDS } from '../src/core/kinds/index';
+import type { NetlistMirror, Polarity, ResolvedMirror, ResolvedSpec } from '../src/core/types';
 
 const VDD = 1.8;
-
-function size(w: number, l: number, m = 1): DeviceSize { return { w, l, m, bulk: 'rail' }; }
-
-function templateMirror(
-  index: number, kind: TemplateKind, type: Polarity, iin: number, unit: DeviceSize, mOut: number, vout: number,
-): TemplateMirror {
-  const outRoles = KINDS[kind].outputRoles;
-  const refRoles = referenceRoles(kind);
-  const name = `${kind}-${type}-${index}`;
-  const output: MirrorOutput = {
-    name, output: { v: vout }, require: {}, path: ['mirrors', index],
-    devices: Object.fromEntries(outRoles.map((r) => [r, r === 'out' || r === 'outc' ? { ...unit, m: mOut } : { ...unit }])),
-  };
-  // A Wilson's ratio is set by diode over in: scale the diode instead of out.
-  const devices = Object.fromEntries(refRoles.map((r) => [r, r === 'diode' ? { ...unit, m: mOut } : { ...unit }]));
-  return {
-    kind, name, type, input: { kind: 'current', i: iin }, devices, outputs: [output], path: ['mirrors', index],
-  };
-}
-
-function netlistMirror(index: number, type: Polarity): NetlistMirror {
-  const rail = type === 'nmos' ? 'vss' : 'vdd';
-  const dev = (name: string, d: string, g: string, s: string) =>
-    ({ name, type, d, g, s, b: rail, w: 4e-6, l: 1e-6, m: 1 });
-  return {
-    kind: 'netlist', name: `netlist-${type}-${index}`, type, path: ['mirrors', index], require: {},
-    devices: [dev('M1', 'a', 'a', rail), dev('M3', 'b', 'b', 'a'), dev('M2', 'c', 'a', rail), dev('M4', 'out', 'b', 'c')],
-    currents: [type === 'nmos' ? { name: 'Iref', from: 'vdd', to: 'b', i: 20e-6 } : { name: 'Iref', from: 'b', to: 'vss', i: 20e-6 }],
-    voltages: [], resistors: [],
-    output: { node: 'out', v: type === 'nmos' ? 1.3 : 0.5 }, input: { source: 'Iref' }, pair: { ref: 'M1', out: 'M2' },
-  };
-}
 
 /** A netlist tree of `stages` linked mirror stages: each NMOS copy of its parent's gate feeds a
  *  PMOS diode, whose PMOS copy feeds the NMOS diode the stage's children copy (a binary tree
@@ -128,34 +92,31 @@ function spec(mirrors: ResolvedMirror[]): ResolvedSpec {
   };
 }
 
-/** Every kind in both polarities, and a netlist cascode of each polarity. */
+/** Every kind in both polarities of its family, and a netlist cascode of each polarity, each
+ *  with an operating point (spec-texts.ts representativeText), read as the CLI reads it. */
 function representative(): ResolvedSpec {
-  const mirrors: ResolvedMirror[] = [];
-  for (const type of ['nmos', 'pmos'] as const) {
-    for (const kind of TEMPLATE_KINDS) {
-      const vout = type === 'nmos' ? 1.2 : 0.6;
-      mirrors.push(templateMirror(mirrors.length, kind, type, 20e-6, size(4e-6, 1e-6), 2, vout));
-    }
-    mirrors.push(netlistMirror(mirrors.length, type));
-  }
-  return spec(mirrors);
+  return parseSpec(representativeText(), 'representative.bias.yaml').spec!;
 }
 
-/** 500 template mirrors with varied kinds, polarities, currents, sizes and output voltages. */
+/** `n` mirrors: the representative ones in turn, each with its input current (where it has one)
+ *  scaled by a random factor in 0.7–1.3, so that no two are alike. */
 function generated(n: number): ResolvedSpec {
   let seed = 12345;
   const rnd = (): number => { seed = (seed * 1103515245 + 12345) % 2147483648; return seed / 2147483648; };
+  const rep = representative();
   const mirrors: ResolvedMirror[] = [];
   for (let i = 0; i < n; i++) {
-    const kind = TEMPLATE_KINDS[i % TEMPLATE_KINDS.length]!;
-    const type: Polarity = i % 2 === 0 ? 'nmos' : 'pmos';
-    const iin = 5e-6 * (1 + 9 * rnd());
-    const l = (0.5 + 2 * rnd()) * 1e-6;
-    const w = l * (4 + 16 * rnd());
-    const vout = type === 'nmos' ? 1.1 + 0.5 * rnd() : 0.7 - 0.5 * rnd();
-    mirrors.push(templateMirror(i, kind, type, iin, size(w, l), 1 + Math.floor(4 * rnd()), vout));
+    const m = structuredClone(rep.mirrors[i % rep.mirrors.length]!);
+    m.name = `${m.name}-${i}`;
+    m.path = ['mirrors', i];
+    if (m.kind === 'netlist') m.currents[0]!.i *= 0.7 + 0.6 * rnd();
+    else {
+      if (m.input.kind === 'current') m.input.i *= 0.7 + 0.6 * rnd();
+      m.outputs = m.outputs.map((o, j) => ({ ...o, path: m.outputs.length > 1 ? ['mirrors', i, 'outputs', j] : ['mirrors', i] }));
+    }
+    mirrors.push(m);
   }
-  return spec(mirrors);
+  return { ...rep, mirrors };
 }
 
 function median(xs: number[]): number {
@@ -433,9 +394,9 @@ function main(): void {
   const perMirrorCpuUs = r.cpuMs.map((ms) => (ms * 1000) / r.reports);
   const perKind: Record<string, number> = {};
   for (const m of rep.mirrors) {
-    const single = spec([{ ...structuredClone(m), path: ['mirrors', 0] }]);
+    const single: ResolvedSpec = { ...rep, mirrors: [{ ...structuredClone(m), path: ['mirrors', 0] }] };
     const t = time(single, Math.max(20, runs >> 1));
-    perKind[m.name.replace(/-\d+$/, '')] = median(t.ms) * 1000;
+    perKind[m.name] = median(t.ms) * 1000;
   }
   const b = time(big, Math.max(5, Math.round(runs / 10)));
 

@@ -140,3 +140,46 @@ export function networkTreeText(n: number, unlinked?: TreeConditions): string {
   }
   return lines.join('\n') + '\n';
 }
+
+/** The bipolar devices of the Halden 180 BiCMOS option (invented), as the example gives them. */
+const HALDEN_BIPOLAR = [
+  '  npn: { is: 2e-17, bf: 120, vaf: 60 }',
+  '  pnp: { is: 1e-17, bf: 60, vaf: 40 }',
+];
+
+/**
+ * One mirror of every kind in both polarities of its family (MOSFET kinds nmos and pmos, the
+ * bipolar-only ones npn and pnp), and a netlist cascode of each polarity — each written as a
+ * designer would, so that every one has an operating point: the references with their loop
+ * resistor and start-up device, the Widlar with its degeneration, every output where its stack
+ * reaches. What the engine's per-mirror figure solves.
+ */
+export function representativeText(): string {
+  const header = HALDEN_HEADER.replace('\nsupplies:', `\n${HALDEN_BIPOLAR.join('\n')}\nsupplies:`);
+  const lines: string[] = [header];
+  const add = (name: string, body: string[]) => lines.push(`  - name: ${name}`, ...body.map((l) => `    ${l}`));
+  for (const sinks of [true, false]) {
+    const mos = sinks ? 'nmos' : 'pmos', bjt = sinks ? 'npn' : 'pnp';
+    const size = sinks ? '{ w: 8u, l: 1u }' : '{ w: 32u, l: 1u }';
+    const v = sinks ? 1.2 : 0.6;
+    for (const kind of ['simple', 'cascode', 'wide-swing', 'wilson', 'wilson-balanced']) {
+      add(`${kind}-${mos}`, [`kind: ${kind}`, `type: ${mos}`, 'input: 20u', `size: ${size}`, 'devices: { out: { m: 2 } }', `output: { v: ${v} }`]);
+    }
+    add(`beta-helper-${bjt}`, ['kind: beta-helper', `type: ${bjt}`, 'input: 20u', 'devices: { out: { area: 2 } }', `output: { v: ${sinks ? 1.4 : 0.4} }`]);
+    add(`widlar-${bjt}`, ['kind: widlar', `type: ${bjt}`, 'input: 100u', 'degeneration: 5k', `output: { v: ${sinks ? 0.9 : 0.9} }`]);
+    add(`beta-multiplier-${mos}`, ['kind: beta-multiplier', `type: ${mos}`, `size: ${sinks ? '{ w: 2u, l: 2u }' : '{ w: 8u, l: 2u }'}`, 'k: 4', 'resistor: 12k',
+      `devices: ${sinks ? '{ top: { w: 4u }, topd: { w: 4u } }' : '{ top: { w: 1u }, topd: { w: 1u } }'}`, 'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 0.8 : 1.0} }`]);
+    add(`vgs-resistor-${mos}`, ['kind: vgs-resistor', `type: ${mos}`, `size: ${sinks ? '{ w: 4u, l: 2u }' : '{ w: 16u, l: 2u }'}`, `resistor: ${sinks ? '60k' : '68k'}`,
+      `devices: ${sinks ? '{ follow: { w: 16u, bulk: source }, top: { w: 32u }, topd: { w: 32u } }' : '{ follow: { w: 64u, bulk: source }, top: { w: 8u }, topd: { w: 8u } }'}`,
+      'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 1.2 : 0.6} }`]);
+    add(`ptat-${bjt}`, ['kind: ptat', `type: ${bjt}`, 'k: 8', 'resistor: 10.8k', 'startup: { w: 0.5u, l: 16u }', `output: { v: ${sinks ? 0.7 : 1.1} }`]);
+    add(`vbe-resistor-${bjt}`, ['kind: vbe-resistor', `type: ${bjt}`, 'resistor: 36k', 'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 1.0 : 0.8} }`]);
+    const rail = sinks ? 'vss' : 'vdd', w = sinks ? '4u' : '16u';
+    add(`netlist-${mos}`, ['kind: netlist', `type: ${mos}`, 'devices:',
+      `  M1: { type: ${mos}, d: a, g: a, s: ${rail}, w: ${w}, l: 1u }`, `  M3: { type: ${mos}, d: b, g: b, s: a, w: ${w}, l: 1u }`,
+      `  M2: { type: ${mos}, d: c, g: a, s: ${rail}, w: ${w}, l: 1u }`, `  M4: { type: ${mos}, d: out, g: b, s: c, w: ${w}, l: 1u }`,
+      `currents: { IREF: { from: ${sinks ? 'vdd' : 'b'}, to: ${sinks ? 'b' : 'vss'}, i: 20u } }`,
+      `output: { node: out, v: ${sinks ? 1.3 : 0.5} }`, 'input: { source: IREF }', 'pair: { ref: M1, out: M2 }']);
+  }
+  return lines.join('\n') + '\n';
+}
