@@ -90,6 +90,9 @@ describe('output-beyond-reach', () => {
     const vsgDiode = vgs(50e-6, 70e-6, 3, 0.48);
     const vsgOut = vgs(50e-6, 70e-6, 3, vt(0.48, 0.4, 0.8, vsgDiode));
     near(volts(f!.message, 'the output at 1.3 V is above '), 1.8 - vsgDiode);
+    // Saturation would need the output at 0.630 − 0.690 = −60 mV: past vss itself.
+    near(volts(f!.message, 'for the stack to conduct and at most '), 1.8 - vsgDiode - (vsgDiode - 0.48));
+    expect(f!.message).toMatch(/at most -\d+(\.\d+)? mV \(beyond vss\) for `out` to saturate/);
     near(volts(f!.message, "even then `out`'s gate (node `x`) would sit at "), 1.8 - vsgDiode - vsgOut);
     near(volts(f!.message, '`diode` + `out` needs '), vsgDiode + vsgOut);
   });

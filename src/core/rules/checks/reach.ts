@@ -110,7 +110,7 @@ export function checkReach(rc: RuleContext, site: Site): Draft | undefined {
     : `the output at ${v(site.vout)} is ${formatSI(Math.abs(site.vout - r.saturation), 'V')} past ${v(r.saturation)}, where ${out} leaves saturation: ` +
       `in triode ${out} needs more gate drive to pass ${i} than the supply gives` +
       (ran ? ` (the solve ran node ${code(ran.node)} to ${v(ran.v)}, beyond ${ran.rail})` : '');
-  const outside = past(sinks ? vdd : vss, r.saturation) ? `, beyond ${rail}` : '';
+  const outside = past(sinks ? vdd : vss, r.saturation) ? ` (beyond ${rail})` : '';
   const reach = `The output must be ${far} ${v(r.floor)} for the stack to conduct and ${edge} ${v(r.saturation)}${outside} for ${out} to saturate ` +
     `(VGS of ${code(r.diode)} + VDSsat of ${out} at ${i})`;
   const stack = fits ? '' : `; even then ${out}'s gate (node ${code(r.gateNode)}) would sit at ${v(r.gate)}, beyond ${rail}: ` +
