@@ -156,6 +156,15 @@ const rows: Row[] = [
     code: 'stack-over-supply', at: [10, 11, 14, '40u'], fix: false,
     message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at -1\.\d+ V, below vss\)/,
   },
+  {
+    // VGS_diode = VT + √(2·I/(kp·W/L)) = 0.45 + √(2·38µ/(280µ·21)) = 564 mV (square law, design §3;
+    // Razavi ch. 2, from memory): the Wilson's `out` stands on that node, so an output held at
+    // 0.43 V cannot pass the output current forwards — no operating point. test/rules/reach.test.ts
+    // holds every figure of the message.
+    name: 'output-beyond-reach: an NMOS Wilson output below its diode node, at the output value',
+    text: spec(mirror('wn', 'wilson', 'nmos', ['    input: 38u', '    size: { w: 8.4u, l: 0.4u }', '    output: { v: 0.43 }'])),
+    code: 'output-beyond-reach', at: [12, 17, 21, '0.43'], fix: false, message: /^wn: no operating point: the output at 430 mV is below 564 mV/,
+  },
 ];
 
 function find(findings: Finding[], code: string): Finding | undefined {

@@ -102,7 +102,8 @@ export function analyzeSpec(spec: ResolvedSpec, opts?: { curve?: boolean; repeat
   const repeats = opts?.repeats === false ? undefined : new RepeatedMirrors(opts?.curve === true, spec, units, settings);
   for (const mirror of spec.mirrors ?? []) {
     const outputs = mirror.kind === 'netlist' ? undefined : mirror.outputs;
-    const linked = mirror.kind !== 'netlist' && mirror.input.kind === 'link';
+    // Defensive: a malformed mirror (a defect upstream) has no input to read; measureMirror reports it.
+    const linked = mirror.kind !== 'netlist' && (mirror.input as { kind?: string } | undefined)?.kind === 'link';
     const n = Array.isArray(outputs) ? Math.max(1, outputs.length) : 1;
     for (let j = 0; j < n; j++) {
       const ctx: MirrorContext = { spec, mirror, outputIndex: j };

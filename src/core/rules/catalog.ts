@@ -137,6 +137,12 @@ export const DESIGN_RULES: readonly RuleInfo[] = [
     fix: 'Lower the gate-source drops: wider or shorter devices, fewer stacked devices (a wide-swing instead of a plain cascode), or less current. No quick fix: the right change is a design choice.',
   },
   {
+    code: 'output-beyond-reach', severity: 'error',
+    summary: 'A Wilson (plain or balanced) has no operating point because its output voltage lies where its output stack cannot conduct: on the rail side of the diode node `out` stands on, or — the solve having run a node past a rail — so far short of `out`\'s saturation that in triode it needs more gate drive than the supply gives. The message gives both edges in numbers.',
+    why: 'The output device passes the output current into the reference diode; with the output on the wrong side of that diode\'s VGS it cannot pass it forwards, the reference starves and no DC operating point exists — the solver is right not to find one.',
+    fix: 'Move the output voltage (the load sets it) past the saturation edge, lower the diode\'s VGS (wider or shorter devices, or less current: the message says when no sizing can reach), or use a kind that reaches nearer the rail (a wide-swing cascode needs two VDSsat, a simple mirror one). No quick fix: the output voltage is the load\'s, not the mirror\'s.',
+  },
+  {
     code: 'no-convergence', severity: 'error',
     summary: 'The DC solve of the mirror did not converge; the message says what was tried.',
     why: 'No operating point, no checks: the other figures of this mirror are not reported.',

@@ -3,25 +3,36 @@
  * stack-over-supply: the solve put a node outside the rails — the devices between the mirror's
  * rail and that node need more voltage to carry their current than the supply gives, so there is
  * no operating point. One error names the stack and what it needs; no other finding follows.
+ * A Wilson whose output lies beyond its output stack's reach gets output-beyond-reach (reach.ts)
+ * in the place of either: the cause, not the solver's log.
  */
 import { mainCurrent } from '../../device-types';
 import type { Draft, RuleContext } from '../model';
 import { draftKey } from '../model';
 import { mirrorRange, valueRange, type Site } from '../sites';
 import { code, formatSI } from '../../text/format';
+import { checkReach } from './reach';
 
 export function checkConvergence(rc: RuleContext, site: Site): Draft[] {
   const r = site.report;
   if (r.converged) return [];
+  let reach: Draft | undefined;
+  try {
+    reach = checkReach(rc, site);
+  } catch {
+    // A diagnosis that fails on odd numbers leaves the solver's own finding.
+  }
+  if (reach) return [reach];
   if (r.beyondRails) return [overSupply(rc, site)];
   const at = mirrorRange(rc.parsed, site.mirrorIndex);
-  const note = r.solveNote ? `: ${r.solveNote}` : '';
+  // The solver's note already opens with "did not converge" when it says what it tried.
+  const note = !r.solveNote ? 'the solve did not converge' : r.solveNote.startsWith('did not converge') ? `the solve ${r.solveNote}` : `the solve did not converge: ${r.solveNote}`;
   return [{
     key: draftKey('no-convergence', site.path),
     mirrorIndex: site.mirrorIndex,
     finding: {
       severity: 'error', code: 'no-convergence', path: at.path, range: at.range,
-      message: `no DC operating point (the solve did not converge${note}); its other figures are not checked`,
+      message: `no DC operating point (${note}); its other figures are not checked`,
     },
   }];
 }
