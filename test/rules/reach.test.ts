@@ -136,9 +136,9 @@ describe('no-convergence wording', () => {
   it('says "did not converge" once, then what the solver tried', () => {
     // A simple mirror's report marked as not converged, as the solver notes it (circuit/newton.ts).
     const { parsed } = resolveText(spec(['  - name: s', '    kind: simple', '    type: nmos', '    input: 10u', '    size: { w: 2u, l: 1u }', '    output: { v: 0.9 }']), 'case.bias.yaml');
-    const reports = analyzeSpec(parsed.spec!).map((r) => ({ ...r, converged: false, solveNote: 'did not converge; tried Newton (200 iterations), then source stepping (stalled at 0.0 %: 200 iterations)' }));
+    const reports = analyzeSpec(parsed.spec!).map((r) => ({ ...r, converged: false, solveNote: 'tried Newton (200 iterations), then source stepping (stalled at 0.0 %: 200 iterations)' }));
     const f = runRules(parsed, reports).find((x) => x.code === 'no-convergence');
-    expect(f?.message).toBe('s: no DC operating point (the solve did not converge; tried Newton (200 iterations), then source stepping (stalled at 0.0 %: 200 iterations)); its other figures are not checked');
+    expect(f?.message).toBe('s: no DC operating point (the solve did not converge: tried Newton (200 iterations), then source stepping (stalled at 0.0 %: 200 iterations)); its other figures are not checked');
     const other = runRules(parsed, reports.map((r) => ({ ...r, solveNote: 'not solved: device out: W = 0 m is not a positive length' }))).find((x) => x.code === 'no-convergence');
     expect(other?.message).toBe('s: no DC operating point (the solve did not converge: not solved: device out: W = 0 m is not a positive length); its other figures are not checked');
   });

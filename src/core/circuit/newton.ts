@@ -268,5 +268,5 @@ function finishFailed(c: Circuit, ws: Workspace, iterations: number, best: numbe
   setHeld(c, ws, 1);
   assemble(c, ws, 1, SOLVER.gmin);
   ws.factored = false;
-  return { converged: false, iterations, residual: maxResidual(ws), note: `did not converge; tried ${tried.join(', then ')}` };
+  return { converged: false, iterations, residual: maxResidual(ws), note: `tried ${tried.join(', then ')}` };
 }

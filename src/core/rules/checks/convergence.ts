@@ -25,8 +25,7 @@ export function checkConvergence(rc: RuleContext, site: Site): Draft[] {
   if (reach) return [reach];
   if (r.beyondRails) return [overSupply(rc, site)];
   const at = mirrorRange(rc.parsed, site.mirrorIndex);
-  // The solver's note already opens with "did not converge" when it says what it tried.
-  const note = !r.solveNote ? 'the solve did not converge' : r.solveNote.startsWith('did not converge') ? `the solve ${r.solveNote}` : `the solve did not converge: ${r.solveNote}`;
+  const note = r.solveNote ? `the solve did not converge: ${r.solveNote}` : 'the solve did not converge';
   return [{
     key: draftKey('no-convergence', site.path),
     mirrorIndex: site.mirrorIndex,
