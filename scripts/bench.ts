@@ -1,7 +1,8 @@
 /**
  * qpoint benchmark, on the invented "Halden 180" process. Budgets (median, this 2-core machine):
- *   engine   one mirror's full analysis (analyzeSpec) ≤ 50 µs; 500 mirrors ≤ 50 ms;
- *            the example spec's engine analysis ≤ 5 ms
+ *   engine   one mirror's full analysis (analyzeSpec) ≤ 50 µs, over one mirror of every kind in
+ *            both polarities of its family, each with an operating point (representativeText);
+ *            500 such mirrors ≤ 50 ms; the example spec's engine analysis ≤ 5 ms
  *   text     the example through analyzeText (parse + solve + rules with fix verification),
  *            clean and with faults: as fast as possible (it runs on every keystroke)
  *   cli      `node dist/cli.js check` on a clean 500-mirror file within 1.5× of the floor (Node
@@ -19,7 +20,8 @@
  *   netlist  a tree of 1 000 linked mirror stages (4 002 devices) as one Newton system: shown
  *   network  a bias network of 1 000 linked mirrors (a binary tree ten levels deep, polarity
  *            alternating): its joint solve and every mirror's analysis in process ≤ 100 ms; through
- *            the CLI no dearer than the same mirrors written unlinked
+ *            the CLI no dearer than the same mirrors written unlinked, each at the input current
+ *            and output voltages it has in the solved tree (treeConditions)
  *   bundle   dist/extension.js minified (--production) ≤ 1.5 MB
  *   tables   the example with every device from a characterisation table ≤ 3× its square-law
  *            analysis; a 5 MB table read in < 200 ms
