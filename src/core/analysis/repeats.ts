@@ -66,9 +66,16 @@ function memberKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean):
   if (m.input.kind !== 'link') return undefined;
   let known = memberKeys.get(mirror);
   if (known === undefined) {
+    // JSON.stringify rather than canonical.ts (a network's members cost a thousand keys a run):
+    // members are read and handed on by one code path, so alike ones list their fields in one
+    // order (another order only misses a share). It writes NaN, ±Infinity and -0 as others, so a
+    // member with such a voltage or current is not shared.
+    const plain = (x: number | undefined): boolean => x === undefined || (Number.isFinite(x) && !Object.is(x, -0));
+    if (!plain(m.input.i) || !m.outputs.every((o) => plain(o.output.v))) return undefined;
+    const bank = isBank(m);
     // Which mirror an output feeds is left out too (not whether it feeds one).
-    const outputs = m.outputs.map((o) => (o.feeds === undefined ? o : { ...o, feeds: -1 }));
-    known = circuitDigest({ ...m, input: { kind: m.input.kind, i: m.input.i } as typeof m.input, outputs });
+    const outputs = m.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined, feeds: o.feeds === undefined ? undefined : -1 }));
+    known = digest(JSON.stringify({ ...m, name: undefined, path: undefined, input: { kind: m.input.kind, i: m.input.i }, outputs }));
     memberKeys.set(mirror, known);
   }
   return `${outputIndex}|${curve ? 1 : 0}|${known}`;
