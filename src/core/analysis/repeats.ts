@@ -53,12 +53,12 @@ function circuitDigest(mirror: ResolvedMirror): string {
 }
 
 /**
- * A linked member's circuit key without the output that feeds it and the mirrors it feeds — its
- * input is kept as the current that arrives, its outputs at their node voltages
- * (network/index.ts handedOn) — so that
- * members alike in all else share their own figures (measure.ts measureAlike): a bank feeding
- * identical blocks hands each the same current and holds each at the same voltage. Undefined for
- * any other mirror, and for a member with a `vbias` picked from the spec around it (vbias.ts).
+ * A linked member's circuit key without the output that feeds it and the mirrors it feeds (its
+ * input kept as the current that arrives, its outputs at their node voltages: network/index.ts
+ * handedOn), so that members alike in all else share their own figures (measure.ts
+ * measureAlike): a bank feeding identical blocks hands each the same current and holds each at
+ * the same voltage. Undefined for any other mirror, and for a member with a `vbias` picked from
+ * the spec around it (vbias.ts).
  */
 function memberKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean): string | undefined {
   if (mirror.kind === 'netlist' || takesVbias(mirror)) return undefined;
