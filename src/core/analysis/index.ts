@@ -25,7 +25,7 @@
  *   solveAt with a perturbation keeps the nominal pick (the bias comes from elsewhere).
  */
 import type { CurvePoint, DeviceReport, MirrorReport, ResolvedMirror, ResolvedSpec } from '../types';
-import { failedReport, measure, measureAlike, measureParts, type MeasureOptions } from './measure';
+import { failedReport, measure, memberJoint, measureParts, type MeasureOptions } from './measure';
 import { vbiasFor } from './vbias';
 import { buildMirror, deviceReports, nodeVoltages, nominalVout, outputCurrent, shownDevices, solveMirror } from './solve';
 import { RepeatedMirrors, type MemberMeasure, type SolvedUnits } from './repeats';
@@ -68,14 +68,15 @@ export function measureMirror(ctx: MirrorContext, opts?: MeasureOptions): Mirror
   }
 }
 
-/** measureMirror in parts for a network member, and from a member alike (repeats.ts). Never throws. */
+/** measureMirror in parts for a network member, and its own drift and noise alone for a member
+ *  alike (repeats.ts). Never throws. */
 function memberMeasure(ctx: MirrorContext, opts: MeasureOptions): MemberMeasure {
   return {
     parts: () => {
       try { return measureParts(ctx, opts); } catch (err) { return { report: failedReport(ctx, `internal error: ${message(err)}`) }; }
     },
-    alike: (like) => {
-      try { return measureAlike(ctx, like, opts); } catch { return undefined; }
+    joint: () => {
+      try { return memberJoint(ctx, opts); } catch { return undefined; }
     },
   };
 }

@@ -169,28 +169,10 @@ function jointOf(t: MirrorTarget, opts: MeasureOptions, plan: { drifts: boolean;
   return plan.drifts ? jointDrift(t.spec, indexOf(t.mirror), t.outputIndex, { box: plan.box, curve: opts.curve === true }) : undefined;
 }
 
-/**
- * Output t's report from `like`, a member's measured with the same options whose mirror is t's
- * but for its name, place and the output feeding it (repeats.ts `memberKey`): the same circuit at
- * the same input current and node voltages has the same figures, bit for bit, but its drift and
- * noise, which come through everything above it — those are t's own. Every field in `like`'s
- * order, so the two read alike. Undefined when either has no joint part or the two differ in
- * which figures it holds.
- */
-export function measureAlike(t: MirrorTarget, like: Measured, opts: MeasureOptions = {}): Measured | undefined {
-  if (!like.joint) return undefined;
-  const joint = jointOf(t, opts, driftPlan(t, opts));
-  if (!joint) return undefined;
-  const own = joint as Record<string, unknown>, theirs = like.joint as Record<string, unknown>;
-  const keys = Object.keys(own);
-  if (keys.length !== Object.keys(theirs).length || keys.some((k) => !(k in theirs))) return undefined;
-  const from = like.report as unknown as Record<string, unknown>;
-  const r: Record<string, unknown> = {};
-  for (const k in from) r[k] = k in own ? own[k] : from[k];
-  const id = reportIdentity(t);
-  r.name = id.name; r.mirror = id.mirror; r.path = id.path; r.mirrorIndex = id.mirrorIndex; r.outputIndex = id.outputIndex;
-  if (id.output !== undefined) r.output = id.output;
-  return { report: r as unknown as MirrorReport, joint };
+/** Output t's drift and noise through its network's joint circuit, as a measurement with `opts`
+ *  makes them: what a network member alike in all else does not share (repeats.ts). */
+export function memberJoint(t: MirrorTarget, opts: MeasureOptions = {}): JointDrift | undefined {
+  return jointOf(t, opts, driftPlan(t, opts));
 }
 
 export function measureParts(t: MirrorTarget, opts: MeasureOptions = {}): Measured {

@@ -26,6 +26,7 @@ import { SweptMap } from '../swept-map';
 import type { MirrorReport, ResolvedMirror, ResolvedSpec, TemplateMirror } from '../types';
 import { reportIdentity, type Measured, type ReportIdentity } from './measure';
 import { takesVbias } from '../kinds/index';
+import type { JointDrift } from '../network/drift';
 import type { MirrorContext } from './index';
 
 /** The mirror without what says where it is (paths, its name; an output's name outside a bank),
@@ -36,27 +37,23 @@ import type { MirrorContext } from './index';
 function circuitKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean): string {
   let known = circuitKeys.get(mirror);
   if (known === undefined) {
-    known = circuitDigest(mirror);
+    const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
+    if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
+      const bank = isBank(mirror);
+      what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
+    }
+    known = digest(canonicalJson(what));
     circuitKeys.set(mirror, known);
   }
   return `${outputIndex}|${curve ? 1 : 0}|${known}`;
 }
 const circuitKeys = new WeakMap<ResolvedMirror, string>();
 
-function circuitDigest(mirror: ResolvedMirror): string {
-  const what: Record<string, unknown> = { ...mirror, name: undefined, path: undefined };
-  if (mirror.kind !== 'netlist' && Array.isArray(mirror.outputs)) {
-    const bank = isBank(mirror);
-    what.outputs = mirror.outputs.map((o) => ({ ...o, path: undefined, name: bank ? o.name : undefined }));
-  }
-  return digest(canonicalJson(what));
-}
-
 /**
  * A linked member's circuit key without the output that feeds it and the mirrors it feeds (its
  * input kept as the current that arrives, its outputs at their node voltages: network/index.ts
- * handedOn), so that members alike in all else share their own figures (measure.ts
- * measureAlike): a bank feeding identical blocks hands each the same current and holds each at
+ * handedOn), so that members alike in all else share their own figures
+ * (`alikeReport`): a bank feeding identical blocks hands each the same current and holds each at
  * the same voltage. Undefined for any other mirror, and for a member with a `vbias` picked from
  * the spec around it (vbias.ts).
  */
@@ -82,8 +79,30 @@ function memberKey(mirror: ResolvedMirror, outputIndex: number, curve: boolean):
 }
 const memberKeys = new WeakMap<ResolvedMirror, string>();
 
-/** How to measure a network member in parts, and from a member alike (measure.ts). */
-export interface MemberMeasure { parts: () => Measured; alike: (like: Measured) => Measured | undefined }
+/** How to measure a network member in parts, and its own drift and noise alone (measure.ts). */
+export interface MemberMeasure { parts: () => Measured; joint: () => JointDrift | undefined }
+
+/**
+ * A member's report from `like`, a member's measured with the same options whose mirror is its
+ * own but for its name, place and the output feeding it (`memberKey`): the same circuit at the
+ * same input current and node voltages has the same figures, bit for bit, but its drift and
+ * noise, which come through everything above it — those are its own (`joint`). Every field in
+ * `like`'s order, so the two read alike. Undefined when either has no joint part or the two
+ * differ in which figures it holds.
+ */
+function alikeReport(like: Measured, joint: () => JointDrift | undefined, id: ReportIdentity): MirrorReport | undefined {
+  if (!like.joint) return undefined;
+  const own = joint() as Record<string, unknown> | undefined;
+  if (!own) return undefined;
+  const theirs = like.joint as Record<string, unknown>;
+  const keys = Object.keys(own);
+  if (keys.length !== Object.keys(theirs).length || keys.some((k) => !(k in theirs))) return undefined;
+  // Written key by key (a spread copies every number into a box of its own, which cost more).
+  const from = like.report as unknown as Record<string, unknown>;
+  const r: Record<string, unknown> = {};
+  for (const k in from) r[k] = k in own ? own[k] : from[k];
+  return withIdentity(r as unknown as MirrorReport, id);
+}
 /** Each mirror's last store keys by output (`RepeatedMirrors.keyOf`), with what they were made with. */
 const keysOf = new WeakMap<ResolvedMirror, { prefix: string; curve: boolean; keys: string[] }>();
 
@@ -206,7 +225,7 @@ export class RepeatedMirrors {
    *  `member`: a linked member's measurement in parts, shared with the members alike. */
   report(ctx: MirrorContext, measure: () => MirrorReport, member?: MemberMeasure): MirrorReport {
     const mk = member && memberKey(ctx.mirror, ctx.outputIndex, this.curve);
-    if (mk !== undefined) measure = () => this.member(mk, member!);
+    if (mk !== undefined) measure = () => this.member(ctx, mk, member!);
     const print = this.solved instanceof SolvedUnits ? undefined : circuitPrint(ctx.mirror, ctx.outputIndex);
     if (print !== undefined) {
       const first = this.printed.get(print);
@@ -224,10 +243,10 @@ export class RepeatedMirrors {
   }
 
   /** A member's report from the first member alike (its own drift and noise), else measured. */
-  private member(key: string, m: MemberMeasure): MirrorReport {
+  private member(ctx: MirrorContext, key: string, m: MemberMeasure): MirrorReport {
     const like = this.members.get(key);
-    const alike = like && m.alike(like);
-    if (alike) return alike.report;
+    const alike = like && alikeReport(like, m.joint, reportIdentity(ctx));
+    if (alike) return alike;
     const first = m.parts();
     if (!like && first.joint) this.members.set(key, first);
     return first.report;
