@@ -29,7 +29,7 @@ import { vbiasFor } from '../analysis/vbias';
 import { solveMirror } from '../analysis/solve';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, jointOf, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
+import { buildJoint, jointOf, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import { handedOn, handOn, withMirrors } from './index';
 import { keptJoint, type KeptJoint } from './kept';
 
@@ -98,9 +98,8 @@ function handOnEdited(j: JointCircuit, edited: number, changed: Map<number, Temp
  * solved then).
  */
 export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): TemplateMirror | undefined {
-  const log = k.joint.log;
   const p = g.parent.get(edited);
-  if (!log || !p) return undefined;
+  if (!p) return undefined;
   const top = mirrorAt(spec, edited);
   if (!top || top.kind === 'netlist') return undefined;
   const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
@@ -119,7 +118,7 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
   const members = below ? g.members.filter((m) => below.has(indexOf(m))) : near;
   for (const m of members) {
     const mem = byIndex.get(indexOf(m));
-    if (!mem?.ops || KINDS[m.kind].vbias || mem.wired.inputResistor) return undefined;
+    if (!mem || KINDS[m.kind].vbias || mem.wired.inputResistor) return undefined;
   }
   const inputNode = `${top.name}/${KINDS[top.kind].inputNode}`;
   const fed = new Map<number, string>();
@@ -127,6 +126,7 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
     const q = g.parent.get(indexOf(m));
     if (q?.mirror === edited) fed.set(q.output, `${m.name}/${KINDS[m.kind].inputNode}`);
   }
+  const mirrorOf = new Map(members.map((m) => [indexOf(m), m] as const));
   const last = indexOf(members[members.length - 1]!);
   const sub: NetworkGroup = { root: top, members, parent: g.parent };
   let feeders: [number, number] = [0, 0];
@@ -143,7 +143,14 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
       } else {
         // A node cut below: held before the mirror's calls make it a free one.
         if (cut) for (const o of mem.wired.outNodes) if (cut.has(o)) b.hold(o, cut.get(o)!);
-        b.replay(log, mem.ops![0], mem.ops![1]);
+        // Wired with the very arguments the group's build gave it (its linked outputs on the
+        // nodes they drove there), so the builder's calls are the build's: a few mirrors wired
+        // here cost less than logging the whole group's build to replay them.
+        const m = mirrorOf.get(i)!;
+        wired = wireTemplate(b, spec, m, {
+          ns: mem.ns, outputIndex: -1, vout: 0, vbias: m.vbias, inputNode: `${mem.ns}${KINDS[m.kind].inputNode}`,
+          outNode: (o) => (k.joint.linkNode.has(key(i, o)) ? mem.wired.outNodes[o] : undefined),
+        });
       }
       firstDevice += wired.deviceNames.length;
       if (i === last) {
@@ -236,7 +243,7 @@ function railDrains(c: Circuit, n: number, devices: readonly number[] | undefine
  * Newton starts from the kept solution at every node it still has, the topology guess elsewhere.
  */
 function rebuilt(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint, edited: number): { j: JointCircuit; warm: Float64Array } | undefined {
-  const log = k.joint.log;
+  const log = k.logged();
   if (!log) return undefined;
   const byIndex = new Map(k.joint.members.map((mem) => [mem.index, mem] as const));
   const feeding = g.parent.get(edited)?.mirror;
