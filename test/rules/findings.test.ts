@@ -157,6 +157,19 @@ const rows: Row[] = [
     message: /^pc: no operating point: the stack `ref` \+ `refc` needs 3\.\d+ V to carry 40 µA but the supply is 1\.8 V \(node `b` would sit at -1\.\d+ V, below vss\)/,
   },
   {
+    // NMOS Wilson at 40 µA in 1 µm / 1 µm, its output at 1.7 V (within the output stack's reach):
+    // the input node x holds `out`'s gate, which stands on the diode. At the diode's 36.9 µA,
+    // VGS_diode = 0.45 + √(2·36.9µ/(280µ·(1 + 0.08·0.945))) ≈ 0.945 V; `out`'s VT rises by body
+    // effect to 0.45 + 0.45·(√(0.85 + 0.945) − √0.85) ≈ 0.638 V and VGS_out ≈ 0.638 + 0.499 = 1.14 V,
+    // so x needs ≈ 2.08 V of a 1.8 V supply (square law with CLM and body effect, design §3; Razavi
+    // ch. 2, from memory). The stack named is the one holding x: `diode` + `out`, not `in`, whose
+    // drain only sits on that node.
+    name: 'stack-over-supply: a Wilson whose gate stack exceeds the supply names the diode and the output device',
+    text: spec(mirror('wt', 'wilson', 'nmos', ['    input: 40u', '    size: { w: 1u, l: 1u }', '    output: { v: 1.7 }'])),
+    code: 'stack-over-supply', at: [10, 11, 14, '40u'], fix: false,
+    message: /^wt: no operating point: the stack `diode` \+ `out` needs 2\.(0[5-9]|1[01]) V to carry 3\d\.\d µA but the supply is 1\.8 V \(node `x` would sit at 2\.\d+ V, above vdd\)/,
+  },
+  {
     // VGS_diode = VT + √(2·I/(kp·W/L)) = 0.45 + √(2·38µ/(280µ·21)) = 564 mV (square law, design §3;
     // Razavi ch. 2, from memory): the Wilson's `out` stands on that node, so an output held at
     // 0.43 V cannot pass the output current forwards — no operating point. test/rules/reach.test.ts

@@ -3,7 +3,7 @@
  * reports from the solution. Everything here returns data, never throws on bad circuits.
  */
 import { newChannelEval } from '../models/core';
-import { currentNodes, deviceMargin, deviceReport } from '../circuit/elements/device';
+import { controlNode, currentNodes, deviceMargin, deviceReport } from '../circuit/elements/device';
 import { buildNetlist } from '../circuit/netlistCircuit';
 import { solveDc, type DcOptions, type DcResult } from '../circuit/newton';
 import { buildTemplate, type PerturbationLike } from '../circuit/templates';
@@ -91,18 +91,70 @@ function sanity(mc: MirrorCircuit, r: DcResult): MirrorSolve {
   const v = mc.ws.v[worst]!;
   const node = c.nodeNames[worst]!;
   const rail = v < lo ? 'vss' : 'vdd';
-  const stack = channelPath(mc, worst);
+  const stack = stackHolding(mc, worst);
   const need = Math.abs(v - mc.rail);
   const where = excess > 10 * Math.abs(mc.span) + 10 ? 'far outside the supplies' : rail === 'vss' ? 'below vss' : 'above vdd';
   const note = `node ${node} would sit at ${v.toPrecision(3)} V, ${where}: no device can carry the forced current within the supply`;
   return { converged: false, iterations: r.iterations, residual: r.residual, note, beyond: { node, v, rail, stack, need } };
 }
 
+/**
+ * The devices whose drops hold node `to` away from the mirror's own rail, rail side first: the
+ * chain of channels from the rail to it, unless the device of that chain on the node is driven
+ * from another free node (the Wilson's `in`, its gate on the diode node): it then passes what
+ * that node sets, the node sits where the gates on it need it, and the chain of control-to-source
+ * drops down to the rail is named instead (the Wilson's `diode` + `out`). A device on the node
+ * driven from a held voltage (a cascode's gate on vbias) limits what the chain can carry: the
+ * chain of channels stays.
+ */
+function stackHolding(mc: MirrorCircuit, to: number): string[] {
+  const channels = channelPath(mc, to);
+  const c = mc.circuit;
+  const last = c.devices.find((d) => d.name === channels[channels.length - 1]);
+  const control = last ? controlNode(last) : to;
+  if (control === to || control >= c.nFree) return channels;
+  const drops = dropPath(mc, to);
+  return drops.length > 0 ? drops : channels;
+}
+
+/** The mirror's own rail among the held nodes, or -1. */
+function ownRail(mc: MirrorCircuit): number {
+  const c = mc.circuit;
+  return c.nodeNames.findIndex((n, k) => k >= c.nFree && c.fixedV[k] === mc.rail && (n === 'vss' || n === 'vdd'));
+}
+
+/** Devices on the shortest chain of control-to-source drops (gate to source, base to emitter)
+ *  from node `to` down to the mirror's own rail, rail side first; at each node a diode-connected
+ *  device before another one of the same drop; empty when no such chain exists. */
+function dropPath(mc: MirrorCircuit, to: number): string[] {
+  const c = mc.circuit;
+  const rail = ownRail(mc);
+  if (rail < 0) return [];
+  const via = new Map<number, { from: number; dev: number }>([[to, { from: -1, dev: -1 }]]);
+  const queue = [to];
+  while (queue.length > 0 && !via.has(rail)) {
+    const n = queue.shift()!;
+    const on = c.devices.map((d, k) => k).filter((k) => controlNode(c.devices[k]!) === n);
+    on.sort((a, b) => Number(currentNodes(c.devices[b]!)[0] === n) - Number(currentNodes(c.devices[a]!)[0] === n));
+    for (const k of on) {
+      const next = currentNodes(c.devices[k]!)[1];
+      // Through free nodes only, as channelPath: a held node but the rail ends a chain.
+      if (via.has(next) || (next >= c.nFree && next !== rail)) continue;
+      via.set(next, { from: n, dev: k });
+      queue.push(next);
+    }
+  }
+  if (!via.has(rail)) return [];
+  const names: string[] = [];
+  for (let n = rail; n !== to;) { const e = via.get(n)!; names.push(c.devices[e.dev]!.name); n = e.from; }
+  return names;
+}
+
 /** Devices on the shortest chain of channels (drain–source) from the mirror's own rail to node
  *  `to`, rail side first; empty when no such chain exists. */
 function channelPath(mc: MirrorCircuit, to: number): string[] {
   const c = mc.circuit;
-  const start = c.nodeNames.findIndex((n, k) => k >= c.nFree && c.fixedV[k] === mc.rail && (n === 'vss' || n === 'vdd'));
+  const start = ownRail(mc);
   if (start < 0) return [];
   const via = new Map<number, { from: number; dev: number }>([[start, { from: -1, dev: -1 }]]);
   const queue = [start];

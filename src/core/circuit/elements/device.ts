@@ -87,6 +87,16 @@ export function currentNodes(d: DeviceElement): [number, number] {
   }
 }
 
+/** The node that sets the main current (gate, base): its drop to the source or emitter is the
+ *  device's own VGS or VBE. */
+export function controlNode(d: DeviceElement): number {
+  switch (d.kind) {
+    case 'mos': return d.g;
+    case 'bjt': return d.b;
+    default: return assertNever(d);
+  }
+}
+
 /** Whether the terminal at node k is where the main current flows (compliance: a device whose
  *  drain or source is the output moves one-for-one with it). */
 export function carriesNode(d: DeviceElement, k: number): boolean {
