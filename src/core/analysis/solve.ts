@@ -129,51 +129,50 @@ function ownRail(mc: MirrorCircuit): number {
 function dropPath(mc: MirrorCircuit, to: number): string[] {
   const c = mc.circuit;
   const rail = ownRail(mc);
-  if (rail < 0) return [];
-  const via = new Map<number, { from: number; dev: number }>([[to, { from: -1, dev: -1 }]]);
-  const queue = [to];
-  while (queue.length > 0 && !via.has(rail)) {
-    const n = queue.shift()!;
+  const chain = rail < 0 ? undefined : shortestChain(c, to, rail, (n) => {
     const on = c.devices.map((d, k) => k).filter((k) => controlNode(c.devices[k]!) === n);
     on.sort((a, b) => Number(currentNodes(c.devices[b]!)[0] === n) - Number(currentNodes(c.devices[a]!)[0] === n));
-    for (const k of on) {
-      const next = currentNodes(c.devices[k]!)[1];
-      // Through free nodes only, as channelPath: a held node but the rail ends a chain.
-      if (via.has(next) || (next >= c.nFree && next !== rail)) continue;
-      via.set(next, { from: n, dev: k });
-      queue.push(next);
-    }
-  }
-  if (!via.has(rail)) return [];
-  const names: string[] = [];
-  for (let n = rail; n !== to;) { const e = via.get(n)!; names.push(c.devices[e.dev]!.name); n = e.from; }
-  return names;
+    return on.map((k) => [k, currentNodes(c.devices[k]!)[1]] as const);
+  });
+  // Listed from the rail back: rail side first already.
+  return chain ? chain.map((k) => c.devices[k]!.name) : [];
 }
 
 /** Devices on the shortest chain of channels (drain–source) from the mirror's own rail to node
  *  `to`, rail side first; empty when no such chain exists. */
 function channelPath(mc: MirrorCircuit, to: number): string[] {
   const c = mc.circuit;
-  const start = ownRail(mc);
-  if (start < 0) return [];
-  const via = new Map<number, { from: number; dev: number }>([[start, { from: -1, dev: -1 }]]);
-  const queue = [start];
-  while (queue.length > 0) {
-    const n = queue.shift()!;
-    if (n === to) break;
+  const rail = ownRail(mc);
+  const chain = rail < 0 ? undefined : shortestChain(c, rail, to, (n) => {
+    const steps: (readonly [number, number])[] = [];
     c.devices.forEach((dev, k) => {
       const [a, b] = currentNodes(dev);
       const next = a === n ? b : b === n ? a : -1;
-      // Through free nodes only: a held node (another rail, the output) ends a chain.
-      if (next < 0 || via.has(next) || (next >= c.nFree && next !== to)) return;
-      via.set(next, { from: n, dev: k });
-      queue.push(next);
+      if (next >= 0) steps.push([k, next]);
     });
+    return steps;
+  });
+  return chain ? chain.map((k) => c.devices[k]!.name).reverse() : [];
+}
+
+/** The devices (indices) of the shortest chain from node `start` to node `goal`, each link one of
+ *  `steps(n)` ([device, next node]) and through free nodes only — a held node but `goal` ends a
+ *  chain (another rail, the output) —, listed from `goal` back to `start`; undefined if none. */
+function shortestChain(c: MirrorCircuit['circuit'], start: number, goal: number, steps: (n: number) => readonly (readonly [number, number])[]): number[] | undefined {
+  const via = new Map<number, { from: number; dev: number }>([[start, { from: -1, dev: -1 }]]);
+  const queue = [start];
+  while (queue.length > 0 && !via.has(goal)) {
+    const n = queue.shift()!;
+    for (const [dev, next] of steps(n)) {
+      if (via.has(next) || (next >= c.nFree && next !== goal)) continue;
+      via.set(next, { from: n, dev });
+      queue.push(next);
+    }
   }
-  if (!via.has(to)) return [];
-  const names: string[] = [];
-  for (let n = to; n !== start;) { const e = via.get(n)!; names.push(c.devices[e.dev]!.name); n = e.from; }
-  return names.reverse();
+  if (!via.has(goal)) return undefined;
+  const devs: number[] = [];
+  for (let n = goal; n !== start;) { const e = via.get(n)!; devs.push(e.dev); n = e.from; }
+  return devs;
 }
 
 /** A, the output current (positive for a working mirror) at the assembled solution. */
