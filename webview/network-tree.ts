@@ -32,6 +32,22 @@ function layout(report: FileReport, tree: NetworkTree): Promise<LaidTree | undef
   return p;
 }
 
+/** The least scale a tree wider than the panel is drawn at (its 12 px text at 8 px); a wider
+ *  tree scrolls at that scale. */
+const LEAST_SCALE = 2 / 3;
+
+/** A tree wider than the panel shrinks to the panel's width, down to LEAST_SCALE: a side panel
+ *  then shows a bank's fed mirrors beside their links instead of past its edge. Set through the
+ *  element's style object (the CSP refuses style attributes, not the CSSOM). */
+function fitToPanel(svg: Element): void {
+  if (!(svg instanceof SVGSVGElement)) return;
+  const width = Number(svg.getAttribute('width')), height = Number(svg.getAttribute('height'));
+  if (!(width > 0 && height > 0)) return;
+  svg.classList.add('fits');
+  svg.style.minWidth = `${Math.ceil(width * LEAST_SCALE)}px`;
+  svg.style.aspectRatio = `${width} / ${height}`;
+}
+
 /** One figure per network of the report, each filled when its layout is done. */
 export function networkFigures(report: FileReport, onNode: (select: string, reveal?: Range) => void): HTMLElement[] {
   return networkTrees(report).map((tree) => {
@@ -43,6 +59,7 @@ export function networkFigures(report: FileReport, onNode: (select: string, reve
         return;
       }
       const drawing = buildSvg(drawNetworkTree(laid, true));
+      fitToPanel(drawing);
       const byId = new Map(tree.nodes.map((n) => [n.id, n] as const));
       for (const g of drawing.querySelectorAll<SVGGElement>('g.net-node')) {
         const n = byId.get(g.dataset.id ?? '');

@@ -52,8 +52,8 @@ beforeAll(async () => {
 });
 afterAll(async () => { await browser?.close(); });
 
-async function openWithReport(theme: ThemeKind = 'dark'): Promise<{ page: Page; errors: string[] }> {
-  const page = await browser.newPage({ viewport: { width: 1100, height: 900 } });
+async function openWithReport(theme: ThemeKind = 'dark', width = 1100): Promise<{ page: Page; errors: string[] }> {
+  const page = await browser.newPage({ viewport: { width, height: 900 } });
   const probe = await instrument(page);
   await page.goto(panelUrl);
   await applyTheme(page, theme);
@@ -97,6 +97,27 @@ describe('the network tree in the panel', () => {
     await page.screenshot({ path: join(OUT, 'panel-network.png'), fullPage: true });
     expect(errors).toEqual([]);
     await page.close();
+  });
+
+  it('a tree wider than the panel shrinks to the panel\'s width, down to two thirds of its size; past that it scrolls', async () => {
+    for (const width of [1100, 640]) {
+      const { page, errors } = await openWithReport('dark', width);
+      const svg = page.locator('svg.net-tree');
+      const natural = Number(await svg.getAttribute('width'));
+      const figure = (await page.locator('figure.network-figure').boundingBox())!;
+      const drawn = (await svg.boundingBox())!;
+      // The fixture's tree (1 335 px at its own size) is wider than either panel.
+      expect(natural, `${width}`).toBeGreaterThan(figure.width);
+      expect(drawn.width, `${width}`).toBeCloseTo(Math.max(figure.width, natural * 2 / 3), 0);
+      // Scaled, not cropped: the same proportions.
+      expect(drawn.height / drawn.width).toBeCloseTo(Number(await svg.getAttribute('height')) / natural, 2);
+      const scrolls = await page.locator('figure.network-figure .scroll-x').evaluate((d) => d.scrollWidth > d.clientWidth + 1);
+      expect(scrolls, `${width}`).toBe(natural * 2 / 3 > figure.width);
+      ensureDir(OUT);
+      await page.locator('#networks').screenshot({ path: join(OUT, `network-tree-${width}.png`) });
+      expect(errors).toEqual([]);
+      await page.close();
+    }
   });
 
   it('a click on a mirror selects it and reveals it in the spec; the list groups mirrors by network', async () => {
