@@ -3,13 +3,16 @@
 // which feeds an NMOS tail; `adc_src`'s small input device pulls its link's node down, so that
 // link is in trouble. The pure tree (src/core/network-tree/model.ts) is checked in Node first.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { readFileSync } from 'node:fs';
+import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import type { Browser, Page } from 'playwright-core';
 import { analyzeText } from '../../src/core/analyze';
 import type { FileReport } from '../../src/core/types';
 import { mirrorGroups, networkTree } from '../../src/core/network-tree/model';
+import ELK from 'elkjs/lib/elk.bundled.js';
+import { networkTreesOf } from '../../src/core/network-tree';
+import { renderHtmlReport, STATIC_ID } from '../../src/core/report/html';
 import { formatSI, formatSignedPercent } from '../../webview/format';
 import { OUT, ROOT, applyTheme, ensureBundle, ensureDir, instrument, launch, until, writePanelPage, type ThemeKind } from './browser-harness';
 
@@ -118,6 +121,28 @@ describe('the network tree in the panel', () => {
       expect(errors).toEqual([]);
       await page.close();
     }
+  });
+
+  it('the report\'s static body: the tree at its own size in a scrolling figure on screen, shrunk to the page when printed', async () => {
+    const trees = await networkTreesOf(new ELK(), report());
+    ensureDir(OUT);
+    const file = join(OUT, 'report-network-noscript.html');
+    writeFileSync(file, renderHtmlReport(report(), { script: '' }, undefined, undefined, trees));
+    const context = await browser.newContext({ viewport: { width: 700, height: 900 }, javaScriptEnabled: false });
+    const page = await context.newPage();
+    await page.goto(pathToFileURL(file).toString());
+    const svg = page.locator(`#${STATIC_ID} svg.net-tree`);
+    const natural = Number(await svg.getAttribute('width'));
+    const body = (await page.locator(`#${STATIC_ID}`).boundingBox())!;
+    expect(natural).toBeGreaterThan(body.width);
+    expect((await svg.boundingBox())!.width).toBeCloseTo(natural, 0);
+    expect(await page.locator(`#${STATIC_ID} .network-figure`).evaluate((f) => f.scrollWidth > f.clientWidth)).toBe(true);
+    await page.emulateMedia({ media: 'print' });
+    const printed = (await svg.boundingBox())!;
+    const printedBody = (await page.locator(`#${STATIC_ID}`).boundingBox())!;
+    expect(printed.width).toBeLessThanOrEqual(printedBody.width);
+    expect(printed.height / printed.width).toBeCloseTo(Number(await svg.getAttribute('height')) / natural, 2);
+    await context.close();
   });
 
   it('a click on a mirror selects it and reveals it in the spec; the list groups mirrors by network', async () => {

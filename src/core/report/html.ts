@@ -215,10 +215,12 @@ const REPORT_THEME = [
   `#${STATIC_ID} .schematic-figure { margin: 8px 0 16px; }`,
   `#${STATIC_ID} .schematic-figure figcaption { color: var(--vscode-descriptionForeground); font-size: 90%; }`,
   SCHEMATIC_CSS,
-  `#${STATIC_ID} .network-figure { margin: 8px 0 16px; }`,
+  // A tree wider than the page scrolls on screen and shrinks to the page when printed (paper
+  // clips what overflows it).
+  `#${STATIC_ID} .network-figure { margin: 8px 0 16px; overflow-x: auto; }`,
   `#${STATIC_ID} .network-figure figcaption { color: var(--vscode-descriptionForeground); font-size: 90%; }`,
   `#${STATIC_ID} svg.net-tree { max-width: none; }`,
   NETWORK_TREE_CSS,
   // Printing and archiving use the static body, whatever the script drew on screen.
-  `@media print { #${STATIC_ID} { display: block !important; } #qpoint-root { display: none !important; } }`,
+  `@media print { #${STATIC_ID} { display: block !important; } #qpoint-root { display: none !important; } #${STATIC_ID} .network-figure { overflow: visible; } #${STATIC_ID} svg.net-tree { max-width: 100%; height: auto; } }`,
 ].join('\n');
