@@ -166,7 +166,7 @@ export function representativeText(): string {
       add(`${kind}-${mos}`, [`kind: ${kind}`, `type: ${mos}`, 'input: 20u', `size: ${size}`, 'devices: { out: { m: 2 } }', `output: { v: ${v} }`]);
     }
     add(`beta-helper-${bjt}`, ['kind: beta-helper', `type: ${bjt}`, 'input: 20u', 'devices: { out: { area: 2 } }', `output: { v: ${sinks ? 1.4 : 0.4} }`]);
-    add(`widlar-${bjt}`, ['kind: widlar', `type: ${bjt}`, 'input: 100u', 'degeneration: 5k', `output: { v: ${sinks ? 0.9 : 0.9} }`]);
+    add(`widlar-${bjt}`, ['kind: widlar', `type: ${bjt}`, 'input: 100u', 'degeneration: 5k', 'output: { v: 0.9 }']);
     add(`beta-multiplier-${mos}`, ['kind: beta-multiplier', `type: ${mos}`, `size: ${sinks ? '{ w: 2u, l: 2u }' : '{ w: 8u, l: 2u }'}`, 'k: 4', 'resistor: 12k',
       `devices: ${sinks ? '{ top: { w: 4u }, topd: { w: 4u } }' : '{ top: { w: 1u }, topd: { w: 1u } }'}`, 'startup: { w: 0.5u, l: 4u }', `output: { v: ${sinks ? 0.8 : 1.0} }`]);
     add(`vgs-resistor-${mos}`, ['kind: vgs-resistor', `type: ${mos}`, `size: ${sinks ? '{ w: 4u, l: 2u }' : '{ w: 16u, l: 2u }'}`, `resistor: ${sinks ? '60k' : '68k'}`,

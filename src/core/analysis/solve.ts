@@ -108,13 +108,12 @@ function sanity(mc: MirrorCircuit, r: DcResult): MirrorSolve {
  * chain of channels stays.
  */
 function stackHolding(mc: MirrorCircuit, to: number): string[] {
-  const channels = channelPath(mc, to);
   const c = mc.circuit;
-  const last = c.devices.find((d) => d.name === channels[channels.length - 1]);
-  const control = last ? controlNode(last) : to;
-  if (control === to || control >= c.nFree) return channels;
-  const drops = dropPath(mc, to);
-  return drops.length > 0 ? drops : channels;
+  const channels = channelPath(mc, to);
+  const last = channels[channels.length - 1];
+  const control = last === undefined ? to : controlNode(c.devices[last]!);
+  const drops = control === to || control >= c.nFree ? [] : dropPath(mc, to);
+  return (drops.length > 0 ? drops : channels).map((k) => c.devices[k]!.name);
 }
 
 /** The mirror's own rail among the held nodes, or -1. */
@@ -123,10 +122,10 @@ function ownRail(mc: MirrorCircuit): number {
   return c.nodeNames.findIndex((n, k) => k >= c.nFree && c.fixedV[k] === mc.rail && (n === 'vss' || n === 'vdd'));
 }
 
-/** Devices on the shortest chain of control-to-source drops (gate to source, base to emitter)
- *  from node `to` down to the mirror's own rail, rail side first; at each node a diode-connected
- *  device before another one of the same drop; empty when no such chain exists. */
-function dropPath(mc: MirrorCircuit, to: number): string[] {
+/** Devices (indices) on the shortest chain of control-to-source drops (gate to source, base to
+ *  emitter) from node `to` down to the mirror's own rail, rail side first; at each node a
+ *  diode-connected device before another one of the same drop; empty when no such chain exists. */
+function dropPath(mc: MirrorCircuit, to: number): number[] {
   const c = mc.circuit;
   const rail = ownRail(mc);
   const chain = rail < 0 ? undefined : shortestChain(c, to, rail, (n) => {
@@ -135,12 +134,12 @@ function dropPath(mc: MirrorCircuit, to: number): string[] {
     return on.map((k) => [k, currentNodes(c.devices[k]!)[1]] as const);
   });
   // Listed from the rail back: rail side first already.
-  return chain ? chain.map((k) => c.devices[k]!.name) : [];
+  return chain ?? [];
 }
 
-/** Devices on the shortest chain of channels (drain–source) from the mirror's own rail to node
- *  `to`, rail side first; empty when no such chain exists. */
-function channelPath(mc: MirrorCircuit, to: number): string[] {
+/** Devices (indices) on the shortest chain of channels (drain–source) from the mirror's own rail
+ *  to node `to`, rail side first; empty when no such chain exists. */
+function channelPath(mc: MirrorCircuit, to: number): number[] {
   const c = mc.circuit;
   const rail = ownRail(mc);
   const chain = rail < 0 ? undefined : shortestChain(c, rail, to, (n) => {
@@ -152,7 +151,7 @@ function channelPath(mc: MirrorCircuit, to: number): string[] {
     });
     return steps;
   });
-  return chain ? chain.map((k) => c.devices[k]!.name).reverse() : [];
+  return chain ? chain.reverse() : [];
 }
 
 /** The devices (indices) of the shortest chain from node `start` to node `goal`, each link one of

@@ -23,13 +23,13 @@ import { CircuitBuilder, type Circuit } from '../circuit/circuit';
 import { assertNever, type CircuitElement } from '../circuit/elements/element';
 import { deviceReport } from '../circuit/elements/device';
 import { mainCurrent } from '../device-types';
-import { wireTemplate } from '../circuit/templates';
+import { wireTemplate, type WiredTemplate } from '../circuit/templates';
 import { KINDS } from '../kinds/index';
 import { vbiasFor } from '../analysis/vbias';
 import { solveMirror } from '../analysis/solve';
 import { indexOf, mirrorAt } from '../mirror-at';
 import { networkGroups, type NetworkGroup } from './groups';
-import { buildJoint, jointOf, key, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
+import { buildJoint, jointOf, key, memberWiring, outputCurrentOf, type JointCircuit, type JointMember } from './joint';
 import { handedOn, handOn, withMirrors } from './index';
 import { keptJoint, type KeptJoint } from './kept';
 
@@ -134,23 +134,17 @@ export function solvedLocally(spec: ResolvedSpec, g: NetworkGroup, k: KeptJoint,
   const j = buildJoint(spec, sub, undefined, undefined, {
     replay: (i, b) => {
       const mem = byIndex.get(i)!;
-      let wired = mem.wired;
+      let wired: WiredTemplate;
       if (i === edited) {
-        wired = wireTemplate(b, spec, top, {
-          ns: `${top.name}/`, outputIndex: -1, vout: 0, vbias: top.vbias ?? vbiasFor({ spec, mirror: top, outputIndex: 0 })?.vbias,
-          inputNode, outNode: (o) => fed.get(o),
-        });
+        wired = wireTemplate(b, spec, top, memberWiring(spec, top, (o) => fed.get(o)));
       } else {
         // A node cut below: held before the mirror's calls make it a free one.
         if (cut) for (const o of mem.wired.outNodes) if (cut.has(o)) b.hold(o, cut.get(o)!);
-        // Wired with the very arguments the group's build gave it (its linked outputs on the
-        // nodes they drove there), so the builder's calls are the build's: a few mirrors wired
-        // here cost less than logging the whole group's build to replay them.
+        // Wired as the group's build wired it (its linked outputs on the nodes they drove
+        // there), so the builder's calls are the build's: a few mirrors wired here cost less
+        // than logging the whole group's build to replay them.
         const m = mirrorOf.get(i)!;
-        wired = wireTemplate(b, spec, m, {
-          ns: mem.ns, outputIndex: -1, vout: 0, vbias: m.vbias, inputNode: `${mem.ns}${KINDS[m.kind].inputNode}`,
-          outNode: (o) => (k.joint.linkNode.has(key(i, o)) ? mem.wired.outNodes[o] : undefined),
-        });
+        wired = wireTemplate(b, spec, m, memberWiring(spec, m, (o) => (k.joint.linkNode.has(key(i, o)) ? mem.wired.outNodes[o] : undefined)));
       }
       firstDevice += wired.deviceNames.length;
       if (i === last) {
@@ -361,11 +355,7 @@ function rewire(spec: ResolvedSpec, g: NetworkGroup, mem: JointMember, root: boo
     const p = g.parent.get(indexOf(x));
     if (p?.mirror === mem.index) fed.set(p.output, `${x.name}/${KINDS[x.kind].inputNode}`);
   }
-  const wired = wireTemplate(b, spec, m, {
-    ns: mem.ns, outputIndex: -1, vout: 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias,
-    ...(root ? {} : { inputNode: `${mem.ns}${KINDS[m.kind].inputNode}` }),
-    outNode: (j) => fed.get(j),
-  });
+  const wired = wireTemplate(b, spec, m, memberWiring(spec, m, (j) => fed.get(j), { root }));
   // A root fed through a resistor: the joint's root current reads that element itself.
   if (b.problems.length > 0 || wired.inputResistor || wired.deviceNames.length !== mem.wired.deviceNames.length) return undefined;
   const alone = b.build('vss', 1, vss, vdd);

@@ -11,7 +11,7 @@ import { mainCurrent, polaritySign } from '../device-types';
 import { makeWorkspace, type MirrorCircuit } from '../circuit/mirrorCircuit';
 import { resistorCurrent } from '../circuit/elements/resistor';
 import { channelCurrent, currentNodes, deviceReport } from '../circuit/elements/device';
-import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type WiredTemplate } from '../circuit/templates';
+import { guessNodes, idealRatio, isBank, wireTemplate, type GuessContext, type PerturbationLike, type TemplateWiring, type WiredTemplate } from '../circuit/templates';
 import type { ResolvedSpec, TemplateMirror } from '../types';
 import { indexOf } from '../mirror-at';
 import { vbiasFor } from '../analysis/vbias';
@@ -81,14 +81,9 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
   for (const m of g.members) {
     const i = indexOf(m);
     const ns = `${m.name}/`;
-    const inputNode = m === g.root ? undefined : `${ns}${KINDS[m.kind].inputNode}`;
     const own = measure?.mirror === i;
     const from = b.added, opsFrom = b.log?.length ?? 0;
-    const wired = how.replay?.(i, b) ?? wireTemplate(b, spec, m, {
-      ns, outputIndex: own ? measure!.output : -1, vout: own ? m.outputs[measure!.output]?.output.v ?? 0 : 0, vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb,
-      ...(inputNode ? { inputNode } : {}),
-      outNode: (j) => fedBy.get(key(i, j)),
-    });
+    const wired = how.replay?.(i, b) ?? wireTemplate(b, spec, m, memberWiring(spec, m, (j) => fedBy.get(key(i, j)), { root: m === g.root, perturb, ...(own ? { measured: measure!.output } : {}) }));
     const sign = polaritySign(m.type);
     const mem: JointMember = { mirror: m, index: i, ns, wired, first, added: [from, b.added], sign };
     if (b.log) mem.ops = [opsFrom, b.log.length];
@@ -114,6 +109,21 @@ export function buildJoint(spec: ResolvedSpec, g: NetworkGroup, perturb?: Pertur
   const j = jointOf(spec, g, members, c, { index, leafNode, linkNode, outDevices }, measure);
   if (b.log) j.log = b.log;
   return j;
+}
+
+/** How buildJoint wires member `m` into the group's circuit: namespaced by its name, its input
+ *  on its input node (the root's is its own input), its outputs on `outNode`'s nodes (a linked
+ *  one on the input node it feeds), the measured output (`measured`, an index) held at its own
+ *  voltage. A re-check that wires a member again passes the same (edited.ts). */
+export function memberWiring(spec: ResolvedSpec, m: TemplateMirror, outNode: (output: number) => string | undefined,
+  opts: { root?: boolean; perturb?: PerturbationLike; measured?: number } = {}): TemplateWiring {
+  const ns = `${m.name}/`;
+  const { measured } = opts;
+  return {
+    ns, outputIndex: measured ?? -1, vout: measured === undefined ? 0 : m.outputs[measured]?.output.v ?? 0,
+    vbias: m.vbias ?? vbiasFor({ spec, mirror: m, outputIndex: 0 })?.vbias, perturb: opts.perturb,
+    ...(opts.root ? {} : { inputNode: `${ns}${KINDS[m.kind].inputNode}` }), outNode,
+  };
 }
 
 /** Where a joint circuit's outputs are: node indices by name, each output's node (leaf or
